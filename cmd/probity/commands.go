@@ -1,0 +1,11 @@
+package main
+
+import "github.com/spf13/cobra"
+
+// commands lists the subcommands in the order --help shows them. Each
+// constructor builds a fresh command with its own options struct.
+func commands(d deps) []*cobra.Command {
+	return []*cobra.Command{
+		// newPlanCommand(d),
+	}
+}

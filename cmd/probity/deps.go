@@ -1,0 +1,42 @@
+package main
+
+import (
+	"crypto/rand"
+	"io"
+	"os"
+	"time"
+
+	"golang.org/x/term"
+)
+
+// deps holds everything a command takes from its environment, so tests can
+// run a fresh command tree with their own streams, clock and randomness.
+type deps struct {
+	stdin  io.Reader
+	stdout io.Writer
+	stderr io.Writer
+	// now is the clock; commands that stamp a date read it once.
+	now func() time.Time
+	// random is the source of seeds and keys (crypto/rand in production).
+	random io.Reader
+	// stderrIsTerminal enables progress bars.
+	stderrIsTerminal bool
+	// stdoutIsTerminal selects human-oriented output.
+	stdoutIsTerminal bool
+	// version is the tool version written into every artifact.
+	version string
+}
+
+// systemDeps returns the dependencies of a real process.
+func systemDeps() deps {
+	return deps{
+		stdin:            os.Stdin,
+		stdout:           os.Stdout,
+		stderr:           os.Stderr,
+		now:              time.Now,
+		random:           rand.Reader,
+		stderrIsTerminal: term.IsTerminal(int(os.Stderr.Fd())),
+		stdoutIsTerminal: term.IsTerminal(int(os.Stdout.Fd())),
+		version:          toolVersion(),
+	}
+}

@@ -1,0 +1,172 @@
+// Package record defines record.json, the machine-readable acceptance
+// record: the judgement of every candidate, the plan it was judged under,
+// the deviations, the sign-off and the fingerprints of every input. The PDF
+// (package pdfreport) shows exactly what a Record holds and computes nothing
+// new.
+package record
+
+// Format is the version of the record.json layout written by this code.
+const Format = 1
+
+// Verdicts.
+const (
+	Accept = "ACCEPT"
+	Reject = "REJECT"
+)
+
+// Record is record.json. Field order here is the key order on disk.
+type Record struct {
+	Format      int    `json:"format"`
+	ToolVersion string `json:"tool_version"`
+	// RecordID is the short fingerprint (first 12 hex digits of the
+	// SHA-256 of the judged inputs) printed on every PDF page.
+	RecordID string `json:"record_id"`
+	// Date is the record's date, YYYY-MM-DD (from --date or the clock).
+	Date string `json:"date"`
+	// Period is the audited period label ("" when none).
+	Period        string `json:"period"`
+	System        string `json:"system"`
+	SystemVersion string `json:"system_version"`
+	// Use is the declared use: general, safety, medical, vehicle, credit or
+	// employment.
+	Use  string   `json:"use"`
+	Plan PlanInfo `json:"plan"`
+	// Fingerprints are SHA-256 digests of the inputs.
+	Fingerprints Fingerprints   `json:"fingerprints"`
+	Candidates   []Candidate    `json:"candidates"`
+	Strata       []StratumCount `json:"strata"`
+	// OC is the plan's operating-characteristic curve, as plotted.
+	OC         []OCPoint  `json:"oc"`
+	Deviations Deviations `json:"deviations"`
+	// Method names the bound used (e.g. "clopper-pearson",
+	// "korn-graubard (approximate)", "weighted-hoeffding") and its
+	// assumptions in words.
+	Method  MethodInfo `json:"method"`
+	Signoff []Signoff  `json:"signoff"`
+	// SigningKey is the fingerprint of the public key that signed the
+	// record ("" when unsigned).
+	SigningKey string `json:"signing_key"`
+	// OverallVerdict is ACCEPT when every candidate the plan requires is
+	// accepted, else REJECT.
+	OverallVerdict string `json:"overall_verdict"`
+}
+
+// PlanInfo repeats the plan's rule and inputs.
+type PlanInfo struct {
+	Fingerprint      string   `json:"fingerprint"`
+	Method           string   `json:"method"`       // exact, hoeffding, kl
+	Model            string   `json:"model"`        // binomial, hypergeometric, ...
+	Design           string   `json:"design"`       // fixed or sequential
+	Multiplicity     string   `json:"multiplicity"` // bonferroni, holm, fixed-sequence
+	Require          string   `json:"require"`      // all or any
+	Ceiling          float64  `json:"ceiling"`
+	Confidence       float64  `json:"confidence"`
+	Candidates       int      `json:"candidates"`
+	Anticipated      *float64 `json:"anticipated"`
+	Population       int64    `json:"population"`
+	SampleSize       int      `json:"sample_size"`
+	AcceptanceNumber int      `json:"acceptance_number"`
+	PerCandidateRisk float64  `json:"per_candidate_risk"`
+	ConsumerRisk     float64  `json:"consumer_risk"`
+	ProducerRisk     *float64 `json:"producer_risk"`
+	Seed             string   `json:"seed"`
+	SelectionSeed    string   `json:"selection_seed"`
+}
+
+// Fingerprints are lowercase hex SHA-256 digests.
+type Fingerprints struct {
+	Plan      string `json:"plan"`
+	Log       string `json:"log"`
+	Manifest  string `json:"manifest"`
+	Ledger    string `json:"ledger"`
+	Worksheet string `json:"worksheet"`
+	Labels    string `json:"labels"`
+}
+
+// Candidate is the judgement of one candidate.
+type Candidate struct {
+	Name string `json:"name"`
+	// Labeled is the number of items with a usable label that count toward
+	// the judgement; Errors counts mistakes among them (plus, with
+	// --allow-incomplete, every missing or unsure item).
+	Labeled int `json:"labeled"`
+	Errors  int `json:"errors"`
+	// Estimate is the point estimate of the error (stratified, weighted by
+	// N_h/N, when weights are unequal).
+	Estimate float64 `json:"estimate"`
+	// UpperBound is the one-sided upper confidence bound at
+	// BoundConfidence (1 − δ/M under Bonferroni).
+	UpperBound      float64 `json:"upper_bound"`
+	BoundConfidence float64 `json:"bound_confidence"`
+	// PValue is the p-value of H0: error ≥ ceiling.
+	PValue float64 `json:"p_value"`
+	// AdjustedPValue is the multiplicity-adjusted p-value (Holm step-down,
+	// Bonferroni) or nil where not defined.
+	AdjustedPValue *float64 `json:"adjusted_p_value"`
+	Verdict        string   `json:"verdict"`
+	// Reason says in words why (e.g. "17 errors ≤ c = 17").
+	Reason    string       `json:"reason"`
+	Confusion Confusion    `json:"confusion"`
+	Strata    []StratumErr `json:"strata"`
+	// StoppedAt is, for a sequential plan, the number of labels at which
+	// the boundaries decided (0 for a fixed plan).
+	StoppedAt int `json:"stopped_at"`
+}
+
+// Confusion is a confusion matrix: Counts[i][j] is how many items labeled
+// Classes[i] the candidate predicted as Classes[j].
+type Confusion struct {
+	Classes []string `json:"classes"`
+	Counts  [][]int  `json:"counts"`
+}
+
+// StratumCount is a stratum of the draw: N_h and n_h.
+type StratumCount struct {
+	Label      string  `json:"label"`
+	Population int64   `json:"population"`
+	Sample     int     `json:"sample"`
+	Weight     float64 `json:"weight"`
+}
+
+// StratumErr is one candidate's errors in one stratum, with a two-sided
+// exact (Clopper–Pearson) 95 % interval for the rate.
+type StratumErr struct {
+	Label   string  `json:"label"`
+	Labeled int     `json:"labeled"`
+	Errors  int     `json:"errors"`
+	Rate    float64 `json:"rate"`
+	Lower   float64 `json:"lower"`
+	Upper   float64 `json:"upper"`
+}
+
+// Deviations lists departures from the plan. Empty lists mean "none".
+type Deviations struct {
+	SparesUsed      []string `json:"spares_used"`      // record ids
+	Unlabeled       []string `json:"unlabeled"`        // record ids
+	Unsure          []string `json:"unsure"`           // record ids
+	AllowIncomplete bool     `json:"allow_incomplete"` // missing/unsure counted as errors
+	Notes           []string `json:"notes"`
+}
+
+// MethodInfo states the method and its assumptions.
+type MethodInfo struct {
+	Bound       string   `json:"bound"`
+	Approximate bool     `json:"approximate"`
+	Statement   string   `json:"statement"`
+	Assumptions []string `json:"assumptions"`
+}
+
+// Signoff is one line of the sign-off block.
+type Signoff struct {
+	Role    string `json:"role"`    // prepared, reviewed, approved
+	Name    string `json:"name"`    // printed name ("" leaves the line blank)
+	Title   string `json:"title"`   // the signer's role in the organisation
+	Date    string `json:"date"`    // YYYY-MM-DD or ""
+	Meaning string `json:"meaning"` // what the signature means
+}
+
+// OCPoint is one point of an operating-characteristic curve.
+type OCPoint struct {
+	Error             float64 `json:"error"`
+	AcceptProbability float64 `json:"accept_probability"`
+}
