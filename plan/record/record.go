@@ -86,6 +86,12 @@ type Fingerprints struct {
 // Candidate is the judgement of one candidate.
 type Candidate struct {
 	Name string `json:"name"`
+	// Column, or ScoreColumn with Threshold, repeat how the plan defines
+	// the candidate (a predicted-label column, or "score ≥ threshold" on a
+	// score column), so the record names exactly what was judged.
+	Column      string   `json:"column,omitempty"`
+	ScoreColumn string   `json:"score_column,omitempty"`
+	Threshold   *float64 `json:"threshold,omitempty"`
 	// Labeled is the number of items with a usable label that count toward
 	// the judgement; Errors counts mistakes among them (plus, with
 	// --allow-incomplete, every missing or unsure item).
