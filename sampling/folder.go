@@ -5,6 +5,9 @@ const (
 	WorksheetFile = "worksheet.csv"
 	LedgerFile    = "ledger.csv"
 	ManifestFile  = "manifest.json"
+	// WorksheetSecondFile is the second, independent worksheet written
+	// for the items marked by `draw --double k`.
+	WorksheetSecondFile = "worksheet-second.csv"
 )
 
 // ManifestFormat is the version of the manifest layout written by this code.
@@ -83,8 +86,8 @@ type EngineInfo struct {
 
 // LedgerRow is one row of ledger.csv, kept by the audit owner. Columns, in
 // order: item, record_id, stratum, stratum_size, stratum_sample, weight,
-// key, spare, then one column per candidate (named as the candidate) with
-// its prediction.
+// key, spare, double, then one column per candidate (named as the
+// candidate) with its prediction.
 type LedgerRow struct {
 	Item          int      // 1-based position in the worksheet
 	RecordID      string   // the log's id
@@ -95,6 +98,9 @@ type LedgerRow struct {
 	Key           string   // lowercase hex SHA-256 of "<seed>:<record id>"
 	Spare         bool     // drawn as a spare
 	Predictions   []string // one per plan candidate, in plan order
+	// Double marks an item that also goes to worksheet-second.csv for an
+	// independent second label (`draw --double k`).
+	Double bool
 }
 
 // WorksheetRow is one row of worksheet.csv, what labelers get: item,
