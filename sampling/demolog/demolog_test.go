@@ -81,6 +81,11 @@ func TestWriteLogIsStable(t *testing.T) {
 	if len(lines) != s.Rows+2 || lines[len(lines)-1] != "" {
 		t.Fatalf("got %d lines, want %d rows plus header and final newline", len(lines), s.Rows)
 	}
+	if want := "WS-0000001,2026-11-11,mainline-north,flash-butt,scans/2026-11/WS-0000001.ust,0.1836"; lines[1] != want {
+		t.Fatalf("first row %q, want %q", lines[1], want)
+	}
 	sum := sha256.Sum256(a.Bytes())
-	t.Logf("first row: %s; sha256 %s", lines[1], hex.EncodeToString(sum[:]))
+	if got, want := hex.EncodeToString(sum[:]), "93ba7b5fb5f0193e129846d487ca6ff7b965161f68a6e207be175173be361af1"; got != want {
+		t.Fatalf("sha256 of the 1000-row log %s, want %s", got, want)
+	}
 }
