@@ -1,0 +1,73 @@
+package templates
+
+// Fields are the values a wording template can insert, already formatted
+// for print by the caller (rates as percentages, probabilities as the
+// record's number format). A string left "" makes {{if .Field}} false.
+type Fields struct {
+	// System and SystemVersion name the classifier under audit.
+	System        string
+	SystemVersion string
+	// Period is the audited period label; Date the record's date.
+	Period string
+	Date   string
+	// RecordID is the record's short fingerprint.
+	RecordID string
+	// Use is the declared use (general, safety, medical, …).
+	Use string
+	// Ceiling is the error ceiling, e.g. "2.000 %".
+	Ceiling string
+	// Confidence is the family-wise confidence 1 − δ, e.g. "95 %".
+	Confidence string
+	// FamilyRisk is δ, the risk that any candidate is falsely accepted.
+	FamilyRisk string
+	// BoundConfidence is the per-candidate confidence of the upper bounds.
+	BoundConfidence string
+	// PerCandidateRisk is the per-candidate false-accept risk (δ/M under
+	// Bonferroni and Holm).
+	PerCandidateRisk string
+	// ConsumerRisk is the rule's exact P(accept | error = ceiling).
+	ConsumerRisk string
+	// Anticipated and ProducerRisk are p0 and P(reject | error = p0); ""
+	// when the plan has no anticipated error.
+	Anticipated  string
+	ProducerRisk string
+	// Candidates is M, the number of candidates judged on the sample.
+	Candidates int
+	// Multiplicity names the correction in words ("Bonferroni", "Holm",
+	// "fixed-sequence"); "" for a single candidate.
+	Multiplicity string
+	// Require is "all" or "any".
+	Require string
+	// Model and Rule name the probability model and the plan's method.
+	Model string
+	Rule  string
+	// Sequential is true for a sequential design.
+	Sequential bool
+	// SampleSize is n and AcceptanceNumber is c.
+	SampleSize       int
+	AcceptanceNumber int
+	// Population is N for a finite lot, formatted ("" for a stream).
+	Population string
+	// Bound names the upper-bound method (e.g. "Clopper–Pearson").
+	Bound string
+	// Approximate is true when the bound's coverage is approximate.
+	Approximate bool
+	// Weighted is true when the estimate weights strata by N_h/N.
+	Weighted bool
+	// AllowIncomplete is true when missing or unsure labels were counted
+	// as errors.
+	AllowIncomplete bool
+}
+
+// sampleFields is a fully set Fields used to check templates at load time.
+func sampleFields() Fields {
+	return Fields{
+		System: "system", SystemVersion: "1", Period: "period", Date: "2000-01-01",
+		RecordID: "000000000000", Use: "general", Ceiling: "1 %", Confidence: "95 %",
+		FamilyRisk: "5 %", BoundConfidence: "95 %", PerCandidateRisk: "5 %",
+		ConsumerRisk: "4 %", Anticipated: "0.5 %", ProducerRisk: "10 %", Candidates: 2,
+		Multiplicity: "Bonferroni", Require: "all", Model: "binomial", Rule: "exact",
+		Sequential: true, SampleSize: 100, AcceptanceNumber: 1, Population: "1000",
+		Bound: "Clopper–Pearson", Approximate: true, Weighted: true, AllowIncomplete: true,
+	}
+}
