@@ -49,6 +49,9 @@ type Record struct {
 	// OverallVerdict is ACCEPT when every candidate the plan requires is
 	// accepted, else REJECT.
 	OverallVerdict string `json:"overall_verdict"`
+	// LabelQuality is the double-labeling evidence (nil, and absent from
+	// record.json, when no second worksheet was given).
+	LabelQuality *LabelQuality `json:"label_quality,omitempty"`
 }
 
 // PlanInfo repeats the plan's rule and inputs.
