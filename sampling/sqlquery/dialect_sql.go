@@ -1,0 +1,69 @@
+package sqlquery
+
+// The SQL fragments that differ between the dialects.
+
+// textType is the name of the text type.
+func (d Dialect) textType() string {
+	if d == DuckDB {
+		return "VARCHAR"
+	}
+	return "text"
+}
+
+// text casts an expression to text, as the engine prints the value (and as
+// an export of the table to CSV writes it).
+func (d Dialect) text(expr string) string {
+	return "CAST(" + expr + " AS " + d.textType() + ")"
+}
+
+// keyExpr is the selection key of a row: SHA-256 of the UTF-8 bytes of
+// "<seed>:<record id>". seedColon is the literal of "<seed>:". PostgreSQL
+// (≥ 11) gives the digest as bytea, which orders byte-wise like its hex;
+// DuckDB's sha256 gives the lowercase hex directly.
+func (d Dialect) keyExpr(seedColon, id string) string {
+	if d == DuckDB {
+		return "sha256(" + seedColon + " || " + id + ")"
+	}
+	return "sha256(convert_to(" + seedColon + " || " + id + ", 'UTF8'))"
+}
+
+// hex turns a key made by keyExpr into lowercase hex text.
+func (d Dialect) hex(k string) string {
+	if d == DuckDB {
+		return k
+	}
+	return "encode(" + k + ", 'hex')"
+}
+
+// byteOrder is the collation clause that orders text by its bytes (the
+// order the draw uses for stratum labels and keys).
+func (d Dialect) byteOrder() string {
+	if d == DuckDB {
+		return ""
+	}
+	return ` COLLATE "C"`
+}
+
+// exactInt is the exact integer type the allocation computes in.
+func (d Dialect) exactInt() string {
+	if d == DuckDB {
+		return "HUGEINT"
+	}
+	return "numeric"
+}
+
+// exactDiv is ⌊a / b⌋ of non-negative exact integers.
+func (d Dialect) exactDiv(a, b string) string {
+	if d == DuckDB {
+		return "(" + a + ") // (" + b + ")"
+	}
+	return "div(" + a + ", " + b + ")"
+}
+
+// exactMod is a mod b of non-negative exact integers.
+func (d Dialect) exactMod(a, b string) string {
+	if d == DuckDB {
+		return "(" + a + ") % (" + b + ")"
+	}
+	return "mod(" + a + ", " + b + ")"
+}

@@ -1,0 +1,135 @@
+package sqlquery
+
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+
+	"probity/plan"
+)
+
+// QueryFormat is the version of the query layout and of its result file.
+// A result made by a query of another format is refused, because the
+// query's SHA-256 recorded in the manifest could not be reproduced.
+const QueryFormat = 1
+
+// ErrSpec is wrapped by every error about a draw specification that
+// cannot be turned into a query.
+var ErrSpec = errors.New("invalid SQL draw")
+
+// Spec is everything a query depends on: the plan's identity and seed, the
+// table and its columns, the strata and the allocation. The query is a
+// pure function of its Spec, and the Spec travels inside the query (as a
+// literal) into the first row of the result, so the result file names the
+// plan, seed and settings it was made for and the importer can rebuild the
+// very same query to record its SHA-256.
+type Spec struct {
+	// Format is QueryFormat.
+	Format int `json:"format"`
+	// ToolVersion is the probity version that wrote the query.
+	ToolVersion string `json:"tool_version"`
+	// Dialect is the engine the query is written for.
+	Dialect Dialect `json:"dialect"`
+	// PlanFingerprint is the SHA-256 of the plan file's bytes.
+	PlanFingerprint string `json:"plan_fingerprint"`
+	// Seed is the plan's seed; Period the --period label (or empty);
+	// SelectionSeed the seed the keys are made with (the period seed for
+	// a periodic draw, else Seed).
+	Seed          string `json:"seed"`
+	Period        string `json:"period"`
+	SelectionSeed string `json:"selection_seed"`
+	// Table is the table reference as given to --table (see
+	// ParseTableName).
+	Table string `json:"table"`
+	// IDColumn, Strata, Bands and Show are the log columns, exactly as
+	// for a draw from a file.
+	IDColumn string   `json:"id_column"`
+	Strata   []string `json:"strata"`
+	Bands    []Band   `json:"bands"`
+	Show     []string `json:"show"`
+	// Candidates are the plan's candidates, in plan order (their columns
+	// are carried into the result for the ledger's predictions).
+	Candidates []plan.Candidate `json:"-"`
+	// SampleSize is the plan's n.
+	SampleSize int `json:"sample_size"`
+	// Allocation is the rule: "proportional" or "equal".
+	Allocation    string `json:"allocation"`
+	MinPerStratum int    `json:"min_per_stratum"`
+	Spare         int    `json:"spare"`
+	// Double is --double k: the first k sample items get a second label.
+	Double int `json:"double"`
+}
+
+// Band is one --band definition: the column and its interval edges, in
+// increasing order, as written (Text, e.g. "score=0.5,0.9").
+type Band struct {
+	Column string    `json:"column"`
+	Edges  []float64 `json:"edges"`
+	Text   string    `json:"text"`
+}
+
+// candidateColumns is what the result carries besides keys and strata:
+// the distinct log columns the candidates read, in plan order, then the
+// --show columns. Each is one "value_i" column of the result.
+func (s *Spec) valueColumns() []string {
+	var cols []string
+	seen := map[string]bool{}
+	add := func(c string) {
+		if !seen[c] {
+			seen[c] = true
+			cols = append(cols, c)
+		}
+	}
+	for _, c := range s.Candidates {
+		for _, col := range c.Columns() {
+			add(col)
+		}
+	}
+	for _, c := range s.Show {
+		add(c)
+	}
+	return cols
+}
+
+// specJSON is the Spec as it appears in the query and the result: the
+// fields above plus the value columns, so the result file says which log
+// column each value_i column holds.
+type specJSON struct {
+	Spec
+	Values []string `json:"values"`
+}
+
+// MarshalDetail returns the canonical JSON of the Spec that the query
+// carries: compact, keys in struct order, no HTML escaping.
+func (s *Spec) MarshalDetail() ([]byte, error) {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	v := specJSON{Spec: *s, Values: s.valueColumns()}
+	if v.Strata == nil {
+		v.Strata = []string{}
+	}
+	if v.Bands == nil {
+		v.Bands = []Band{}
+	}
+	if v.Show == nil {
+		v.Show = []string{}
+	}
+	if err := enc.Encode(v); err != nil {
+		return nil, err
+	}
+	return bytes.TrimSuffix(buf.Bytes(), []byte("\n")), nil
+}
+
+// parseDetail decodes the JSON a result's draw row carries. Candidates are
+// not in it; the caller takes them from the plan.
+func parseDetail(data string) (*specJSON, error) {
+	dec := json.NewDecoder(bytes.NewReader([]byte(data)))
+	dec.DisallowUnknownFields()
+	var v specJSON
+	if err := dec.Decode(&v); err != nil {
+		return nil, fmt.Errorf("the draw description is not valid: %v", err)
+	}
+	return &v, nil
+}
