@@ -1,0 +1,150 @@
+package trend
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"probity/plan/record"
+)
+
+// cand is a candidate's result in a test record.
+type cand struct {
+	name           string
+	labeled, error int
+}
+
+// testPlan is the plan of the test records: binomial exact fixed plan, ceiling
+// 2 %, 95 % confidence, 3 candidates under Bonferroni, n = 613, c = 5
+// (scipy.stats.binom: P(X ≤ 5 | 613, 0.02) = 0.01648 ≤ 0.05/3 and
+// P(X > 5 | 613, 0.005) = 0.0901 ≤ 0.10).
+func testPlan() record.PlanInfo {
+	p0, pr := 0.005, 0.0901
+	return record.PlanInfo{
+		Fingerprint:      fingerprint("plan of the ticket router audit"),
+		Method:           "exact",
+		Model:            "binomial",
+		Design:           "fixed",
+		Multiplicity:     "bonferroni",
+		Require:          "all",
+		Ceiling:          0.02,
+		Confidence:       0.95,
+		Candidates:       3,
+		Anticipated:      &p0,
+		SampleSize:       613,
+		AcceptanceNumber: 5,
+		PerCandidateRisk: 0.05 / 3,
+		ConsumerRisk:     0.01648,
+		ProducerRisk:     &pr,
+		Seed:             "5be1a2c0f77e4c1d9a0b3e6f28d4c7aa",
+		SelectionSeed:    "5be1a2c0f77e4c1d9a0b3e6f28d4c7aa",
+	}
+}
+
+func fingerprint(s string) string {
+	sum := sha256.Sum256([]byte(s))
+	return hex.EncodeToString(sum[:])
+}
+
+// makeRecord builds a record of period judged under plan with the plan's
+// acceptance number: estimate e/n, Clopper–Pearson upper bound at
+// 1 − δ/M, p-value P(X ≤ e | n, ceiling).
+func makeRecord(period string, plan record.PlanInfo, cs ...cand) record.Record {
+	conf := 1 - plan.PerCandidateRisk
+	r := record.Record{
+		Format:        record.Format,
+		ToolVersion:   "0.1.0",
+		Date:          period + "-28",
+		Period:        period,
+		System:        "ticket-router",
+		SystemVersion: "4.2",
+		Use:           "general",
+		Plan:          plan,
+		Strata:        []record.StratumCount{},
+		OC:            []record.OCPoint{},
+		Deviations:    record.Deviations{SparesUsed: []string{}, Unlabeled: []string{}, Unsure: []string{}, Notes: []string{}},
+		Method:        record.MethodInfo{Bound: "clopper-pearson", Statement: "exact binomial", Assumptions: []string{}},
+		Signoff:       []record.Signoff{},
+		Fingerprints: record.Fingerprints{Plan: plan.Fingerprint, Log: fingerprint("log " + period),
+			Manifest: fingerprint("manifest " + period), Ledger: fingerprint("ledger " + period),
+			Worksheet: fingerprint("worksheet " + period), Labels: fingerprint("labels " + period)},
+		OverallVerdict: record.Accept,
+	}
+	for _, c := range cs {
+		v := record.Accept
+		reason := fmt.Sprintf("%d errors ≤ c = %d", c.error, plan.AcceptanceNumber)
+		if c.error > plan.AcceptanceNumber {
+			v = record.Reject
+			reason = fmt.Sprintf("%d errors > c = %d", c.error, plan.AcceptanceNumber)
+			r.OverallVerdict = record.Reject
+		}
+		r.Candidates = append(r.Candidates, record.Candidate{
+			Name: c.name, Labeled: c.labeled, Errors: c.error,
+			Estimate:        float64(c.error) / float64(c.labeled),
+			UpperBound:      clopperPearsonUpper(c.error, c.labeled, conf),
+			BoundConfidence: conf,
+			PValue:          distuv.Binomial{N: float64(c.labeled), P: plan.Ceiling}.CDF(float64(c.error)),
+			Verdict:         v,
+			Reason:          reason,
+			Confusion:       record.Confusion{Classes: []string{}, Counts: [][]int{}},
+			Strata:          []record.StratumErr{},
+		})
+	}
+	r.RecordID = fingerprint(fmt.Sprint(period, cs))[:12]
+	return r
+}
+
+// clopperPearsonUpper is the one-sided upper bound: the conf quantile of
+// Beta(k+1, n−k), or 1 when k = n (Clopper & Pearson, Biometrika 1934).
+func clopperPearsonUpper(k, n int, conf float64) float64 {
+	if k >= n {
+		return 1
+	}
+	return distuv.Beta{Alpha: float64(k + 1), Beta: float64(n - k)}.Quantile(conf)
+}
+
+// writeRecord writes r as JSON into dir/name and returns the path.
+func writeRecord(t testing.TB, dir, name string, r record.Record) string {
+	t.Helper()
+	data, err := json.MarshalIndent(r, "", "  ")
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, name)
+	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(path, append(data, '\n'), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// year is the scenario of testdata/trend/monthly: router-a is steady,
+// router-b drifts upward (flagged from 2026-10 while still accepted, rejected
+// in 2026-12), threshold-0.62 is steady.
+var year = []struct {
+	period string
+	a, b   int
+	t      int
+}{
+	{"2026-01", 2, 0, 3}, {"2026-02", 1, 1, 2}, {"2026-03", 3, 1, 3}, {"2026-04", 2, 2, 4},
+	{"2026-05", 2, 2, 2}, {"2026-06", 1, 3, 3}, {"2026-07", 3, 3, 2}, {"2026-08", 2, 4, 3},
+	{"2026-09", 2, 4, 4}, {"2026-10", 3, 5, 3}, {"2026-11", 2, 5, 2}, {"2026-12", 1, 7, 3},
+}
+
+// yearRecords returns the scenario's records in period order.
+func yearRecords() []record.Record {
+	var rs []record.Record
+	for _, m := range year {
+		rs = append(rs, makeRecord(m.period, testPlan(),
+			cand{"router-a", 613, m.a}, cand{"router-b", 613, m.b}, cand{"threshold-0.62", 613, m.t}))
+	}
+	return rs
+}
