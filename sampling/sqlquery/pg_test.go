@@ -9,6 +9,7 @@ import (
 	"os"
 	"os/exec"
 	"strings"
+	"sync"
 	"testing"
 )
 
@@ -19,6 +20,7 @@ type pgServer struct {
 	psql string
 	host string
 	user string
+	db   string
 }
 
 // needPostgres returns the test server, or skips the test when none is
@@ -38,24 +40,51 @@ func needPostgres(t testing.TB) *pgServer {
 	if user == "" {
 		user = "postgres"
 	}
-	return &pgServer{psql: psql, host: host, user: user}
+	srv := &pgServer{psql: psql, host: host, user: user, db: "postgres"}
+	testDBOnce.Do(func() { testDBErr = srv.createTestDB() })
+	if testDBErr != nil {
+		t.Fatal(testDBErr)
+	}
+	srv.db = testDBName
+	return srv
 }
 
-// run executes SQL through psql with ON_ERROR_STOP, feeding stdin (for
-// COPY … FROM STDIN) when given, and returns what psql wrote to stdout.
-// Extra psql arguments (e.g. --csv) come before the script.
-func (s *pgServer) run(sql string, stdin io.Reader, args ...string) ([]byte, error) {
-	argv := append([]string{"-h", s.host, "-U", s.user, "-X", "-q", "-v", "ON_ERROR_STOP=1", "-d", "postgres"}, args...)
-	var script string
-	if stdin == nil {
-		argv = append(argv, "-c", sql)
-	} else {
-		script = sql
-		argv = append(argv, "-f", "-")
-		stdin = io.MultiReader(strings.NewReader(script+"\n"), stdin, strings.NewReader("\\.\n"))
+// testDBName is the database the tests run in. It is created with a
+// locale-aware ICU collation as its default, so that a query which forgot to
+// order labels and keys by their bytes would fail the tests.
+const testDBName = "probity_sqlquery_test"
+
+var (
+	testDBOnce sync.Once
+	testDBErr  error
+)
+
+// createTestDB creates the test database (ICU "en-US" collation) unless
+// it exists.
+func (s *pgServer) createTestDB() error {
+	out, err := s.run("SELECT count(*) FROM pg_database WHERE datname = '"+testDBName+"'", nil, "-A", "-t")
+	if err != nil {
+		return err
 	}
-	cmd := exec.Command(s.psql, argv...)
-	cmd.Stdin = stdin
+	if strings.TrimSpace(string(out)) == "1" {
+		return nil
+	}
+	_, err = s.run("CREATE DATABASE "+testDBName+" TEMPLATE template0 ENCODING 'UTF8' LOCALE_PROVIDER icu ICU_LOCALE 'en-US' LOCALE 'C.UTF-8'", nil)
+	return err
+}
+
+// run executes an SQL script through psql (read from its standard input)
+// with ON_ERROR_STOP and returns what psql wrote to stdout. Extra psql
+// arguments (e.g. --csv) come before the script.
+func (s *pgServer) run(script string, stdin io.Reader, args ...string) ([]byte, error) {
+	in := io.Reader(strings.NewReader(script + "\n"))
+	if stdin != nil {
+		// COPY … FROM STDIN reads the rows that follow the statement.
+		in = io.MultiReader(in, stdin, strings.NewReader("\\.\n"))
+	}
+	argv := append([]string{"-h", s.host, "-U", s.user, "-X", "-q", "-v", "ON_ERROR_STOP=1", "-d", s.db}, args...)
+	cmd := exec.Command(s.psql, append(argv, "-f", "-")...)
+	cmd.Stdin = in
 	var out, errb bytes.Buffer
 	cmd.Stdout = &out
 	cmd.Stderr = &errb
