@@ -1,0 +1,134 @@
+package sequential
+
+import (
+	"fmt"
+
+	"probity/plan"
+)
+
+// never is the reject boundary where rejection is not possible (no count
+// of errors reaches it).
+const never = int(^uint(0) >> 1)
+
+// bounds is a validated rule in the form the dynamic programme uses:
+// acc[t] and rej[t] for t = 1 … T (index 0 unused: no decision before the
+// first label).
+type bounds struct {
+	T   int
+	acc []int // −1: acceptance not possible
+	rej []int // never: rejection not possible
+}
+
+// newBounds validates a rule and converts it. A rule is valid when both
+// arrays have MaxSampleSize entries, −1 ≤ a_t ≤ t, 1 ≤ r_t ≤ t where set,
+// a_t < r_t, and the boundaries meet at the truncation point: a_T ≥ 0 and
+// r_T = a_T + 1.
+func newBounds(r *plan.SequentialRule) (*bounds, error) {
+	if r == nil {
+		return nil, fmt.Errorf("%w: no sequential rule", ErrDomain)
+	}
+	T := r.MaxSampleSize
+	if T < 1 {
+		return nil, fmt.Errorf("%w: max_sample_size %d is below 1", ErrDomain, T)
+	}
+	if len(r.AcceptIfErrorsAtMost) != T || len(r.RejectIfErrorsAtLeast) != T {
+		return nil, fmt.Errorf("%w: accept_if_errors_at_most has %d entries and reject_if_errors_at_least %d; both need max_sample_size = %d",
+			ErrDomain, len(r.AcceptIfErrorsAtMost), len(r.RejectIfErrorsAtLeast), T)
+	}
+	b := &bounds{T: T, acc: make([]int, T+1), rej: make([]int, T+1)}
+	b.acc[0], b.rej[0] = -1, never
+	for t := 1; t <= T; t++ {
+		a := r.AcceptIfErrorsAtMost[t-1]
+		if a < -1 || a > t {
+			return nil, fmt.Errorf("%w: accept_if_errors_at_most at t = %d is %d, outside [-1, %d]", ErrDomain, t, a, t)
+		}
+		rj := never
+		if p := r.RejectIfErrorsAtLeast[t-1]; p != nil {
+			rj = *p
+			if rj < 1 || rj > t {
+				return nil, fmt.Errorf("%w: reject_if_errors_at_least at t = %d is %d, outside [1, %d]", ErrDomain, t, rj, t)
+			}
+			if rj <= a {
+				return nil, fmt.Errorf("%w: at t = %d the reject boundary %d is not above the accept boundary %d", ErrDomain, t, rj, a)
+			}
+		}
+		b.acc[t], b.rej[t] = a, rj
+	}
+	if b.acc[T] < 0 || b.rej[T] != b.acc[T]+1 {
+		return nil, fmt.Errorf("%w: at t = max_sample_size = %d the boundaries must meet (reject = accept + 1), got accept %d and reject %s",
+			ErrDomain, T, b.acc[T], fmtBound(b.rej[T]))
+	}
+	return b, nil
+}
+
+// rule converts bounds back to the plan file's form.
+func (b *bounds) rule() *plan.SequentialRule {
+	r := &plan.SequentialRule{
+		MaxSampleSize:         b.T,
+		AcceptIfErrorsAtMost:  make([]int, b.T),
+		RejectIfErrorsAtLeast: make([]*int, b.T),
+	}
+	for t := 1; t <= b.T; t++ {
+		r.AcceptIfErrorsAtMost[t-1] = b.acc[t]
+		if b.rej[t] != never {
+			v := b.rej[t]
+			r.RejectIfErrorsAtLeast[t-1] = &v
+		}
+	}
+	return r
+}
+
+// maxReject is the largest finite reject boundary (r_T at least).
+func (b *bounds) maxReject() int {
+	m := 0
+	for t := 1; t <= b.T; t++ {
+		if b.rej[t] != never && b.rej[t] > m {
+			m = b.rej[t]
+		}
+	}
+	return m
+}
+
+func fmtBound(v int) string {
+	if v == never {
+		return "null"
+	}
+	return fmt.Sprint(v)
+}
+
+// Validate reports whether r is a well-formed truncated sequential rule
+// (see the conditions on newBounds): every path must end in a decision by
+// t = MaxSampleSize.
+func Validate(r *plan.SequentialRule) error {
+	_, err := newBounds(r)
+	return err
+}
+
+// Curtailed expresses the fixed plan "label n, accept when errors ≤ c" with
+// exact curtailment as a sequential rule: after t labels, reject as soon as
+// errors reach c + 1 (r_t = c + 1 once t ≥ c + 1), and accept as soon as
+// errors ≤ c is certain even if every remaining item were an error
+// (a_t = c − (n − t) when that is ≥ 0). Curtailment changes neither risk:
+// every path is decided exactly as the full sample of n would decide it.
+func Curtailed(n, c int) (*plan.SequentialRule, error) {
+	if n < 1 || c < 0 || c >= n {
+		return nil, fmt.Errorf("%w: fixed plan n = %d, c = %d needs n ≥ 1 and 0 ≤ c < n", ErrDomain, n, c)
+	}
+	r := &plan.SequentialRule{
+		MaxSampleSize:         n,
+		AcceptIfErrorsAtMost:  make([]int, n),
+		RejectIfErrorsAtLeast: make([]*int, n),
+	}
+	for t := 1; t <= n; t++ {
+		a := c - (n - t)
+		if a < 0 {
+			a = -1
+		}
+		r.AcceptIfErrorsAtMost[t-1] = a
+		if t >= c+1 {
+			v := c + 1
+			r.RejectIfErrorsAtLeast[t-1] = &v
+		}
+	}
+	return r, nil
+}

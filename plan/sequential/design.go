@@ -1,0 +1,327 @@
+package sequential
+
+import (
+	"fmt"
+	"math"
+
+	"probity/plan"
+)
+
+// Spec are the requirements a sequential plan is designed for.
+type Spec struct {
+	// Ceiling is the error rate that must not be accepted (p1) and
+	// Anticipated the error a good model is expected to have (p0),
+	// 0 < p0 < p1 < 1.
+	Ceiling     float64
+	Anticipated float64
+	// ConsumerRisk is the bound on P(accept | ceiling), the per-candidate
+	// risk δ/M'; ProducerRisk the bound on P(reject | anticipated).
+	ConsumerRisk float64
+	ProducerRisk float64
+	// FixedSampleSize is the n of the fixed (n, c) plan for the same risks;
+	// the truncation point is searched from n up to MaxSampleSize.
+	FixedSampleSize int
+	// MaxSampleSize caps the truncation point; 0 means 2·n.
+	MaxSampleSize int
+	// Population is N for a finite lot (hypergeometric), 0 for a stream.
+	// BadLotErrors (D1) and GoodLotErrors (D0) are then the errors of a
+	// lot at the ceiling and at the anticipated error.
+	Population    int64
+	BadLotErrors  int64
+	GoodLotErrors int64
+}
+
+// Design is a searched sequential plan with its exact risks.
+type Design struct {
+	Rule *plan.SequentialRule
+	// ConsumerRisk is the exact P(accept | ceiling) and ProducerRisk the
+	// exact P(reject | anticipated), both by Evaluate.
+	ConsumerRisk float64
+	ProducerRisk float64
+	// ASNAtAnticipated and ASNAtCeiling are the exact average sample
+	// numbers (also stored in Rule).
+	ASNAtAnticipated float64
+	ASNAtCeiling     float64
+	// Lines are Wald's SPRT lines for the same risks; the plan uses their
+	// slope with searched intercepts.
+	Lines Lines
+	// AcceptIntercept and RejectIntercept are the searched intercepts:
+	// a_t = min(⌊s·t − AcceptIntercept⌋, c), r_t = min(⌈s·t +
+	// RejectIntercept⌉, c + 1) (RejectIntercept = +Inf: reject only by
+	// curtailment at c + 1); FinalAcceptance is c = a_T.
+	AcceptIntercept float64
+	RejectIntercept float64
+	FinalAcceptance int
+	// Evaluations counts the dynamic programmes the search ran.
+	Evaluations int
+}
+
+// models returns the error laws at the anticipated error and at the
+// ceiling.
+func (s Spec) models() (good, bad Model) {
+	if s.Population > 0 {
+		return Hypergeometric{N: s.Population, D: s.GoodLotErrors}, Hypergeometric{N: s.Population, D: s.BadLotErrors}
+	}
+	return Binomial{P: s.Anticipated}, Binomial{P: s.Ceiling}
+}
+
+func (s Spec) validate() error {
+	if !(s.Ceiling > 0 && s.Ceiling < 1) {
+		return fmt.Errorf("%w: ceiling %v is outside (0, 1)", ErrDomain, s.Ceiling)
+	}
+	if !(s.Anticipated > 0 && s.Anticipated < s.Ceiling) {
+		return fmt.Errorf("%w: anticipated error %v must lie in (0, ceiling %v)", ErrDomain, s.Anticipated, s.Ceiling)
+	}
+	if !(s.ConsumerRisk > 0 && s.ConsumerRisk < 1) || !(s.ProducerRisk > 0 && s.ProducerRisk < 1) || s.ConsumerRisk+s.ProducerRisk >= 1 {
+		return fmt.Errorf("%w: risks %v and %v must lie in (0, 1) and sum below 1", ErrDomain, s.ConsumerRisk, s.ProducerRisk)
+	}
+	if s.FixedSampleSize < 1 {
+		return fmt.Errorf("%w: fixed sample size %d is below 1", ErrDomain, s.FixedSampleSize)
+	}
+	if s.MaxSampleSize != 0 && s.MaxSampleSize < s.FixedSampleSize {
+		return fmt.Errorf("%w: max sample size %d is below the fixed plan's %d", ErrDomain, s.MaxSampleSize, s.FixedSampleSize)
+	}
+	if s.Population > 0 {
+		if int64(s.FixedSampleSize) > s.Population {
+			return fmt.Errorf("%w: fixed sample size %d exceeds the lot of %d", ErrDomain, s.FixedSampleSize, s.Population)
+		}
+		if !(s.GoodLotErrors >= 0 && s.GoodLotErrors < s.BadLotErrors && s.BadLotErrors <= s.Population) {
+			return fmt.Errorf("%w: lot errors D0 = %d and D1 = %d need 0 ≤ D0 < D1 ≤ N = %d", ErrDomain, s.GoodLotErrors, s.BadLotErrors, s.Population)
+		}
+	}
+	return nil
+}
+
+// lineBounds builds the rule a_t = min(⌊s·t − ha⌋, c),
+// r_t = min(⌈s·t + hr⌉, c + 1) for t < T, a_T = c, r_T = c + 1, with
+// a_t = −1 where negative and r_t unset where above t. Products are
+// rounded explicitly so the boundaries do not depend on fused
+// multiply-add.
+func lineBounds(T, c int, slope, ha, hr float64) *bounds {
+	b := &bounds{T: T, acc: make([]int, T+1), rej: make([]int, T+1)}
+	b.acc[0], b.rej[0] = -1, never
+	for t := 1; t < T; t++ {
+		st := float64(slope * float64(t))
+		a := c
+		if x := math.Floor(st - ha); x < float64(c) {
+			a = int(x)
+		}
+		if a < -1 {
+			a = -1
+		}
+		if a > t {
+			a = t
+		}
+		r := c + 1
+		if !math.IsInf(hr, 1) {
+			if x := math.Ceil(st + hr); x < float64(c+1) {
+				r = int(x)
+			}
+		}
+		if r <= a {
+			r = a + 1
+		}
+		if r < 1 {
+			r = 1
+		}
+		if r > t {
+			r = never
+		}
+		b.acc[t], b.rej[t] = a, r
+	}
+	b.acc[T], b.rej[T] = c, c+1
+	return b
+}
+
+// finalCDF returns P(errors among the first T ≤ c) for c = 0 … cmax under
+// m, exactly, by a dynamic programme whose last state absorbs every count
+// above cmax.
+func finalCDF(m Model, T, cmax int) []float64 {
+	p := make([]float64, cmax+2)
+	p[0] = 1
+	binom, isBinom := m.(Binomial)
+	for t := 0; t < T; t++ {
+		top := min(t, cmax)
+		// the absorbing state cmax+1 stays absorbed
+		for e := top; e >= 0; e-- {
+			q := 0.0
+			if isBinom {
+				q = binom.P
+			} else {
+				q = m.NextError(t, e)
+			}
+			v := p[e]
+			p[e] = v * (1 - q)
+			p[e+1] += v * q
+		}
+	}
+	cdf := make([]float64, cmax+1)
+	run := 0.0
+	for c := 0; c <= cmax; c++ {
+		run += p[c]
+		cdf[c] = run
+	}
+	return cdf
+}
+
+// Search finds a truncated sequential plan for spec: Wald's slope between
+// the anticipated error and the ceiling, with the intercepts, the
+// truncation point T (from n to the cap) and the final acceptance number
+// c searched so that the exact consumer's risk ≤ spec.ConsumerRisk and the
+// exact producer's risk ≤ spec.ProducerRisk, minimising
+// ASN(anticipated) + ASN(ceiling). For each (T, c) with a feasible fixed
+// plan and each reject intercept on a grid, the accept intercept is the
+// smallest that keeps the consumer's risk (found by bisection: the risk
+// falls as the intercept grows). Acceptance needs e ≤ c and rejection
+// comes at the latest at e = c + 1, so the fixed plan (T, c) itself, with
+// curtailment, is always among the candidates when it is feasible.
+func Search(spec Spec) (*Design, error) {
+	if err := spec.validate(); err != nil {
+		return nil, err
+	}
+	good, bad := spec.models()
+	p0, p1 := spec.Anticipated, spec.Ceiling
+	if spec.Population > 0 {
+		p0 = float64(spec.GoodLotErrors) / float64(spec.Population)
+		p1 = float64(spec.BadLotErrors) / float64(spec.Population)
+		if p0 <= 0 {
+			p0 = spec.Anticipated
+		}
+	}
+	lines, err := WaldLines(p0, p1, spec.ProducerRisk, spec.ConsumerRisk)
+	if err != nil {
+		return nil, err
+	}
+	n := spec.FixedSampleSize
+	cap := spec.MaxSampleSize
+	if cap == 0 {
+		cap = 2 * n
+	}
+	if spec.Population > 0 && int64(cap) > spec.Population {
+		cap = int(spec.Population)
+	}
+	var best *Design
+	bestObj := math.Inf(1)
+	evals := 0
+	// try evaluates one (T, c, hr): the smallest accept intercept that
+	// keeps the consumer's risk, then the producer's risk and the ASNs.
+	try := func(T, c int, hr float64, tol float64) (float64, bool) {
+		if c < 0 || c >= T {
+			return 0, false
+		}
+		cr := func(ha float64) float64 {
+			evals++
+			return lineBounds(T, c, lines.Slope, ha, hr).evaluateUntil(bad, spec.ConsumerRisk).Accept
+		}
+		// bracket the intercept around Wald's h1, widening as needed
+		lo, hi := 0.5*lines.HAccept, 1.5*lines.HAccept
+		top := float64(lines.Slope*float64(T)) + 1
+		for cr(hi) > spec.ConsumerRisk {
+			if hi >= top {
+				return 0, false
+			}
+			lo, hi = hi, math.Min(2*hi, top)
+		}
+		for lo > 0 && cr(lo) <= spec.ConsumerRisk {
+			hi, lo = lo, math.Max(lo-lines.HAccept/2, 0)
+		}
+		if lo == 0 && cr(lo) <= spec.ConsumerRisk {
+			hi = lo
+		}
+		for hi-lo > tol {
+			mid := (lo + hi) / 2
+			if cr(mid) <= spec.ConsumerRisk {
+				hi = mid
+			} else {
+				lo = mid
+			}
+		}
+		b := lineBounds(T, c, lines.Slope, hi, hr)
+		pb := b.evaluate(bad)
+		pg := b.evaluate(good)
+		evals += 2
+		if pb.Accept > spec.ConsumerRisk || pg.Reject > spec.ProducerRisk {
+			return 0, false
+		}
+		obj := pg.ASN + pb.ASN
+		if obj < bestObj*(1-1e-12) {
+			bestObj = obj
+			best = &Design{
+				Rule: b.rule(), ConsumerRisk: pb.Accept, ProducerRisk: pg.Reject,
+				ASNAtAnticipated: pg.ASN, ASNAtCeiling: pb.ASN, Lines: lines,
+				AcceptIntercept: hi, RejectIntercept: hr, FinalAcceptance: c,
+			}
+		}
+		return obj, true
+	}
+	// finalC ties the last acceptance number to the reject line: c is k
+	// below ⌈s·T + hr⌉ − 1, so the truncation closes the gap between the
+	// lines from the rejection side.
+	finalC := func(T int, hr float64, k int) int {
+		return int(math.Ceil(float64(lines.Slope*float64(T))+hr)) - 1 - k
+	}
+	// coarse pass over the truncation points
+	bestT := 0
+	for _, T := range truncationGrid(n, cap) {
+		before := bestObj
+		for _, f := range coarseRejectGrid {
+			for _, k := range []int{0, 2} {
+				try(T, finalC(T, f*lines.HReject, k), f*lines.HReject, 0.05)
+			}
+		}
+		if bestObj < before {
+			bestT = T
+		}
+	}
+	// fine pass at the best truncation point, around the best intercept
+	if best != nil {
+		f0 := best.RejectIntercept / lines.HReject
+		for f := f0 - 0.09; f <= f0+0.09+1e-9; f += 0.03 {
+			if f <= 0 {
+				continue
+			}
+			for k := 0; k <= 2; k++ {
+				try(bestT, finalC(bestT, f*lines.HReject, k), f*lines.HReject, 0.002)
+			}
+		}
+	}
+	if best == nil {
+		return nil, fmt.Errorf("%w: no sequential plan up to %d labels meets both risks", ErrDomain, cap)
+	}
+	best.Rule.ASNAtAnticipated = best.ASNAtAnticipated
+	best.Rule.ASNAtCeiling = best.ASNAtCeiling
+	best.Evaluations = evals
+	return best, nil
+}
+
+// coarseRejectGrid are the reject intercepts of the coarse pass, as
+// multiples of Wald's h2.
+var coarseRejectGrid = []float64{0.5, 0.7, 0.9, 1.2, 1.6}
+
+// truncationGrid returns the truncation points tried: n·{1, 1.5, 2, 3}
+// capped at cap, without repeats.
+func truncationGrid(n, cap int) []int {
+	var out []int
+	for _, f := range []float64{1, 1.5, 2, 3} {
+		T := int(math.Round(f * float64(n)))
+		if T > cap {
+			T = cap
+		}
+		if len(out) == 0 || out[len(out)-1] != T {
+			out = append(out, T)
+		}
+	}
+	return out
+}
+
+// spread picks at most k values of xs, evenly spaced, ends included.
+func spread(xs []int, k int) []int {
+	if len(xs) <= k {
+		return xs
+	}
+	out := make([]int, 0, k)
+	for i := 0; i < k; i++ {
+		out = append(out, xs[i*(len(xs)-1)/(k-1)])
+	}
+	return out
+}
