@@ -1,0 +1,149 @@
+package agreement
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"slices"
+	"strconv"
+	"strings"
+
+	"probity/sampling"
+)
+
+// AdjudicationColumns is the header of an adjudication file, in order:
+//
+//	item         the worksheet item number (a positive whole number)
+//	record_id    the item's record id, as in the worksheets (a guard
+//	             against a shifted row)
+//	final_label  the label the judgement uses: one of the plan's classes
+//	             (not blank, not unsure)
+//	decided_by   who decided (not blank)
+//	note         why, in a few words (may be blank)
+//
+// One row per doubled item the two labelers did not agree on; a row for an
+// item that was not doubled, or on which the labelers agreed, is refused.
+var AdjudicationColumns = []string{"item", "record_id", "final_label", "decided_by", "note"}
+
+// Unsure is the label a labeler writes for an item they cannot decide.
+const Unsure = "unsure"
+
+// Adjudication is one row of an adjudication file.
+type Adjudication struct {
+	Item       int
+	RecordID   string
+	FinalLabel string
+	DecidedBy  string
+	Note       string
+	// Line is the 1-based line the row starts on.
+	Line int
+}
+
+// ReadAdjudications reads an adjudication file (CSV with the header
+// AdjudicationColumns; a UTF-8 byte-order mark and CRLF line ends are
+// accepted). Every final_label must be one of classes. Errors are
+// *sampling.InputError naming the file, line and column.
+func ReadAdjudications(path string, classes []string) ([]Adjudication, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return ParseAdjudications(data, path, classes)
+}
+
+// ParseAdjudications is ReadAdjudications on bytes already read; name is
+// the file name used in messages.
+func ParseAdjudications(data []byte, name string, classes []string) ([]Adjudication, error) {
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	r := csv.NewReader(bytes.NewReader(data))
+	r.FieldsPerRecord = -1
+	var out []Adjudication
+	header := false
+	items := map[int]int{}
+	ids := map[string]int{}
+	for {
+		rec, err := r.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				return nil, &sampling.InputError{File: name, Line: pe.Line, Msg: pe.Err.Error(), Err: err}
+			}
+			return nil, &sampling.InputError{File: name, Msg: err.Error(), Err: err}
+		}
+		line, _ := r.FieldPos(0)
+		if !header {
+			if !slices.Equal(rec, AdjudicationColumns) {
+				return nil, &sampling.InputError{File: name, Line: line,
+					Msg:  fmt.Sprintf("header is %s; an adjudication file's columns are %s", strings.Join(rec, ","), strings.Join(AdjudicationColumns, ",")),
+					Hint: "start the file with the line: " + strings.Join(AdjudicationColumns, ",")}
+			}
+			header = true
+			continue
+		}
+		if len(rec) != len(AdjudicationColumns) {
+			return nil, &sampling.InputError{File: name, Line: line,
+				Msg: fmt.Sprintf("%d fields, but the header has %d", len(rec), len(AdjudicationColumns))}
+		}
+		a, err := parseAdjudication(name, line, rec, classes)
+		if err != nil {
+			return nil, err
+		}
+		if prev, ok := items[a.Item]; ok {
+			return nil, &sampling.InputError{File: name, Line: line, Column: "item",
+				Msg: fmt.Sprintf("item %d is adjudicated twice (lines %d and %d)", a.Item, prev, line)}
+		}
+		items[a.Item] = line
+		if prev, ok := ids[a.RecordID]; ok {
+			return nil, &sampling.InputError{File: name, Line: line, Column: "record_id",
+				Msg: fmt.Sprintf("record_id %q is adjudicated twice (lines %d and %d)", a.RecordID, prev, line)}
+		}
+		ids[a.RecordID] = line
+		out = append(out, a)
+	}
+	if !header {
+		return nil, &sampling.InputError{File: name, Msg: "the file is empty (no header line)",
+			Hint: "start the file with the line: " + strings.Join(AdjudicationColumns, ",")}
+	}
+	if out == nil {
+		out = []Adjudication{}
+	}
+	return out, nil
+}
+
+// parseAdjudication checks one data row.
+func parseAdjudication(name string, line int, rec, classes []string) (Adjudication, error) {
+	bad := func(col, format string, args ...any) error {
+		return &sampling.InputError{File: name, Line: line, Column: col, Msg: fmt.Sprintf(format, args...)}
+	}
+	a := Adjudication{Line: line, RecordID: rec[1], FinalLabel: rec[2], DecidedBy: strings.TrimSpace(rec[3]), Note: rec[4]}
+	n, err := strconv.Atoi(rec[0])
+	if err != nil || n < 1 {
+		return a, bad("item", "%q is not a positive whole number", rec[0])
+	}
+	a.Item = n
+	if a.RecordID == "" {
+		return a, bad("record_id", "record_id is empty")
+	}
+	switch {
+	case a.FinalLabel == "":
+		e := bad("final_label", "final_label is empty").(*sampling.InputError)
+		e.Hint = "write the decided class (" + strings.Join(classes, ", ") + ") or remove the row"
+		return a, e
+	case !slices.Contains(classes, a.FinalLabel):
+		e := bad("final_label", "final_label %q is not one of the classes (%s)", a.FinalLabel, strings.Join(classes, ", ")).(*sampling.InputError)
+		if a.FinalLabel == Unsure {
+			e.Hint = "an adjudication must decide; leave the item out and pass --allow-unadjudicated to count it as an error for every candidate"
+		}
+		return a, e
+	}
+	if a.DecidedBy == "" {
+		return a, bad("decided_by", "decided_by is empty; name who decided")
+	}
+	return a, nil
+}

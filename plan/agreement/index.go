@@ -1,0 +1,124 @@
+package agreement
+
+import (
+	"fmt"
+	"slices"
+	"strings"
+
+	"probity/sampling"
+)
+
+// inputError builds an input error naming file, line (0: the whole file)
+// and column ("" when not about one column).
+func inputError(file string, line int, column, format string, args ...any) *sampling.InputError {
+	return &sampling.InputError{File: file, Line: line, Column: column, Msg: fmt.Sprintf(format, args...)}
+}
+
+// withHint attaches the obvious fix to e and returns it.
+func withHint(e *sampling.InputError, hint string) error {
+	e.Hint = hint
+	return e
+}
+
+// indexLedger maps items to ledger rows and returns the doubled items in
+// item order.
+func indexLedger(in Input) (map[int]sampling.LedgerRow, []int, error) {
+	ledger := make(map[int]sampling.LedgerRow, len(in.Ledger))
+	var doubled []int
+	for _, r := range in.Ledger {
+		ledger[r.Item] = r
+		if r.Double {
+			doubled = append(doubled, r.Item)
+		}
+	}
+	slices.Sort(doubled)
+	if len(doubled) == 0 {
+		return nil, nil, withHint(inputError(in.LedgerFile, 0, "double", "no item is marked for a second label"), "draw with --double k to have k items labeled twice, or leave out --second")
+	}
+	return ledger, doubled, nil
+}
+
+// labelOK reports whether a worksheet label is a class, unsure or blank.
+func labelOK(tb *Table, label string) bool {
+	return label == "" || label == Unsure || tb.Has(label)
+}
+
+// badLabel is the error for a label outside the classes.
+func badLabel(file string, r sampling.WorksheetRow, classes []string) error {
+	return withHint(inputError(file, r.Line, "label", "label %q of item %d is not one of the classes (%s), blank or %s", r.Label, r.Item, strings.Join(classes, ", "), Unsure), "correct the label; write "+Unsure+" when the item cannot be decided")
+}
+
+// indexFirst maps the doubled items to their rows in the first worksheet,
+// checking they are there with the ledger's record id and a valid label.
+func indexFirst(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb *Table) (map[int]sampling.WorksheetRow, error) {
+	rows := make(map[int]sampling.WorksheetRow, len(in.First))
+	for _, r := range in.First {
+		rows[r.Item] = r
+	}
+	out := make(map[int]sampling.WorksheetRow, len(doubled))
+	for _, item := range doubled {
+		r, ok := rows[item]
+		if !ok {
+			return nil, withHint(inputError(in.FirstFile, 0, "item", "item %d (record_id %q) is in the ledger but not in the worksheet", item, ledger[item].RecordID), "use the worksheet written by probity draw, with every row")
+		}
+		if r.RecordID != ledger[item].RecordID {
+			return nil, withHint(inputError(in.FirstFile, r.Line, "record_id", "item %d has record_id %q, but the ledger has %q", item, r.RecordID, ledger[item].RecordID), "the worksheet was edited after the draw; use the original file")
+		}
+		if !labelOK(tb, r.Label) {
+			return nil, badLabel(in.FirstFile, r, tb.Classes)
+		}
+		out[item] = r
+	}
+	return out, nil
+}
+
+// indexSecond checks the second worksheet: every row a doubled ledger item
+// with its record id and a valid label, every doubled item present.
+func indexSecond(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb *Table) (map[int]sampling.WorksheetRow, error) {
+	const again = "use the worksheet-second.csv written by probity draw for this draw folder"
+	out := make(map[int]sampling.WorksheetRow, len(in.Second))
+	for _, r := range in.Second {
+		l, ok := ledger[r.Item]
+		switch {
+		case !ok:
+			return nil, withHint(inputError(in.SecondFile, r.Line, "item", "item %d is not in the ledger", r.Item), again)
+		case r.RecordID != l.RecordID:
+			return nil, withHint(inputError(in.SecondFile, r.Line, "record_id", "item %d has record_id %q, but the ledger has %q", r.Item, r.RecordID, l.RecordID), again)
+		case !l.Double:
+			return nil, withHint(inputError(in.SecondFile, r.Line, "item", "item %d (record_id %q) was not drawn for a second label", r.Item, r.RecordID), again)
+		case !labelOK(tb, r.Label):
+			return nil, badLabel(in.SecondFile, r, tb.Classes)
+		}
+		out[r.Item] = r
+	}
+	var missing []int
+	for _, item := range doubled {
+		if _, ok := out[item]; !ok {
+			missing = append(missing, item)
+		}
+	}
+	if len(missing) > 0 {
+		return nil, withHint(inputError(in.SecondFile, 0, "item", "%d doubled items are missing: items %s", len(missing), itemList(missing, 10)), again)
+	}
+	return out, nil
+}
+
+// indexAdjudications checks every adjudication row names a ledger item by
+// its record id and a doubled one; rows for agreed items are refused by
+// Resolve.
+func indexAdjudications(in Input, ledger map[int]sampling.LedgerRow) (map[int]Adjudication, error) {
+	out := make(map[int]Adjudication, len(in.Adjudications))
+	for _, a := range in.Adjudications {
+		l, ok := ledger[a.Item]
+		switch {
+		case !ok:
+			return nil, withHint(inputError(in.AdjudicationFile, a.Line, "item", "item %d is not in the ledger", a.Item), "remove the row or correct the item number")
+		case a.RecordID != l.RecordID:
+			return nil, withHint(inputError(in.AdjudicationFile, a.Line, "record_id", "item %d has record_id %q, but the ledger has %q", a.Item, a.RecordID, l.RecordID), "correct the item number or the record_id")
+		case !l.Double:
+			return nil, withHint(inputError(in.AdjudicationFile, a.Line, "item", "item %d was not doubled; only doubled items the labelers did not agree on are adjudicated", a.Item), "remove the row")
+		}
+		out[a.Item] = a
+	}
+	return out, nil
+}

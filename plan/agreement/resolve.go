@@ -1,0 +1,384 @@
+package agreement
+
+import (
+	"errors"
+	"fmt"
+	"slices"
+	"strconv"
+	"strings"
+
+	"probity/plan/record"
+	"probity/sampling"
+)
+
+// Input is what Resolve reads: the ledger (which items are doubled), both
+// labeled worksheets, the adjudications and the options. The file names
+// are used in messages.
+type Input struct {
+	// Classes are the plan's classes (at least two).
+	Classes []string
+	// Ledger rows; LedgerRow.Double marks the doubled items.
+	Ledger     []sampling.LedgerRow
+	LedgerFile string
+	// First is the labeled worksheet, Second the labeled second worksheet.
+	First      []sampling.WorksheetRow
+	FirstFile  string
+	Second     []sampling.WorksheetRow
+	SecondFile string
+	// Adjudications are the rows of the adjudication file; AdjudicationFile
+	// is "" when none was given.
+	Adjudications    []Adjudication
+	AdjudicationFile string
+	// Strict refuses (instead of warning about) an item labeled twice by
+	// the same person, and a doubled item that does not name both
+	// labelers or whose second (or first) label is blank.
+	Strict bool
+	// AllowUnadjudicated lets disagreements without an adjudication row
+	// through; each is then counted as an error for every candidate.
+	AllowUnadjudicated bool
+	// Confidence is the level of the kappa and AC1 intervals (0 means
+	// 0.95).
+	Confidence float64
+}
+
+// Sources of a final label.
+const (
+	// FromFirst: the item was not doubled; the first worksheet's label.
+	FromFirst = "first"
+	// FromAgreement: both labelers gave the same class.
+	FromAgreement = "agreed"
+	// FromOneSide: one of the two labels was blank; the other one.
+	FromOneSide = "one-side"
+	// FromAdjudication: the adjudication file's final_label.
+	FromAdjudication = "adjudicated"
+	// FromNeither: neither labeler gave a class (both blank or unsure)
+	// and no adjudication: the label is unsure (or blank when both were).
+	FromNeither = "neither"
+	// CountedAsError: a disagreement left unadjudicated under
+	// AllowUnadjudicated; it counts as an error for every candidate.
+	CountedAsError = "counted-as-error"
+)
+
+// Final is the label the judgement uses for one item.
+type Final struct {
+	Item     int
+	RecordID string
+	// Label is a class, Unsure or "" (blank). It is "" for an item
+	// counted as an error.
+	Label string
+	// Source says where Label came from (FromFirst, FromAgreement, …).
+	Source string
+}
+
+// CountsAsError reports whether the item must be counted as an error for
+// every candidate, whatever the candidates predicted.
+func (f Final) CountsAsError() bool { return f.Source == CountedAsError }
+
+// Result is the outcome of Resolve.
+type Result struct {
+	// Labels has one entry per row of Input.First, in the same order.
+	Labels []Final
+	// Quality is the label-quality summary for record.json. Its
+	// SecondWorksheet, Adjudications (fingerprints) and UnsureTreatment
+	// are left for the caller, who knows the files and the spares.
+	Quality record.LabelQuality
+}
+
+// Method names written into the record.
+const (
+	KappaMethod = "Cohen's kappa; large-sample standard error of Fleiss, Cohen & Everitt (1969); normal interval"
+	AC1Method   = "Gwet's AC1; variance of Gwet (2008) without finite-population correction; normal interval"
+)
+
+// Resolve checks the second worksheet and the adjudications against the
+// ledger and the first worksheet, and returns the final label of every
+// item with the label-quality summary.
+//
+// For a doubled item with first label a and second label b:
+//   - a and b the same class: agreed; that class.
+//   - a and b different classes, or one a class and the other unsure: a
+//     disagreement. Its final label is the adjudication's; without one it
+//     is refused, or with AllowUnadjudicated counted as an error for every
+//     candidate.
+//   - one a class and the other blank: that class, not compared, with a
+//     warning (refused under Strict).
+//   - neither a class: unsure (blank if both are blank), unless an
+//     adjudication row decides it.
+//
+// Only pairs of two classes enter the agreement table, kappa and AC1.
+// Errors are *sampling.InputError naming the file, line and column.
+func Resolve(in Input) (*Result, error) {
+	conf := in.Confidence
+	if conf == 0 {
+		conf = 0.95
+	}
+	if err := checkConfidence(conf); err != nil {
+		return nil, err
+	}
+	tb, err := NewTable(in.Classes)
+	if err != nil {
+		return nil, err
+	}
+	if in.AdjudicationFile == "" && len(in.Adjudications) > 0 {
+		return nil, errors.New("agreement: adjudications given without a file name")
+	}
+	ledger, doubled, err := indexLedger(in)
+	if err != nil {
+		return nil, err
+	}
+	first, err := indexFirst(in, ledger, doubled, tb)
+	if err != nil {
+		return nil, err
+	}
+	second, err := indexSecond(in, ledger, doubled, tb)
+	if err != nil {
+		return nil, err
+	}
+	adj, err := indexAdjudications(in, ledger)
+	if err != nil {
+		return nil, err
+	}
+
+	q := record.LabelQuality{
+		Doubled:            len(doubled),
+		Classes:            append([]string(nil), in.Classes...),
+		AllowUnadjudicated: in.AllowUnadjudicated,
+		Strict:             in.Strict,
+		Disagreements:      []record.Disagreement{},
+		Warnings:           []string{},
+	}
+	finals := map[int]Final{}
+	var open []int // disagreements without adjudication
+	unnamed := 0
+	for _, item := range doubled {
+		f, s := first[item], second[item]
+		if err := checkIndependence(in, f, s, &q, &unnamed); err != nil {
+			return nil, err
+		}
+		a, b := f.Label, s.Label
+		ac, bc := tb.Has(a), tb.Has(b)
+		fin := Final{Item: item, RecordID: ledger[item].RecordID}
+		ad, hasAdj := adj[item]
+		switch {
+		case ac && bc && a == b:
+			if hasAdj {
+				return nil, withHint(inputError(in.AdjudicationFile, ad.Line, "item",
+					"the labelers agreed on item %d (both %q); only disagreements are adjudicated", item, a), "remove the row")
+			}
+			fin.Label, fin.Source = a, FromAgreement
+		case (ac || bc) && a != "" && b != "":
+			d := record.Disagreement{Item: item, RecordID: fin.RecordID,
+				First: a, FirstLabeler: f.Labeler, Second: b, SecondLabeler: s.Labeler}
+			if hasAdj {
+				fin.Label, fin.Source = ad.FinalLabel, FromAdjudication
+				d.Resolution, d.Final, d.DecidedBy, d.Note = record.ResolvedAdjudicated, ad.FinalLabel, ad.DecidedBy, ad.Note
+				q.Adjudicated++
+			} else {
+				fin.Source = CountedAsError
+				d.Resolution = record.ResolvedCountedAsError
+				open = append(open, item)
+			}
+			q.Disagreements = append(q.Disagreements, d)
+		case ac || bc:
+			// One side blank: the other label stands, uncompared.
+			side, blankFile, line := b, in.FirstFile, f.Line
+			if ac {
+				side, blankFile, line = a, in.SecondFile, s.Line
+			}
+			msg := fmt.Sprintf("%s line %d: item %d has no label here, so it has one label only and is not compared", blankFile, line, item)
+			if in.Strict {
+				return nil, withHint(inputError(blankFile, line, "label", "item %d has no label, but it was drawn for two independent labels (--strict)", item), "have it labeled, or adjudicate it")
+			}
+			if hasAdj {
+				fin.Label, fin.Source = ad.FinalLabel, FromAdjudication
+				q.Adjudicated++
+				q.Disagreements = append(q.Disagreements, record.Disagreement{Item: item, RecordID: fin.RecordID,
+					First: a, FirstLabeler: f.Labeler, Second: b, SecondLabeler: s.Labeler,
+					Resolution: record.ResolvedAdjudicated, Final: ad.FinalLabel, DecidedBy: ad.DecidedBy, Note: ad.Note})
+			} else {
+				fin.Label, fin.Source = side, FromOneSide
+				q.Warnings = append(q.Warnings, msg)
+			}
+		default:
+			// Neither gave a class.
+			if hasAdj {
+				fin.Label, fin.Source = ad.FinalLabel, FromAdjudication
+				q.Adjudicated++
+				q.Disagreements = append(q.Disagreements, record.Disagreement{Item: item, RecordID: fin.RecordID,
+					First: a, FirstLabeler: f.Labeler, Second: b, SecondLabeler: s.Labeler,
+					Resolution: record.ResolvedAdjudicated, Final: ad.FinalLabel, DecidedBy: ad.DecidedBy, Note: ad.Note})
+			} else {
+				fin.Source = FromNeither
+				if a == Unsure || b == Unsure {
+					fin.Label = Unsure
+				}
+			}
+		}
+		if ac && bc {
+			if err := tb.Add(a, b); err != nil {
+				return nil, err
+			}
+		}
+		finals[item] = fin
+	}
+	if unnamed > 0 {
+		q.Warnings = append(q.Warnings, fmt.Sprintf("%d doubled items do not name both labelers, so the independence of their two labels cannot be checked", unnamed))
+	}
+	if len(open) > 0 {
+		if !in.AllowUnadjudicated {
+			return nil, unadjudicatedError(in, open)
+		}
+		q.Unadjudicated = len(open)
+		q.Warnings = append(q.Warnings, fmt.Sprintf("%d disagreements were not adjudicated and count as errors for every candidate (--allow-unadjudicated): items %s", len(open), itemList(open, len(open))))
+	}
+
+	fillAgreement(&q, tb, conf)
+	q.Labelers = countLabelers(in.First, in.Second)
+
+	res := &Result{Labels: make([]Final, 0, len(in.First))}
+	for _, r := range in.First {
+		f, ok := finals[r.Item]
+		if !ok {
+			f = Final{Item: r.Item, RecordID: r.RecordID, Label: r.Label, Source: FromFirst}
+		}
+		if f.Label == Unsure {
+			q.Unsure++
+		}
+		res.Labels = append(res.Labels, f)
+	}
+	res.Quality = q
+	return res, nil
+}
+
+// fillAgreement writes the table and both coefficients into q.
+func fillAgreement(q *record.LabelQuality, tb *Table, conf float64) {
+	q.Compared = tb.N()
+	q.Table = make([][]int, len(tb.Counts))
+	for i, row := range tb.Counts {
+		q.Table[i] = append([]int{}, row...)
+	}
+	q.ObservedAgreement = tb.ObservedAgreement()
+	conv := func(method string, e Estimate, err error) record.Agreement {
+		a := record.Agreement{Method: method, Confidence: conf}
+		if err != nil {
+			a.Note = undefinedNote(err)
+			return a
+		}
+		a.Defined = true
+		a.Value, a.ChanceAgreement, a.StdErr, a.Lower, a.Upper = e.Value, e.Chance, e.StdErr, e.Lower, e.Upper
+		return a
+	}
+	k, kerr := CohenKappa(tb, conf)
+	q.Kappa = conv(KappaMethod, k, kerr)
+	a, aerr := GwetAC1(tb, conf)
+	q.AC1 = conv(AC1Method, a, aerr)
+}
+
+// undefinedNote turns an ErrUndefined into the sentence for the record.
+func undefinedNote(err error) string {
+	msg := err.Error()
+	if i := strings.Index(msg, ": "); i >= 0 {
+		msg = msg[i+2:]
+	}
+	return "undefined: " + msg
+}
+
+// itemList formats up to max item numbers, then "and N more".
+func itemList(items []int, max int) string {
+	var b strings.Builder
+	for i, it := range items {
+		if i == max {
+			fmt.Fprintf(&b, " and %d more", len(items)-max)
+			break
+		}
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		b.WriteString(strconv.Itoa(it))
+	}
+	return b.String()
+}
+
+// unadjudicatedError is the refusal for disagreements without a row.
+func unadjudicatedError(in Input, open []int) error {
+	fix := "or pass --allow-unadjudicated to count them as errors for every candidate"
+	if in.AdjudicationFile == "" {
+		return withHint(inputError(in.SecondFile, 0, "", "%d doubled items have two different labels and need an adjudication: items %s", len(open), itemList(open, 10)), "write one row per item to an adjudication file (columns "+strings.Join(AdjudicationColumns, ",")+") and pass --adjudicated FILE, "+fix)
+	}
+	return withHint(inputError(in.AdjudicationFile, 0, "", "no row for %d of the disagreements: items %s", len(open), itemList(open, 10)), "add one row per item, "+fix)
+}
+
+// sameLabeler compares two labeler names, ignoring case and surrounding
+// space. Empty names are never the same.
+func sameLabeler(a, b string) bool {
+	a, b = strings.TrimSpace(a), strings.TrimSpace(b)
+	return a != "" && strings.EqualFold(a, b)
+}
+
+// checkIndependence warns (or, under Strict, refuses) when one person gave
+// both labels of an item or a doubled item does not name both labelers.
+func checkIndependence(in Input, f, s sampling.WorksheetRow, q *record.LabelQuality, unnamed *int) error {
+	if sameLabeler(f.Labeler, s.Labeler) {
+		if in.Strict {
+			return withHint(inputError(in.SecondFile, s.Line, "labeler", "item %d was labeled by %q in both worksheets; its two labels are not independent (--strict)", s.Item, strings.TrimSpace(s.Labeler)), "have another person give the second label")
+		}
+		q.Warnings = append(q.Warnings, fmt.Sprintf("%s line %d: item %d was labeled by %q in both worksheets; its two labels are not independent", in.SecondFile, s.Line, s.Item, strings.TrimSpace(s.Labeler)))
+		return nil
+	}
+	if strings.TrimSpace(f.Labeler) == "" || strings.TrimSpace(s.Labeler) == "" {
+		if in.Strict {
+			file, line := in.SecondFile, s.Line
+			if strings.TrimSpace(f.Labeler) == "" {
+				file, line = in.FirstFile, f.Line
+			}
+			return withHint(inputError(file, line, "labeler", "item %d does not name its labeler; --strict needs both labelers of every doubled item", s.Item), "fill in the labeler column")
+		}
+		*unnamed++
+	}
+	return nil
+}
+
+// countLabelers counts, per labeler name, the rows labeled (a non-blank
+// label) in each worksheet. Names equal but for case and surrounding
+// space are one labeler, shown with the first spelling in sorted order.
+func countLabelers(first, second []sampling.WorksheetRow) []record.Labeler {
+	type acc struct {
+		name          string
+		first, second int
+	}
+	by := map[string]*acc{}
+	add := func(rows []sampling.WorksheetRow, isFirst bool) {
+		for _, r := range rows {
+			if r.Label == "" {
+				continue
+			}
+			name := strings.TrimSpace(r.Labeler)
+			key := strings.ToLower(name)
+			a, ok := by[key]
+			if !ok {
+				a = &acc{name: name}
+				by[key] = a
+			} else if name < a.name {
+				a.name = name
+			}
+			if isFirst {
+				a.first++
+			} else {
+				a.second++
+			}
+		}
+	}
+	add(first, true)
+	add(second, false)
+	keys := make([]string, 0, len(by))
+	for k := range by {
+		keys = append(keys, k)
+	}
+	slices.Sort(keys)
+	out := make([]record.Labeler, 0, len(keys))
+	for _, k := range keys {
+		a := by[k]
+		out = append(out, record.Labeler{Name: a.name, First: a.first, Second: a.second})
+	}
+	return out
+}
