@@ -1,0 +1,67 @@
+package plan
+
+import (
+	"fmt"
+	"strconv"
+	"time"
+)
+
+// Meta is what a plan file records besides its sizing: the tool, the time,
+// the selection seed, the system under audit and its pre-registered
+// candidates.
+type Meta struct {
+	// ToolVersion is the probity version writing the plan.
+	ToolVersion string
+	// Created is when the plan was made; it is stored in UTC to the second.
+	Created time.Time
+	// Seed is the selection seed, used exactly as written (non-empty).
+	Seed string
+	// System and SystemVersion name the classifier (optional).
+	System, SystemVersion string
+	// Classes are the label values; required with Candidates.
+	Classes []string
+	// Candidates are declared in testing order; when present their number
+	// is M and must agree with Inputs.Candidates.
+	Candidates []Candidate
+}
+
+// Build sizes the plan for the inputs (see Size) and assembles the plan
+// file with its metadata. The result passes the same checks Parse applies.
+func Build(in Inputs, m Meta) (*File, error) {
+	if len(m.Candidates) > 0 && in.Candidates != len(m.Candidates) {
+		return nil, &InputError{Field: "candidates", Value: strconv.Itoa(in.Candidates),
+			Allowed: fmt.Sprintf("%d, the number of candidates declared (or omitted)", len(m.Candidates))}
+	}
+	rule, cmp, err := Size(in)
+	if err != nil {
+		return nil, err
+	}
+	f := &File{
+		Format:        FileFormat,
+		ToolVersion:   m.ToolVersion,
+		Created:       m.Created.UTC().Truncate(time.Second),
+		System:        m.System,
+		SystemVersion: m.SystemVersion,
+		Seed:          m.Seed,
+		Inputs:        in,
+		Rule:          rule,
+		Comparison:    cmp,
+		Classes:       m.Classes,
+		Candidates:    m.Candidates,
+	}
+	if err := f.validate(); err != nil {
+		return nil, err
+	}
+	return f, nil
+}
+
+// ComparisonSize returns the sample size the named rule needs (see
+// RuleSize), and whether the plan lists that rule.
+func (f *File) ComparisonSize(rule string) (int64, bool) {
+	for _, r := range f.Comparison {
+		if r.Rule == rule {
+			return r.SampleSize, true
+		}
+	}
+	return 0, false
+}
