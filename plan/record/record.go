@@ -100,6 +100,10 @@ type Candidate struct {
 	// --allow-incomplete, every missing or unsure item).
 	Labeled int `json:"labeled"`
 	Errors  int `json:"errors"`
+	// Missing is how many of the Labeled items were left unlabeled or
+	// marked unsure and counted as errors (--allow-incomplete); they are
+	// included in both Labeled (the n judged) and Errors.
+	Missing int `json:"missing"`
 	// Estimate is the point estimate of the error (stratified, weighted by
 	// N_h/N, when weights are unequal).
 	Estimate float64 `json:"estimate"`
