@@ -22,7 +22,7 @@ func HypergeometricUpper(x, n int, N int64, confidence float64) float64 {
 		return math.NaN()
 	}
 	alpha := 1 - confidence
-	lo := int64(x)                 // P(X ≤ x | D = x) = 1 > α
+	lo := int64(x)                // P(X ≤ x | D = x) = 1 > α
 	hi := N - int64(n) + int64(x) // the largest D that allows only x errors
 	if plan.HypergeometricCDF(x, N, hi, n) > alpha {
 		return float64(hi) / float64(N)

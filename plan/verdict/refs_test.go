@@ -44,4 +44,3 @@ func python(t *testing.T, script string, out any) {
 func rscript(t *testing.T, script string, out any) {
 	reference(t, "Rscript", []string{"-e"}, script, out)
 }
-
