@@ -233,6 +233,7 @@ func Resolve(in Input) (*Result, error) {
 	}
 
 	fillAgreement(&q, tb, conf)
+	fillDisagreement(&q, tb, conf)
 	q.Labelers = countLabelers(in.First, in.Second)
 
 	res := &Result{Labels: make([]Final, 0, len(in.First))}

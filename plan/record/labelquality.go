@@ -46,6 +46,16 @@ type LabelQuality struct {
 	// doubled item without both labeler names, was refused rather than
 	// warned about.
 	Strict bool `json:"strict"`
+	// Disagreed is the number of compared items given two different
+	// classes; DisagreementRate = Disagreed/Compared and DisagreementUpper
+	// its one-sided Clopper–Pearson upper bound at Kappa.Confidence (both 0
+	// when nothing was compared).
+	Disagreed         int     `json:"disagreed"`
+	DisagreementRate  float64 `json:"disagreement_rate"`
+	DisagreementUpper float64 `json:"disagreement_upper"`
+	// Note says in plain words what label error does to the bound, with
+	// this record's numbers.
+	Note string `json:"note"`
 	// Unsure is the number of items whose final label is "unsure", and
 	// UnsureTreatment says in words what the judgement did with them.
 	Unsure          int    `json:"unsure"`

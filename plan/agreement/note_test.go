@@ -1,0 +1,88 @@
+package agreement
+
+import (
+	"strings"
+	"testing"
+)
+
+func TestDisagreementRateAndNote(t *testing.T) {
+	res, err := Resolve(newFixture().in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	q := res.Quality
+	// 1 of 3 compared items disagree; one-sided 95 % Clopper–Pearson upper
+	// bound = Beta(2, 2) 0.95-quantile = 0.8646496378284161
+	// (scipy.stats.beta.ppf(0.95, 2, 2), scipy 1.10.1).
+	if q.Disagreed != 1 || !near(q.DisagreementRate, 1.0/3, 1e-15) || !near(q.DisagreementUpper, 0.8646496378284161, 1e-9) {
+		t.Errorf("disagreed %d rate %v upper %v", q.Disagreed, q.DisagreementRate, q.DisagreementUpper)
+	}
+	for _, want := range []string{
+		"can differ from the measured one by up to ε",
+		"On the 3 doubled items both labelers put in a class they disagreed on 1 (33.3 %; one-sided 95.0 % upper bound 86.5 %)",
+		"wrong on at least 16.7 % of items on average",
+		"settled by adjudication",
+	} {
+		if !strings.Contains(q.Note, want) {
+			t.Errorf("note lacks %q:\n%s", want, q.Note)
+		}
+	}
+
+	f := newFixture()
+	f.in.Adjudications, f.in.AdjudicationFile, f.in.AllowUnadjudicated = nil, "", true
+	res, err = Resolve(f.in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(res.Quality.Note, "2 disagreements were not adjudicated and are counted as errors for every candidate") {
+		t.Errorf("note does not state the unadjudicated treatment:\n%s", res.Quality.Note)
+	}
+}
+
+func TestNoteWithoutComparedItems(t *testing.T) {
+	f := newFixture()
+	// No doubled pair is comparable: the first labels of the doubled items
+	// are blank and the second ones unsure.
+	for i := range f.in.First[:6] {
+		f.in.First[i].Label = ""
+	}
+	for i := range f.in.Second {
+		f.in.Second[i].Label = "unsure"
+	}
+	f.in.Adjudications, f.in.AdjudicationFile = nil, ""
+	res, err := Resolve(f.in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	q := res.Quality
+	if q.Compared != 0 || q.Kappa.Defined || q.AC1.Defined || q.DisagreementUpper != 0 {
+		t.Errorf("compared %d kappa %+v AC1 %+v upper %v", q.Compared, q.Kappa, q.AC1, q.DisagreementUpper)
+	}
+	if !strings.Contains(q.Note, "no measure of label error") {
+		t.Errorf("note: %s", q.Note)
+	}
+	// Items 1–6 are unsure (neither labeler gave a class) plus item 9.
+	if q.Unsure != 7 {
+		t.Errorf("unsure = %d, want 7", q.Unsure)
+	}
+}
+
+func TestUnsureTreatment(t *testing.T) {
+	cases := []struct {
+		unsure, replaced int
+		allow            bool
+		want             string
+	}{
+		{0, 0, false, "none"},
+		{3, 3, false, "all 3 replaced by spares, in draw order"},
+		{3, 1, true, "1 replaced by spares, in draw order; the other 2 counted as errors for every candidate (--allow-incomplete)"},
+		{2, 0, true, "all 2 counted as errors for every candidate (--allow-incomplete)"},
+		{2, 1, false, "1 replaced by spares, in draw order; 1 not replaced"},
+		{2, 0, false, "2 not replaced"},
+	}
+	for _, c := range cases {
+		if got := UnsureTreatment(c.unsure, c.replaced, c.allow); got != c.want {
+			t.Errorf("UnsureTreatment(%d, %d, %v) = %q, want %q", c.unsure, c.replaced, c.allow, got, c.want)
+		}
+	}
+}
