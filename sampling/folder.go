@@ -47,6 +47,19 @@ type Manifest struct {
 	// Engine is set when the selection ran inside a database (nil for a
 	// draw from a log file).
 	Engine *EngineInfo `json:"engine"`
+	// Where lists the --where filters that define the scope ("COLUMN=V1,V2").
+	Where []string `json:"where"`
+	// Dedupe is "first" when repeated ids were allowed (first row kept),
+	// else "". DuplicatesDropped counts the repeated rows dropped.
+	Dedupe            string `json:"dedupe"`
+	DuplicatesDropped int    `json:"duplicates_dropped"`
+	// Double is k of --double k: the first k items in key order are also in
+	// worksheet-second.csv.
+	Double int `json:"double"`
+	// LotSize is the number of rows in scope (after filters and dropped
+	// repeats): the lot a finite-population plan judges. For a periodic
+	// draw of a --population plan it is the period's lot size.
+	LotSize int64 `json:"lot_size"`
 }
 
 // LogInfo describes the prediction log a draw read.
@@ -75,6 +88,9 @@ type StratumInfo struct {
 	Sample     int     `json:"sample"`     // n_h
 	Spare      int     `json:"spare"`      // spares drawn
 	Weight     float64 `json:"weight"`     // N_h / n_h (0 when n_h = 0)
+	// Anticipated is p_h, the anticipated error used by neyman allocation
+	// (0 under the other rules).
+	Anticipated float64 `json:"anticipated,omitempty"`
 }
 
 // EngineInfo records a selection run inside a database engine.

@@ -24,6 +24,9 @@ func MarshalManifest(m *Manifest) ([]byte, error) {
 	if c.ShowColumns == nil {
 		c.ShowColumns = []string{}
 	}
+	if c.Where == nil {
+		c.Where = []string{}
+	}
 	if c.Strata == nil {
 		c.Strata = []StratumInfo{}
 	}

@@ -67,3 +67,18 @@ func (d Dialect) exactMod(a, b string) string {
 	}
 	return "mod(" + a + ", " + b + ")"
 }
+
+// matches is a regular-expression match of a text expression against a
+// pattern written without single quotes.
+func (d Dialect) matches(expr, pattern string) string {
+	if d == DuckDB {
+		return "regexp_full_match(" + expr + ", '" + pattern + "')"
+	}
+	return "(" + expr + " ~ '" + pattern + "')"
+}
+
+// contains tests whether a text expression holds a literal substring
+// written without single quotes.
+func (d Dialect) contains(expr, sub string) string {
+	return "(strpos(" + expr + ", '" + sub + "') > 0)"
+}

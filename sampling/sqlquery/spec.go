@@ -42,11 +42,14 @@ type Spec struct {
 	// Table is the table reference as given to --table (see
 	// ParseTableName).
 	Table string `json:"table"`
-	// IDColumn, Strata, Bands and Show are the log columns, exactly as
-	// for a draw from a file.
+	// IDColumn, Strata and Show are the log columns, exactly as for a
+	// draw from a file; Bands and Where are the --band and --where
+	// definitions as sampling.Band.String and sampling.Filter.String write
+	// them ("score=0.5,0.9", "channel=web,app").
 	IDColumn string   `json:"id_column"`
 	Strata   []string `json:"strata"`
-	Bands    []Band   `json:"bands"`
+	Bands    []string `json:"bands"`
+	Where    []string `json:"where"`
 	Show     []string `json:"show"`
 	// Candidates are the plan's candidates, in plan order (their columns
 	// are carried into the result for the ledger's predictions).
@@ -61,15 +64,7 @@ type Spec struct {
 	Double int `json:"double"`
 }
 
-// Band is one --band definition: the column and its interval edges, in
-// increasing order, as written (Text, e.g. "score=0.5,0.9").
-type Band struct {
-	Column string    `json:"column"`
-	Edges  []float64 `json:"edges"`
-	Text   string    `json:"text"`
-}
-
-// candidateColumns is what the result carries besides keys and strata:
+// valueColumns is what the result carries besides keys and strata:
 // the distinct log columns the candidates read, in plan order, then the
 // --show columns. Each is one "value_i" column of the result.
 func (s *Spec) valueColumns() []string {
@@ -111,7 +106,10 @@ func (s *Spec) MarshalDetail() ([]byte, error) {
 		v.Strata = []string{}
 	}
 	if v.Bands == nil {
-		v.Bands = []Band{}
+		v.Bands = []string{}
+	}
+	if v.Where == nil {
+		v.Where = []string{}
 	}
 	if v.Show == nil {
 		v.Show = []string{}

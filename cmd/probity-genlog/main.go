@@ -1,0 +1,58 @@
+// Command probity-genlog writes a synthetic prediction log (invented
+// records) for trying probity draw and for its benchmarks:
+//
+//	probity-genlog -rows 10000000 -o /tmp/log.csv
+//
+// Columns: record_id, region, channel (12 strata), score, model_a,
+// model_b, text. The same -seed always gives the same bytes.
+package main
+
+import (
+	"bufio"
+	"flag"
+	"fmt"
+	"os"
+
+	"probity/sampling/loggen"
+)
+
+func main() {
+	var c loggen.Config
+	var out string
+	flag.IntVar(&c.Rows, "rows", 1000, "number of data rows")
+	flag.Uint64Var(&c.Seed, "seed", 1, "generator seed")
+	flag.StringVar(&c.Format, "format", "csv", "csv, tsv or jsonl")
+	flag.BoolVar(&c.Gzip, "gzip", false, "gzip the output")
+	flag.BoolVar(&c.Shuffle, "shuffle", false, "write the rows in a random order")
+	flag.StringVar(&out, "o", "-", "output file (- for stdout)")
+	flag.Parse()
+	if err := write(out, c); err != nil {
+		fmt.Fprintln(os.Stderr, "probity-genlog:", err)
+		os.Exit(1)
+	}
+}
+
+func write(out string, c loggen.Config) error {
+	if out == "-" {
+		w := bufio.NewWriter(os.Stdout)
+		if err := loggen.Write(w, c); err != nil {
+			return err
+		}
+		return w.Flush()
+	}
+	tmp := out + ".tmp"
+	f, err := os.Create(tmp)
+	if err != nil {
+		return err
+	}
+	if err := loggen.Write(f, c); err != nil {
+		f.Close()
+		os.Remove(tmp)
+		return err
+	}
+	if err := f.Close(); err != nil {
+		os.Remove(tmp)
+		return err
+	}
+	return os.Rename(tmp, out)
+}

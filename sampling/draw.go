@@ -1,0 +1,311 @@
+package sampling
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"sort"
+	"strings"
+
+	"probity/plan"
+)
+
+// DrawInput is everything a draw from a log file depends on.
+type DrawInput struct {
+	Plan            *plan.File
+	PlanFingerprint string
+	// LogPath is the log's path as given ("-" for stdin), for messages and
+	// the manifest; Log is its content.
+	LogPath string
+	Log     io.Reader
+	// Format is csv, tsv or jsonl ("" detects it).
+	Format string
+	// Period, if set, derives the selection seed PeriodSeed(seed, Period).
+	Period        string
+	IDColumn      string
+	StrataColumns []string
+	Bands         []Band
+	Where         []Filter
+	Show          []string
+	Alloc         AllocOptions
+	// NeymanSource names where the anticipated errors came from (a file,
+	// or "band COLUMN" when derived from a score band).
+	NeymanSource string
+	// NeymanFromBand derives p_h from the first band's interval:
+	// p_h = min(m, 1 − m) at its midpoint m.
+	NeymanFromBand bool
+	// Double is k of --double k.
+	Double int
+	// Dedupe keeps the first row of a repeated id.
+	Dedupe      bool
+	ToolVersion string
+	Workers     int
+	ChunkSize   int
+	Progress    func(Progress)
+}
+
+// ErrNotDrawable is wrapped when a plan declares no candidates.
+var ErrNotDrawable = errors.New("a sizing-only plan cannot be drawn")
+
+// capacityMargin is kept beyond n + spare per stratum, so that a few ids
+// repeated across strata and dropped under --dedupe first cannot leave a
+// stratum short.
+const capacityMargin = 8
+
+// Draw reads the log once, allocates the plan's sample across strata and
+// returns the draw folder's content (not yet written). In each stratum the
+// n_h rows with the smallest keys are the sample and the next ones the
+// spares; the worksheet lists the sample in ascending key order, then the
+// spares in key order.
+func Draw(in DrawInput) (*Folder, error) {
+	p := in.Plan
+	if p.IsSizingOnly() {
+		return nil, fmt.Errorf("%w: it declares no candidates (models or thresholds) to judge", ErrNotDrawable)
+	}
+	if in.IDColumn == "" {
+		in.IDColumn = "record_id"
+	}
+	n := p.Rule.SampleSize
+	if in.Double < 0 || in.Double > n {
+		return nil, fmt.Errorf("%w: --double %d is outside 0…%d, the sample size", ErrInput, in.Double, n)
+	}
+	if err := checkShow(in); err != nil {
+		return nil, err
+	}
+	seed := p.Seed
+	selection := seed
+	if in.Period != "" {
+		selection = PeriodSeed(seed, in.Period)
+	}
+	// Kept columns: the shown ones, then each candidate's column.
+	keep := append([]string{}, in.Show...)
+	candCol := make([]int, len(p.Candidates))
+	for i, c := range p.Candidates {
+		col := c.Columns()[0]
+		j := indexOf(keep, col)
+		if j < 0 {
+			j = len(keep)
+			keep = append(keep, col)
+		}
+		candCol[i] = j
+	}
+	name := in.LogPath
+	if name == "-" {
+		name = "stdin"
+	}
+	res, err := Scan(in.Log, ScanSpec{
+		Name: name, Format: in.Format, Seed: selection, IDColumn: in.IDColumn,
+		StrataColumns: in.StrataColumns, Bands: in.Bands, Where: in.Where, Keep: keep,
+		Capacity: n + in.Alloc.Spare + capacityMargin, Dedupe: in.Dedupe,
+		Workers: in.Workers, ChunkSize: in.ChunkSize, Progress: in.Progress,
+	})
+	if err != nil {
+		return nil, err
+	}
+	if pop := p.Inputs.Population; pop > 0 && in.Period == "" && res.InScope != pop {
+		e := inputErrorf(name, 0, "", "%d rows are in scope but the plan is for a lot of %d (inputs.population)", res.InScope, pop)
+		e.Hint = fmt.Sprintf("a finite-lot plan judges exactly one lot: plan again with --population %d, or draw with --period LABEL to take this log as the period's lot", res.InScope)
+		return nil, e
+	}
+	counts := make([]StratumCount, len(res.Strata))
+	for i, st := range res.Strata {
+		counts[i] = StratumCount{Label: st.Label, Population: st.Count}
+	}
+	opts := in.Alloc
+	if opts.Rule == Neyman && in.NeymanFromBand {
+		opts.Anticipated, err = bandAnticipated(in, counts)
+		if err != nil {
+			return nil, err
+		}
+	}
+	alloc, err := Allocate(counts, n, opts)
+	if err != nil {
+		if errors.Is(err, ErrSampleTooLarge) {
+			e := inputErrorf(name, 0, "", "the plan needs a sample of %d but only %d rows are in scope", n, res.InScope)
+			e.Err = err
+			return nil, e
+		}
+		return nil, err
+	}
+	var sample, spares []LedgerRow
+	var src []*Row
+	var spareSrc []*Row
+	for i := range alloc {
+		a := alloc[i]
+		st := res.Strata[i]
+		if st.Label != a.Label {
+			return nil, fmt.Errorf("internal: strata out of order (%q, %q)", st.Label, a.Label)
+		}
+		need := a.Sample + a.Spare
+		if need > len(st.Rows) {
+			return nil, fmt.Errorf("%w: stratum %q needs %d rows but only %d could be kept: too many ids repeat across strata", ErrDuplicateIDs, a.Label, need, len(st.Rows))
+		}
+		for j := 0; j < need; j++ {
+			r := &st.Rows[j]
+			lr := LedgerRow{RecordID: r.ID, Stratum: a.Label, StratumSize: a.Population, StratumSample: a.Sample, Weight: a.Weight, Key: r.KeyHex(), Spare: j >= a.Sample}
+			if lr.Spare {
+				spares = append(spares, lr)
+				spareSrc = append(spareSrc, r)
+			} else {
+				sample = append(sample, lr)
+				src = append(src, r)
+			}
+		}
+	}
+	sortByKey(sample, src)
+	sortByKey(spares, spareSrc)
+	rows := append(sample, spares...)
+	srcRows := append(src, spareSrc...)
+	f := &Folder{Show: append([]string{}, in.Show...)}
+	for _, c := range p.Candidates {
+		f.Candidates = append(f.Candidates, c.Name)
+	}
+	for i := range rows {
+		r := srcRows[i]
+		rows[i].Item = i + 1
+		rows[i].Double = !rows[i].Spare && i < in.Double
+		rows[i].Predictions = make([]string, len(p.Candidates))
+		for ci, c := range p.Candidates {
+			v, err := c.Predict(r.Values[candCol[ci]])
+			if err != nil {
+				return nil, inputErrorf(name, int(r.Line), c.Columns()[0], "candidate %s: %v", c.Name, err)
+			}
+			rows[i].Predictions[ci] = v
+		}
+		w := WorksheetRow{Item: i + 1, RecordID: r.ID, Show: append([]string{}, r.Values[:len(in.Show)]...)}
+		f.Worksheet = append(f.Worksheet, w)
+		if rows[i].Double {
+			f.Second = append(f.Second, w)
+		}
+	}
+	f.Ledger = rows
+	f.Manifest = buildManifest(in, res, alloc, selection)
+	f.Manifest.SampleSize = len(sample)
+	f.Manifest.Spares = len(spares)
+	return f, nil
+}
+
+func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, selection string) *Manifest {
+	p := in.Plan
+	m := &Manifest{
+		Format: ManifestFormat, ToolVersion: in.ToolVersion, PlanFingerprint: in.PlanFingerprint,
+		Seed: p.Seed, SelectionSeed: selection, KeyDefinition: KeyDefinition,
+		Log: LogInfo{Path: in.LogPath, SHA256: res.SHA256, Bytes: res.Bytes, Rows: res.Rows,
+			Format: res.Format, Compression: res.Compression},
+		IDColumn:      in.IDColumn,
+		StrataColumns: append([]string{}, in.StrataColumns...),
+		ShowColumns:   append([]string{}, in.Show...),
+		Allocation: AllocationInfo{Rule: ruleName(in.Alloc.Rule), MinPerStratum: in.Alloc.MinPerStratum,
+			Spare: in.Alloc.Spare, NeymanSource: in.NeymanSource},
+		Double:  in.Double,
+		LotSize: res.InScope,
+	}
+	if in.Period != "" {
+		m.Period = in.Period
+		m.PeriodSeed = selection
+	}
+	for _, b := range in.Bands {
+		m.Bands = append(m.Bands, b.String())
+	}
+	for _, w := range in.Where {
+		m.Where = append(m.Where, w.String())
+	}
+	if in.Dedupe {
+		m.Dedupe = "first"
+		m.DuplicatesDropped = len(res.Duplicates)
+	}
+	for _, a := range alloc {
+		m.Strata = append(m.Strata, StratumInfo{Label: a.Label, Population: a.Population, Sample: a.Sample,
+			Spare: a.Spare, Weight: a.Weight, Anticipated: a.Anticipated})
+	}
+	return m
+}
+
+func ruleName(r string) string {
+	if r == "" {
+		return Proportional
+	}
+	return r
+}
+
+// checkShow refuses --show columns that would let labelers see the model's
+// answer or the stratum.
+func checkShow(in DrawInput) error {
+	seen := map[string]bool{}
+	for _, s := range in.Show {
+		why := ""
+		switch {
+		case s == in.IDColumn:
+			why = "is the id column, which the worksheet already has"
+		case indexOf(in.StrataColumns, s) >= 0:
+			why = "is a strata column; labelers must not see the stratum"
+		case seen[s]:
+			why = "is listed twice"
+		}
+		for _, b := range in.Bands {
+			if b.Column == s {
+				why = "is a band (score) column; labelers must not see the model's score"
+			}
+		}
+		for _, c := range in.Plan.Candidates {
+			if c.Columns()[0] == s {
+				why = fmt.Sprintf("holds candidate %s's prediction or score; labelers must not see the model's answer", c.Name)
+			}
+		}
+		if why != "" {
+			return fmt.Errorf("%w: --show %s: the column %s", ErrInput, s, why)
+		}
+		seen[s] = true
+	}
+	return nil
+}
+
+// bandAnticipated derives p_h from the first band: a calibrated score m
+// predicts its more likely class, which is wrong with probability
+// min(m, 1 − m); m is the band interval's midpoint.
+func bandAnticipated(in DrawInput, counts []StratumCount) (map[string]float64, error) {
+	if len(in.Bands) == 0 {
+		return nil, fmt.Errorf("%w: neyman allocation needs anticipated errors per stratum (--anticipated FILE) or a score band (--band)", ErrAllocation)
+	}
+	b := in.Bands[0]
+	labels := b.Labels()
+	pos := len(in.StrataColumns)
+	out := map[string]float64{}
+	for _, c := range counts {
+		parts := strings.Split(c.Label, "|")
+		if pos >= len(parts) {
+			return nil, fmt.Errorf("internal: stratum label %q has no band part", c.Label)
+		}
+		idx := indexOf(labels, parts[pos])
+		if idx < 0 {
+			return nil, fmt.Errorf("internal: band %q not found", parts[pos])
+		}
+		m := b.Midpoint(idx)
+		out[c.Label] = min(m, 1-m)
+	}
+	return out, nil
+}
+
+func sortByKey(rows []LedgerRow, src []*Row) {
+	idx := make([]int, len(rows))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.Slice(idx, func(a, b int) bool { return keyLess(&src[idx[a]].Key, &src[idx[b]].Key) })
+	r2 := make([]LedgerRow, len(rows))
+	s2 := make([]*Row, len(src))
+	for i, j := range idx {
+		r2[i], s2[i] = rows[j], src[j]
+	}
+	copy(rows, r2)
+	copy(src, s2)
+}
+
+func indexOf(list []string, s string) int {
+	for i, v := range list {
+		if v == s {
+			return i
+		}
+	}
+	return -1
+}

@@ -1,0 +1,162 @@
+package sampling
+
+import (
+	"bytes"
+	"fmt"
+	"sort"
+	"strings"
+)
+
+// merge combines the workers' counts and heaps into the result: per
+// stratum the Capacity smallest distinct keys, then repeats across strata,
+// then the repeat events whose key is among the kept rows.
+func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
+	res := &ScanResult{}
+	labels := map[string]bool{}
+	for _, w := range workers {
+		res.Rows += w.rows
+		for l := range w.strata {
+			labels[l] = true
+		}
+	}
+	sorted := make([]string, 0, len(labels))
+	for l := range labels {
+		sorted = append(sorted, l)
+	}
+	sort.Strings(sorted)
+	var events []dupEvent
+	for _, w := range workers {
+		events = append(events, w.dups...)
+	}
+	strata := make([]StratumScan, len(sorted))
+	index := map[string]int{}
+	for i, label := range sorted {
+		index[label] = i
+		st := StratumScan{Label: label}
+		byKey := map[[32]byte]*Row{}
+		for _, w := range workers {
+			ws, ok := w.strata[label]
+			if !ok {
+				continue
+			}
+			st.Count += ws.count
+			for _, r := range ws.ret.heap {
+				if prev, ok := byKey[r.Key]; ok {
+					ev := dupEvent{key: r.Key, stratum: label, id: r.ID, kept: prev.Line, other: r.Line}
+					if r.Line < prev.Line {
+						ev.kept, ev.other = r.Line, prev.Line
+						byKey[r.Key] = r
+					}
+					events = append(events, ev)
+					continue
+				}
+				byKey[r.Key] = r
+			}
+		}
+		st.Rows = make([]Row, 0, len(byKey))
+		for _, r := range byKey {
+			st.Rows = append(st.Rows, *r)
+		}
+		sort.Slice(st.Rows, func(a, b int) bool { return keyLess(&st.Rows[a].Key, &st.Rows[b].Key) })
+		if len(st.Rows) > s.spec.Capacity {
+			st.Rows = st.Rows[:s.spec.Capacity]
+		}
+		strata[i] = st
+	}
+	// Only repeats among the kept rows are certain to be seen whatever the
+	// order of the rows and the split into chunks; keep exactly those.
+	kept := make([]map[[32]byte]bool, len(strata))
+	for i := range strata {
+		kept[i] = make(map[[32]byte]bool, len(strata[i].Rows))
+		for _, r := range strata[i].Rows {
+			kept[i][r.Key] = true
+		}
+	}
+	var valid []dupEvent
+	for _, ev := range events {
+		if kept[index[ev.stratum]][ev.key] {
+			valid = append(valid, ev)
+			strata[index[ev.stratum]].Count--
+		}
+	}
+	// The same id in two strata (its stratum values differ between rows).
+	type at struct{ stratum, row int }
+	global := map[[32]byte]at{}
+	removed := map[at]bool{}
+	for i := range strata {
+		for j, r := range strata[i].Rows {
+			prev, ok := global[r.Key]
+			if !ok {
+				global[r.Key] = at{i, j}
+				continue
+			}
+			p := strata[prev.stratum].Rows[prev.row]
+			ev := dupEvent{key: r.Key, id: r.ID, kept: p.Line, other: r.Line, stratum: r.Stratum}
+			drop := at{i, j}
+			if r.Line < p.Line {
+				ev.kept, ev.other, ev.stratum = r.Line, p.Line, p.Stratum
+				drop = prev
+				global[r.Key] = at{i, j}
+			}
+			removed[drop] = true
+			strata[drop.stratum].Count--
+			valid = append(valid, ev)
+		}
+	}
+	if len(removed) > 0 {
+		for i := range strata {
+			out := strata[i].Rows[:0]
+			for j, r := range strata[i].Rows {
+				if !removed[at{i, j}] {
+					out = append(out, r)
+				}
+			}
+			strata[i].Rows = out
+		}
+	}
+	sort.Slice(valid, func(a, b int) bool {
+		if valid[a].other != valid[b].other {
+			return valid[a].other < valid[b].other
+		}
+		return bytes.Compare(valid[a].key[:], valid[b].key[:]) < 0
+	})
+	for _, ev := range valid {
+		res.Duplicates = append(res.Duplicates, Duplicate{ID: ev.id, Stratum: ev.stratum, FirstLine: ev.kept, Line: ev.other})
+	}
+	if len(valid) > 0 && !s.spec.Dedupe {
+		return nil, s.duplicateError(res.Duplicates)
+	}
+	var out []StratumScan
+	for _, st := range strata {
+		if st.Count > 0 {
+			out = append(out, st)
+			res.InScope += st.Count
+		}
+	}
+	res.Strata = out
+	return res, nil
+}
+
+// duplicateError names the first few repeated ids and their lines.
+func (s *scanner) duplicateError(d []Duplicate) *InputError {
+	first := d[0]
+	var b strings.Builder
+	fmt.Fprintf(&b, "record id %q appears again (first on line %d)", first.ID, first.FirstLine)
+	if len(d) > 1 {
+		fmt.Fprintf(&b, "; %d repeats among the rows that could be drawn: ", len(d))
+		for i, x := range d {
+			if i == 5 {
+				b.WriteString(", …")
+				break
+			}
+			if i > 0 {
+				b.WriteString(", ")
+			}
+			fmt.Fprintf(&b, "%q (lines %d and %d)", x.ID, x.FirstLine, x.Line)
+		}
+	}
+	e := inputErrorf(s.spec.Name, int(first.Line), s.spec.IDColumn, "%s", b.String())
+	e.Err = ErrDuplicateIDs
+	e.Hint = "each record id must appear once; --dedupe first keeps the first row of each id"
+	return e
+}

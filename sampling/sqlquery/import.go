@@ -1,0 +1,200 @@
+package sqlquery
+
+import (
+	"fmt"
+	"io"
+	"slices"
+
+	"probity/plan"
+	"probity/sampling"
+)
+
+// Result is a query result that passed every check: it was made by the
+// query this probity writes for the plan given, every key is the SHA-256
+// of its seed and id, the stratum counts add up to the table's rows, the
+// allocation is the one sampling.Allocate gives for those counts, and each
+// stratum holds exactly its n_h + spares rows with the smallest keys, in
+// key order.
+type Result struct {
+	// Path, SHA256 and Bytes describe the result file.
+	Path   string
+	SHA256 string
+	Bytes  int64
+	// Spec is the draw the result was made for, with the plan's
+	// candidates.
+	Spec *Spec
+	// Query is the query text rebuilt from Spec (byte for byte what
+	// `probity draw --sql` printed for it) and QuerySHA256 its SHA-256.
+	Query       string
+	QuerySHA256 string
+	// TableRows is the number of rows the query read.
+	TableRows int64
+	// Strata is the allocation, sorted by label.
+	Strata []sampling.StratumAllocation
+	// Items holds, per stratum label, the rows selected, in key order:
+	// the first n_h are the sample, the rest the spares.
+	Items map[string][]Item
+}
+
+// Item is one selected row of a result.
+type Item struct {
+	// Line is where the row is in the result file.
+	Line     int
+	RecordID string
+	Stratum  string
+	Key      string
+	// Values are the log columns of Spec's value columns (the candidates'
+	// columns, then --show), as the engine printed them.
+	Values []string
+}
+
+// Import reads and checks a query result. p and fingerprint are the plan
+// the result must have been made for; stdin is read when path is "-".
+// Every problem is a *sampling.InputError naming the file, line and
+// column.
+func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Result, error) {
+	data, err := readFile(path, stdin)
+	if err != nil {
+		return nil, err
+	}
+	t, err := readResult(path, data)
+	if err != nil {
+		return nil, err
+	}
+	res := &Result{Path: path, SHA256: sampling.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{}}
+	if len(t.rows) == 0 || t.rows[0][colKind] != KindDraw {
+		return nil, &sampling.InputError{File: path, Line: 2, Column: "kind", Msg: "the first row must be the draw row (kind " + KindDraw + ")",
+			Hint: "save the whole result of the query, in the order it returns"}
+	}
+	if res.Spec, err = checkDrawRow(t, p, fingerprint); err != nil {
+		return nil, err
+	}
+	if res.Query, err = Query(res.Spec); err != nil {
+		return nil, &sampling.InputError{File: path, Line: t.lines[0], Column: "detail", Msg: err.Error(), Err: err}
+	}
+	res.QuerySHA256 = sampling.SHA256Hex([]byte(res.Query))
+	if res.TableRows, err = t.int64At(0, colStratumSize); err != nil {
+		return nil, err
+	}
+	nValues := len(res.Spec.valueColumns())
+	if len(t.header)-fixedColumns != nValues {
+		return nil, &sampling.InputError{File: path, Line: 1, Msg: fmt.Sprintf("%d value columns, but the draw row lists %d", len(t.header)-fixedColumns, nValues)}
+	}
+	if err := checkIDRows(t); err != nil {
+		return nil, err
+	}
+	if err := res.checkStrata(t); err != nil {
+		return nil, err
+	}
+	if err := res.checkItems(t); err != nil {
+		return nil, err
+	}
+	return res, nil
+}
+
+// checkDrawRow decodes the draw row's description and checks that it names
+// this plan, its seed and a selection seed that follows from them.
+func checkDrawRow(t *resultTable, p *plan.File, fingerprint string) (*Spec, error) {
+	d, err := parseDetail(t.rows[0][colDetail])
+	if err != nil {
+		return nil, t.rowError(0, colDetail, "%v", err)
+	}
+	if d.Format != QueryFormat {
+		return nil, withHint(t.rowError(0, colDetail, "the result was made by a query of format %d; this probity reads format %d", d.Format, QueryFormat),
+			"print the query again with this probity's draw --sql and run it")
+	}
+	if d.PlanFingerprint != fingerprint {
+		return nil, withHint(t.rowError(0, colDetail, "the result was made for another plan (fingerprint %s), not this one (%s)", short(d.PlanFingerprint), short(fingerprint)),
+			"import it with the plan the query was printed from, or print and run the query for this plan")
+	}
+	if d.Seed != p.Seed {
+		return nil, withHint(t.rowError(0, colDetail, "the result was made with seed %q, but the plan's seed is %q", d.Seed, p.Seed),
+			"print and run the query for this plan")
+	}
+	want := p.Seed
+	if d.Period != "" {
+		want = sampling.PeriodSeed(p.Seed, d.Period)
+	}
+	if d.SelectionSeed != want {
+		return nil, t.rowError(0, colDetail, "the selection seed %q does not follow from the plan's seed and period %q (expected %q)", d.SelectionSeed, d.Period, want)
+	}
+	if d.SampleSize != p.Rule.SampleSize {
+		return nil, t.rowError(0, colDetail, "the result was made for a sample of %d, but the plan's is %d", d.SampleSize, p.Rule.SampleSize)
+	}
+	s := d.Spec
+	s.Candidates = p.Candidates
+	if got := s.valueColumns(); !slices.Equal(got, d.Values) {
+		return nil, t.rowError(0, colDetail, "the value columns %q are not those the plan's candidates and --show need (%q)", d.Values, got)
+	}
+	return &s, nil
+}
+
+// checkIDRows refuses a table with empty or repeated ids, as the draw
+// from a file does (a draw inside the engine has no log order in which to
+// keep a first copy).
+func checkIDRows(t *resultTable) error {
+	counts := map[string]int64{}
+	var dupLines []int
+	var dupExamples []string
+	for i, row := range t.rows {
+		switch row[colKind] {
+		case KindEmptyIDs, KindDuplicateIDs:
+			n, err := t.int64At(i, colStratumSize)
+			if err != nil {
+				return err
+			}
+			counts[row[colKind]] = n
+		case KindDuplicateID:
+			dupLines = append(dupLines, t.lines[i])
+			dupExamples = append(dupExamples, fmt.Sprintf("%q (%s times)", row[colRecordID], row[colStratumSize]))
+		}
+	}
+	for _, k := range []string{KindEmptyIDs, KindDuplicateIDs} {
+		if _, ok := counts[k]; !ok {
+			return &sampling.InputError{File: t.name, Msg: "the " + k + " row is missing", Hint: "save the whole result of the query"}
+		}
+	}
+	s := ""
+	if n := counts[KindEmptyIDs]; n > 0 {
+		if n > 1 {
+			s = "s"
+		}
+		return withHint(&sampling.InputError{File: t.name, Column: "record_id", Msg: fmt.Sprintf("the table has %d row%s whose id is NULL or empty", n, s)},
+			"every row needs an id; fill them in or leave those rows out of the table or view")
+	}
+	if n := counts[KindDuplicateIDs]; n > 0 || len(dupExamples) > 0 {
+		line := 0
+		if len(dupLines) > 0 {
+			line = dupLines[0]
+		}
+		return withHint(&sampling.InputError{File: t.name, Line: line, Column: "record_id", Msg: fmt.Sprintf("%d ids occur more than once in the table, e.g. %s", n, joinList(dupExamples))},
+			"ids must be unique; a draw inside the engine cannot keep a first copy (draw from an export with --dedupe first)")
+	}
+	return nil
+}
+
+// withHint sets an error's hint.
+func withHint(e *sampling.InputError, hint string) *sampling.InputError {
+	e.Hint = hint
+	return e
+}
+
+// short abbreviates a fingerprint for a message.
+func short(s string) string {
+	if len(s) > 12 {
+		return s[:12] + "…"
+	}
+	return s
+}
+
+// joinList joins items with ", ".
+func joinList(items []string) string {
+	out := ""
+	for i, s := range items {
+		if i > 0 {
+			out += ", "
+		}
+		out += s
+	}
+	return out
+}

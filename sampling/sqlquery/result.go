@@ -1,0 +1,105 @@
+package sqlquery
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"strconv"
+	"strings"
+
+	"probity/sampling"
+)
+
+// resultTable is a query result file read whole (it is as large as the
+// sample, not the table): the header and each row with the line it starts
+// on.
+type resultTable struct {
+	name   string
+	header []string
+	rows   [][]string
+	lines  []int
+}
+
+// Columns of the result, by position (see ResultHeader).
+const (
+	colKind = iota
+	colRecordID
+	colStratum
+	colStratumSize
+	colStratumSample
+	colStratumSpare
+	colStratumRank
+	colKey
+	colDetail
+	fixedColumns
+)
+
+// readResult reads a result file: CSV with a header, as psql --csv or
+// COPY … CSV HEADER writes it (a UTF-8 byte-order mark and CRLF line ends
+// are accepted).
+func readResult(path string, data []byte) (*resultTable, error) {
+	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	r := csv.NewReader(bytes.NewReader(data))
+	r.FieldsPerRecord = -1
+	t := &resultTable{name: path}
+	for {
+		rec, err := r.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				return nil, &sampling.InputError{File: path, Line: pe.Line, Msg: "not a CSV result: " + pe.Err.Error(), Err: err}
+			}
+			return nil, &sampling.InputError{File: path, Msg: err.Error(), Err: err}
+		}
+		line, _ := r.FieldPos(0)
+		if t.header == nil {
+			t.header = rec
+			continue
+		}
+		if len(rec) != len(t.header) {
+			return nil, &sampling.InputError{File: path, Line: line, Msg: fmt.Sprintf("%d fields, but the header has %d", len(rec), len(t.header))}
+		}
+		t.rows = append(t.rows, rec)
+		t.lines = append(t.lines, line)
+	}
+	if t.header == nil {
+		return nil, &sampling.InputError{File: path, Msg: "the file is empty",
+			Hint: "save the query's result with its header, e.g. psql --csv -f draw.sql > result.csv"}
+	}
+	want := ResultHeader(len(t.header) - fixedColumns)
+	if len(t.header) < fixedColumns || strings.Join(t.header, ",") != strings.Join(want, ",") {
+		return nil, &sampling.InputError{File: path, Line: 1,
+			Msg:  fmt.Sprintf("the header is not that of a probity draw query (expected %s)", strings.Join(ResultHeader(0), ",")+",value_1,…"),
+			Hint: "save the result of the query printed by probity draw --sql, with its header"}
+	}
+	return t, nil
+}
+
+// rowError is an error about one field of one result row.
+func (t *resultTable) rowError(i, col int, format string, args ...any) *sampling.InputError {
+	return &sampling.InputError{File: t.name, Line: t.lines[i], Column: t.header[col], Msg: fmt.Sprintf(format, args...)}
+}
+
+// int64At parses an integer field (≥ 0).
+func (t *resultTable) int64At(i, col int) (int64, error) {
+	v := t.rows[i][col]
+	n, err := strconv.ParseInt(v, 10, 64)
+	if err != nil || n < 0 {
+		return 0, t.rowError(i, col, "%q is not a non-negative integer", v)
+	}
+	return n, nil
+}
+
+// readFile returns a file's bytes, or stdin's for "-".
+func readFile(path string, stdin io.Reader) ([]byte, error) {
+	if path == "-" {
+		return io.ReadAll(stdin)
+	}
+	return os.ReadFile(path)
+}

@@ -1,0 +1,158 @@
+package sqlquery
+
+import (
+	"errors"
+	"fmt"
+
+	"probity/sampling"
+)
+
+// checkStrata reads the stratum rows and checks them against the table's
+// row count and against sampling.Allocate on the same counts.
+func (res *Result) checkStrata(t *resultTable) error {
+	var counts []sampling.StratumCount
+	type claim struct {
+		row           int
+		sample, spare int64
+	}
+	claims := map[string]claim{}
+	var total int64
+	for i, row := range t.rows {
+		if row[colKind] != KindStratum {
+			continue
+		}
+		label := row[colStratum]
+		if _, dup := claims[label]; dup {
+			return t.rowError(i, colStratum, "stratum %q is listed twice", label)
+		}
+		if n := len(counts); n > 0 && label < counts[n-1].Label {
+			return t.rowError(i, colStratum, "stratum %q comes after %q; the rows are not in the query's order", label, counts[n-1].Label)
+		}
+		pop, err := t.int64At(i, colStratumSize)
+		if err != nil {
+			return err
+		}
+		if pop < 1 {
+			return t.rowError(i, colStratumSize, "stratum %q has no rows", label)
+		}
+		var c claim
+		c.row = i
+		if c.sample, err = t.int64At(i, colStratumSample); err != nil {
+			return err
+		}
+		if c.spare, err = t.int64At(i, colStratumSpare); err != nil {
+			return err
+		}
+		claims[label] = c
+		counts = append(counts, sampling.StratumCount{Label: label, Population: pop})
+		total += pop
+	}
+	if len(counts) == 0 {
+		return &sampling.InputError{File: t.name, Msg: "the table " + res.Spec.Table + " has no rows in scope", Hint: "check the table name and the --where filter"}
+	}
+	if total != res.TableRows {
+		return t.rowError(0, colStratumSize, "the table has %d rows but its strata add up to %d", res.TableRows, total)
+	}
+	s := res.Spec
+	alloc, err := sampling.Allocate(counts, s.SampleSize, sampling.AllocOptions{Rule: s.Allocation, MinPerStratum: s.MinPerStratum, Spare: s.Spare})
+	if err != nil {
+		e := &sampling.InputError{File: t.name, Msg: err.Error(), Err: err}
+		if errors.Is(err, sampling.ErrSampleTooLarge) {
+			e.Hint = "the table holds fewer rows than the plan's sample; check the table and the --where filter"
+		}
+		return e
+	}
+	var sumSample, sumSpare int64
+	for _, a := range alloc {
+		c := claims[a.Label]
+		if c.sample != int64(a.Sample) {
+			return t.rowError(c.row, colStratumSample, "stratum %q: the result allocates %d items but its %d rows get %d", a.Label, c.sample, a.Population, a.Sample)
+		}
+		if c.spare != int64(a.Spare) {
+			return t.rowError(c.row, colStratumSpare, "stratum %q: the result draws %d spares but should draw %d", a.Label, c.spare, a.Spare)
+		}
+		sumSample += int64(a.Sample)
+		sumSpare += int64(a.Spare)
+	}
+	for col, want := range map[int]int64{colStratumSample: sumSample, colStratumSpare: sumSpare} {
+		got, err := t.int64At(0, col)
+		if err != nil {
+			return err
+		}
+		if got != want {
+			return t.rowError(0, col, "the draw row says %d, but the strata add up to %d", got, want)
+		}
+	}
+	res.Strata = alloc
+	return nil
+}
+
+// checkItems reads the selected rows and checks each key against its id
+// and seed, each row's stratum figures, and that every stratum holds
+// exactly its n_h + spares rows, ranked 1, 2, … in increasing key order.
+func (res *Result) checkItems(t *resultTable) error {
+	byLabel := map[string]sampling.StratumAllocation{}
+	for _, a := range res.Strata {
+		byLabel[a.Label] = a
+	}
+	seen := map[string]int{}
+	for i, row := range t.rows {
+		switch row[colKind] {
+		case KindDraw, KindEmptyIDs, KindDuplicateIDs, KindDuplicateID, KindStratum:
+			if i > 0 && row[colKind] == KindDraw {
+				return t.rowError(i, colKind, "a second draw row; the file holds more than one result")
+			}
+			continue
+		case KindItem:
+		default:
+			return t.rowError(i, colKind, "unknown row kind %q", row[colKind])
+		}
+		id, label, key := row[colRecordID], row[colStratum], row[colKey]
+		if prev, ok := seen[id]; ok {
+			return t.rowError(i, colRecordID, "record %q is selected twice (also line %d)", id, prev)
+		}
+		seen[id] = t.lines[i]
+		a, ok := byLabel[label]
+		if !ok {
+			return t.rowError(i, colStratum, "record %q is in stratum %q, which has no stratum row", id, label)
+		}
+		if want := sampling.Key(res.Spec.SelectionSeed, id); key != want {
+			return withHint(t.rowError(i, colKey, "the key of record %q is not SHA-256(\"<selection seed>:%s\") (expected %s)", id, id, want),
+				"the result was edited, or made by another query; run the printed query again")
+		}
+		for _, f := range []struct {
+			col  int
+			want int64
+		}{{colStratumSize, a.Population}, {colStratumSample, int64(a.Sample)}, {colStratumSpare, int64(a.Spare)}} {
+			got, err := t.int64At(i, f.col)
+			if err != nil {
+				return err
+			}
+			if got != f.want {
+				return t.rowError(i, f.col, "record %q: %d, but stratum %q has %d", id, got, label, f.want)
+			}
+		}
+		rank, err := t.int64At(i, colStratumRank)
+		if err != nil {
+			return err
+		}
+		items := res.Items[label]
+		if rank != int64(len(items)+1) {
+			return t.rowError(i, colStratumRank, "record %q has rank %d in stratum %q, expected %d (rows missing, repeated or out of order)", id, rank, label, len(items)+1)
+		}
+		if n := len(items); n > 0 && key <= items[n-1].Key {
+			return t.rowError(i, colKey, "record %q has a key not above that of rank %d in its stratum", id, n)
+		}
+		if rank > int64(a.Sample+a.Spare) {
+			return t.rowError(i, colStratumRank, "stratum %q has more rows than its %d items and %d spares", label, a.Sample, a.Spare)
+		}
+		res.Items[label] = append(items, Item{Line: t.lines[i], RecordID: id, Stratum: label, Key: key, Values: append([]string(nil), row[fixedColumns:]...)})
+	}
+	for _, a := range res.Strata {
+		if got := len(res.Items[a.Label]); got != a.Sample+a.Spare {
+			return &sampling.InputError{File: t.name, Column: "stratum", Msg: fmt.Sprintf("stratum %q has %d rows in the result, but its %d items and %d spares need %d", a.Label, got, a.Sample, a.Spare, a.Sample+a.Spare),
+				Hint: "save the whole result of the query"}
+		}
+	}
+	return nil
+}
