@@ -3,7 +3,6 @@ package trend
 import (
 	"crypto/sha256"
 	"encoding/hex"
-	"encoding/json"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -112,7 +111,7 @@ func clopperPearsonUpper(k, n int, conf float64) float64 {
 // writeRecord writes r as JSON into dir/name and returns the path.
 func writeRecord(t testing.TB, dir, name string, r record.Record) string {
 	t.Helper()
-	data, err := json.MarshalIndent(r, "", "  ")
+	data, err := record.Encode(&r)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -120,7 +119,7 @@ func writeRecord(t testing.TB, dir, name string, r record.Record) string {
 	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 		t.Fatal(err)
 	}
-	if err := os.WriteFile(path, append(data, '\n'), 0o644); err != nil {
+	if err := os.WriteFile(path, data, 0o644); err != nil {
 		t.Fatal(err)
 	}
 	return path

@@ -26,7 +26,10 @@ type Options struct {
 // Trend is the audits of several periods side by side. Its JSON form is the
 // stable layout of `probity trend --json`.
 type Trend struct {
-	Class Class `json:"class"`
+	// System and SystemVersion name the classifier, from the latest record.
+	System        string `json:"system"`
+	SystemVersion string `json:"system_version"`
+	Class         Class  `json:"class"`
 	// Baseline is the period compared against.
 	Baseline string `json:"baseline"`
 	// Alpha is the level of each comparison (not adjusted for the number
@@ -179,11 +182,14 @@ func Build(entries []Entry, opts Options) (*Trend, error) {
 		}
 	}
 
+	latest := &es[len(es)-1].Record
 	t := &Trend{
-		Class:    ClassOf(&first.Record),
-		Alpha:    opts.Alpha,
-		Test:     TestName,
-		Warnings: []string{},
+		System:        latest.System,
+		SystemVersion: latest.SystemVersion,
+		Class:         ClassOf(&first.Record),
+		Alpha:         opts.Alpha,
+		Test:          TestName,
+		Warnings:      []string{},
 	}
 	labels := make([]string, len(es))
 	for i, e := range es {

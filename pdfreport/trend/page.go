@@ -1,0 +1,313 @@
+package trend
+
+import (
+	"bytes"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+	"time"
+
+	"codeberg.org/go-fonts/liberation/liberationsansbold"
+	"codeberg.org/go-fonts/liberation/liberationsansregular"
+	"github.com/jung-kurt/gofpdf"
+	"gonum.org/v1/plot/vg"
+
+	"probity/plan/record"
+	"probity/plan/trend"
+)
+
+// PageInfo is what the one-page PDF needs beyond the Trend.
+type PageInfo struct {
+	// Date stamps the PDF's creation and modification dates (the latest
+	// record's date keeps the bytes a function of the records).
+	Date time.Time
+	// ToolVersion is the probity version written in the footer.
+	ToolVersion string
+}
+
+// Page geometry (mm) and fonts (pt).
+const (
+	pageMargin  = 14.0
+	rowH        = 4.3
+	tableFont   = 7.5
+	minTableFnt = 5.5
+	chartDPI    = 200
+	maxPeriods  = 36
+	// Fixed table columns: period, record id, overall verdict.
+	colPeriod  = 16.0
+	colRecord  = 21.0
+	colOverall = 15.0
+)
+
+type rgb struct{ r, g, b int }
+
+var (
+	ink       = rgb{25, 25, 30}
+	muted     = rgb{95, 100, 110}
+	heading   = rgb{20, 45, 90}
+	headFill  = rgb{224, 230, 239}
+	zebraFill = rgb{245, 247, 250}
+	accept    = rgb{0, 122, 61}
+	reject    = rgb{190, 25, 35}
+	flag      = rgb{200, 95, 0}
+	rule      = rgb{170, 178, 190}
+)
+
+// PDF lays out t on one A4 page — portrait for up to three candidates,
+// landscape beyond — and returns its bytes: a heading with the class, the
+// baseline and the test; the chart; a table of every period (record id,
+// overall verdict, and per candidate errors/labeled, upper bound and the
+// p-value against the baseline, flagged ones marked "↑"); the warnings;
+// and a footer. The same t and info give the same bytes.
+func PDF(t *trend.Trend, info PageInfo) ([]byte, error) {
+	if err := checkTrend(t); err != nil {
+		return nil, err
+	}
+	if len(t.Periods) > maxPeriods {
+		return nil, fmt.Errorf("%w: %d periods do not fit on one page (at most %d); pass fewer records", ErrTrend, len(t.Periods), maxPeriods)
+	}
+	k := len(t.Candidates)
+	orient, pw, ph := "P", 210.0, 297.0
+	if k > 3 {
+		orient, pw, ph = "L", 297.0, 210.0
+	}
+	cw := pw - 2*pageMargin
+	candW := (cw - colPeriod - colRecord - colOverall) / float64(k)
+	if candW < 27 {
+		return nil, fmt.Errorf("%w: %d candidates do not fit in one table row", ErrTrend, k)
+	}
+	fontSize := math.Max(minTableFnt, math.Min(tableFont, candW/42*tableFont))
+
+	pdf := gofpdf.NewCustom(&gofpdf.InitType{OrientationStr: orient, UnitStr: "mm", SizeStr: "A4"})
+	pdf.SetCreationDate(info.Date)
+	pdf.SetModificationDate(info.Date)
+	pdf.SetCatalogSort(true)
+	pdf.SetCompression(true)
+	pdf.SetProducer("probity "+info.ToolVersion, true)
+	pdf.SetCreator("probity "+info.ToolVersion, true)
+	pdf.SetTitle("Trend of acceptance records, "+t.Periods[0].Label+" to "+t.Latest.Label, true)
+	pdf.AddUTF8FontFromBytes("sans", "", liberationsansregular.TTF)
+	pdf.AddUTF8FontFromBytes("sans", "B", liberationsansbold.TTF)
+	pdf.SetMargins(pageMargin, pageMargin, pageMargin)
+	pdf.SetAutoPageBreak(false, pageMargin)
+	pdf.SetLineWidth(0.2)
+	pdf.AddPage()
+	p := &page{pdf: pdf, x: pageMargin, w: cw}
+
+	p.header(t)
+	warnH := p.warningsHeight(t.Warnings)
+	tableH := float64(len(t.Periods)+2) * rowH
+	footerH := 9.0
+	avail := ph - pageMargin - pdf.GetY() - 4 - tableH - 4 - warnH - footerH
+	nw, nh := ChartSize(t)
+	chartW := cw
+	chartH := chartW * nh.Points() / nw.Points()
+	if chartH > avail {
+		chartH = avail
+	}
+	if chartH < 30+22*float64(k) {
+		return nil, fmt.Errorf("%w: the chart and a table of %d periods do not fit on one page", ErrTrend, len(t.Periods))
+	}
+	// Draw at the chart's natural width (so the legend fits) and let the
+	// page scale it down; the DPI gives chartDPI pixels per inch on paper.
+	scale := nw.Points() / (chartW / 25.4 * 72)
+	dpi := int(math.Round(chartDPI / scale))
+	img, err := PNG(t, nw, vg.Length(chartH/25.4*72*scale), dpi)
+	if err != nil {
+		return nil, err
+	}
+	pdf.RegisterImageOptionsReader("trend-chart", gofpdf.ImageOptions{ImageType: "PNG"}, bytes.NewReader(img))
+	y := pdf.GetY() + 2
+	pdf.ImageOptions("trend-chart", p.x, y, chartW, chartH, false, gofpdf.ImageOptions{ImageType: "PNG"}, 0, "")
+	pdf.SetY(y + chartH + 3)
+	p.table(t, candW, fontSize)
+	p.warnings(t.Warnings)
+	p.footer(t, info, ph)
+	if err := pdf.Error(); err != nil {
+		return nil, fmt.Errorf("laying out the trend PDF: %w", err)
+	}
+	var buf bytes.Buffer
+	if err := pdf.Output(&buf); err != nil {
+		return nil, fmt.Errorf("writing the trend PDF: %w", err)
+	}
+	return buf.Bytes(), nil
+}
+
+// page is the page being laid out.
+type page struct {
+	pdf  *gofpdf.Fpdf
+	x, w float64
+}
+
+func (p *page) font(style string, size float64, c rgb) {
+	p.pdf.SetFont("sans", style, size)
+	p.pdf.SetTextColor(c.r, c.g, c.b)
+}
+
+func (p *page) fill(c rgb) { p.pdf.SetFillColor(c.r, c.g, c.b) }
+
+// line writes one line of text across the page.
+func (p *page) line(text string, h float64) {
+	p.pdf.SetX(p.x)
+	p.pdf.CellFormat(p.w, h, text, "", 1, "L", false, 0, "")
+}
+
+func (p *page) header(t *trend.Trend) {
+	title := "Trend of acceptance records"
+	if sys := strings.TrimSpace(t.System + " " + t.SystemVersion); sys != "" {
+		title += " — " + sys
+	}
+	p.font("B", 14, heading)
+	p.line(title, 7)
+	p.font("", 8.5, muted)
+	c := t.Class
+	p.line(fmt.Sprintf("%d periods, %s to %s · %s model, %s method, %s design · ceiling %s at %s confidence",
+		len(t.Periods), t.Periods[0].Label, t.Latest.Label, c.Model, c.Method, c.Design, percent(c.Ceiling), percent(c.Confidence)), 4.4)
+	p.line(fmt.Sprintf("Baseline %s · a period is flagged ↑ when Fisher's exact test (one-sided: error higher than the baseline's) gives p ≤ %s;",
+		t.Baseline, strconv.FormatFloat(t.Alpha, 'g', -1, 64)), 4.4)
+	p.line(fmt.Sprintf("each of the %d comparisons per candidate is at that level (not adjusted for their number), whether or not the period passed.",
+		len(t.Periods)-1), 4.4)
+	p.pdf.Ln(1)
+	col := accept
+	if t.Latest.OverallVerdict == record.Reject {
+		col = reject
+	}
+	p.font("B", 10, col)
+	p.line(fmt.Sprintf("Latest period %s: %s (record %s)", t.Latest.Label, t.Latest.OverallVerdict, t.Latest.RecordID), 5.5)
+}
+
+// table draws one row per period.
+func (p *page) table(t *trend.Trend, candW, size float64) {
+	pdf := p.pdf
+	sub := []float64{candW * 0.34, candW * 0.30, candW * 0.36}
+	// First header row: candidate names over their three columns.
+	p.fill(headFill)
+	p.font("B", size, ink)
+	pdf.SetX(p.x)
+	pdf.CellFormat(colPeriod+colRecord+colOverall, rowH, "", "", 0, "L", true, 0, "")
+	for _, s := range t.Candidates {
+		pdf.CellFormat(candW, rowH, fitText(pdf, s.Name, candW-2), "L", 0, "C", true, 0, "")
+	}
+	pdf.Ln(-1)
+	pdf.SetX(p.x)
+	for _, h := range []struct {
+		w float64
+		s string
+	}{{colPeriod, "period"}, {colRecord, "record"}, {colOverall, "overall"}} {
+		pdf.CellFormat(h.w, rowH, h.s, "B", 0, "L", true, 0, "")
+	}
+	for range t.Candidates {
+		pdf.CellFormat(sub[0], rowH, "errors/n", "LB", 0, "R", true, 0, "")
+		pdf.CellFormat(sub[1], rowH, "upper", "B", 0, "R", true, 0, "")
+		pdf.CellFormat(sub[2], rowH, "p vs base", "B", 0, "R", true, 0, "")
+	}
+	pdf.Ln(-1)
+	rows := make([]map[string]trend.Point, len(t.Candidates))
+	for i, s := range t.Candidates {
+		rows[i] = map[string]trend.Point{}
+		for _, r := range s.Rows {
+			rows[i][r.Period] = r
+		}
+	}
+	for j, per := range t.Periods {
+		zebra := j%2 == 1
+		p.fill(zebraFill)
+		pdf.SetX(p.x)
+		p.font("", size, ink)
+		pdf.CellFormat(colPeriod, rowH, per.Label, "", 0, "L", zebra, 0, "")
+		pdf.CellFormat(colRecord, rowH, per.RecordID, "", 0, "L", zebra, 0, "")
+		vc := accept
+		if per.OverallVerdict == record.Reject {
+			vc = reject
+		}
+		p.font("B", size, vc)
+		pdf.CellFormat(colOverall, rowH, per.OverallVerdict, "", 0, "L", zebra, 0, "")
+		for i := range t.Candidates {
+			r, ok := rows[i][per.Label]
+			p.font("", size, ink)
+			if !ok {
+				p.font("", size, muted)
+				pdf.CellFormat(sub[0], rowH, "—", "L", 0, "R", zebra, 0, "")
+				pdf.CellFormat(sub[1]+sub[2], rowH, "not in this record", "", 0, "C", zebra, 0, "")
+				continue
+			}
+			pdf.CellFormat(sub[0], rowH, fmt.Sprintf("%d/%d", r.Errors, r.Labeled), "L", 0, "R", zebra, 0, "")
+			if r.Verdict == record.Reject {
+				p.font("B", size, reject)
+			}
+			pdf.CellFormat(sub[1], rowH, percent(r.UpperBound), "", 0, "R", zebra, 0, "")
+			pv := "base"
+			p.font("", size, muted)
+			if r.PValue != nil {
+				pv = pValue(*r.PValue)
+				p.font("", size, ink)
+				if r.Flagged {
+					pv += " ↑"
+					p.font("B", size, flag)
+				}
+			} else if per.Label != t.Baseline {
+				pv = "—"
+			}
+			pdf.CellFormat(sub[2], rowH, pv, "", 0, "R", zebra, 0, "")
+		}
+		pdf.Ln(-1)
+	}
+	pdf.SetDrawColor(rule.r, rule.g, rule.b)
+	y := pdf.GetY()
+	pdf.Line(p.x, y, p.x+p.w, y)
+	p.font("", 7, muted)
+	pdf.Ln(0.8)
+	p.line(fmt.Sprintf("upper: one-sided upper confidence bound of the record; red bold: that candidate was rejected (its errors exceeded the plan's acceptance number). Ceiling %s.", percent(t.Class.Ceiling)), 3.6)
+}
+
+// warningsHeight is the space the warnings take.
+func (p *page) warningsHeight(ws []string) float64 {
+	if len(ws) == 0 {
+		return 0
+	}
+	p.font("", 7.5, ink)
+	h := 5.0
+	for _, w := range ws {
+		h += 3.6 * float64(len(p.pdf.SplitText("• "+w, p.w)))
+	}
+	return h
+}
+
+func (p *page) warnings(ws []string) {
+	if len(ws) == 0 {
+		return
+	}
+	p.pdf.Ln(1.5)
+	p.font("B", 8.5, flag)
+	p.line("Warnings", 4.5)
+	p.font("", 7.5, ink)
+	for _, w := range ws {
+		p.pdf.SetX(p.x)
+		p.pdf.MultiCell(p.w, 3.6, "• "+w, "", "L", false)
+	}
+}
+
+func (p *page) footer(t *trend.Trend, info PageInfo, ph float64) {
+	pdf := p.pdf
+	y := ph - pageMargin - 4
+	pdf.SetDrawColor(rule.r, rule.g, rule.b)
+	pdf.Line(p.x, y-1, p.x+p.w, y-1)
+	pdf.SetXY(p.x, y)
+	p.font("", 7, muted)
+	left := fmt.Sprintf("probity %s · drawn from the %d records named in the table; every number is a field of those records", info.ToolVersion, len(t.Periods))
+	pdf.CellFormat(p.w*0.85, 4, left, "", 0, "L", false, 0, "")
+	pdf.CellFormat(p.w*0.15, 4, "page 1 of 1", "", 0, "R", false, 0, "")
+}
+
+// fitText shortens s with "…" until it fits in w mm in the current font.
+func fitText(pdf *gofpdf.Fpdf, s string, w float64) string {
+	if pdf.GetStringWidth(s) <= w {
+		return s
+	}
+	r := []rune(s)
+	for len(r) > 1 && pdf.GetStringWidth(string(r)+"…") > w {
+		r = r[:len(r)-1]
+	}
+	return string(r) + "…"
+}

@@ -1,0 +1,54 @@
+package trend
+
+import (
+	"bytes"
+	"flag"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"probity/plan/record"
+)
+
+var update = flag.Bool("update", false, "rewrite testdata/trend/monthly from the scenario in records_test.go")
+
+// monthlyDir holds the year of records used by the command tests, the
+// chart tests and the README walkthrough: one folder per month, as
+// `probity record` writes them.
+const monthlyDir = "../../testdata/trend/monthly"
+
+// TestMonthlyFixtures keeps testdata/trend/monthly in the canonical
+// record.json encoding (record.Encode) and it equal to the scenario
+// (run with -update to rewrite it) and checks it loads as a trend.
+func TestMonthlyFixtures(t *testing.T) {
+	for _, r := range yearRecords() {
+		data, err := record.Encode(&r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		path := filepath.Join(monthlyDir, r.Period, "record.json")
+		if *update {
+			if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+				t.Fatal(err)
+			}
+			if err := os.WriteFile(path, data, 0o644); err != nil {
+				t.Fatal(err)
+			}
+			continue
+		}
+		got, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatalf("%v (run go test ./plan/trend -run TestMonthlyFixtures -update)", err)
+		}
+		if !bytes.Equal(got, data) {
+			t.Errorf("%s differs from the scenario (run with -update)", path)
+		}
+	}
+	l, err := Load([]string{monthlyDir})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(l.Entries) != 12 {
+		t.Fatalf("%d records under %s", len(l.Entries), monthlyDir)
+	}
+}
