@@ -1,0 +1,125 @@
+package pdfreport
+
+import (
+	"strings"
+
+	"probity/plan/record"
+	"probity/templates"
+)
+
+// fieldsOf prepares the template fields from the record, formatted for
+// print.
+func fieldsOf(rec *record.Record, use string) templates.Fields {
+	p := rec.Plan
+	f := templates.Fields{
+		System:           strings.TrimSpace(rec.System),
+		SystemVersion:    strings.TrimSpace(rec.SystemVersion),
+		Period:           rec.Period,
+		Date:             rec.Date,
+		RecordID:         rec.RecordID,
+		Use:              use,
+		Ceiling:          pctExact(p.Ceiling),
+		Confidence:       confidence(p.Confidence),
+		FamilyRisk:       riskPct(1 - p.Confidence),
+		BoundConfidence:  confidence(boundConfidence(rec)),
+		PerCandidateRisk: riskPct(p.PerCandidateRisk),
+		Candidates:       p.Candidates,
+		Require:          p.Require,
+		Model:            p.Model,
+		Rule:             p.Method,
+		Sequential:       p.Design == "sequential",
+		SampleSize:       p.SampleSize,
+		AcceptanceNumber: p.AcceptanceNumber,
+		Bound:            boundName(rec.Method.Bound),
+		Approximate:      rec.Method.Approximate,
+		Weighted:         weightedBound(rec.Method.Bound),
+		AllowIncomplete:  rec.Deviations.AllowIncomplete,
+	}
+	if f.System == "" {
+		f.System = "the system under audit"
+	}
+	if p.ConsumerRisk > 0 {
+		f.ConsumerRisk = riskPct(p.ConsumerRisk)
+	}
+	if p.Anticipated != nil {
+		f.Anticipated = pctExact(*p.Anticipated)
+	}
+	if p.ProducerRisk != nil {
+		f.ProducerRisk = riskPct(*p.ProducerRisk)
+	}
+	if p.Candidates > 1 {
+		f.Multiplicity = multiplicityName(p.Multiplicity)
+	}
+	if p.Population > 0 {
+		f.Population = count(p.Population)
+	}
+	return f
+}
+
+// boundConfidence is the per-candidate confidence of the bounds: the
+// first candidate's (all share it), else 1 − the plan's per-candidate
+// risk.
+func boundConfidence(rec *record.Record) float64 {
+	for _, c := range rec.Candidates {
+		if c.BoundConfidence > 0 {
+			return c.BoundConfidence
+		}
+	}
+	return 1 - rec.Plan.PerCandidateRisk
+}
+
+// boundName prints a bound identifier in words.
+func boundName(id string) string {
+	base := strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(id), "(approximate)"))
+	switch strings.ToLower(base) {
+	case "clopper-pearson":
+		return "Clopper–Pearson (exact binomial)"
+	case "korn-graubard":
+		return "Korn–Graubard"
+	case "weighted-hoeffding":
+		return "weighted Hoeffding"
+	case "hypergeometric", "exact-hypergeometric":
+		return "exact hypergeometric"
+	case "hoeffding":
+		return "Hoeffding"
+	case "kl":
+		return "Chernoff (Kullback–Leibler)"
+	case "":
+		return "stated"
+	}
+	return base
+}
+
+// weightedBound reports whether the bound weights strata by N_h/N.
+func weightedBound(id string) bool {
+	id = strings.ToLower(id)
+	return strings.Contains(id, "korn") || strings.Contains(id, "weighted")
+}
+
+// multiplicityName prints a multiplicity rule in words.
+func multiplicityName(id string) string {
+	switch id {
+	case "bonferroni":
+		return "Bonferroni"
+	case "holm":
+		return "Holm step-down"
+	case "fixed-sequence":
+		return "fixed-sequence"
+	}
+	return id
+}
+
+// modelName prints a probability model in words.
+func modelName(id string) string {
+	switch id {
+	case "binomial":
+		return "exact binomial (unbounded stream)"
+	case "hypergeometric":
+		return "exact hypergeometric (finite lot)"
+	case "hoeffding":
+		return "Hoeffding inequality"
+	case "kl":
+		return "Chernoff bound (Kullback–Leibler form)"
+	}
+	return id
+}

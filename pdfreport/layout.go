@@ -1,0 +1,255 @@
+package pdfreport
+
+import (
+	"strings"
+
+	"github.com/jung-kurt/gofpdf"
+)
+
+// Units are millimetres; font sizes are points.
+const (
+	marginX      = 18.0
+	marginTop    = 18.0
+	marginBottom = 20.0
+	bodySize     = 9.5
+	smallSize    = 8.0
+	lineH        = 4.6 // body line height
+	smallLineH   = 3.9
+	headingSize  = 12.5
+	// keepWithHeading is the space a heading needs below it on the same
+	// page, so that no heading is left alone at the foot of a page.
+	keepWithHeading = 24.0
+)
+
+// rgb is a colour.
+type rgb struct{ r, g, b int }
+
+var (
+	inkColour     = rgb{25, 25, 30}
+	mutedColour   = rgb{95, 100, 110}
+	headingColour = rgb{20, 45, 90}
+	ruleColour    = rgb{170, 178, 190}
+	headFill      = rgb{224, 230, 239}
+	zebraFill     = rgb{245, 247, 250}
+	acceptColour  = rgb{0, 122, 61}
+	rejectColour  = rgb{190, 25, 35}
+	white         = rgb{255, 255, 255}
+)
+
+// doc is the document being laid out.
+type doc struct {
+	pdf *gofpdf.Fpdf
+	// pageW and pageH are the paper size.
+	pageW, pageH float64
+	// totalPages is the page count from the first pass (0 on the first
+	// pass itself).
+	totalPages int
+	section    int
+}
+
+// contentW is the width between the margins.
+func (d *doc) contentW() float64 { return d.pageW - 2*marginX }
+
+// bottomY is the lowest y content may reach.
+func (d *doc) bottomY() float64 { return d.pageH - marginBottom }
+
+func (d *doc) font(style string, size float64) {
+	d.pdf.SetFont("sans", style, size)
+}
+
+func (d *doc) mono(size float64) {
+	d.pdf.SetFont("mono", "", size)
+}
+
+func (d *doc) textColour(c rgb) { d.pdf.SetTextColor(c.r, c.g, c.b) }
+func (d *doc) fillColour(c rgb) { d.pdf.SetFillColor(c.r, c.g, c.b) }
+func (d *doc) drawColour(c rgb) { d.pdf.SetDrawColor(c.r, c.g, c.b) }
+
+// need starts a new page unless h millimetres fit below the cursor.
+// It reports whether it started one.
+func (d *doc) need(h float64) bool {
+	if d.pdf.GetY()+h > d.bottomY() {
+		d.pdf.AddPage()
+		return true
+	}
+	return false
+}
+
+// space moves the cursor down by h, unless that reaches the page foot.
+func (d *doc) space(h float64) {
+	if d.pdf.GetY()+h <= d.bottomY() {
+		d.pdf.SetY(d.pdf.GetY() + h)
+	}
+}
+
+// wrap splits text into lines no wider than w in the current font. Words
+// longer than a line (fingerprints, long names) are broken between
+// characters.
+func (d *doc) wrap(text string, w float64) []string {
+	var lines []string
+	for _, para := range strings.Split(text, "\n") {
+		words := glueUnits(strings.Fields(para))
+		if len(words) == 0 {
+			lines = append(lines, "")
+			continue
+		}
+		line := ""
+		for _, word := range words {
+			cand := word
+			if line != "" {
+				cand = line + " " + word
+			}
+			if d.pdf.GetStringWidth(cand) <= w {
+				line = cand
+				continue
+			}
+			if line != "" {
+				lines = append(lines, line)
+				line = ""
+			}
+			for d.pdf.GetStringWidth(word) > w {
+				cut := d.fit(word, w)
+				lines = append(lines, word[:cut])
+				word = word[cut:]
+			}
+			line = word
+		}
+		lines = append(lines, line)
+	}
+	return lines
+}
+
+// fit returns the byte length of the longest prefix of s (at least one
+// rune) that fits in w.
+func (d *doc) fit(s string, w float64) int {
+	last := 0
+	for i := range s {
+		if i > 0 && d.pdf.GetStringWidth(s[:i]) > w {
+			break
+		}
+		last = i
+	}
+	if last == 0 {
+		for i := range s {
+			if i > 0 {
+				return i
+			}
+		}
+		return len(s)
+	}
+	if d.pdf.GetStringWidth(s) <= w {
+		return len(s)
+	}
+	return last
+}
+
+// heading starts a numbered section, keeping it with the text below it.
+func (d *doc) heading(title string) {
+	d.section++
+	d.space(3)
+	d.need(keepWithHeading)
+	d.font("B", headingSize)
+	d.textColour(headingColour)
+	d.pdf.SetX(marginX)
+	d.pdf.CellFormat(d.contentW(), 7, itoa(d.section)+"   "+title, "", 1, "L", false, 0, "")
+	d.drawColour(headingColour)
+	d.pdf.SetLineWidth(0.4)
+	y := d.pdf.GetY()
+	d.pdf.Line(marginX, y, marginX+d.contentW(), y)
+	d.pdf.SetLineWidth(0.2)
+	d.pdf.SetY(y + 2.5)
+	d.textColour(inkColour)
+}
+
+// subheading is a bold line kept with at least minBelow millimetres of
+// what follows it.
+func (d *doc) subheading(title string, minBelow float64) {
+	d.space(1.5)
+	d.need(lineH + 1 + minBelow)
+	d.font("B", bodySize+0.5)
+	d.textColour(headingColour)
+	for _, l := range d.wrap(title, d.contentW()) {
+		d.pdf.SetX(marginX)
+		d.pdf.CellFormat(d.contentW(), lineH+0.6, l, "", 1, "L", false, 0, "")
+	}
+	d.textColour(inkColour)
+	d.space(0.6)
+}
+
+// paragraph prints wrapped text at the left margin plus indent.
+func (d *doc) paragraph(text string, style string, size, lh, indent float64, c rgb) {
+	d.font(style, size)
+	d.textColour(c)
+	w := d.contentW() - indent
+	for _, l := range d.wrap(text, w) {
+		d.need(lh)
+		d.pdf.SetX(marginX + indent)
+		d.pdf.CellFormat(w, lh, l, "", 1, "L", false, 0, "")
+	}
+	d.textColour(inkColour)
+}
+
+// body prints a body paragraph followed by a small gap.
+func (d *doc) body(text string) {
+	d.paragraph(text, "", bodySize, lineH, 0, inkColour)
+	d.space(1.6)
+}
+
+// note prints a small grey paragraph.
+func (d *doc) note(text string) {
+	d.paragraph(text, "I", smallSize, smallLineH, 0, mutedColour)
+	d.space(1.2)
+}
+
+// bullet prints one bullet item with a hanging indent.
+func (d *doc) bullet(text string) {
+	d.font("", bodySize)
+	const indent = 5.0
+	lines := d.wrap(text, d.contentW()-indent)
+	for i, l := range lines {
+		// Keep the first two lines of an item together.
+		if i == 0 && len(lines) > 1 {
+			d.need(2 * lineH)
+		} else {
+			d.need(lineH)
+		}
+		if i == 0 {
+			d.pdf.SetX(marginX + 1)
+			d.pdf.CellFormat(indent-1, lineH, "•", "", 0, "L", false, 0, "")
+		}
+		d.pdf.SetX(marginX + indent)
+		d.pdf.CellFormat(d.contentW()-indent, lineH, l, "", 1, "L", false, 0, "")
+	}
+	d.space(0.8)
+}
+
+// rule draws a thin horizontal line across the content width.
+func (d *doc) rule() {
+	d.drawColour(ruleColour)
+	y := d.pdf.GetY()
+	d.pdf.Line(marginX, y, marginX+d.contentW(), y)
+}
+
+func itoa(n int) string { return count(int64(n)) }
+
+// glueUnits joins a lone "%" (and "%)" or "%," …) to the number before
+// it, so that "2.000 %" never breaks between the number and its unit.
+func glueUnits(words []string) []string {
+	out := words[:0:0]
+	for _, w := range words {
+		if strings.HasPrefix(w, "%") && len(out) > 0 {
+			out[len(out)-1] += " " + w
+			continue
+		}
+		out = append(out, w)
+	}
+	return out
+}
+
+// plural is "1 error" or "n errors".
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return itoa(n) + " " + many
+}

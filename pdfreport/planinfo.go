@@ -1,0 +1,82 @@
+package pdfreport
+
+import (
+	"strings"
+)
+
+// kv is one key/value row.
+func kv(key, value string) []cell {
+	return []cell{{text: key}, {text: value}}
+}
+
+// kvMono is a key/value row with a fixed-width value (digests, seeds).
+func kvMono(key, value string) []cell {
+	return []cell{{text: key}, {text: value, mono: true}}
+}
+
+// planInfo prints the plan's inputs and rule.
+func (d *doc) planInfo(c *content) {
+	p := c.rec.Plan
+	f := c.fields
+	d.heading("The plan")
+	var names []string
+	for _, cand := range c.rec.Candidates {
+		names = append(names, cand.Name)
+	}
+	cands := itoa(p.Candidates)
+	if len(names) > 0 {
+		cands += ": " + strings.Join(names, ", ")
+	}
+	rows := [][]cell{
+		kv("Error ceiling", f.Ceiling),
+		kv("Confidence (family-wise)", f.Confidence+" (risk δ = "+f.FamilyRisk+")"),
+		kv("Candidates (M)", cands),
+	}
+	if p.Candidates > 1 {
+		req := "every candidate must be accepted"
+		if p.Require == "any" {
+			req = "at least one candidate must be accepted"
+		}
+		rows = append(rows,
+			kv("Multiplicity", multiplicityName(p.Multiplicity)+"; "+req),
+		)
+	}
+	rows = append(rows,
+		kv("Per-candidate confidence", f.BoundConfidence+" (risk "+f.PerCandidateRisk+")"),
+		kv("Decision rule", joinNonEmpty("; ", p.Method, modelName(p.Model), designName(p.Design))),
+		kv("Sample size n", itoa(p.SampleSize)+" decisions"),
+	)
+	if p.Design != "sequential" {
+		rows = append(rows, kv("Acceptance number c", itoa(p.AcceptanceNumber)+" (accept when errors ≤ c)"))
+	}
+	rows = append(rows, kv("Consumer's risk", "P(accept | error = ceiling) = "+prob(p.ConsumerRisk)))
+	if p.Anticipated != nil {
+		rows = append(rows, kv("Anticipated error p0", f.Anticipated))
+	}
+	if p.ProducerRisk != nil {
+		rows = append(rows, kv("Producer's risk", "P(reject | error = p0) = "+prob(*p.ProducerRisk)))
+	}
+	if p.Population > 0 {
+		rows = append(rows, kv("Population N", count(p.Population)+" decisions (finite lot)"))
+	} else {
+		rows = append(rows, kv("Population", "unbounded stream of decisions"))
+	}
+	if p.Seed != "" {
+		rows = append(rows, kvMono("Plan seed", p.Seed))
+	}
+	if p.SelectionSeed != "" && p.SelectionSeed != p.Seed {
+		rows = append(rows, kvMono("Selection seed", p.SelectionSeed))
+	}
+	d.drawTable(&table{title: "The plan", cols: []column{{w: 32}, {w: 68}}, rows: rows, keyFill: true, size: bodySize - 0.5})
+}
+
+// designName prints a design in words.
+func designName(id string) string {
+	switch id {
+	case "fixed", "":
+		return "fixed sample"
+	case "sequential":
+		return "sequential (stops when a boundary is reached)"
+	}
+	return id
+}

@@ -1,0 +1,251 @@
+package pdfreport
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"strings"
+	"time"
+
+	"codeberg.org/go-fonts/liberation/liberationmonoregular"
+	"codeberg.org/go-fonts/liberation/liberationsansbold"
+	"codeberg.org/go-fonts/liberation/liberationsansitalic"
+	"codeberg.org/go-fonts/liberation/liberationsansregular"
+	"github.com/jung-kurt/gofpdf"
+
+	"probity/plan/record"
+	"probity/templates"
+)
+
+// Options control the layout of the PDF.
+type Options struct {
+	// Paper is "a4" or "letter" (any case); "" means a4.
+	Paper string
+	// Templates is the wording set; nil means the embedded set.
+	Templates *templates.Set
+}
+
+// ErrRecord is wrapped by every error about a Record that cannot be laid
+// out (a malformed date, an unknown use, inconsistent tables).
+var ErrRecord = errors.New("record cannot be laid out")
+
+// paperSize returns gofpdf's size name and the page size in mm.
+func paperSize(paper string) (string, float64, float64, error) {
+	switch strings.ToLower(paper) {
+	case "", "a4":
+		return "A4", 210, 297, nil
+	case "letter":
+		return "Letter", 215.9, 279.4, nil
+	}
+	return "", 0, 0, fmt.Errorf("paper %q is not a4 or letter", paper)
+}
+
+// Render lays out rec as a PDF acceptance record and returns its bytes.
+// The same rec and opts always give the same bytes.
+func Render(rec *record.Record, opts Options) ([]byte, error) {
+	if rec == nil {
+		return nil, fmt.Errorf("%w: no record", ErrRecord)
+	}
+	size, w, h, err := paperSize(opts.Paper)
+	if err != nil {
+		return nil, err
+	}
+	tpl := opts.Templates
+	if tpl == nil {
+		if tpl, err = templates.Load(""); err != nil {
+			return nil, err
+		}
+	}
+	date, err := time.Parse("2006-01-02", rec.Date)
+	if err != nil {
+		return nil, fmt.Errorf("%w: date %q is not YYYY-MM-DD", ErrRecord, rec.Date)
+	}
+	if err := check(rec); err != nil {
+		return nil, err
+	}
+	c, err := newContent(rec, tpl)
+	if err != nil {
+		return nil, err
+	}
+	// Two passes: the first counts the pages, the second prints "Page x
+	// of y" with the count. Both lay out exactly the same content.
+	first, err := c.layout(size, w, h, date, 0)
+	if err != nil {
+		return nil, err
+	}
+	second, err := c.layout(size, w, h, date, first.pages)
+	if err != nil {
+		return nil, err
+	}
+	if second.pages != first.pages {
+		return nil, fmt.Errorf("internal error: page count changed between passes (%d, %d)", first.pages, second.pages)
+	}
+	return second.bytes, nil
+}
+
+// check refuses a Record whose tables cannot be drawn consistently.
+func check(rec *record.Record) error {
+	if _, err := useOf(rec); err != nil {
+		return err
+	}
+	for i, cand := range rec.Candidates {
+		cm := cand.Confusion
+		if len(cm.Counts) != len(cm.Classes) {
+			return fmt.Errorf("%w: candidates[%d] (%s): confusion matrix has %d rows for %d classes",
+				ErrRecord, i, cand.Name, len(cm.Counts), len(cm.Classes))
+		}
+		for j, row := range cm.Counts {
+			if len(row) != len(cm.Classes) {
+				return fmt.Errorf("%w: candidates[%d] (%s): confusion matrix row %d has %d columns for %d classes",
+					ErrRecord, i, cand.Name, j, len(row), len(cm.Classes))
+			}
+		}
+	}
+	return nil
+}
+
+// useOf returns the record's declared use ("" reads as general).
+func useOf(rec *record.Record) (string, error) {
+	use := rec.Use
+	if use == "" {
+		use = "general"
+	}
+	for _, u := range templates.Uses() {
+		if u == use {
+			return use, nil
+		}
+	}
+	return "", fmt.Errorf("%w: use %q is not one of %s", ErrRecord, rec.Use, strings.Join(templates.Uses(), ", "))
+}
+
+// content is everything that goes on the pages, prepared once for both
+// passes.
+type content struct {
+	rec    *record.Record
+	tpl    *templates.Set
+	fields templates.Fields
+	use    string
+	oc     []byte // the OC figure as PNG; nil when the record has no curve
+}
+
+func newContent(rec *record.Record, tpl *templates.Set) (*content, error) {
+	use, _ := useOf(rec)
+	c := &content{rec: rec, tpl: tpl, fields: fieldsOf(rec, use), use: use}
+	if len(rec.OC) > 0 {
+		png, err := ocFigure(rec)
+		if err != nil {
+			return nil, err
+		}
+		c.oc = png
+	}
+	return c, nil
+}
+
+// output is one pass's result.
+type output struct {
+	bytes []byte
+	pages int
+}
+
+// layout runs one pass.
+func (c *content) layout(size string, w, h float64, date time.Time, total int) (output, error) {
+	pdf := gofpdf.NewCustom(&gofpdf.InitType{OrientationStr: "P", UnitStr: "mm", SizeStr: size})
+	pdf.SetCreationDate(date)
+	pdf.SetModificationDate(date)
+	pdf.SetCatalogSort(true)
+	pdf.SetCompression(true)
+	pdf.SetProducer("probity "+c.rec.ToolVersion, true)
+	pdf.SetCreator("probity "+c.rec.ToolVersion, true)
+	pdf.SetTitle("Acceptance record "+c.rec.RecordID+" – "+systemName(c.rec), true)
+	pdf.SetSubject("Statistical acceptance of a classifier's error rate", true)
+	pdf.AddUTF8FontFromBytes("sans", "", liberationsansregular.TTF)
+	pdf.AddUTF8FontFromBytes("sans", "B", liberationsansbold.TTF)
+	pdf.AddUTF8FontFromBytes("sans", "I", liberationsansitalic.TTF)
+	pdf.AddUTF8FontFromBytes("mono", "", liberationmonoregular.TTF)
+	pdf.SetMargins(marginX, marginTop, marginX)
+	pdf.SetAutoPageBreak(false, marginBottom)
+	pdf.SetLineWidth(0.2)
+	d := &doc{pdf: pdf, pageW: w, pageH: h, totalPages: total}
+	pdf.SetHeaderFunc(func() { d.pageHeader(c) })
+	pdf.SetFooterFunc(func() { d.pageFooter(c) })
+	if c.oc != nil {
+		pdf.RegisterImageOptionsReader("oc-curve", gofpdf.ImageOptions{ImageType: "PNG"}, bytes.NewReader(c.oc))
+	}
+	pdf.AddPage()
+	for _, section := range []func(*content){
+		d.titleBlock,
+		d.summary,
+		d.conformity,
+		d.cautions,
+		d.planInfo,
+		d.ocSection,
+		d.strataSection,
+		d.confusionSection,
+		d.methodSection,
+		d.deviationsSection,
+		d.scopeSection,
+		d.provenanceSection,
+		d.signoffSection,
+	} {
+		section(c)
+		if err := pdf.Error(); err != nil {
+			return output{}, fmt.Errorf("laying out the PDF: %w", err)
+		}
+	}
+	pages := pdf.PageNo()
+	var buf bytes.Buffer
+	if err := pdf.Output(&buf); err != nil {
+		return output{}, fmt.Errorf("writing the PDF: %w", err)
+	}
+	return output{bytes: buf.Bytes(), pages: pages}, nil
+}
+
+// pageHeader prints the running head on every page after the first.
+func (d *doc) pageHeader(c *content) {
+	if d.pdf.PageNo() == 1 {
+		return
+	}
+	d.font("", smallSize)
+	d.textColour(mutedColour)
+	d.pdf.SetXY(marginX, 9)
+	d.pdf.CellFormat(d.contentW()/2, 4, "Acceptance record · "+systemName(c.rec), "", 0, "L", false, 0, "")
+	d.pdf.CellFormat(d.contentW()/2, 4, "Record "+c.rec.RecordID, "", 0, "R", false, 0, "")
+	d.drawColour(ruleColour)
+	d.pdf.Line(marginX, 14, marginX+d.contentW(), 14)
+	d.textColour(inkColour)
+	d.pdf.SetXY(marginX, marginTop)
+}
+
+// pageFooter prints the record id, date and "Page x of y" on every page.
+func (d *doc) pageFooter(c *content) {
+	y := d.pageH - 13
+	d.drawColour(ruleColour)
+	d.pdf.Line(marginX, y, marginX+d.contentW(), y)
+	d.font("", smallSize)
+	d.textColour(mutedColour)
+	d.pdf.SetXY(marginX, y+1.5)
+	left := "Record " + c.rec.RecordID + " · " + c.rec.Date
+	if c.rec.OverallVerdict != "" {
+		left += " · overall verdict " + c.rec.OverallVerdict
+	}
+	d.pdf.CellFormat(d.contentW()*0.7, 4, left, "", 0, "L", false, 0, "")
+	total := "?"
+	if d.totalPages > 0 {
+		total = itoa(d.totalPages)
+	}
+	d.pdf.CellFormat(d.contentW()*0.3, 4, "Page "+itoa(d.pdf.PageNo())+" of "+total, "", 0, "R", false, 0, "")
+	d.textColour(inkColour)
+}
+
+// systemName is "name version", or a placeholder when the record names no
+// system.
+func systemName(rec *record.Record) string {
+	name := strings.TrimSpace(rec.System)
+	if name == "" {
+		name = "unnamed system"
+	}
+	if v := strings.TrimSpace(rec.SystemVersion); v != "" {
+		name += " " + v
+	}
+	return name
+}

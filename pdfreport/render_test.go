@@ -1,0 +1,332 @@
+package pdfreport
+
+import (
+	"bytes"
+	"errors"
+	"flag"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+
+	"probity/plan/record"
+	"probity/templates"
+)
+
+var update = flag.Bool("update", false, "rewrite the golden files in testdata/pdfreport")
+
+const goldenDir = "../testdata/pdfreport"
+
+// tool returns the path of a poppler-utils program, failing under CI and
+// skipping elsewhere when it is missing.
+func tool(t *testing.T, name string) string {
+	t.Helper()
+	path, err := exec.LookPath(name)
+	if err != nil {
+		if os.Getenv("CI") != "" {
+			t.Fatalf("%s (poppler-utils) is required under CI: %v", name, err)
+		}
+		t.Skipf("%s (poppler-utils) not installed", name)
+	}
+	return path
+}
+
+func render(t *testing.T, rec *record.Record, opts Options) []byte {
+	t.Helper()
+	pdf, err := Render(rec, opts)
+	if err != nil {
+		t.Fatalf("Render: %v", err)
+	}
+	return pdf
+}
+
+// pdfText extracts the text of a PDF with pdftotext.
+func pdfText(t *testing.T, pdf []byte, args ...string) string {
+	t.Helper()
+	bin := tool(t, "pdftotext")
+	in := filepath.Join(t.TempDir(), "r.pdf")
+	if err := os.WriteFile(in, pdf, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	cmd := exec.Command(bin, append(append([]string{"-enc", "UTF-8"}, args...), in, "-")...)
+	var stderr bytes.Buffer
+	cmd.Stderr = &stderr
+	out, err := cmd.Output()
+	if err != nil || stderr.Len() > 0 {
+		t.Fatalf("pdftotext: %v: %s", err, stderr.String())
+	}
+	return string(out)
+}
+
+var spaces = regexp.MustCompile(`\s+`)
+
+// flat joins text with single spaces, for searching across line breaks.
+func flat(s string) string { return strings.TrimSpace(spaces.ReplaceAllString(s, " ")) }
+
+// pageCount reads the page count with pdfinfo.
+func pageCount(t *testing.T, pdf []byte) int {
+	t.Helper()
+	bin := tool(t, "pdfinfo")
+	in := filepath.Join(t.TempDir(), "r.pdf")
+	if err := os.WriteFile(in, pdf, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, err := exec.Command(bin, in).CombinedOutput()
+	if err != nil {
+		t.Fatalf("pdfinfo: %v: %s", err, out)
+	}
+	m := regexp.MustCompile(`(?m)^Pages:\s+(\d+)`).FindSubmatch(out)
+	if m == nil {
+		t.Fatalf("pdfinfo gave no page count: %s", out)
+	}
+	n, _ := strconv.Atoi(string(m[1]))
+	return n
+}
+
+func TestTextHasVerdictsBoundsAndCautions(t *testing.T) {
+	for _, use := range []string{"medical", "general"} {
+		t.Run(use, func(t *testing.T) {
+			rec := fixtureRecord(use)
+			text := flat(pdfText(t, render(t, rec, Options{Paper: "a4"})))
+			for _, c := range rec.Candidates {
+				for _, want := range []string{c.Name, pctUp(c.UpperBound), c.Verdict + " " + c.Reason} {
+					if !strings.Contains(text, want) {
+						t.Errorf("text lacks %q for candidate %s", want, c.Name)
+					}
+				}
+			}
+			// The bounds as printed, rounded up (scipy.stats.beta.ppf values
+			// of the fixture, formatted by hand).
+			if !regexp.MustCompile(`OVERALL VERDICT.{0,100}REJECT`).MatchString(text) {
+				t.Error("text lacks the overall verdict REJECT")
+			}
+			for _, want := range []string{"1.297 %", "1.661 %", "2.937 %"} {
+				if !strings.Contains(text, want) {
+					t.Errorf("text lacks %q", want)
+				}
+			}
+			set, _ := templates.Load("")
+			for _, u := range templates.Uses() {
+				caution, _ := set.Caution(u)
+				for _, b := range templates.Blocks(caution) {
+					has := strings.Contains(text, flat(b.Text))
+					if u == use && !has {
+						t.Errorf("text lacks the %s caution %q", u, b.Text)
+					}
+					if u != use && has && u != "general" {
+						t.Errorf("text carries the %s caution for use %s", u, use)
+					}
+				}
+			}
+			for _, want := range []string{
+				"results apply only to the population and period sampled",
+				"Zoë Łukasiewicz-Øberg", "Renée Dubois-Ibáñez", "Statement of conformity",
+				"False-accept risk", "s0007, s0012", "w00311", rec.SigningKey, rec.Fingerprints.Labels,
+				"Page 1 of", "urgency_score ≥ 0.35",
+			} {
+				if !strings.Contains(text, want) {
+					t.Errorf("text lacks %q", want)
+				}
+			}
+		})
+	}
+}
+
+func TestEveryPageCarriesRecordIDAndPageNumber(t *testing.T) {
+	rec := fixtureRecord("medical")
+	pdf := render(t, rec, Options{Paper: "letter"})
+	n := pageCount(t, pdf)
+	if n < 2 {
+		t.Fatalf("only %d pages", n)
+	}
+	pages := strings.Split(pdfText(t, pdf), "\f")
+	for i := 0; i < n; i++ {
+		want := "Page " + strconv.Itoa(i+1) + " of " + strconv.Itoa(n)
+		if !strings.Contains(pages[i], want) || !strings.Contains(pages[i], "Record "+rec.RecordID) {
+			t.Errorf("page %d lacks %q or the record id", i+1, want)
+		}
+	}
+}
+
+func TestPdftoppmRendersEveryPage(t *testing.T) {
+	bin := tool(t, "pdftoppm")
+	for _, tc := range []struct {
+		name string
+		rec  *record.Record
+		opts Options
+	}{
+		{"medical-a4", fixtureRecord("medical"), Options{Paper: "a4"}},
+		{"many-letter", manyRecord(), Options{Paper: "Letter"}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			pdf := render(t, tc.rec, tc.opts)
+			dir := t.TempDir()
+			in := filepath.Join(dir, "r.pdf")
+			if err := os.WriteFile(in, pdf, 0o644); err != nil {
+				t.Fatal(err)
+			}
+			out, err := exec.Command(bin, "-png", "-r", "30", in, filepath.Join(dir, "page")).CombinedOutput()
+			if err != nil || len(out) > 0 {
+				t.Fatalf("pdftoppm: %v: %s", err, out)
+			}
+			pngs, _ := filepath.Glob(filepath.Join(dir, "page-*.png"))
+			if want := pageCount(t, pdf); len(pngs) != want {
+				t.Errorf("pdftoppm wrote %d pages, pdfinfo counts %d", len(pngs), want)
+			}
+		})
+	}
+}
+
+func TestManyCandidatesAndStrataLayOut(t *testing.T) {
+	rec := manyRecord()
+	pdf := render(t, rec, Options{Paper: "letter"})
+	raw := pdfText(t, pdf)
+	text := flat(raw)
+	for _, c := range rec.Candidates {
+		if n := strings.Count(text, c.Name); n < 4 {
+			t.Errorf("candidate %s appears %d times, want it in the summary, findings, strata, confusion and definitions", c.Name, n)
+		}
+	}
+	for _, s := range rec.Strata {
+		if !strings.Contains(text, s.Label) {
+			t.Errorf("stratum %s missing", s.Label)
+		}
+	}
+	for _, want := range []string{"(continued)", "Adjusted p", "1,250,000", "Korn–Graubard",
+		"counted as an error for every candidate", "w00017, w00230, w01999", "not signed electronically"} {
+		if !strings.Contains(text, want) {
+			t.Errorf("text lacks %q", want)
+		}
+	}
+	// A continued table repeats its header on the new page.
+	pages := strings.Split(raw, "\f")
+	repeated := 0
+	for _, p := range pages {
+		if strings.Contains(p, "(continued)") && strings.Contains(p, "Stratum") {
+			repeated++
+		}
+	}
+	if repeated == 0 {
+		t.Error("no page repeats a table header after a break")
+	}
+}
+
+func TestSameInputsGiveSameBytes(t *testing.T) {
+	a := render(t, fixtureRecord("medical"), Options{Paper: "a4"})
+	for i := 0; i < 3; i++ {
+		b := render(t, fixtureRecord("medical"), Options{Paper: "a4"})
+		if !bytes.Equal(a, b) {
+			t.Fatalf("render %d differs from the first", i+2)
+		}
+	}
+	other := fixtureRecord("medical")
+	other.Date = "2026-12-01"
+	if bytes.Equal(a, render(t, other, Options{Paper: "a4"})) {
+		t.Error("a different date gave the same bytes")
+	}
+}
+
+// golden compares got with a golden file, rewriting it under -update.
+func golden(t *testing.T, name string, got []byte) {
+	t.Helper()
+	path := filepath.Join(goldenDir, name)
+	if *update {
+		if err := os.MkdirAll(goldenDir, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(path, got, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return
+	}
+	want, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatalf("%v (run go test ./pdfreport -update to create it)", err)
+	}
+	if !bytes.Equal(got, want) {
+		t.Errorf("%s differs from the golden file (%d bytes, golden %d); inspect it and rerun with -update if the change is intended",
+			name, len(got), len(want))
+	}
+}
+
+func TestGoldenPDFAndText(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		use  string
+		opts Options
+	}{
+		{"medical-a4", "medical", Options{Paper: "a4"}},
+		{"general-letter", "general", Options{Paper: "letter"}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			pdf := render(t, fixtureRecord(tc.use), tc.opts)
+			golden(t, tc.name+".txt", []byte(pdfText(t, pdf, "-layout")))
+			golden(t, tc.name+".pdf", pdf)
+		})
+	}
+}
+
+func TestTemplatesOverrideReachesThePDF(t *testing.T) {
+	dir := t.TempDir()
+	custom := "Ward-specific caution: a triage nurse confirms every urgent flag within ten minutes."
+	if err := os.WriteFile(filepath.Join(dir, "caution-medical.md"), []byte(custom+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	set, err := templates.Load(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := flat(pdfText(t, render(t, fixtureRecord("medical"), Options{Templates: set})))
+	if !strings.Contains(text, custom) {
+		t.Error("the overriding caution is not in the PDF")
+	}
+	if strings.Contains(text, "does not replace clinical validation") {
+		t.Error("the embedded medical caution is still in the PDF")
+	}
+	if !strings.Contains(text, "caution-medical.md replaced") {
+		t.Error("the PDF does not say which wording was replaced")
+	}
+
+	bad := t.TempDir()
+	if err := os.WriteFile(filepath.Join(bad, "scope.md"), []byte("{{.Perod}}"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := templates.Load(bad); err == nil || !strings.Contains(err.Error(), filepath.Join(bad, "scope.md")) {
+		t.Errorf("bad override: err = %v, want it to name scope.md", err)
+	}
+}
+
+func TestRenderRefusesWhatItCannotLayOut(t *testing.T) {
+	cases := []struct {
+		name string
+		edit func(*record.Record)
+		opts Options
+		want string
+	}{
+		{"date", func(r *record.Record) { r.Date = "30/11/2026" }, Options{}, `date "30/11/2026"`},
+		{"use", func(r *record.Record) { r.Use = "casino" }, Options{}, `use "casino"`},
+		{"confusion rows", func(r *record.Record) { r.Candidates[1].Confusion.Counts = r.Candidates[1].Confusion.Counts[:1] }, Options{}, "candidates[1]"},
+		{"confusion cols", func(r *record.Record) { r.Candidates[2].Confusion.Counts[1] = []int{1} }, Options{}, "row 1 has 1 columns"},
+		{"oc point", func(r *record.Record) { r.OC[3].AcceptProbability = 1.5 }, Options{}, "oc[3]"},
+		{"paper", func(r *record.Record) {}, Options{Paper: "a3"}, `paper "a3"`},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			rec := fixtureRecord("medical")
+			tc.edit(rec)
+			_, err := Render(rec, tc.opts)
+			if err == nil || !strings.Contains(err.Error(), tc.want) {
+				t.Fatalf("err = %v, want it to mention %s", err, tc.want)
+			}
+			if tc.name != "paper" && !errors.Is(err, ErrRecord) {
+				t.Errorf("err %v does not wrap ErrRecord", err)
+			}
+		})
+	}
+	if _, err := Render(nil, Options{}); err == nil {
+		t.Error("nil record accepted")
+	}
+}

@@ -1,0 +1,183 @@
+package pdfreport
+
+import (
+	"strings"
+
+	"probity/plan/record"
+)
+
+// titleBlock prints the record's title and key facts at the top of page 1.
+func (d *doc) titleBlock(c *content) {
+	rec := c.rec
+	d.font("B", 9)
+	d.textColour(mutedColour)
+	d.pdf.SetXY(marginX, marginTop)
+	d.pdf.CellFormat(d.contentW(), 5, "ACCEPTANCE RECORD · CLASSIFIER ERROR RATE", "", 1, "L", false, 0, "")
+	d.font("B", 19)
+	d.textColour(headingColour)
+	for _, l := range d.wrap(systemName(rec), d.contentW()) {
+		d.pdf.SetX(marginX)
+		d.pdf.CellFormat(d.contentW(), 9, l, "", 1, "L", false, 0, "")
+	}
+	d.space(1)
+	n := len(rec.Candidates)
+	what := itoa(n) + " candidates"
+	if n == 1 {
+		what = "one candidate"
+	}
+	d.paragraph("Statistical acceptance of "+what+" against an error ceiling of "+c.fields.Ceiling+
+		" at "+c.fields.Confidence+" confidence.", "", bodySize+1, lineH+0.4, 0, inkColour)
+	d.space(2.5)
+	period := rec.Period
+	if period == "" {
+		period = "not stated"
+	}
+	tool := "probity " + rec.ToolVersion
+	d.drawTable(&table{
+		cols: []column{{w: 17}, {w: 33}, {w: 17}, {w: 33}},
+		rows: [][]cell{
+			{{text: "Record id", bold: true, fill: &headFill}, {text: rec.RecordID, mono: true},
+				{text: "Date", bold: true, fill: &headFill}, {text: rec.Date}},
+			{{text: "Period", bold: true, fill: &headFill}, {text: period},
+				{text: "Declared use", bold: true, fill: &headFill}, {text: c.use}},
+			{{text: "System", bold: true, fill: &headFill}, {text: systemName(rec)},
+				{text: "Tool", bold: true, fill: &headFill}, {text: tool}},
+		},
+		size: bodySize - 0.5,
+	})
+}
+
+// summary prints the overall verdict banner and one row per candidate.
+func (d *doc) summary(c *content) {
+	rec := c.rec
+	d.heading("Decision summary")
+	d.verdictBanner(c)
+	if len(rec.Candidates) == 0 {
+		d.body("The record lists no candidates.")
+		return
+	}
+	holm := false
+	for _, cand := range rec.Candidates {
+		if cand.AdjustedPValue != nil {
+			holm = true
+		}
+	}
+	cols := []column{
+		{head: "Candidate", w: 24},
+		{head: "Errors / labeled", w: 13, align: "R"},
+		{head: "Estimate", w: 12, align: "R"},
+		{head: "Upper bound (" + c.fields.BoundConfidence + ")", w: 14, align: "R"},
+		{head: "Ceiling", w: 11, align: "R"},
+		{head: "p-value", w: 13, align: "R"},
+	}
+	if holm {
+		cols = append(cols, column{head: "Adjusted p", w: 13, align: "R"})
+	}
+	cols = append(cols, column{head: "Verdict", w: 14, align: "C"}, column{head: "Reason", w: 22})
+	var rows [][]cell
+	for _, cand := range rec.Candidates {
+		row := []cell{
+			{text: cand.Name, bold: true},
+			{text: itoa(cand.Errors) + " / " + itoa(cand.Labeled)},
+			{text: pct(cand.Estimate)},
+			{text: pctUp(cand.UpperBound), bold: true},
+			{text: c.fields.Ceiling},
+			{text: prob(cand.PValue)},
+		}
+		if holm {
+			adj := "–"
+			if cand.AdjustedPValue != nil {
+				adj = prob(*cand.AdjustedPValue)
+			}
+			row = append(row, cell{text: adj})
+		}
+		row = append(row, verdictCell(cand.Verdict), cell{text: cand.Reason})
+		rows = append(rows, row)
+	}
+	d.drawTable(&table{title: "Decision summary", cols: cols, rows: rows, header: true})
+	d.note(precisionNote)
+}
+
+// verdictCell is a table cell that shows a verdict as a word on a colour.
+func verdictCell(v string) cell {
+	switch v {
+	case record.Accept:
+		return cell{text: v, bold: true, fill: &acceptColour, ink: &white}
+	case record.Reject:
+		return cell{text: v, bold: true, fill: &rejectColour, ink: &white}
+	}
+	if v == "" {
+		v = "none"
+	}
+	return cell{text: v, bold: true}
+}
+
+// verdictBanner prints the overall verdict in a coloured box.
+func (d *doc) verdictBanner(c *content) {
+	rec := c.rec
+	accepted := 0
+	for _, cand := range rec.Candidates {
+		if cand.Verdict == record.Accept {
+			accepted++
+		}
+	}
+	fill := mutedColour
+	word := rec.OverallVerdict
+	switch word {
+	case record.Accept:
+		fill = acceptColour
+	case record.Reject:
+		fill = rejectColour
+	case "":
+		word = "NO VERDICT"
+	}
+	need := "every candidate must be accepted"
+	if rec.Plan.Require == "any" {
+		need = "at least one candidate must be accepted"
+	}
+	detail := itoa(accepted) + " of " + itoa(len(rec.Candidates)) + " candidates accepted; " + need + "."
+	const h = 15.0
+	d.need(h + 2)
+	y := d.pdf.GetY()
+	d.fillColour(fill)
+	d.pdf.Rect(marginX, y, d.contentW(), h, "F")
+	d.textColour(white)
+	d.font("", smallSize)
+	d.pdf.SetXY(marginX+4, y+2)
+	d.pdf.CellFormat(50, 3.5, "OVERALL VERDICT", "", 0, "L", false, 0, "")
+	d.font("B", 17)
+	d.pdf.SetXY(marginX+4, y+5.5)
+	d.pdf.CellFormat(60, 8, word, "", 0, "L", false, 0, "")
+	d.font("", bodySize+0.5)
+	lines := d.wrap(detail, d.contentW()-74)
+	ly := y + (h-float64(len(lines))*lineH)/2
+	for _, l := range lines {
+		d.pdf.SetXY(marginX+70, ly)
+		d.pdf.CellFormat(d.contentW()-74, lineH, l, "", 0, "L", false, 0, "")
+		ly += lineH
+	}
+	d.textColour(inkColour)
+	d.pdf.SetXY(marginX, y+h+3)
+}
+
+// wordingBlocks prints wording text as paragraphs and bullets.
+func (d *doc) wordingBlocks(text string) {
+	for _, b := range blocksOf(text) {
+		if b.Bullet {
+			d.bullet(b.Text)
+		} else {
+			d.body(b.Text)
+		}
+	}
+}
+
+// joinNonEmpty joins the non-empty parts with sep.
+func joinNonEmpty(sep string, parts ...string) string {
+	var kept []string
+	for _, p := range parts {
+		if strings.TrimSpace(p) != "" {
+			kept = append(kept, p)
+		}
+	}
+	return strings.Join(kept, sep)
+}

@@ -1,0 +1,188 @@
+package pdfreport
+
+// column is one column of a table.
+type column struct {
+	head string
+	// w is the column's share of the table width (relative units).
+	w     float64
+	align string // "L", "C" or "R"
+}
+
+// cell is one table cell.
+type cell struct {
+	text  string
+	bold  bool
+	mono  bool
+	fill  *rgb // background; nil for the row's default
+	ink   *rgb // text colour; nil for the default
+	align string
+}
+
+// table is a table that breaks across pages with its header repeated.
+type table struct {
+	// title names the table in the "(continued)" line on later pages.
+	title  string
+	cols   []column
+	rows   [][]cell
+	size   float64 // font size; 0 for smallSize+0.5
+	header bool    // print the header row
+	// keyFill shades the first column like a header (for key/value
+	// tables).
+	keyFill bool
+	// width is the table width in mm; 0 for the content width.
+	width float64
+}
+
+const cellPadX = 1.6
+const cellPadY = 1.1
+
+func (t *table) fontSize() float64 {
+	if t.size > 0 {
+		return t.size
+	}
+	return smallSize + 0.5
+}
+
+// widths returns the columns' widths in mm.
+func (d *doc) widths(t *table) []float64 {
+	total := 0.0
+	for _, c := range t.cols {
+		total += c.w
+	}
+	tw := t.width
+	if tw == 0 {
+		tw = d.contentW()
+	}
+	ws := make([]float64, len(t.cols))
+	for i, c := range t.cols {
+		ws[i] = c.w / total * tw
+	}
+	return ws
+}
+
+// layoutRow wraps every cell of a row and returns the lines and the row
+// height.
+func (d *doc) layoutRow(t *table, ws []float64, texts []cell, boldAll bool) ([][]string, float64) {
+	lh := t.fontSize() * 0.46
+	lines := make([][]string, len(texts))
+	maxLines := 1
+	for i, c := range texts {
+		d.cellFont(t, c, boldAll)
+		lines[i] = d.wrap(c.text, ws[i]-2*cellPadX)
+		if len(lines[i]) > maxLines {
+			maxLines = len(lines[i])
+		}
+	}
+	return lines, float64(maxLines)*lh + 2*cellPadY
+}
+
+func (d *doc) cellFont(t *table, c cell, boldAll bool) {
+	switch {
+	case c.mono:
+		d.mono(t.fontSize() - 0.5)
+	case c.bold || boldAll:
+		d.font("B", t.fontSize())
+	default:
+		d.font("", t.fontSize())
+	}
+}
+
+func (t *table) headerCells() []cell {
+	hs := make([]cell, len(t.cols))
+	for i, c := range t.cols {
+		hs[i] = cell{text: c.head, align: c.align}
+	}
+	return hs
+}
+
+// drawRow draws one row at the cursor.
+func (d *doc) drawRow(t *table, ws []float64, cells []cell, lines [][]string, h float64, fill rgb, head bool) {
+	lh := t.fontSize() * 0.46
+	x0 := marginX
+	y := d.pdf.GetY()
+	x := x0
+	for i, c := range cells {
+		f := fill
+		if c.fill != nil {
+			f = *c.fill
+		} else if t.keyFill && i == 0 && !head {
+			f = headFill
+		}
+		d.fillColour(f)
+		d.drawColour(ruleColour)
+		d.pdf.Rect(x, y, ws[i], h, "FD")
+		d.cellFont(t, c, head || (t.keyFill && i == 0))
+		ink := inkColour
+		if c.ink != nil {
+			ink = *c.ink
+		}
+		d.textColour(ink)
+		align := c.align
+		if align == "" {
+			align = t.cols[i].align
+		}
+		if align == "" {
+			align = "L"
+		}
+		// Centre the cell's lines vertically in the row.
+		ty := y + (h-float64(len(lines[i]))*lh)/2
+		for _, l := range lines[i] {
+			d.pdf.SetXY(x+cellPadX, ty)
+			d.pdf.CellFormat(ws[i]-2*cellPadX, lh, l, "", 0, align, false, 0, "")
+			ty += lh
+		}
+		x += ws[i]
+	}
+	d.textColour(inkColour)
+	d.pdf.SetXY(x0, y+h)
+}
+
+// drawTable lays the table out, starting a new page (with the header and
+// a "continued" line) whenever the next row does not fit.
+func (d *doc) drawTable(t *table) {
+	ws := d.widths(t)
+	var headLines [][]string
+	var headH float64
+	if t.header {
+		headLines, headH = d.layoutRow(t, ws, t.headerCells(), true)
+	}
+	drawHead := func() {
+		if t.header {
+			d.drawRow(t, ws, t.headerCells(), headLines, headH, headFill, true)
+		}
+	}
+	for i, row := range t.rows {
+		lines, h := d.layoutRow(t, ws, row, false)
+		if i == 0 {
+			d.need(headH + h)
+			drawHead()
+		} else if d.need(h) {
+			if t.title != "" {
+				d.paragraph(t.title+" (continued)", "I", smallSize, smallLineH, 0, mutedColour)
+				d.space(0.8)
+			}
+			drawHead()
+		}
+		fill := white
+		if i%2 == 1 {
+			fill = zebraFill
+		}
+		d.drawRow(t, ws, row, lines, h, fill, false)
+	}
+	d.space(3)
+}
+
+// height returns the table's total height if drawn on one page.
+func (d *doc) tableHeight(t *table) float64 {
+	ws := d.widths(t)
+	h := 0.0
+	if t.header {
+		_, hh := d.layoutRow(t, ws, t.headerCells(), true)
+		h += hh
+	}
+	for _, row := range t.rows {
+		_, rh := d.layoutRow(t, ws, row, false)
+		h += rh
+	}
+	return h
+}
