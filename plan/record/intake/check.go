@@ -1,0 +1,361 @@
+package intake
+
+import (
+	"fmt"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"probity/plan"
+	"probity/plan/record"
+	"probity/plan/verdict"
+	"probity/sampling"
+)
+
+// Unsure is the label a labeler gives when they cannot decide.
+const Unsure = "unsure"
+
+// Options change how incomplete labeling is treated.
+type Options struct {
+	// AllowIncomplete counts every item left unlabeled or marked unsure
+	// (and not replaced by a spare) as an error for every candidate,
+	// instead of refusing the worksheet.
+	AllowIncomplete bool
+}
+
+// Result is a checked intake: the items to judge, the design, the
+// deviations from the plan and the fingerprints of every input.
+type Result struct {
+	Items        []verdict.Item
+	Design       verdict.Design
+	Deviations   record.Deviations
+	Fingerprints record.Fingerprints
+	// Counted is the number of unlabeled or unsure items counted as
+	// errors (only with AllowIncomplete).
+	Counted int
+	// order is each item's ledger row while the items are collected.
+	order []int
+}
+
+// maxListed is how many differing rows an error message names.
+const maxListed = 5
+
+// Check validates the labeled worksheet against the plan and the draw
+// folder and returns the items to judge. planFP is the plan file's
+// SHA-256.
+func Check(p *plan.File, planFP string, f *Folder, l *Labels, opts Options) (*Result, error) {
+	mpath := filepath.Join(f.Dir, sampling.ManifestFile)
+	lpath := filepath.Join(f.Dir, sampling.LedgerFile)
+	m := f.Manifest
+	if m.PlanFingerprint != planFP {
+		return nil, &sampling.InputError{File: mpath, Column: "plan_fingerprint",
+			Msg:  fmt.Sprintf("the draw was made from the plan with SHA-256 %s…, not from this plan (%s…)", short(m.PlanFingerprint), short(planFP)),
+			Hint: "pass the plan file the draw was made with"}
+	}
+	strata, index, err := designFromManifest(m, mpath)
+	if err != nil {
+		return nil, err
+	}
+	if err := checkLedger(f.Ledger, m, index, lpath); err != nil {
+		return nil, err
+	}
+	if err := compareRows(f, l); err != nil {
+		return nil, err
+	}
+	res := &Result{Fingerprints: record.Fingerprints{
+		Plan: planFP, Log: m.Log.SHA256, Manifest: record.SHA256(f.ManifestBytes),
+		Ledger: record.SHA256(f.LedgerBytes), Worksheet: f.WorksheetSHA256, Labels: record.SHA256(l.Bytes),
+	}}
+	if err := res.judgeable(p, f, l, strata, index, opts); err != nil {
+		return nil, err
+	}
+	res.Design = verdict.Design{Strata: strata}
+	if f.LabeledInPlace {
+		res.Deviations.Notes = append(res.Deviations.Notes, fmt.Sprintf("%s in the draw folder was labeled in place; with its labels removed it is the file the draw wrote", sampling.WorksheetFile))
+	}
+	return res, nil
+}
+
+func short(h string) string {
+	if len(h) > 12 {
+		return h[:12]
+	}
+	return h
+}
+
+// designFromManifest builds the strata (with n_h = 0, filled in later) and
+// an index from label to position.
+func designFromManifest(m *sampling.Manifest, mpath string) ([]verdict.Stratum, map[string]int, error) {
+	index := map[string]int{}
+	var strata []verdict.Stratum
+	for i, s := range m.Strata {
+		if _, dup := index[s.Label]; dup {
+			return nil, nil, &sampling.InputError{File: mpath, Column: fmt.Sprintf("strata[%d].label", i), Msg: fmt.Sprintf("stratum %q is listed twice", s.Label)}
+		}
+		if s.Population < 1 || s.Sample < 0 || int64(s.Sample) > s.Population {
+			return nil, nil, &sampling.InputError{File: mpath, Column: fmt.Sprintf("strata[%d]", i), Msg: fmt.Sprintf("stratum %q has population %d and sample %d", s.Label, s.Population, s.Sample)}
+		}
+		index[s.Label] = i
+		strata = append(strata, verdict.Stratum{Label: s.Label, Population: s.Population})
+	}
+	if len(strata) == 0 {
+		return nil, nil, &sampling.InputError{File: mpath, Column: "strata", Msg: "the manifest lists no strata"}
+	}
+	return strata, index, nil
+}
+
+// checkLedger checks the ledger against the manifest's strata: every row's
+// stratum is listed with the same N_h and n_h, and each stratum holds n_h
+// sample rows.
+func checkLedger(rows []sampling.LedgerRow, m *sampling.Manifest, index map[string]int, lpath string) error {
+	counts := make([]int, len(m.Strata))
+	for _, r := range rows {
+		h, ok := index[r.Stratum]
+		if !ok {
+			return &sampling.InputError{File: lpath, Column: "stratum", Msg: fmt.Sprintf("item %d: stratum %q is not in the manifest", r.Item, r.Stratum)}
+		}
+		s := m.Strata[h]
+		if r.StratumSize != s.Population || r.StratumSample != s.Sample {
+			return &sampling.InputError{File: lpath, Column: "stratum_size", Msg: fmt.Sprintf("item %d: stratum %q has N_h = %d, n_h = %d where the manifest has %d, %d", r.Item, r.Stratum, r.StratumSize, r.StratumSample, s.Population, s.Sample)}
+		}
+		if !r.Spare {
+			counts[h]++
+		}
+	}
+	for h, s := range m.Strata {
+		if counts[h] != s.Sample {
+			return &sampling.InputError{File: lpath, Msg: fmt.Sprintf("stratum %q has %d sample rows where the manifest has n_h = %d", s.Label, counts[h], s.Sample)}
+		}
+	}
+	return nil
+}
+
+// compareRows checks that the labeled worksheet has the same columns, the
+// same items and record ids in the same order, and the same shown values
+// as the draw's worksheet and ledger, and lists what differs.
+func compareRows(f *Folder, l *Labels) error {
+	wshow, lshow := showColumns(f.WorksheetHeader), showColumns(l.Header)
+	if strings.Join(wshow, "\x00") != strings.Join(lshow, "\x00") {
+		return &sampling.InputError{File: l.Path, Line: 1,
+			Msg:  fmt.Sprintf("the shown columns are %s, but the draw's worksheet has %s", list(lshow), list(wshow)),
+			Hint: "label a copy of the worksheet.csv written by probity draw without adding, removing or renaming columns"}
+	}
+	byID := map[string]int{}
+	for i, r := range f.Ledger {
+		byID[r.RecordID] = i
+	}
+	seen := map[string]bool{}
+	var added, altered []string
+	for i, r := range l.Rows {
+		li, ok := byID[r.RecordID]
+		if !ok {
+			added = append(added, fmt.Sprintf("line %d (item %d, record_id %q)", r.Line, r.Item, r.RecordID))
+			continue
+		}
+		seen[r.RecordID] = true
+		lr := f.Ledger[li]
+		switch {
+		case lr.Item != r.Item:
+			altered = append(altered, fmt.Sprintf("line %d: record_id %q has item %d, the ledger item %d", r.Line, r.RecordID, r.Item, lr.Item))
+		case li < len(f.Worksheet) && strings.Join(f.Worksheet[li].Show, "\x00") != strings.Join(r.Show, "\x00"):
+			altered = append(altered, fmt.Sprintf("line %d: item %d's shown values differ from the draw's worksheet", r.Line, r.Item))
+		case i != li:
+			altered = append(altered, fmt.Sprintf("line %d: item %d is out of order (the ledger has it at row %d)", r.Line, r.Item, li+1))
+		}
+	}
+	var missing []string
+	for _, r := range f.Ledger {
+		if !seen[r.RecordID] {
+			missing = append(missing, fmt.Sprintf("item %d (record_id %q)", r.Item, r.RecordID))
+		}
+	}
+	if len(added)+len(missing)+len(altered) == 0 {
+		if len(f.Worksheet) != len(f.Ledger) {
+			return &sampling.InputError{File: filepath.Join(f.Dir, sampling.WorksheetFile), Msg: fmt.Sprintf("%d rows where the ledger has %d", len(f.Worksheet), len(f.Ledger))}
+		}
+		return nil
+	}
+	var parts []string
+	if len(missing) > 0 {
+		parts = append(parts, fmt.Sprintf("%d missing: %s", len(missing), first(missing)))
+	}
+	if len(added) > 0 {
+		parts = append(parts, fmt.Sprintf("%d added: %s", len(added), first(added)))
+	}
+	if len(altered) > 0 {
+		parts = append(parts, fmt.Sprintf("%d altered: %s", len(altered), first(altered)))
+	}
+	return &sampling.InputError{File: l.Path,
+		Msg:  "rows differ from the ledger — " + strings.Join(parts, "; "),
+		Hint: "label every row of the draw's worksheet.csv in place, without adding, removing, sorting or editing rows"}
+}
+
+func first(s []string) string {
+	if len(s) <= maxListed {
+		return strings.Join(s, ", ")
+	}
+	return strings.Join(s[:maxListed], ", ") + fmt.Sprintf(" and %d more", len(s)-maxListed)
+}
+
+func list(s []string) string {
+	if len(s) == 0 {
+		return "(none)"
+	}
+	return strings.Join(s, ", ")
+}
+
+// showColumns returns the shown columns of a worksheet header.
+func showColumns(h []string) []string {
+	end := len(h)
+	if end > 0 && h[end-1] == "labeler" {
+		end--
+	}
+	if end < 4 {
+		return nil
+	}
+	return h[2 : end-2]
+}
+
+// judgeable checks the labels and the use of spares, and builds the items.
+func (res *Result) judgeable(p *plan.File, f *Folder, l *Labels, strata []verdict.Stratum, index map[string]int, opts Options) error {
+	classes := map[string]bool{}
+	for _, c := range p.Classes {
+		classes[c] = true
+	}
+	// Labels by ledger row (compareRows established a 1:1 match in order).
+	type row struct {
+		lr    sampling.LedgerRow
+		wr    sampling.WorksheetRow
+		state int // 0 labeled, 1 blank, 2 unsure
+	}
+	const (
+		labeled = iota
+		blank
+		unsure
+	)
+	rows := make([]row, len(f.Ledger))
+	for i, lr := range f.Ledger {
+		wr := l.Rows[i]
+		lab := strings.TrimSpace(wr.Label)
+		st := labeled
+		switch {
+		case lab == "":
+			st = blank
+		case strings.EqualFold(lab, Unsure):
+			st = unsure
+		case !classes[lab]:
+			return &sampling.InputError{File: l.Path, Line: wr.Line, Column: "label",
+				Msg:  fmt.Sprintf("label %q (item %d) is not one of the plan's classes (%s), blank or %q", wr.Label, wr.Item, strings.Join(p.Classes, ", "), Unsure),
+				Hint: fmt.Sprintf("use exactly one of: %s; leave the label blank or write %q when the item cannot be labeled", strings.Join(p.Classes, ", "), Unsure)}
+		}
+		wr.Label = lab
+		rows[i] = row{lr: lr, wr: wr, state: st}
+	}
+	// Per stratum: the sample rows in ledger order, the spares in key
+	// order (the order they were drawn in).
+	type bucket struct{ main, spares []int }
+	buckets := make([]bucket, len(strata))
+	for i, r := range rows {
+		h := index[r.lr.Stratum]
+		if r.lr.Spare {
+			buckets[h].spares = append(buckets[h].spares, i)
+		} else {
+			buckets[h].main = append(buckets[h].main, i)
+		}
+	}
+	dev := &res.Deviations
+	var unresolved []string
+	for h := range buckets {
+		b := &buckets[h]
+		sort.SliceStable(b.spares, func(x, y int) bool { return rows[b.spares[x]].lr.Key < rows[b.spares[y]].lr.Key })
+		var deficits []int // main rows to replace, in ledger order
+		for _, i := range b.main {
+			r := rows[i]
+			switch r.state {
+			case labeled:
+				res.add(i, r.lr, r.wr.Label, h, false)
+			case blank:
+				dev.Unlabeled = append(dev.Unlabeled, r.lr.RecordID)
+				deficits = append(deficits, i)
+			case unsure:
+				dev.Unsure = append(dev.Unsure, r.lr.RecordID)
+				deficits = append(deficits, i)
+			}
+		}
+		need := len(deficits)
+		firstBlank := -1
+		for _, i := range b.spares {
+			r := rows[i]
+			if r.state == blank {
+				if firstBlank < 0 {
+					firstBlank = i
+				}
+				continue
+			}
+			if firstBlank >= 0 {
+				prev := rows[firstBlank]
+				return &sampling.InputError{File: l.Path, Line: r.wr.Line, Column: "label",
+					Msg:  fmt.Sprintf("spare item %d of stratum %q is labeled, but the spare before it (item %d) is not: spares must be used in order", r.wr.Item, strata[h].Label, prev.wr.Item),
+					Hint: fmt.Sprintf("label spare item %d first, or clear the label of item %d", prev.wr.Item, r.wr.Item)}
+			}
+			if need == 0 {
+				return &sampling.InputError{File: l.Path, Line: r.wr.Line, Column: "label",
+					Msg:  fmt.Sprintf("spare item %d of stratum %q is labeled, but no unlabeled or unsure item of that stratum is left for it to replace", r.wr.Item, strata[h].Label),
+					Hint: "spares only replace items that cannot be labeled; clear the spare's label"}
+			}
+			dev.SparesUsed = append(dev.SparesUsed, r.lr.RecordID)
+			if r.state == unsure {
+				dev.Unsure = append(dev.Unsure, r.lr.RecordID)
+				continue // the spare itself could not be labeled; the next one may replace the item
+			}
+			res.add(i, r.lr, r.wr.Label, h, false)
+			need--
+		}
+		for _, i := range deficits[len(deficits)-need:] {
+			r := rows[i]
+			unresolved = append(unresolved, fmt.Sprintf("%d", r.wr.Item))
+			if opts.AllowIncomplete {
+				res.add(i, r.lr, "", h, true)
+				res.Counted++
+			}
+		}
+	}
+	if len(unresolved) > 0 && !opts.AllowIncomplete {
+		return &sampling.InputError{File: l.Path, Column: "label",
+			Msg:  fmt.Sprintf("%d items are unlabeled or unsure and no spare replaces them (items %s)", len(unresolved), first(unresolved)),
+			Hint: "label them, label the stratum's spares in order, or pass --allow-incomplete to count each as an error for every candidate"}
+	}
+	if res.Counted > 0 {
+		dev.AllowIncomplete = true
+		dev.Notes = append(dev.Notes, fmt.Sprintf("%d unlabeled or unsure items were counted as errors for every candidate (--allow-incomplete)", res.Counted))
+	}
+	// Judge the items in ledger order (the order they were drawn in).
+	perm := make([]int, len(res.Items))
+	for i := range perm {
+		perm[i] = i
+	}
+	sort.Slice(perm, func(a, b int) bool { return res.order[perm[a]] < res.order[perm[b]] })
+	sorted := make([]verdict.Item, len(perm))
+	for i, k := range perm {
+		sorted[i] = res.Items[k]
+	}
+	res.Items, res.order = sorted, nil
+	for i := range strata {
+		strata[i].Sample = 0
+	}
+	for _, it := range res.Items {
+		strata[it.Stratum].Sample++
+	}
+	for h, s := range strata {
+		if s.Sample != f.Manifest.Strata[h].Sample {
+			return &sampling.InputError{File: l.Path, Msg: fmt.Sprintf("stratum %q has %d judged items where the draw has n_h = %d", s.Label, s.Sample, f.Manifest.Strata[h].Sample)}
+		}
+	}
+	return nil
+}
+
+func (res *Result) add(row int, lr sampling.LedgerRow, label string, h int, missing bool) {
+	res.order = append(res.order, row)
+	res.Items = append(res.Items, verdict.Item{RecordID: lr.RecordID, Stratum: h, Label: label, Missing: missing,
+		Predictions: append([]string(nil), lr.Predictions...)})
+}
