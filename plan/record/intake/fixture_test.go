@@ -69,8 +69,8 @@ func newDrawFixture(t *testing.T) *drawFixture {
 	}
 	fx.folder = &sampling.Folder{
 		Manifest: &sampling.Manifest{Format: sampling.ManifestFormat, ToolVersion: "test", PlanFingerprint: fx.planFP, Seed: p.Seed, SelectionSeed: p.Seed,
-			Log:        sampling.LogInfo{Path: "log.csv", SHA256: "ab" + fmt.Sprintf("%062d", 0), Rows: 1000, Format: "csv", Compression: "none"},
-			IDColumn:   "record_id", StrataColumns: []string{"region"}, ShowColumns: []string{"text"},
+			Log:      sampling.LogInfo{Path: "log.csv", SHA256: "ab" + fmt.Sprintf("%062d", 0), Rows: 1000, Format: "csv", Compression: "none"},
+			IDColumn: "record_id", StrataColumns: []string{"region"}, ShowColumns: []string{"text"},
 			Allocation: sampling.AllocationInfo{Rule: "proportional", Spare: 2}, Strata: strata, SampleSize: 29, Spares: 4},
 		Candidates: []string{"m1", "m2"}, Show: []string{"text"}, Ledger: ledger, Worksheet: ws,
 	}
