@@ -130,6 +130,13 @@ type SequentialRule struct {
 	// numbers at p0 and at the ceiling.
 	ASNAtAnticipated float64 `yaml:"asn_at_anticipated"`
 	ASNAtCeiling     float64 `yaml:"asn_at_ceiling"`
+	// FixedSampleSize and FixedAcceptanceNumber are the fixed (n, c) plan
+	// for the same risks, which the sequential plan is compared with. (For
+	// a sequential plan, File.Rule holds the truncation point as its
+	// sample size — what a draw must select — with the final acceptance
+	// number and the sequential plan's exact risks.)
+	FixedSampleSize       int `yaml:"fixed_sample_size,omitempty"`
+	FixedAcceptanceNumber int `yaml:"fixed_acceptance_number,omitempty"`
 }
 
 // Candidate is one pre-registered model or threshold. Exactly one of Column

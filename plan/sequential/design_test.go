@@ -95,33 +95,36 @@ func TestSearchBadSpec(t *testing.T) {
 
 // TestASNTable prints, with -table, the ASN of the searched sequential
 // plan as a fraction of the fixed plan's n for several plans (anticipated
-// error = ceiling/2, confidence 0.95, producer's risk 0.10, M = 1 and 10
-// under Bonferroni). Without -table it runs the two smallest rows only and
-// checks the risks.
+// error = ceiling/2 and ceiling/5, confidence 0.95, producer's risk 0.10,
+// M = 1 and 10 under Bonferroni). Without -table it runs the cheapest rows
+// only. Every row's risks are re-checked.
 func TestASNTable(t *testing.T) {
 	ceilings := []float64{0.001, 0.005, 0.01, 0.02, 0.05}
 	ms := []int{1, 10}
+	ratios := []float64{2, 5}
 	if !*table {
 		ceilings, ms = []float64{0.05}, []int{1, 10}
 	}
 	var b strings.Builder
 	fmt.Fprintf(&b, "\n| ceiling | p0 | M | fixed n (c) | max labels T | ASN at p0 | ASN/n | ASN at ceiling | ASN/n | consumer's risk | producer's risk |\n|---|---|---|---|---|---|---|---|---|---|---|\n")
-	for _, M := range ms {
-		for _, p1 := range ceilings {
-			p0 := p1 / 2
-			alpha := 0.05 / float64(M)
-			n, c := fixedPlan(t, p0, p1, alpha, 0.10)
-			spec := Spec{Ceiling: p1, Anticipated: p0, ConsumerRisk: alpha, ProducerRisk: 0.10, FixedSampleSize: n}
-			d, err := Search(spec)
-			if err != nil {
-				t.Fatal(err)
-			}
-			checkDesign(t, spec, d)
-			fmt.Fprintf(&b, "| %g | %g | %d | %d (%d) | %d | %.0f | %.3f | %.0f | %.3f | %.5f | %.5f |\n", p1, p0, M, n, c,
-				d.Rule.MaxSampleSize, d.ASNAtAnticipated, d.ASNAtAnticipated/float64(n), d.ASNAtCeiling, d.ASNAtCeiling/float64(n),
-				d.ConsumerRisk, d.ProducerRisk)
-			if d.ASNAtAnticipated >= float64(n) || d.ASNAtCeiling >= float64(n) || math.IsNaN(d.ASNAtCeiling) {
-				t.Errorf("ceiling %v M %d: sequential ASN not below fixed n", p1, M)
+	for _, ratio := range ratios {
+		for _, M := range ms {
+			for _, p1 := range ceilings {
+				p0 := p1 / ratio
+				alpha := 0.05 / float64(M)
+				n, c := fixedPlan(t, p0, p1, alpha, 0.10)
+				spec := Spec{Ceiling: p1, Anticipated: p0, ConsumerRisk: alpha, ProducerRisk: 0.10, FixedSampleSize: n}
+				d, err := Search(spec)
+				if err != nil {
+					t.Fatal(err)
+				}
+				checkDesign(t, spec, d)
+				fmt.Fprintf(&b, "| %g | %g | %d | %d (%d) | %d | %.0f | %.3f | %.0f | %.3f | %.5f | %.5f |\n", p1, p0, M, n, c,
+					d.Rule.MaxSampleSize, d.ASNAtAnticipated, d.ASNAtAnticipated/float64(n), d.ASNAtCeiling, d.ASNAtCeiling/float64(n),
+					d.ConsumerRisk, d.ProducerRisk)
+				if d.ASNAtAnticipated >= float64(n) || d.ASNAtCeiling >= float64(n) || math.IsNaN(d.ASNAtCeiling) {
+					t.Errorf("ceiling %v M %d: sequential ASN not below fixed n", p1, M)
+				}
 			}
 		}
 	}

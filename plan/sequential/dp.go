@@ -103,3 +103,20 @@ func (b *bounds) evaluateUntil(m Model, acceptLimit float64) Performance {
 	}
 	return perf
 }
+
+// OC returns the exact probability of acceptance of rule r at each error
+// rate in ps (binomial model), for plotting the operating characteristic.
+func OC(r *plan.SequentialRule, ps []float64) ([]float64, error) {
+	b, err := newBounds(r)
+	if err != nil {
+		return nil, err
+	}
+	out := make([]float64, len(ps))
+	for i, p := range ps {
+		if err := checkModel(Binomial{P: p}); err != nil {
+			return nil, err
+		}
+		out[i] = b.evaluate(Binomial{P: p}).Accept
+	}
+	return out, nil
+}
