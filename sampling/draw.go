@@ -67,7 +67,7 @@ func Draw(in DrawInput) (*Folder, error) {
 	}
 	n := p.Rule.SampleSize
 	if in.Double < 0 || in.Double > n {
-		return nil, fmt.Errorf("%w: --double %d is outside 0…%d, the sample size", ErrInput, in.Double, n)
+		return nil, &OptionError{Option: fmt.Sprintf("--double %d", in.Double), Msg: fmt.Sprintf("must be between 0 and the sample size %d", n)}
 	}
 	if err := checkShow(in); err != nil {
 		return nil, err
@@ -79,6 +79,10 @@ func Draw(in DrawInput) (*Folder, error) {
 	}
 	// Kept columns: the shown ones, then each candidate's column.
 	keep := append([]string{}, in.Show...)
+	roles := make([]string, len(keep))
+	for i := range roles {
+		roles[i] = "shown"
+	}
 	candCol := make([]int, len(p.Candidates))
 	for i, c := range p.Candidates {
 		col := c.Columns()[0]
@@ -86,6 +90,7 @@ func Draw(in DrawInput) (*Folder, error) {
 		if j < 0 {
 			j = len(keep)
 			keep = append(keep, col)
+			roles = append(roles, "candidate "+c.Name)
 		}
 		candCol[i] = j
 	}
@@ -95,7 +100,7 @@ func Draw(in DrawInput) (*Folder, error) {
 	}
 	res, err := Scan(in.Log, ScanSpec{
 		Name: name, Format: in.Format, Seed: selection, IDColumn: in.IDColumn,
-		StrataColumns: in.StrataColumns, Bands: in.Bands, Where: in.Where, Keep: keep,
+		StrataColumns: in.StrataColumns, Bands: in.Bands, Where: in.Where, Keep: keep, KeepRoles: roles,
 		Capacity: n + in.Alloc.Spare + capacityMargin, Dedupe: in.Dedupe,
 		Workers: in.Workers, ChunkSize: in.ChunkSize, Progress: in.Progress,
 	})
@@ -236,24 +241,24 @@ func checkShow(in DrawInput) error {
 		why := ""
 		switch {
 		case s == in.IDColumn:
-			why = "is the id column, which the worksheet already has"
+			why = "this is the id column, which the worksheet already has"
 		case indexOf(in.StrataColumns, s) >= 0:
-			why = "is a strata column; labelers must not see the stratum"
+			why = "this is a strata column; labelers must not see the stratum"
 		case seen[s]:
-			why = "is listed twice"
+			why = "the column is listed twice"
 		}
 		for _, b := range in.Bands {
 			if b.Column == s {
-				why = "is a band (score) column; labelers must not see the model's score"
+				why = "this is a band (score) column; labelers must not see the model's score"
 			}
 		}
 		for _, c := range in.Plan.Candidates {
 			if c.Columns()[0] == s {
-				why = fmt.Sprintf("holds candidate %s's prediction or score; labelers must not see the model's answer", c.Name)
+				why = fmt.Sprintf("this column holds candidate %s's prediction or score; labelers must not see the model's answer", c.Name)
 			}
 		}
 		if why != "" {
-			return fmt.Errorf("%w: --show %s: the column %s", ErrInput, s, why)
+			return &OptionError{Option: "--show " + s, Msg: why}
 		}
 		seen[s] = true
 	}

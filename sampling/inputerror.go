@@ -64,3 +64,16 @@ func columnList(cols []string) string {
 	}
 	return strings.Join(cols, ", ")
 }
+
+// OptionError is a draw option that cannot be used as given (for example
+// a --show column that would reveal the model's answer). It wraps ErrInput.
+type OptionError struct {
+	Option string // e.g. "--show model_a"
+	Msg    string
+}
+
+// Error formats the error as "OPTION: MSG".
+func (e *OptionError) Error() string { return e.Option + ": " + e.Msg }
+
+// Unwrap returns ErrInput.
+func (e *OptionError) Unwrap() error { return ErrInput }

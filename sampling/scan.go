@@ -32,8 +32,11 @@ type ScanSpec struct {
 	Bands         []Band
 	// Where keeps only the rows matching every filter (the scope).
 	Where []Filter
-	// Keep lists the columns whose values are kept for selected rows.
-	Keep []string
+	// Keep lists the columns whose values are kept for selected rows;
+	// KeepRoles, if set, names their roles in messages ("shown",
+	// "candidate NAME").
+	Keep      []string
+	KeepRoles []string
 	// Capacity is how many rows with the smallest keys are kept per
 	// stratum; it must be at least the largest n_h + spares any
 	// allocation can give (n + spare is always enough).
@@ -498,8 +501,12 @@ func (s *scanner) compile() error {
 		}
 		s.filters = append(s.filters, cf)
 	}
-	for _, c := range s.spec.Keep {
-		sl, err := slot(c, "")
+	for i, c := range s.spec.Keep {
+		role := "kept"
+		if i < len(s.spec.KeepRoles) {
+			role = s.spec.KeepRoles[i]
+		}
+		sl, err := slot(c, role)
 		if err != nil {
 			return err
 		}
