@@ -69,12 +69,13 @@ func (d Dialect) exactMod(a, b string) string {
 }
 
 // matches is a regular-expression match of a text expression against a
-// pattern written without single quotes.
+// pattern (written as a literal by QuoteLiteral).
 func (d Dialect) matches(expr, pattern string) string {
+	lit, _ := d.QuoteLiteral(pattern)
 	if d == DuckDB {
-		return "regexp_full_match(" + expr + ", '" + pattern + "')"
+		return "regexp_full_match(" + expr + ", " + lit + ")"
 	}
-	return "(" + expr + " ~ '" + pattern + "')"
+	return "(" + expr + " ~ " + lit + ")"
 }
 
 // contains tests whether a text expression holds a literal substring

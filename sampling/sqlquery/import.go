@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"slices"
+	"strings"
 
 	"probity/plan"
 	"probity/sampling"
@@ -27,8 +28,10 @@ type Result struct {
 	// `probity draw --sql` printed for it) and QuerySHA256 its SHA-256.
 	Query       string
 	QuerySHA256 string
-	// TableRows is the number of rows the query read.
+	// TableRows is the number of rows the query read; InScope those the
+	// --where filters kept (the lot of a finite-population plan).
 	TableRows int64
+	InScope   int64
 	// Strata is the allocation, sorted by label.
 	Strata []sampling.StratumAllocation
 	// Items holds, per stratum label, the rows selected, in key order:
@@ -80,8 +83,12 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	if len(t.header)-fixedColumns != nValues {
 		return nil, &sampling.InputError{File: path, Line: 1, Msg: fmt.Sprintf("%d value columns, but the draw row lists %d", len(t.header)-fixedColumns, nValues)}
 	}
-	if err := checkIDRows(t); err != nil {
+	if res.InScope, err = checkIDRows(t); err != nil {
 		return nil, err
+	}
+	if pop := p.Inputs.Population; pop > 0 && res.Spec.Period == "" && res.InScope != pop {
+		return nil, withHint(&sampling.InputError{File: path, Msg: fmt.Sprintf("%d rows of %s are in scope but the plan is for a lot of %d (inputs.population)", res.InScope, res.Spec.Table, pop)},
+			fmt.Sprintf("a finite-lot plan judges exactly one lot: plan again with --population %d, or draw with --period LABEL to take this table as the period's lot", res.InScope))
 	}
 	if err := res.checkStrata(t); err != nil {
 		return nil, err
@@ -129,37 +136,37 @@ func checkDrawRow(t *resultTable, p *plan.File, fingerprint string) (*Spec, erro
 	return &s, nil
 }
 
-// checkIDRows refuses a table with empty or repeated ids, as the draw
-// from a file does (a draw inside the engine has no log order in which to
-// keep a first copy).
-func checkIDRows(t *resultTable) error {
+// checkIDRows reads the rows that count the table's rows in scope, its
+// empty and repeated ids and its values a draw from a file would refuse,
+// and refuses the result when there are any; it returns the rows in scope.
+// Repeated ids are refused wherever they are (a draw inside the engine has
+// no log order in which to keep a first copy).
+func checkIDRows(t *resultTable) (int64, error) {
 	counts := map[string]int64{}
 	var dupLines []int
 	var dupExamples []string
 	for i, row := range t.rows {
 		switch row[colKind] {
-		case KindEmptyIDs, KindDuplicateIDs:
+		case KindInScope, KindEmptyIDs, KindDuplicateIDs:
 			n, err := t.int64At(i, colStratumSize)
 			if err != nil {
-				return err
+				return 0, err
 			}
 			counts[row[colKind]] = n
 		case KindDuplicateID:
 			dupLines = append(dupLines, t.lines[i])
 			dupExamples = append(dupExamples, fmt.Sprintf("%q (%s times)", row[colRecordID], row[colStratumSize]))
+		case KindBadValue:
+			return 0, badValueError(t, i)
 		}
 	}
-	for _, k := range []string{KindEmptyIDs, KindDuplicateIDs} {
+	for _, k := range []string{KindInScope, KindEmptyIDs, KindDuplicateIDs} {
 		if _, ok := counts[k]; !ok {
-			return &sampling.InputError{File: t.name, Msg: "the " + k + " row is missing", Hint: "save the whole result of the query"}
+			return 0, &sampling.InputError{File: t.name, Msg: "the " + k + " row is missing", Hint: "save the whole result of the query"}
 		}
 	}
-	s := ""
 	if n := counts[KindEmptyIDs]; n > 0 {
-		if n > 1 {
-			s = "s"
-		}
-		return withHint(&sampling.InputError{File: t.name, Column: "record_id", Msg: fmt.Sprintf("the table has %d row%s whose id is NULL or empty", n, s)},
+		return 0, withHint(&sampling.InputError{File: t.name, Column: "record_id", Msg: fmt.Sprintf("the table has %d %s whose id is NULL or empty", n, plural(n, "row", "rows"))},
 			"every row needs an id; fill them in or leave those rows out of the table or view")
 	}
 	if n := counts[KindDuplicateIDs]; n > 0 || len(dupExamples) > 0 {
@@ -167,10 +174,42 @@ func checkIDRows(t *resultTable) error {
 		if len(dupLines) > 0 {
 			line = dupLines[0]
 		}
-		return withHint(&sampling.InputError{File: t.name, Line: line, Column: "record_id", Msg: fmt.Sprintf("%d ids occur more than once in the table, e.g. %s", n, joinList(dupExamples))},
+		return 0, withHint(&sampling.InputError{File: t.name, Line: line, Column: "record_id", Msg: fmt.Sprintf("%d %s more than once in the table, e.g. %s", n, plural(n, "id occurs", "ids occur"), joinList(dupExamples))},
 			"ids must be unique; a draw inside the engine cannot keep a first copy (draw from an export with --dedupe first)")
 	}
-	return nil
+	return counts[KindInScope], nil
+}
+
+// badValueError describes a bad_value row: rows in scope whose stratum or
+// band value a draw from a file refuses.
+func badValueError(t *resultTable, i int) error {
+	row := t.rows[i]
+	n := row[colStratumSize]
+	what, col, _ := strings.Cut(row[colDetail], ":")
+	rows := "rows in scope have"
+	if n == "1" {
+		rows = "row in scope has"
+	}
+	e := &sampling.InputError{File: t.name, Line: t.lines[i], Column: "detail"}
+	switch what {
+	case "strata":
+		e.Msg = fmt.Sprintf("column %s: %s %s a value holding a |, which separates stratum values in labels (first id %q)", col, n, rows, row[colRecordID])
+		e.Hint = "stratify by a column whose values hold no |"
+	case "band":
+		e.Msg = fmt.Sprintf("band column %s: %s %s a value that is not a number in [0, 1] (first id %q; NULL reads as %s)", col, n, rows, row[colRecordID], NullText)
+		e.Hint = "a band splits a score in [0, 1]; leave the other rows out with --where or a view"
+	default:
+		e.Msg = fmt.Sprintf("unknown problem %q", row[colDetail])
+	}
+	return e
+}
+
+// plural picks the singular or plural wording for n.
+func plural(n int64, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
 }
 
 // withHint sets an error's hint.

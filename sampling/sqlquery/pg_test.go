@@ -73,17 +73,21 @@ func (s *pgServer) createTestDB() error {
 	return err
 }
 
-// run executes an SQL script through psql (read from its standard input)
-// with ON_ERROR_STOP and returns what psql wrote to stdout. Extra psql
+// run executes an SQL script through psql with ON_ERROR_STOP and returns
+// what psql wrote to stdout. Without stdin the script is read from psql's
+// standard input; with stdin the script is one statement given with -c
+// (a COPY … FROM STDIN, which then reads stdin to its end). Extra psql
 // arguments (e.g. --csv) come before the script.
 func (s *pgServer) run(script string, stdin io.Reader, args ...string) ([]byte, error) {
-	in := io.Reader(strings.NewReader(script + "\n"))
-	if stdin != nil {
-		// COPY … FROM STDIN reads the rows that follow the statement.
-		in = io.MultiReader(in, stdin, strings.NewReader("\\.\n"))
-	}
 	argv := append([]string{"-h", s.host, "-U", s.user, "-X", "-q", "-v", "ON_ERROR_STOP=1", "-d", s.db}, args...)
-	cmd := exec.Command(s.psql, append(argv, "-f", "-")...)
+	in := stdin
+	if stdin == nil {
+		argv = append(argv, "-f", "-")
+		in = strings.NewReader(script + "\n")
+	} else {
+		argv = append(argv, "-c", script)
+	}
+	cmd := exec.Command(s.psql, argv...)
 	cmd.Stdin = in
 	var out, errb bytes.Buffer
 	cmd.Stdout = &out

@@ -4,14 +4,18 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+
+	"probity/sampling"
 )
 
 // Result kinds: the value of the first column of each result row.
 const (
-	KindDraw         = "draw"          // one row: the Spec (detail) and the table's row count
+	KindDraw         = "draw"          // one row: the Spec (detail), the table's rows, Σ n_h, Σ spares
+	KindInScope      = "in_scope"      // one row: rows left by --where
 	KindEmptyIDs     = "empty_ids"     // one row: rows whose id is NULL or empty
-	KindDuplicateIDs = "duplicate_ids" // one row: ids that occur more than once
+	KindDuplicateIDs = "duplicate_ids" // one row: ids in scope that occur more than once
 	KindDuplicateID  = "duplicate_id"  // up to 3 rows: such an id and its count
+	KindBadValue     = "bad_value"     // per problem: rows a draw from a file would refuse
 	KindStratum      = "stratum"       // one row per stratum: N_h, n_h, spares
 	KindItem         = "item"          // one row per selected item or spare
 )
@@ -47,7 +51,7 @@ func Query(s *Spec) (string, error) {
 	}
 	detailLit, err := d.QuoteLiteral(string(detail))
 	if err != nil {
-		return "", err
+		return "", fmt.Errorf("%w: %v", ErrSpec, err)
 	}
 	seedLit, err := d.QuoteLiteral(s.SelectionSeed + ":")
 	if err != nil {
@@ -57,45 +61,55 @@ func Query(s *Spec) (string, error) {
 	if err != nil {
 		return "", err
 	}
-	values := s.valueColumns()
-
-	var b strings.Builder
-	w := func(format string, args ...any) { fmt.Fprintf(&b, format, args...) }
-	w("-- probity draw query, format %d, written by probity %s for %s.\n", QueryFormat, s.ToolVersion, d)
-	w("-- plan %s, selection seed %s.\n", s.PlanFingerprint, oneLine(s.SelectionSeed))
-	w("-- Save the result as CSV with a header and import it with\n")
-	w("--   probity draw --plan PLAN --selected RESULT.csv --out DIR\n")
-	w("-- Any edit to this text makes the import refuse the result.\n")
-	w("WITH RECURSIVE\n")
-	// src: the rows in scope with their id as text and their stratum label.
-	w("src AS (\n  SELECT %s AS record_id,\n    %s AS stratum", d.text("t."+q.id), label)
-	for i, c := range values {
-		w(",\n    %s AS v%d", d.text("t."+q.cols[c]), i+1)
-	}
-	w("\n  FROM %s AS t\n),\n", q.table)
-	// keyed: the selection key of each row.
-	w("keyed AS (\n  SELECT s.*, %s AS k\n  FROM src AS s\n),\n", d.keyExpr(seedLit, "s.record_id"))
-	w("counts AS (\n  SELECT stratum, count(*) AS n_pop\n  FROM src\n  GROUP BY stratum\n),\n")
 	alloc, err := allocationCTEs(s)
 	if err != nil {
 		return "", err
 	}
+	values := s.valueColumns()
+	txt := d.textType()
+
+	var b strings.Builder
+	w := func(format string, args ...any) { fmt.Fprintf(&b, format, args...) }
+	w("-- probity draw query, format %d, written by probity %s for %s.\n", QueryFormat, oneLine(s.ToolVersion), d)
+	w("-- plan %s, selection seed %s.\n", oneLine(s.PlanFingerprint), oneLine(s.SelectionSeed))
+	w("-- Save the result as CSV with a header and import it with\n")
+	w("--   probity draw --plan PLAN --selected RESULT.csv --out DIR\n")
+	w("-- The import rebuilds this text from the result's first row; an edited\n")
+	w("-- query gives a result whose manifest names a query that was not run.\n")
+	w("WITH RECURSIVE\n")
+	// base: every row of the table, with its id as text, whether it is in
+	// scope, its stratum label and the first problem a draw from a file
+	// would refuse.
+	w("base AS (\n  SELECT %s AS record_id,\n    %s AS in_scope,\n    %s AS stratum,\n    %s AS bad", d.text("t."+q.id), q.scopeExpr(), label, q.badExpr())
+	for i, c := range values {
+		w(",\n    %s AS v%d", q.valueText(c), i+1)
+	}
+	w("\n  FROM %s AS t\n),\n", q.table)
+	w("src AS (\n  SELECT * FROM base WHERE in_scope\n),\n")
+	w("keyed AS (\n  SELECT s.*, %s AS k\n  FROM src AS s\n),\n", d.keyExpr(seedLit, "s.record_id"))
+	w("counts AS (\n  SELECT stratum, count(*) AS n_pop\n  FROM src\n  GROUP BY stratum\n),\n")
 	b.WriteString(alloc)
 	w("ranked AS (\n  SELECT y.*, row_number() OVER (PARTITION BY y.stratum ORDER BY y.k) AS rnk\n  FROM keyed AS y\n),\n")
 	w("dups AS (\n  SELECT record_id, count(*) AS n\n  FROM src\n  WHERE record_id <> ''\n  GROUP BY record_id\n  HAVING count(*) > 1\n),\n")
+	w("bads AS (\n  SELECT bad, count(*) AS n, min(record_id%s) AS first_id\n  FROM src\n  WHERE bad IS NOT NULL\n  GROUP BY bad\n),\n", d.byteOrder())
+	w("tally AS (\n  SELECT count(*) AS n_all, sum(CASE WHEN in_scope THEN 1 ELSE 0 END) AS n_scope,\n")
+	w("    sum(CASE WHEN record_id IS NULL OR record_id = '' THEN 1 ELSE 0 END) AS n_empty\n  FROM base\n),\n")
 	// out: every result row with a section number and a sort key.
 	nulls := func(n int) string { return strings.Repeat(", NULL", n) }
-	txt := d.textType()
 	w("out AS (\n")
 	w("  SELECT 1 AS sec, CAST(NULL AS %s) AS sk, '%s' AS kind, CAST(NULL AS %s) AS record_id, CAST(NULL AS %s) AS stratum,\n", txt, KindDraw, txt, txt)
-	w("    (SELECT count(*) FROM src) AS stratum_size, (SELECT sum(n_sample) FROM alloc) AS stratum_sample, (SELECT sum(n_spare) FROM alloc) AS stratum_spare,\n")
+	w("    CAST((SELECT n_all FROM tally) AS bigint) AS stratum_size,\n")
+	w("    CAST((SELECT COALESCE(sum(n_sample), 0) FROM alloc) AS bigint) AS stratum_sample,\n")
+	w("    CAST((SELECT COALESCE(sum(n_spare), 0) FROM alloc) AS bigint) AS stratum_spare,\n")
 	w("    CAST(NULL AS bigint) AS stratum_rank, CAST(NULL AS %s) AS key, CAST(%s AS %s) AS detail%s\n", txt, detailLit, txt, valueNulls(len(values), txt))
-	w("  UNION ALL\n  SELECT 2, NULL, '%s', NULL, NULL, (SELECT count(*) FROM src WHERE record_id IS NULL OR record_id = ''), NULL, NULL, NULL, NULL, NULL%s\n", KindEmptyIDs, nulls(len(values)))
-	w("  UNION ALL\n  SELECT 3, NULL, '%s', NULL, NULL, (SELECT count(*) FROM dups), NULL, NULL, NULL, NULL, NULL%s\n", KindDuplicateIDs, nulls(len(values)))
-	w("  UNION ALL\n  SELECT 4, e.record_id, '%s', e.record_id, NULL, e.n, NULL, NULL, NULL, NULL, NULL%s\n", KindDuplicateID, nulls(len(values)))
+	w("  UNION ALL\n  SELECT 2, NULL, '%s', NULL, NULL, CAST(COALESCE((SELECT n_scope FROM tally), 0) AS bigint), NULL, NULL, NULL, NULL, NULL%s\n", KindInScope, nulls(len(values)))
+	w("  UNION ALL\n  SELECT 3, NULL, '%s', NULL, NULL, CAST(COALESCE((SELECT n_empty FROM tally), 0) AS bigint), NULL, NULL, NULL, NULL, NULL%s\n", KindEmptyIDs, nulls(len(values)))
+	w("  UNION ALL\n  SELECT 4, NULL, '%s', NULL, NULL, (SELECT count(*) FROM dups), NULL, NULL, NULL, NULL, NULL%s\n", KindDuplicateIDs, nulls(len(values)))
+	w("  UNION ALL\n  SELECT 5, e.record_id, '%s', e.record_id, NULL, e.n, NULL, NULL, NULL, NULL, NULL%s\n", KindDuplicateID, nulls(len(values)))
 	w("  FROM (SELECT record_id, n FROM dups ORDER BY record_id%s LIMIT %d) AS e\n", d.byteOrder(), maxDuplicateExamples)
-	w("  UNION ALL\n  SELECT 5, a.stratum, '%s', NULL, a.stratum, a.n_pop, a.n_sample, a.n_spare, NULL, NULL, NULL%s\n  FROM alloc AS a\n", KindStratum, nulls(len(values)))
-	w("  UNION ALL\n  SELECT 6, %s, '%s', r.record_id, r.stratum, a.n_pop, a.n_sample, a.n_spare, r.rnk, %s, NULL", d.hex("r.k"), KindItem, d.hex("r.k"))
+	w("  UNION ALL\n  SELECT 6, x.bad, '%s', x.first_id, NULL, x.n, NULL, NULL, NULL, NULL, x.bad%s\n  FROM bads AS x\n", KindBadValue, nulls(len(values)))
+	w("  UNION ALL\n  SELECT 7, a.stratum, '%s', NULL, a.stratum, a.n_pop, a.n_sample, a.n_spare, NULL, NULL, NULL%s\n  FROM alloc AS a\n", KindStratum, nulls(len(values)))
+	w("  UNION ALL\n  SELECT 8, %s, '%s', r.record_id, r.stratum, a.n_pop, a.n_sample, a.n_spare, r.rnk, %s, NULL", d.hex("r.k"), KindItem, d.hex("r.k"))
 	for i := range values {
 		w(", r.v%d", i+1)
 	}
@@ -106,6 +120,23 @@ func Query(s *Spec) (string, error) {
 	}
 	w("\nFROM out\nORDER BY sec, sk%s;\n", d.byteOrder())
 	return b.String(), nil
+}
+
+// scopeExpr is true for the rows every --where filter keeps: the column's
+// text (NULL read as NullText) is one of the listed values.
+func (q *quoter) scopeExpr() string {
+	if len(q.filters) == 0 {
+		return "true"
+	}
+	var conds []string
+	for _, f := range q.filters {
+		lits := make([]string, len(f.Values))
+		for i, v := range f.Values {
+			lits[i], _ = q.s.Dialect.QuoteLiteral(v)
+		}
+		conds = append(conds, "("+q.valueText(f.Column)+" IN ("+strings.Join(lits, ", ")+"))")
+	}
+	return strings.Join(conds, " AND ")
 }
 
 // valueNulls is the typed NULL value columns of the first result row,
@@ -123,18 +154,24 @@ func oneLine(s string) string {
 	return strings.NewReplacer("\n", `\n`, "\r", `\r`).Replace(s)
 }
 
-// quoter holds the quoted names a query uses.
+// quoter holds the parsed bands and filters and the quoted names a query
+// uses.
 type quoter struct {
-	s     *Spec
-	table string
-	id    string
-	cols  map[string]string
+	s       *Spec
+	table   string
+	id      string
+	cols    map[string]string
+	bands   []sampling.Band
+	filters []sampling.Filter
 }
 
-// newQuoter validates and quotes every name of s.
+// newQuoter validates s and quotes every name it uses.
 func newQuoter(s *Spec) (*quoter, error) {
 	if _, err := ParseDialect(string(s.Dialect)); err != nil {
 		return nil, fmt.Errorf("%w: %v", ErrSpec, err)
+	}
+	if err := s.validate(); err != nil {
+		return nil, err
 	}
 	q := &quoter{s: s, cols: map[string]string{}}
 	var err error
@@ -144,9 +181,26 @@ func newQuoter(s *Spec) (*quoter, error) {
 	if q.id, err = s.Dialect.QuoteIdent(s.IDColumn); err != nil {
 		return nil, fmt.Errorf("%w: --id: %v", ErrSpec, err)
 	}
+	for _, t := range s.Bands {
+		b, err := sampling.ParseBand(t)
+		if err != nil {
+			return nil, fmt.Errorf("%w: --band: %v", ErrSpec, err)
+		}
+		q.bands = append(q.bands, b)
+	}
+	for _, t := range s.Where {
+		f, err := sampling.ParseFilter(t)
+		if err != nil {
+			return nil, fmt.Errorf("%w: --where: %v", ErrSpec, err)
+		}
+		q.filters = append(q.filters, f)
+	}
 	names := append([]string{}, s.Strata...)
-	for _, b := range s.Bands {
+	for _, b := range q.bands {
 		names = append(names, b.Column)
+	}
+	for _, f := range q.filters {
+		names = append(names, f.Column)
 	}
 	names = append(names, s.valueColumns()...)
 	for _, n := range names {

@@ -50,15 +50,19 @@ func (res *Result) checkStrata(t *resultTable) error {
 	if len(counts) == 0 {
 		return &sampling.InputError{File: t.name, Msg: "the table " + res.Spec.Table + " has no rows in scope", Hint: "check the table name and the --where filter"}
 	}
-	if total != res.TableRows {
-		return t.rowError(0, colStratumSize, "the table has %d rows but its strata add up to %d", res.TableRows, total)
+	if total != res.InScope {
+		return &sampling.InputError{File: t.name, Column: "stratum_size", Msg: fmt.Sprintf("%d rows are in scope but the strata add up to %d", res.InScope, total)}
+	}
+	if res.InScope > res.TableRows {
+		return t.rowError(0, colStratumSize, "the table has %d rows but %d are in scope", res.TableRows, res.InScope)
 	}
 	s := res.Spec
 	alloc, err := sampling.Allocate(counts, s.SampleSize, sampling.AllocOptions{Rule: s.Allocation, MinPerStratum: s.MinPerStratum, Spare: s.Spare})
 	if err != nil {
 		e := &sampling.InputError{File: t.name, Msg: err.Error(), Err: err}
 		if errors.Is(err, sampling.ErrSampleTooLarge) {
-			e.Hint = "the table holds fewer rows than the plan's sample; check the table and the --where filter"
+			e.Msg = fmt.Sprintf("the plan needs a sample of %d but only %d rows are in scope", s.SampleSize, res.InScope)
+			e.Hint = "check the table and the --where filters"
 		}
 		return e
 	}
@@ -98,7 +102,7 @@ func (res *Result) checkItems(t *resultTable) error {
 	seen := map[string]int{}
 	for i, row := range t.rows {
 		switch row[colKind] {
-		case KindDraw, KindEmptyIDs, KindDuplicateIDs, KindDuplicateID, KindStratum:
+		case KindDraw, KindInScope, KindEmptyIDs, KindDuplicateIDs, KindDuplicateID, KindBadValue, KindStratum:
 			if i > 0 && row[colKind] == KindDraw {
 				return t.rowError(i, colKind, "a second draw row; the file holds more than one result")
 			}
