@@ -38,6 +38,16 @@ func indexLedger(in Input) (map[int]sampling.LedgerRow, []int, error) {
 	return ledger, doubled, nil
 }
 
+// normalLabel is a worksheet label as the record reads it: surrounding
+// space removed, and unsure in any case written as Unsure.
+func normalLabel(label string) string {
+	label = strings.TrimSpace(label)
+	if strings.EqualFold(label, Unsure) {
+		return Unsure
+	}
+	return label
+}
+
 // labelOK reports whether a worksheet label is a class, unsure or blank.
 func labelOK(tb *Table, label string) bool {
 	return label == "" || label == Unsure || tb.Has(label)
@@ -64,6 +74,7 @@ func indexFirst(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb *
 		if r.RecordID != ledger[item].RecordID {
 			return nil, withHint(inputError(in.FirstFile, r.Line, "record_id", "item %d has record_id %q, but the ledger has %q", item, r.RecordID, ledger[item].RecordID), "the worksheet was edited after the draw; use the original file")
 		}
+		r.Label = normalLabel(r.Label)
 		if !labelOK(tb, r.Label) {
 			return nil, badLabel(in.FirstFile, r, tb.Classes)
 		}
@@ -78,6 +89,7 @@ func indexSecond(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb 
 	const again = "use the worksheet-second.csv written by probity draw for this draw folder"
 	out := make(map[int]sampling.WorksheetRow, len(in.Second))
 	for _, r := range in.Second {
+		r.Label = normalLabel(r.Label)
 		l, ok := ledger[r.Item]
 		switch {
 		case !ok:

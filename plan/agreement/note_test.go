@@ -1,6 +1,7 @@
 package agreement
 
 import (
+	"math"
 	"strings"
 	"testing"
 )
@@ -84,5 +85,46 @@ func TestUnsureTreatment(t *testing.T) {
 		if got := UnsureTreatment(c.unsure, c.replaced, c.allow); got != c.want {
 			t.Errorf("UnsureTreatment(%d, %d, %v) = %q, want %q", c.unsure, c.replaced, c.allow, got, c.want)
 		}
+	}
+}
+
+func TestDegenerateIntervalIsFlagged(t *testing.T) {
+	// All six doubled items agreed, three in each class: κ = AC1 = 1 with
+	// zero variance (exact arithmetic: see TestCohenKappaEdgeCases).
+	f := newFixture()
+	for i := range 6 {
+		l := "ok"
+		if i%2 == 0 {
+			l = "defect"
+		}
+		f.in.First[i].Label, f.in.Second[i].Label = l, l
+	}
+	f.in.Adjudications, f.in.AdjudicationFile = nil, ""
+	res, err := Resolve(f.in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	q := res.Quality
+	for _, a := range []struct {
+		name string
+		v    float64
+		note string
+	}{{"kappa", q.Kappa.Value, q.Kappa.Note}, {"AC1", q.AC1.Value, q.AC1.Note}} {
+		if !near(a.v, 1, 1e-12) || a.note != DegenerateNote {
+			t.Errorf("%s = %v, note %q; want 1 with the degenerate-interval note", a.name, a.v, a.note)
+		}
+	}
+	// 0 of 6 disagree: Clopper–Pearson one-sided 95 % upper bound
+	// 1 − 0.05^(1/6) = 0.39303 (closed form for x = 0).
+	if !near(q.DisagreementUpper, 1-math.Pow(0.05, 1.0/6), 1e-9) {
+		t.Errorf("disagreement upper %v", q.DisagreementUpper)
+	}
+	// The fixture's kappa (0.4, se 0.39) is not degenerate.
+	res, err = Resolve(newFixture().in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Quality.Kappa.Note != "" || res.Quality.AC1.Note != "" {
+		t.Errorf("notes on a regular table: %q %q", res.Quality.Kappa.Note, res.Quality.AC1.Note)
 	}
 }

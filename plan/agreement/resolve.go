@@ -63,8 +63,9 @@ const (
 type Final struct {
 	Item     int
 	RecordID string
-	// Label is a class, Unsure or "" (blank). It is "" for an item
-	// counted as an error.
+	// Label is a class, Unsure or "" (blank), with surrounding space
+	// removed and unsure in any case written as Unsure. It is "" for an
+	// item counted as an error.
 	Label string
 	// Source says where Label came from (FromFirst, FromAgreement, …).
 	Source string
@@ -240,7 +241,7 @@ func Resolve(in Input) (*Result, error) {
 	for _, r := range in.First {
 		f, ok := finals[r.Item]
 		if !ok {
-			f = Final{Item: r.Item, RecordID: r.RecordID, Label: r.Label, Source: FromFirst}
+			f = Final{Item: r.Item, RecordID: r.RecordID, Label: normalLabel(r.Label), Source: FromFirst}
 		}
 		if f.Label == Unsure {
 			q.Unsure++
@@ -267,6 +268,9 @@ func fillAgreement(q *record.LabelQuality, tb *Table, conf float64) {
 		}
 		a.Defined = true
 		a.Value, a.ChanceAgreement, a.StdErr, a.Lower, a.Upper = e.Value, e.Chance, e.StdErr, e.Lower, e.Upper
+		if e.StdErr < degenerateSE {
+			a.Note = DegenerateNote
+		}
 		return a
 	}
 	k, kerr := CohenKappa(tb, conf)
@@ -274,6 +278,16 @@ func fillAgreement(q *record.LabelQuality, tb *Table, conf float64) {
 	a, aerr := GwetAC1(tb, conf)
 	q.AC1 = conv(AC1Method, a, aerr)
 }
+
+// degenerateSE is the standard error below which an interval is reported
+// as degenerate: a variance that is 0 in exact arithmetic comes out of the
+// formulas as a rounding residue of about 1e-15, whose root is 3e-8.
+const degenerateSE = 1e-6
+
+// DegenerateNote is the note on a coefficient whose large-sample standard
+// error is 0 (the labelers agreed on every compared item, or one of them
+// used a single class).
+const DegenerateNote = "the large-sample standard error is 0 on this table, so the interval has no width and says nothing about sampling error; the disagreement bound does"
 
 // undefinedNote turns an ErrUndefined into the sentence for the record.
 func undefinedNote(err error) string {
@@ -350,7 +364,7 @@ func countLabelers(first, second []sampling.WorksheetRow) []record.Labeler {
 	by := map[string]*acc{}
 	add := func(rows []sampling.WorksheetRow, isFirst bool) {
 		for _, r := range rows {
-			if r.Label == "" {
+			if normalLabel(r.Label) == "" {
 				continue
 			}
 			name := strings.TrimSpace(r.Labeler)

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"slices"
 	"strings"
 	"testing"
@@ -301,5 +302,74 @@ func TestResolveUndefinedKappa(t *testing.T) {
 	}
 	if !q.AC1.Defined || q.AC1.Value != 1 || math.IsNaN(q.AC1.StdErr) {
 		t.Errorf("AC1 %+v, want defined, 1", q.AC1)
+	}
+}
+
+func TestResolveReadsLabelsAsTheRecordDoes(t *testing.T) {
+	// The record trims labels and reads unsure in any case; so does
+	// Resolve, for both worksheets.
+	f := newFixture()
+	f.in.First[0].Label = " ok "
+	f.in.Second[0].Label = "ok\t"
+	f.in.First[3].Label = "Unsure"
+	f.in.Second[3].Label = " UNSURE"
+	f.in.First[8].Label = "UnSure"
+	res, err := Resolve(f.in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := labelsOf(res); got[0] != "1:ok/agreed" || got[3] != "4:unsure/neither" || got[8] != "9:unsure/first" {
+		t.Errorf("labels %v", got)
+	}
+	if res.Quality.Unsure != 2 {
+		t.Errorf("unsure = %d, want 2", res.Quality.Unsure)
+	}
+}
+
+// TestResolveInvariants resolves 300 random labelings of the fixture
+// (fixed seed) and checks what must hold whatever the labels.
+func TestResolveInvariants(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 14))
+	choices := []string{"defect", "ok", "unsure", ""}
+	for run := range 300 {
+		f := newFixture()
+		for i := range f.in.First {
+			f.in.First[i].Label = choices[rng.IntN(len(choices))]
+		}
+		for i := range f.in.Second {
+			f.in.Second[i].Label = choices[rng.IntN(len(choices))]
+		}
+		f.in.Adjudications, f.in.AdjudicationFile, f.in.AllowUnadjudicated = nil, "", true
+		res, err := Resolve(f.in)
+		if err != nil {
+			t.Fatalf("run %d: %v", run, err)
+		}
+		q := res.Quality
+		if len(res.Labels) != len(f.in.First) {
+			t.Fatalf("run %d: %d labels for %d rows", run, len(res.Labels), len(f.in.First))
+		}
+		sum, errs := 0, 0
+		for _, row := range q.Table {
+			for _, v := range row {
+				sum += v
+			}
+		}
+		for _, l := range res.Labels {
+			if l.CountsAsError() {
+				errs++
+			}
+			if l.Item > 6 && l.Source != FromFirst {
+				t.Errorf("run %d: undoubled item %d from %s", run, l.Item, l.Source)
+			}
+		}
+		if sum != q.Compared || q.Compared > q.Doubled || q.Disagreed > q.Compared {
+			t.Errorf("run %d: table sum %d compared %d doubled %d disagreed %d", run, sum, q.Compared, q.Doubled, q.Disagreed)
+		}
+		if errs != q.Unadjudicated || q.Adjudicated+q.Unadjudicated != len(q.Disagreements) {
+			t.Errorf("run %d: %d counted as errors, unadjudicated %d, adjudicated %d, %d disagreements", run, errs, q.Unadjudicated, q.Adjudicated, len(q.Disagreements))
+		}
+		if q.Compared > 0 && (!q.AC1.Defined || q.AC1.Lower > q.AC1.Value || q.AC1.Upper < q.AC1.Value) {
+			t.Errorf("run %d: AC1 %+v", run, q.AC1)
+		}
 	}
 }
