@@ -1,0 +1,234 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/spf13/cobra"
+
+	"probity/plan"
+	"probity/plan/progress"
+	"probity/plan/sequential"
+	"probity/sampling"
+)
+
+// progressOptions are the flags of probity progress.
+type progressOptions struct {
+	planPath string
+	drawDir  string
+	labels   string
+	json     bool
+}
+
+// newProgressCommand builds `probity progress`.
+func newProgressCommand(d deps) *cobra.Command {
+	opts := &progressOptions{}
+	cmd := &cobra.Command{
+		Use:   "progress --plan PLAN.yaml --draw DIR --labels PARTIAL.csv",
+		Short: "Say whether labeling can stop early, from a worksheet labeled from the top",
+		Long: `progress reads a worksheet labeled from the top and says, for each candidate,
+"continue", "reject — stop" or "accept — stop", with how many more labels it
+can take at most.
+
+The worksheet lists the sample in random key order, so the labeled items at
+its top are themselves a random sample. Label it from the top without skipping
+items: a gap followed by labels breaks that and is refused.
+
+A fixed plan (label n, accept at most c errors) stops by exact curtailment:
+reject as soon as the errors exceed c, accept as soon as even all the
+remaining items being errors would keep them at or below c. Neither risk
+changes: every stop is the decision the full sample would give. A sequential
+plan (probity plan --design sequential) stops at its own boundaries.
+Items labeled "unsure" count as errors toward acceptance and as correct
+toward rejection. Spare items are ignored.
+
+` + exitCodesHelp + `
+progress exits 0 whenever it could assess the worksheet, whatever the
+decision.`,
+		Args: cobra.NoArgs,
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			for _, f := range []struct{ name, v string }{{"plan", opts.planPath}, {"draw", opts.drawDir}, {"labels", opts.labels}} {
+				if f.v == "" {
+					return withHint(usageErrorf("--%s is required", f.name), "see 'probity progress --help'")
+				}
+			}
+			return nil
+		},
+		RunE: func(cmd *cobra.Command, args []string) error {
+			return runProgress(d, opts)
+		},
+	}
+	fl := cmd.Flags()
+	fl.StringVar(&opts.planPath, "plan", "", "the plan file the sample was drawn from")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv)")
+	fl.StringVar(&opts.labels, "labels", "", "the worksheet, labeled from the top")
+	fl.BoolVar(&opts.json, "json", false, "print one JSON object instead of the table")
+	return cmd
+}
+
+// progressReport is the --json output.
+type progressReport struct {
+	Plan            string                `json:"plan"`
+	PlanFingerprint string                `json:"plan_fingerprint"`
+	Labels          string                `json:"labels"`
+	Period          string                `json:"period"`
+	Candidates      []progressCandidateJS `json:"candidates"`
+	*progress.Result
+}
+
+// progressCandidateJS adds the printed decision ("reject — stop") and a
+// stop flag to each candidate.
+type progressCandidateJS struct {
+	progress.Candidate
+	Stop   bool   `json:"stop"`
+	Status string `json:"status"`
+}
+
+func runProgress(d deps, opts *progressOptions) error {
+	in, fingerprint, period, err := loadProgressInput(opts)
+	if err != nil {
+		return err
+	}
+	res, err := progress.Assess(in)
+	if err != nil {
+		return progressInputError(err)
+	}
+	if opts.json {
+		rep := progressReport{Plan: opts.planPath, PlanFingerprint: fingerprint, Labels: opts.labels, Period: period, Result: res}
+		for _, c := range res.Candidates {
+			rep.Candidates = append(rep.Candidates, progressCandidateJS{Candidate: c, Stop: c.Decision != sequential.Continue, Status: progressStatus(c.Decision)})
+		}
+		enc := json.NewEncoder(d.stdout)
+		enc.SetEscapeHTML(false)
+		enc.SetIndent("", "  ")
+		return enc.Encode(rep)
+	}
+	writeProgress(d.stdout, in.Plan, res)
+	return nil
+}
+
+// loadProgressInput reads the plan, the draw folder and the labels, and
+// checks that they belong together.
+func loadProgressInput(opts *progressOptions) (progress.Input, string, string, error) {
+	var in progress.Input
+	p, fingerprint, err := plan.Load(opts.planPath)
+	if err != nil {
+		return in, "", "", progressInputError(err)
+	}
+	if p.IsSizingOnly() {
+		return in, "", "", withHint(usageErrorf("%s: the plan declares no candidates, so there is nothing to judge", opts.planPath),
+			"use the plan the sample was drawn from")
+	}
+	manifestPath := filepath.Join(opts.drawDir, sampling.ManifestFile)
+	m, _, err := sampling.ReadManifest(manifestPath)
+	if err != nil {
+		return in, "", "", progressInputError(err)
+	}
+	if m.PlanFingerprint != fingerprint {
+		return in, "", "", withHint(usageErrorf("%s: plan_fingerprint %s is not the fingerprint of %s (%s)", manifestPath, progressShort(m.PlanFingerprint), opts.planPath, progressShort(fingerprint)),
+			"use the plan file the sample was drawn from, unedited")
+	}
+	ledgerPath := filepath.Join(opts.drawDir, sampling.LedgerFile)
+	data, err := os.ReadFile(ledgerPath)
+	if err != nil {
+		return in, "", "", progressInputError(err)
+	}
+	if want := m.Files[sampling.LedgerFile]; sampling.SHA256Hex(data) != want {
+		return in, "", "", withHint(usageErrorf("%s: SHA-256 %s differs from the manifest's %s", ledgerPath, progressShort(sampling.SHA256Hex(data)), progressShort(want)),
+			"the ledger was changed after the draw; use the original file")
+	}
+	names := make([]string, len(p.Candidates))
+	for i, c := range p.Candidates {
+		names[i] = c.Name
+	}
+	ledger, err := sampling.ReadLedger(ledgerPath, names)
+	if err != nil {
+		return in, "", "", progressInputError(err)
+	}
+	_, ws, err := sampling.ReadWorksheet(opts.labels)
+	if err != nil {
+		return in, "", "", progressInputError(err)
+	}
+	return progress.Input{Plan: p, Ledger: ledger, Worksheet: ws, WorksheetName: opts.labels}, fingerprint, m.Period, nil
+}
+
+// progressInputError turns a package error into a user error, keeping an
+// input error's hint.
+func progressInputError(err error) error {
+	var ie *sampling.InputError
+	if errors.As(err, &ie) && ie.Hint != "" {
+		return withHint(badInput(err), ie.Hint)
+	}
+	var pe *os.PathError
+	if errors.As(err, &pe) {
+		return withHint(badInput(err), "check the path")
+	}
+	return badInput(err)
+}
+
+func progressShort(fp string) string {
+	if len(fp) > 12 {
+		return fp[:12]
+	}
+	return fp
+}
+
+// progressStatus is the printed decision.
+func progressStatus(d sequential.Decision) string {
+	switch d {
+	case sequential.Accept:
+		return "accept — stop"
+	case sequential.Reject:
+		return "reject — stop"
+	}
+	return "continue"
+}
+
+// writeProgress prints the human-readable assessment.
+func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
+	if res.Design == "sequential" {
+		fmt.Fprintf(w, "Sequential plan: at most %d labels; each candidate stops at its boundaries.\n", res.SampleSize)
+	} else {
+		fmt.Fprintf(w, "Fixed plan: %d labels, accept with at most %d errors; stopping early by exact curtailment (no change to either risk).\n",
+			res.SampleSize, *res.AcceptanceNumber)
+	}
+	fmt.Fprintf(w, "Labeled from the top: %d of %d.\n\n", res.Labeled, res.SampleSize)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, "candidate\tlabeled\terrors\tdecision\tlabels left (at most)\twhy")
+	for _, c := range res.Candidates {
+		errs := fmt.Sprint(c.Errors)
+		if c.Unsure > 0 {
+			errs += fmt.Sprintf(" +%d unsure", c.Unsure)
+		}
+		labeled := fmt.Sprint(c.Labeled)
+		if c.Decision != sequential.Continue && c.StoppedAt != c.Labeled {
+			labeled = fmt.Sprintf("%d (stopped at %d)", c.Labeled, c.StoppedAt)
+		}
+		why := c.Reason
+		if c.Decision == sequential.Continue && c.AcceptAfter > 0 {
+			why += fmt.Sprintf("; accepts after %d more without an error", c.AcceptAfter)
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%d\t%s\n", c.Name, labeled, errs, progressStatus(c.Decision), c.MaxRemaining, why)
+	}
+	tw.Flush()
+	fmt.Fprintln(w)
+	req := p.Inputs.Require
+	if req == "" {
+		req = "all"
+	}
+	switch res.Overall {
+	case sequential.Continue:
+		fmt.Fprintf(w, "Audit (require %s): continue — at most %d more labels.\n", req, res.MaxRemaining)
+	default:
+		fmt.Fprintf(w, "Audit (require %s): %s; run probity record on the labels to issue the record.\n", req, progressStatus(res.Overall))
+	}
+	for _, n := range res.Notes {
+		fmt.Fprintf(w, "Note: %s.\n", strings.TrimSuffix(n, "."))
+	}
+}
