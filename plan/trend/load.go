@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"sort"
 	"strings"
+	"time"
 
 	"probity/plan/record"
 )
@@ -232,6 +233,9 @@ func check(r *record.Record, name string, data []byte) error {
 	}
 	if r.RecordID == "" {
 		return bad("record_id", []any{"record_id"}, "is empty")
+	}
+	if _, err := time.Parse("2006-01-02", r.Date); err != nil {
+		return bad("date", []any{"date"}, "%q is not a date written YYYY-MM-DD", r.Date)
 	}
 	if err := checkPeriod(r.Period); err != nil {
 		return &InputError{File: name, Line: lineOf(data, []any{"period"}), Field: "period", Msg: err.Error(),

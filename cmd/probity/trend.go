@@ -1,0 +1,322 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/spf13/cobra"
+
+	chart "probity/pdfreport/trend"
+	"probity/plan/record"
+	"probity/plan/trend"
+)
+
+// trendOptions are the flags and arguments of probity trend.
+type trendOptions struct {
+	paths    []string
+	baseline string
+	alpha    float64
+	chart    string
+	json     bool
+}
+
+// trendChartDPI is the resolution of the PNG chart.
+const trendChartDPI = 150
+
+// newTrendCommand builds `probity trend`.
+func newTrendCommand(d deps) *cobra.Command {
+	opts := &trendOptions{}
+	cmd := &cobra.Command{
+		Use:   "trend RECORD.json|FOLDER...",
+		Short: "Show the audits of several periods side by side and flag drift",
+		Long: `trend reads the record.json of every period's audit — files, or folders searched
+for record.json and other *.json files that are records — and prints, per
+candidate, the period, labeled, errors, estimate, upper bound, ceiling and
+verdict, in period order.
+
+A period whose error is significantly higher than the baseline period's (the
+first period, or --baseline) is flagged, even while it still passes: Fisher's
+exact test, one-sided, on the error counts of the two periods, at level
+--alpha for each comparison (not adjusted for the number of periods).
+
+Records must be of one class of plan: the same model (binomial stream,
+hypergeometric lot, or a distribution-free bound), method, design (fixed or
+sequential), ceiling and confidence. A mix is refused. Records made from
+different plan files, or with different candidates, are compared with a
+warning. Each period may appear once, and period labels must be written the
+same way (2026-09, not 2026-9) so that sorting them gives time order.
+
+--chart PREFIX writes PREFIX.png (the chart: one panel per candidate, the
+estimate and upper bound of every period against the ceiling) and PREFIX.pdf
+(one page: the chart above a table of every period).
+
+` + exitCodesHelp + `
+
+trend exits 1 when the latest period's record rejects (overall verdict
+REJECT) and 0 otherwise, whatever the flags.`,
+		Args: func(cmd *cobra.Command, args []string) error {
+			if len(args) == 0 {
+				return withHint(usageErrorf("trend needs at least one record.json or folder of records"),
+					"e.g. 'probity trend audits/' or 'probity trend audits/2026-*/record.json'")
+			}
+			return nil
+		},
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			opts.paths = args
+			return opts.validate()
+		},
+		RunE: func(cmd *cobra.Command, args []string) error {
+			return runTrend(d, opts)
+		},
+	}
+	fl := cmd.Flags()
+	fl.StringVar(&opts.baseline, "baseline", "", "the `PERIOD` every other period is compared with (default: the first)")
+	fl.Float64Var(&opts.alpha, "alpha", 0.05, "significance `LEVEL` of each one-sided comparison with the baseline, in (0, 0.5]")
+	fl.StringVar(&opts.chart, "chart", "", "write the chart to `PREFIX`.png and a one-page PREFIX.pdf")
+	fl.BoolVar(&opts.json, "json", false, "print one JSON object (stable keys) instead of the tables")
+	return cmd
+}
+
+// validate checks the flags before any file is read.
+func (o *trendOptions) validate() error {
+	if !(o.alpha > 0 && o.alpha <= 0.5) {
+		return withHint(usageErrorf("--alpha %v is outside (0, 0.5]", o.alpha), "the usual level is 0.05")
+	}
+	if o.chart != "" {
+		ext := strings.ToLower(filepath.Ext(o.chart))
+		if ext == ".png" || ext == ".pdf" {
+			return withHint(usageErrorf("--chart %s: give a prefix, not a file name", o.chart),
+				"--chart "+strings.TrimSuffix(o.chart, filepath.Ext(o.chart))+" writes both the .png and the .pdf")
+		}
+		if strings.HasSuffix(o.chart, string(filepath.Separator)) {
+			return withHint(usageErrorf("--chart %s: give a prefix, not a folder", o.chart),
+				"e.g. --chart "+filepath.Join(o.chart, "trend"))
+		}
+		dir := filepath.Dir(o.chart)
+		st, err := os.Stat(dir)
+		if err != nil || !st.IsDir() {
+			return withHint(usageErrorf("--chart %s: folder %s does not exist", o.chart, dir), "create it first")
+		}
+	}
+	return nil
+}
+
+// trendReport is the --json output: the trend with the tool version, the
+// chart files written and the JSON files skipped under the folders.
+type trendReport struct {
+	Format      int    `json:"format"`
+	ToolVersion string `json:"tool_version"`
+	*trend.Trend
+	Chart   *trendChartFiles `json:"chart"`
+	Skipped []string         `json:"skipped"`
+}
+
+// trendChartFiles names the chart files written.
+type trendChartFiles struct {
+	PNG string `json:"png"`
+	PDF string `json:"pdf"`
+}
+
+// trendReportFormat is the version of the --json layout.
+const trendReportFormat = 1
+
+func runTrend(d deps, o *trendOptions) error {
+	loaded, err := trend.Load(o.paths)
+	if err != nil {
+		return trendInputError(err)
+	}
+	t, err := trend.Build(loaded.Entries, trend.Options{Baseline: o.baseline, Alpha: o.alpha})
+	if err != nil {
+		return trendInputError(err)
+	}
+	if len(loaded.Skipped) > 0 {
+		fmt.Fprintf(d.stderr, "probity: note: skipped %d JSON file(s) that are not records (%s)\n",
+			len(loaded.Skipped), trendShortList(loaded.Skipped, 3))
+	}
+	for _, w := range t.Warnings {
+		fmt.Fprintf(d.stderr, "probity: warning: %s\n", w)
+	}
+	var files *trendChartFiles
+	if o.chart != "" {
+		files, err = writeTrendChart(t, o.chart, d)
+		if err != nil {
+			return err
+		}
+	}
+	if o.json {
+		rep := trendReport{Format: trendReportFormat, ToolVersion: d.version, Trend: t, Chart: files, Skipped: loaded.Skipped}
+		if rep.Skipped == nil {
+			rep.Skipped = []string{}
+		}
+		enc := json.NewEncoder(d.stdout)
+		enc.SetEscapeHTML(false)
+		enc.SetIndent("", "  ")
+		if err := enc.Encode(rep); err != nil {
+			return &internalError{msg: "encoding the trend: " + err.Error()}
+		}
+	} else {
+		printTrend(d.stdout, t, files)
+	}
+	if t.Latest.OverallVerdict == record.Reject {
+		return rejected("latest period %s was rejected (record %s, %s)", t.Latest.Label, t.Latest.RecordID, t.Latest.File)
+	}
+	return nil
+}
+
+// trendInputError turns the trend package's errors into user errors with
+// their hints.
+func trendInputError(err error) error {
+	var ie *trend.InputError
+	if errors.As(err, &ie) && ie.Hint != "" {
+		return withHint(badInput(err), ie.Hint)
+	}
+	var h interface{ Hint() string }
+	if errors.As(err, &h) {
+		return withHint(badInput(err), h.Hint())
+	}
+	return badInput(err)
+}
+
+// writeTrendChart renders the PNG and the PDF, writes both under temporary
+// names beside the prefix and renames them into place, so a failure leaves
+// neither behind.
+func writeTrendChart(t *trend.Trend, prefix string, d deps) (*trendChartFiles, error) {
+	w, h := chart.ChartSize(t)
+	pngData, err := chart.PNG(t, w, h, trendChartDPI)
+	if err != nil {
+		return nil, badInput(err)
+	}
+	date, err := time.Parse("2006-01-02", t.Latest.Date)
+	if err != nil {
+		return nil, &internalError{msg: "the latest record's date was not validated: " + err.Error()}
+	}
+	pdfData, err := chart.PDF(t, chart.PageInfo{Date: date, ToolVersion: d.version})
+	if err != nil {
+		return nil, withHint(badInput(err), "the PNG chart has no size limit; make the PDF from fewer records")
+	}
+	files := &trendChartFiles{PNG: prefix + ".png", PDF: prefix + ".pdf"}
+	if err := writeTrendFiles([]string{files.PNG, files.PDF}, [][]byte{pngData, pdfData}); err != nil {
+		return nil, err
+	}
+	return files, nil
+}
+
+// writeTrendFiles writes each data to a temporary file beside its
+// path, then renames them all; on any failure it removes what it wrote.
+func writeTrendFiles(paths []string, data [][]byte) error {
+	var tmps []string
+	cleanup := func() {
+		for _, t := range tmps {
+			os.Remove(t)
+		}
+	}
+	for i, p := range paths {
+		f, err := os.CreateTemp(filepath.Dir(p), "."+filepath.Base(p)+".*.tmp")
+		if err != nil {
+			cleanup()
+			return usageErrorf("cannot write %s: %v", p, err)
+		}
+		tmps = append(tmps, f.Name())
+		if _, err := f.Write(data[i]); err != nil {
+			f.Close()
+			cleanup()
+			return usageErrorf("cannot write %s: %v", p, err)
+		}
+		if err := f.Close(); err != nil {
+			cleanup()
+			return usageErrorf("cannot write %s: %v", p, err)
+		}
+	}
+	for i, p := range paths {
+		if err := os.Rename(tmps[i], p); err != nil {
+			for _, done := range paths[:i] {
+				os.Remove(done)
+			}
+			cleanup()
+			return usageErrorf("cannot write %s: %v", p, err)
+		}
+	}
+	return nil
+}
+
+// trendShortList joins up to n items, then "and k more".
+func trendShortList(xs []string, n int) string {
+	if len(xs) <= n {
+		return strings.Join(xs, ", ")
+	}
+	return fmt.Sprintf("%s and %d more", strings.Join(xs[:n], ", "), len(xs)-n)
+}
+
+// printTrend writes the human-readable trend: a heading, one table per
+// candidate and the latest verdict.
+func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
+	c := t.Class
+	head := fmt.Sprintf("Trend of %d records, %s to %s", len(t.Periods), t.Periods[0].Label, t.Latest.Label)
+	if sys := strings.TrimSpace(t.System + " " + t.SystemVersion); sys != "" {
+		head += " — " + sys
+	}
+	fmt.Fprintln(w, head)
+	fmt.Fprintf(w, "plan class: %s model, %s method, %s design, ceiling %s, confidence %s\n",
+		c.Model, c.Method, c.Design, trendTrimPercent(c.Ceiling), trendTrimPercent(c.Confidence))
+	fmt.Fprintf(w, "flag: Fisher's exact test, one-sided (error higher than in %s), p ≤ %s per comparison\n",
+		t.Baseline, strconv.FormatFloat(t.Alpha, 'g', -1, 64))
+	pw := len("period")
+	for _, p := range t.Periods {
+		pw = max(pw, len(p.Label))
+	}
+	for _, s := range t.Candidates {
+		fmt.Fprintln(w)
+		switch {
+		case !s.Tested:
+			fmt.Fprintf(w, "%s   (not in the baseline period: not tested)\n", s.Name)
+		case len(s.Flagged) > 0:
+			fmt.Fprintf(w, "%s   flagged: %s\n", s.Name, strings.Join(s.Flagged, ", "))
+		default:
+			fmt.Fprintln(w, s.Name)
+		}
+		fmt.Fprintf(w, "  %-*s  %7s  %6s  %8s  %8s  %7s  %-7s  %s\n", pw, "period", "labeled", "errors", "estimate", "upper", "ceiling", "verdict", "p vs "+t.Baseline)
+		for _, r := range s.Rows {
+			p := "(baseline)"
+			if r.PValue != nil {
+				p = trendP(*r.PValue)
+				if r.Flagged {
+					p += "  ↑ higher"
+				}
+			} else if r.Period != t.Baseline {
+				p = "—"
+			}
+			fmt.Fprintf(w, "  %-*s  %7d  %6d  %8s  %8s  %7s  %-7s  %s\n", pw, r.Period, r.Labeled, r.Errors,
+				trendFixedPercent(r.Estimate), trendFixedPercent(r.UpperBound), trendTrimPercent(r.Ceiling), r.Verdict, p)
+		}
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintf(w, "latest period %s (record %s): %s\n", t.Latest.Label, t.Latest.RecordID, t.Latest.OverallVerdict)
+	if files != nil {
+		fmt.Fprintf(w, "chart: %s, %s\n", files.PNG, files.PDF)
+	}
+}
+
+// trendFixedPercent formats a proportion as a percentage with 3 decimals.
+func trendFixedPercent(x float64) string { return strconv.FormatFloat(100*x, 'f', 3, 64) + "%" }
+
+// trendTrimPercent formats a proportion as a percentage without trailing zeros.
+func trendTrimPercent(x float64) string {
+	s := strings.TrimRight(strings.TrimRight(strconv.FormatFloat(100*x, 'f', 3, 64), "0"), ".")
+	return s + "%"
+}
+
+// trendP formats a p-value: 4 decimals down to 0.001, then 2 significant
+// digits in exponent form.
+func trendP(p float64) string {
+	if p >= 0.001 {
+		return strconv.FormatFloat(p, 'f', 4, 64)
+	}
+	return strconv.FormatFloat(p, 'e', 1, 64)
+}

@@ -1,0 +1,387 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"flag"
+	"image/png"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"probity/plan/record"
+)
+
+var updateTrend = flag.Bool("update-trend", false, "rewrite testdata/trend/golden from the current output")
+
+// trendMonthly is the year of records the tests read (written by
+// go test ./plan/trend -run TestMonthlyFixtures -update).
+const trendMonthly = "../../testdata/trend/monthly"
+
+// trendRun runs probity with args and returns stdout, stderr and the exit
+// code, with a fixed clock and version.
+func trendRun(t *testing.T, args ...string) (string, string, int) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	d := deps{
+		stdin:   strings.NewReader(""),
+		stdout:  &out,
+		stderr:  &errb,
+		now:     func() time.Time { return time.Date(2027, 1, 5, 9, 0, 0, 0, time.UTC) },
+		random:  bytes.NewReader(make([]byte, 1024)),
+		version: "0.1.0",
+	}
+	code := run(args, d)
+	return out.String(), errb.String(), code
+}
+
+// trendMonth returns the path of one month's record in the fixtures.
+func trendMonth(m string) string { return filepath.Join(trendMonthly, m, "record.json") }
+
+// trendGolden compares got with testdata/trend/golden/name (or rewrites it
+// with -update-trend).
+func trendGolden(t *testing.T, name, got string) {
+	t.Helper()
+	path := filepath.Join("../../testdata/trend/golden", name)
+	if *updateTrend {
+		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return
+	}
+	want, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatalf("%v (run go test ./cmd/probity -run Trend -update-trend)", err)
+	}
+	if got != string(want) {
+		t.Errorf("output differs from %s (run with -update-trend to accept):\n--- got\n%s\n--- want\n%s", path, got, want)
+	}
+}
+
+func TestTrendYearRejectsLatest(t *testing.T) {
+	dir := t.TempDir()
+	prefix := filepath.Join(dir, "trend")
+	out, errOut, code := trendRun(t, "trend", trendMonthly, "--chart", prefix)
+	if code != exitRejected {
+		t.Fatalf("exit %d, want %d (the 2026-12 record rejects)\n%s", code, exitRejected, errOut)
+	}
+	if want := "probity: latest period 2026-12 was rejected (record 7c8de5a47e55, " + trendMonth("2026-12") + ")\n"; errOut != want {
+		t.Errorf("stderr = %q, want %q", errOut, want)
+	}
+	trendGolden(t, "year.txt", strings.ReplaceAll(out, dir, "OUT"))
+	for _, want := range []string{
+		"router-b   flagged: 2026-10, 2026-11, 2026-12",
+		"  2026-10      613       5    0.816%    1.997%       2%  ACCEPT   0.0310  ↑ higher",
+		"latest period 2026-12 (record 7c8de5a47e55): REJECT",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("stdout lacks %q", want)
+		}
+	}
+	pngData, err := os.ReadFile(prefix + ".png")
+	if err != nil {
+		t.Fatal(err)
+	}
+	img, err := png.Decode(bytes.NewReader(pngData))
+	if err != nil || img.Bounds().Dx() != 1500 {
+		t.Fatalf("trend.png: %v, %v", err, img.Bounds())
+	}
+	pdfData, err := os.ReadFile(prefix + ".pdf")
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The same records give the same PDF bytes (its dates are the latest
+	// record's, not the clock's).
+	prefix2 := filepath.Join(dir, "again")
+	if _, _, code := trendRun(t, "trend", trendMonthly, "--chart", prefix2); code != exitRejected {
+		t.Fatalf("second run exit %d", code)
+	}
+	pdf2, _ := os.ReadFile(prefix2 + ".pdf")
+	if !bytes.Equal(pdfData, pdf2) {
+		t.Error("two runs on the same records wrote different PDFs")
+	}
+	entries, _ := os.ReadDir(dir)
+	if len(entries) != 4 {
+		t.Errorf("chart folder holds %d files, want the 2 PNGs and 2 PDFs (no temporary files)", len(entries))
+	}
+	trendPDFText(t, prefix+".pdf")
+}
+
+// trendPDFText compares the PDF's extracted text with the golden text.
+func trendPDFText(t *testing.T, path string) {
+	tool, err := exec.LookPath("pdftotext")
+	if err != nil {
+		if os.Getenv("CI") != "" {
+			t.Fatalf("reference tool pdftotext (poppler-utils) is missing")
+		}
+		t.Log("pdftotext is missing: PDF text not checked")
+		return
+	}
+	txt, err := exec.Command(tool, "-layout", path, "-").Output()
+	if err != nil {
+		t.Fatalf("pdftotext: %v", err)
+	}
+	s := string(txt)
+	for _, want := range []string{"Trend of acceptance records — ticket-router 4.2", "Latest period 2026-12: REJECT (record 7c8de5a47e55)", "0.031 ↑", "page 1 of 1"} {
+		if !strings.Contains(s, want) {
+			t.Errorf("PDF text lacks %q", want)
+		}
+	}
+	trendGolden(t, "year-pdf.txt", s)
+}
+
+func TestTrendElevenMonthsAccepts(t *testing.T) {
+	args := []string{"trend", "--json"}
+	for _, m := range []string{"2026-11", "2026-03", "2026-01", "2026-02", "2026-04", "2026-05", "2026-06", "2026-07", "2026-08", "2026-09", "2026-10"} {
+		args = append(args, trendMonth(m))
+	}
+	out, errOut, code := trendRun(t, args...)
+	if code != exitOK || errOut != "" {
+		t.Fatalf("exit %d, stderr %q", code, errOut)
+	}
+	trendGolden(t, "eleven.json", out)
+	var rep struct {
+		Format     int    `json:"format"`
+		Baseline   string `json:"baseline"`
+		Candidates []struct {
+			Name    string   `json:"name"`
+			Flagged []string `json:"flagged"`
+			Rows    []struct {
+				Period string   `json:"period"`
+				PValue *float64 `json:"p_value"`
+			} `json:"rows"`
+		} `json:"candidates"`
+		Latest struct {
+			Label   string `json:"period"`
+			Verdict string `json:"overall_verdict"`
+		} `json:"latest"`
+		Chart *struct{} `json:"chart"`
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+	if rep.Format != 1 || rep.Baseline != "2026-01" || rep.Latest.Label != "2026-11" || rep.Latest.Verdict != record.Accept || rep.Chart != nil {
+		t.Errorf("report header %+v", rep)
+	}
+	if got := strings.Join(rep.Candidates[1].Flagged, ","); rep.Candidates[1].Name != "router-b" || got != "2026-10,2026-11" {
+		t.Errorf("router-b flagged %q", got)
+	}
+	// Top-level keys in their stable order.
+	var keys []string
+	dec := json.NewDecoder(strings.NewReader(out))
+	dec.Token()
+	for dec.More() {
+		k, _ := dec.Token()
+		keys = append(keys, k.(string))
+		var skip json.RawMessage
+		dec.Decode(&skip)
+	}
+	if got := strings.Join(keys, ","); got != "format,tool_version,system,system_version,class,baseline,alpha,test,periods,candidates,latest,warnings,chart,skipped" {
+		t.Errorf("keys %s", got)
+	}
+}
+
+func TestTrendBaselineAndAlpha(t *testing.T) {
+	out, _, code := trendRun(t, "trend", trendMonthly, "--baseline", "2026-06", "--alpha", "0.01")
+	if code != exitRejected {
+		t.Fatalf("exit %d", code)
+	}
+	for _, want := range []string{"p ≤ 0.01 per comparison", "p vs 2026-06", "  2026-06      613       3    0.489%    1.516%       2%  ACCEPT   (baseline)"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("stdout lacks %q", want)
+		}
+	}
+	if strings.Contains(out, "flagged:") {
+		t.Errorf("nothing is significant at 0.01 against 2026-06:\n%s", out)
+	}
+}
+
+// trendWrite writes r into dir/name as canonical record.json.
+func trendWrite(t *testing.T, dir, name string, r *record.Record) string {
+	t.Helper()
+	data, err := record.Encode(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := filepath.Join(dir, name)
+	if err := os.WriteFile(p, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+func trendLoadMonth(t *testing.T, m string) *record.Record {
+	t.Helper()
+	data, err := os.ReadFile(trendMonth(m))
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := record.Decode(data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+func TestTrendWarnsAboutPlansAndCandidates(t *testing.T) {
+	dir := t.TempDir()
+	jan := trendLoadMonth(t, "2026-01")
+	feb := trendLoadMonth(t, "2026-02")
+	feb.Plan.Fingerprint = strings.Repeat("ab", 32)
+	feb.Candidates = feb.Candidates[:2]
+	a := trendWrite(t, dir, "jan.json", jan)
+	b := trendWrite(t, dir, "feb.json", feb)
+	_, errOut, code := trendRun(t, "trend", a, b)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	want := "probity: warning: records come from 2 different plans: plan 7a6421df145c in 2026-01; plan abababababab in 2026-02\n" +
+		"probity: warning: candidate sets differ: threshold-0.62 is not in 2026-02\n"
+	if errOut != want {
+		t.Errorf("stderr =\n%s\nwant\n%s", errOut, want)
+	}
+}
+
+// trendBad is a run that must fail with exit 2, print the one-line error
+// (and hint) and write no chart.
+type trendBad struct {
+	name  string
+	setup func(t *testing.T, dir string) []string // returns the arguments after "trend"
+	want  []string                                // substrings of stderr
+}
+
+func TestTrendBadInput(t *testing.T) {
+	cases := []trendBad{
+		{"no arguments", func(t *testing.T, dir string) []string { return nil },
+			[]string{"probity: trend needs at least one record.json or folder of records\nhint: "}},
+		{"missing file", func(t *testing.T, dir string) []string { return []string{filepath.Join(dir, "nope.json")} },
+			[]string{"nope.json: does not exist"}},
+		{"not a record", func(t *testing.T, dir string) []string {
+			p := filepath.Join(dir, "manifest.json")
+			os.WriteFile(p, []byte("{\n  \"seed\": \"ab\"\n}\n"), 0o644)
+			return []string{p}
+		}, []string{"manifest.json: format is missing", "hint: trend reads the record.json written by 'probity record'"}},
+		{"broken json", func(t *testing.T, dir string) []string {
+			p := filepath.Join(dir, "record.json")
+			os.WriteFile(p, []byte("{\n  \"format\": 1,\n  \"period\": 2026-01\n}\n"), 0o644)
+			return []string{p}
+		}, []string{"record.json line 3: is not valid JSON"}},
+		{"missing field", func(t *testing.T, dir string) []string {
+			data, _ := os.ReadFile(trendMonth("2026-02"))
+			data = bytes.Replace(data, []byte(`"upper_bound"`), []byte(`"upper"`), 1)
+			p := filepath.Join(dir, "feb.json")
+			os.WriteFile(p, data, 0o644)
+			return []string{trendMonth("2026-01"), p}
+		}, []string{"feb.json line ", ": candidates[0].upper_bound is missing"}},
+		{"repeated period", func(t *testing.T, dir string) []string {
+			r := trendLoadMonth(t, "2026-03")
+			r.RecordID = "0123456789ab"
+			return []string{trendMonthly, trendWrite(t, dir, "march-again.json", r)}
+		}, []string{"period 2026-03 is repeated: " + trendMonth("2026-03") + " and ", "march-again.json are both records of it",
+			"hint: keep the record that was signed off"}},
+		{"lot plan mixed with stream plan", func(t *testing.T, dir string) []string {
+			r := trendLoadMonth(t, "2026-04")
+			r.Plan.Model, r.Plan.Population = "hypergeometric", 41250
+			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
+		}, []string{"april.json: plan.model is hypergeometric here but binomial in " + trendMonth("2026-03") + " (period 2026-03): records of different classes of plan cannot share a trend",
+			"hint: a trend compares audits of one model, method, design, ceiling and confidence"}},
+		{"sequential mixed with fixed", func(t *testing.T, dir string) []string {
+			r := trendLoadMonth(t, "2026-04")
+			r.Plan.Design = "sequential"
+			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
+		}, []string{"plan.design is sequential here but fixed"}},
+		{"different ceilings", func(t *testing.T, dir string) []string {
+			r := trendLoadMonth(t, "2026-04")
+			r.Plan.Ceiling = 0.03
+			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
+		}, []string{"plan.ceiling is 0.03 here but 0.02"}},
+		{"period shapes", func(t *testing.T, dir string) []string {
+			r := trendLoadMonth(t, "2026-04")
+			r.Period = "2026-4"
+			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
+		}, []string{`period "2026-4" is written differently from "2026-03"`, "hint: write every period the same way"}},
+		{"no period", func(t *testing.T, dir string) []string {
+			r := trendLoadMonth(t, "2026-04")
+			r.Period = ""
+			return []string{trendWrite(t, dir, "april.json", r)}
+		}, []string{"april.json line 6: period is empty: a trend needs records of audits drawn with --period", "hint: draw each month's sample with 'probity draw --period LABEL'"}},
+		{"unknown baseline", func(t *testing.T, dir string) []string { return []string{trendMonthly, "--baseline", "2025-12"} },
+			[]string{`baseline period "2025-12" is not among the records`, "hint: the periods are 2026-01, 2026-02"}},
+		{"alpha zero", func(t *testing.T, dir string) []string { return []string{trendMonthly, "--alpha", "0"} },
+			[]string{"--alpha 0 is outside (0, 0.5]"}},
+		{"alpha not a number", func(t *testing.T, dir string) []string { return []string{trendMonthly, "--alpha", "five"} },
+			[]string{`invalid argument "five" for "--alpha"`}},
+		{"chart with extension", func(t *testing.T, dir string) []string {
+			return []string{trendMonthly, "--chart", filepath.Join(dir, "out", "trend.pdf")}
+		}, []string{"give a prefix, not a file name"}},
+		{"chart folder missing", func(t *testing.T, dir string) []string {
+			return []string{trendMonthly, "--chart", filepath.Join(dir, "nowhere", "trend")}
+		}, []string{"nowhere does not exist"}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			dir := t.TempDir()
+			outDir := filepath.Join(dir, "out")
+			os.Mkdir(outDir, 0o755)
+			args := append([]string{"trend"}, c.setup(t, dir)...)
+			if !strings.Contains(strings.Join(args, " "), "--chart") {
+				args = append(args, "--chart", filepath.Join(outDir, "trend"))
+			}
+			out, errOut, code := trendRun(t, args...)
+			if code != exitBadInput {
+				t.Fatalf("exit %d, want %d\nstderr: %s", code, exitBadInput, errOut)
+			}
+			if out != "" {
+				t.Errorf("a refused run printed to stdout: %q", out)
+			}
+			if !strings.HasPrefix(errOut, "probity: ") || strings.Count(errOut, "\n") > 2 {
+				t.Errorf("stderr is not one error line (and a hint): %q", errOut)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(errOut, w) {
+					t.Errorf("stderr %q lacks %q", errOut, w)
+				}
+			}
+			if left, _ := os.ReadDir(outDir); len(left) != 0 {
+				t.Errorf("a refused run left %d files in the chart folder", len(left))
+			}
+		})
+	}
+}
+
+func TestTrendOptionsValidate(t *testing.T) {
+	dir := t.TempDir()
+	good := []trendOptions{
+		{alpha: 0.05}, {alpha: 0.5}, {alpha: 1e-6, chart: filepath.Join(dir, "x")}, {alpha: 0.05, chart: "trend"},
+	}
+	for _, o := range good {
+		if err := o.validate(); err != nil {
+			t.Errorf("%+v: %v", o, err)
+		}
+	}
+	bad := []trendOptions{
+		{alpha: 0}, {alpha: 0.51}, {alpha: -1}, {alpha: 0.05, chart: dir + string(filepath.Separator)},
+		{alpha: 0.05, chart: filepath.Join(dir, "x.PNG")},
+	}
+	for _, o := range bad {
+		if err := o.validate(); err == nil {
+			t.Errorf("%+v accepted", o)
+		}
+	}
+	// Flags parse into the options.
+	cmd := newTrendCommand(deps{})
+	if err := cmd.ParseFlags([]string{"--baseline", "2026-02", "--alpha", "0.1", "--chart", "c/t", "--json"}); err != nil {
+		t.Fatal(err)
+	}
+	for name, want := range map[string]string{"baseline": "2026-02", "alpha": "0.1", "chart": "c/t", "json": "true"} {
+		if got := cmd.Flags().Lookup(name).Value.String(); got != want {
+			t.Errorf("--%s = %s, want %s", name, got, want)
+		}
+	}
+}
