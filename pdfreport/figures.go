@@ -6,8 +6,8 @@ import (
 
 // ocSection embeds the OC figure with its caption, kept on one page.
 func (d *doc) ocSection(c *content) {
-	d.heading("Operating characteristic of the rule")
 	if c.oc == nil {
+		d.heading("Operating characteristic of the rule")
 		d.body("The record holds no operating-characteristic curve.")
 		return
 	}
@@ -26,7 +26,7 @@ func (d *doc) ocSection(c *content) {
 	h := w * ocHeightMM / ocWidthMM
 	d.font("I", smallSize)
 	capLines := d.wrap(caption, w)
-	d.need(h + float64(len(capLines))*smallLineH + 3)
+	d.headingKeep("Operating characteristic of the rule", h+float64(len(capLines))*smallLineH+3)
 	y := d.pdf.GetY()
 	d.pdf.ImageOptions("oc-curve", marginX, y, w, h, false, gofpdf.ImageOptions{ImageType: "PNG"}, 0, "")
 	d.pdf.SetY(y + h + 1.5)

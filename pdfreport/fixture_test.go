@@ -214,6 +214,8 @@ func manyRecord() *record.Record {
 	rec.Plan.Multiplicity = "holm"
 	rec.Plan.Require = "any"
 	rec.Plan.Population = 1250000
+	rec.Plan.PerCandidateRisk = 0.05 / 12
+	rec.Method.Statement = "One-sided Korn–Graubard upper bound at 99.583 % per candidate (Holm, M = 12)."
 	rec.Method.Bound = "korn-graubard (approximate)"
 	rec.Method.Approximate = true
 	rec.Method.Assumptions = []string{"Korn–Graubard uses the effective sample size of the stratified design."}

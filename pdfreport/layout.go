@@ -108,7 +108,7 @@ func (d *doc) wrap(text string, w float64) []string {
 				line = ""
 			}
 			for d.pdf.GetStringWidth(word) > w {
-				cut := d.fit(word, w)
+				cut := d.breakAt(word, w)
 				lines = append(lines, word[:cut])
 				word = word[cut:]
 			}
@@ -117,6 +117,16 @@ func (d *doc) wrap(text string, w float64) []string {
 		lines = append(lines, line)
 	}
 	return lines
+}
+
+// breakAt returns where to break a word too long for a line: after the
+// last '-', '_' or '/' that fits, else after as many characters as fit.
+func (d *doc) breakAt(word string, w float64) int {
+	cut := d.fit(word, w)
+	if i := strings.LastIndexAny(word[:cut], "-_/"); i > 0 && i+1 < cut {
+		return i + 1
+	}
+	return cut
 }
 
 // fit returns the byte length of the longest prefix of s (at least one
@@ -144,10 +154,14 @@ func (d *doc) fit(s string, w float64) int {
 }
 
 // heading starts a numbered section, keeping it with the text below it.
-func (d *doc) heading(title string) {
+func (d *doc) heading(title string) { d.headingKeep(title, keepWithHeading) }
+
+// headingKeep starts a numbered section on a new page unless the heading
+// and minBelow millimetres of what follows fit on this one.
+func (d *doc) headingKeep(title string, minBelow float64) {
 	d.section++
 	d.space(3)
-	d.need(keepWithHeading)
+	d.need(9.5 + minBelow)
 	d.font("B", headingSize)
 	d.textColour(headingColour)
 	d.pdf.SetX(marginX)
@@ -232,18 +246,30 @@ func (d *doc) rule() {
 
 func itoa(n int) string { return count(int64(n)) }
 
-// glueUnits joins a lone "%" (and "%)" or "%," …) to the number before
-// it, so that "2.000 %" never breaks between the number and its unit.
+// glueUnits keeps short formulas on one line: a lone "%" (or "%)", "%,"
+// …) stays with the number before it ("2.000 %"), and a relation sign
+// ("=", "≤", "≥", "<", ">") with the words on both sides ("c = 3").
 func glueUnits(words []string) []string {
-	out := words[:0:0]
+	var out []string
+	glueNext := false
 	for _, w := range words {
-		if strings.HasPrefix(w, "%") && len(out) > 0 {
+		if len(out) > 0 && (glueNext || strings.HasPrefix(w, "%") || isRelation(w)) {
 			out[len(out)-1] += " " + w
-			continue
+		} else {
+			out = append(out, w)
 		}
-		out = append(out, w)
+		glueNext = isRelation(w)
 	}
 	return out
+}
+
+// isRelation reports a lone relation sign.
+func isRelation(w string) bool {
+	switch w {
+	case "=", "≤", "≥", "<", ">":
+		return true
+	}
+	return false
 }
 
 // plural is "1 error" or "n errors".
@@ -252,4 +278,14 @@ func plural(n int, one, many string) string {
 		return "1 " + one
 	}
 	return itoa(n) + " " + many
+}
+
+// ellipsis shortens text to fit w in the current font, ending it with
+// "…" when it had to be cut.
+func (d *doc) ellipsis(text string, w float64) string {
+	if d.pdf.GetStringWidth(text) <= w {
+		return text
+	}
+	cut := d.fit(text, w-d.pdf.GetStringWidth("…"))
+	return strings.TrimSpace(text[:cut]) + "…"
 }

@@ -208,8 +208,12 @@ func (d *doc) pageHeader(c *content) {
 	d.font("", smallSize)
 	d.textColour(mutedColour)
 	d.pdf.SetXY(marginX, 9)
-	d.pdf.CellFormat(d.contentW()/2, 4, "Acceptance record · "+systemName(c.rec), "", 0, "L", false, 0, "")
-	d.pdf.CellFormat(d.contentW()/2, 4, "Record "+c.rec.RecordID, "", 0, "R", false, 0, "")
+	right := "Record " + c.rec.RecordID
+	rw := d.pdf.GetStringWidth(right) + 2
+	lw := d.contentW() - rw - 4
+	d.pdf.CellFormat(lw, 4, d.ellipsis("Acceptance record · "+systemName(c.rec), lw), "", 0, "L", false, 0, "")
+	d.pdf.SetX(marginX + d.contentW() - rw)
+	d.pdf.CellFormat(rw, 4, right, "", 0, "R", false, 0, "")
 	d.drawColour(ruleColour)
 	d.pdf.Line(marginX, 14, marginX+d.contentW(), 14)
 	d.textColour(inkColour)

@@ -27,7 +27,7 @@ func (d *doc) strataSection(c *content) {
 			title: "Strata of the draw",
 			cols: []column{{head: "Stratum", w: 40}, {head: "Population N_h", w: 20, align: "R"},
 				{head: "Sample n_h", w: 20, align: "R"}, {head: "Weight N_h/N", w: 20, align: "R"}},
-			rows: rows, header: true,
+			rows: rows, header: true, compact: len(rows) > 10,
 		})
 	}
 	any := false
@@ -49,17 +49,17 @@ func (d *doc) strataSection(c *content) {
 		for _, s := range cand.Strata {
 			rows = append(rows, []cell{
 				{text: s.Label}, {text: itoa(s.Labeled)}, {text: itoa(s.Errors)}, {text: pct(s.Rate)},
-				{text: pctDown(s.Lower) + " – " + pctUp(s.Upper)},
+				{text: pctDown(s.Lower)}, {text: pctUp(s.Upper)},
 			})
 		}
 		title := "Errors per stratum: " + cand.Name
 		d.subheading(title, 14)
 		d.drawTable(&table{
 			title: title,
-			cols: []column{{head: "Stratum", w: 36}, {head: "Labeled", w: 14, align: "R"},
-				{head: "Errors", w: 14, align: "R"}, {head: "Rate", w: 16, align: "R"},
-				{head: "95 % interval (two-sided, exact)", w: 30, align: "R"}},
-			rows: rows, header: true,
+			cols: []column{{head: "Stratum", w: 36}, {head: "Labeled", w: 13, align: "R"},
+				{head: "Errors", w: 13, align: "R"}, {head: "Rate", w: 14, align: "R"},
+				{head: "95 % lower limit", w: 15, align: "R"}, {head: "95 % upper limit", w: 15, align: "R"}},
+			rows: rows, header: true, compact: len(rows) > 10,
 		})
 	}
 }

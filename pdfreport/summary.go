@@ -66,14 +66,14 @@ func (d *doc) summary(c *content) {
 		{head: "Candidate", w: 24},
 		{head: "Errors / labeled", w: 13, align: "R"},
 		{head: "Estimate", w: 12, align: "R"},
-		{head: "Upper bound (" + c.fields.BoundConfidence + ")", w: 14, align: "R"},
+		{head: "Upper bound at " + c.fields.BoundConfidence, w: 16, align: "R"},
 		{head: "Ceiling", w: 11, align: "R"},
 		{head: "p-value", w: 13, align: "R"},
 	}
 	if holm {
 		cols = append(cols, column{head: "Adjusted p", w: 13, align: "R"})
 	}
-	cols = append(cols, column{head: "Verdict", w: 14, align: "C"}, column{head: "Reason", w: 22})
+	cols = append(cols, column{head: "Verdict", w: 14, align: "C"}, column{head: "Reason", w: 20})
 	var rows [][]cell
 	for _, cand := range rec.Candidates {
 		row := []cell{

@@ -31,10 +31,19 @@ type table struct {
 	keyFill bool
 	// width is the table width in mm; 0 for the content width.
 	width float64
+	// compact tightens the rows of a long table.
+	compact bool
 }
 
 const cellPadX = 1.6
-const cellPadY = 1.1
+
+// padY is the space above and below a cell's text.
+func (t *table) padY() float64 {
+	if t.compact {
+		return 0.55
+	}
+	return 1.1
+}
 
 func (t *table) fontSize() float64 {
 	if t.size > 0 {
@@ -73,7 +82,7 @@ func (d *doc) layoutRow(t *table, ws []float64, texts []cell, boldAll bool) ([][
 			maxLines = len(lines[i])
 		}
 	}
-	return lines, float64(maxLines)*lh + 2*cellPadY
+	return lines, float64(maxLines)*lh + 2*t.padY()
 }
 
 func (d *doc) cellFont(t *table, c cell, boldAll bool) {
