@@ -1,0 +1,470 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"github.com/spf13/cobra"
+
+	"probity/plan"
+	"probity/sampling"
+)
+
+// drawOptions are the flags of probity draw.
+type drawOptions struct {
+	planPath    string
+	logPath     string
+	out         string
+	check       string
+	format      string
+	id          string
+	strata      []string
+	bands       []string
+	show        []string
+	where       []string
+	allocation  string
+	minPer      int
+	anticipated string
+	spare       int
+	dedupe      string
+	double      int
+	period      string
+	force       bool
+	quiet       bool
+
+	parsedBands []sampling.Band
+	parsedWhere []sampling.Filter
+}
+
+// drawProgressMin is the log size from which a progress bar is shown.
+const drawProgressMin = 64 << 20
+
+// newDrawCommand builds `probity draw`.
+func newDrawCommand(d deps) *cobra.Command {
+	opts := &drawOptions{}
+	cmd := &cobra.Command{
+		Use:   "draw --plan PLAN.yaml --log FILE --out DIR",
+		Short: "Draw the stratified, verifiable sample list from a prediction log",
+		Long: `draw reads the prediction log once and picks the items to label.
+
+Each row's key is the lowercase hex SHA-256 of the UTF-8 bytes
+"<seed>:<record id>", the seed exactly as in the plan (with --period LABEL,
+the period seed sha256hex("<plan seed>:period:<LABEL>") instead). In each
+stratum the n_h rows with the smallest keys are the sample, and the next
+--spare rows in key order its spares. Anyone holding the plan and the log can
+recompute the selection; it does not depend on the order of the rows.
+
+The log is CSV, TSV or JSON Lines (by extension, else by content; - reads
+stdin), optionally gzip-compressed (detected by its first bytes). Strata are
+the values of the --strata columns joined with | in the order given, then the
+--band intervals: --band score=0.5,0.9 splits a score in [0, 1] into
+[0,0.5), [0.5,0.9) and [0.9,1].
+
+The plan's n is allocated across strata --allocation proportional (the
+default; largest remainder, ties by stratum label in byte order), neyman
+(n_h ∝ N_h·√(p_h(1−p_h)), p_h from --anticipated FILE, a CSV with columns
+stratum,anticipated_error or a YAML mapping, or derived from the first band as
+min(m, 1−m) at the interval midpoint m) or equal. A stratum smaller than its
+share is taken whole and the rest shared again. --min-per-stratum k raises
+small strata to k; the inclusion weights N_h/n_h are then unequal and
+recorded.
+
+DIR receives, each written to a temporary name and renamed:
+  worksheet.csv         for the labelers: item, record_id, the --show columns,
+                        empty label, note and labeler columns; sample in key
+                        order, then spares. Never a prediction, score or stratum.
+  worksheet-second.csv  with --double k: the first k items, for a second,
+                        independent label
+  ledger.csv            for the audit owner: item, record_id, stratum,
+                        stratum_size, stratum_sample, weight, key, spare,
+                        double, then each candidate's prediction
+  manifest.json         plan fingerprint, log SHA-256, bytes and rows, strata
+                        with N_h and n_h, seeds, allocation, file digests,
+                        tool version
+A non-empty DIR is refused unless --force.
+
+Repeated record ids are an error unless --dedupe first (the first row of an
+id is kept). They are detected exactly among the rows that could be drawn
+(those whose keys are among the n + spare smallest of their stratum); a
+repeat that could not be drawn cannot change the sample.
+
+probity draw --check DIR --plan PLAN.yaml --log FILE draws again with the
+options recorded in DIR/manifest.json and reports whether the ledger and
+worksheets hold exactly what chance picked (exit 0) or what differs (exit 1).
+Labels written into the worksheets since the draw are not differences.
+
+` + exitCodesHelp,
+		Example: `  probity draw --plan plan.yaml --log predictions.csv.gz --out audit-2026-11 \
+      --strata region,channel --show text --spare 2 --double 50 --period 2026-11
+  probity draw --check audit-2026-11 --plan plan.yaml --log predictions.csv.gz`,
+		Args: cobra.NoArgs,
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			return opts.validate()
+		},
+		RunE: func(cmd *cobra.Command, args []string) error {
+			if opts.check != "" {
+				return runDrawCheck(d, opts)
+			}
+			return runDraw(d, opts)
+		},
+	}
+	fl := cmd.Flags()
+	fl.StringVar(&opts.planPath, "plan", "", "the plan file (from probity plan)")
+	fl.StringVar(&opts.logPath, "log", "", "the prediction log: CSV, TSV or JSON Lines, optionally gzip; - for stdin")
+	fl.StringVar(&opts.out, "out", "", "the folder to write the draw into")
+	fl.StringVar(&opts.check, "check", "", "check the draw in `DIR` against the log and plan instead of drawing")
+	fl.StringVar(&opts.format, "format", "", "the log's format, csv, tsv or jsonl (default: from the extension, else the content)")
+	fl.StringVar(&opts.id, "id", "record_id", "the log's record id `COLUMN`")
+	fl.StringSliceVar(&opts.strata, "strata", nil, "stratify by these columns (`COL1,COL2`)")
+	fl.StringArrayVar(&opts.bands, "band", nil, "stratify by score intervals: `COLUMN=EDGE1,EDGE2,…` (repeatable)")
+	fl.StringSliceVar(&opts.show, "show", nil, "columns the labelers see in the worksheet (`COL,…`)")
+	fl.StringArrayVar(&opts.where, "where", nil, "draw only from rows whose COLUMN holds one of the values: `COLUMN=V1,V2` (repeatable)")
+	fl.StringVar(&opts.allocation, "allocation", sampling.Proportional, "how n is divided among strata: proportional, neyman or equal")
+	fl.IntVar(&opts.minPer, "min-per-stratum", 0, "at least `k` items from every stratum (weights become unequal)")
+	fl.StringVar(&opts.anticipated, "anticipated", "", "anticipated error per stratum for neyman: CSV (stratum,anticipated_error) or YAML `FILE`")
+	fl.IntVar(&opts.spare, "spare", 0, "`k` spare items per stratum, next in key order, to replace items that cannot be labeled")
+	fl.StringVar(&opts.dedupe, "dedupe", "", "with 'first': keep the first row of a repeated record id instead of refusing")
+	fl.IntVar(&opts.double, "double", 0, "the first `k` items get a second, independent label (worksheet-second.csv)")
+	fl.StringVar(&opts.period, "period", "", "draw a fresh sample for period `LABEL` (e.g. 2026-11) with the period seed")
+	fl.BoolVar(&opts.force, "force", false, "write into a non-empty output folder")
+	fl.BoolVarP(&opts.quiet, "quiet", "q", false, "no progress bar")
+	return cmd
+}
+
+// validate checks the flags before any file is read.
+func (o *drawOptions) validate() error {
+	if o.planPath == "" {
+		return withHint(usageErrorf("--plan is required"), "give the plan file made by 'probity plan', e.g. --plan plan.yaml")
+	}
+	if o.logPath == "" {
+		return withHint(usageErrorf("--log is required"), "give the prediction log, e.g. --log predictions.csv.gz (- reads stdin)")
+	}
+	if o.check != "" {
+		if o.out != "" {
+			return withHint(usageErrorf("--check and --out cannot be used together"), "--check DIR verifies an existing draw; --out DIR makes a new one")
+		}
+		return nil
+	}
+	if o.out == "" {
+		return withHint(usageErrorf("--out is required"), "name the folder to write the draw into, e.g. --out audit-2026-11")
+	}
+	switch o.format {
+	case "", sampling.FormatCSV, sampling.FormatTSV, sampling.FormatJSONL:
+	default:
+		return withHint(usageErrorf("--format %s is not csv, tsv or jsonl", o.format), "leave it out to detect the format")
+	}
+	switch o.allocation {
+	case sampling.Proportional, sampling.Equal:
+		if o.anticipated != "" {
+			return withHint(usageErrorf("--anticipated is only used by --allocation neyman"), "add --allocation neyman, or drop --anticipated")
+		}
+	case sampling.Neyman:
+		if o.anticipated == "" && len(o.bands) == 0 {
+			return withHint(usageErrorf("--allocation neyman needs the anticipated error of each stratum"),
+				"give --anticipated FILE (CSV stratum,anticipated_error or YAML), or stratify by a score band (--band score=0.5,0.9) to derive it")
+		}
+	default:
+		return withHint(usageErrorf("--allocation %s is not proportional, neyman or equal", o.allocation), "the default is proportional")
+	}
+	for _, v := range []struct {
+		name string
+		n    int
+	}{{"--min-per-stratum", o.minPer}, {"--spare", o.spare}, {"--double", o.double}} {
+		if v.n < 0 {
+			return usageErrorf("%s %d is negative", v.name, v.n)
+		}
+	}
+	if o.dedupe != "" && o.dedupe != "first" {
+		return withHint(usageErrorf("--dedupe %s is not supported", o.dedupe), "--dedupe first keeps the first row of each repeated id")
+	}
+	if strings.TrimSpace(o.period) != o.period || strings.ContainsAny(o.period, "\n\r") {
+		return usageErrorf("--period %q has leading or trailing spaces", o.period)
+	}
+	for _, b := range o.bands {
+		pb, err := sampling.ParseBand(b)
+		if err != nil {
+			return withHint(usageErrorf("--band: %v", err), "e.g. --band score=0.5,0.9")
+		}
+		o.parsedBands = append(o.parsedBands, pb)
+	}
+	for _, w := range o.where {
+		pf, err := sampling.ParseFilter(w)
+		if err != nil {
+			return withHint(usageErrorf("--where: %v", err), "e.g. --where region=north,south")
+		}
+		o.parsedWhere = append(o.parsedWhere, pf)
+	}
+	for _, c := range append(append([]string{o.id}, o.strata...), o.show...) {
+		if strings.TrimSpace(c) == "" {
+			return usageErrorf("an empty column name was given (check --id, --strata and --show)")
+		}
+	}
+	return nil
+}
+
+// loadDrawPlan loads the plan and refuses a sizing-only one.
+func loadDrawPlan(path string) (*plan.File, string, error) {
+	p, fp, err := plan.Load(path)
+	if err != nil {
+		return nil, "", badInput(err)
+	}
+	if p.IsSizingOnly() {
+		return nil, "", withHint(usageErrorf("%s is a sizing-only plan: it declares no candidates, so it cannot be drawn", path),
+			"declare the models or thresholds to judge: probity plan … --candidate NAME=COLUMN, or --thresholds COLUMN:t1,t2 --positive LABEL --negative LABEL")
+	}
+	return p, fp, nil
+}
+
+// openDrawLog opens the log (- is stdin) and returns its size when known.
+func openDrawLog(d deps, path string) (io.Reader, func(), int64, error) {
+	if path == "-" {
+		return d.stdin, func() {}, 0, nil
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, nil, 0, withHint(usageErrorf("cannot open the log: %v", err), "check the --log path")
+	}
+	var size int64
+	if st, err := f.Stat(); err == nil {
+		if st.IsDir() {
+			f.Close()
+			return nil, nil, 0, usageErrorf("--log %s is a folder, not a file", path)
+		}
+		size = st.Size()
+	}
+	return f, func() { f.Close() }, size, nil
+}
+
+// drawError maps a sampling error to probity's error shape.
+func drawError(err error) error {
+	var ie *sampling.InputError
+	if errors.As(err, &ie) {
+		if ie.Hint != "" {
+			return withHint(badInput(err), ie.Hint)
+		}
+		return badInput(err)
+	}
+	var oe *sampling.OptionError
+	if errors.As(err, &oe) {
+		return badInput(err)
+	}
+	if errors.Is(err, sampling.ErrAllocation) || errors.Is(err, sampling.ErrInput) || errors.Is(err, sampling.ErrDuplicateIDs) {
+		return badInput(err)
+	}
+	if errors.Is(err, sampling.ErrFolderNotEmpty) {
+		return withHint(badInput(err), "choose a new folder, or add --force to overwrite the draw in it")
+	}
+	return err
+}
+
+func runDraw(d deps, o *drawOptions) error {
+	p, fp, err := loadDrawPlan(o.planPath)
+	if err != nil {
+		return err
+	}
+	if err := sampling.CheckFolderWritable(o.out, o.force); err != nil {
+		return drawError(err)
+	}
+	in := sampling.DrawInput{
+		Plan: p, PlanFingerprint: fp, LogPath: o.logPath, Format: o.format, Period: o.period,
+		IDColumn: o.id, StrataColumns: o.strata, Bands: o.parsedBands, Where: o.parsedWhere, Show: o.show,
+		Alloc:  sampling.AllocOptions{Rule: o.allocation, MinPerStratum: o.minPer, Spare: o.spare},
+		Double: o.double, Dedupe: o.dedupe == "first", ToolVersion: d.version,
+	}
+	if o.allocation == sampling.Neyman {
+		if o.anticipated != "" {
+			a, err := sampling.ReadAnticipated(o.anticipated)
+			if err != nil {
+				return drawError(err)
+			}
+			in.Alloc.Anticipated = a
+			in.NeymanSource = o.anticipated
+		} else {
+			in.NeymanFromBand = true
+			in.NeymanSource = "band " + o.parsedBands[0].String() + " (p_h = min(m, 1 − m) at the interval midpoint m)"
+		}
+	}
+	f, err := drawFromLog(d, o, &in)
+	if err != nil {
+		return err
+	}
+	if in.Alloc.Anticipated != nil {
+		labels := make([]string, len(f.Manifest.Strata))
+		for i, s := range f.Manifest.Strata {
+			labels[i] = s.Label
+		}
+		if err := sampling.CheckAnticipated(o.anticipated, in.Alloc.Anticipated, labels); err != nil {
+			return drawError(err)
+		}
+	}
+	if err := sampling.WriteFolder(o.out, f, o.force); err != nil {
+		if errors.Is(err, sampling.ErrFolderNotEmpty) {
+			return drawError(err)
+		}
+		return fmt.Errorf("writing %s: %w", o.out, err)
+	}
+	writeDrawSummary(d.stdout, o.out, f)
+	return nil
+}
+
+// drawFromLog opens the log and draws, with a progress bar when stderr is
+// a terminal and the log is large.
+func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*sampling.Folder, error) {
+	r, closeLog, size, err := openDrawLog(d, o.logPath)
+	if err != nil {
+		return nil, err
+	}
+	defer closeLog()
+	in.Log = r
+	var bar *drawProgressBar
+	if d.stderrIsTerminal && !o.quiet && (size >= drawProgressMin || size == 0) {
+		bar = &drawProgressBar{w: d.stderr, now: d.now, total: size, start: d.now(), min: drawProgressMin}
+		in.Progress = bar.update
+	}
+	f, err := sampling.Draw(*in)
+	if bar != nil {
+		bar.finish()
+	}
+	if err != nil {
+		if errors.Is(err, sampling.ErrNotDrawable) {
+			return nil, withHint(badInput(err), "declare candidates with probity plan --candidate NAME=COLUMN or --thresholds COLUMN:t1,t2 --positive L --negative L")
+		}
+		return nil, drawError(err)
+	}
+	return f, nil
+}
+
+// writeDrawSummary prints what was drawn.
+func writeDrawSummary(w io.Writer, dir string, f *sampling.Folder) {
+	m := f.Manifest
+	fmt.Fprintf(w, "drew %d items", m.SampleSize)
+	if m.Spares > 0 {
+		fmt.Fprintf(w, " and %d spares", m.Spares)
+	}
+	fmt.Fprintf(w, " from %d rows in scope (%d read) in %d strata into %s\n", m.LotSize, m.Log.Rows, len(m.Strata), dir)
+	fmt.Fprintf(w, "allocation: %s", m.Allocation.Rule)
+	if m.Allocation.MinPerStratum > 0 {
+		fmt.Fprintf(w, ", at least %d per stratum", m.Allocation.MinPerStratum)
+	}
+	fmt.Fprintln(w)
+	wl := len("stratum")
+	for _, s := range m.Strata {
+		wl = max(wl, len([]rune(s.Label)))
+	}
+	fmt.Fprintf(w, "  %-*s  %10s  %6s  %6s  %9s\n", wl, "stratum", "N_h", "n_h", "spares", "weight")
+	for _, s := range m.Strata {
+		fmt.Fprintf(w, "  %-*s  %10d  %6d  %6d  %9s\n", wl, s.Label, s.Population, s.Sample, s.Spare, formatWeight(s.Weight))
+	}
+	if m.Period != "" {
+		fmt.Fprintf(w, "period %s: selection seed %s = sha256hex(\"<plan seed>:period:%s\")\n", m.Period, m.SelectionSeed, m.Period)
+	} else {
+		fmt.Fprintf(w, "selection seed: %s (the plan's)\n", m.SelectionSeed)
+	}
+	if m.Double > 0 {
+		fmt.Fprintf(w, "doubled: items 1–%d also in %s\n", m.Double, sampling.WorksheetSecondFile)
+	}
+	if m.DuplicatesDropped > 0 {
+		fmt.Fprintf(w, "repeated ids: %d later rows dropped (--dedupe first)\n", m.DuplicatesDropped)
+	}
+	fmt.Fprintf(w, "log sha256: %s (%d bytes)\n", m.Log.SHA256, m.Log.Bytes)
+	fmt.Fprintf(w, "give %s to the labelers; keep %s and %s\n",
+		filepath.Join(dir, sampling.WorksheetFile), filepath.Join(dir, sampling.LedgerFile), filepath.Join(dir, sampling.ManifestFile))
+}
+
+func formatWeight(w float64) string {
+	if w == 0 {
+		return "-"
+	}
+	return fmt.Sprintf("%.2f", w)
+}
+
+func runDrawCheck(d deps, o *drawOptions) error {
+	p, fp, err := loadDrawPlan(o.planPath)
+	if err != nil {
+		return err
+	}
+	m, _, err := sampling.ReadManifest(filepath.Join(o.check, sampling.ManifestFile))
+	if err != nil {
+		if errors.Is(err, os.ErrNotExist) {
+			return withHint(usageErrorf("%s has no %s: it is not a draw folder", o.check, sampling.ManifestFile), "give the folder written by probity draw --out")
+		}
+		return drawError(err)
+	}
+	in, err := sampling.DrawInputFromManifest(m)
+	if err != nil {
+		return drawError(err)
+	}
+	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
+	f, err := drawFromLog(d, o, &in)
+	if err != nil {
+		return err
+	}
+	rep, err := sampling.CompareFolder(o.check, f)
+	if err != nil {
+		return drawError(err)
+	}
+	if len(rep.Differences) == 0 {
+		fmt.Fprintf(d.stdout, "same: %s holds exactly the %d items and %d spares that the seed picks from %s (%d rows, sha256 %s)\n",
+			o.check, rep.Items, rep.Spares, o.logPath, f.Manifest.Log.Rows, f.Manifest.Log.SHA256)
+		return nil
+	}
+	fmt.Fprintf(d.stdout, "different: %s is not what the seed picks from %s:\n", o.check, o.logPath)
+	for _, s := range rep.Differences {
+		fmt.Fprintf(d.stdout, "  %s\n", s)
+	}
+	return rejected("draw check failed: %d differences", len(rep.Differences))
+}
+
+// drawProgressBar draws a one-line progress bar on stderr: bytes read of
+// the total, and rows per second. It redraws at most every 200 ms.
+type drawProgressBar struct {
+	w     io.Writer
+	now   func() time.Time
+	total int64
+	start time.Time
+	last  time.Time
+	min   int64
+	shown bool
+}
+
+func (b *drawProgressBar) update(p sampling.Progress) {
+	t := b.now()
+	if t.Sub(b.last) < 200*time.Millisecond {
+		return
+	}
+	if b.total == 0 && p.Bytes < b.min {
+		return
+	}
+	b.last = t
+	b.shown = true
+	secs := t.Sub(b.start).Seconds()
+	rate := 0.0
+	if secs > 0 {
+		rate = float64(p.Lines) / secs
+	}
+	if b.total > 0 {
+		frac := float64(p.Bytes) / float64(b.total)
+		if frac > 1 {
+			frac = 1
+		}
+		const width = 30
+		fill := int(frac * width)
+		fmt.Fprintf(b.w, "\r[%s%s] %3.0f%%  %s of %s  %.1f M rows/s ",
+			strings.Repeat("#", fill), strings.Repeat(".", width-fill), 100*frac, megabytes(p.Bytes), megabytes(b.total), rate/1e6)
+		return
+	}
+	fmt.Fprintf(b.w, "\r%s read  %.1f M rows/s ", megabytes(p.Bytes), rate/1e6)
+}
+
+func (b *drawProgressBar) finish() {
+	if b.shown {
+		fmt.Fprint(b.w, "\r\033[K")
+	}
+}
+
+func megabytes(n int64) string { return fmt.Sprintf("%.0f MB", float64(n)/1e6) }
