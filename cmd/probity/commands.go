@@ -7,5 +7,6 @@ import "github.com/spf13/cobra"
 func commands(d deps) []*cobra.Command {
 	return []*cobra.Command{
 		// newPlanCommand(d),
+		newDrawCommand(d),
 	}
 }
