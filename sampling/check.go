@@ -74,7 +74,9 @@ func CompareFolder(dir string, want *Folder) (*CheckReport, error) {
 		return nil, err
 	}
 	_ = gotBytes
-	diff := func(format string, args ...any) { rep.Differences = append(rep.Differences, fmt.Sprintf(format, args...)) }
+	diff := func(format string, args ...any) {
+		rep.Differences = append(rep.Differences, fmt.Sprintf(format, args...))
+	}
 	w := want.Manifest
 	field := func(name string, g, x any) {
 		if fmt.Sprint(g) != fmt.Sprint(x) {
