@@ -34,6 +34,7 @@ const (
 	minTableFnt = 5.5
 	chartDPI    = 200
 	maxPeriods  = 36
+	minCandW    = 30.0 // mm per candidate in the table
 	// Fixed table columns: period, record id, overall verdict.
 	colPeriod  = 16.0
 	colRecord  = 21.0
@@ -54,8 +55,9 @@ var (
 	rule      = rgb{170, 178, 190}
 )
 
-// PDF lays out t on one A4 page — portrait for up to three candidates,
-// landscape beyond — and returns its bytes: a heading with the class, the
+// PDF lays out t on one A4 portrait page (up to 36 periods and 4
+// candidates; the table's type shrinks from 7.5 pt for 4) and returns its
+// bytes: a heading with the class, the
 // baseline and the test; the chart; a table of every period (record id,
 // overall verdict, and per candidate errors/labeled, upper bound and the
 // p-value against the baseline, flagged ones marked "↑"); the warnings;
@@ -68,16 +70,15 @@ func PDF(t *trend.Trend, info PageInfo) ([]byte, error) {
 		return nil, fmt.Errorf("%w: %d periods do not fit on one page (at most %d); pass fewer records", ErrTrend, len(t.Periods), maxPeriods)
 	}
 	k := len(t.Candidates)
-	orient, pw, ph := "P", 210.0, 297.0
-	if k > 3 {
-		orient, pw, ph = "L", 297.0, 210.0
-	}
-	cw := pw - 2*pageMargin
+	orient, ph := "P", 297.0
+	cw := 210.0 - 2*pageMargin
 	candW := (cw - colPeriod - colRecord - colOverall) / float64(k)
-	if candW < 27 {
-		return nil, fmt.Errorf("%w: %d candidates do not fit in one table row", ErrTrend, k)
+	if candW < minCandW {
+		return nil, fmt.Errorf("%w: %d candidates do not fit in one table row of the page (at most %d); the PNG chart shows them all",
+			ErrTrend, k, int((cw-colPeriod-colRecord-colOverall)/minCandW))
 	}
 	fontSize := math.Max(minTableFnt, math.Min(tableFont, candW/42*tableFont))
+	rh := rowH * fontSize / tableFont
 
 	pdf := gofpdf.NewCustom(&gofpdf.InitType{OrientationStr: orient, UnitStr: "mm", SizeStr: "A4"})
 	pdf.SetCreationDate(info.Date)
@@ -97,7 +98,7 @@ func PDF(t *trend.Trend, info PageInfo) ([]byte, error) {
 
 	p.header(t)
 	warnH := p.warningsHeight(t.Warnings)
-	tableH := float64(len(t.Periods)+2) * rowH
+	tableH := float64(len(t.Periods)+2)*rh + 5
 	footerH := 9.0
 	avail := ph - pageMargin - pdf.GetY() - 4 - tableH - 4 - warnH - footerH
 	nw, nh := ChartSize(t)
@@ -106,7 +107,7 @@ func PDF(t *trend.Trend, info PageInfo) ([]byte, error) {
 	if chartH > avail {
 		chartH = avail
 	}
-	if chartH < 30+22*float64(k) {
+	if chartH < 20+18*float64(k) {
 		return nil, fmt.Errorf("%w: the chart and a table of %d periods do not fit on one page", ErrTrend, len(t.Periods))
 	}
 	// Draw at the chart's natural width (so the legend fits) and let the
@@ -121,7 +122,7 @@ func PDF(t *trend.Trend, info PageInfo) ([]byte, error) {
 	y := pdf.GetY() + 2
 	pdf.ImageOptions("trend-chart", p.x, y, chartW, chartH, false, gofpdf.ImageOptions{ImageType: "PNG"}, 0, "")
 	pdf.SetY(y + chartH + 3)
-	p.table(t, candW, fontSize)
+	p.table(t, candW, fontSize, rh)
 	p.warnings(t.Warnings)
 	p.footer(t, info, ph)
 	if err := pdf.Error(); err != nil {
@@ -178,7 +179,7 @@ func (p *page) header(t *trend.Trend) {
 }
 
 // table draws one row per period.
-func (p *page) table(t *trend.Trend, candW, size float64) {
+func (p *page) table(t *trend.Trend, candW, size, rowH float64) {
 	pdf := p.pdf
 	sub := []float64{candW * 0.34, candW * 0.30, candW * 0.36}
 	// First header row: candidate names over their three columns.
