@@ -14,9 +14,10 @@ const never = int(^uint(0) >> 1)
 // acc[t] and rej[t] for t = 1 … T (index 0 unused: no decision before the
 // first label).
 type bounds struct {
-	T   int
-	acc []int // −1: acceptance not possible
-	rej []int // never: rejection not possible
+	T    int
+	acc  []int // −1: acceptance not possible
+	rej  []int // never: rejection not possible
+	rmax int   // the largest finite reject boundary
 }
 
 // newBounds validates a rule and converts it. A rule is valid when both
@@ -53,6 +54,9 @@ func newBounds(r *plan.SequentialRule) (*bounds, error) {
 			}
 		}
 		b.acc[t], b.rej[t] = a, rj
+		if rj != never && rj > b.rmax {
+			b.rmax = rj
+		}
 	}
 	if b.acc[T] < 0 || b.rej[T] != b.acc[T]+1 {
 		return nil, fmt.Errorf("%w: at t = max_sample_size = %d the boundaries must meet (reject = accept + 1), got accept %d and reject %s",
@@ -79,15 +83,7 @@ func (b *bounds) rule() *plan.SequentialRule {
 }
 
 // maxReject is the largest finite reject boundary (r_T at least).
-func (b *bounds) maxReject() int {
-	m := 0
-	for t := 1; t <= b.T; t++ {
-		if b.rej[t] != never && b.rej[t] > m {
-			m = b.rej[t]
-		}
-	}
-	return m
-}
+func (b *bounds) maxReject() int { return b.rmax }
 
 func fmtBound(v int) string {
 	if v == never {

@@ -98,8 +98,18 @@ func (s Spec) validate() error {
 // rounded explicitly so the boundaries do not depend on fused
 // multiply-add.
 func lineBounds(T, c int, slope, ha, hr float64) *bounds {
-	b := &bounds{T: T, acc: make([]int, T+1), rej: make([]int, T+1)}
+	return lineBoundsInto(&bounds{}, T, c, slope, ha, hr)
+}
+
+// lineBoundsInto is lineBounds writing into b, reusing its arrays.
+func lineBoundsInto(b *bounds, T, c int, slope, ha, hr float64) *bounds {
+	if cap(b.acc) < T+1 {
+		b.acc, b.rej = make([]int, T+1), make([]int, T+1)
+	}
+	b.T, b.acc, b.rej = T, b.acc[:T+1], b.rej[:T+1]
+	b.rmax = c + 1
 	b.acc[0], b.rej[0] = -1, never
+	finite := !math.IsInf(hr, 1)
 	for t := 1; t < T; t++ {
 		st := float64(slope * float64(t))
 		a := c
@@ -113,7 +123,7 @@ func lineBounds(T, c int, slope, ha, hr float64) *bounds {
 			a = t
 		}
 		r := c + 1
-		if !math.IsInf(hr, 1) {
+		if finite {
 			if x := math.Ceil(st + hr); x < float64(c+1) {
 				r = int(x)
 			}
@@ -202,6 +212,7 @@ func Search(spec Spec) (*Design, error) {
 	}
 	var best *Design
 	bestObj := math.Inf(1)
+	scratch := &bounds{}
 	evals := 0
 	// try evaluates one (T, c, hr): the smallest accept intercept that
 	// keeps the consumer's risk, then the producer's risk and the ASNs.
@@ -211,7 +222,7 @@ func Search(spec Spec) (*Design, error) {
 		}
 		cr := func(ha float64) float64 {
 			evals++
-			return lineBounds(T, c, lines.Slope, ha, hr).evaluateUntil(bad, spec.ConsumerRisk).Accept
+			return lineBoundsInto(scratch, T, c, lines.Slope, ha, hr).evaluateUntil(bad, spec.ConsumerRisk).Accept
 		}
 		// bracket the intercept around Wald's h1, widening as needed
 		lo, hi := 0.5*lines.HAccept, 1.5*lines.HAccept
@@ -236,7 +247,7 @@ func Search(spec Spec) (*Design, error) {
 				lo = mid
 			}
 		}
-		b := lineBounds(T, c, lines.Slope, hi, hr)
+		b := lineBoundsInto(scratch, T, c, lines.Slope, hi, hr)
 		pb := b.evaluate(bad)
 		pg := b.evaluate(good)
 		evals += 2
