@@ -17,7 +17,7 @@ type bounds struct {
 	T    int
 	acc  []int // −1: acceptance not possible
 	rej  []int // never: rejection not possible
-	rmax int   // the largest finite reject boundary
+	rmax int   // a bound above every running error count (array width − 2)
 }
 
 // newBounds validates a rule and converts it. A rule is valid when both
@@ -54,9 +54,8 @@ func newBounds(r *plan.SequentialRule) (*bounds, error) {
 			}
 		}
 		b.acc[t], b.rej[t] = a, rj
-		if rj != never && rj > b.rmax {
-			b.rmax = rj
-		}
+		// the running counts at t stay below min(r_t, t + 1)
+		b.rmax = max(b.rmax, min(rj, t+1))
 	}
 	if b.acc[T] < 0 || b.rej[T] != b.acc[T]+1 {
 		return nil, fmt.Errorf("%w: at t = max_sample_size = %d the boundaries must meet (reject = accept + 1), got accept %d and reject %s",
@@ -82,7 +81,8 @@ func (b *bounds) rule() *plan.SequentialRule {
 	return r
 }
 
-// maxReject is the largest finite reject boundary (r_T at least).
+// maxReject bounds the error counts the dynamic programme tracks: every
+// running count at any t is below it, and so is r_T.
 func (b *bounds) maxReject() int { return b.rmax }
 
 func fmtBound(v int) string {

@@ -1,0 +1,5 @@
+package sequential
+
+import "probity/plan"
+
+type planRule = plan.SequentialRule
