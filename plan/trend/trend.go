@@ -153,7 +153,11 @@ var ErrOptions = errors.New("invalid trend options")
 // m, the p-value is P(X' ≥ X) for X' hypergeometric given X+Y errors among
 // n+m items (see FisherExact). The test compares error counts; where the
 // estimate is stratified with unequal weights the counts are not the
-// weighted rates, and a warning says so.
+// weighted rates, and a warning says so. For finite lots (hypergeometric
+// plans) it asks whether the two months' samples could come from one error
+// rate and ignores the lot sizes (the finite-population correction would
+// only make it more sensitive); for sequential plans it treats the stopped
+// samples as fixed ones, which a warning calls approximate.
 func Build(entries []Entry, opts Options) (*Trend, error) {
 	if !(opts.Alpha > 0 && opts.Alpha < 1) {
 		return nil, fmt.Errorf("%w: alpha %v is outside (0, 1)", ErrOptions, opts.Alpha)
@@ -225,6 +229,10 @@ func Build(entries []Entry, opts Options) (*Trend, error) {
 	t.Warnings = append(t.Warnings, planWarnings(t.Periods)...)
 	t.Warnings = append(t.Warnings, candidateWarnings(t, labels)...)
 	t.Warnings = append(t.Warnings, weightWarnings(es)...)
+	if t.Class.Design == "sequential" && len(es) > 1 {
+		t.Warnings = append(t.Warnings, "the design is sequential: how many items were labeled depends on where the boundaries stopped, "+
+			"and the test treats each period's count as a fixed sample, so its p-values are approximate")
+	}
 	return t, nil
 }
 

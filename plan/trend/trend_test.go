@@ -236,3 +236,30 @@ func TestShapeAndPeriod(t *testing.T) {
 		}
 	}
 }
+
+func TestBuildSingleRecordAndSequential(t *testing.T) {
+	rs := yearRecords()[11:]
+	tr, err := Build(entries(rs), Options{Alpha: 0.05})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if tr.Baseline != "2026-12" || tr.Latest.Label != "2026-12" || len(tr.Candidates) != 3 {
+		t.Fatalf("%+v", tr)
+	}
+	for _, s := range tr.Candidates {
+		if len(s.Rows) != 1 || s.Rows[0].PValue != nil || len(s.Flagged) != 0 {
+			t.Errorf("%s: a lone record has nothing to compare: %+v", s.Name, s)
+		}
+	}
+	rs = yearRecords()[:2]
+	for i := range rs {
+		rs[i].Plan.Design = "sequential"
+	}
+	tr, err = Build(entries(rs), Options{Alpha: 0.05})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(tr.Warnings) != 1 || !strings.Contains(tr.Warnings[0], "p-values are approximate") {
+		t.Errorf("sequential warnings %v", tr.Warnings)
+	}
+}
