@@ -155,8 +155,7 @@ var ErrOptions = errors.New("invalid trend options")
 // estimate is stratified with unequal weights the counts are not the
 // weighted rates, and a warning says so. For finite lots (hypergeometric
 // plans) it asks whether the two months' samples could come from one error
-// rate and ignores the lot sizes (the finite-population correction would
-// only make it more sensitive); for sequential plans it treats the stopped
+// rate and ignores the lot sizes; for sequential plans it treats the stopped
 // samples as fixed ones, which a warning calls approximate.
 func Build(entries []Entry, opts Options) (*Trend, error) {
 	if !(opts.Alpha > 0 && opts.Alpha < 1) {
