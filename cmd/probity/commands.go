@@ -8,5 +8,6 @@ func commands(d deps) []*cobra.Command {
 	return []*cobra.Command{
 		// newPlanCommand(d),
 		newDrawCommand(d),
+		newTrendCommand(d),
 	}
 }
