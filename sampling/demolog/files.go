@@ -1,0 +1,59 @@
+package demolog
+
+import (
+	"compress/gzip"
+	"crypto/sha256"
+	"encoding/binary"
+	"io"
+	"time"
+)
+
+// Clock is the scenario's "now": the demo audits November 2026 and issues
+// its record on 1 December 2026, whatever the machine's clock says, so every
+// artifact is a function of the scenario alone.
+var Clock = time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC)
+
+// PlanSeed is the selection seed the demo's plan is made with.
+const PlanSeed = "5ca1ab1e0ddba11c0ffee0fdecade042"
+
+// WriteLogGzip writes the log gzip-compressed with a fixed header (no
+// name, no modification time), so the compressed bytes are reproducible.
+func (s Scenario) WriteLogGzip(w io.Writer) error {
+	zw, err := gzip.NewWriterLevel(w, gzip.BestSpeed)
+	if err != nil {
+		return err
+	}
+	zw.ModTime = time.Time{}
+	if err := s.WriteLog(zw); err != nil {
+		zw.Close()
+		return err
+	}
+	return zw.Close()
+}
+
+// ThrowAwayKeySource returns the byte stream the demo's signing key is made
+// from: SHA-256 in counter mode over a fixed phrase. The key it yields is
+// published with the source code and signs nothing but demo records; it
+// makes the demo's record, signature included, reproducible byte for byte.
+func ThrowAwayKeySource() io.Reader { return &counterStream{} }
+
+type counterStream struct {
+	block [32]byte
+	used  int
+	n     uint64
+}
+
+func (c *counterStream) Read(p []byte) (int, error) {
+	for i := range p {
+		if c.used == 0 || c.used == len(c.block) {
+			var ctr [8]byte
+			binary.BigEndian.PutUint64(ctr[:], c.n)
+			c.n++
+			c.block = sha256.Sum256(append([]byte("probity demo throw-away key:"), ctr[:]...))
+			c.used = 0
+		}
+		p[i] = c.block[c.used]
+		c.used++
+	}
+	return len(p), nil
+}
