@@ -2,6 +2,8 @@ package agreement
 
 import (
 	"fmt"
+	"math"
+	"strconv"
 	"strings"
 
 	"probity/plan"
@@ -22,6 +24,11 @@ func fillDisagreement(q *record.LabelQuality, tb *Table, conf float64) {
 // pct formats a share as a percentage with one decimal.
 func pct(x float64) string { return fmt.Sprintf("%.1f %%", 100*x) }
 
+// confPct formats a confidence level as the shortest percentage, "95 %".
+func confPct(c float64) string {
+	return strconv.FormatFloat(math.Round(c*1e6)/1e4, 'f', -1, 64) + " %"
+}
+
 // labelErrorNote explains, with the record's numbers, what wrong reference
 // labels do to the bound. The reasoning (common practice, no source): an
 // item whose reference label is wrong can hide a real error or add a false
@@ -37,7 +44,7 @@ func labelErrorNote(q *record.LabelQuality, conf float64) string {
 		return b.String()
 	}
 	fmt.Fprintf(&b, "On the %d doubled items both labelers put in a class they disagreed on %d (%s; one-sided %s upper bound %s). ",
-		q.Compared, q.Disagreed, pct(q.DisagreementRate), pct(conf), pct(q.DisagreementUpper))
+		q.Compared, q.Disagreed, pct(q.DisagreementRate), confPct(conf), pct(q.DisagreementUpper))
 	if q.Disagreed > 0 {
 		fmt.Fprintf(&b, "At least one of two differing labels is wrong, so a single labeler was wrong on at least %s of items on average; ", pct(q.DisagreementRate/2))
 	} else {

@@ -20,7 +20,7 @@ func TestDisagreementRateAndNote(t *testing.T) {
 	}
 	for _, want := range []string{
 		"can differ from the measured one by up to ε",
-		"On the 3 doubled items both labelers put in a class they disagreed on 1 (33.3 %; one-sided 95.0 % upper bound 86.5 %)",
+		"On the 3 doubled items both labelers put in a class they disagreed on 1 (33.3 %; one-sided 95 % upper bound 86.5 %)",
 		"wrong on at least 16.7 % of items on average",
 		"settled by adjudication",
 	} {
