@@ -102,7 +102,7 @@ const (
 //     is refused, or with AllowUnadjudicated counted as an error for every
 //     candidate.
 //   - one a class and the other blank: that class, not compared, with a
-//     warning (refused under Strict).
+//     warning (refused under Strict), unless an adjudication row decides it.
 //   - neither a class: unsure (blank if both are blank), unless an
 //     adjudication row decides it.
 //
@@ -168,46 +168,40 @@ func Resolve(in Input) (*Result, error) {
 			}
 			fin.Label, fin.Source = a, FromAgreement
 		case (ac || bc) && a != "" && b != "":
-			d := record.Disagreement{Item: item, RecordID: fin.RecordID,
-				First: a, FirstLabeler: f.Labeler, Second: b, SecondLabeler: s.Labeler}
 			if hasAdj {
 				fin.Label, fin.Source = ad.FinalLabel, FromAdjudication
-				d.Resolution, d.Final, d.DecidedBy, d.Note = record.ResolvedAdjudicated, ad.FinalLabel, ad.DecidedBy, ad.Note
 				q.Adjudicated++
+				q.Disagreements = append(q.Disagreements, adjudicated(fin, f, s, ad))
 			} else {
 				fin.Source = CountedAsError
-				d.Resolution = record.ResolvedCountedAsError
 				open = append(open, item)
+				q.Disagreements = append(q.Disagreements, record.Disagreement{Item: item, RecordID: fin.RecordID,
+					First: a, FirstLabeler: f.Labeler, Second: b, SecondLabeler: s.Labeler, Resolution: record.ResolvedCountedAsError})
 			}
-			q.Disagreements = append(q.Disagreements, d)
 		case ac || bc:
 			// One side blank: the other label stands, uncompared.
 			side, blankFile, line := b, in.FirstFile, f.Line
 			if ac {
 				side, blankFile, line = a, in.SecondFile, s.Line
 			}
-			msg := fmt.Sprintf("%s line %d: item %d has no label here, so it has one label only and is not compared", blankFile, line, item)
-			if in.Strict {
-				return nil, withHint(inputError(blankFile, line, "label", "item %d has no label, but it was drawn for two independent labels (--strict)", item), "have it labeled, or adjudicate it")
-			}
-			if hasAdj {
+			switch {
+			case hasAdj:
 				fin.Label, fin.Source = ad.FinalLabel, FromAdjudication
 				q.Adjudicated++
-				q.Disagreements = append(q.Disagreements, record.Disagreement{Item: item, RecordID: fin.RecordID,
-					First: a, FirstLabeler: f.Labeler, Second: b, SecondLabeler: s.Labeler,
-					Resolution: record.ResolvedAdjudicated, Final: ad.FinalLabel, DecidedBy: ad.DecidedBy, Note: ad.Note})
-			} else {
+				q.Disagreements = append(q.Disagreements, adjudicated(fin, f, s, ad))
+			case in.Strict:
+				return nil, withHint(inputError(blankFile, line, "label", "item %d has no label, but it was drawn for two independent labels (--strict)", item),
+					"have it labeled, or adjudicate it")
+			default:
 				fin.Label, fin.Source = side, FromOneSide
-				q.Warnings = append(q.Warnings, msg)
+				q.Warnings = append(q.Warnings, fmt.Sprintf("%s line %d: item %d has no label here, so it has one label only and is not compared", blankFile, line, item))
 			}
 		default:
 			// Neither gave a class.
 			if hasAdj {
 				fin.Label, fin.Source = ad.FinalLabel, FromAdjudication
 				q.Adjudicated++
-				q.Disagreements = append(q.Disagreements, record.Disagreement{Item: item, RecordID: fin.RecordID,
-					First: a, FirstLabeler: f.Labeler, Second: b, SecondLabeler: s.Labeler,
-					Resolution: record.ResolvedAdjudicated, Final: ad.FinalLabel, DecidedBy: ad.DecidedBy, Note: ad.Note})
+				q.Disagreements = append(q.Disagreements, adjudicated(fin, f, s, ad))
 			} else {
 				fin.Source = FromNeither
 				if a == Unsure || b == Unsure {
@@ -250,6 +244,14 @@ func Resolve(in Input) (*Result, error) {
 	}
 	res.Quality = q
 	return res, nil
+}
+
+// adjudicated is the disagreement entry of an item the adjudication file
+// resolved.
+func adjudicated(fin Final, f, s sampling.WorksheetRow, ad Adjudication) record.Disagreement {
+	return record.Disagreement{Item: fin.Item, RecordID: fin.RecordID,
+		First: f.Label, FirstLabeler: f.Labeler, Second: s.Label, SecondLabeler: s.Labeler,
+		Resolution: record.ResolvedAdjudicated, Final: ad.FinalLabel, DecidedBy: ad.DecidedBy, Note: ad.Note}
 }
 
 // fillAgreement writes the table and both coefficients into q.

@@ -373,3 +373,22 @@ func TestResolveInvariants(t *testing.T) {
 		}
 	}
 }
+
+func TestResolveStrictAcceptsAnAdjudicatedBlankSide(t *testing.T) {
+	// Item 5's second label is blank: refused under --strict unless the
+	// adjudication decides it.
+	f := newFixture()
+	f.in.Strict = true
+	f.in.Adjudications = append(f.in.Adjudications, Adjudication{Item: 5, RecordID: "w-0005", FinalLabel: "ok", DecidedBy: "dana", Line: 4})
+	res, err := Resolve(f.in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := res.Labels[4]; got.Label != "ok" || got.Source != FromAdjudication {
+		t.Errorf("item 5 = %+v, want adjudicated ok", got)
+	}
+	d := res.Quality.Disagreements[2]
+	if d.Item != 5 || d.First != "defect" || d.Second != "" || d.Final != "ok" || d.Resolution != record.ResolvedAdjudicated {
+		t.Errorf("disagreement entry %+v", d)
+	}
+}

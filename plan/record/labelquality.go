@@ -32,8 +32,9 @@ type LabelQuality struct {
 	// with how many rows each labeled.
 	Labelers []Labeler `json:"labelers"`
 	// Disagreements lists, in item order, every doubled item whose two
-	// labels are not the same class while at least one is a class, and its
-	// resolution.
+	// labels differ while at least one is a class and neither is blank,
+	// and every other doubled item the adjudication file decided, each
+	// with its resolution.
 	Disagreements []Disagreement `json:"disagreements"`
 	// Adjudicated counts the disagreements resolved by the adjudication
 	// file (plus doubled items both labelers left unsure that it resolved);
