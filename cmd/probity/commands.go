@@ -8,6 +8,10 @@ func commands(d deps) []*cobra.Command {
 	return []*cobra.Command{
 		// newPlanCommand(d),
 		newDrawCommand(d),
+		newRecordCommand(d),
+		newVerifyCommand(d),
+		newKeygenCommand(d),
 		newTrendCommand(d),
+		newProgressCommand(d),
 	}
 }

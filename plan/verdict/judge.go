@@ -24,7 +24,7 @@ const (
 	BoundClopperPearson = "clopper-pearson"
 	BoundHypergeometric = "exact-hypergeometric"
 	BoundHoeffding      = "hoeffding"
-	BoundChernoff       = "chernoff-kl"
+	BoundChernoff       = "kl"
 	BoundKornGraubard   = "korn-graubard (approximate)"
 	BoundWeightedHoeff  = "weighted-hoeffding"
 )

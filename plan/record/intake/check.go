@@ -47,10 +47,8 @@ func Check(p *plan.File, planFP string, f *Folder, l *Labels, opts Options) (*Re
 	mpath := filepath.Join(f.Dir, sampling.ManifestFile)
 	lpath := filepath.Join(f.Dir, sampling.LedgerFile)
 	m := f.Manifest
-	if m.PlanFingerprint != planFP {
-		return nil, &sampling.InputError{File: mpath, Column: "plan_fingerprint",
-			Msg:  fmt.Sprintf("the draw was made from the plan with SHA-256 %s…, not from this plan (%s…)", short(m.PlanFingerprint), short(planFP)),
-			Hint: "pass the plan file the draw was made with"}
+	if err := checkPlan(m, mpath, planFP); err != nil {
+		return nil, err
 	}
 	strata, index, err := designFromManifest(m, mpath)
 	if err != nil {
@@ -74,6 +72,16 @@ func Check(p *plan.File, planFP string, f *Folder, l *Labels, opts Options) (*Re
 		res.Deviations.Notes = append(res.Deviations.Notes, fmt.Sprintf("%s in the draw folder was labeled in place; with its labels removed it is the file the draw wrote", sampling.WorksheetFile))
 	}
 	return res, nil
+}
+
+// checkPlan checks the manifest's plan_fingerprint.
+func checkPlan(m *sampling.Manifest, mpath, planFP string) error {
+	if m.PlanFingerprint != planFP {
+		return &sampling.InputError{File: mpath, Column: "plan_fingerprint",
+			Msg:  fmt.Sprintf("the draw was made from the plan with SHA-256 %s…, not from this plan (%s…)", short(m.PlanFingerprint), short(planFP)),
+			Hint: "pass the plan file the draw was made with"}
+	}
+	return nil
 }
 
 func short(h string) string {

@@ -129,7 +129,7 @@ func TestRowDifferencesAreListed(t *testing.T) {
 func TestFingerprintMismatchesAreRefused(t *testing.T) {
 	// The plan is not the one the draw was made with.
 	fx := newDrawFixture(t)
-	f, err := ReadFolder(fx.drawDir(), []string{"m1", "m2"})
+	f, err := ReadFolder(fx.drawDir(), fx.planFP, []string{"m1", "m2"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -140,11 +140,14 @@ func TestFingerprintMismatchesAreRefused(t *testing.T) {
 	if _, err := Check(fx.plan, strings.Repeat("0", 64), f, l, Options{}); err == nil || !strings.Contains(err.Error(), "manifest.json column plan_fingerprint") {
 		t.Errorf("other plan: %v", err)
 	}
+	if _, err := ReadFolder(fx.drawDir(), strings.Repeat("0", 64), []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "manifest.json column plan_fingerprint") {
+		t.Errorf("other plan: %v", err)
+	}
 	// An edited ledger.
 	lp := filepath.Join(fx.drawDir(), "ledger.csv")
 	data, _ := os.ReadFile(lp)
 	os.WriteFile(lp, []byte(strings.Replace(string(data), ",ok,ok\n", ",defect,ok\n", 1)), 0o644)
-	if _, err := ReadFolder(fx.drawDir(), []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "the file was changed after the draw") || !strings.Contains(err.Error(), "ledger.csv") {
+	if _, err := ReadFolder(fx.drawDir(), fx.planFP, []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "the file was changed after the draw") || !strings.Contains(err.Error(), "ledger.csv") {
 		t.Errorf("edited ledger: %v", err)
 	}
 	os.WriteFile(lp, data, 0o644)
@@ -153,7 +156,7 @@ func TestFingerprintMismatchesAreRefused(t *testing.T) {
 	wf, _ := os.Create(wp)
 	sampling.WriteWorksheet(wf, []string{"text"}, fx.labeled())
 	wf.Close()
-	f, err = ReadFolder(fx.drawDir(), []string{"m1", "m2"})
+	f, err = ReadFolder(fx.drawDir(), fx.planFP, []string{"m1", "m2"})
 	if err != nil || !f.LabeledInPlace || f.WorksheetSHA256 != fx.folder.Manifest.Files["worksheet.csv"] {
 		t.Errorf("worksheet labeled in place: %v %+v", err, f)
 	}
@@ -163,7 +166,7 @@ func TestFingerprintMismatchesAreRefused(t *testing.T) {
 	wf, _ = os.Create(wp)
 	sampling.WriteWorksheet(wf, []string{"text"}, rows)
 	wf.Close()
-	if _, err := ReadFolder(fx.drawDir(), []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "worksheet.csv") {
+	if _, err := ReadFolder(fx.drawDir(), fx.planFP, []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "worksheet.csv") {
 		t.Errorf("edited worksheet: %v", err)
 	}
 }

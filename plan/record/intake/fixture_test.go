@@ -115,7 +115,7 @@ func (fx *drawFixture) writeLabels(t *testing.T, rows []sampling.WorksheetRow) s
 func (fx *drawFixture) check(t *testing.T, rows []sampling.WorksheetRow, opts Options) (*Result, error) {
 	t.Helper()
 	path := fx.writeLabels(t, rows)
-	f, err := ReadFolder(fx.drawDir(), []string{"m1", "m2"})
+	f, err := ReadFolder(fx.drawDir(), fx.planFP, []string{"m1", "m2"})
 	if err != nil {
 		return nil, err
 	}

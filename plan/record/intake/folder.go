@@ -41,12 +41,16 @@ type Labels struct {
 // ReadFolder reads manifest.json, ledger.csv and worksheet.csv from dir and
 // checks that the ledger and the worksheet are the files the draw wrote
 // (their SHA-256 against the manifest). candidates are the plan's
-// candidate names, the ledger's prediction columns.
-func ReadFolder(dir string, candidates []string) (*Folder, error) {
+// candidate names, the ledger's prediction columns, and planFP the plan
+// file's SHA-256, which must be the manifest's plan_fingerprint.
+func ReadFolder(dir, planFP string, candidates []string) (*Folder, error) {
 	f := &Folder{Dir: dir}
 	var err error
 	mpath := filepath.Join(dir, sampling.ManifestFile)
 	if f.Manifest, f.ManifestBytes, err = sampling.ReadManifest(mpath); err != nil {
+		return nil, err
+	}
+	if err := checkPlan(f.Manifest, mpath, planFP); err != nil {
 		return nil, err
 	}
 	lpath := filepath.Join(dir, sampling.LedgerFile)

@@ -1,0 +1,130 @@
+package main
+
+import (
+	"crypto/ed25519"
+	"errors"
+	"fmt"
+	"os"
+
+	"github.com/spf13/cobra"
+
+	"probity/plan/record/signature"
+)
+
+// keygenOptions are the flags of probity keygen.
+type keygenOptions struct {
+	out string
+}
+
+// newKeygenCommand builds `probity keygen`.
+func newKeygenCommand(d deps) *cobra.Command {
+	opts := &keygenOptions{}
+	cmd := &cobra.Command{
+		Use:   "keygen --out NAME",
+		Short: "Make an Ed25519 key pair for signing acceptance records",
+		Long: `keygen writes an Ed25519 key pair: the private key to NAME (PEM, PKCS #8,
+readable by you only: mode 0600) and the public key to NAME.pub (PEM). It
+never overwrites an existing file. Give the private key to 'probity record
+--sign-key NAME' and the public key to whoever checks the records with
+'probity verify RECDIR --pub NAME.pub'. The private key is not encrypted:
+keep it where only the signer can read it.
+
+` + exitCodesHelp,
+		Args: cobra.NoArgs,
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			if opts.out == "" {
+				return withHint(usageErrorf("--out is required"), "for example: probity keygen --out audit-key")
+			}
+			return nil
+		},
+		RunE: func(cmd *cobra.Command, args []string) error {
+			return runKeygen(d, opts)
+		},
+	}
+	cmd.Flags().StringVar(&opts.out, "out", "", "file name of the private key; the public key goes to NAME.pub")
+	return cmd
+}
+
+func runKeygen(d deps, o *keygenOptions) error {
+	pubPath := o.out + ".pub"
+	for _, p := range []string{o.out, pubPath} {
+		if _, err := os.Lstat(p); err == nil {
+			return withHint(usageErrorf("%s already exists; keygen never overwrites a key", p), "choose another --out name, or remove the old key pair yourself")
+		}
+	}
+	pub, priv, err := signature.GenerateKey(d.random)
+	if err != nil {
+		return &internalError{msg: err.Error()}
+	}
+	privPEM, err := signature.MarshalPrivate(priv)
+	if err != nil {
+		return &internalError{msg: err.Error()}
+	}
+	pubPEM, err := signature.MarshalPublic(pub)
+	if err != nil {
+		return &internalError{msg: err.Error()}
+	}
+	if err := writeNew(o.out, privPEM, 0o600); err != nil {
+		return err
+	}
+	if err := writeNew(pubPath, pubPEM, 0o644); err != nil {
+		os.Remove(o.out)
+		return err
+	}
+	fmt.Fprintf(d.stdout, "private key: %s (mode 0600; keep it secret)\npublic key:  %s\nfingerprint: %s\n", o.out, pubPath, signature.Fingerprint(pub))
+	return nil
+}
+
+// writeNew creates path (failing if it exists) with mode perm and writes
+// data; on failure the partial file is removed.
+func writeNew(path string, data []byte, perm os.FileMode) error {
+	f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, perm)
+	if err != nil {
+		if errors.Is(err, os.ErrExist) {
+			return usageErrorf("%s already exists; keygen never overwrites a key", path)
+		}
+		return usageErrorf("cannot create %s: %v", path, err)
+	}
+	if _, err := f.Write(data); err != nil {
+		f.Close()
+		os.Remove(path)
+		return usageErrorf("writing %s: %v", path, err)
+	}
+	if err := f.Chmod(perm); err != nil { // exact mode, whatever the umask
+		f.Close()
+		os.Remove(path)
+		return usageErrorf("%s: %v", path, err)
+	}
+	if err := f.Close(); err != nil {
+		os.Remove(path)
+		return usageErrorf("writing %s: %v", path, err)
+	}
+	return nil
+}
+
+// loadPrivateKey reads a private key file written by keygen and returns
+// it with its public key's fingerprint.
+func loadPrivateKey(path string) (ed25519.PrivateKey, string, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, "", withHint(usageErrorf("cannot read --sign-key %s: %v", path, errors.Unwrap(err)), "make a key pair with 'probity keygen --out NAME'")
+	}
+	priv, err := signature.ParsePrivate(data, path)
+	if err != nil {
+		return nil, "", withHint(badInput(err), "pass the private key file written by probity keygen (not the .pub file)")
+	}
+	return priv, signature.Fingerprint(priv.Public().(ed25519.PublicKey)), nil
+}
+
+// loadPublicKey reads a public key file written by keygen.
+func loadPublicKey(path string) (ed25519.PublicKey, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, withHint(usageErrorf("cannot read --pub %s: %v", path, errors.Unwrap(err)), "pass the NAME.pub file written by probity keygen")
+	}
+	pub, err := signature.ParsePublic(data, path)
+	if err != nil {
+		return nil, withHint(badInput(err), "pass the NAME.pub file written by probity keygen")
+	}
+	return pub, nil
+}

@@ -1,0 +1,280 @@
+package main
+
+import (
+	"crypto/ed25519"
+	"fmt"
+	"os"
+	"strings"
+	"time"
+
+	"github.com/spf13/cobra"
+
+	"probity/pdfreport"
+	"probity/plan"
+	"probity/plan/record"
+	"probity/plan/record/assemble"
+	"probity/plan/record/intake"
+	"probity/plan/record/signature"
+	"probity/plan/verdict"
+	"probity/templates"
+)
+
+// recordOptions are the flags of probity record.
+type recordOptions struct {
+	planPath        string
+	drawDir         string
+	labels          string
+	out             string
+	signoff         string
+	use             string
+	signKey         string
+	allowIncomplete bool
+	date            string
+	paper           string
+	templatesDir    string
+	bound           string
+	force           bool
+}
+
+// newRecordCommand builds `probity record`.
+func newRecordCommand(d deps) *cobra.Command {
+	opts := &recordOptions{}
+	cmd := &cobra.Command{
+		Use:   "record --plan PLAN.yaml --draw DIR --labels WORKSHEET.csv --out RECDIR",
+		Short: "Judge the candidates from the labels and write the acceptance record",
+		Long: `record checks the labeled worksheet against the plan and the draw folder,
+judges every candidate and writes the acceptance record into RECDIR:
+record.json (canonical, machine-readable), record.pdf (for the reviewer) and,
+with --sign-key, record.sig (Ed25519 signatures over both).
+
+Before anything is computed it checks that the draw was made from this plan,
+that the ledger and worksheet are the files the draw wrote, that the labeled
+worksheet has the same items, ids and order as the ledger, that every label
+is one of the plan's classes, blank or "unsure", and that spare items only
+replace unlabeled or unsure items of their stratum, in order. Incomplete
+labeling is refused unless --allow-incomplete, which counts every item left
+unlabeled or unsure as an error for every candidate and says so in the record.
+
+A self-weighting sample is judged by the plan's rule (accept when errors ≤ c),
+with the exact Clopper–Pearson bound (or the exact hypergeometric bound for a
+finite lot). When the strata's inclusion weights are unequal the error is
+estimated stratum by stratum (weighted by N_h/N) and bounded by Korn–Graubard
+(default; approximate) or, with --bound weighted-hoeffding, by the weighted
+Hoeffding bound (rigorous, wider). Sequential plans are not judged by record:
+use probity progress.
+
+` + exitCodesHelp + `
+
+record exits 0 when the audit passes (every candidate the plan requires is
+accepted), 1 when it is rejected — the record is written in both cases — and
+2 on bad input, when nothing is written.`,
+		Args: cobra.NoArgs,
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			return opts.validate()
+		},
+		RunE: func(cmd *cobra.Command, args []string) error {
+			return runRecord(d, opts)
+		},
+	}
+	fl := cmd.Flags()
+	fl.StringVar(&opts.planPath, "plan", "", "the plan file the sample was drawn from")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv, worksheet.csv)")
+	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet")
+	fl.StringVar(&opts.out, "out", "", "the record folder to write (must not exist or be empty)")
+	fl.StringVar(&opts.signoff, "signoff", "", "sign-off file (YAML: prepared/reviewed/approved with name, title, date, meaning)")
+	fl.StringVar(&opts.use, "use", "general", "declared use: "+strings.Join(templates.Uses(), ", "))
+	fl.StringVar(&opts.signKey, "sign-key", "", "private key from probity keygen; writes record.sig")
+	fl.BoolVar(&opts.allowIncomplete, "allow-incomplete", false, "count unlabeled and unsure items as errors for every candidate instead of refusing")
+	fl.StringVar(&opts.date, "date", "", "the record's date, YYYY-MM-DD (default: today, UTC)")
+	fl.StringVar(&opts.paper, "paper", "a4", "paper size of record.pdf: a4 or letter")
+	fl.StringVar(&opts.templatesDir, "templates", "", "folder of wording files overriding the built-in ones")
+	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard, "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
+	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
+	return cmd
+}
+
+// validate checks the flags that need no file.
+func (o *recordOptions) validate() error {
+	for _, f := range []struct{ name, v string }{{"plan", o.planPath}, {"draw", o.drawDir}, {"labels", o.labels}, {"out", o.out}} {
+		if f.v == "" {
+			return withHint(usageErrorf("--%s is required", f.name), "see 'probity record --help'")
+		}
+	}
+	if !oneOf(o.use, templates.Uses()) {
+		return withHint(usageErrorf("--use %q is not one of %s", o.use, strings.Join(templates.Uses(), ", ")), "pick the use the classifier's decisions serve")
+	}
+	o.paper = strings.ToLower(o.paper)
+	if !oneOf(o.paper, []string{"a4", "letter"}) {
+		return usageErrorf("--paper %q is not a4 or letter", o.paper)
+	}
+	if o.date != "" {
+		if _, err := time.Parse("2006-01-02", o.date); err != nil {
+			return withHint(usageErrorf("--date %q is not a date in the form YYYY-MM-DD", o.date), "for example --date 2026-03-31")
+		}
+	}
+	if !oneOf(o.bound, []string{verdict.KornGraubard, verdict.WeightedHoeffding}) {
+		return usageErrorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
+	}
+	return nil
+}
+
+func oneOf(v string, list []string) bool {
+	for _, x := range list {
+		if x == v {
+			return true
+		}
+	}
+	return false
+}
+
+// recordInputs are the files a record is computed from, read and checked.
+type recordInputs struct {
+	plan   *plan.File
+	planFP string
+	folder *intake.Folder
+	labels *intake.Labels
+}
+
+// loadRecordInputs reads the plan, the draw folder and the labels.
+func loadRecordInputs(planPath, drawDir, labels string) (*recordInputs, error) {
+	p, fp, err := plan.Load(planPath)
+	if err != nil {
+		return nil, recordInputError(err, planPath)
+	}
+	if p.IsSizingOnly() {
+		return nil, withHint(usageErrorf("%s: the plan declares no candidates, so there is nothing to judge", planPath),
+			"use the plan the sample was drawn from")
+	}
+	if p.Sequential != nil || p.Inputs.Design == "sequential" {
+		return nil, withHint(usageErrorf("%s: the plan has a sequential design; record judges fixed (n, c) plans only", planPath),
+			"use 'probity progress' to judge a sequential plan from the labeled worksheet")
+	}
+	names := make([]string, len(p.Candidates))
+	for i, c := range p.Candidates {
+		names[i] = c.Name
+	}
+	f, err := intake.ReadFolder(drawDir, fp, names)
+	if err != nil {
+		return nil, recordInputError(err, drawDir)
+	}
+	l, err := intake.ReadLabels(labels)
+	if err != nil {
+		return nil, recordInputError(err, labels)
+	}
+	return &recordInputs{plan: p, planFP: fp, folder: f, labels: l}, nil
+}
+
+func runRecord(d deps, o *recordOptions) error {
+	if err := checkOutWritable(o.out, o.force); err != nil {
+		return err
+	}
+	in, err := loadRecordInputs(o.planPath, o.drawDir, o.labels)
+	if err != nil {
+		return err
+	}
+	var signoff []record.Signoff
+	if o.signoff != "" {
+		data, err := os.ReadFile(o.signoff)
+		if err != nil {
+			return recordInputError(err, o.signoff)
+		}
+		if signoff, err = record.ParseSignoff(data, o.signoff); err != nil {
+			return withHint(badInput(err), "see 'probity record --help' for the sign-off file's keys")
+		}
+	}
+	var priv ed25519.PrivateKey
+	keyFP := ""
+	if o.signKey != "" {
+		k, fp, err := loadPrivateKey(o.signKey)
+		if err != nil {
+			return err
+		}
+		priv, keyFP = k, fp
+	}
+	set, err := templates.Load(o.templatesDir)
+	if err != nil {
+		return withHint(badInput(err), "fix or remove the file in --templates; files not given fall back to the built-in wording")
+	}
+	date := o.date
+	if date == "" {
+		date = d.now().UTC().Format("2006-01-02")
+	}
+	rec, err := assemble.Assemble(assemble.Input{
+		Plan: in.plan, PlanFP: in.planFP, Folder: in.folder, Labels: in.labels,
+		AllowIncomplete: o.allowIncomplete, Bound: o.bound, Use: o.use, Date: date,
+		Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
+	})
+	if err != nil {
+		return recordInputError(err, o.labels)
+	}
+	files, err := renderRecord(rec, o.paper, set, priv)
+	if err != nil {
+		return err
+	}
+	if err := writeRecordFolder(o.out, files, o.force); err != nil {
+		return err
+	}
+	writeRecordSummary(d, o, rec, files)
+	if rec.OverallVerdict != record.Accept {
+		return rejected("")
+	}
+	return nil
+}
+
+// renderRecord encodes record.json, lays out record.pdf and, with a key,
+// signs both into record.sig.
+func renderRecord(rec *record.Record, paper string, set *templates.Set, priv ed25519.PrivateKey) ([]namedFile, error) {
+	js, err := record.Encode(rec)
+	if err != nil {
+		return nil, &internalError{msg: err.Error()}
+	}
+	pdf, err := pdfreport.Render(rec, pdfreport.Options{Paper: paper, Templates: set})
+	if err != nil {
+		return nil, &internalError{msg: "laying out record.pdf: " + err.Error()}
+	}
+	files := []namedFile{{recordJSON, js}, {recordPDF, pdf}}
+	if priv != nil {
+		sig := signature.Sign(priv, map[string][]byte{recordJSON: js, recordPDF: pdf})
+		files = append(files, namedFile{signature.FileName, sig.Marshal()})
+	}
+	return files, nil
+}
+
+// writeRecordSummary prints one line per candidate and the overall verdict.
+func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []namedFile) {
+	w := d.stdout
+	fmt.Fprintf(w, "record %s (%s) for %s\n", rec.RecordID, rec.Date, systemName(rec))
+	fmt.Fprintf(w, "ceiling %s, confidence %s, %s\n", record.FormatFloat(rec.Plan.Ceiling), record.FormatFloat(rec.Plan.Confidence), rec.Method.Bound)
+	width := 4
+	for _, c := range rec.Candidates {
+		width = max(width, len([]rune(c.Name)))
+	}
+	for _, c := range rec.Candidates {
+		fmt.Fprintf(w, "  %-*s  %s  %d/%d errors, estimate %s, upper bound %s — %s\n", width, c.Name, c.Verdict, c.Errors, c.Labeled,
+			fmt.Sprintf("%.4f", c.Estimate), fmt.Sprintf("%.4f", c.UpperBound), c.Reason)
+	}
+	need := "every candidate"
+	if rec.Plan.Require == "any" {
+		need = "at least one candidate"
+	}
+	fmt.Fprintf(w, "overall: %s (%s must be accepted)\n", rec.OverallVerdict, need)
+	if rec.Deviations.AllowIncomplete {
+		fmt.Fprintf(w, "note: unlabeled or unsure items were counted as errors for every candidate (--allow-incomplete)\n")
+	}
+	names := make([]string, len(files))
+	for i, f := range files {
+		names[i] = f.name
+	}
+	fmt.Fprintf(w, "wrote %s into %s\n", strings.Join(names, ", "), o.out)
+	if rec.SigningKey != "" {
+		fmt.Fprintf(w, "signed with key %s\n", rec.SigningKey)
+	}
+}
+
+func systemName(rec *record.Record) string {
+	s := strings.TrimSpace(rec.System + " " + rec.SystemVersion)
+	if s == "" {
+		return "the system under audit"
+	}
+	return s
+}
