@@ -198,7 +198,7 @@ func panel(t *trend.Trend, s trend.Series, ymax float64, bottom bool) (*plot.Plo
 	p.Add(ceil)
 
 	est := make(plotter.XYs, 0, len(s.Rows))
-	var flagged, rejectedEst plotter.XYs
+	var flagged, rejectedEst, caps, rejectedCaps plotter.XYs
 	var labels plotter.XYLabels
 	for _, r := range s.Rows {
 		x := float64(idx[r.Period])
@@ -209,21 +209,33 @@ func panel(t *trend.Trend, s trend.Series, ymax float64, bottom bool) (*plot.Plo
 		}
 		bar.Color, bar.Width = intervalCol, 3.5
 		p.Add(bar)
-		cap, err := plotter.NewLine(plotter.XYs{{X: x - 0.18, Y: r.UpperBound}, {X: x + 0.18, Y: r.UpperBound}})
-		if err != nil {
-			return nil, err
-		}
-		cap.Color, cap.Width = boundCol, 2
 		if r.Verdict == record.Reject {
-			cap.Color = rejectCol
+			rejectedCaps = append(rejectedCaps, plotter.XY{X: x, Y: r.UpperBound})
 			rejectedEst = append(rejectedEst, plotter.XY{X: x, Y: r.Estimate})
+		} else {
+			caps = append(caps, plotter.XY{X: x, Y: r.UpperBound})
 		}
-		p.Add(cap)
 		if r.Flagged {
 			flagged = append(flagged, plotter.XY{X: x, Y: r.Estimate})
 			labels.XYs = append(labels.XYs, plotter.XY{X: x, Y: r.UpperBound})
 			labels.Labels = append(labels.Labels, "p="+pValue(*r.PValue))
 		}
+	}
+	// Caps are a fixed number of points wide, whatever the number of
+	// periods.
+	for _, cs := range []struct {
+		xys plotter.XYs
+		col color.Color
+	}{{caps, boundCol}, {rejectedCaps, rejectCol}} {
+		if len(cs.xys) == 0 {
+			continue
+		}
+		sc, err := plotter.NewScatter(cs.xys)
+		if err != nil {
+			return nil, err
+		}
+		sc.Shape, sc.Color, sc.Radius = capGlyph{width: 2}, cs.col, capHalf(n)
+		p.Add(sc)
 	}
 	line, points, err := plotter.NewLinePoints(est)
 	if err != nil {
@@ -387,4 +399,22 @@ func (g thickRing) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 	p.Arc(pt, sty.Radius, 0, 2*math.Pi)
 	p.Close()
 	c.Stroke(p)
+}
+
+// capGlyph is a horizontal bar Radius to each side of the point: the top
+// of an upper-bound interval.
+type capGlyph struct{ width vg.Length }
+
+// DrawGlyph implements draw.GlyphDrawer.
+func (g capGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	c.StrokeLine2(draw.LineStyle{Color: sty.Color, Width: g.width}, pt.X-sty.Radius, pt.Y, pt.X+sty.Radius, pt.Y)
+}
+
+// capHalf is the half-width of a cap: 8 points, narrower when many periods
+// share the axis.
+func capHalf(periods int) vg.Length {
+	if periods <= 12 {
+		return 8
+	}
+	return vg.Length(math.Max(3, 8*12/float64(periods)))
 }
