@@ -1,6 +1,7 @@
 package pdfreport
 
 import (
+	"math"
 	"strings"
 
 	"github.com/jung-kurt/gofpdf"
@@ -86,6 +87,8 @@ func (d *doc) space(h float64) {
 // longer than a line (fingerprints, long names) are broken between
 // characters.
 func (d *doc) wrap(text string, w float64) []string {
+	// A line holds at least one character, however narrow the column.
+	w = math.Max(w, 1)
 	var lines []string
 	for _, para := range strings.Split(text, "\n") {
 		words := glueUnits(strings.Fields(para))
@@ -107,7 +110,7 @@ func (d *doc) wrap(text string, w float64) []string {
 				lines = append(lines, line)
 				line = ""
 			}
-			for d.pdf.GetStringWidth(word) > w {
+			for len(word) > 0 && d.pdf.GetStringWidth(word) > w {
 				cut := d.breakAt(word, w)
 				lines = append(lines, word[:cut])
 				word = word[cut:]

@@ -90,12 +90,20 @@ func TestTextHasVerdictsBoundsAndCautions(t *testing.T) {
 	for _, use := range []string{"medical", "general"} {
 		t.Run(use, func(t *testing.T) {
 			rec := fixtureRecord(use)
-			text := flat(pdfText(t, render(t, rec, Options{Paper: "a4"})))
+			pdf := render(t, rec, Options{Paper: "a4"})
+			text := flat(pdfText(t, pdf))
+			layout := strings.Split(pdfText(t, pdf, "-layout"), "\n")
 			for _, c := range rec.Candidates {
-				for _, want := range []string{c.Name, pctUp(c.UpperBound), c.Verdict + " " + c.Reason} {
-					if !strings.Contains(text, want) {
-						t.Errorf("text lacks %q for candidate %s", want, c.Name)
+				// The summary row: name, bound, verdict and reason on one line.
+				row := false
+				for _, l := range layout {
+					if strings.Contains(l, c.Name) && strings.Contains(l, pctUp(c.UpperBound)) &&
+						strings.Contains(l, c.Verdict) && strings.Contains(l, c.Reason) {
+						row = true
 					}
+				}
+				if !row {
+					t.Errorf("no summary line holds %s, %s, %s and %q", c.Name, pctUp(c.UpperBound), c.Verdict, c.Reason)
 				}
 			}
 			// The bounds as printed, rounded up (scipy.stats.beta.ppf values

@@ -26,7 +26,7 @@ func (d *doc) strataSection(c *content) {
 		d.drawTable(&table{
 			title: "Strata of the draw",
 			cols: []column{{head: "Stratum", w: 40}, {head: "Population N_h", w: 20, align: "R"},
-				{head: "Sample n_h", w: 20, align: "R"}, {head: "Weight N_h/N", w: 20, align: "R"}},
+				{head: "Sample n_h", w: 20, align: "R"}, {head: "Inclusion weight N_h/n_h", w: 20, align: "R"}},
 			rows: rows, header: true, compact: len(rows) > 10,
 		})
 	}

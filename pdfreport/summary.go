@@ -63,17 +63,17 @@ func (d *doc) summary(c *content) {
 		}
 	}
 	cols := []column{
-		{head: "Candidate", w: 24},
-		{head: "Errors / labeled", w: 13, align: "R"},
-		{head: "Estimate", w: 12, align: "R"},
-		{head: "Upper bound at " + c.fields.BoundConfidence, w: 16, align: "R"},
-		{head: "Ceiling", w: 11, align: "R"},
-		{head: "p-value", w: 13, align: "R"},
+		{head: "Candidate", w: 1},
+		{head: "Errors / labeled", fit: true, align: "R"},
+		{head: "Estimate", fit: true, align: "R"},
+		{head: "Upper bound at " + c.fields.BoundConfidence, fit: true, align: "R"},
+		{head: "Ceiling", fit: true, align: "R"},
+		{head: "p-value", fit: true, align: "R"},
 	}
 	if holm {
-		cols = append(cols, column{head: "Adjusted p", w: 13, align: "R"})
+		cols = append(cols, column{head: "Adjusted p", fit: true, align: "R"})
 	}
-	cols = append(cols, column{head: "Verdict", w: 14, align: "C"}, column{head: "Reason", w: 20})
+	cols = append(cols, column{head: "Verdict", fit: true, align: "C"}, column{head: "Reason", w: 1})
 	var rows [][]cell
 	for _, cand := range rec.Candidates {
 		row := []cell{

@@ -1,11 +1,18 @@
 package pdfreport
 
+import (
+	"math"
+	"strings"
+)
+
 // column is one column of a table.
 type column struct {
 	head string
 	// w is the column's share of the table width (relative units).
 	w     float64
 	align string // "L", "C" or "R"
+	// fit sizes the column to its content instead of w.
+	fit bool
 }
 
 // cell is one table cell.
@@ -37,6 +44,10 @@ type table struct {
 
 const cellPadX = 1.6
 
+// minFlexW is the least width (mm) a wrapping column gets beside fitted
+// ones before the whole table is scaled.
+const minFlexW = 22.0
+
 // padY is the space above and below a cell's text.
 func (t *table) padY() float64 {
 	if t.compact {
@@ -52,19 +63,80 @@ func (t *table) fontSize() float64 {
 	return smallSize + 0.5
 }
 
-// widths returns the columns' widths in mm.
+// widths returns the columns' widths in mm. A column with fit set is as
+// wide as its widest cell and at least half its header (and the header's
+// longest word), so numbers never
+// wrap; the other columns share what is left in proportion to w. When the
+// fitted columns leave the others less than minFlexW each, all widths are
+// scaled down together.
 func (d *doc) widths(t *table) []float64 {
-	total := 0.0
-	for _, c := range t.cols {
-		total += c.w
-	}
 	tw := t.width
 	if tw == 0 {
 		tw = d.contentW()
 	}
+	total := 0.0
+	for _, c := range t.cols {
+		total += c.w
+	}
 	ws := make([]float64, len(t.cols))
 	for i, c := range t.cols {
 		ws[i] = c.w / total * tw
+	}
+	fitted, flexW, flexShare := 0.0, 0.0, 0.0
+	fit := make([]float64, len(t.cols))
+	for i, c := range t.cols {
+		if !c.fit {
+			flexShare += c.w
+			continue
+		}
+		w := 0.0
+		d.font("B", t.fontSize())
+		// The header may take two lines, never more than its longest word.
+		w = d.pdf.GetStringWidth(c.head) / 2
+		for _, word := range glueUnits(strings.Fields(c.head)) {
+			w = math.Max(w, d.pdf.GetStringWidth(word))
+		}
+		for _, row := range t.rows {
+			if i < len(row) {
+				d.cellFont(t, row[i], false)
+				w = math.Max(w, d.pdf.GetStringWidth(row[i].text))
+			}
+		}
+		fit[i] = w + 2*cellPadX + 1.2
+		fitted += fit[i]
+	}
+	if flexShare == 0 || fitted == 0 {
+		return ws
+	}
+	flexW = tw - fitted
+	nflex := 0.0
+	for _, c := range t.cols {
+		if !c.fit {
+			nflex++
+		}
+	}
+	if flexW < minFlexW*nflex {
+		// Too little room: fitted widths and the minimum for the others,
+		// all scaled down together to the table width.
+		sum := 0.0
+		for i, c := range t.cols {
+			ws[i] = minFlexW
+			if c.fit {
+				ws[i] = fit[i]
+			}
+			sum += ws[i]
+		}
+		for i := range ws {
+			ws[i] *= tw / sum
+		}
+		return ws
+	}
+	for i, c := range t.cols {
+		if c.fit {
+			ws[i] = fit[i]
+		} else {
+			ws[i] = c.w / flexShare * flexW
+		}
 	}
 	return ws
 }
@@ -88,7 +160,7 @@ func (d *doc) layoutRow(t *table, ws []float64, texts []cell, boldAll bool) ([][
 func (d *doc) cellFont(t *table, c cell, boldAll bool) {
 	switch {
 	case c.mono:
-		d.mono(t.fontSize() - 0.5)
+		d.mono(t.fontSize() - 1)
 	case c.bold || boldAll:
 		d.font("B", t.fontSize())
 	default:
