@@ -6,7 +6,7 @@ import "github.com/spf13/cobra"
 // constructor builds a fresh command with its own options struct.
 func commands(d deps) []*cobra.Command {
 	return []*cobra.Command{
-		// newPlanCommand(d),
+		newPlanCommand(d),
 		newDrawCommand(d),
 		newRecordCommand(d),
 		newVerifyCommand(d),

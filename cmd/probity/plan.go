@@ -1,0 +1,415 @@
+package main
+
+import (
+	"encoding/hex"
+	"errors"
+	"io"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"probity/plan"
+)
+
+// planOptions are the flags of probity plan. Numbers are read as strings
+// so a malformed one gets a sentence naming its flag.
+type planOptions struct {
+	ceiling, confidence, candidates, anticipated, producerRisk, population, budget string
+
+	method, multiplicity, design, require string
+	out                                   string
+	force, json                           bool
+	seed                                  string
+	candidate                             []string
+	classes, thresholds                   string
+	positive, negative                    string
+	system, systemVersion                 string
+
+	// set by validate
+	in          plan.Inputs
+	budgetN     int
+	hasCeiling  bool
+	mSet        bool
+	declared    []plan.Candidate
+	classesList []string
+}
+
+// newPlanCommand builds `probity plan`.
+func newPlanCommand(d deps) *cobra.Command {
+	o := &planOptions{}
+	cmd := &cobra.Command{
+		Use:   "plan --ceiling P --confidence C [flags]",
+		Short: "Work out how many decisions to label, and what passes",
+		Long: `plan works out the smallest labeling audit that shows, at the stated
+confidence, that a classifier's error is below the ceiling: label n randomly
+drawn decisions and accept a candidate when it makes at most c errors.
+
+The consumer's risk — the chance that a candidate whose true error is at or
+above --ceiling is accepted — is at most (1 − confidence)/M', where M' is the
+number of candidates under bonferroni and holm and 1 under fixed-sequence.
+With --anticipated p0, the producer's risk — the chance that a candidate whose
+error is p0 is rejected — is at most --producer-risk; without it the plan is
+the zero-failure plan (any error rejects), and plan says how often that
+rejects a model at half the ceiling.
+
+--method exact (the default) uses the exact binomial test, or with
+--population N the exact hypergeometric test for that batch of N decisions (a
+bad batch holds at least ⌈ceiling·N⌉ errors). hoeffding and kl use the
+distribution-free Hoeffding and Chernoff relative-entropy bounds instead; the
+n every rule needs for the same risks is always shown (with Chebyshev) so the
+saving of the exact plan is plain.
+
+--budget n answers the inverse question: with n labels and 0, 1, 2, …
+errors, the lowest ceiling that can be certified.
+
+Candidates may be declared now, before any label is seen: --candidate
+NAME=COLUMN (repeatable; the log column holding that model's predicted label,
+with --classes listing the label values) or --thresholds COLUMN:t1,t2,… with
+--positive and --negative (predict positive when score ≥ t). M then follows
+from them. --out writes the plan file (YAML): every input, the rule, the
+comparison, the candidates, a 128-bit selection seed (random unless --seed),
+the time and the tool version; its SHA-256 identifies the plan later.
+
+` + exitCodesHelp,
+		Example: `  probity plan --ceiling 0.02 --confidence 0.95 --anticipated 0.01
+  probity plan --ceiling 0.02 --confidence 0.95 --anticipated 0.01 \
+      --thresholds score:0.5,0.6,0.7 --positive fraud --negative ok \
+      --multiplicity fixed-sequence --out plan.yaml
+  probity plan --budget 500 --confidence 0.95 --json`,
+		Args: cobra.NoArgs,
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			return o.validate(cmd)
+		},
+		RunE: func(cmd *cobra.Command, args []string) error {
+			if o.budgetN > 0 {
+				return runPlanBudget(d, o)
+			}
+			return runPlan(d, o)
+		},
+	}
+	fl := cmd.Flags()
+	fl.StringVar(&o.ceiling, "ceiling", "", "the error rate that must not be exceeded, in (0, 1)")
+	fl.StringVar(&o.confidence, "confidence", "", "the confidence 1 − δ, in (0, 1), e.g. 0.95")
+	fl.StringVar(&o.candidates, "candidates", "1", "M, the number of models or thresholds judged on the same sample")
+	fl.StringVar(&o.anticipated, "anticipated", "", "p0, the error a good model is expected to have (below the ceiling)")
+	fl.StringVar(&o.producerRisk, "producer-risk", "0.10", "the largest allowed chance of rejecting a model whose error is p0")
+	fl.StringVar(&o.population, "population", "", "N, when the audit covers one batch of N decisions (hypergeometric)")
+	fl.StringVar(&o.method, "method", plan.MethodExact, "the decision rule: exact, hoeffding or kl")
+	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni, "with several candidates: bonferroni, holm or fixed-sequence")
+	fl.StringVar(&o.design, "design", plan.DesignFixed, "fixed (label n, count errors) or sequential (stop early at boundaries)")
+	fl.StringVar(&o.require, "require", plan.RequireAll, "the audit passes when all candidates, or any one, are accepted")
+	fl.StringVar(&o.budget, "budget", "", "with `n` labels: the ceiling each number of errors certifies (no plan is made)")
+	fl.StringVar(&o.out, "out", "", "write the plan file (YAML) to `PATH`")
+	fl.BoolVar(&o.force, "force", false, "replace an existing --out file")
+	fl.BoolVar(&o.json, "json", false, "print one JSON object instead of the report")
+	fl.StringVar(&o.seed, "seed", "", "the selection seed, used exactly as written (default: 128 random bits in hex)")
+	fl.StringArrayVar(&o.candidate, "candidate", nil, "declare a candidate: `NAME=COLUMN` of the log holding its predicted label (repeatable)")
+	fl.StringVar(&o.classes, "classes", "", "the label values, comma-separated (with --candidate)")
+	fl.StringVar(&o.thresholds, "thresholds", "", "declare threshold candidates: `COLUMN:t1,t2,...` (predict positive when score ≥ t)")
+	fl.StringVar(&o.positive, "positive", "", "the positive label (with --thresholds)")
+	fl.StringVar(&o.negative, "negative", "", "the negative label (with --thresholds)")
+	fl.StringVar(&o.system, "system", "", "the name of the classifier under audit")
+	fl.StringVar(&o.systemVersion, "system-version", "", "the version of the classifier under audit")
+	return cmd
+}
+
+// parseProbability reads a flag's number in the open interval (0, 1).
+func parseNumber(flag, s string) (float64, error) {
+	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+		return 0, usageErrorf("--%s %q is not a number", flag, s)
+	}
+	return v, nil
+}
+
+func parseCount(flag, s string) (int64, error) {
+	v, err := strconv.ParseInt(strings.TrimSpace(s), 10, 64)
+	if err != nil {
+		return 0, usageErrorf("--%s %q is not a whole number", flag, s)
+	}
+	return v, nil
+}
+
+// validate turns the flags into plan inputs and declared candidates.
+func (o *planOptions) validate(cmd *cobra.Command) error {
+	changed := cmd.Flags().Changed
+	if o.budget != "" {
+		return o.validateBudget(changed)
+	}
+	if o.ceiling == "" {
+		return withHint(usageErrorf("--ceiling is required: the error rate that must not be exceeded"), "e.g. --ceiling 0.02 for 2%")
+	}
+	if o.confidence == "" {
+		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
+	}
+	in := plan.Inputs{Method: o.method, Multiplicity: o.multiplicity, Design: o.design, Require: o.require}
+	var err error
+	if in.Ceiling, err = parseNumber("ceiling", o.ceiling); err != nil {
+		return err
+	}
+	if in.Confidence, err = parseNumber("confidence", o.confidence); err != nil {
+		return err
+	}
+	if in.ProducerRisk, err = parseNumber("producer-risk", o.producerRisk); err != nil {
+		return err
+	}
+	m, err := parseCount("candidates", o.candidates)
+	if err != nil {
+		return err
+	}
+	if m < 1 || m > 1_000_000 {
+		return usageErrorf("--candidates %d: must be between 1 and 1000000", m)
+	}
+	in.Candidates = int(m)
+	o.mSet = changed("candidates")
+	if o.anticipated != "" {
+		p0, err := parseNumber("anticipated", o.anticipated)
+		if err != nil {
+			return err
+		}
+		in.Anticipated = &p0
+	}
+	if o.population != "" {
+		if in.Population, err = parseCount("population", o.population); err != nil {
+			return err
+		}
+		if in.Population < 1 {
+			return usageErrorf("--population %d: must be at least 1", in.Population)
+		}
+	}
+	if o.design != plan.DesignFixed && o.design != plan.DesignSequential {
+		return usageErrorf("--design %q: must be fixed or sequential", o.design)
+	}
+	if err := o.parseCandidates(); err != nil {
+		return err
+	}
+	if len(o.declared) > 0 {
+		if o.mSet && in.Candidates != len(o.declared) {
+			return withHint(usageErrorf("--candidates %d disagrees with the %d candidates declared", in.Candidates, len(o.declared)),
+				"drop --candidates: M follows from the declared candidates")
+		}
+		in.Candidates = len(o.declared)
+	}
+	if err := in.Validate(); err != nil {
+		return planInputError(err)
+	}
+	if o.seed != "" && (strings.TrimSpace(o.seed) != o.seed || len(o.seed) > 256 || strings.ContainsAny(o.seed, "\n\r\t")) {
+		return usageErrorf("--seed must be one line of at most 256 characters without surrounding spaces")
+	}
+	o.in = in
+	return nil
+}
+
+// validateBudget reads the flags of the inverse question.
+func (o *planOptions) validateBudget(changed func(string) bool) error {
+	n, err := parseCount("budget", o.budget)
+	if err != nil {
+		return err
+	}
+	if n < 1 || n > plan.MaxSampleSize {
+		return usageErrorf("--budget %d: must be between 1 and %d", n, plan.MaxSampleSize)
+	}
+	for _, f := range []string{"out", "anticipated", "candidate", "thresholds", "design", "method"} {
+		if changed(f) {
+			return withHint(usageErrorf("--%s has no effect with --budget, which makes no plan", f), "drop --budget to make a plan")
+		}
+	}
+	if o.confidence == "" {
+		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
+	}
+	in := plan.Inputs{Multiplicity: o.multiplicity}
+	if in.Confidence, err = parseNumber("confidence", o.confidence); err != nil {
+		return err
+	}
+	if !(in.Confidence > 0 && in.Confidence < 1) {
+		return usageErrorf("--confidence %s: must be between 0 and 1 (exclusive)", o.confidence)
+	}
+	m, err := parseCount("candidates", o.candidates)
+	if err != nil {
+		return err
+	}
+	if m < 1 || m > 1_000_000 {
+		return usageErrorf("--candidates %d: must be between 1 and 1000000", m)
+	}
+	in.Candidates = int(m)
+	if !slices.Contains(plan.Multiplicities, o.multiplicity) {
+		return usageErrorf("--multiplicity %q: must be one of %s", o.multiplicity, strings.Join(plan.Multiplicities, ", "))
+	}
+	if o.population != "" {
+		if in.Population, err = parseCount("population", o.population); err != nil {
+			return err
+		}
+		if in.Population < n {
+			return usageErrorf("--population %d: must be at least the budget %d", in.Population, n)
+		}
+	}
+	if o.ceiling != "" {
+		if in.Ceiling, err = parseNumber("ceiling", o.ceiling); err != nil {
+			return err
+		}
+		if !(in.Ceiling > 0 && in.Ceiling < 1) {
+			return usageErrorf("--ceiling %s: must be between 0 and 1 (exclusive)", o.ceiling)
+		}
+		o.hasCeiling = true
+	}
+	o.in, o.budgetN = in, int(n)
+	return nil
+}
+
+// planInputError turns a plan package error into a one-line user error
+// naming the flag.
+func planInputError(err error) error {
+	var ie *plan.InputError
+	if errors.As(err, &ie) {
+		return &userError{msg: "--" + ie.Error(), err: err}
+	}
+	var tl *plan.TooLargeError
+	if errors.As(err, &tl) {
+		flags := make([]string, len(tl.Relax))
+		for i, r := range tl.Relax {
+			flags[i] = "--" + r
+		}
+		what := map[string]string{
+			"ceiling": "raise --ceiling", "confidence": "lower --confidence", "candidates": "judge fewer candidates (or use --multiplicity fixed-sequence)",
+			"anticipated": "lower --anticipated (further below the ceiling)", "producer-risk": "allow a larger --producer-risk",
+		}
+		var hints []string
+		for _, r := range tl.Relax {
+			hints = append(hints, what[r])
+		}
+		if tl.Population > 0 {
+			return withHint(usageErrorf("--population %d is smaller than the plan needs: the guarantee would need every decision in the batch labeled", tl.Population),
+				strings.Join(hints, ", or ")+"; or label the whole batch")
+		}
+		return withHint(usageErrorf("the plan would need more than %d labels; relax %s", tl.Limit, strings.Join(flags, " or ")),
+			strings.Join(hints, ", or "))
+	}
+	return badInput(err)
+}
+
+// parseCandidates reads --candidate, --classes, --thresholds, --positive
+// and --negative.
+func (o *planOptions) parseCandidates() error {
+	if len(o.candidate) > 0 && o.thresholds != "" {
+		return usageErrorf("use either --candidate or --thresholds, not both")
+	}
+	seen := map[string]bool{}
+	add := func(c plan.Candidate) error {
+		if seen[c.Name] {
+			return usageErrorf("candidate %q is declared twice", c.Name)
+		}
+		seen[c.Name] = true
+		o.declared = append(o.declared, c)
+		return nil
+	}
+	switch {
+	case len(o.candidate) > 0:
+		if o.positive != "" || o.negative != "" {
+			return usageErrorf("--positive and --negative go with --thresholds; with --candidate list the labels in --classes")
+		}
+		for _, spec := range o.candidate {
+			name, col, ok := strings.Cut(spec, "=")
+			if !ok || name == "" || col == "" || strings.TrimSpace(name) != name || strings.TrimSpace(col) != col {
+				return withHint(usageErrorf("--candidate %q is not NAME=COLUMN", spec), "e.g. --candidate model-a=pred_a")
+			}
+			if err := add(plan.Candidate{Name: name, Column: col}); err != nil {
+				return err
+			}
+		}
+		if o.classes == "" {
+			return withHint(usageErrorf("--classes is required with --candidate: the label values a labeler may give"), "e.g. --classes spam,ham")
+		}
+		for _, c := range strings.Split(o.classes, ",") {
+			c = strings.TrimSpace(c)
+			if c == "" || slices.Contains(o.classesList, c) {
+				return usageErrorf("--classes %q: each label must be non-empty and listed once", o.classes)
+			}
+			o.classesList = append(o.classesList, c)
+		}
+		if len(o.classesList) < 2 {
+			return usageErrorf("--classes %q: list at least two labels", o.classes)
+		}
+	case o.thresholds != "":
+		i := strings.LastIndex(o.thresholds, ":")
+		if i <= 0 || i == len(o.thresholds)-1 {
+			return withHint(usageErrorf("--thresholds %q is not COLUMN:t1,t2,...", o.thresholds), "e.g. --thresholds score:0.5,0.6,0.7")
+		}
+		col := o.thresholds[:i]
+		if o.positive == "" || o.negative == "" || o.positive == o.negative {
+			return withHint(usageErrorf("--thresholds needs --positive and --negative, two different labels"), "e.g. --positive fraud --negative ok")
+		}
+		if o.classes != "" {
+			return usageErrorf("--classes is not used with --thresholds: the labels are --positive and --negative")
+		}
+		for _, ts := range strings.Split(o.thresholds[i+1:], ",") {
+			ts = strings.TrimSpace(ts)
+			v, err := strconv.ParseFloat(ts, 64)
+			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+				return usageErrorf("--thresholds: %q is not a number", ts)
+			}
+			if err := add(plan.Candidate{Name: col + ">=" + ts, ScoreColumn: col, Threshold: &v, Positive: o.positive, Negative: o.negative}); err != nil {
+				return err
+			}
+		}
+		o.classesList = []string{o.positive, o.negative}
+	default:
+		if o.classes != "" || o.positive != "" || o.negative != "" {
+			return usageErrorf("--classes, --positive and --negative describe declared candidates; add --candidate or --thresholds")
+		}
+	}
+	return nil
+}
+
+// runPlan sizes the plan, writes it when asked and reports it.
+func runPlan(d deps, o *planOptions) error {
+	seed := o.seed
+	if seed == "" {
+		var b [16]byte
+		if _, err := io.ReadFull(d.random, b[:]); err != nil {
+			return &internalError{msg: "reading random seed: " + err.Error()}
+		}
+		seed = hex.EncodeToString(b[:])
+	}
+	f, err := plan.Build(o.in, plan.Meta{
+		ToolVersion: d.version, Created: d.now(), Seed: seed,
+		System: o.system, SystemVersion: o.systemVersion,
+		Classes: o.classesList, Candidates: o.declared,
+	})
+	if err != nil {
+		return planInputError(err)
+	}
+	if err := applyDesign(f); err != nil {
+		return err
+	}
+	var fingerprint string
+	if o.out != "" {
+		data, err := f.Marshal()
+		if err != nil {
+			return &internalError{msg: err.Error()}
+		}
+		if err := writePlanFile(o.out, data, o.force); err != nil {
+			return err
+		}
+		fingerprint = plan.Fingerprint(data)
+	}
+	if o.json {
+		return writePlanJSON(d.stdout, f, o.out, fingerprint)
+	}
+	return writePlanReport(d.stdout, f, o.out, fingerprint)
+}
+
+// applyDesign is the hook for the plan's design: "fixed" keeps the
+// (n, c) rule Build made; "sequential" turns it into boundaries
+// (plan_sequential.go, plan/sequential).
+func applyDesign(f *plan.File) error {
+	switch f.Inputs.Design {
+	case plan.DesignFixed:
+		return nil
+	case plan.DesignSequential:
+		return applySequentialDesign(f)
+	}
+	return usageErrorf("--design %q: must be fixed or sequential", f.Inputs.Design)
+}

@@ -1,0 +1,414 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"probity/plan"
+)
+
+// writePlanFile writes data to path through a temporary file in the same
+// folder, so a reader never sees half a plan. Without force an existing
+// file is refused, atomically (link, not rename).
+func writePlanFile(path string, data []byte, force bool) error {
+	if !force {
+		if _, err := os.Lstat(path); err == nil {
+			return withHint(usageErrorf("--out %s already exists", path), "add --force to replace it, or choose another name")
+		}
+	}
+	dir := filepath.Dir(path)
+	tmp, err := os.CreateTemp(dir, ".plan-*.tmp")
+	if err != nil {
+		if errors.Is(err, fs.ErrNotExist) {
+			return usageErrorf("--out %s: folder %s does not exist", path, dir)
+		}
+		return usageErrorf("--out %s: %v", path, err)
+	}
+	name := tmp.Name()
+	defer os.Remove(name) // a no-op once linked or renamed away
+	if _, err := tmp.Write(data); err != nil {
+		tmp.Close()
+		return usageErrorf("--out %s: %v", path, err)
+	}
+	if err := tmp.Sync(); err != nil {
+		tmp.Close()
+		return usageErrorf("--out %s: %v", path, err)
+	}
+	if err := tmp.Close(); err != nil {
+		return usageErrorf("--out %s: %v", path, err)
+	}
+	if err := os.Chmod(name, 0o644); err != nil {
+		return usageErrorf("--out %s: %v", path, err)
+	}
+	if force {
+		if err := os.Rename(name, path); err != nil {
+			return usageErrorf("--out %s: %v", path, err)
+		}
+		return nil
+	}
+	if err := os.Link(name, path); err != nil {
+		if errors.Is(err, fs.ErrExist) {
+			return withHint(usageErrorf("--out %s already exists", path), "add --force to replace it, or choose another name")
+		}
+		return usageErrorf("--out %s: %v", path, err)
+	}
+	return nil
+}
+
+// planJSON is the object `probity plan --json` prints; field order is the
+// key order.
+type planJSON struct {
+	SampleSize             int                 `json:"sample_size"`
+	AcceptanceNumber       int                 `json:"acceptance_number"`
+	ConsumerRisk           float64             `json:"consumer_risk"`
+	ProducerRisk           *float64            `json:"producer_risk"`
+	PerCandidateRisk       float64             `json:"per_candidate_risk"`
+	PerCandidateConfidence float64             `json:"per_candidate_confidence"`
+	Method                 string              `json:"method"`
+	Model                  string              `json:"model"`
+	Multiplicity           string              `json:"multiplicity"`
+	Design                 string              `json:"design"`
+	Require                string              `json:"require"`
+	Ceiling                float64             `json:"ceiling"`
+	Confidence             float64             `json:"confidence"`
+	Candidates             int                 `json:"candidates"`
+	Anticipated            *float64            `json:"anticipated"`
+	ProducerRiskAllowed    float64             `json:"producer_risk_allowed"`
+	Population             *int64              `json:"population"`
+	BadLotErrors           *int64              `json:"bad_lot_errors"`
+	GoodLotErrors          *int64              `json:"good_lot_errors"`
+	RejectAtHalfCeiling    *float64            `json:"reject_at_half_ceiling"`
+	Comparison             map[string]*int64   `json:"comparison"`
+	OC                     []plan.OCPoint      `json:"oc"`
+	CandidateNames         []string            `json:"candidate_names"`
+	Seed                   string              `json:"seed"`
+	PlanFile               *string             `json:"plan_file"`
+	Fingerprint            *string             `json:"fingerprint"`
+	Sequential             *planSequentialJSON `json:"sequential"`
+}
+
+// planOC is the plan's OC curve: 21 points, exact; for a sequential design
+// the sequential rule's acceptance probabilities at the same errors.
+func planOC(f *plan.File) ([]plan.OCPoint, error) {
+	oc := f.OC(21)
+	errs := make([]float64, len(oc))
+	for i, p := range oc {
+		errs[i] = p.Error
+	}
+	seq, ok, err := sequentialOC(f, errs)
+	if err != nil {
+		return nil, err
+	}
+	if ok {
+		for i := range oc {
+			oc[i].AcceptProbability = seq[i]
+		}
+	}
+	return oc, nil
+}
+
+func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
+	r, in := f.Rule, f.Inputs
+	j := planJSON{
+		SampleSize: r.SampleSize, AcceptanceNumber: r.AcceptanceNumber,
+		ConsumerRisk: r.ConsumerRisk, ProducerRisk: r.ProducerRisk,
+		PerCandidateRisk: r.PerCandidateRisk, PerCandidateConfidence: f.PerCandidateConfidence(),
+		Method: in.Method, Model: r.Model, Multiplicity: in.Multiplicity, Design: in.Design, Require: in.Require,
+		Ceiling: in.Ceiling, Confidence: in.Confidence, Candidates: in.Candidates,
+		Anticipated: in.Anticipated, ProducerRiskAllowed: in.ProducerRisk,
+		Comparison: map[string]*int64{}, Seed: f.Seed, CandidateNames: []string{},
+		Sequential: sequentialPlanJSON(f),
+	}
+	if in.Population > 0 {
+		pop, d1 := in.Population, r.BadLotErrors
+		j.Population, j.BadLotErrors = &pop, &d1
+		if in.Anticipated != nil {
+			d0 := r.GoodLotErrors
+			j.GoodLotErrors = &d0
+		}
+	}
+	if in.Anticipated == nil && f.Sequential == nil {
+		v := 1 - f.AcceptProbability(in.Ceiling/2)
+		j.RejectAtHalfCeiling = &v
+	}
+	for _, row := range f.Comparison {
+		if row.SampleSize > 0 {
+			n := row.SampleSize
+			j.Comparison[row.Rule] = &n
+		} else {
+			j.Comparison[row.Rule] = nil
+		}
+	}
+	oc, err := planOC(f)
+	if err != nil {
+		return err
+	}
+	j.OC = oc
+	for _, c := range f.Candidates {
+		j.CandidateNames = append(j.CandidateNames, c.Name)
+	}
+	if out != "" {
+		j.PlanFile, j.Fingerprint = &out, &fingerprint
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(j)
+}
+
+// ruleTitles are the comparison rows in words.
+var ruleTitles = map[string]string{
+	plan.RuleExactHypergeometric: "exact hypergeometric (this batch)",
+	plan.RuleExactBinomial:       "exact binomial",
+	plan.RuleKL:                  "Chernoff relative entropy (kl)",
+	plan.RuleHoeffding:           "Hoeffding",
+	plan.RuleChebyshev:           "Chebyshev (for comparison only)",
+}
+
+// chosenRule is the comparison row of the plan's own method.
+func chosenRule(f *plan.File) string {
+	switch f.Inputs.Method {
+	case plan.MethodHoeffding:
+		return plan.RuleHoeffding
+	case plan.MethodKL:
+		return plan.RuleKL
+	}
+	if f.Inputs.Population > 0 {
+		return plan.RuleExactHypergeometric
+	}
+	return plan.RuleExactBinomial
+}
+
+func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
+	r, in := f.Rule, f.Inputs
+	m := in.Candidates
+	who := "the model"
+	if m > 1 {
+		who = fmt.Sprintf("each of the %d candidates", m)
+	}
+	from := "drawn at random from the prediction log"
+	if in.Population > 0 {
+		from = fmt.Sprintf("drawn at random from the batch of %d", in.Population)
+	}
+	fmt.Fprintf(w, "Label %d decisions %s; accept %s if at most %d of them are errors.\n", r.SampleSize, from, who, r.AcceptanceNumber)
+	if f.Sequential != nil {
+		fmt.Fprintln(w)
+		writeSequentialSummary(w, f)
+	}
+	if m > 1 {
+		req := "every candidate must be accepted for the audit to pass"
+		if in.Require == plan.RequireAny {
+			req = "the audit passes when at least one candidate is accepted"
+		}
+		fmt.Fprintf(w, "All %d candidates are judged on the same labels; %s.\n", m, req)
+		switch in.Multiplicity {
+		case plan.Bonferroni:
+			fmt.Fprintf(w, "Bonferroni: each candidate is held to risk %s = (1 − %s)/%d.\n", pct(r.PerCandidateRisk), pct(in.Confidence), m)
+		case plan.Holm:
+			fmt.Fprintf(w, "Holm: sized as Bonferroni (risk %s per candidate at the first step); judging steps down and accepts more often.\n", pct(r.PerCandidateRisk))
+		case plan.FixedSequence:
+			fmt.Fprintf(w, "Fixed sequence: candidates are tested in the declared order at the full risk %s, stopping at the first rejected.\n", pct(r.PerCandidateRisk))
+		}
+	}
+	for _, c := range f.Candidates {
+		if c.Column != "" {
+			fmt.Fprintf(w, "  candidate %s: predicted label in column %s\n", c.Name, c.Column)
+		} else {
+			fmt.Fprintf(w, "  candidate %s: %s when %s ≥ %s, else %s\n", c.Name, c.Positive, c.ScoreColumn, strconv.FormatFloat(*c.Threshold, 'g', -1, 64), c.Negative)
+		}
+	}
+
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "What the plan guarantees")
+	bad := fmt.Sprintf("a model whose true error is %s or more", pct(in.Ceiling))
+	if in.Population > 0 {
+		bad = fmt.Sprintf("a batch with %d or more errors (%s of %d)", r.BadLotErrors, pct(in.Ceiling), in.Population)
+	}
+	fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (allowed %s, confidence %s).\n",
+		bad, pct(r.ConsumerRisk), pct(r.PerCandidateRisk), pct(f.PerCandidateConfidence()))
+	if in.Anticipated != nil {
+		good := fmt.Sprintf("a model whose true error is the anticipated %s", pct(*in.Anticipated))
+		if in.Population > 0 {
+			good = fmt.Sprintf("a batch with %d errors (the anticipated %s)", r.GoodLotErrors, pct(*in.Anticipated))
+		}
+		fmt.Fprintf(w, "  producer's risk: %s fails with probability %s (allowed %s).\n", good, pct(*r.ProducerRisk), pct(in.ProducerRisk))
+	} else if f.Sequential == nil {
+		half := 1 - f.AcceptProbability(in.Ceiling/2)
+		if r.AcceptanceNumber == 0 {
+			fmt.Fprintf(w, "  No anticipated error was given, so this is the zero-failure plan: a single error rejects.\n")
+		} else {
+			fmt.Fprintf(w, "  No anticipated error was given: this is the smallest plan any count can pass.\n")
+		}
+		fmt.Fprintf(w, "  A model whose true error is half the ceiling (%s) would be rejected %s of the time;\n", pct(in.Ceiling/2), pct(half))
+		fmt.Fprintf(w, "  give --anticipated to size a plan that passes a good model more reliably.\n")
+	}
+
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "Labels each rule needs for the same risks")
+	base := int64(r.SampleSize)
+	if f.Sequential != nil {
+		base = int64(f.Sequential.FixedSampleSize)
+	}
+	mine := chosenRule(f)
+	for _, row := range f.Comparison {
+		title := ruleTitles[row.Rule]
+		switch {
+		case row.SampleSize == 0 && in.Population > 0:
+			fmt.Fprintf(w, "  %-36s %10s\n", title, "more than the batch")
+		case row.SampleSize == 0:
+			fmt.Fprintf(w, "  %-36s %10s\n", title, fmt.Sprintf("over %d", plan.MaxSampleSize))
+		default:
+			note := ""
+			if row.Rule == mine {
+				note = "  (this plan)"
+			} else if base > 0 {
+				note = fmt.Sprintf("  %.1f× this plan", float64(row.SampleSize)/float64(base))
+			}
+			fmt.Fprintf(w, "  %-36s %10d%s\n", title, row.SampleSize, note)
+		}
+	}
+	if in.Anticipated != nil {
+		fmt.Fprintln(w, "  (each rule accepts at most its own number of errors and meets the same producer's risk)")
+	}
+
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "Chance that a model passes, by its true error (OC curve)")
+	kp := f.KeyPoints()
+	errs := make([]float64, len(kp))
+	for i, p := range kp {
+		errs[i] = p.Error
+	}
+	seq, isSeq, err := sequentialOC(f, errs)
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(w, "  %-12s %s\n", "true error", "passes")
+	for i, p := range kp {
+		a := p.AcceptProbability
+		if isSeq {
+			a = seq[i]
+		}
+		mark := ""
+		switch {
+		case p.Error == in.Ceiling:
+			mark = "  ceiling"
+		case in.Anticipated != nil && p.Error == *in.Anticipated:
+			mark = "  anticipated"
+		}
+		fmt.Fprintf(w, "  %-12s %s%s\n", pct(p.Error), pct(a), mark)
+	}
+	if out != "" {
+		fmt.Fprintln(w)
+		fmt.Fprintf(w, "Plan written to %s (seed %s, fingerprint sha256:%s).\n", out, f.Seed, fingerprint)
+	}
+	return nil
+}
+
+// pct formats a probability as a percentage with up to four significant
+// digits ("2%", "4.988%", "0.001%").
+func pct(p float64) string {
+	v := 100 * p
+	switch {
+	case v == 0:
+		return "0%"
+	case v >= 99.99 && v < 100:
+		return "over 99.99%"
+	case v < 0.0001:
+		return "under 0.0001%"
+	}
+	s := strconv.FormatFloat(v, 'f', -1, 64)
+	if d := decimalsFor(v); d >= 0 {
+		s = strconv.FormatFloat(v, 'f', d, 64)
+		if strings.Contains(s, ".") {
+			s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+		}
+	}
+	return s + "%"
+}
+
+// decimalsFor gives four significant digits for v.
+func decimalsFor(v float64) int {
+	d := 3
+	for x := v; x >= 10 && d > 0; x /= 10 {
+		d--
+	}
+	for x := v; x < 1 && d < 8; x *= 10 {
+		d++
+	}
+	return d
+}
+
+// runPlanBudget answers --budget: the ceiling each error count certifies.
+func runPlanBudget(d deps, o *planOptions) error {
+	in := o.in
+	rows, err := plan.Budget(o.budgetN, in.Confidence, in.Candidates, in.Multiplicity, in.Population, 11)
+	if err != nil {
+		return planInputError(err)
+	}
+	alpha := plan.PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+	var c *int
+	if o.hasCeiling {
+		v := plan.AcceptanceNumberFor(o.budgetN, in)
+		c = &v
+	}
+	if o.json {
+		type budgetJSON struct {
+			Budget           int              `json:"budget"`
+			Confidence       float64          `json:"confidence"`
+			Candidates       int              `json:"candidates"`
+			Multiplicity     string           `json:"multiplicity"`
+			PerCandidateRisk float64          `json:"per_candidate_risk"`
+			Population       *int64           `json:"population"`
+			Rows             []plan.BudgetRow `json:"rows"`
+			Ceiling          *float64         `json:"ceiling"`
+			AcceptanceNumber *int             `json:"acceptance_number"`
+		}
+		j := budgetJSON{Budget: o.budgetN, Confidence: in.Confidence, Candidates: in.Candidates, Multiplicity: in.Multiplicity,
+			PerCandidateRisk: alpha, Rows: rows, AcceptanceNumber: c}
+		if in.Population > 0 {
+			j.Population = &in.Population
+		}
+		if o.hasCeiling {
+			j.Ceiling = &in.Ceiling
+		}
+		enc := json.NewEncoder(d.stdout)
+		enc.SetIndent("", "  ")
+		return enc.Encode(j)
+	}
+	w := d.stdout
+	src := "one-sided Clopper–Pearson upper bound"
+	if in.Population > 0 {
+		src = fmt.Sprintf("exact hypergeometric bound for the batch of %d", in.Population)
+	}
+	fmt.Fprintf(w, "With %d labels, at confidence %s per candidate (%s):\n", o.budgetN, pct(1-alpha), src)
+	fmt.Fprintf(w, "  %-8s %s\n", "errors", "certifies error below")
+	for _, row := range rows {
+		fmt.Fprintf(w, "  %-8d %s\n", row.Errors, pct(row.Ceiling))
+	}
+	if c != nil {
+		if *c < 0 {
+			fmt.Fprintf(w, "%d labels cannot certify the ceiling %s even with no errors: at least %s would be needed with none.\n",
+				o.budgetN, pct(in.Ceiling), strconv.Itoa(zeroFailureN(in.Ceiling, alpha)))
+		} else {
+			fmt.Fprintf(w, "For the ceiling %s these labels allow at most %d errors.\n", pct(in.Ceiling), *c)
+		}
+	}
+	return nil
+}
+
+// zeroFailureN is the smallest n with (1 − ceiling)^n ≤ α.
+func zeroFailureN(ceiling, alpha float64) int {
+	in := plan.Inputs{Ceiling: ceiling, Confidence: 1 - alpha, Candidates: 1, ProducerRisk: plan.DefaultProducerRisk,
+		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
+	r, _, err := plan.Size(in)
+	if err != nil {
+		return 0
+	}
+	return r.SampleSize
+}
