@@ -137,8 +137,11 @@ func runTrend(d deps, o *trendOptions) error {
 		return trendInputError(err)
 	}
 	if len(loaded.Skipped) > 0 {
-		fmt.Fprintf(d.stderr, "probity: note: skipped %d JSON file(s) that are not records (%s)\n",
-			len(loaded.Skipped), trendShortList(loaded.Skipped, 3))
+		what := "JSON files that are not records"
+		if len(loaded.Skipped) == 1 {
+			what = "JSON file that is not a record"
+		}
+		fmt.Fprintf(d.stderr, "probity: note: skipped %d %s (%s)\n", len(loaded.Skipped), what, trendShortList(loaded.Skipped, 1))
 	}
 	for _, w := range t.Warnings {
 		fmt.Fprintf(d.stderr, "probity: warning: %s\n", w)

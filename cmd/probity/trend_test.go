@@ -385,3 +385,24 @@ func TestTrendOptionsValidate(t *testing.T) {
 		}
 	}
 }
+
+func TestTrendFolderSkipsOtherJSON(t *testing.T) {
+	dir := t.TempDir()
+	for _, m := range []string{"2026-01", "2026-02"} {
+		os.MkdirAll(filepath.Join(dir, m, "draw"), 0o755)
+		os.MkdirAll(filepath.Join(dir, m, "record"), 0o755)
+		trendWrite(t, filepath.Join(dir, m, "record"), "record.json", trendLoadMonth(t, m))
+		os.WriteFile(filepath.Join(dir, m, "draw", "manifest.json"), []byte(`{"format": 1}`), 0o644)
+	}
+	out, errOut, code := trendRun(t, "trend", dir)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	want := "probity: note: skipped 2 JSON files that are not records (" + filepath.Join(dir, "2026-01", "draw", "manifest.json") + " and 1 more)\n"
+	if errOut != want {
+		t.Errorf("stderr = %q, want %q", errOut, want)
+	}
+	if !strings.Contains(out, "Trend of 2 records, 2026-01 to 2026-02") {
+		t.Errorf("stdout:\n%s", out)
+	}
+}
