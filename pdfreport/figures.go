@@ -12,8 +12,12 @@ func (d *doc) ocSection(c *content) {
 		return
 	}
 	p := c.rec.Plan
+	rule := "n = " + itoa(p.SampleSize) + ", c = " + itoa(p.AcceptanceNumber)
+	if p.Design == "sequential" {
+		rule = "sequential, at most " + itoa(p.SampleSize) + " labels"
+	}
 	caption := "The curve gives, for each true error rate, the probability that a candidate is accepted by the " +
-		"per-candidate rule (n = " + itoa(p.SampleSize) + ", c = " + itoa(p.AcceptanceNumber) + "). " +
+		"per-candidate rule (" + rule + "). " +
 		"At the ceiling (red dashed line) its height is the consumer's risk, the chance of accepting a candidate " +
 		"that is exactly at the ceiling."
 	if p.Anticipated != nil {

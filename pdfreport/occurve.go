@@ -71,8 +71,19 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 	}
 	ceil := 100 * rec.Plan.Ceiling
 	xmax = math.Max(xmax, ceil*1.15)
+	if a := rec.Plan.Anticipated; a != nil && !bad(*a) {
+		xmax = math.Max(xmax, 100**a*1.05)
+	}
+	for _, cand := range rec.Candidates {
+		if !bad(cand.Estimate) {
+			xmax = math.Max(xmax, 100*cand.Estimate*1.03)
+		}
+	}
+	// End the axis on a tick.
+	step := niceStep(xmax)
+	xmax = math.Ceil(xmax/step-1e-9) * step
 	p.X.Min, p.X.Max = 0, xmax
-	p.X.Tick.Marker = fixedTicks{step: niceStep(xmax), format: ""}
+	p.X.Tick.Marker = fixedTicks{step: step, format: ""}
 
 	grid := plotter.NewGrid()
 	grid.Vertical.Color, grid.Horizontal.Color = plotGrid, plotGrid
@@ -86,7 +97,11 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 	curve.Color = plotCurve
 	curve.Width = vg.Points(1.8)
 	p.Add(curve)
-	leg.Add(fmt.Sprintf("OC curve, n = %d, c = %d", rec.Plan.SampleSize, rec.Plan.AcceptanceNumber), curve)
+	if rec.Plan.Design == "sequential" {
+		leg.Add(fmt.Sprintf("OC curve, sequential, n ≤ %d", rec.Plan.SampleSize), curve)
+	} else {
+		leg.Add(fmt.Sprintf("OC curve, n = %d, c = %d", rec.Plan.SampleSize, rec.Plan.AcceptanceNumber), curve)
+	}
 
 	ceilLine, err := vline(ceil, plotCeiling, []vg.Length{vg.Points(5), vg.Points(3)})
 	if err != nil {

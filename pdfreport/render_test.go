@@ -338,3 +338,57 @@ func TestRenderRefusesWhatItCannotLayOut(t *testing.T) {
 		t.Error("nil record accepted")
 	}
 }
+
+func TestUnusualRecordsLayOut(t *testing.T) {
+	cases := []struct {
+		name string
+		edit func(*record.Record)
+		want []string
+	}{
+		{"sequential without curve or strata", func(r *record.Record) {
+			r.Plan.Design = "sequential"
+			r.OC = nil
+			r.Strata = nil
+			for i := range r.Candidates {
+				r.Candidates[i].Strata = nil
+				r.Candidates[i].StoppedAt = 120
+			}
+		}, []string{"holds no operating-characteristic curve", "not stratified", "sequential boundaries"}},
+		{"finite lot, one candidate, nothing optional", func(r *record.Record) {
+			r.System, r.SystemVersion, r.Period, r.Use = "", "", "", ""
+			r.Plan.Population = 20000
+			r.Plan.Model = "hypergeometric"
+			r.Plan.Method = "exact"
+			r.Method.Bound = "exact-hypergeometric"
+			r.Plan.Candidates = 1
+			r.Plan.Anticipated, r.Plan.ProducerRisk = nil, nil
+			r.Candidates = r.Candidates[:1]
+			r.Candidates[0].Confusion = record.Confusion{}
+			r.Deviations = record.Deviations{}
+			r.Signoff = nil
+			r.SigningKey = ""
+			r.Fingerprints = record.Fingerprints{}
+		}, []string{"unnamed system", "20,000 decisions (finite lot)", "exact hypergeometric", "None. Every sampled item",
+			"Not recorded.", "not recorded", "Declared use general", "Period not stated"}},
+		{"no candidates", func(r *record.Record) {
+			r.Candidates = nil
+			r.OverallVerdict = ""
+		}, []string{"NO VERDICT", "The record lists no candidates."}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			rec := fixtureRecord("general")
+			tc.edit(rec)
+			pdf := render(t, rec, Options{Paper: "a4"})
+			text := flat(pdfText(t, pdf))
+			for _, want := range tc.want {
+				if !strings.Contains(text, want) {
+					t.Errorf("text lacks %q", want)
+				}
+			}
+			if n := pageCount(t, pdf); n < 3 {
+				t.Errorf("only %d pages", n)
+			}
+		})
+	}
+}
