@@ -103,7 +103,8 @@ func PDF(t *trend.Trend, info PageInfo) ([]byte, error) {
 	avail := ph - pageMargin - pdf.GetY() - 4 - tableH - 4 - warnH - footerH
 	nw, nh := ChartSize(t)
 	chartW := cw
-	chartH := chartW * nh.Points() / nw.Points()
+	// Up to 1.3 × the natural height: a short trend gets taller panels.
+	chartH := 1.3 * chartW * nh.Points() / nw.Points()
 	if chartH > avail {
 		chartH = avail
 	}
