@@ -5,7 +5,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
-	"sort"
 	"strconv"
 
 	"probity/plan/record"
@@ -29,11 +28,12 @@ func diffRecords(stored, again *record.Record) ([]string, error) {
 	if bytes.Equal(a, b) {
 		return nil, nil
 	}
-	var x, y any
-	if err := decodeNumbers(a, &x); err != nil {
+	x, err := decodeOrdered(a)
+	if err != nil {
 		return nil, err
 	}
-	if err := decodeNumbers(b, &y); err != nil {
+	y, err := decodeOrdered(b)
+	if err != nil {
 		return nil, err
 	}
 	var out []string
@@ -41,38 +41,79 @@ func diffRecords(stored, again *record.Record) ([]string, error) {
 	return out, nil
 }
 
-func decodeNumbers(data []byte, v *any) error {
+// object is a JSON object with its keys in the order written, so
+// differences are listed in record.json's own (struct) order.
+type object struct {
+	keys []string
+	vals map[string]any
+}
+
+// decodeOrdered decodes JSON into objects, []any, json.Number, string,
+// bool and nil.
+func decodeOrdered(data []byte) (any, error) {
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.UseNumber()
-	return dec.Decode(v)
+	return decodeValue(dec)
+}
+
+func decodeValue(dec *json.Decoder) (any, error) {
+	tok, err := dec.Token()
+	if err != nil {
+		return nil, err
+	}
+	switch tok {
+	case json.Delim('{'):
+		o := &object{vals: map[string]any{}}
+		for dec.More() {
+			k, err := dec.Token()
+			if err != nil {
+				return nil, err
+			}
+			v, err := decodeValue(dec)
+			if err != nil {
+				return nil, err
+			}
+			key := fmt.Sprint(k)
+			o.keys = append(o.keys, key)
+			o.vals[key] = v
+		}
+		_, err := dec.Token()
+		return o, err
+	case json.Delim('['):
+		var l []any
+		for dec.More() {
+			v, err := decodeValue(dec)
+			if err != nil {
+				return nil, err
+			}
+			l = append(l, v)
+		}
+		_, err := dec.Token()
+		return l, err
+	}
+	return tok, nil
 }
 
 func diffValue(path string, a, b any, out *[]string) {
 	switch av := a.(type) {
-	case map[string]any:
-		bv, ok := b.(map[string]any)
+	case *object:
+		bv, ok := b.(*object)
 		if !ok {
 			*out = append(*out, fmt.Sprintf("%s: %s in the record, %s recomputed", path, brief(a), brief(b)))
 			return
 		}
-		keys := map[string]bool{}
-		for k := range av {
-			keys[k] = true
+		keys := append([]string{}, av.keys...)
+		for _, k := range bv.keys {
+			if _, seen := av.vals[k]; !seen {
+				keys = append(keys, k)
+			}
 		}
-		for k := range bv {
-			keys[k] = true
-		}
-		sorted := make([]string, 0, len(keys))
-		for k := range keys {
-			sorted = append(sorted, k)
-		}
-		sort.Strings(sorted)
-		for _, k := range sorted {
+		for _, k := range keys {
 			p := k
 			if path != "" {
 				p = path + "." + k
 			}
-			diffValue(p, av[k], bv[k], out)
+			diffValue(p, av.vals[k], bv.vals[k], out)
 		}
 	case []any:
 		bv, ok := b.([]any)
@@ -105,6 +146,9 @@ func diffValue(path string, a, b any, out *[]string) {
 
 // brief prints a JSON value for a difference message, shortened.
 func brief(v any) string {
+	if o, ok := v.(*object); ok {
+		return fmt.Sprintf("an object of %d fields", len(o.keys))
+	}
 	data, _ := json.Marshal(v)
 	r := []rune(string(data))
 	if len(r) > 60 {

@@ -183,7 +183,7 @@ func verifySignatures(c *checkList, o *verifyOptions, rec *record.Record, js []b
 			continue
 		}
 		if err := sig.Verify(f.name, f.data); err != nil {
-			c.fail("%s: %v", filepath.Join(o.dir, f.name), strings.TrimPrefix(err.Error(), signature.ErrMismatch.Error()+": "))
+			c.fail("%s (in %s)", strings.TrimPrefix(err.Error(), signature.ErrMismatch.Error()+": "), o.dir)
 		} else {
 			c.ok("%s: signature valid", filepath.Join(o.dir, f.name))
 		}
@@ -298,6 +298,9 @@ func recompute(c *checkList, o *verifyOptions, rec *record.Record) error {
 		again.LabelQuality = rec.LabelQuality
 		c.skip("label quality (double labeling) is not recomputed by verify; the judgement below uses the first labels only")
 	}
+	// The fingerprints (and so the record id) were compared above, input
+	// by input; this compares what was computed from them.
+	again.RecordID, again.Fingerprints = rec.RecordID, rec.Fingerprints
 	diffs, err := diffRecords(rec, again)
 	if err != nil {
 		return &internalError{msg: err.Error()}

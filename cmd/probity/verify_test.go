@@ -1,0 +1,151 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"probity/plan/record/signature"
+	"probity/sampling"
+)
+
+// signedRecord makes a key pair and a signed record of the fixture.
+func signedRecord(t *testing.T) (fx *recFixture, rec, labels, pub string) {
+	t.Helper()
+	fx = newRecFixture(t, true, 0)
+	labels = fx.labels(t, "labels.csv", nil)
+	key := filepath.Join(fx.dir, "key")
+	if code, _, stderr := runProbity(t, "keygen", "--out", key); code != exitOK {
+		t.Fatal(stderr)
+	}
+	rec = filepath.Join(fx.dir, "rec")
+	code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", rec,
+		"--sign-key", key, "--date", "2026-12-01", "--signoff", writeTemp(t, fx.dir, "signoff.yaml", "reviewed:\n  name: Jörg Þórsson\n  title: Model-risk reviewer\n"))
+	if code != exitRejected {
+		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
+	}
+	if got := strings.Join(listDir(t, rec), ","); got != "record.json,record.pdf,record.sig" {
+		t.Fatalf("record folder holds %s", got)
+	}
+	return fx, rec, labels, key + ".pub"
+}
+
+func TestVerifyAllGood(t *testing.T) {
+	fx, rec, labels, pub := signedRecord(t)
+	code, stdout, stderr := runProbity(t, "verify", rec, "--pub", pub, "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--log", fx.logPath)
+	if code != exitOK || stderr != "" {
+		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
+	}
+	for _, want := range []string{
+		"record.json is a canonical record", "record.json: signature valid", "record.pdf: signature valid",
+		"signed with the trusted key", "SHA-256 matches the record's plan fingerprint", "labels fingerprint",
+		"judgement recomputed from the inputs: every field of record.json agrees",
+		"sample drawn again from " + fx.logPath, "verified: 11 checks passed",
+	} {
+		if !strings.Contains(stdout, want) {
+			t.Errorf("stdout lacks %q:\n%s", want, stdout)
+		}
+	}
+	// Without --pub the key is reported, not trusted; still exit 0.
+	code, stdout, _ = runProbity(t, "verify", rec)
+	if code != exitOK || !strings.Contains(stdout, "not checked against a trusted key (pass --pub KEY.pub)") {
+		t.Errorf("exit %d\n%s", code, stdout)
+	}
+}
+
+// TestTamperingIsDetected: a changed label, a removed row, an edited
+// record.json, a swapped PDF and another key — each detected, naming the
+// file and what.
+func TestTamperingIsDetected(t *testing.T) {
+	fx, rec, _, pub := signedRecord(t)
+	copyDir := func(name string) string {
+		dst := filepath.Join(fx.dir, name)
+		os.Mkdir(dst, 0o755)
+		for _, f := range listDir(t, rec) {
+			writeFile(t, filepath.Join(dst, f), mustRead(t, filepath.Join(rec, f)))
+		}
+		return dst
+	}
+	// The first sample item's label flipped.
+	changed := fx.labels(t, "changed.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
+		r[0].Label = map[string]string{"ok": "defect", "defect": "ok"}[r[0].Label]
+		return r
+	})
+	removed := fx.labels(t, "removed.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow { return append(r[:2:2], r[3:]...) })
+
+	edited := copyDir("edited")
+	js := mustRead(t, filepath.Join(edited, "record.json"))
+	writeFile(t, filepath.Join(edited, "record.json"), bytes.Replace(js, []byte(`"verdict": "REJECT"`), []byte(`"verdict": "ACCEPT"`), 1))
+
+	swapped := copyDir("swapped")
+	other := newRecFixture(t, true, 0)
+	otherRec := filepath.Join(other.dir, "rec")
+	runProbity(t, "record", "--plan", other.planPath, "--draw", other.draw, "--labels", other.labels(t, "l.csv", nil), "--out", otherRec, "--date", "2026-11-02")
+	writeFile(t, filepath.Join(swapped, "record.pdf"), mustRead(t, filepath.Join(otherRec, "record.pdf")))
+
+	// Another key pair (keygen in these tests reads a fixed random stream,
+	// so make this one from other bytes).
+	otherKey := filepath.Join(fx.dir, "other-key")
+	otherPub, _, _ := signature.GenerateKey(bytes.NewReader(bytes.Repeat([]byte{0x11}, 64)))
+	otherPEM, _ := signature.MarshalPublic(otherPub)
+	writeFile(t, otherKey+".pub", otherPEM)
+
+	cases := []struct {
+		name string
+		args []string
+		want []string
+	}{
+		{"changed label", []string{rec, "--pub", pub, "--plan", fx.planPath, "--draw", fx.draw, "--labels", changed},
+			[]string{"FAIL  " + changed + ": SHA-256", "is not the record's labels fingerprint", "FAIL  record.json differs from the judgement recomputed from the inputs: candidates[0].errors: 0 in the record, 1 recomputed"}},
+		{"removed row", []string{rec, "--plan", fx.planPath, "--draw", fx.draw, "--labels", removed},
+			[]string{"FAIL  " + removed + ": SHA-256", "FAIL  the inputs do not give a record: " + removed + ": rows differ from the ledger — 1 missing: item 3"}},
+		{"edited record.json", []string{edited, "--pub", pub},
+			[]string{"FAIL  record.json has SHA-256", "but record.sig signed", "the file was changed after signing (in " + edited + ")"}},
+		{"swapped PDF", []string{swapped, "--pub", pub},
+			[]string{"FAIL  record.pdf has SHA-256", "the file was changed after signing (in " + swapped + ")"}},
+		{"another key", []string{rec, "--pub", otherKey + ".pub"},
+			[]string{"FAIL  record.sig was signed with key sha256:", "not with --pub " + otherKey + ".pub"}},
+		{"unsigned but --pub", []string{otherRec, "--pub", pub},
+			[]string{"FAIL  " + filepath.Join(otherRec, "record.sig") + " is missing: the record is not signed"}},
+	}
+	for _, c := range cases {
+		code, stdout, stderr := runProbity(t, append([]string{"verify"}, c.args...)...)
+		if code != exitRejected {
+			t.Errorf("%s: exit %d, want 1\n%s%s", c.name, code, stdout, stderr)
+		}
+		for _, w := range c.want {
+			if !strings.Contains(stdout, w) {
+				t.Errorf("%s: stdout lacks %q:\n%s", c.name, w, stdout)
+			}
+		}
+		if !strings.HasPrefix(stderr, "probity: verification failed: ") {
+			t.Errorf("%s: stderr %q", c.name, stderr)
+		}
+	}
+	// record itself refuses the tampered labels (the removed row): exit 2.
+	code, _, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", removed, "--out", filepath.Join(fx.dir, "again"))
+	if code != exitBadInput || !strings.Contains(stderr, "removed.csv: rows differ from the ledger — 1 missing: item 3") {
+		t.Errorf("record on a removed row: exit %d: %s", code, stderr)
+	}
+}
+
+func TestVerifyUsage(t *testing.T) {
+	dir := t.TempDir()
+	cases := []struct {
+		args []string
+		want string
+	}{
+		{[]string{"verify"}, "verify needs exactly one record folder"},
+		{[]string{"verify", filepath.Join(dir, "none")}, "is not a record folder"},
+		{[]string{"verify", dir}, "cannot read " + filepath.Join(dir, "record.json")},
+		{[]string{"verify", dir, "--log", "x.csv"}, "--log needs --plan and --draw"},
+	}
+	for _, c := range cases {
+		code, _, stderr := runProbity(t, c.args...)
+		if code != exitBadInput || !strings.Contains(stderr, c.want) {
+			t.Errorf("%v: exit %d: %s", c.args, code, stderr)
+		}
+	}
+}
