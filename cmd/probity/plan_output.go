@@ -196,7 +196,13 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if in.Population > 0 {
 		from = fmt.Sprintf("drawn at random from the batch of %d", in.Population)
 	}
-	fmt.Fprintf(w, "Label %d decisions %s; accept %s if at most %d of them are errors.\n", r.SampleSize, from, who, r.AcceptanceNumber)
+	if f.Sequential != nil {
+		fmt.Fprintf(w, "Label decisions %s one at a time, at most %d; stop at the first boundary reached (below).\n", from, r.SampleSize)
+	} else if r.AcceptanceNumber == 0 {
+		fmt.Fprintf(w, "Label %d decisions %s; accept %s if none of them is an error.\n", r.SampleSize, from, who)
+	} else {
+		fmt.Fprintf(w, "Label %d decisions %s; accept %s if at most %d of them are errors.\n", r.SampleSize, from, who, r.AcceptanceNumber)
+	}
 	if f.Sequential != nil {
 		fmt.Fprintln(w)
 		writeSequentialSummary(w, f)
@@ -267,6 +273,8 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 			note := ""
 			if row.Rule == mine {
 				note = "  (this plan)"
+			} else if row.SampleSize == base {
+				note = "  the same"
 			} else if base > 0 {
 				note = fmt.Sprintf("  %.1f× this plan", float64(row.SampleSize)/float64(base))
 			}
