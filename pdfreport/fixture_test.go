@@ -157,8 +157,9 @@ func fixtureRecord(use string) *record.Record {
 			Worksheet: "c0ffee00c0ffee00c0ffee00c0ffee00c0ffee00c0ffee00c0ffee00c0ffee00",
 			Labels:    "feedfacefeedfacefeedfacefeedfacefeedfacefeedfacefeedfacefeedface",
 		},
-		Strata: fixtureStrata,
-		OC:     fixtureOC,
+		// Copies, so a test that edits the record leaves the tables alone.
+		Strata: append([]record.StratumCount(nil), fixtureStrata...),
+		OC:     append([]record.OCPoint(nil), fixtureOC...),
 		Deviations: record.Deviations{
 			SparesUsed: []string{"s0007", "s0012"},
 			Unlabeled:  []string{},
@@ -197,7 +198,7 @@ func fixtureRecord(use string) *record.Record {
 			c.Reason = fmt.Sprintf("%d errors > c = 3", fc.errors)
 		}
 		c.Confusion = record.Confusion{Classes: []string{"urgent", "routine"}, Counts: confusions[i]}
-		c.Strata = fc.strata
+		c.Strata = append([]record.StratumErr(nil), fc.strata...)
 		rec.Candidates = append(rec.Candidates, c)
 	}
 	return rec
