@@ -133,6 +133,7 @@ Labels written into the worksheets since the draw are not differences.
 	fl.StringVar(&opts.period, "period", "", "draw a fresh sample for period `LABEL` (e.g. 2026-11) with the period seed")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty output folder")
 	fl.BoolVarP(&opts.quiet, "quiet", "q", false, "no progress bar")
+	hookDrawSQL(d, cmd, opts) // --sql, --table, --selected: draw_sql.go
 	return cmd
 }
 

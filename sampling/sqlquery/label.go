@@ -41,10 +41,10 @@ func (q *quoter) labelExpr() (string, error) {
 	d := q.s.Dialect
 	var parts []string
 	for _, c := range q.s.Strata {
-		parts = append(parts, q.valueText(c))
+		parts = append(parts, "r."+q.raw[c])
 	}
-	for _, b := range q.bands {
-		parts = append(parts, q.bandExpr(b))
+	for i, b := range q.bands {
+		parts = append(parts, q.bandExpr(b, "r.b"+strconv.Itoa(i+1)))
 	}
 	if len(parts) == 0 {
 		lit, _ := d.QuoteLiteral(sampling.AllStratum)
@@ -62,12 +62,11 @@ func (q *quoter) bandNumber(b sampling.Band) string {
 	return "CASE WHEN " + d.matches(x, scoreSyntax) + " THEN CAST(trim(" + x + ") AS double precision) END"
 }
 
-// bandExpr is the interval label of a band value: interval i of
-// sampling.Band.Labels holds [e_{i−1}, e_i), the last one [e_k, 1]; NULL
-// outside [0, 1].
-func (q *quoter) bandExpr(b sampling.Band) string {
+// bandExpr is the interval label of a band value x (made by bandNumber):
+// interval i of sampling.Band.Labels holds [e_{i−1}, e_i), the last one
+// [e_k, 1]; NULL outside [0, 1] or when x is NULL.
+func (q *quoter) bandExpr(b sampling.Band, x string) string {
 	d := q.s.Dialect
-	x := "(" + q.bandNumber(b) + ")"
 	labels := b.Labels()
 	var e strings.Builder
 	fmt.Fprintf(&e, "CASE WHEN %s >= 0 AND %s <= 1 THEN CASE", x, x)
@@ -91,12 +90,12 @@ func (q *quoter) badExpr() string {
 	n := 0
 	for _, c := range q.s.Strata {
 		lit, _ := d.QuoteLiteral("strata:" + c)
-		fmt.Fprintf(&b, " WHEN %s THEN %s", d.contains(q.valueText(c), labelSeparator), lit)
+		fmt.Fprintf(&b, " WHEN %s THEN %s", d.contains("r."+q.raw[c], labelSeparator), lit)
 		n++
 	}
-	for _, band := range q.bands {
+	for i, band := range q.bands {
 		lit, _ := d.QuoteLiteral("band:" + band.Column)
-		x := "(" + q.bandNumber(band) + ")"
+		x := "r.b" + strconv.Itoa(i+1)
 		fmt.Fprintf(&b, " WHEN %s IS NULL OR NOT (%s >= 0 AND %s <= 1) THEN %s", x, x, x, lit)
 		n++
 	}

@@ -77,18 +77,34 @@ func Query(s *Spec) (string, error) {
 	w("-- The import rebuilds this text from the result's first row; an edited\n")
 	w("-- query gives a result whose manifest names a query that was not run.\n")
 	w("WITH RECURSIVE\n")
-	// base: every row of the table, with its id as text, whether it is in
-	// scope, its stratum label and the first problem a draw from a file
+	// raw: each column the draw reads, as text, and each band value as a
+	// number, computed once per row (OFFSET 0 keeps the planner from
+	// copying these expressions into every use); base: whether the row is
+	// in scope, its stratum label and the first problem a draw from a file
 	// would refuse.
-	w("base AS (\n  SELECT %s AS record_id,\n    %s AS in_scope,\n    %s AS stratum,\n    %s AS bad", d.text("t."+q.id), q.scopeExpr(), label, q.badExpr())
-	for i, c := range values {
-		w(",\n    %s AS v%d", q.valueText(c), i+1)
+	w("base AS (\n  SELECT r.record_id,\n    %s AS in_scope,\n    %s AS stratum,\n    %s AS bad", q.scopeExpr(), label, q.badExpr())
+	for i := range values {
+		w(",\n    r.v%d", i+1)
 	}
-	w("\n  FROM %s AS t\n),\n", q.table)
+	w("\n  FROM (\n    SELECT %s AS record_id", d.text("t."+q.id))
+	for i, c := range q.rawColumns() {
+		w(",\n      %s AS %s", q.valueText(c), q.raw[c])
+		_ = i
+	}
+	for i, b := range q.bands {
+		w(",\n      %s AS b%d", q.bandNumber(b), i+1)
+	}
+	for i, c := range values {
+		w(",\n      %s AS v%d", q.valueText(c), i+1)
+	}
+	w("\n    FROM %s AS t\n    OFFSET 0\n  ) AS r\n),\n", q.table)
 	w("src AS (\n  SELECT * FROM base WHERE in_scope\n),\n")
 	w("keyed AS (\n  SELECT s.*, %s AS k\n  FROM src AS s\n),\n", d.keyExpr(seedLit, "s.record_id"))
 	w("counts AS (\n  SELECT stratum, count(*) AS n_pop\n  FROM src\n  GROUP BY stratum\n),\n")
 	b.WriteString(alloc)
+	// ranked sorts the rows in scope by stratum and key with their values:
+	// one sort, and no join back to the table, whose plan would depend on
+	// the planner's row estimates.
 	w("ranked AS (\n  SELECT y.*, row_number() OVER (PARTITION BY y.stratum ORDER BY y.k) AS rnk\n  FROM keyed AS y\n),\n")
 	w("dups AS (\n  SELECT record_id, count(*) AS n\n  FROM src\n  WHERE record_id <> ''\n  GROUP BY record_id\n  HAVING count(*) > 1\n),\n")
 	w("bads AS (\n  SELECT bad, count(*) AS n, min(record_id%s) AS first_id\n  FROM src\n  WHERE bad IS NOT NULL\n  GROUP BY bad\n),\n", d.byteOrder())
@@ -134,7 +150,7 @@ func (q *quoter) scopeExpr() string {
 		for i, v := range f.Values {
 			lits[i], _ = q.s.Dialect.QuoteLiteral(v)
 		}
-		conds = append(conds, "("+q.valueText(f.Column)+" IN ("+strings.Join(lits, ", ")+"))")
+		conds = append(conds, "(r."+q.raw[f.Column]+" IN ("+strings.Join(lits, ", ")+"))")
 	}
 	return strings.Join(conds, " AND ")
 }
@@ -163,6 +179,28 @@ type quoter struct {
 	cols    map[string]string
 	bands   []sampling.Band
 	filters []sampling.Filter
+	// raw names the inner column holding each strata or --where column's
+	// text (s1, s2, …).
+	raw map[string]string
+}
+
+// rawColumns lists the strata and --where columns, each once, in order.
+func (q *quoter) rawColumns() []string {
+	var cols []string
+	seen := map[string]bool{}
+	for _, c := range q.s.Strata {
+		if !seen[c] {
+			seen[c] = true
+			cols = append(cols, c)
+		}
+	}
+	for _, f := range q.filters {
+		if !seen[f.Column] {
+			seen[f.Column] = true
+			cols = append(cols, f.Column)
+		}
+	}
+	return cols
 }
 
 // newQuoter validates s and quotes every name it uses.
@@ -203,6 +241,10 @@ func newQuoter(s *Spec) (*quoter, error) {
 		names = append(names, f.Column)
 	}
 	names = append(names, s.valueColumns()...)
+	q.raw = map[string]string{}
+	for i, c := range q.rawColumns() {
+		q.raw[c] = "s" + strconv.Itoa(i+1)
+	}
 	for _, n := range names {
 		qn, err := s.Dialect.QuoteIdent(n)
 		if err != nil {

@@ -1,0 +1,268 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"probity/sampling"
+	"probity/sampling/sqlquery"
+)
+
+// drawSQLOptions are the flags that make draw work with a database: print
+// the query (--sql with --table) or import its result (--selected).
+type drawSQLOptions struct {
+	dialect  string
+	table    string
+	selected string
+}
+
+// drawSQLHelp is added to draw's long help.
+const drawSQLHelp = `
+
+Drawing inside a database. With --sql postgres|duckdb --table NAME, draw
+prints one SQL query instead of reading a log. Run it where the table lives
+and save its result as CSV with a header, e.g.
+  psql --csv -f draw.sql > result.csv
+then
+  probity draw --plan PLAN.yaml --selected result.csv --out DIR
+checks every key against its id and seed, the allocation against the
+stratum counts and the result against the plan, and writes the usual folder;
+its manifest names the engine, the table and the query's SHA-256. The query
+computes the same keys, counts and allocation (proportional or equal, with
+--min-per-stratum and --spare) as a draw from a file. NAME is taken exactly as
+written (schema.table; write "a.b" for a name holding a dot); names are always
+quoted and the seed is a literal the query cannot break out of. A NULL value
+is read as the text (null), so NULL strata form their own stratum "(null)";
+a NULL or empty id, or an id on more than one row, is refused. An export of
+the table written with NULL '(null)', e.g.
+  COPY t TO STDOUT (FORMAT csv, HEADER, NULL '(null)')
+gives the same worksheet and ledger with --log, and
+probity draw --check DIR --log EXPORT verifies a draw made in the engine.`
+
+// hookDrawSQL adds --sql, --table and --selected to the draw command and
+// routes the command to the SQL paths when they are given; otherwise the
+// draw from a log runs unchanged.
+func hookDrawSQL(d deps, cmd *cobra.Command, o *drawOptions) {
+	so := &drawSQLOptions{}
+	fl := cmd.Flags()
+	fl.StringVar(&so.dialect, "sql", "", "print the query that draws inside a database instead, for `DIALECT` postgres or duckdb")
+	fl.StringVar(&so.table, "table", "", "with --sql: the table or view to draw from (`NAME` or schema.name)")
+	fl.StringVar(&so.selected, "selected", "", "import the drawing query's result `FILE` (CSV; - for stdin) into the folder --out")
+	cmd.Long = strings.Replace(cmd.Long, "\n\n"+exitCodesHelp, drawSQLHelp+"\n\n"+exitCodesHelp, 1)
+	cmd.Example += `
+  probity draw --plan plan.yaml --sql postgres --table analytics.predictions \
+      --strata region --show text > draw.sql
+  probity draw --plan plan.yaml --selected result.csv --out audit-2026-11`
+	pre, run := cmd.PreRunE, cmd.RunE
+	cmd.PreRunE = func(c *cobra.Command, args []string) error {
+		if so.dialect == "" && so.selected == "" {
+			if so.table != "" {
+				return withHint(usageErrorf("--table is only used with --sql"), "add --sql postgres or --sql duckdb to print the drawing query")
+			}
+			return pre(c, args)
+		}
+		return so.validate(c, o)
+	}
+	cmd.RunE = func(c *cobra.Command, args []string) error {
+		switch {
+		case so.dialect != "":
+			return runDrawSQL(d, o, so)
+		case so.selected != "":
+			return runDrawSelected(d, c, o, so)
+		}
+		return run(c, args)
+	}
+}
+
+// validate checks the flags of the two SQL paths.
+func (so *drawSQLOptions) validate(c *cobra.Command, o *drawOptions) error {
+	if so.dialect != "" && so.selected != "" {
+		return withHint(usageErrorf("--sql and --selected cannot be used together"),
+			"--sql prints the query; --selected imports its result")
+	}
+	if o.planPath == "" {
+		return withHint(usageErrorf("--plan is required"), "give the plan file made by 'probity plan', e.g. --plan plan.yaml")
+	}
+	mode := "--sql"
+	refused := []string{"log", "check", "format", "dedupe", "anticipated"}
+	if so.dialect != "" {
+		refused = append(refused, "out", "force")
+	} else {
+		mode = "--selected"
+	}
+	for _, name := range refused {
+		if c.Flags().Changed(name) {
+			return withHint(usageErrorf("--%s cannot be used with %s", name, mode), drawSQLConflictHint(name, mode))
+		}
+	}
+	if so.selected != "" {
+		if o.out == "" {
+			return withHint(usageErrorf("--out is required"), "name the folder to write the draw into, e.g. --out audit-2026-11")
+		}
+		return nil
+	}
+	if _, err := sqlquery.ParseDialect(so.dialect); err != nil {
+		return withHint(usageErrorf("--sql: %v", err), "e.g. --sql postgres")
+	}
+	if so.table == "" {
+		return withHint(usageErrorf("--sql needs --table"), "name the table or view holding the prediction log, e.g. --table analytics.predictions")
+	}
+	if o.allocation == sampling.Neyman {
+		return withHint(usageErrorf("--allocation neyman cannot run inside the engine"),
+			"use proportional or equal with --sql, or export the table and draw with --log")
+	}
+	return nil
+}
+
+// drawSQLConflictHint explains why a flag does not go with --sql or
+// --selected.
+func drawSQLConflictHint(name, mode string) string {
+	switch {
+	case name == "log" || name == "format":
+		return "the query reads the table, not a log; to draw from an export, drop " + mode
+	case name == "check":
+		return "check a draw made in the engine with probity draw --check DIR --plan PLAN --log EXPORT"
+	case name == "dedupe":
+		return "a draw inside the engine refuses repeated ids; remove them in a view, or draw from an export with --dedupe first"
+	case name == "anticipated":
+		return "neyman allocation cannot run inside the engine"
+	default:
+		return "--sql prints the query to stdout; the folder is written by --selected RESULT --out DIR"
+	}
+}
+
+// drawSpec builds the query's specification from the flags.
+func drawSpec(d deps, o *drawOptions, so *drawSQLOptions, planPath string) (*sqlquery.Spec, error) {
+	p, fp, err := loadDrawPlan(planPath)
+	if err != nil {
+		return nil, err
+	}
+	s := &sqlquery.Spec{
+		Format: sqlquery.QueryFormat, ToolVersion: d.version, Dialect: sqlquery.Dialect(so.dialect),
+		PlanFingerprint: fp, Seed: p.Seed, Period: o.period, SelectionSeed: p.Seed,
+		Table: so.table, IDColumn: o.id, Strata: o.strata, Show: o.show,
+		Candidates: p.Candidates, SampleSize: p.Rule.SampleSize,
+		Allocation: o.allocation, MinPerStratum: o.minPer, Spare: o.spare, Double: o.double,
+	}
+	if o.period != "" {
+		s.SelectionSeed = sampling.PeriodSeed(p.Seed, o.period)
+	}
+	for _, b := range o.bands {
+		pb, err := sampling.ParseBand(b)
+		if err != nil {
+			return nil, withHint(usageErrorf("--band: %v", err), "e.g. --band score=0.5,0.9")
+		}
+		s.Bands = append(s.Bands, pb.String())
+	}
+	for _, w := range o.where {
+		pf, err := sampling.ParseFilter(w)
+		if err != nil {
+			return nil, withHint(usageErrorf("--where: %v", err), "e.g. --where region=north,south")
+		}
+		s.Where = append(s.Where, pf.String())
+	}
+	return s, nil
+}
+
+// runDrawSQL prints the drawing query.
+func runDrawSQL(d deps, o *drawOptions, so *drawSQLOptions) error {
+	s, err := drawSpec(d, o, so, o.planPath)
+	if err != nil {
+		return err
+	}
+	q, err := sqlquery.Query(s)
+	if err != nil {
+		return badInput(errors.New(strings.TrimPrefix(err.Error(), sqlquery.ErrSpec.Error()+": ")))
+	}
+	if _, err := io.WriteString(d.stdout, q); err != nil {
+		return err
+	}
+	if !o.quiet {
+		fmt.Fprintf(d.stderr, "probity: query for %s on %s, sha256 %s\n", s.Dialect, s.Table, sampling.SHA256Hex([]byte(q)))
+		fmt.Fprintf(d.stderr, "probity: run it, save the result as CSV with a header, then: probity draw --plan %s --selected RESULT.csv --out DIR\n", o.planPath)
+	}
+	return nil
+}
+
+// runDrawSelected imports a query's result into the draw folder.
+func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOptions) error {
+	p, fp, err := loadDrawPlan(o.planPath)
+	if err != nil {
+		return err
+	}
+	if err := sampling.CheckFolderWritable(o.out, o.force); err != nil {
+		return drawError(err)
+	}
+	res, err := sqlquery.Import(so.selected, d.stdin, p, fp)
+	if err != nil {
+		return drawError(err)
+	}
+	if err := checkSelectedFlags(c, o, so, res.Spec); err != nil {
+		return err
+	}
+	f, err := res.Folder(d.version)
+	if err != nil {
+		return drawError(err)
+	}
+	if err := sampling.WriteFolder(o.out, f, o.force); err != nil {
+		if errors.Is(err, sampling.ErrFolderNotEmpty) {
+			return drawError(err)
+		}
+		return fmt.Errorf("writing %s: %w", o.out, err)
+	}
+	writeDrawSummary(d.stdout, o.out, f)
+	fmt.Fprintf(d.stdout, "drawn inside %s from table %s; query sha256 %s\n", res.Spec.Dialect, res.Spec.Table, res.QuerySHA256)
+	return nil
+}
+
+// checkSelectedFlags refuses a draw setting given with --selected that
+// differs from the one the result was made with: the result carries its
+// settings, and a differing flag means the wrong result or the wrong
+// command line.
+func checkSelectedFlags(c *cobra.Command, o *drawOptions, so *drawSQLOptions, s *sqlquery.Spec) error {
+	bands := make([]string, len(o.bands))
+	for i, b := range o.bands {
+		if pb, err := sampling.ParseBand(b); err == nil {
+			bands[i] = pb.String()
+		} else {
+			bands[i] = b
+		}
+	}
+	where := make([]string, len(o.where))
+	for i, w := range o.where {
+		if pf, err := sampling.ParseFilter(w); err == nil {
+			where[i] = pf.String()
+		} else {
+			where[i] = w
+		}
+	}
+	checks := []struct {
+		flag      string
+		given, in string
+	}{
+		{"sql", so.dialect, string(s.Dialect)},
+		{"table", so.table, s.Table},
+		{"id", o.id, s.IDColumn},
+		{"strata", strings.Join(o.strata, ","), strings.Join(s.Strata, ",")},
+		{"band", strings.Join(bands, " "), strings.Join(s.Bands, " ")},
+		{"where", strings.Join(where, " "), strings.Join(s.Where, " ")},
+		{"show", strings.Join(o.show, ","), strings.Join(s.Show, ",")},
+		{"allocation", o.allocation, s.Allocation},
+		{"min-per-stratum", strconv.Itoa(o.minPer), strconv.Itoa(s.MinPerStratum)},
+		{"spare", strconv.Itoa(o.spare), strconv.Itoa(s.Spare)},
+		{"double", strconv.Itoa(o.double), strconv.Itoa(s.Double)},
+		{"period", o.period, s.Period},
+	}
+	for _, ch := range checks {
+		if c.Flags().Changed(ch.flag) && ch.given != ch.in {
+			return withHint(usageErrorf("%s: --%s %q differs from the draw the result was made for (%q)", so.selected, ch.flag, ch.given, ch.in),
+				"the result carries the draw's settings; drop the flag, or import the result of the query printed with these settings")
+		}
+	}
+	return nil
+}
