@@ -2,8 +2,10 @@ package main
 
 import (
 	"bytes"
+	"encoding/csv"
 	"encoding/json"
 	"flag"
+	"fmt"
 	"image/png"
 	"os"
 	"os/exec"
@@ -13,6 +15,7 @@ import (
 	"time"
 
 	"probity/plan/record"
+	trendpkg "probity/plan/trend"
 )
 
 var updateTrend = flag.Bool("update-trend", false, "rewrite testdata/trend/golden from the current output")
@@ -405,4 +408,120 @@ func TestTrendFolderSkipsOtherJSON(t *testing.T) {
 	if !strings.Contains(out, "Trend of 2 records, 2026-01 to 2026-02") {
 		t.Errorf("stdout:\n%s", out)
 	}
+}
+
+// TestTrendOfRealRecords runs the whole monthly cycle in-process — plan,
+// draw --period, label, record — for two months and reads the two
+// record.json files that record wrote: router-b makes no mistakes in
+// 2026-01 and one in every 40 rows in 2026-02, so 2026-02 is rejected and
+// flagged, with the p-value of Fisher's test on the recorded counts.
+func TestTrendOfRealRecords(t *testing.T) {
+	dir := t.TempDir()
+	at := func(p ...string) string { return filepath.Join(append([]string{dir}, p...)...) }
+	planPath := at("plan.yaml")
+	if _, e, code := trendRun(t, "plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.005",
+		"--candidate", "router-a=pred_a", "--candidate", "router-b=pred_b", "--classes", "billing,tech,account",
+		"--system", "ticket-router", "--system-version", "4.2", "--seed", "5be1a2c0f77e4c1d9a0b3e6f28d4c7aa", "--out", planPath); code != exitOK {
+		t.Fatalf("plan: exit %d: %s", code, e)
+	}
+	classes := []string{"billing", "tech", "account"}
+	for mi, m := range []string{"2026-01", "2026-02"} {
+		// The log: 4000 rows; truth cycles through the classes; router-a is
+		// always right; router-b is wrong on every 40th row in 2026-02.
+		truth := map[string]string{}
+		var log strings.Builder
+		log.WriteString("record_id,pred_a,pred_b\n")
+		for i := 0; i < 4000; i++ {
+			id := fmt.Sprintf("t%s-%05d", m, i)
+			tr := classes[(i*7+mi)%3]
+			truth[id] = tr
+			b := tr
+			if mi == 1 && i%40 == 0 {
+				b = classes[((i*7+mi)+1)%3]
+			}
+			fmt.Fprintf(&log, "%s,%s,%s\n", id, tr, b)
+		}
+		logPath := at("log-" + m + ".csv")
+		if err := os.WriteFile(logPath, []byte(log.String()), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		drawDir := at("audits", m, "draw")
+		if _, e, code := trendRun(t, "draw", "--plan", planPath, "--log", logPath, "--period", m, "--out", drawDir); code != exitOK {
+			t.Fatalf("draw %s: exit %d: %s", m, code, e)
+		}
+		labels := trendLabel(t, filepath.Join(drawDir, "worksheet.csv"), truth)
+		labelsPath := at("audits", m, "labels.csv")
+		if err := os.WriteFile(labelsPath, labels, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		_, e, code := trendRun(t, "record", "--plan", planPath, "--draw", drawDir, "--labels", labelsPath,
+			"--out", at("audits", m, "record"), "--date", fmt.Sprintf("2026-%02d-03", mi+2))
+		if code != exitOK && code != exitRejected {
+			t.Fatalf("record %s: exit %d: %s", m, code, e)
+		}
+	}
+	out, errOut, code := trendRun(t, "trend", at("audits"), "--json")
+	if code != exitRejected {
+		t.Fatalf("trend: exit %d, want 1 (2026-02 rejects): %s", code, errOut)
+	}
+	if !strings.Contains(errOut, "probity: note: skipped 2 JSON files that are not records") ||
+		!strings.Contains(errOut, "probity: latest period 2026-02 was rejected") {
+		t.Errorf("stderr: %s", errOut)
+	}
+	var rep struct {
+		Candidates []struct {
+			Name    string   `json:"name"`
+			Flagged []string `json:"flagged"`
+			Rows    []struct {
+				Labeled int      `json:"labeled"`
+				Errors  int      `json:"errors"`
+				Verdict string   `json:"verdict"`
+				PValue  *float64 `json:"p_value"`
+			} `json:"rows"`
+		} `json:"candidates"`
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+	if len(rep.Candidates) != 2 || rep.Candidates[1].Name != "router-b" {
+		t.Fatalf("candidates %+v", rep.Candidates)
+	}
+	b := rep.Candidates[1]
+	jan, feb := b.Rows[0], b.Rows[1]
+	if jan.Errors != 0 || feb.Errors <= 5 || feb.Verdict != record.Reject || strings.Join(b.Flagged, ",") != "2026-02" {
+		t.Fatalf("router-b rows %+v, flagged %v", b.Rows, b.Flagged)
+	}
+	want, err := trendpkg.FisherExact(trendpkg.Table{A: feb.Errors, B: feb.Labeled - feb.Errors, C: jan.Errors, D: jan.Labeled - jan.Errors}, trendpkg.Greater)
+	if err != nil || feb.PValue == nil || *feb.PValue != want {
+		t.Errorf("2026-02 p-value %v, want %v (%v)", feb.PValue, want, err)
+	}
+	if a := rep.Candidates[0]; a.Rows[0].Errors != 0 || a.Rows[1].Errors != 0 || len(a.Flagged) != 0 {
+		t.Errorf("router-a %+v", a)
+	}
+}
+
+// trendLabel fills the label column of a worksheet from truth.
+func trendLabel(t *testing.T, worksheet string, truth map[string]string) []byte {
+	t.Helper()
+	f, err := os.Open(worksheet)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	rows, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	col := map[string]int{}
+	for i, h := range rows[0] {
+		col[h] = i
+	}
+	li, ri := col["label"], col["record_id"]
+	for _, r := range rows[1:] {
+		r[li] = truth[r[ri]]
+	}
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	w.WriteAll(rows)
+	return buf.Bytes()
 }
