@@ -193,6 +193,10 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 		}
 	}
 	pages := pdf.PageNo()
+	if total == 0 {
+		// The counting pass needs the layout only, not the file.
+		return output{pages: pages}, nil
+	}
 	var buf bytes.Buffer
 	if err := pdf.Output(&buf); err != nil {
 		return output{}, fmt.Errorf("writing the PDF: %w", err)
