@@ -266,9 +266,9 @@ func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
 		head += " — " + sys
 	}
 	fmt.Fprintln(w, head)
-	fmt.Fprintf(w, "plan class: %s model, %s method, %s design, ceiling %s, confidence %s\n",
+	fmt.Fprintf(w, "plan: %s model, %s method, %s design; ceiling %s, confidence %s\n",
 		c.Model, c.Method, c.Design, trendTrimPercent(c.Ceiling), trendTrimPercent(c.Confidence))
-	fmt.Fprintf(w, "flag: Fisher's exact test, one-sided (error higher than in %s), p ≤ %s per comparison\n",
+	fmt.Fprintf(w, "flag ↑: one-sided Fisher's exact test against %s, p ≤ %s per comparison\n",
 		t.Baseline, strconv.FormatFloat(t.Alpha, 'g', -1, 64))
 	pw := len("period")
 	for _, p := range t.Periods {
@@ -284,18 +284,18 @@ func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
 		default:
 			fmt.Fprintln(w, s.Name)
 		}
-		fmt.Fprintf(w, "  %-*s  %7s  %6s  %8s  %8s  %7s  %-7s  %s\n", pw, "period", "labeled", "errors", "estimate", "upper", "ceiling", "verdict", "p vs "+t.Baseline)
+		fmt.Fprintf(w, "  %-*s  %7s %6s %8s %8s %7s  %-7s %s\n", pw, "period", "labeled", "errors", "estimate", "upper", "ceiling", "verdict", "p vs "+t.Baseline)
 		for _, r := range s.Rows {
 			p := "(baseline)"
 			if r.PValue != nil {
 				p = trendP(*r.PValue)
 				if r.Flagged {
-					p += "  ↑ higher"
+					p += " ↑ higher"
 				}
 			} else if r.Period != t.Baseline {
 				p = "—"
 			}
-			fmt.Fprintf(w, "  %-*s  %7d  %6d  %8s  %8s  %7s  %-7s  %s\n", pw, r.Period, r.Labeled, r.Errors,
+			fmt.Fprintf(w, "  %-*s  %7d %6d %8s %8s %7s  %-7s %s\n", pw, r.Period, r.Labeled, r.Errors,
 				trendFixedPercent(r.Estimate), trendFixedPercent(r.UpperBound), trendTrimPercent(r.Ceiling), r.Verdict, p)
 		}
 	}

@@ -80,7 +80,7 @@ func TestTrendYearRejectsLatest(t *testing.T) {
 	trendGolden(t, "year.txt", strings.ReplaceAll(out, dir, "OUT"))
 	for _, want := range []string{
 		"router-b   flagged: 2026-10, 2026-11, 2026-12",
-		"  2026-10      613       5    0.816%    1.997%       2%  ACCEPT   0.0310  ↑ higher",
+		"  2026-10      613      5   0.816%   1.997%      2%  ACCEPT  0.0310 ↑ higher",
 		"latest period 2026-12 (record 7c8de5a47e55): REJECT",
 	} {
 		if !strings.Contains(out, want) {
@@ -195,7 +195,7 @@ func TestTrendBaselineAndAlpha(t *testing.T) {
 	if code != exitRejected {
 		t.Fatalf("exit %d", code)
 	}
-	for _, want := range []string{"p ≤ 0.01 per comparison", "p vs 2026-06", "  2026-06      613       3    0.489%    1.516%       2%  ACCEPT   (baseline)"} {
+	for _, want := range []string{"p ≤ 0.01 per comparison", "p vs 2026-06", "  2026-06      613      3   0.489%   1.516%      2%  ACCEPT  (baseline)"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("stdout lacks %q", want)
 		}
