@@ -23,12 +23,29 @@ type fieldSplitter struct {
 	need    []int
 	vals    [][]byte
 	scratch []byte
+	// last is the index of the last needed column (−1 when none): past
+	// it, separators are only counted.
+	last int
+	// noQuotes is set by the caller when the current chunk holds no
+	// quote character, so the per-record check can be skipped.
+	noQuotes bool
+}
+
+// setNeed sets the needed columns and derives last.
+func (s *fieldSplitter) setNeed(need []int) {
+	s.need = need
+	s.last = -1
+	for i, v := range need {
+		if v >= 0 {
+			s.last = i
+		}
+	}
 }
 
 // split parses rec (one record, line end removed) and returns its number
 // of fields. Fields beyond len(need) are counted, not read.
 func (s *fieldSplitter) split(rec []byte) (int, error) {
-	if !s.quoted || bytes.IndexByte(rec, '"') < 0 {
+	if !s.quoted || s.noQuotes || bytes.IndexByte(rec, '"') < 0 {
 		nf := 0
 		start := 0
 		for {
@@ -47,6 +64,10 @@ func (s *fieldSplitter) split(rec []byte) (int, error) {
 				return nf, nil
 			}
 			start = end + 1
+			if nf > s.last {
+				// No more needed fields: count the rest in one pass.
+				return nf + bytes.Count(rec[start:], []byte{s.sep}) + 1, nil
+			}
 		}
 	}
 	return s.splitQuoted(rec)
@@ -121,10 +142,12 @@ func (s *fieldSplitter) splitQuoted(rec []byte) (int, error) {
 // header line).
 func splitAll(rec []byte, sep byte, quoted bool) ([]string, error) {
 	n := bytes.Count(rec, []byte{sep}) + 1
-	s := fieldSplitter{sep: sep, quoted: quoted, need: make([]int, n), vals: make([][]byte, n)}
-	for i := range s.need {
-		s.need[i] = i
+	need := make([]int, n)
+	for i := range need {
+		need[i] = i
 	}
+	s := fieldSplitter{sep: sep, quoted: quoted, vals: make([][]byte, n)}
+	s.setNeed(need)
 	nf, err := s.split(rec)
 	if err != nil {
 		return nil, err

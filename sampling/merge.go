@@ -24,6 +24,15 @@ func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 		sorted = append(sorted, l)
 	}
 	sort.Strings(sorted)
+	// Final compaction of every retainer first: it reports the last
+	// repeats found within a worker.
+	held := make([]map[string][]Row, len(workers))
+	for i, w := range workers {
+		held[i] = map[string][]Row{}
+		for l, ws := range w.strata {
+			held[i][l] = ws.ret.rows(l)
+		}
+	}
 	var events []dupEvent
 	for _, w := range workers {
 		events = append(events, w.dups...)
@@ -34,13 +43,15 @@ func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 		index[label] = i
 		st := StratumScan{Label: label}
 		byKey := map[[32]byte]*Row{}
-		for _, w := range workers {
+		for wi, w := range workers {
 			ws, ok := w.strata[label]
 			if !ok {
 				continue
 			}
 			st.Count += ws.count
-			for _, r := range ws.ret.heap {
+			rows := held[wi][label]
+			for k := range rows {
+				r := &rows[k]
 				if prev, ok := byKey[r.Key]; ok {
 					ev := dupEvent{key: r.Key, stratum: label, id: r.ID, kept: prev.Line, other: r.Line}
 					if r.Line < prev.Line {

@@ -553,17 +553,29 @@ func (s *scanner) newWorker() *worker {
 	case FormatJSONL:
 		w.json = jsonFields{names: s.slotCols, vals: w.vals, obj: map[string]json.RawMessage{}}
 	case FormatTSV:
-		w.split = fieldSplitter{sep: '\t', need: s.need, vals: w.vals}
+		w.split = fieldSplitter{sep: '\t', vals: w.vals}
+		w.split.setNeed(s.need)
 	default:
-		w.split = fieldSplitter{sep: ',', quoted: true, need: s.need, vals: w.vals}
+		w.split = fieldSplitter{sep: ',', quoted: true, vals: w.vals}
+		w.split.setNeed(s.need)
 	}
 	w.hbuf = append([]byte(s.spec.Seed), ':')
 	w.plen = len(w.hbuf)
 	if len(s.strataSlots) == 0 && len(s.bandSlots) == 0 {
-		w.single = &wstratum{label: AllStratum, ret: newRetainer(s.spec.Capacity)}
-		w.strata[AllStratum] = w.single
+		w.single = w.newStratum(AllStratum)
 	}
 	return w
+}
+
+// newStratum starts a stratum's count and retainer; repeats the
+// retainer finds become the worker's repeat events.
+func (w *worker) newStratum(label string) *wstratum {
+	st := &wstratum{label: label, ret: newRetainer(w.s.spec.Capacity)}
+	st.ret.onDup = func(k *hkey, kept, other *slotData) {
+		w.dups = append(w.dups, dupEvent{key: k.bytes(), stratum: label, id: string(kept.part(0)), kept: kept.line, other: other.line})
+	}
+	w.strata[label] = st
+	return st
 }
 
 // chunk processes one chunk of records.
@@ -571,6 +583,8 @@ func (w *worker) chunk(c chunk) {
 	w.seq = c.seq
 	data := c.data
 	line := c.line
+	quotes := w.s.format == FormatCSV && bytes.IndexByte(data, '"') >= 0
+	w.split.noQuotes = !quotes
 	for len(data) > 0 {
 		nl := bytes.IndexByte(data, '\n')
 		var rec []byte
@@ -580,7 +594,7 @@ func (w *worker) chunk(c chunk) {
 		} else {
 			rec, data = data[:nl], data[nl+1:]
 		}
-		if w.s.format == FormatCSV && bytes.IndexByte(rec, '"') >= 0 {
+		if quotes && bytes.IndexByte(rec, '"') >= 0 {
 			// A quoted field may hold newlines: extend the record.
 			for quotesOpen(rec) && len(data) > 0 {
 				nl2 := bytes.IndexByte(data, '\n')
@@ -686,8 +700,7 @@ func (w *worker) record(line int64, rec []byte) *InputError {
 				e.Hint = "stratify by columns with a few categories, or by score bands (--band)"
 				return e
 			}
-			st = &wstratum{label: string(w.label), ret: newRetainer(s.spec.Capacity)}
-			w.strata[st.label] = st
+			st = w.newStratum(string(w.label))
 		}
 	}
 	st.count++
@@ -696,27 +709,23 @@ func (w *worker) record(line int64, rec []byte) *InputError {
 	if !st.ret.wants(binary.BigEndian.Uint64(key[:8])) {
 		return nil
 	}
-	dup := st.ret.offer(&key, func() *Row { return w.makeRow(&key, line, st.label) })
-	if dup != nil {
-		ev := dupEvent{key: key, stratum: st.label, id: dup.ID, kept: dup.Line, other: line}
-		if line < dup.Line {
-			ev.kept, ev.other = line, dup.Line
-			nr := w.makeRow(&key, line, st.label)
-			*dup = *nr
-		}
-		w.dups = append(w.dups, ev)
+	if slot := st.ret.admit(&key); slot != nil {
+		w.fill(slot, line)
+		st.ret.settle()
 	}
 	return nil
 }
 
-// makeRow copies the kept values of the current record.
-func (w *worker) makeRow(key *[32]byte, line int64, stratum string) *Row {
-	s := w.s
-	r := &Row{Key: *key, Line: line, ID: string(w.vals[s.idSlot]), Stratum: stratum, Values: make([]string, len(s.keepSlots))}
-	for i, sl := range s.keepSlots {
-		r.Values[i] = string(w.vals[sl])
+// fill copies the current record's id and kept values into a slot.
+func (w *worker) fill(s *slotData, line int64) {
+	sc := w.s
+	s.line = line
+	s.data = append(s.data[:0], w.vals[sc.idSlot]...)
+	s.ends = append(s.ends[:0], int32(len(s.data)))
+	for _, sl := range sc.keepSlots {
+		s.data = append(s.data, w.vals[sl]...)
+		s.ends = append(s.ends, int32(len(s.data)))
 	}
-	return r
 }
 
 // parseScore parses a band value without allocating.
