@@ -60,8 +60,10 @@ with the exact Clopper–Pearson bound (or the exact hypergeometric bound for a
 finite lot). When the strata's inclusion weights are unequal the error is
 estimated stratum by stratum (weighted by N_h/N) and bounded by Korn–Graubard
 (default; approximate) or, with --bound weighted-hoeffding, by the weighted
-Hoeffding bound (rigorous, wider). Sequential plans are not judged by record:
-use probity progress.
+Hoeffding bound (rigorous, wider). A sequential plan is labeled from the top
+of the worksheet without gaps and each candidate is judged by the plan's
+boundaries where they decide (probity progress says when to stop); items
+below that point may stay blank.
 
 ` + exitCodesHelp + `
 
@@ -144,10 +146,6 @@ func loadRecordInputs(planPath, drawDir, labels string) (*recordInputs, error) {
 	if p.IsSizingOnly() {
 		return nil, withHint(usageErrorf("%s: the plan declares no candidates, so there is nothing to judge", planPath),
 			"use the plan the sample was drawn from")
-	}
-	if p.Sequential != nil || p.Inputs.Design == "sequential" {
-		return nil, withHint(usageErrorf("%s: the plan has a sequential design; record judges fixed (n, c) plans only", planPath),
-			"use 'probity progress' to judge a sequential plan from the labeled worksheet")
 	}
 	names := make([]string, len(p.Candidates))
 	for i, c := range p.Candidates {

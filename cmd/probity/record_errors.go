@@ -29,9 +29,8 @@ func recordInputError(err error, path string) error {
 		return withHint(usageErrorf("cannot read %s: %v", pe.Path, pe.Err), "check the path")
 	case errors.Is(err, verdict.ErrInput), errors.Is(err, verdict.ErrDesign), errors.Is(err, assemble.ErrInput), errors.Is(err, templates.ErrTemplate):
 		return badInput(err)
-	case errors.Is(err, verdict.ErrSequential):
-		return withHint(usageErrorf("%s: the plan has a sequential design; record judges fixed (n, c) plans only", path),
-			"use 'probity progress' to judge a sequential plan")
+	case errors.Is(err, verdict.ErrUndecided):
+		return withHint(badInput(err), "'probity progress' says how many more labels each candidate can need")
 	}
 	return &internalError{msg: err.Error()}
 }

@@ -11,6 +11,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/sequential"
 	"probity/sampling"
 )
 
@@ -35,6 +36,13 @@ type recFixture struct {
 // sorter-a. minPer > 0 draws with --min-per-stratum (unequal weights).
 func newRecFixture(t *testing.T, both bool, minPer int) *recFixture {
 	t.Helper()
+	return buildRecFixture(t, both, minPer, false)
+}
+
+// buildRecFixture is newRecFixture; with seq the plan is sequential
+// (sequential.Apply on the same inputs).
+func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture {
+	t.Helper()
 	fx := &recFixture{dir: t.TempDir(), truth: map[string]string{}, show: []string{"parcel"}}
 	p0 := 0.01
 	in := plan.Inputs{Ceiling: 0.05, Confidence: 0.95, Candidates: 1, Anticipated: &p0, ProducerRisk: 0.2,
@@ -49,6 +57,11 @@ func newRecFixture(t *testing.T, both bool, minPer int) *recFixture {
 		Classes: []string{"ok", "defect"}, Candidates: cands})
 	if err != nil {
 		t.Fatal(err)
+	}
+	if seq {
+		if _, err := sequential.Apply(f, 0); err != nil {
+			t.Fatal(err)
+		}
 	}
 	fx.file = f
 	data, err := f.Marshal()

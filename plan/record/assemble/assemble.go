@@ -73,7 +73,8 @@ func Assemble(in Input) (*record.Record, error) {
 	if p.IsSizingOnly() {
 		return nil, fmt.Errorf("%w: the plan declares no candidates, so there is nothing to judge", ErrInput)
 	}
-	checked, err := intake.Check(p, in.PlanFP, in.Folder, in.Labels, intake.Options{AllowIncomplete: in.AllowIncomplete})
+	seq := p.Sequential != nil
+	checked, err := intake.Check(p, in.PlanFP, in.Folder, in.Labels, intake.Options{AllowIncomplete: in.AllowIncomplete, Prefix: seq})
 	if err != nil {
 		return nil, err
 	}
@@ -115,8 +116,14 @@ func Assemble(in Input) (*record.Record, error) {
 		_ = h
 		rec.Strata = append(rec.Strata, record.StratumCount{Label: s.Label, Population: s.Population, Sample: s.Sample, Weight: w})
 	}
-	for _, pt := range p.OC(OCPoints) {
-		rec.OC = append(rec.OC, record.OCPoint{Error: pt.Error, AcceptProbability: pt.AcceptProbability})
+	if seq {
+		if rec.OC, err = verdict.SequentialOC(p, OCPoints, ocTop(p)); err != nil {
+			return nil, fmt.Errorf("%w: %v", ErrInput, err)
+		}
+	} else {
+		for _, pt := range p.OC(OCPoints) {
+			rec.OC = append(rec.OC, record.OCPoint{Error: pt.Error, AcceptProbability: pt.AcceptProbability})
+		}
 	}
 	if rec.Signoff, err = signoff(in.Signoff, in.Templates, rec); err != nil {
 		return nil, err
@@ -136,7 +143,17 @@ func checkUse(use string) error {
 
 // judge runs the verdict package on the checked items.
 func judge(p *plan.File, c *intake.Result, bound string) (*verdict.Result, error) {
-	return verdict.Judge(verdict.Input{Plan: p, Design: c.Design, Items: c.Items, UnequalBound: bound})
+	in := verdict.Input{Plan: p, Design: c.Design, Items: c.Items, UnequalBound: bound}
+	if p.Sequential != nil {
+		return verdict.JudgeSequential(in)
+	}
+	return verdict.Judge(in)
+}
+
+// ocTop is the right end of a sequential plan's OC curve: three times the
+// ceiling, at most 1.
+func ocTop(p *plan.File) float64 {
+	return min(1, 3*p.Inputs.Ceiling)
 }
 
 // planInfo repeats the plan's rule and inputs.

@@ -21,6 +21,12 @@ type Options struct {
 	// (and not replaced by a spare) as an error for every candidate,
 	// instead of refusing the worksheet.
 	AllowIncomplete bool
+	// Prefix is for a sequential plan: the worksheet is labeled from the
+	// top, so the judged items are the sample items down to the first
+	// blank one; a labeled item after a blank one, and any labeled spare,
+	// are refused. Unsure items in the prefix are refused unless
+	// AllowIncomplete (then counted as errors).
+	Prefix bool
 }
 
 // Result is a checked intake: the items to judge, the design, the
@@ -64,7 +70,11 @@ func Check(p *plan.File, planFP string, f *Folder, l *Labels, opts Options) (*Re
 		Plan: planFP, Log: m.Log.SHA256, Manifest: record.SHA256(f.ManifestBytes),
 		Ledger: record.SHA256(f.LedgerBytes), Worksheet: f.WorksheetSHA256, Labels: record.SHA256(l.Bytes),
 	}}
-	if err := res.judgeable(p, f, l, strata, index, opts); err != nil {
+	judge := res.judgeable
+	if opts.Prefix {
+		judge = res.prefix
+	}
+	if err := judge(p, f, l, strata, index, opts); err != nil {
 		return nil, err
 	}
 	res.Design = verdict.Design{Strata: strata}
@@ -366,4 +376,73 @@ func (res *Result) add(row int, lr sampling.LedgerRow, label string, h int, miss
 	res.order = append(res.order, row)
 	res.Items = append(res.Items, verdict.Item{RecordID: lr.RecordID, Stratum: h, Label: label, Missing: missing,
 		Predictions: append([]string(nil), lr.Predictions...)})
+}
+
+// prefix builds the items of a worksheet labeled from the top (a
+// sequential plan).
+func (res *Result) prefix(p *plan.File, f *Folder, l *Labels, strata []verdict.Stratum, index map[string]int, opts Options) error {
+	classes := map[string]bool{}
+	for _, c := range p.Classes {
+		classes[c] = true
+	}
+	dev := &res.Deviations
+	firstBlank := 0
+	var unsure []string
+	for i, lr := range f.Ledger {
+		wr := l.Rows[i]
+		lab := strings.TrimSpace(wr.Label)
+		if lr.Spare {
+			if lab != "" {
+				return &sampling.InputError{File: l.Path, Line: wr.Line, Column: "label",
+					Msg:  fmt.Sprintf("spare item %d is labeled, but a sequential plan uses no spares", wr.Item),
+					Hint: "label the sample items from the top and leave the spares blank; mark an item that cannot be labeled unsure"}
+			}
+			continue
+		}
+		switch {
+		case lab == "":
+			if firstBlank == 0 {
+				firstBlank = wr.Item
+			}
+			continue
+		case firstBlank != 0:
+			return &sampling.InputError{File: l.Path, Line: wr.Line, Column: "label",
+				Msg:  fmt.Sprintf("item %d is labeled after the unlabeled item %d: a sequential plan is labeled from the top without gaps", wr.Item, firstBlank),
+				Hint: fmt.Sprintf("label item %d (and any other gap) or clear the labels after it", firstBlank)}
+		case strings.EqualFold(lab, Unsure):
+			dev.Unsure = append(dev.Unsure, lr.RecordID)
+			unsure = append(unsure, fmt.Sprint(wr.Item))
+			if opts.AllowIncomplete {
+				res.add(i, lr, "", index[lr.Stratum], true)
+				res.Counted++
+			}
+			continue
+		case !classes[lab]:
+			return &sampling.InputError{File: l.Path, Line: wr.Line, Column: "label",
+				Msg:  fmt.Sprintf("label %q (item %d) is not one of the plan's classes (%s), blank or %q", wr.Label, wr.Item, strings.Join(p.Classes, ", "), Unsure),
+				Hint: fmt.Sprintf("use exactly one of: %s; write %q when the item cannot be labeled", strings.Join(p.Classes, ", "), Unsure)}
+		}
+		res.add(i, lr, lab, index[lr.Stratum], false)
+	}
+	if len(unsure) > 0 && !opts.AllowIncomplete {
+		return &sampling.InputError{File: l.Path, Column: "label",
+			Msg:  fmt.Sprintf("%d items labeled from the top are marked unsure (items %s); a sequential plan cannot skip them", len(unsure), first(unsure)),
+			Hint: "label them, or pass --allow-incomplete to count each as an error for every candidate"}
+	}
+	if len(res.Items) == 0 {
+		return &sampling.InputError{File: l.Path, Column: "label", Msg: "no item is labeled", Hint: "label the worksheet from the top"}
+	}
+	if res.Counted > 0 {
+		dev.AllowIncomplete = true
+		dev.Notes = append(dev.Notes, fmt.Sprintf("%d unsure items were counted as errors for every candidate (--allow-incomplete)", res.Counted))
+	}
+	dev.Notes = append(dev.Notes, fmt.Sprintf("labeled from the top: %d of the %d sample items", len(res.Items), len(f.Ledger)-f.Manifest.Spares))
+	for i := range strata {
+		strata[i].Sample = 0
+	}
+	for _, it := range res.Items {
+		strata[it.Stratum].Sample++
+	}
+	res.order = nil
+	return nil
 }
