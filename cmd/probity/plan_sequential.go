@@ -43,6 +43,9 @@ func applySequentialDesign(f *plan.File) error {
 	case errors.Is(err, sequential.ErrNeedsExact):
 		return withHint(usageErrorf("--design sequential works with --method exact only (%v)", err),
 			"drop --method or use --method exact")
+	case errors.Is(err, sequential.ErrTooLarge):
+		return withHint(usageErrorf("--design sequential: %v", err),
+			"use --design fixed, or relax --ceiling, --anticipated or --confidence")
 	case errors.Is(err, sequential.ErrDomain):
 		return withHint(usageErrorf("--design sequential: %v", err), "use --design fixed for these inputs")
 	}

@@ -1,11 +1,21 @@
 package sequential
 
 import (
+	"errors"
 	"fmt"
 	"math"
 
 	"probity/plan"
 )
+
+// MaxFixedSampleSize is the largest fixed plan a sequential plan is
+// searched for: the search runs a few hundred dynamic programmes of up to
+// 2n steps each, about a second of CPU per 30 000 labels of n.
+const MaxFixedSampleSize = 100_000
+
+// ErrTooLarge is returned for a plan whose fixed sample size exceeds
+// MaxFixedSampleSize.
+var ErrTooLarge = errors.New("plan too large for a sequential search")
 
 // Spec are the requirements a sequential plan is designed for.
 type Spec struct {
@@ -77,6 +87,9 @@ func (s Spec) validate() error {
 	}
 	if s.FixedSampleSize < 1 {
 		return fmt.Errorf("%w: fixed sample size %d is below 1", ErrDomain, s.FixedSampleSize)
+	}
+	if s.FixedSampleSize > MaxFixedSampleSize {
+		return fmt.Errorf("%w: the fixed plan needs %d labels; sequential plans are searched for fixed plans of at most %d", ErrTooLarge, s.FixedSampleSize, MaxFixedSampleSize)
 	}
 	if s.MaxSampleSize != 0 && s.MaxSampleSize < s.FixedSampleSize {
 		return fmt.Errorf("%w: max sample size %d is below the fixed plan's %d", ErrDomain, s.MaxSampleSize, s.FixedSampleSize)

@@ -84,6 +84,11 @@ func TestSearchBadSpec(t *testing.T) {
 		"lot below n":            func(s *Spec) { s.Population, s.BadLotErrors, s.GoodLotErrors = 1000, 20, 10 },
 		"lot D0 ≥ D1":            func(s *Spec) { s.Population, s.BadLotErrors, s.GoodLotErrors = 20000, 200, 200 },
 	}
+	big := ok
+	big.FixedSampleSize = MaxFixedSampleSize + 1
+	if _, err := Search(big); !errors.Is(err, ErrTooLarge) {
+		t.Errorf("too large: err = %v, want ErrTooLarge", err)
+	}
 	for name, mut := range muts {
 		s := ok
 		mut(&s)
