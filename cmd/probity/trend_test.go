@@ -109,6 +109,10 @@ func TestTrendYearRejectsLatest(t *testing.T) {
 	if !bytes.Equal(pdfData, pdf2) {
 		t.Error("two runs on the same records wrote different PDFs")
 	}
+	// And the bytes are the golden ones (pure-Go rasterising and a fixed
+	// date make them the same on every machine).
+	trendGolden(t, "year.pdf.sha256", record.SHA256(pdfData)+"\n")
+	trendGolden(t, "year.png.sha256", record.SHA256(pngData)+"\n")
 	entries, _ := os.ReadDir(dir)
 	if len(entries) != 4 {
 		t.Errorf("chart folder holds %d files, want the 2 PNGs and 2 PDFs (no temporary files)", len(entries))

@@ -263,3 +263,24 @@ func TestBuildSingleRecordAndSequential(t *testing.T) {
 		t.Errorf("sequential warnings %v", tr.Warnings)
 	}
 }
+
+// BenchmarkBuildYear measures sorting, checking and testing a year of
+// three-candidate records (33 Fisher tests).
+func BenchmarkBuildYear(b *testing.B) {
+	es := entries(yearRecords())
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := Build(es, Options{Alpha: 0.05}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkFisherExactAuditSized is one test on two samples of 5 000.
+func BenchmarkFisherExactAuditSized(b *testing.B) {
+	for i := 0; i < b.N; i++ {
+		if _, err := FisherExact(Table{A: 60, B: 4940, C: 35, D: 4965}, Greater); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
