@@ -3,6 +3,7 @@ package pdfreport
 import (
 	"math"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/jung-kurt/gofpdf"
 )
@@ -87,6 +88,7 @@ func (d *doc) space(h float64) {
 // longer than a line (fingerprints, long names) are broken between
 // characters.
 func (d *doc) wrap(text string, w float64) []string {
+	text = printable(text)
 	// A line holds at least one character, however narrow the column.
 	w = math.Max(w, 1)
 	var lines []string
@@ -286,9 +288,40 @@ func plural(n int, one, many string) string {
 // ellipsis shortens text to fit w in the current font, ending it with
 // "…" when it had to be cut.
 func (d *doc) ellipsis(text string, w float64) string {
+	text = printable(text)
 	if d.pdf.GetStringWidth(text) <= w {
 		return text
 	}
 	cut := d.fit(text, w-d.pdf.GetStringWidth("…"))
 	return strings.TrimSpace(text[:cut]) + "…"
+}
+
+// printable makes text safe for the PDF's fonts: a character outside the
+// Basic Multilingual Plane (emoji, rare CJK ideographs), which the font
+// subsetter cannot take, and invalid UTF-8 become U+FFFD; control
+// characters other than newline become spaces. Characters the font has no
+// glyph for still print as an empty box but stay in the extractable text.
+func printable(text string) string {
+	clean := true
+	for _, r := range text {
+		if r > 0xFFFF || r == utf8.RuneError || (r < 0x20 && r != '\n') || r == 0x7f {
+			clean = false
+			break
+		}
+	}
+	if clean {
+		return text
+	}
+	var b strings.Builder
+	for _, r := range text {
+		switch {
+		case r > 0xFFFF || r == utf8.RuneError:
+			b.WriteRune('\uFFFD')
+		case (r < 0x20 && r != '\n') || r == 0x7f:
+			b.WriteByte(' ')
+		default:
+			b.WriteRune(r)
+		}
+	}
+	return b.String()
 }

@@ -49,3 +49,17 @@ func TestWrapKeepsWidthAndText(t *testing.T) {
 		t.Errorf("ellipsis = %q", got)
 	}
 }
+
+func TestPrintable(t *testing.T) {
+	cases := []struct{ in, want string }{
+		{"Zoë Łukasiewicz-Øberg", "Zoë Łukasiewicz-Øberg"},
+		{"model 😀\tv2", "model \uFFFD v2"},
+		{"bad \xff byte", "bad \uFFFD byte"},
+		{"two\nlines", "two\nlines"},
+	}
+	for _, c := range cases {
+		if got := printable(c.in); got != c.want {
+			t.Errorf("printable(%q) = %q, want %q", c.in, got, c.want)
+		}
+	}
+}

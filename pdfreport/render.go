@@ -156,7 +156,7 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 	pdf.SetCompression(true)
 	pdf.SetProducer("probity "+c.rec.ToolVersion, true)
 	pdf.SetCreator("probity "+c.rec.ToolVersion, true)
-	pdf.SetTitle("Acceptance record "+c.rec.RecordID+" – "+systemName(c.rec), true)
+	pdf.SetTitle(printable("Acceptance record "+c.rec.RecordID+" – "+systemName(c.rec)), true)
 	pdf.SetSubject("Statistical acceptance of a classifier's error rate", true)
 	pdf.AddUTF8FontFromBytes("sans", "", liberationsansregular.TTF)
 	pdf.AddUTF8FontFromBytes("sans", "B", liberationsansbold.TTF)
@@ -212,7 +212,7 @@ func (d *doc) pageHeader(c *content) {
 	d.font("", smallSize)
 	d.textColour(mutedColour)
 	d.pdf.SetXY(marginX, 9)
-	right := "Record " + c.rec.RecordID
+	right := printable("Record " + c.rec.RecordID)
 	rw := d.pdf.GetStringWidth(right) + 2
 	lw := d.contentW() - rw - 4
 	d.pdf.CellFormat(lw, 4, d.ellipsis("Acceptance record · "+systemName(c.rec), lw), "", 0, "L", false, 0, "")
@@ -236,7 +236,7 @@ func (d *doc) pageFooter(c *content) {
 	if c.rec.OverallVerdict != "" {
 		left += " · overall verdict " + c.rec.OverallVerdict
 	}
-	d.pdf.CellFormat(d.contentW()*0.7, 4, left, "", 0, "L", false, 0, "")
+	d.pdf.CellFormat(d.contentW()*0.7, 4, d.ellipsis(left, d.contentW()*0.7), "", 0, "L", false, 0, "")
 	total := "?"
 	if d.totalPages > 0 {
 		total = itoa(d.totalPages)

@@ -392,3 +392,19 @@ func TestUnusualRecordsLayOut(t *testing.T) {
 		})
 	}
 }
+
+// Characters outside the fonts' reach must not break the layout: emoji
+// (outside the Basic Multilingual Plane) print as U+FFFD, CJK names stay in
+// the extractable text.
+func TestNamesOutsideTheFontRender(t *testing.T) {
+	rec := fixtureRecord("general")
+	rec.Candidates[0].Name = "模型-甲 😀 v2"
+	rec.Signoff[0].Name = "李小龍 🙂"
+	rec.Signoff = append(rec.Signoff, record.Signoff{Role: "witnessed 🚀", Name: "A. N. Other"})
+	text := flat(pdfText(t, render(t, rec, Options{})))
+	for _, want := range []string{"模型-甲 \uFFFD v2", "李小龍 \uFFFD", "witnessed \uFFFD", "A. N. Other"} {
+		if !strings.Contains(text, want) {
+			t.Errorf("text lacks %q", want)
+		}
+	}
+}

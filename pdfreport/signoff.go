@@ -120,7 +120,7 @@ func (d *doc) signatureBox(b signBox) {
 	d.font("B", bodySize+0.5)
 	d.textColour(headingColour)
 	d.pdf.SetXY(x+3, y+1.2)
-	d.pdf.CellFormat(w-6, 4.6, b.title, "", 0, "L", false, 0, "")
+	d.pdf.CellFormat(w-6, 4.6, d.ellipsis(b.title, w-6), "", 0, "L", false, 0, "")
 	d.textColour(inkColour)
 
 	// Printed name, role and date: the value above a labelled line.

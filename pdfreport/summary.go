@@ -147,7 +147,7 @@ func (d *doc) verdictBanner(c *content) {
 	d.pdf.CellFormat(50, 3.5, "OVERALL VERDICT", "", 0, "L", false, 0, "")
 	d.font("B", 17)
 	d.pdf.SetXY(marginX+4, y+5.5)
-	d.pdf.CellFormat(60, 8, word, "", 0, "L", false, 0, "")
+	d.pdf.CellFormat(60, 8, d.ellipsis(word, 60), "", 0, "L", false, 0, "")
 	d.font("", bodySize+0.5)
 	lines := d.wrap(detail, d.contentW()-74)
 	ly := y + (h-float64(len(lines))*lineH)/2
