@@ -33,16 +33,16 @@ func e2ePlan(n int) *plan.File {
 	}
 }
 
-// loadGenerated creates a table in schema from a generated log of rows
-// rows (loaded with COPY), with some NULL regions and texts, and returns
-// its name as --table takes it.
-func loadGenerated(t *testing.T, pg *pgServer, schema string, rows int) string {
+// loadGenerated creates the table name in schema from a generated log of
+// rows rows (loaded with COPY), with some NULL regions and texts, and
+// returns its name as --table takes it.
+func loadGenerated(t *testing.T, pg *pgServer, schema, name string, rows int) string {
 	t.Helper()
 	var log bytes.Buffer
 	if err := loggen.Write(&log, loggen.Config{Rows: rows, Seed: 6}); err != nil {
 		t.Fatal(err)
 	}
-	table := quotePart(schema) + `."prediction log"`
+	table := quotePart(schema) + "." + quotePart(name)
 	qt, err := Postgres.QuoteTable(table)
 	if err != nil {
 		t.Fatal(err)
@@ -100,31 +100,36 @@ func exportTable(t *testing.T, pg *pgServer, table, path string) {
 // byte-identical, and the manifests must agree on every stratum.
 func TestQueryMatchesFileDraw(t *testing.T) {
 	pg := needPostgres(t)
-	rows := 1_000_000
+	big := 1_000_000
 	if testing.Short() {
-		rows = 50_000
+		big = 50_000
 	}
 	schema := pg.schema(t)
-	table := loadGenerated(t, pg, schema, rows)
 	dir := t.TempDir()
-	exportPath := filepath.Join(dir, "export.csv")
-	exportTable(t, pg, table, exportPath)
+	type table struct{ name, export string }
+	load := func(name string, rows int) table {
+		tb := table{loadGenerated(t, pg, schema, name, rows), filepath.Join(dir, name+".csv")}
+		exportTable(t, pg, tb.name, tb.export)
+		return tb
+	}
+	large, small := load("prediction log", big), load("small log", 40_000)
 
 	cases := []struct {
-		name string
-		spec Spec
+		name  string
+		table table
+		spec  Spec
 	}{
-		{"strata, band, minimum, spares, double", Spec{Strata: []string{"region", "select"}, Bands: []string{"score=0.5,0.9"},
+		{"strata, band, minimum, spares, double", large, Spec{Strata: []string{"region", "select"}, Bands: []string{"score=0.5,0.9"},
 			Show: []string{"text col"}, Allocation: "proportional", MinPerStratum: 4, Spare: 2, Double: 25}},
-		{"where, equal, period", Spec{Strata: []string{"select"}, Where: []string{"region=north,(null),east"},
+		{"where, equal, period", small, Spec{Strata: []string{"select"}, Where: []string{"region=north,(null),east"},
 			Show: []string{"text col", "model_b"}, Allocation: "equal", Spare: 1, Period: "2026-11"}},
-		{"unstratified", Spec{Allocation: "proportional"}},
+		{"unstratified", small, Spec{Allocation: "proportional"}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			p := e2ePlan(500)
 			s := c.spec
-			s.Format, s.ToolVersion, s.Dialect, s.Table, s.IDColumn = QueryFormat, "test", Postgres, table, e2eColumns[0]
+			s.Format, s.ToolVersion, s.Dialect, s.Table, s.IDColumn = QueryFormat, "test", Postgres, c.table.name, e2eColumns[0]
 			s.PlanFingerprint, s.Seed, s.SampleSize, s.Candidates = "f00d", p.Seed, p.Rule.SampleSize, p.Candidates
 			s.SelectionSeed = p.Seed
 			if s.Period != "" {
@@ -143,7 +148,7 @@ func TestQueryMatchesFileDraw(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			fromFile := fileDraw(t, p, &s, exportPath)
+			fromFile := fileDraw(t, p, &s, c.table.export)
 			compareFolders(t, fromSQL, fromFile)
 			if fromSQL.Manifest.Engine == nil || fromSQL.Manifest.Engine.QuerySHA256 != sampling.SHA256Hex([]byte(query)) {
 				t.Errorf("manifest engine = %+v, want the query's SHA-256", fromSQL.Manifest.Engine)
