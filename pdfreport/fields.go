@@ -25,6 +25,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		PerCandidateRisk: riskPct(p.PerCandidateRisk),
 		Candidates:       p.Candidates,
 		Require:          p.Require,
+		MultiplicityRule: p.Multiplicity,
 		Model:            p.Model,
 		Rule:             p.Method,
 		Sequential:       p.Design == "sequential",

@@ -36,6 +36,9 @@ type Fields struct {
 	// Multiplicity names the correction in words ("Bonferroni", "Holm",
 	// "fixed-sequence"); "" for a single candidate.
 	Multiplicity string
+	// MultiplicityRule is the plan's rule as named in the plan file:
+	// "bonferroni", "holm" or "fixed-sequence".
+	MultiplicityRule string
 	// Require is "all" or "any".
 	Require string
 	// Model and Rule name the probability model and the plan's method.
@@ -66,7 +69,7 @@ func sampleFields() Fields {
 		RecordID: "000000000000", Use: "general", Ceiling: "1 %", Confidence: "95 %",
 		FamilyRisk: "5 %", BoundConfidence: "95 %", PerCandidateRisk: "5 %",
 		ConsumerRisk: "4 %", Anticipated: "0.5 %", ProducerRisk: "10 %", Candidates: 2,
-		Multiplicity: "Bonferroni", Require: "all", Model: "binomial", Rule: "exact",
+		Multiplicity: "Bonferroni", MultiplicityRule: "holm", Require: "all", Model: "binomial", Rule: "exact",
 		Sequential: true, SampleSize: 100, AcceptanceNumber: 1, Population: "1000",
 		Bound: "Clopper–Pearson", Approximate: true, Weighted: true, AllowIncomplete: true,
 	}
