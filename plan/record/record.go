@@ -95,9 +95,10 @@ type Candidate struct {
 	Column      string   `json:"column,omitempty"`
 	ScoreColumn string   `json:"score_column,omitempty"`
 	Threshold   *float64 `json:"threshold,omitempty"`
-	// Labeled is the number of items with a usable label that count toward
-	// the judgement; Errors counts mistakes among them (plus, with
-	// --allow-incomplete, every missing or unsure item).
+	// Labeled is the number of items that count toward the judgement (the
+	// n of the bound; for a sequential plan, the labels up to the stopping
+	// point); Errors counts mistakes among them. With --allow-incomplete
+	// the missing or unsure items are included in both (see Missing).
 	Labeled int `json:"labeled"`
 	Errors  int `json:"errors"`
 	// Missing is how many of the Labeled items were left unlabeled or
