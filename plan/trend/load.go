@@ -293,6 +293,8 @@ func decodeError(name string, data []byte, err error) error {
 	var se *json.SyntaxError
 	var te *json.UnmarshalTypeError
 	switch {
+	case len(bytes.TrimSpace(data)) == 0:
+		return &InputError{File: name, Msg: "is empty", Hint: "trend reads the record.json files written by 'probity record'"}
 	case errors.As(err, &se):
 		return &InputError{File: name, Line: lineAt(data, se.Offset), Msg: "is not valid JSON: " + se.Error(),
 			Hint: "trend reads the record.json files written by 'probity record'"}
@@ -303,8 +305,6 @@ func decodeError(name string, data []byte, err error) error {
 		}
 		return &InputError{File: name, Line: lineAt(data, te.Offset), Field: field,
 			Msg: fmt.Sprintf("is a JSON %s where a %s belongs", te.Value, jsonKind(te.Type.Kind().String()))}
-	case bytes.Equal(bytes.TrimSpace(data), nil):
-		return &InputError{File: name, Msg: "is empty"}
 	}
 	return &InputError{File: name, Msg: "is not valid JSON: " + err.Error()}
 }

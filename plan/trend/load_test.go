@@ -58,7 +58,7 @@ type badCase struct {
 func TestLoadRefusesBadRecords(t *testing.T) {
 	cases := []badCase{
 		{name: "not json", raw: "{\n  \"format\": 1,\n  oops\n}", line: 3, msgPart: "not valid JSON"},
-		{name: "empty file", raw: "", msgPart: "not valid JSON"},
+		{name: "empty file", raw: " \n", msgPart: "is empty"},
 		{name: "a list", raw: "[1, 2]", msgPart: "not a record"},
 		{name: "missing period", edit: func(m map[string]any) { delete(m, "period") }, field: "period", msgPart: "is missing"},
 		{name: "missing ceiling", edit: func(m map[string]any) { delete(m["plan"].(map[string]any), "ceiling") }, field: "plan.ceiling", msgPart: "is missing"},
