@@ -178,6 +178,10 @@ func fixtureRecord(use string) *record.Record {
 		SigningKey:     "ed25519:SHA256:7Qx2m9v0kLr3bH8sT1uYw4Zc6Na5Pd0Fe2Gi9Jk8Lm0",
 		OverallVerdict: record.Reject,
 	}
+	// The draw records inclusion weights N_h/n_h.
+	for i := range rec.Strata {
+		rec.Strata[i].Weight = float64(rec.Strata[i].Population) / float64(rec.Strata[i].Sample)
+	}
 	for i, fc := range fixtureCandidates {
 		c := defs[i]
 		c.Name = fc.name
@@ -230,7 +234,7 @@ func manyRecord() *record.Record {
 	for h := 0; h < 20; h++ {
 		rec.Strata = append(rec.Strata, record.StratumCount{
 			Label: fmt.Sprintf("line %02d / shift %c", h/2+1, 'A'+h%2), Population: int64(40000 + 3000*h),
-			Sample: 20 + h, Weight: float64(40000+3000*h) / 1370000,
+			Sample: 20 + h, Weight: float64(40000+3000*h) / float64(20+h),
 		})
 	}
 	rec.Candidates = nil

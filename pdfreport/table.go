@@ -40,6 +40,8 @@ type table struct {
 	width float64
 	// compact tightens the rows of a long table.
 	compact bool
+	// x is the table's offset from the left margin in mm.
+	x float64
 }
 
 const cellPadX = 1.6
@@ -179,7 +181,7 @@ func (t *table) headerCells() []cell {
 // drawRow draws one row at the cursor.
 func (d *doc) drawRow(t *table, ws []float64, cells []cell, lines [][]string, h float64, fill rgb, head bool) {
 	lh := t.fontSize() * 0.46
-	x0 := marginX
+	x0 := marginX + t.x
 	y := d.pdf.GetY()
 	x := x0
 	for i, c := range cells {
