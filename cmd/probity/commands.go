@@ -13,5 +13,6 @@ func commands(d deps) []*cobra.Command {
 		newKeygenCommand(d),
 		newTrendCommand(d),
 		newProgressCommand(d),
+		newDemoCommand(d),
 	}
 }
