@@ -10,6 +10,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"regexp"
 	"sort"
 	"strings"
 	"text/template"
@@ -198,11 +199,25 @@ func (s *Set) check(name, path string) error {
 	return nil
 }
 
-// trimTemplateErr drops text/template's "template: NAME:" prefix, since the
-// caller names the file already.
+// Shapes of text/template's messages, to restate them for a reviewer.
+var (
+	execFieldErr = regexp.MustCompile(`^(\d+):\d+: executing "[^"]*" at <[^>]*>: can't evaluate field (\w+) in type`)
+	lineErr      = regexp.MustCompile(`^(\d+)(?::\d+)?: (.*)$`)
+)
+
+// trimTemplateErr restates a text/template error without its "template:
+// NAME:" prefix (the caller names the file): an unknown field becomes
+// "line L: {{.Field}} is not a known field", other errors "line L: …".
 func trimTemplateErr(msg, name string) string {
 	msg = strings.TrimPrefix(msg, "template: ")
-	return strings.TrimPrefix(msg, name+":")
+	msg = strings.TrimPrefix(msg, name+":")
+	if m := execFieldErr.FindStringSubmatch(msg); m != nil {
+		return "line " + m[1] + ": {{." + m[2] + "}} is not a known field (see templates.Fields)"
+	}
+	if m := lineErr.FindStringSubmatch(msg); m != nil {
+		return "line " + m[1] + ": " + m[2]
+	}
+	return msg
 }
 
 // Caution returns the cautions for a declared use.

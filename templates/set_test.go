@@ -137,9 +137,9 @@ func TestBadOverrideIsRefusedNamingTheFile(t *testing.T) {
 		name, file, text, want string
 	}{
 		{"unknown file", "caution-casino.md", "x", "is not a template file name"},
-		{"misspelt field", "method.md", "n = {{.SampelSize}}", "SampelSize"},
-		{"field only in else branch", "scope.md", "{{if .Period}}p{{else}}{{.Nope}}{{end}}", "Nope"},
-		{"unclosed action", "decision-rule.md", "{{if .Ceiling}} no end", "does not parse"},
+		{"misspelt field", "method.md", "n =\n{{.SampelSize}}", "cannot be filled in: line 2: {{.SampelSize}} is not a known field"},
+		{"field only in else branch", "scope.md", "{{if .Period}}p{{else}}{{.Nope}}{{end}}", "{{.Nope}} is not a known field"},
+		{"unclosed action", "decision-rule.md", "{{if .Ceiling}} no end", "does not parse: line 1: unexpected EOF"},
 		{"empty caution", "caution-safety.md", "\n\n  \n", "is empty"},
 		{"not UTF-8", "signoff-approved.md", "caf\xe9", "UTF-8"},
 	}
