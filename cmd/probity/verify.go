@@ -17,18 +17,16 @@ import (
 	"probity/plan/record/signature"
 	"probity/plan/verdict"
 	"probity/sampling"
-	"probity/templates"
 )
 
 // verifyOptions are the flags of probity verify.
 type verifyOptions struct {
-	dir          string
-	pub          string
-	planPath     string
-	drawDir      string
-	labels       string
-	logPath      string
-	templatesDir string
+	dir      string
+	pub      string
+	planPath string
+	drawDir  string
+	labels   string
+	logPath  string
 }
 
 // newVerifyCommand builds `probity verify`.
@@ -78,7 +76,6 @@ failing checks say which file and what); 2 on bad usage or unreadable input.`,
 	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder, to check and recompute from")
 	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet, to check and recompute from")
 	fl.StringVar(&opts.logPath, "log", "", "the prediction log, to draw the sample again")
-	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder the record was made with, if any")
 	return cmd
 }
 
@@ -277,10 +274,6 @@ func recompute(c *checkList, o *verifyOptions, rec *record.Record) error {
 		}
 		return err
 	}
-	set, err := templates.Load(o.templatesDir)
-	if err != nil {
-		return withHint(badInput(err), "pass the --templates folder the record was made with")
-	}
 	bound := verdict.KornGraubard
 	if rec.Method.Bound == verdict.BoundWeightedHoeff {
 		bound = verdict.WeightedHoeffding
@@ -288,7 +281,7 @@ func recompute(c *checkList, o *verifyOptions, rec *record.Record) error {
 	again, err := assemble.Assemble(assemble.Input{
 		Plan: in.plan, PlanFP: in.planFP, Folder: in.folder, Labels: in.labels,
 		AllowIncomplete: rec.Deviations.AllowIncomplete, Bound: bound, Use: rec.Use, Date: rec.Date,
-		Signoff: rec.Signoff, Templates: set, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
+		Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
 	})
 	if err != nil {
 		c.fail("the inputs do not give a record: %s", recordInputError(err, o.labels).Error())
