@@ -36,12 +36,25 @@ func (d Dialect) hex(k string) string {
 }
 
 // byteOrder is the collation clause that orders text by its bytes (the
-// order the draw uses for stratum labels and keys).
+// order the draw uses for stratum labels and keys), whatever the
+// database's or session's default collation.
 func (d Dialect) byteOrder() string {
 	if d == DuckDB {
-		return ""
+		return ` COLLATE "binary"`
 	}
 	return ` COLLATE "C"`
+}
+
+// binaryText makes a text expression compare, group and join by its bytes
+// in DuckDB, where a session's default_collation (e.g. nocase) would
+// otherwise merge strata or ids that differ only in case. PostgreSQL's
+// default collations are deterministic (equal only when byte-equal), so
+// there the expression is left as it is.
+func (d Dialect) binaryText(expr string) string {
+	if d == DuckDB {
+		return "(" + expr + ")" + d.byteOrder()
+	}
+	return expr
 }
 
 // exactInt is the exact integer type the allocation computes in.

@@ -82,13 +82,13 @@ func Query(s *Spec) (string, error) {
 	// copying these expressions into every use); base: whether the row is
 	// in scope, its stratum label and the first problem a draw from a file
 	// would refuse.
-	w("base AS (\n  SELECT r.record_id,\n    %s AS in_scope,\n    %s AS stratum,\n    %s AS bad", q.scopeExpr(), label, q.badExpr())
+	w("base AS (\n  SELECT r.record_id,\n    %s AS in_scope,\n    %s AS stratum,\n    %s AS bad", q.scopeExpr(), d.binaryText(label), q.badExpr())
 	for i := range values {
 		w(",\n    r.v%d", i+1)
 	}
-	w("\n  FROM (\n    SELECT %s AS record_id", d.text("t."+q.id))
+	w("\n  FROM (\n    SELECT %s AS record_id", d.binaryText(d.text("t."+q.id)))
 	for i, c := range q.rawColumns() {
-		w(",\n      %s AS %s", q.valueText(c), q.raw[c])
+		w(",\n      %s AS %s", d.binaryText(q.valueText(c)), q.raw[c])
 		_ = i
 	}
 	for i, b := range q.bands {
