@@ -108,12 +108,11 @@ func Assemble(in Input) (*record.Record, error) {
 		}
 	}
 	rec.Deviations = checked.Deviations
-	for h, s := range checked.Design.Strata {
+	for _, s := range checked.Design.Strata {
 		w := 0.0
 		if s.Sample > 0 {
 			w = float64(s.Population) / float64(s.Sample)
 		}
-		_ = h
 		rec.Strata = append(rec.Strata, record.StratumCount{Label: s.Label, Population: s.Population, Sample: s.Sample, Weight: w})
 	}
 	if seq {
