@@ -284,28 +284,47 @@ func Search(spec Spec) (*Design, error) {
 	finalC := func(T int, hr float64, k int) int {
 		return int(math.Ceil(float64(lines.Slope*float64(T))+hr)) - 1 - k
 	}
-	// coarse pass over the truncation points
-	bestT := 0
+	// offset of the final c below the reject line at T, as a fraction θ
+	// of the gap h1 + hr between Wald's lines
+	kFor := func(theta, hr float64) int { return int(math.Round(theta * (lines.HAccept + hr))) }
+	obj := func(T, c int, hr, tol float64) float64 {
+		if v, ok := try(T, c, hr, tol); ok {
+			return v
+		}
+		return math.Inf(1)
+	}
+	// coarse pass over the truncation points, the reject intercepts and
+	// the offsets θ
+	bestT, bestK := 0, 0
 	for _, T := range truncationGrid(n, cap) {
 		before := bestObj
 		for _, f := range coarseRejectGrid {
-			for _, k := range []int{0, 2} {
-				try(T, finalC(T, f*lines.HReject, k), f*lines.HReject, 0.05)
+			hr := f * lines.HReject
+			seen := map[int]bool{}
+			for _, th := range coarseThetaGrid {
+				k := kFor(th, hr)
+				if seen[k] {
+					continue
+				}
+				seen[k] = true
+				obj(T, finalC(T, hr, k), hr, 0.05)
 			}
 		}
 		if bestObj < before {
 			bestT = T
+			bestK = int(math.Ceil(float64(lines.Slope*float64(T))+best.RejectIntercept)) - 1 - best.FinalAcceptance
 		}
 	}
 	// fine pass at the best truncation point, around the best intercept
+	// and offset
 	if best != nil {
 		f0 := best.RejectIntercept / lines.HReject
 		for f := f0 - 0.09; f <= f0+0.09+1e-9; f += 0.03 {
 			if f <= 0 {
 				continue
 			}
-			for k := 0; k <= 2; k++ {
-				try(bestT, finalC(bestT, f*lines.HReject, k), f*lines.HReject, 0.002)
+			for k := max(bestK-2, 0); k <= bestK+2; k++ {
+				obj(bestT, finalC(bestT, f*lines.HReject, k), f*lines.HReject, 0.002)
 			}
 		}
 	}
@@ -317,6 +336,12 @@ func Search(spec Spec) (*Design, error) {
 	best.Evaluations = evals
 	return best, nil
 }
+
+// coarseThetaGrid are the offsets of the final acceptance number below
+// the reject line tried in the coarse pass, as fractions of the gap
+// between the lines (0: truncate at the reject line, 1: at the accept
+// line).
+var coarseThetaGrid = []float64{0, 0.15, 0.4, 1}
 
 // coarseRejectGrid are the reject intercepts of the coarse pass, as
 // multiples of Wald's h2.
