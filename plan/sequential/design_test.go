@@ -135,3 +135,20 @@ func TestASNTable(t *testing.T) {
 	}
 	t.Log(b.String())
 }
+
+// A very small per-candidate risk (confidence 0.999 with M = 100:
+// 1e-5) puts Wald's lines about 20 errors apart at the truncation point;
+// the search must place the final acceptance number inside that gap, not
+// at the reject line (regression: no plan was found).
+func TestSearchTinyRisk(t *testing.T) {
+	n, _ := fixedPlan(t, 0.01, 0.02, 1e-5, 0.10)
+	spec := Spec{Ceiling: 0.02, Anticipated: 0.01, ConsumerRisk: 1e-5, ProducerRisk: 0.10, FixedSampleSize: n}
+	d, err := Search(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkDesign(t, spec, d)
+	if d.ASNAtAnticipated >= float64(n) || d.ASNAtCeiling >= float64(n) {
+		t.Errorf("no saving: ASN %.0f, %.0f vs n %d", d.ASNAtAnticipated, d.ASNAtCeiling, n)
+	}
+}
