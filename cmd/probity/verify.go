@@ -288,8 +288,8 @@ func recompute(c *checkList, o *verifyOptions, rec *record.Record) error {
 		return nil
 	}
 	if rec.LabelQuality != nil {
-		again.LabelQuality = rec.LabelQuality
-		c.skip("label quality (double labeling) is not recomputed by verify; the judgement below uses the first labels only")
+		c.skip("judgement not recomputed: the record uses double labeling (label_quality), and verify does not read the second worksheet or the adjudications")
+		return nil
 	}
 	// The fingerprints (and so the record id) were compared above, input
 	// by input; this compares what was computed from them.
