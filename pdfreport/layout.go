@@ -170,6 +170,8 @@ func (d *doc) headingKeep(title string, minBelow float64) {
 	d.font("B", headingSize)
 	d.textColour(headingColour)
 	d.pdf.SetX(marginX)
+	// Each section is also an entry of the PDF's outline (bookmarks).
+	d.pdf.Bookmark(printable(itoa(d.section)+" "+title), 0, -1)
 	d.pdf.CellFormat(d.contentW(), 7, itoa(d.section)+"   "+title, "", 1, "L", false, 0, "")
 	d.drawColour(headingColour)
 	d.pdf.SetLineWidth(0.4)

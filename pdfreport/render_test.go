@@ -150,6 +150,9 @@ func TestEveryPageCarriesRecordIDAndPageNumber(t *testing.T) {
 	if n < 2 {
 		t.Fatalf("only %d pages", n)
 	}
+	if !bytes.Contains(pdf, []byte("/Type /Outlines")) || bytes.Count(pdf, []byte("/Title ")) < 12+1 {
+		t.Error("the PDF has no outline entry per section")
+	}
 	pages := strings.Split(pdfText(t, pdf), "\f")
 	for i := 0; i < n; i++ {
 		want := "Page " + strconv.Itoa(i+1) + " of " + strconv.Itoa(n)
@@ -353,7 +356,8 @@ func TestUnusualRecordsLayOut(t *testing.T) {
 				r.Candidates[i].Strata = nil
 				r.Candidates[i].StoppedAt = 120
 			}
-		}, []string{"holds no operating-characteristic curve", "not stratified", "sequential boundaries"}},
+		}, []string{"holds no operating-characteristic curve", "not stratified", "sequential boundaries",
+			"Stopped after", "120 labels"}},
 		{"finite lot, one candidate, nothing optional", func(r *record.Record) {
 			r.System, r.SystemVersion, r.Period, r.Use = "", "", "", ""
 			r.Plan.Population = 20000

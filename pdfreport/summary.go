@@ -56,20 +56,28 @@ func (d *doc) summary(c *content) {
 		d.body("The record lists no candidates.")
 		return
 	}
-	holm := false
+	holm, stopped := false, false
 	for _, cand := range rec.Candidates {
 		if cand.AdjustedPValue != nil {
 			holm = true
+		}
+		if cand.StoppedAt > 0 {
+			stopped = true
 		}
 	}
 	cols := []column{
 		{head: "Candidate", w: 1},
 		{head: "Errors / labeled", fit: true, align: "R"},
+	}
+	if stopped {
+		cols = append(cols, column{head: "Stopped after", fit: true, align: "R"})
+	}
+	cols = append(cols, []column{
 		{head: "Estimate", fit: true, align: "R"},
 		{head: "Upper bound at " + c.fields.BoundConfidence, fit: true, align: "R"},
 		{head: "Ceiling", fit: true, align: "R"},
 		{head: "p-value", fit: true, align: "R"},
-	}
+	}...)
 	if holm {
 		cols = append(cols, column{head: "Adjusted p", fit: true, align: "R"})
 	}
@@ -79,11 +87,20 @@ func (d *doc) summary(c *content) {
 		row := []cell{
 			{text: cand.Name, bold: true},
 			{text: itoa(cand.Errors) + " / " + itoa(cand.Labeled)},
+		}
+		if stopped {
+			after := "–"
+			if cand.StoppedAt > 0 {
+				after = plural(cand.StoppedAt, "label", "labels")
+			}
+			row = append(row, cell{text: after})
+		}
+		row = append(row, []cell{
 			{text: pct(cand.Estimate)},
 			{text: pctUp(cand.UpperBound), bold: true},
 			{text: c.fields.Ceiling},
 			{text: prob(cand.PValue)},
-		}
+		}...)
 		if holm {
 			adj := "–"
 			if cand.AdjustedPValue != nil {
