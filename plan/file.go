@@ -7,6 +7,8 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"slices"
+	"strings"
 	"time"
 
 	"gopkg.in/yaml.v3"
@@ -230,6 +232,12 @@ func (f *File) validate() error {
 	if len(f.Candidates) > 0 && len(f.Candidates) != in.Candidates {
 		return fmt.Errorf("inputs.candidates is %d but %d candidates are declared", in.Candidates, len(f.Candidates))
 	}
+	if err := in.validateNames(); err != nil {
+		return err
+	}
+	if p0 := in.Anticipated; p0 != nil && !(*p0 >= 0 && *p0 < in.Ceiling) {
+		return fmt.Errorf("inputs.anticipated %v is outside [0, ceiling)", *p0)
+	}
 	if f.Rule.SampleSize < 1 {
 		return fmt.Errorf("rule.sample_size %d is below 1", f.Rule.SampleSize)
 	}
@@ -256,6 +264,26 @@ func (f *File) validate() error {
 	}
 	if len(f.Candidates) > 0 && len(f.Classes) < 2 {
 		return errors.New("classes must list at least two labels when candidates are declared")
+	}
+	return nil
+}
+
+// validateNames refuses an unknown method, multiplicity, design or
+// requirement in a plan file; empty values are left to the caller's
+// defaults.
+func (in Inputs) validateNames() error {
+	for _, c := range []struct {
+		key, value string
+		allowed    []string
+	}{
+		{"method", in.Method, Methods},
+		{"multiplicity", in.Multiplicity, Multiplicities},
+		{"design", in.Design, []string{DesignFixed, DesignSequential}},
+		{"require", in.Require, []string{RequireAll, RequireAny}},
+	} {
+		if c.value != "" && !slices.Contains(c.allowed, c.value) {
+			return fmt.Errorf("inputs.%s %q is not one of %s", c.key, c.value, strings.Join(c.allowed, ", "))
+		}
 	}
 	return nil
 }

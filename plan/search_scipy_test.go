@@ -82,7 +82,7 @@ type searchCase struct {
 	in      Inputs
 }
 
-// The (n, c) search on 400 random parameter sets against the scan above.
+// The (n, c) search on 300 random parameter sets against the scan above.
 // Exact agreement is required (both are exact searches over integers).
 func TestSearchAgainstScipy(t *testing.T) {
 	if testing.Short() {
@@ -90,7 +90,7 @@ func TestSearchAgainstScipy(t *testing.T) {
 	}
 	rng := rand.New(rand.NewPCG(21, 22))
 	var cases []searchCase
-	for i := 0; i < 400; i++ {
+	for i := 0; i < 300; i++ {
 		in := inputs(math.Pow(10, -2.3+1.8*rng.Float64()), []float64{0.8, 0.9, 0.95, 0.99, 0.999}[rng.IntN(5)])
 		in.Candidates = 1 + rng.IntN(4)
 		in.Multiplicity = Multiplicities[rng.IntN(3)]

@@ -152,7 +152,7 @@ func TestHypergeometricTailsAgainstScipy(t *testing.T) {
 			pop = int64(1 + rng.IntN(5_000_000))
 		}
 		d := int64(float64(pop) * math.Pow(10, -4*rng.Float64()))
-		n := 1 + rng.IntN(int(min(pop, 200000)))
+		n := 1 + rng.IntN(int(min(pop, 40000)))
 		mean := float64(n) * float64(d) / float64(pop)
 		sd := math.Sqrt(mean) + 1
 		k := int(math.Round(mean + sd*(rng.Float64()*16-8)))
