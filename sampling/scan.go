@@ -237,7 +237,10 @@ func (s *scanner) run() (*ScanResult, error) {
 	}
 
 	chunks := make(chan chunk, 2*s.spec.Workers)
-	pool := sync.Pool{New: func() any { b := make([]byte, 0, s.spec.ChunkSize); return &b }}
+	// A fixed set of read buffers, recycled: nothing is allocated per
+	// chunk, so the garbage collector has next to nothing to do.
+	// (allocated as needed, at most cap(pool) of them).
+	pool := make(chan *[]byte, 2*s.spec.Workers+2)
 	workers := make([]*worker, s.spec.Workers)
 	var wg sync.WaitGroup
 	for i := range workers {
@@ -249,12 +252,12 @@ func (s *scanner) run() (*ScanResult, error) {
 				if c.seq <= s.errSeq.Load() {
 					w.chunk(c)
 				}
-				*c.buf = c.data[:0]
-				pool.Put(c.buf)
+				*c.buf = (*c.buf)[:0]
+				pool <- c.buf
 			}
 		}(workers[i])
 	}
-	lines, readErr := s.feed(br, rest, rerr, chunks, &pool)
+	lines, readErr := s.feed(br, rest, rerr, chunks, pool)
 	close(chunks)
 	wg.Wait()
 	if len(s.errs) > 0 {
@@ -389,10 +392,11 @@ func trimEOL(b []byte) []byte {
 
 // feed cuts the stream into chunks that end on record boundaries and
 // sends them to the workers. It returns the number of lines read.
-func (s *scanner) feed(r io.Reader, rest []byte, rerr error, out chan<- chunk, pool *sync.Pool) (int64, *InputError) {
+func (s *scanner) feed(r io.Reader, rest []byte, rerr error, out chan<- chunk, pool chan *[]byte) (int64, *InputError) {
 	line := s.dataLine
 	var seq int64
-	carry := rest
+	carry := append([]byte(nil), rest...)
+	allocated := 0
 	eof := rerr != nil
 	if rerr != nil && rerr != io.EOF {
 		return line - 1, s.readError(rerr, line-1)
@@ -401,7 +405,18 @@ func (s *scanner) feed(r io.Reader, rest []byte, rerr error, out chan<- chunk, p
 		if seq > s.errSeq.Load() {
 			return line - 1, nil
 		}
-		bp := pool.Get().(*[]byte)
+		var bp *[]byte
+		select {
+		case bp = <-pool:
+		default:
+			if allocated < cap(pool) {
+				b := make([]byte, 0, s.spec.ChunkSize)
+				bp = &b
+				allocated++
+			} else {
+				bp = <-pool
+			}
+		}
 		buf := append((*bp)[:0], carry...)
 		var err error
 		size := s.spec.ChunkSize
@@ -418,18 +433,18 @@ func (s *scanner) feed(r io.Reader, rest []byte, rerr error, out chan<- chunk, p
 			}
 		}
 		if len(buf) == 0 {
-			pool.Put(bp)
+			pool <- bp
 			break
 		}
 		end := s.recordEnd(buf, eof)
 		if end == 0 {
 			// No record ends in this buffer: read a bigger one.
-			carry = append([]byte(nil), buf...)
+			carry = append(carry[:0], buf...)
 			*bp = buf[:0]
-			pool.Put(bp)
+			pool <- bp
 			continue
 		}
-		carry = append(carry[:0:0], buf[end:]...)
+		carry = append(carry[:0], buf[end:]...)
 		data := buf[:end]
 		*bp = buf
 		out <- chunk{seq: seq, line: line, data: data, buf: bp}
@@ -525,6 +540,7 @@ type worker struct {
 	plen    int
 	label   []byte
 	strata  map[string]*wstratum
+	table   stratumTable
 	single  *wstratum
 	rows    int64
 	dups    []dupEvent
@@ -533,6 +549,7 @@ type worker struct {
 }
 
 type wstratum struct {
+	hash  uint64
 	label string
 	count int64
 	ret   *retainer
@@ -547,7 +564,7 @@ type dupEvent struct {
 }
 
 func (s *scanner) newWorker() *worker {
-	w := &worker{s: s, strata: map[string]*wstratum{}}
+	w := &worker{s: s, strata: map[string]*wstratum{}, table: newStratumTable()}
 	w.vals = make([][]byte, len(s.slotCols))
 	switch s.format {
 	case FormatJSONL:
@@ -575,6 +592,7 @@ func (w *worker) newStratum(label string) *wstratum {
 		w.dups = append(w.dups, dupEvent{key: k.bytes(), stratum: label, id: string(kept.part(0)), kept: kept.line, other: other.line})
 	}
 	w.strata[label] = st
+	w.table.insert(st)
 	return st
 }
 
@@ -584,6 +602,10 @@ func (w *worker) chunk(c chunk) {
 	data := c.data
 	line := c.line
 	quotes := w.s.format == FormatCSV && bytes.IndexByte(data, '"') >= 0
+	if w.s.format != FormatJSONL && !quotes {
+		w.chunkPlain(c)
+		return
+	}
 	w.split.noQuotes = !quotes
 	for len(data) > 0 {
 		nl := bytes.IndexByte(data, '\n')
@@ -645,9 +667,19 @@ func (w *worker) record(line int64, rec []byte) *InputError {
 		if err != nil {
 			return inputErrorf(name, int(line), fieldName(s.header, nf), "%v", err)
 		}
-		if nf != len(s.header) {
-			return inputErrorf(name, int(line), "", "%d fields, but the header has %d (%s)", nf, len(s.header), columnList(s.header))
-		}
+		return w.process(line, nf)
+	}
+	return w.process(line, -1)
+}
+
+// process handles one data record whose needed fields are in w.vals; nf
+// is its number of fields (−1 for JSON Lines, where keys are checked by
+// the parser).
+func (w *worker) process(line int64, nf int) *InputError {
+	s := w.s
+	name := s.spec.Name
+	if nf >= 0 && nf != len(s.header) {
+		return inputErrorf(name, int(line), "", "%d fields, but the header has %d (%s)", nf, len(s.header), columnList(s.header))
 	}
 	w.rows++
 	id := w.vals[s.idSlot]
@@ -664,9 +696,6 @@ func (w *worker) record(line int64, rec []byte) *InputError {
 		w.label = w.label[:0]
 		for i, sl := range s.strataSlots {
 			v := w.vals[sl]
-			if bytes.IndexByte(v, '|') >= 0 {
-				return inputErrorf(name, int(line), s.spec.StrataColumns[i], "the value %q holds a |, which separates stratum values in labels", v)
-			}
 			if i > 0 {
 				w.label = append(w.label, '|')
 			}
@@ -692,9 +721,15 @@ func (w *worker) record(line int64, rec []byte) *InputError {
 			}
 			w.label = append(w.label, s.bandLabels[i][idx]...)
 		}
-		var ok bool
-		st, ok = w.strata[string(w.label)]
-		if !ok {
+		st = w.table.find(w.label)
+		if st == nil {
+			// A new stratum: its values must not hold the separator, or
+			// two different value lists could share a label.
+			for i, sl := range s.strataSlots {
+				if v := w.vals[sl]; bytes.IndexByte(v, '|') >= 0 {
+					return inputErrorf(name, int(line), s.spec.StrataColumns[i], "the value %q holds a |, which separates stratum values in labels", v)
+				}
+			}
 			if len(w.strata) >= s.spec.MaxStrata {
 				e := inputErrorf(name, 0, "", "more than %d strata: the strata columns have too many distinct values to stratify by", s.spec.MaxStrata)
 				e.Hint = "stratify by columns with a few categories, or by score bands (--band)"
