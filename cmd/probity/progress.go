@@ -125,6 +125,12 @@ func loadProgressInput(opts *progressOptions) (progress.Input, string, string, e
 		return in, "", "", withHint(usageErrorf("%s: the plan declares no candidates, so there is nothing to judge", opts.planPath),
 			"use the plan the sample was drawn from")
 	}
+	if p.Sequential != nil {
+		if err := sequential.Validate(p.Sequential); err != nil {
+			return in, "", "", withHint(usageErrorf("%s: sequential: %v", opts.planPath, err),
+				"the boundaries were edited by hand; use the plan file probity plan wrote")
+		}
+	}
 	manifestPath := filepath.Join(opts.drawDir, sampling.ManifestFile)
 	m, _, err := sampling.ReadManifest(manifestPath)
 	if err != nil {

@@ -261,6 +261,19 @@ func TestProgressBadInput(t *testing.T) {
 		t.Errorf("edited ledger: exit %d, %q", code, errs)
 	}
 	os.WriteFile(ledger, ld, 0o644)
+	// a sequential plan whose boundaries were edited so they no longer meet
+	sq := progressFixture(t, true)
+	f := *sq.file
+	rule := *f.Sequential
+	rule.AcceptIfErrorsAtMost = append([]int{}, rule.AcceptIfErrorsAtMost...)
+	rule.AcceptIfErrorsAtMost[rule.MaxSampleSize-1]--
+	f.Sequential = &rule
+	broken, _ := f.Marshal()
+	os.WriteFile(sq.plan, broken, 0o644)
+	code, _, errs = runProgressCmd(t, "--plan", sq.plan, "--draw", sq.draw, "--labels", sq.label(t, 5, nil))
+	if code != exitBadInput || !strings.Contains(errs, "plan.yaml: sequential: ") || !strings.Contains(errs, "the boundaries must meet") {
+		t.Errorf("broken boundaries: exit %d, %q", code, errs)
+	}
 	// an unknown label
 	bad := pf.label(t, 3, func(rows []sampling.WorksheetRow) { rows[1].Label = "OK" })
 	code, _, errs = runProgressCmd(t, "--plan", pf.plan, "--draw", pf.draw, "--labels", bad)
