@@ -35,6 +35,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		Approximate:      rec.Method.Approximate,
 		Weighted:         weightedBound(rec.Method.Bound),
 		AllowIncomplete:  rec.Deviations.AllowIncomplete,
+		Stratified:       len(rec.Strata) > 1,
 	}
 	if f.System == "" {
 		f.System = "the system under audit"

@@ -57,6 +57,8 @@ type Fields struct {
 	Approximate bool
 	// Weighted is true when the estimate weights strata by N_h/N.
 	Weighted bool
+	// Stratified is true when the draw had more than one stratum.
+	Stratified bool
 	// AllowIncomplete is true when missing or unsure labels were counted
 	// as errors.
 	AllowIncomplete bool
@@ -71,6 +73,6 @@ func sampleFields() Fields {
 		ConsumerRisk: "4 %", Anticipated: "0.5 %", ProducerRisk: "10 %", Candidates: 2,
 		Multiplicity: "Bonferroni", MultiplicityRule: "holm", Require: "all", Model: "binomial", Rule: "exact",
 		Sequential: true, SampleSize: 100, AcceptanceNumber: 1, Population: "1000",
-		Bound: "Clopper–Pearson", Approximate: true, Weighted: true, AllowIncomplete: true,
+		Bound: "Clopper–Pearson", Approximate: true, Weighted: true, Stratified: true, AllowIncomplete: true,
 	}
 }
