@@ -202,3 +202,53 @@ func TestPopulationPlans(t *testing.T) {
 		}
 	}
 }
+
+// Invariants on random inputs, extremes included: the rule keeps both
+// risks, and one label fewer cannot (its best c misses one of them) —
+// minimality checked directly at n − 1.
+func TestSizeInvariants(t *testing.T) {
+	rng := rand.New(rand.NewPCG(31, 32))
+	for i := 0; i < 300; i++ {
+		in := inputs(math.Pow(10, -3.5*rng.Float64()), 1-math.Pow(10, -0.3-4*rng.Float64()))
+		if in.Ceiling >= 1 {
+			in.Ceiling = 0.5
+		}
+		in.Candidates = 1 + rng.IntN(20)
+		in.Multiplicity = Multiplicities[rng.IntN(3)]
+		in.ProducerRisk = 0.01 + 0.5*rng.Float64()
+		if i%3 != 0 {
+			in.Anticipated = ptr(in.Ceiling * rng.Float64() * 0.8)
+		}
+		if i%4 == 1 {
+			in.Population = int64(100 + rng.IntN(1_000_000))
+		}
+		r, _, err := Size(in)
+		var tl *TooLargeError
+		if errors.As(err, &tl) {
+			continue
+		}
+		if err != nil {
+			t.Fatalf("%+v: %v", in, err)
+		}
+		alpha := PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+		if !(r.ConsumerRisk <= alpha) || (r.ProducerRisk != nil && !(*r.ProducerRisk <= in.ProducerRisk)) {
+			t.Errorf("%+v: risks %v / %v", in, r.ConsumerRisk, r.ProducerRisk)
+		}
+		n := r.SampleSize - 1
+		if n < 1 {
+			continue
+		}
+		c := AcceptanceNumberFor(n, in)
+		ok := c >= 0
+		if ok && in.Anticipated != nil {
+			if in.Population > 0 {
+				ok = HypergeometricSF(c, in.Population, GoodLotErrors(in.Population, *in.Anticipated), n) <= in.ProducerRisk
+			} else {
+				ok = BinomialSF(c, n, *in.Anticipated) <= in.ProducerRisk
+			}
+		}
+		if ok {
+			t.Errorf("%+v: plan n = %d, but n − 1 with c = %d already keeps both risks", in, r.SampleSize, c)
+		}
+	}
+}
