@@ -156,48 +156,23 @@ func lineBoundsInto(b *bounds, T, c int, slope, ha, hr float64) *bounds {
 	return b
 }
 
-// finalCDF returns P(errors among the first T ≤ c) for c = 0 … cmax under
-// m, exactly, by a dynamic programme whose last state absorbs every count
-// above cmax.
-func finalCDF(m Model, T, cmax int) []float64 {
-	p := make([]float64, cmax+2)
-	p[0] = 1
-	binom, isBinom := m.(Binomial)
-	for t := 0; t < T; t++ {
-		top := min(t, cmax)
-		// the absorbing state cmax+1 stays absorbed
-		for e := top; e >= 0; e-- {
-			q := 0.0
-			if isBinom {
-				q = binom.P
-			} else {
-				q = m.NextError(t, e)
-			}
-			v := p[e]
-			p[e] = v * (1 - q)
-			p[e+1] += v * q
-		}
-	}
-	cdf := make([]float64, cmax+1)
-	run := 0.0
-	for c := 0; c <= cmax; c++ {
-		run += p[c]
-		cdf[c] = run
-	}
-	return cdf
-}
-
-// Search finds a truncated sequential plan for spec: Wald's slope between
-// the anticipated error and the ceiling, with the intercepts, the
-// truncation point T (from n to the cap) and the final acceptance number
-// c searched so that the exact consumer's risk ≤ spec.ConsumerRisk and the
-// exact producer's risk ≤ spec.ProducerRisk, minimising
-// ASN(anticipated) + ASN(ceiling). For each (T, c) with a feasible fixed
-// plan and each reject intercept on a grid, the accept intercept is the
-// smallest that keeps the consumer's risk (found by bisection: the risk
-// falls as the intercept grows). Acceptance needs e ≤ c and rejection
-// comes at the latest at e = c + 1, so the fixed plan (T, c) itself, with
-// curtailment, is always among the candidates when it is feasible.
+// Search finds a truncated sequential plan for spec so that the exact
+// consumer's risk ≤ spec.ConsumerRisk and the exact producer's risk ≤
+// spec.ProducerRisk, minimising ASN(anticipated) + ASN(ceiling). The
+// boundaries follow Wald's slope s between the two error rates:
+//
+//	a_t = min(⌊s·t − ha⌋, c),  r_t = min(⌈s·t + hr⌉, c + 1),  a_T = c, r_T = c + 1,
+//
+// and the search is over the truncation point T (n·{1, 1.5, 2, 3} up to
+// the cap), the reject intercept hr (multiples of Wald's h2), and the
+// final acceptance number c (placed at a fraction θ of the gap between
+// the lines at T, below the reject line). For each (T, c, hr) the accept
+// intercept ha is the smallest that keeps the consumer's risk, found by
+// bisection (that risk falls as ha grows; the producer's risk and both
+// ASNs rise with it, so the smallest is best). A coarse pass over the
+// grid is followed by a finer one around the best (hr, c) at its T.
+// Every candidate is evaluated exactly by the dynamic programme; Wald's
+// constants are only the starting point.
 func Search(spec Spec) (*Design, error) {
 	if err := spec.validate(); err != nil {
 		return nil, err
@@ -359,18 +334,6 @@ func truncationGrid(n, cap int) []int {
 		if len(out) == 0 || out[len(out)-1] != T {
 			out = append(out, T)
 		}
-	}
-	return out
-}
-
-// spread picks at most k values of xs, evenly spaced, ends included.
-func spread(xs []int, k int) []int {
-	if len(xs) <= k {
-		return xs
-	}
-	out := make([]int, 0, k)
-	for i := 0; i < k; i++ {
-		out = append(out, xs[i*(len(xs)-1)/(k-1)])
 	}
 	return out
 }

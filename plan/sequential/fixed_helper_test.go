@@ -48,3 +48,34 @@ func TestFixedHelperKnownPlan(t *testing.T) {
 	}
 	_ = math.Abs
 }
+
+// finalCDF returns P(errors among the first T ≤ c) for c = 0 … cmax under
+// m, exactly, by a dynamic programme whose last state absorbs every count
+// above cmax.
+func finalCDF(m Model, T, cmax int) []float64 {
+	p := make([]float64, cmax+2)
+	p[0] = 1
+	binom, isBinom := m.(Binomial)
+	for t := 0; t < T; t++ {
+		top := min(t, cmax)
+		// the absorbing state cmax+1 stays absorbed
+		for e := top; e >= 0; e-- {
+			q := 0.0
+			if isBinom {
+				q = binom.P
+			} else {
+				q = m.NextError(t, e)
+			}
+			v := p[e]
+			p[e] = v * (1 - q)
+			p[e+1] += v * q
+		}
+	}
+	cdf := make([]float64, cmax+1)
+	run := 0.0
+	for c := 0; c <= cmax; c++ {
+		run += p[c]
+		cdf[c] = run
+	}
+	return cdf
+}
