@@ -103,7 +103,7 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 		t.Fatal(err)
 	}
 	defer log.Close()
-	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: fx.logPath, Log: log,
+	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: "log.csv", Log: log,
 		Format: "csv", IDColumn: "record_id", StrataColumns: []string{"depot"}, Show: fx.show,
 		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 2, MinPerStratum: minPer}, ToolVersion: "test"})
 	if err != nil {
