@@ -412,3 +412,47 @@ func TestNamesOutsideTheFontRender(t *testing.T) {
 		}
 	}
 }
+
+// No page ends with a heading: a section or table title is always followed
+// by content on its own page.
+func TestNoHeadingEndsAPage(t *testing.T) {
+	heading := regexp.MustCompile(`^(\d+ {1,3}[A-Z].*|Errors per stratum: .*|Confusion matrix: .*|Strata of the draw|Findings|Assumptions|Method as recorded|Versions|Models and thresholds judged.*|Electronic signature)$`)
+	for _, tc := range []struct {
+		name string
+		rec  *record.Record
+		opts Options
+	}{
+		{"medical-a4", fixtureRecord("medical"), Options{Paper: "a4"}},
+		{"general-letter", fixtureRecord("general"), Options{Paper: "letter"}},
+		{"many-letter", manyRecord(), Options{Paper: "letter"}},
+		{"many-a4", manyRecord(), Options{Paper: "a4"}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			pages := strings.Split(pdfText(t, render(t, tc.rec, tc.opts)), "\f")
+			seen := 0
+			for i, p := range pages {
+				var lines []string
+				for _, l := range strings.Split(p, "\n") {
+					l = strings.TrimSpace(l)
+					if l == "" || strings.HasPrefix(l, "Record "+tc.rec.RecordID) || strings.HasPrefix(l, "Page ") ||
+						strings.HasPrefix(l, "Acceptance record · ") {
+						continue
+					}
+					lines = append(lines, l)
+				}
+				for _, l := range lines {
+					if heading.MatchString(l) {
+						seen++
+					}
+				}
+				if len(lines) > 0 && heading.MatchString(lines[len(lines)-1]) {
+					t.Errorf("page %d ends with the heading %q", i+1, lines[len(lines)-1])
+				}
+			}
+			// The check must see the headings to mean anything.
+			if seen < 12+len(tc.rec.Candidates) {
+				t.Errorf("found only %d headings", seen)
+			}
+		})
+	}
+}
