@@ -65,6 +65,14 @@ of the worksheet without gaps and each candidate is judged by the plan's
 boundaries where they decide (probity progress says when to stop); items
 below that point may stay blank.
 
+The sign-off file names who prepared, reviewed and approved the record; each
+key is optional, and a role left out prints blank signature lines:
+
+  prepared: {name: Dana Example, title: ML engineer, date: 2026-12-01}
+  reviewed: {name: Jo Example, title: Model-risk reviewer}
+  approved: {name: Sam Example, title: Head of quality,
+             meaning: "I approve the release of version 2.4"}
+
 ` + exitCodesHelp + `
 
 record exits 0 when the audit passes (every candidate the plan requires is
@@ -188,6 +196,9 @@ func runRecord(d deps, o *recordOptions) error {
 			return err
 		}
 		priv, keyFP = k, fp
+		if st, err := os.Stat(o.signKey); err == nil && st.Mode().Perm()&0o077 != 0 {
+			fmt.Fprintf(d.stderr, "probity: warning: the private key %s can be read by others (mode %04o); run chmod 600 %s\n", o.signKey, st.Mode().Perm(), o.signKey)
+		}
 	}
 	set, err := templates.Load(o.templatesDir)
 	if err != nil {

@@ -31,3 +31,16 @@ func TestParseSignoff(t *testing.T) {
 		}
 	}
 }
+
+// TestParseSignoffHelpExample parses the example shown in `probity record
+// --help` (flow style).
+func TestParseSignoffHelpExample(t *testing.T) {
+	text := "prepared: {name: Dana Example, title: ML engineer, date: 2026-12-01}\nreviewed: {name: Jo Example, title: Model-risk reviewer}\napproved: {name: Sam Example, title: Head of quality,\n           meaning: \"I approve the release of version 2.4\"}\n"
+	got, err := ParseSignoff([]byte(text), "signoff.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(got) != 3 || got[2].Meaning != "I approve the release of version 2.4" || got[0].Date != "2026-12-01" {
+		t.Errorf("%+v", got)
+	}
+}

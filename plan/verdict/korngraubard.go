@@ -17,9 +17,9 @@ import (
 // where t_{α, d} is the lower α quantile of Student's t with d degrees of
 // freedom and B⁻¹ the beta quantile. This is what R's survey package
 // computes in svyciprop(method = "beta") as the upper end of a two-sided
-// interval at level 1 − 2α. When v̂ = 0 (no errors, or only errors, in
-// every stratum) n* is taken as n before the t adjustment (Korn and
-// Graubard's convention for p̂ = 0; svyciprop returns NaN there). The
+// interval at level 1 − 2α. When p̂ = 0 or v̂ = 0 (no errors, or only
+// errors, in every stratum) n* is taken as n before the t adjustment (Korn
+// and Graubard's convention for p̂ = 0; svyciprop returns NaN there). The
 // degrees-of-freedom adjustment is skipped when n − H < 1. It is
 // approximate: the coverage is not guaranteed. 1 when p̂ = 1; NaN outside
 // 0 < confidence < 1.
@@ -32,7 +32,7 @@ func KornGraubardUpper(e Estimate, n int, confidence float64) float64 {
 		return 1
 	}
 	neff := float64(n)
-	if e.Variance > 0 {
+	if e.Variance > 0 && p > 0 {
 		neff = p * (1 - p) / e.Variance
 	}
 	alpha := 1 - confidence

@@ -80,3 +80,17 @@ func TestKornGraubardNoVariance(t *testing.T) {
 		t.Errorf("bound %v outside [%v, %v]", got, lo, hi)
 	}
 }
+
+// TestKornGraubardZeroErrorsWithSingletonStratum: a stratum of one item
+// gets the conservative s_h² = 1/4, so v̂ > 0 even with no error at all;
+// p̂ = 0 still takes n* = n, not 0 (which would give the useless bound 1).
+func TestKornGraubardZeroErrorsWithSingletonStratum(t *testing.T) {
+	d := Design{Strata: []Stratum{{"a", 5000, 99}, {"b", 10, 1}}}
+	e, _ := d.Stratified([]int{0, 0})
+	if !(e.Variance > 0) {
+		t.Fatalf("variance %v", e.Variance)
+	}
+	if got := KornGraubardUpper(e, 100, 0.95); !(got < 0.05) {
+		t.Errorf("bound %v for 0 errors in 100", got)
+	}
+}
