@@ -115,9 +115,9 @@ func multiplicityName(id string) string {
 func modelName(id string) string {
 	switch id {
 	case "binomial":
-		return "exact binomial (unbounded stream)"
+		return "binomial model (unbounded stream)"
 	case "hypergeometric":
-		return "exact hypergeometric (finite lot)"
+		return "hypergeometric model (finite lot)"
 	case "hoeffding":
 		return "Hoeffding inequality"
 	case "kl":

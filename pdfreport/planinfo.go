@@ -43,13 +43,17 @@ func (d *doc) planInfo(c *content) {
 	}
 	rows = append(rows,
 		kv("Per-candidate confidence", f.BoundConfidence+" (risk "+f.PerCandidateRisk+")"),
-		kv("Decision rule", joinNonEmpty("; ", p.Method, modelName(p.Model), designName(p.Design))),
+		kv("Decision rule", joinNonEmpty("; ", ruleName(p.Method, p.Model), designName(p.Design))),
 		kv("Sample size n", itoa(p.SampleSize)+" decisions"),
 	)
 	if p.Design != "sequential" {
 		rows = append(rows, kv("Acceptance number c", itoa(p.AcceptanceNumber)+" (accept when errors ≤ c)"))
 	}
-	rows = append(rows, kv("Consumer's risk", "P(accept | error = ceiling) = "+prob(p.ConsumerRisk)))
+	atCeiling := "P(accept | error = ceiling) = "
+	if p.Population > 0 {
+		atCeiling = "P(accept | lot error at the ceiling) = "
+	}
+	rows = append(rows, kv("Consumer's risk", atCeiling+prob(p.ConsumerRisk)))
 	if p.Anticipated != nil {
 		rows = append(rows, kv("Anticipated error p0", f.Anticipated))
 	}
@@ -79,4 +83,17 @@ func designName(id string) string {
 		return "sequential (stops when a boundary is reached)"
 	}
 	return id
+}
+
+// ruleName says which rule the plan uses and under which model.
+func ruleName(method, model string) string {
+	switch method {
+	case "exact":
+		return "exact test, " + modelName(model)
+	case "hoeffding":
+		return "Hoeffding bound (distribution-free)"
+	case "kl":
+		return "Chernoff bound, Kullback–Leibler form (distribution-free)"
+	}
+	return joinNonEmpty("; ", method, modelName(model))
 }
