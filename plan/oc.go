@@ -1,6 +1,9 @@
 package plan
 
-import "math"
+import (
+	"math"
+	"strconv"
+)
 
 // OCPoint is one point of a plan's operating-characteristic curve: the
 // probability that a candidate whose true error is Error is accepted.
@@ -39,7 +42,8 @@ func (f *File) OC(points int) []OCPoint {
 	top := f.ocTop()
 	out := make([]OCPoint, 0, points)
 	for i := 0; i < points; i++ {
-		e := top * float64(i) / float64(points-1)
+		// rounded to 10 significant digits so the grid reads cleanly
+		e, _ := strconv.ParseFloat(strconv.FormatFloat(top*float64(i)/float64(points-1), 'g', 10, 64), 64)
 		if N := f.Inputs.Population; N > 0 {
 			e = math.Round(snapInteger(e*float64(N))) / float64(N)
 			if len(out) > 0 && out[len(out)-1].Error == e {

@@ -236,8 +236,11 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if in.Population > 0 {
 		bad = fmt.Sprintf("a batch with %d or more errors (%s of %d)", r.BadLotErrors, pct(in.Ceiling), in.Population)
 	}
-	fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (allowed %s, confidence %s).\n",
-		bad, pct(r.ConsumerRisk), pct(r.PerCandidateRisk), pct(f.PerCandidateConfidence()))
+	allowed := fmt.Sprintf("allowed %s: %s confidence", pct(r.PerCandidateRisk), pct(in.Confidence))
+	if m > 1 && in.Multiplicity != plan.FixedSequence {
+		allowed = fmt.Sprintf("allowed %s per candidate, so %s confidence for all %d together", pct(r.PerCandidateRisk), pct(in.Confidence), m)
+	}
+	fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (%s).\n", bad, pct(r.ConsumerRisk), allowed)
 	if in.Anticipated != nil {
 		good := fmt.Sprintf("a model whose true error is the anticipated %s", pct(*in.Anticipated))
 		if in.Population > 0 {

@@ -1,0 +1,49 @@
+package main
+
+import (
+	"flag"
+	"os"
+	"path/filepath"
+	"testing"
+)
+
+var updatePlan = flag.Bool("update-plan", false, "rewrite testdata/plan golden files from the current output")
+
+// The reports for a few fixed inputs, compared byte for byte with
+// testdata/plan (go test ./cmd/probity -run PlanGolden -update-plan
+// rewrites them after a deliberate change).
+func TestPlanGolden(t *testing.T) {
+	for _, tc := range []struct {
+		name string
+		args []string
+	}{
+		{"issue-example.txt", []string{"--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01"}},
+		{"issue-example.json", []string{"--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--json"}},
+		{"zero-failure.txt", []string{"--ceiling", "0.02", "--confidence", "0.95"}},
+		{"batch-thresholds.txt", []string{"--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--population", "20000",
+			"--thresholds", "score:0.50,0.70", "--positive", "fraud", "--negative", "ok", "--multiplicity", "holm", "--require", "any"}},
+		{"budget.txt", []string{"--budget", "300", "--confidence", "0.9", "--ceiling", "0.02"}},
+	} {
+		code, out, errOut := runPlanCmd(t, tc.args...)
+		if code != exitOK || errOut != "" {
+			t.Fatalf("%s: exit %d, stderr %q", tc.name, code, errOut)
+		}
+		path := filepath.Join("..", "..", "testdata", "plan", tc.name)
+		if *updatePlan {
+			if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+				t.Fatal(err)
+			}
+			if err := os.WriteFile(path, []byte(out), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			continue
+		}
+		want, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatalf("%v (run with -update-plan to create it)", err)
+		}
+		if out != string(want) {
+			t.Errorf("%s differs from the golden file:\n--- got\n%s\n--- want\n%s", tc.name, out, want)
+		}
+	}
+}
