@@ -244,13 +244,6 @@ func (d *doc) bullet(text string) {
 	d.space(0.8)
 }
 
-// rule draws a thin horizontal line across the content width.
-func (d *doc) rule() {
-	d.drawColour(ruleColour)
-	y := d.pdf.GetY()
-	d.pdf.Line(marginX, y, marginX+d.contentW(), y)
-}
-
 func itoa(n int) string { return count(int64(n)) }
 
 // glueUnits keeps short formulas on one line: a lone "%" (or "%)", "%,"

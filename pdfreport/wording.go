@@ -74,7 +74,7 @@ func (d *doc) cautions(c *content) {
 					d.pdf.CellFormat(4, lineH, "•", "", 0, "L", false, 0, "")
 				}
 			}
-			d.font(cautionStyle(b.Bullet, i), bodySize)
+			d.font(cautionStyle(b.Bullet), bodySize)
 			d.pdf.SetXY(marginX+indent, y)
 			d.pdf.CellFormat(d.contentW()-indent, lineH, l, "", 1, "L", false, 0, "")
 		}
@@ -88,8 +88,9 @@ func (d *doc) cautions(c *content) {
 	d.space(1.5)
 }
 
-// cautionStyle is bold for the opening paragraph's lines, else regular.
-func cautionStyle(bullet bool, _ int) string {
+// cautionStyle is bold for paragraphs (the opening statement of each
+// caution) and regular for bullet items.
+func cautionStyle(bullet bool) string {
 	if bullet {
 		return ""
 	}
@@ -98,7 +99,7 @@ func cautionStyle(bullet bool, _ int) string {
 
 // barredLines wraps a caution block to the width left beside the bar.
 func (d *doc) barredLines(text string, bullet bool) []string {
-	d.font(cautionStyle(bullet, 0), bodySize)
+	d.font(cautionStyle(bullet), bodySize)
 	indent := 5.0
 	if bullet {
 		indent = 10
