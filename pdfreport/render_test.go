@@ -374,6 +374,9 @@ func TestUnusualRecordsLayOut(t *testing.T) {
 			r.Fingerprints = record.Fingerprints{}
 		}, []string{"unnamed system", "20,000 decisions (finite lot)", "exact hypergeometric", "None. Every sampled item",
 			"Not recorded.", "not recorded", "Declared use general", "Period not stated"}},
+		{"bounds at different confidences", func(r *record.Record) {
+			r.Candidates[2].BoundConfidence = 0.95
+		}, []string{"Upper bound (confidence)", "1.297 % (98.333 %)", "2.937 % (95 %)"}},
 		{"no candidates", func(r *record.Record) {
 			r.Candidates = nil
 			r.OverallVerdict = ""

@@ -56,8 +56,11 @@ func (d *doc) summary(c *content) {
 		d.body("The record lists no candidates.")
 		return
 	}
-	holm, stopped := false, false
+	holm, stopped, mixed := false, false, false
 	for _, cand := range rec.Candidates {
+		if cand.BoundConfidence != rec.Candidates[0].BoundConfidence {
+			mixed = true
+		}
 		if cand.AdjustedPValue != nil {
 			holm = true
 		}
@@ -72,9 +75,14 @@ func (d *doc) summary(c *content) {
 	if stopped {
 		cols = append(cols, column{head: "Stopped after", fit: true, align: "R"})
 	}
+	// One confidence in the header, or each bound's own when they differ.
+	boundHead := "Upper bound at " + c.fields.BoundConfidence
+	if mixed {
+		boundHead = "Upper bound (confidence)"
+	}
 	cols = append(cols, []column{
 		{head: "Estimate", fit: true, align: "R"},
-		{head: "Upper bound at " + c.fields.BoundConfidence, fit: true, align: "R"},
+		{head: boundHead, fit: true, align: "R"},
 		{head: "Ceiling", fit: true, align: "R"},
 		{head: "p-value", fit: true, align: "R"},
 	}...)
@@ -97,7 +105,7 @@ func (d *doc) summary(c *content) {
 		}
 		row = append(row, []cell{
 			{text: pct(cand.Estimate)},
-			{text: pctUp(cand.UpperBound), bold: true},
+			{text: boundText(cand, mixed), bold: true},
 			{text: c.fields.Ceiling},
 			{text: prob(cand.PValue)},
 		}...)
@@ -197,4 +205,13 @@ func joinNonEmpty(sep string, parts ...string) string {
 		}
 	}
 	return strings.Join(kept, sep)
+}
+
+// boundText is a candidate's upper bound, with its confidence when the
+// candidates' confidences differ.
+func boundText(cand record.Candidate, withConfidence bool) string {
+	if withConfidence {
+		return pctUp(cand.UpperBound) + " (" + confidence(cand.BoundConfidence) + ")"
+	}
+	return pctUp(cand.UpperBound)
 }
