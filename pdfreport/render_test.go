@@ -459,3 +459,26 @@ func TestNoHeadingEndsAPage(t *testing.T) {
 		})
 	}
 }
+
+func TestPaperAndMetadata(t *testing.T) {
+	bin := tool(t, "pdfinfo")
+	for _, tc := range []struct{ paper, want string }{{"a4", "(A4)"}, {"LETTER", "(letter)"}, {"", "(A4)"}} {
+		rec := fixtureRecord("general")
+		in := filepath.Join(t.TempDir(), "r.pdf")
+		if err := os.WriteFile(in, render(t, rec, Options{Paper: tc.paper}), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		out, err := exec.Command(bin, "-isodates", in).CombinedOutput()
+		if err != nil {
+			t.Fatalf("pdfinfo: %v: %s", err, out)
+		}
+		info := string(out)
+		for _, want := range []string{tc.want, "Producer:        probity 0.4.0-test",
+			"CreationDate:    2026-11-30T00:00:00", "ModDate:         2026-11-30T00:00:00",
+			"Title:           Acceptance record 3f9c2a71be04"} {
+			if !strings.Contains(info, want) {
+				t.Errorf("paper %q: pdfinfo lacks %q:\n%s", tc.paper, want, info)
+			}
+		}
+	}
+}
