@@ -279,7 +279,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 			} else if row.SampleSize == base {
 				note = "  the same"
 			} else if base > 0 {
-				note = fmt.Sprintf("  %.1f× this plan", float64(row.SampleSize)/float64(base))
+				note = "  " + ratio(float64(row.SampleSize)/float64(base)) + " this plan"
 			}
 			fmt.Fprintf(w, "  %-36s %10d%s\n", title, row.SampleSize, note)
 		}
@@ -331,7 +331,7 @@ func pct(p float64) string {
 	case v >= 99.99 && v < 100:
 		return "over 99.99%"
 	case v < 0.0001:
-		return "under 0.0001%"
+		return strconv.FormatFloat(v, 'g', 2, 64) + "%"
 	}
 	s := strconv.FormatFloat(v, 'f', -1, 64)
 	if d := decimalsFor(v); d >= 0 {
@@ -422,4 +422,15 @@ func zeroFailureN(ceiling, alpha float64) int {
 		return 0
 	}
 	return r.SampleSize
+}
+
+// ratio formats a size ratio: "14×", "1.5×", "0.07×".
+func ratio(x float64) string {
+	switch {
+	case x >= 10:
+		return fmt.Sprintf("%.0f×", x)
+	case x >= 1:
+		return fmt.Sprintf("%.1f×", x)
+	}
+	return fmt.Sprintf("%.2g×", x)
 }
