@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"crypto/ed25519"
 	"errors"
 	"fmt"
@@ -11,12 +12,14 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"probity/pdfreport"
 	"probity/plan"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/record/signature"
 	"probity/plan/verdict"
 	"probity/sampling"
+	"probity/templates"
 )
 
 // verifyOptions are the flags of probity verify.
@@ -27,6 +30,8 @@ type verifyOptions struct {
 	drawDir  string
 	labels   string
 	logPath  string
+	// templatesDir is the wording record.pdf was rendered with.
+	templatesDir string
 }
 
 // newVerifyCommand builds `probity verify`.
@@ -42,6 +47,8 @@ outcome:
   - record.sig's signatures over record.json and record.pdf are valid, and
     the signing key is the one record.json names; with --pub, that it is
     your trusted key (without --pub the key is only reported);
+  - record.pdf is byte for byte the rendering of record.json (A4 or Letter,
+    the built-in wording or --templates), when this probity version made it;
   - with --plan, --draw, --labels: each input's SHA-256 is the one the
     record holds; given all three, the judgement is recomputed and compared
     with record.json field by field;
@@ -76,6 +83,7 @@ failing checks say which file and what); 2 on bad usage or unreadable input.`,
 	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder, to check and recompute from")
 	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet, to check and recompute from")
 	fl.StringVar(&opts.logPath, "log", "", "the prediction log, to draw the sample again")
+	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder the record was made with, to re-render record.pdf")
 	return cmd
 }
 
@@ -127,6 +135,9 @@ func runVerify(d deps, o *verifyOptions) error {
 	}
 	verifySignatures(c, o, rec, js, trusted)
 	if rec != nil {
+		if err := verifyRendering(c, o, rec, d.version); err != nil {
+			return err
+		}
 		if err := verifyInputs(c, o, rec); err != nil {
 			return err
 		}
@@ -362,4 +373,44 @@ func short12(h string) string {
 		return h[:12]
 	}
 	return h
+}
+
+// verifyRendering renders record.json again and compares it with
+// record.pdf. A match proves the PDF shows exactly what record.json holds.
+// No match fails when the record was made by this very probity version
+// (then the PDF was changed, swapped, or made with other --templates);
+// for a record from another version it is only reported, since another
+// version may lay the record out differently (the signature still ties
+// the PDF to record.json).
+func verifyRendering(c *checkList, o *verifyOptions, rec *record.Record, version string) error {
+	pdfPath := filepath.Join(o.dir, recordPDF)
+	pdf, err := os.ReadFile(pdfPath)
+	if err != nil {
+		return nil // reported by verifySignatures
+	}
+	set, err := templates.Load(o.templatesDir)
+	if err != nil {
+		return withHint(badInput(err), "pass the --templates folder the record was made with")
+	}
+	for _, paper := range []string{"a4", "letter"} {
+		again, err := pdfreport.Render(rec, pdfreport.Options{Paper: paper, Templates: set})
+		if err != nil {
+			c.skip("%s not re-rendered: %v", pdfPath, err)
+			return nil
+		}
+		if bytes.Equal(again, pdf) {
+			c.ok("%s is exactly the rendering of %s (%s)", pdfPath, recordJSON, paper)
+			return nil
+		}
+	}
+	wording := "the built-in wording"
+	if o.templatesDir != "" {
+		wording = "the wording in " + o.templatesDir
+	}
+	if rec.ToolVersion == version {
+		c.fail("%s is not the rendering of %s with %s by this probity version (%s): it was changed or swapped, or made with other --templates (pass them)", pdfPath, recordJSON, wording, version)
+		return nil
+	}
+	c.skip("%s was not compared with a fresh rendering: the record was made by probity %s, this is %s", pdfPath, rec.ToolVersion, version)
+	return nil
 }

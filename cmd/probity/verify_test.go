@@ -42,7 +42,7 @@ func TestVerifyAllGood(t *testing.T) {
 		"record.json is a canonical record", "record.json: signature valid", "record.pdf: signature valid",
 		"signed with the trusted key", "SHA-256 matches the record's plan fingerprint", "labels fingerprint",
 		"judgement recomputed from the inputs: every field of record.json agrees",
-		"sample drawn again from " + fx.logPath, "verified: 11 checks passed",
+		"sample drawn again from " + fx.logPath, "record.pdf is exactly the rendering of record.json (a4)", "verified: 12 checks passed",
 	} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("stdout lacks %q:\n%s", want, stdout)
@@ -85,6 +85,11 @@ func TestTamperingIsDetected(t *testing.T) {
 	runProbity(t, "record", "--plan", other.planPath, "--draw", other.draw, "--labels", other.labels(t, "l.csv", nil), "--out", otherRec, "--date", "2026-11-02")
 	writeFile(t, filepath.Join(swapped, "record.pdf"), mustRead(t, filepath.Join(otherRec, "record.pdf")))
 
+	unsignedSwap := filepath.Join(fx.dir, "unsigned-swap")
+	os.Mkdir(unsignedSwap, 0o755)
+	writeFile(t, filepath.Join(unsignedSwap, "record.json"), mustRead(t, filepath.Join(rec, "record.json")))
+	writeFile(t, filepath.Join(unsignedSwap, "record.pdf"), mustRead(t, filepath.Join(otherRec, "record.pdf")))
+
 	// Another key pair (keygen in these tests reads a fixed random stream,
 	// so make this one from other bytes).
 	otherKey := filepath.Join(fx.dir, "other-key")
@@ -107,6 +112,8 @@ func TestTamperingIsDetected(t *testing.T) {
 			[]string{"FAIL  record.pdf has SHA-256", "the file was changed after signing (in " + swapped + ")"}},
 		{"another key", []string{rec, "--pub", otherKey + ".pub"},
 			[]string{"FAIL  record.sig was signed with key sha256:", "not with --pub " + otherKey + ".pub"}},
+		{"swapped PDF, unsigned", []string{unsignedSwap},
+			[]string{"FAIL  " + filepath.Join(unsignedSwap, "record.pdf") + " is not the rendering of record.json with the built-in wording by this probity version"}},
 		{"unsigned but --pub", []string{otherRec, "--pub", pub},
 			[]string{"FAIL  " + filepath.Join(otherRec, "record.sig") + " is missing: the record is not signed"}},
 	}
