@@ -54,28 +54,31 @@ func (h *hkey) less(o *hkey) bool {
 	return h[3] < o[3]
 }
 
-// slotData holds one kept row's bytes: the id then each kept value,
-// ends[i] being the end of part i. Its buffers are reused when the row is
-// pushed out, so keeping rows allocates nothing once the heap is full and
-// the buffers have grown to the longest row.
-type slotData struct {
-	line int64
-	data []byte
-	ends []int32
+// appendPart appends one field to a row record: a 4-byte little-endian
+// length, then the bytes.
+func appendPart(a []byte, v []byte) []byte {
+	a = binary.LittleEndian.AppendUint32(a, uint32(len(v)))
+	return append(a, v...)
 }
 
-func (s *slotData) part(i int) []byte {
-	start := int32(0)
-	if i > 0 {
-		start = s.ends[i-1]
+// rowParts splits a row record into its fields (id first).
+func rowParts(rec []byte) [][]byte {
+	var out [][]byte
+	for len(rec) >= 4 {
+		n := binary.LittleEndian.Uint32(rec)
+		out = append(out, rec[4:4+n])
+		rec = rec[4+n:]
 	}
-	return s.data[start:s.ends[i]]
+	return out
 }
 
-// bentry is a candidate: the key inline and the slot holding the row.
+// bentry is a candidate row: its key inline, its line, and where its
+// record lies in the retainer's arena.
 type bentry struct {
 	k    hkey
-	slot int32
+	line int64
+	off  int32
+	n    int32
 }
 
 func (h *hkey) cmp(o *hkey) int {
@@ -91,30 +94,29 @@ func (h *hkey) cmp(o *hkey) int {
 }
 
 // retainer keeps the rows with the smallest keys of one stratum, at most
-// cap of them. Rows whose key is at most the current threshold (the
-// cap-th smallest key at the last compaction) are appended to a buffer;
-// when it holds 2·cap rows it is sorted, repeated keys are resolved, and
-// only the cap smallest are kept. Each row costs an append (amortised
-// O(1), memory read in order) instead of a heap sift; a row's buffers are
-// reused once it is dropped, so keeping rows allocates nothing in the
-// steady state.
+// cap of them. A row whose key is at most the threshold (the cap-th
+// smallest key at the last compaction) is appended — its entry to buf, its
+// fields to arena, both written in order, so memory is touched
+// sequentially. When buf holds 2·cap rows it is sorted, repeated keys are
+// resolved, only the cap smallest are kept and the arena is rewritten
+// into its spare twin. Nothing is allocated once both have grown.
 //
 // A key equal to another is a repeated id (SHA-256 collisions aside): the
 // copy on the earlier line is kept and the repeat reported, so repeats
 // never take the place of other rows.
 type retainer struct {
-	cap   int
-	buf   []bentry
-	slots []slotData
-	free  []int32
+	cap          int
+	buf          []bentry
+	arena, spare []byte
 	// thr is the threshold once full is set.
 	thr  hkey
 	full bool
 	// evicted is true once a row has been dropped or refused: from then on
 	// the kept rows are exactly those with keys ≤ the largest kept.
 	evicted bool
-	// onDup receives each repeat found (set by the owner).
-	onDup func(k *hkey, kept, other *slotData)
+	// onDup receives each repeat found: the id and the kept and the
+	// repeated lines (set by the owner).
+	onDup func(k *hkey, id []byte, kept, other int64)
 }
 
 func newRetainer(capacity int) *retainer {
@@ -127,29 +129,24 @@ func (r *retainer) wants(head uint64) bool {
 	return !r.full || head <= r.thr[0]
 }
 
-// admit returns the slot the caller must fill with the row of key, or nil
-// when the key is above the threshold. The caller calls settle after
-// filling.
-func (r *retainer) admit(key *[32]byte) *slotData {
+// admit records a candidate with this key and line and reports whether
+// it was taken; if so the caller appends its fields to r.arena with
+// appendPart and then calls seal.
+func (r *retainer) admit(key *[32]byte, line int64) bool {
 	k := toHKey(key)
 	if r.cap == 0 || (r.full && r.thr.less(&k)) {
 		r.evicted = true
-		return nil
+		return false
 	}
-	var slot int32
-	if n := len(r.free); n > 0 {
-		slot = r.free[n-1]
-		r.free = r.free[:n-1]
-	} else {
-		slot = int32(len(r.slots))
-		r.slots = append(r.slots, slotData{})
-	}
-	r.buf = append(r.buf, bentry{k, slot})
-	return &r.slots[slot]
+	r.buf = append(r.buf, bentry{k: k, line: line, off: int32(len(r.arena))})
+	return true
 }
 
-// settle compacts the buffer when it has reached twice the capacity.
-func (r *retainer) settle() {
+// seal closes the record of the last admitted row and compacts when the
+// buffer has reached twice the capacity.
+func (r *retainer) seal() {
+	e := &r.buf[len(r.buf)-1]
+	e.n = int32(len(r.arena)) - e.off
 	if len(r.buf) >= 2*r.cap {
 		r.compact()
 	}
@@ -163,26 +160,32 @@ func (r *retainer) compact() {
 		if c := x.k.cmp(&y.k); c != 0 {
 			return c
 		}
-		return cmpInt64(r.slots[x.slot].line, r.slots[y.slot].line)
+		return cmpInt64(x.line, y.line)
 	})
 	out := b[:0]
 	for i := range b {
 		if len(out) > 0 && out[len(out)-1].k == b[i].k {
 			if r.onDup != nil {
-				r.onDup(&b[i].k, &r.slots[out[len(out)-1].slot], &r.slots[b[i].slot])
+				kept := &out[len(out)-1]
+				id := rowParts(r.arena[kept.off : kept.off+kept.n])[0]
+				r.onDup(&b[i].k, id, kept.line, b[i].line)
 			}
-			r.free = append(r.free, b[i].slot)
 			continue
 		}
 		out = append(out, b[i])
 	}
 	if len(out) > r.cap {
-		for _, e := range out[r.cap:] {
-			r.free = append(r.free, e.slot)
-		}
 		out = out[:r.cap]
 		r.evicted = true
 	}
+	sp := r.spare[:0]
+	for i := range out {
+		e := &out[i]
+		start := int32(len(sp))
+		sp = append(sp, r.arena[e.off:e.off+e.n]...)
+		e.off = start
+	}
+	r.spare, r.arena = r.arena[:0], sp
 	r.buf = out
 	if len(out) == r.cap && r.cap > 0 {
 		r.thr = out[len(out)-1].k
@@ -206,10 +209,10 @@ func (r *retainer) rows(stratum string) []Row {
 	r.compact()
 	out := make([]Row, len(r.buf))
 	for i, e := range r.buf {
-		s := &r.slots[e.slot]
-		row := Row{Key: e.k.bytes(), Line: s.line, ID: string(s.part(0)), Stratum: stratum, Values: make([]string, len(s.ends)-1)}
+		parts := rowParts(r.arena[e.off : e.off+e.n])
+		row := Row{Key: e.k.bytes(), Line: e.line, ID: string(parts[0]), Stratum: stratum, Values: make([]string, len(parts)-1)}
 		for j := range row.Values {
-			row.Values[j] = string(s.part(j + 1))
+			row.Values[j] = string(parts[j+1])
 		}
 		out[i] = row
 	}

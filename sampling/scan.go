@@ -588,8 +588,8 @@ func (s *scanner) newWorker() *worker {
 // retainer finds become the worker's repeat events.
 func (w *worker) newStratum(label string) *wstratum {
 	st := &wstratum{label: label, ret: newRetainer(w.s.spec.Capacity)}
-	st.ret.onDup = func(k *hkey, kept, other *slotData) {
-		w.dups = append(w.dups, dupEvent{key: k.bytes(), stratum: label, id: string(kept.part(0)), kept: kept.line, other: other.line})
+	st.ret.onDup = func(k *hkey, id []byte, kept, other int64) {
+		w.dups = append(w.dups, dupEvent{key: k.bytes(), stratum: label, id: string(id), kept: kept, other: other})
 	}
 	w.strata[label] = st
 	w.table.insert(st)
@@ -744,24 +744,17 @@ func (w *worker) process(line int64, nf int) *InputError {
 	if !st.ret.wants(binary.BigEndian.Uint64(key[:8])) {
 		return nil
 	}
-	if slot := st.ret.admit(&key); slot != nil {
-		w.fill(slot, line)
-		st.ret.settle()
+	if r := st.ret; r.admit(&key, line) {
+		a := appendPart(r.arena, id)
+		for _, sl := range s.keepSlots {
+			a = appendPart(a, w.vals[sl])
+		}
+		r.arena = a
+		r.seal()
 	}
 	return nil
 }
 
-// fill copies the current record's id and kept values into a slot.
-func (w *worker) fill(s *slotData, line int64) {
-	sc := w.s
-	s.line = line
-	s.data = append(s.data[:0], w.vals[sc.idSlot]...)
-	s.ends = append(s.ends[:0], int32(len(s.data)))
-	for _, sl := range sc.keepSlots {
-		s.data = append(s.data, w.vals[sl]...)
-		s.ends = append(s.ends, int32(len(s.data)))
-	}
-}
 
 // parseScore parses a band value without allocating.
 func parseScore(v []byte) (float64, error) {
