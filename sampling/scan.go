@@ -755,7 +755,6 @@ func (w *worker) process(line int64, nf int) *InputError {
 	return nil
 }
 
-
 // parseScore parses a band value without allocating.
 func parseScore(v []byte) (float64, error) {
 	v = bytes.TrimSpace(v)
