@@ -34,6 +34,7 @@ type recordOptions struct {
 	templatesDir    string
 	bound           string
 	force           bool
+	json            bool
 }
 
 // newRecordCommand builds `probity record`.
@@ -100,6 +101,7 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 	fl.StringVar(&opts.templatesDir, "templates", "", "folder of wording files overriding the built-in ones")
 	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard, "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
+	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
 	return cmd
 }
 
@@ -223,7 +225,11 @@ func runRecord(d deps, o *recordOptions) error {
 	if err := writeRecordFolder(o.out, files, o.force); err != nil {
 		return err
 	}
-	writeRecordSummary(d, o, rec, files)
+	if o.json {
+		d.stdout.Write(files[0].data)
+	} else {
+		writeRecordSummary(d, o, rec, files)
+	}
 	if rec.OverallVerdict != record.Accept {
 		return rejected("")
 	}

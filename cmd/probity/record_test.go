@@ -228,3 +228,13 @@ func TestRecordUnequalWeights(t *testing.T) {
 		}
 	}
 }
+
+func TestRecordJSONPrintsTheRecord(t *testing.T) {
+	fx := newRecFixture(t, false, 0)
+	labels := fx.labels(t, "labels.csv", nil)
+	out := filepath.Join(fx.dir, "rec")
+	code, stdout, _ := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", out, "--json")
+	if code != exitOK || stdout != string(mustRead(t, filepath.Join(out, "record.json"))) {
+		t.Errorf("exit %d; stdout is not record.json:\n%s", code, stdout)
+	}
+}
