@@ -47,7 +47,11 @@ func (d *doc) planInfo(c *content) {
 		kv("Sample size n", itoa(p.SampleSize)+" decisions"),
 	)
 	if p.Design != "sequential" {
-		rows = append(rows, kv("Acceptance number c", itoa(p.AcceptanceNumber)+" (accept when errors ≤ c)"))
+		use := " (accept when errors ≤ c)"
+		if f.Weighted {
+			use = " (for a self-weighting sample; this one is weighted, so the bound decides)"
+		}
+		rows = append(rows, kv("Acceptance number c", itoa(p.AcceptanceNumber)+use))
 	}
 	atCeiling := "P(accept | error = ceiling) = "
 	if p.Population > 0 {
