@@ -35,24 +35,30 @@ func (w *worker) chunkPlain(c chunk) {
 	recStart, fieldStart, nf := 0, 0, 0
 	for i := 0; i < n; {
 		base := i
-		var m uint64
+		var m, mnl uint64
 		if i+8 <= n {
 			x := binary.LittleEndian.Uint64(data[i:])
-			m = zeroBytes(x^sepMask) | zeroBytes(x^nlMask)
+			mnl = zeroBytes(x ^ nlMask)
+			m = zeroBytes(x^sepMask) | mnl
 			i += 8
 		} else {
 			for j := i; j < n; j++ {
-				if b := data[j]; b == sep || b == '\n' {
+				switch data[j] {
+				case '\n':
+					mnl |= 0x80 << (8 * uint(j-i))
+				case sep:
 					m |= 0x80 << (8 * uint(j-i))
 				}
 			}
+			m |= mnl
 			i = n
 		}
 		for m != 0 {
+			bit := m & -m
 			pos := base + bits.TrailingZeros64(m)>>3
-			m &= m - 1
+			m &^= bit
 			end := pos
-			nl := data[pos] == '\n'
+			nl := mnl&bit != 0
 			if nl && end > fieldStart && data[end-1] == '\r' {
 				end--
 			}
