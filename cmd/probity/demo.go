@@ -74,14 +74,14 @@ type demoRun struct {
 }
 
 func runDemo(d deps, o *demoOptions) error {
-	sc := demolog.Default()
+	months := demolog.Months()
+	sc := months[len(months)-1]
 	if err := prepareDemoDir(o.out, o.force); err != nil {
 		return err
 	}
 	// The steps run inside DIR with relative paths, as a user would type
 	// them: the transcript can be replayed there, and the artifacts (which
 	// record the paths they were given) do not depend on where DIR is.
-	shown := o.out
 	back, err := os.Getwd()
 	if err != nil {
 		return err
@@ -90,16 +90,11 @@ func runDemo(d deps, o *demoOptions) error {
 		return badInput(err)
 	}
 	defer os.Chdir(back)
-	at := func(parts ...string) string { return filepath.Join(parts...) }
-	outPath := func(parts ...string) string { return filepath.Join(append([]string{shown}, parts...)...) }
+	shown := func(p string) string { return filepath.Join(o.out, p) }
 	var transcript bytes.Buffer
-	fmt.Fprintf(&transcript, "probity demo — %s\n%s %s %s.\nEverything here is invented.\n\n", version, sc.Organisation, sc.System, sc.Description)
+	fmt.Fprintf(&transcript, "probity demo — %s\n%s: %s %s.\nEverything here is invented.\n\n", version, sc.Organisation, sc.System, sc.Description)
 
-	logPath := at("prediction-log-2026-11.csv.gz")
-	if err := writeDemoFile(logPath, sc.WriteLogGzip); err != nil {
-		return err
-	}
-	if err := writeDemoFile(at("signoff.yaml"), func(w io.Writer) error { _, err := io.WriteString(w, demoSignoff); return err }); err != nil {
+	if err := writeDemoFile("signoff.yaml", func(w io.Writer) error { _, err := io.WriteString(w, demoSignoff); return err }); err != nil {
 		return err
 	}
 	step := func(args ...string) (demoRun, error) {
@@ -110,7 +105,7 @@ func runDemo(d deps, o *demoOptions) error {
 		return r, nil
 	}
 
-	planPath, drawDir := at("plan.yaml"), at("draw-2026-11")
+	const planPath, keyPath = "plan.yaml", "keys/demo-signing-key"
 	plan, err := step("plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--producer-risk", "0.10",
 		"--thresholds", "defect_score:0.35,0.50,0.65", "--positive", demolog.Defect, "--negative", demolog.Sound,
 		"--require", "any", "--system", sc.System, "--system-version", sc.SystemVersion,
@@ -118,19 +113,6 @@ func runDemo(d deps, o *demoOptions) error {
 	if err != nil {
 		return err
 	}
-	if _, err := step("draw", "--plan", planPath, "--log", logPath, "--out", drawDir, "--period", "2026-11",
-		"--strata", "section", "--spare", "2", "--show", "scan_ref,inspected_on,weld_type", "--quiet"); err != nil {
-		return err
-	}
-
-	labelsPath, summary, err := demoLabel(sc, drawDir, at("labels"))
-	if err != nil {
-		return err
-	}
-	fmt.Fprintf(&transcript, "# simulated labeling: %d items labeled from the hidden truth by %s; %d marked unsure (%s), replaced by spares %s\n\n",
-		summary.Labeled, demolog.Labeler, len(summary.Unsure), strings.Join(summary.Unsure, ", "), strings.Join(summary.SparesUsed, ", "))
-
-	keyPath := at("keys", "demo-signing-key")
 	if err := os.MkdirAll(filepath.Dir(keyPath), 0o700); err != nil {
 		return err
 	}
@@ -139,40 +121,122 @@ func runDemo(d deps, o *demoOptions) error {
 	if r := runDemoStep(keyDeps, &transcript, []string{"keygen", "--out", keyPath}); r.code != exitOK {
 		return &internalError{msg: "demo step keygen failed: " + firstLine(r.stderr)}
 	}
-	recDir := at("record-2026-11")
-	rec, err := step("record", "--plan", planPath, "--draw", drawDir, "--labels", labelsPath, "--out", recDir,
-		"--use", "safety", "--signoff", at("signoff.yaml"), "--sign-key", keyPath, "--date", demolog.Clock.Format("2006-01-02"))
-	if err != nil {
-		return err
-	}
-	ver, err := step("verify", recDir, "--pub", keyPath+".pub", "--plan", planPath, "--draw", drawDir, "--labels", labelsPath, "--log", logPath)
-	if err != nil {
-		return err
-	}
-	if err := writeDemoFile(at("transcript.txt"), func(w io.Writer) error { _, err := w.Write(transcript.Bytes()); return err }); err != nil {
-		return err
-	}
 
 	w := d.stdout
 	fmt.Fprintf(w, "probity demo: %s — %s (invented scenario)\n", sc.Organisation, sc.System)
-	fmt.Fprintf(w, "  log     %s  (%d decisions, 4 line sections, tunnels rare)\n", outPath(logPath), sc.Rows)
-	fmt.Fprintf(w, "  plan    %s  %s\n", outPath(planPath), firstLine(plan.stdout))
-	fmt.Fprintf(w, "  draw    %s/  worksheet.csv, ledger.csv, manifest.json (period 2026-11)\n", outPath(drawDir))
-	fmt.Fprintf(w, "  labels  %s  (%d labeled, %d unsure replaced by spares)\n", outPath(labelsPath), summary.Labeled, len(summary.Unsure))
-	fmt.Fprintf(w, "  record  %s  (exit %d)\n", outPath(recDir, "record.pdf"), rec.code)
-	for _, l := range indentedLines(rec.stdout, 10) {
-		fmt.Fprintf(w, "          %s\n", l)
+	fmt.Fprintf(w, "  plan      %s: %s\n", shown(planPath), firstLine(plan.stdout))
+	var recDirs []string
+	var last demoMonth
+	for i, m := range months {
+		res, err := runDemoMonth(m, step, &transcript, keyPath, i == len(months)-1)
+		if err != nil {
+			return err
+		}
+		recDirs = append(recDirs, res.recDir)
+		last = res
+		fmt.Fprintf(w, "  %s   log     %s (%d decisions)\n", m.Month, shown(res.logPath), m.Rows)
+		fmt.Fprintf(w, "            sample  %s/ (%d items labeled; %d unsure replaced by spares)\n", shown(res.drawDir), res.labeled, res.unsure)
+		fmt.Fprintf(w, "            record  %s (%s, exit %d)\n", shown(filepath.Join(res.recDir, "record.pdf")), demoOverall(res.record.stdout), res.record.code)
+	}
+	for _, l := range indentedLines(last.record.stdout, 6)[1:] {
+		fmt.Fprintf(w, "            %s\n", l)
+	}
+	ver, err := step("verify", last.recDir, "--pub", keyPath+".pub", "--plan", planPath, "--draw", last.drawDir, "--labels", last.labelsPath, "--log", last.logPath)
+	if err != nil {
+		return err
+	}
+	trend, err := step(append(append([]string{"trend"}, recDirs...), "--chart", "trend")...)
+	if err != nil {
+		return err
+	}
+	if err := writeDemoFile("transcript.txt", func(w io.Writer) error { _, err := w.Write(transcript.Bytes()); return err }); err != nil {
+		return err
 	}
 	verdict := "all checks passed"
 	if ver.code != exitOK {
 		verdict = "FAILED: " + firstLine(ver.stdout+ver.stderr)
 	}
-	fmt.Fprintf(w, "  verify  %s\n", verdict)
-	fmt.Fprintf(w, "every command and its output: %s (replay it inside %s)\n", outPath("transcript.txt"), shown)
+	fmt.Fprintf(w, "  verify    %s: %s\n", shown(last.recDir), verdict)
+	fmt.Fprintf(w, "  trend     %s, %s (exit %d): %s\n", shown("trend.png"), shown("trend.pdf"), trend.code, demoTrendFlags(trend.stdout))
+	fmt.Fprintf(w, "every command and its output: %s (replay it inside %s)\n", shown("transcript.txt"), o.out)
 	if ver.code != exitOK {
 		return rejected("the demo's record did not verify")
 	}
 	return nil
+}
+
+// demoMonth is what one audited month of the demo produced.
+type demoMonth struct {
+	logPath, drawDir, labelsPath, recDir string
+	labeled, unsure                      int
+	record                               demoRun
+}
+
+// runDemoMonth writes one month's log, draws its sample, labels it from
+// the hidden truth and issues its signed record. For the latest month it
+// also asks `progress` about the first 400 labels, as an operator would
+// midway through labeling.
+func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), transcript *bytes.Buffer, keyPath string, latest bool) (demoMonth, error) {
+	res := demoMonth{
+		logPath:    "prediction-log-" + m.Month + ".csv.gz",
+		drawDir:    "draw-" + m.Month,
+		labelsPath: filepath.Join("labels-"+m.Month, "worksheet-labeled.csv"),
+		recDir:     "record-" + m.Month,
+	}
+	if err := writeDemoFile(res.logPath, m.WriteLogGzip); err != nil {
+		return res, err
+	}
+	if _, err := step("draw", "--plan", "plan.yaml", "--log", res.logPath, "--out", res.drawDir, "--period", m.Month,
+		"--strata", "section", "--spare", "2", "--show", "scan_ref,inspected_on,weld_type", "--quiet"); err != nil {
+		return res, err
+	}
+	summary, err := demoLabel(m, res.drawDir, res.labelsPath, 0)
+	if err != nil {
+		return res, err
+	}
+	res.labeled, res.unsure = summary.Labeled, len(summary.Unsure)
+	fmt.Fprintf(transcript, "# simulated labeling of %s: %d items labeled from the hidden truth by %s; %d marked unsure (%s), replaced by spares %s\n\n",
+		m.Month, summary.Labeled, demolog.Labeler, len(summary.Unsure), strings.Join(summary.Unsure, ", "), strings.Join(summary.SparesUsed, ", "))
+	if latest {
+		partial := filepath.Join("labels-"+m.Month, "worksheet-first-400.csv")
+		if _, err := demoLabel(m, res.drawDir, partial, 400); err != nil {
+			return res, err
+		}
+		if _, err := step("progress", "--plan", "plan.yaml", "--draw", res.drawDir, "--labels", partial); err != nil {
+			return res, err
+		}
+	}
+	date := demolog.Clock.Format("2006-01-02")
+	if !latest {
+		date = demolog.Clock.AddDate(0, -1, 0).Format("2006-01-02")
+	}
+	res.record, err = step("record", "--plan", "plan.yaml", "--draw", res.drawDir, "--labels", res.labelsPath, "--out", res.recDir,
+		"--use", "safety", "--signoff", "signoff.yaml", "--sign-key", keyPath, "--date", date)
+	return res, err
+}
+
+// demoOverall picks the overall verdict out of record's output.
+func demoOverall(out string) string {
+	for _, l := range strings.Split(out, "\n") {
+		if v, ok := strings.CutPrefix(l, "overall: "); ok && v != "" {
+			return "overall " + strings.Fields(v)[0]
+		}
+	}
+	return "no verdict printed"
+}
+
+// demoTrendFlags picks the flag lines out of trend's output.
+func demoTrendFlags(out string) string {
+	var flags []string
+	for _, l := range strings.Split(out, "\n") {
+		if strings.Contains(l, "flagged:") {
+			flags = append(flags, strings.Join(strings.Fields(l), " "))
+		}
+	}
+	if len(flags) == 0 {
+		return "no month flagged against the baseline"
+	}
+	return strings.Join(flags, "; ")
 }
 
 // runDemoStep runs one probity command line in a fresh command tree with
@@ -195,35 +259,36 @@ func runDemoStep(d deps, transcript *bytes.Buffer, args []string) demoRun {
 }
 
 // demoLabel fills the drawn worksheet from the scenario's hidden truth and
-// writes it to dir/worksheet-labeled.csv.
-func demoLabel(sc demolog.Scenario, drawDir, dir string) (string, demolog.LabelingSummary, error) {
+// writes it to path. With prefix > 0 only the first prefix items keep their
+// labels, as midway through labeling from the top.
+func demoLabel(sc demolog.Scenario, drawDir, path string, prefix int) (demolog.LabelingSummary, error) {
 	var sum demolog.LabelingSummary
 	m, _, err := sampling.ReadManifest(filepath.Join(drawDir, sampling.ManifestFile))
 	if err != nil {
-		return "", sum, err
+		return sum, err
 	}
 	_, rows, err := sampling.ReadWorksheet(filepath.Join(drawDir, sampling.WorksheetFile))
 	if err != nil {
-		return "", sum, err
+		return sum, err
 	}
 	names, err := demoCandidateNames(drawDir)
 	if err != nil {
-		return "", sum, err
+		return sum, err
 	}
 	ledger, err := sampling.ReadLedger(filepath.Join(drawDir, sampling.LedgerFile), names)
 	if err != nil {
-		return "", sum, err
+		return sum, err
 	}
 	labeled, sum, err := sc.Label(rows, ledger, demoUnsureAt)
 	if err != nil {
-		return "", sum, err
+		return sum, err
 	}
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return "", sum, err
+	if prefix > 0 {
+		for i := prefix; i < len(labeled); i++ {
+			labeled[i].Label, labeled[i].Note, labeled[i].Labeler = "", "", ""
+		}
 	}
-	path := filepath.Join(dir, "worksheet-labeled.csv")
-	err = writeDemoFile(path, func(w io.Writer) error { return sampling.WriteWorksheet(w, m.ShowColumns, labeled) })
-	return path, sum, err
+	return sum, writeDemoFile(path, func(w io.Writer) error { return sampling.WriteWorksheet(w, m.ShowColumns, labeled) })
 }
 
 // demoCandidateNames reads the candidate columns from the ledger header.

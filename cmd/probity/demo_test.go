@@ -52,7 +52,7 @@ func TestDemoEndToEnd(t *testing.T) {
 		if code != exitOK {
 			t.Fatalf("demo exit %d\nstdout:\n%s\nstderr:\n%s", code, out.String(), errb.String())
 		}
-		for _, want := range []string{"invented", "record.pdf", "verify  all checks passed"} {
+		for _, want := range []string{"invented", "record-2026-11/record.pdf (overall ACCEPT, exit 0)", "all checks passed", "trend.png"} {
 			if !strings.Contains(out.String(), want) {
 				t.Errorf("demo output lacks %q:\n%s", want, out.String())
 			}
@@ -61,11 +61,13 @@ func TestDemoEndToEnd(t *testing.T) {
 	a := filepath.Join(t.TempDir(), "demo-a")
 	runOnce(a)
 
-	files := []string{
-		"prediction-log-2026-11.csv.gz", "plan.yaml", "signoff.yaml", "transcript.txt",
-		"draw-2026-11/worksheet.csv", "draw-2026-11/ledger.csv", "draw-2026-11/manifest.json",
-		"labels/worksheet-labeled.csv", "keys/demo-signing-key", "keys/demo-signing-key.pub",
-		"record-2026-11/record.json", "record-2026-11/record.pdf", "record-2026-11/record.sig",
+	files := []string{"plan.yaml", "signoff.yaml", "transcript.txt", "trend.png", "trend.pdf",
+		"keys/demo-signing-key", "keys/demo-signing-key.pub", "labels-2026-11/worksheet-first-400.csv"}
+	for _, m := range []string{"2026-10", "2026-11"} {
+		files = append(files, "prediction-log-"+m+".csv.gz",
+			"draw-"+m+"/worksheet.csv", "draw-"+m+"/ledger.csv", "draw-"+m+"/manifest.json",
+			"labels-"+m+"/worksheet-labeled.csv",
+			"record-"+m+"/record.json", "record-"+m+"/record.pdf", "record-"+m+"/record.sig")
 	}
 	for _, f := range files {
 		if st, err := os.Stat(filepath.Join(a, f)); err != nil || st.Size() == 0 {
@@ -101,7 +103,7 @@ func TestDemoEndToEnd(t *testing.T) {
 		t.Errorf("record use %q period %q date %q", rec.Use, rec.Period, rec.Date)
 	}
 	if rec.Fingerprints.Plan != sha256File(t, filepath.Join(a, "plan.yaml")) ||
-		rec.Fingerprints.Labels != sha256File(t, filepath.Join(a, "labels", "worksheet-labeled.csv")) ||
+		rec.Fingerprints.Labels != sha256File(t, filepath.Join(a, "labels-2026-11", "worksheet-labeled.csv")) ||
 		rec.Fingerprints.Log != m.Log.SHA256 {
 		t.Errorf("record fingerprints do not match the files: %+v", rec.Fingerprints)
 	}
@@ -112,8 +114,8 @@ func TestDemoEndToEnd(t *testing.T) {
 	if len(rec.Candidates) != 3 || rec.OverallVerdict != record.Accept {
 		t.Fatalf("want 3 candidates and an overall ACCEPT (require any), got %d, %s: %v", len(rec.Candidates), rec.OverallVerdict, verdicts)
 	}
-	// The scenario's true error rates (sampling/demolog): 3.1 % at 0.35,
-	// 0.67 % at 0.50, 0.80 % at 0.65, against a 2 % ceiling.
+	// The scenario's true error rates in November (sampling/demolog): 3.1 %
+	// at 0.35, 0.67 % at 0.50, 0.80 % at 0.65, against a 2 % ceiling.
 	for name, v := range verdicts {
 		want := record.Accept
 		if strings.Contains(name, "0.35") {
@@ -132,8 +134,19 @@ func TestDemoEndToEnd(t *testing.T) {
 	rd := filepath.Join(a, "record-2026-11")
 	if code := run([]string{"verify", rd, "--pub", filepath.Join(a, "keys", "demo-signing-key.pub"),
 		"--plan", filepath.Join(a, "plan.yaml"), "--draw", filepath.Join(a, "draw-2026-11"),
-		"--labels", filepath.Join(a, "labels", "worksheet-labeled.csv")}, demoDeps(&out, &errb)); code != exitOK {
+		"--labels", filepath.Join(a, "labels-2026-11", "worksheet-labeled.csv")}, demoDeps(&out, &errb)); code != exitOK {
 		t.Fatalf("verify exit %d:\n%s\n%s", code, out.String(), errb.String())
+	}
+
+	// The transcript shows the monthly steps: progress midway and the trend.
+	tr, err := os.ReadFile(filepath.Join(a, "transcript.txt"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"$ probity progress ", "Labeled from the top: 400 of", "$ probity trend record-2026-10 record-2026-11", "latest period 2026-11"} {
+		if !bytes.Contains(tr, []byte(want)) {
+			t.Errorf("transcript lacks %q", want)
+		}
 	}
 
 	if _, err := exec.LookPath("pdftotext"); err == nil {

@@ -15,6 +15,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"strconv"
+	"strings"
 )
 
 // Scenario is the invented audit: who, what, and how the log is made.
@@ -28,6 +29,8 @@ type Scenario struct {
 	Description string
 	// Rows is the number of decisions in the log.
 	Rows int
+	// Month is the period the log covers, YYYY-MM.
+	Month string
 	// Seed drives the generator.
 	Seed uint64
 	// Sections are the strata, with their share of rows and their defect
@@ -62,6 +65,7 @@ func Default() Scenario {
 		SystemVersion: "3.2.0",
 		Description:   "flags ultrasonic scans of rail welds as defect or sound; a missed defect can lead to a rail break",
 		Rows:          240000,
+		Month:         "2026-11",
 		Seed:          20261101,
 		Sections: []Section{
 			{Name: "mainline-north", Share: 0.45, Prevalence: 0.025},
@@ -72,6 +76,15 @@ func Default() Scenario {
 		SoundShape:  8,
 		DefectShape: 3.2,
 	}
+}
+
+// Months returns the scenario's two audited months, October then November
+// 2026. October's classifier misses fewer defects (DefectShape 4.0 against
+// 3.2): the November audit shows the drift a monthly re-check exists for.
+func Months() []Scenario {
+	oct := Default()
+	oct.Month, oct.Seed, oct.DefectShape, oct.Rows = "2026-10", 20261001, 4.0, 232000
+	return []Scenario{oct, Default()}
 }
 
 // Row is one decision of the log with its hidden truth.
@@ -89,15 +102,22 @@ type Row struct {
 // Header is the log's column list, in order.
 var Header = []string{"record_id", "inspected_on", "section", "weld_type", "scan_ref", "defect_score"}
 
-// RecordID returns the id of row i (0-based).
-func RecordID(i int) string { return fmt.Sprintf("WS-%07d", i+1) }
+// idPrefix is "WS" and the month as YYMM, e.g. "WS2611-" for 2026-11, so
+// the ids of different months never collide.
+func (s Scenario) idPrefix() string {
+	return "WS" + strings.ReplaceAll(s.Month, "-", "")[2:] + "-"
+}
+
+// RecordID returns the id of row i (0-based), e.g. WS2611-0000001.
+func (s Scenario) RecordID(i int) string { return fmt.Sprintf("%s%07d", s.idPrefix(), i+1) }
 
 // Index returns the row index of a record id made by RecordID, or -1.
-func Index(id string) int {
-	if len(id) != 10 || id[:3] != "WS-" {
+func (s Scenario) Index(id string) int {
+	p := s.idPrefix()
+	if len(id) != len(p)+7 || !strings.HasPrefix(id, p) {
 		return -1
 	}
-	n, err := strconv.Atoi(id[3:])
+	n, err := strconv.Atoi(id[len(p):])
 	if err != nil || n < 1 {
 		return -1
 	}
@@ -134,13 +154,13 @@ func (s Scenario) Row(i int) Row {
 	if r.Float64() < 0.4 {
 		weld = "flash-butt"
 	}
-	id := RecordID(i)
+	id := s.RecordID(i)
 	return Row{
 		RecordID:    id,
-		InspectedOn: fmt.Sprintf("2026-11-%02d", 1+r.IntN(30)),
+		InspectedOn: fmt.Sprintf("%s-%02d", s.Month, 1+r.IntN(30)),
 		Section:     sec.Name,
 		WeldType:    weld,
-		ScanRef:     "scans/2026-11/" + id + ".ust",
+		ScanRef:     "scans/" + s.Month + "/" + id + ".ust",
 		Score:       score,
 		Truth:       truth,
 	}
@@ -164,7 +184,7 @@ func (s Scenario) WriteLog(w io.Writer) error {
 // Truth returns the hidden true label of a record id, or "" when the id is
 // not in the scenario's log.
 func (s Scenario) Truth(id string) string {
-	i := Index(id)
+	i := s.Index(id)
 	if i < 0 || i >= s.Rows {
 		return ""
 	}

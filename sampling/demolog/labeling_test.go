@@ -12,7 +12,7 @@ func fixture(s Scenario) ([]sampling.WorksheetRow, []sampling.LedgerRow) {
 	var ws []sampling.WorksheetRow
 	var lg []sampling.LedgerRow
 	for i, st := range strata {
-		id := RecordID(i * 7)
+		id := s.RecordID(i * 7)
 		ws = append(ws, sampling.WorksheetRow{Item: i + 1, RecordID: id})
 		lg = append(lg, sampling.LedgerRow{Item: i + 1, RecordID: id, Stratum: st, Spare: i >= 6})
 	}
