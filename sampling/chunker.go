@@ -1,0 +1,162 @@
+package sampling
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+)
+
+// readError turns a read failure into an InputError (a truncated gzip
+// stream, most often).
+func (s *scanner) readError(err error, lines int64) *InputError {
+	where := ""
+	if lines > 0 {
+		where = fmt.Sprintf(" after line %d", lines)
+	}
+	if errors.Is(err, io.ErrUnexpectedEOF) {
+		e := inputErrorf(s.spec.Name, 0, "", "the compressed data ends early%s: the file is truncated", where)
+		e.Err = err
+		e.Hint = "the file was cut short while copying or compressing; fetch it again"
+		return e
+	}
+	e := inputErrorf(s.spec.Name, 0, "", "cannot read the log%s: %v", where, err)
+	e.Err = err
+	return e
+}
+
+// readMore appends to buf from r until buf holds size bytes or r ends.
+func readMore(r io.Reader, buf []byte, size int) ([]byte, error) {
+	if cap(buf) < size {
+		nb := make([]byte, len(buf), size)
+		copy(nb, buf)
+		buf = nb
+	}
+	for len(buf) < cap(buf) {
+		n, err := r.Read(buf[len(buf):cap(buf)])
+		buf = buf[:len(buf)+n]
+		if err != nil {
+			return buf, err
+		}
+	}
+	return buf, nil
+}
+
+// recordEnd returns the end (past the '\n') of the last complete record in
+// buf, or 0 when there is none; at EOF the rest of buf is a record.
+// For CSV a newline inside a quoted field does not end a record.
+func (s *scanner) recordEnd(buf []byte, eof bool) int {
+	if eof {
+		return len(buf)
+	}
+	if s.format != FormatCSV && s.format != "" || bytes.IndexByte(buf, '"') < 0 {
+		return bytes.LastIndexByte(buf, '\n') + 1
+	}
+	in := false
+	last := 0
+	for i, c := range buf {
+		switch c {
+		case '"':
+			in = !in
+		case '\n':
+			if !in {
+				last = i + 1
+			}
+		}
+	}
+	return last
+}
+
+// firstRecordEnd returns the end (past the '\n') of the first record in
+// buf, 0 when it is incomplete; at EOF the whole of buf may be it.
+func (s *scanner) firstRecordEnd(buf []byte, eof bool) int {
+	in := false
+	for i, c := range buf {
+		switch {
+		case c == '"' && s.format == FormatCSV:
+			in = !in
+		case c == '\n' && !in:
+			return i + 1
+		}
+	}
+	if eof {
+		return len(buf)
+	}
+	return 0
+}
+
+// trimEOL removes a final "\n" or "\r\n".
+func trimEOL(b []byte) []byte {
+	b = bytes.TrimSuffix(b, []byte("\n"))
+	return bytes.TrimSuffix(b, []byte("\r"))
+}
+
+// feed cuts the stream into chunks that end on record boundaries and
+// sends them to the workers. It returns the number of lines read.
+func (s *scanner) feed(r io.Reader, rest []byte, rerr error, out chan<- chunk, pool chan *[]byte) (int64, *InputError) {
+	line := s.dataLine
+	var seq int64
+	carry := append([]byte(nil), rest...)
+	allocated := 0
+	eof := rerr != nil
+	if rerr != nil && rerr != io.EOF {
+		return line - 1, s.readError(rerr, line-1)
+	}
+	for {
+		if seq > s.errSeq.Load() {
+			return line - 1, nil
+		}
+		var bp *[]byte
+		select {
+		case bp = <-pool:
+		default:
+			if allocated < cap(pool) {
+				b := make([]byte, 0, s.spec.ChunkSize)
+				bp = &b
+				allocated++
+			} else {
+				bp = <-pool
+			}
+		}
+		buf := append((*bp)[:0], carry...)
+		var err error
+		size := s.spec.ChunkSize
+		if len(buf) >= size {
+			size = 2 * len(buf)
+		}
+		if !eof {
+			buf, err = readMore(r, buf, size)
+			if err != nil {
+				if err != io.EOF {
+					return line - 1, s.readError(err, line-1)
+				}
+				eof = true
+			}
+		}
+		if len(buf) == 0 {
+			pool <- bp
+			break
+		}
+		end := s.recordEnd(buf, eof)
+		if end == 0 {
+			// No record ends in this buffer: read a bigger one.
+			carry = append(carry[:0], buf...)
+			*bp = buf[:0]
+			pool <- bp
+			continue
+		}
+		carry = append(carry[:0], buf[end:]...)
+		data := buf[:end]
+		*bp = buf
+		out <- chunk{seq: seq, line: line, data: data, buf: bp}
+		seq++
+		line += int64(bytes.Count(data, []byte{'\n'}))
+		if s.spec.Progress != nil {
+			s.spec.Progress(Progress{Bytes: s.ol.raw.n, Lines: line - 1})
+		}
+		if eof && len(carry) == 0 {
+			break
+		}
+	}
+	return line - 1, nil
+}

@@ -1,0 +1,253 @@
+package sampling
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/binary"
+	"encoding/json"
+	"errors"
+	"strconv"
+	"unsafe"
+)
+
+// worker parses, hashes and retains the rows of the chunks it is given.
+type worker struct {
+	s       *scanner
+	split   fieldSplitter
+	json    jsonFields
+	vals    [][]byte
+	hbuf    []byte
+	plen    int
+	label   []byte
+	strata  map[string]*wstratum
+	table   stratumTable
+	single  *wstratum
+	rows    int64
+	dups    []dupEvent
+	seq     int64
+	tooMany bool
+}
+
+type wstratum struct {
+	hash  uint64
+	label string
+	count int64
+	ret   *retainer
+}
+
+type dupEvent struct {
+	key     [32]byte
+	stratum string
+	id      string
+	kept    int64
+	other   int64
+}
+
+func (s *scanner) newWorker() *worker {
+	w := &worker{s: s, strata: map[string]*wstratum{}, table: newStratumTable()}
+	w.vals = make([][]byte, len(s.slotCols))
+	switch s.format {
+	case FormatJSONL:
+		w.json = jsonFields{names: s.slotCols, vals: w.vals, obj: map[string]json.RawMessage{}}
+	case FormatTSV:
+		w.split = fieldSplitter{sep: '\t', vals: w.vals}
+		w.split.setNeed(s.need)
+	default:
+		w.split = fieldSplitter{sep: ',', quoted: true, vals: w.vals}
+		w.split.setNeed(s.need)
+	}
+	w.hbuf = append([]byte(s.spec.Seed), ':')
+	w.plen = len(w.hbuf)
+	if len(s.strataSlots) == 0 && len(s.bandSlots) == 0 {
+		w.single = w.newStratum(AllStratum)
+	}
+	return w
+}
+
+// newStratum starts a stratum's count and retainer; repeats the
+// retainer finds become the worker's repeat events.
+func (w *worker) newStratum(label string) *wstratum {
+	st := &wstratum{label: label, ret: newRetainer(w.s.spec.Capacity)}
+	st.ret.onDup = func(k *hkey, id []byte, kept, other int64) {
+		w.dups = append(w.dups, dupEvent{key: k.bytes(), stratum: label, id: string(id), kept: kept, other: other})
+	}
+	w.strata[label] = st
+	w.table.insert(st)
+	return st
+}
+
+// chunk processes one chunk of records.
+func (w *worker) chunk(c chunk) {
+	w.seq = c.seq
+	data := c.data
+	line := c.line
+	quotes := w.s.format == FormatCSV && bytes.IndexByte(data, '"') >= 0
+	if w.s.format != FormatJSONL && !quotes {
+		w.chunkPlain(c)
+		return
+	}
+	w.split.noQuotes = !quotes
+	for len(data) > 0 {
+		nl := bytes.IndexByte(data, '\n')
+		var rec []byte
+		phys := int64(1)
+		if nl < 0 {
+			rec, data = data, nil
+		} else {
+			rec, data = data[:nl], data[nl+1:]
+		}
+		if quotes && bytes.IndexByte(rec, '"') >= 0 {
+			// A quoted field may hold newlines: extend the record.
+			for quotesOpen(rec) && len(data) > 0 {
+				nl2 := bytes.IndexByte(data, '\n')
+				if nl2 < 0 {
+					nl2 = len(data)
+				}
+				rec = rec[:len(rec)+1+nl2]
+				phys++
+				if nl2 == len(data) {
+					data = nil
+				} else {
+					data = data[nl2+1:]
+				}
+			}
+		}
+		if n := len(rec); n > 0 && rec[n-1] == '\r' {
+			rec = rec[:n-1]
+		}
+		if len(rec) > 0 {
+			if err := w.record(line, rec); err != nil {
+				w.s.fail(c.seq, err)
+				return
+			}
+		}
+		line += phys
+		if c.seq > w.s.errSeq.Load() {
+			return
+		}
+	}
+}
+
+// record handles one data record.
+func (w *worker) record(line int64, rec []byte) *InputError {
+	s := w.s
+	name := s.spec.Name
+	switch s.format {
+	case FormatJSONL:
+		if err := w.json.parse(rec); err != nil {
+			col := ""
+			var ve *jsonValueError
+			if errors.As(err, &ve) {
+				col = ve.key
+			}
+			return inputErrorf(name, int(line), col, "%v", err)
+		}
+	default:
+		nf, err := w.split.split(rec)
+		if err != nil {
+			return inputErrorf(name, int(line), fieldName(s.header, nf), "%v", err)
+		}
+		return w.process(line, nf)
+	}
+	return w.process(line, -1)
+}
+
+// process handles one data record whose needed fields are in w.vals; nf
+// is its number of fields (−1 for JSON Lines, where keys are checked by
+// the parser).
+func (w *worker) process(line int64, nf int) *InputError {
+	s := w.s
+	name := s.spec.Name
+	if nf >= 0 && nf != len(s.header) {
+		return inputErrorf(name, int(line), "", "%d fields, but the header has %d (%s)", nf, len(s.header), columnList(s.header))
+	}
+	w.rows++
+	id := w.vals[s.idSlot]
+	if len(id) == 0 {
+		return inputErrorf(name, int(line), s.spec.IDColumn, "the record id is empty")
+	}
+	for _, f := range s.filters {
+		if _, ok := f.set[string(w.vals[f.slot])]; !ok {
+			return nil
+		}
+	}
+	st := w.single
+	if st == nil {
+		w.label = w.label[:0]
+		for i, sl := range s.strataSlots {
+			v := w.vals[sl]
+			if i > 0 {
+				w.label = append(w.label, '|')
+			}
+			w.label = append(w.label, v...)
+		}
+		for i, sl := range s.bandSlots {
+			v := w.vals[sl]
+			f, err := parseScore(v)
+			b := s.spec.Bands[i]
+			idx := -1
+			if err == nil {
+				idx = b.Index(f)
+			}
+			if idx < 0 {
+				what := "is not a number"
+				if err == nil {
+					what = "is outside [0, 1], the range a band splits"
+				}
+				return inputErrorf(name, int(line), b.Column, "the band value %q %s", v, what)
+			}
+			if len(s.strataSlots) > 0 || i > 0 {
+				w.label = append(w.label, '|')
+			}
+			w.label = append(w.label, s.bandLabels[i][idx]...)
+		}
+		st = w.table.find(w.label)
+		if st == nil {
+			// A new stratum: its values must not hold the separator, or
+			// two different value lists could share a label.
+			for i, sl := range s.strataSlots {
+				if v := w.vals[sl]; bytes.IndexByte(v, '|') >= 0 {
+					return inputErrorf(name, int(line), s.spec.StrataColumns[i], "the value %q holds a |, which separates stratum values in labels", v)
+				}
+			}
+			if len(w.strata) >= s.spec.MaxStrata {
+				e := inputErrorf(name, 0, "", "more than %d strata: the strata columns have too many distinct values to stratify by", s.spec.MaxStrata)
+				e.Hint = "stratify by columns with a few categories, or by score bands (--band)"
+				return e
+			}
+			st = w.newStratum(string(w.label))
+		}
+	}
+	st.count++
+	w.hbuf = append(w.hbuf[:w.plen], id...)
+	key := sha256.Sum256(w.hbuf)
+	if !st.ret.wants(binary.BigEndian.Uint64(key[:8])) {
+		return nil
+	}
+	if r := st.ret; r.admit(&key, line) {
+		a := appendPart(r.arena, id)
+		for _, sl := range s.keepSlots {
+			a = appendPart(a, w.vals[sl])
+		}
+		r.arena = a
+		r.seal()
+	}
+	return nil
+}
+
+// parseScore parses a band value without allocating.
+func parseScore(v []byte) (float64, error) {
+	v = bytes.TrimSpace(v)
+	if len(v) == 0 {
+		return 0, strconv.ErrSyntax
+	}
+	return strconv.ParseFloat(unsafe.String(&v[0], len(v)), 64)
+}
+
+// fieldName names the column at index i of the header, or "".
+func fieldName(h []string, i int) string {
+	if i >= 0 && i < len(h) {
+		return h[i]
+	}
+	return ""
+}
