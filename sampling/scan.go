@@ -96,7 +96,7 @@ var ErrDuplicateIDs = errors.New("duplicate record ids")
 // Scan reads a prediction log in one pass and keeps, per stratum, the
 // Capacity rows with the smallest keys, with bounded memory: reading,
 // splitting and SHA-256 hashing run on Workers goroutines over chunks of
-// the file, each keeping its own heaps, merged at the end.
+// the file, each keeping its own candidates, merged at the end.
 //
 // A repeated id has the same key on every row, so every repeat whose key
 // is among the kept rows of its stratum is detected exactly: without
