@@ -5,6 +5,20 @@
 // adjustments for many candidates, operating-characteristic (OC) curves,
 // and the plan file that records all of it.
 //
+// The entry points:
+//
+//   - BinomialCDF, BinomialSF, HypergeometricCDF, HypergeometricSF and the
+//     PMFs: tails accurate deep into both ends (tails.go);
+//   - ClopperPearsonUpper/Lower/Interval, BinomialPValueAtLeast,
+//     HypergeometricPValueAtLeast, BadLotErrors (D1), GoodLotErrors (D0)
+//     (clopper.go);
+//   - Size: the rule and the comparison for a set of Inputs; Build: the
+//     whole plan File (size.go, build.go, search.go, rules.go);
+//   - File.OC, File.AcceptProbability, File.KeyPoints: the exact OC curve
+//     (oc.go); PerCandidateRisk, File.PerCandidateConfidence (multiplicity.go);
+//   - Budget, AcceptanceNumberFor: the inverse question (budget.go);
+//   - File.Marshal, Parse, Load, Fingerprint: the plan file (file.go).
+//
 // The package computes and never prints; it reads no clock and no global
 // randomness: callers pass times and seeds in.
 package plan

@@ -60,7 +60,10 @@ rejects a model at half the ceiling.
 bad batch holds at least ⌈ceiling·N⌉ errors). hoeffding and kl use the
 distribution-free Hoeffding and Chernoff relative-entropy bounds instead; the
 n every rule needs for the same risks is always shown (with Chebyshev) so the
-saving of the exact plan is plain.
+saving of the exact plan is plain. Every rule is held to the same risks: it
+accepts at most its own number of errors and must reject a model at p0 no more
+often than --producer-risk. (The textbook Hoeffding size ln(M'/δ)/(2(ceiling −
+p0)²) is smaller, but passes a model at p0 only about half the time.)
 
 --budget n answers the inverse question: with n labels and 0, 1, 2, …
 errors, the lowest ceiling that can be certified.
