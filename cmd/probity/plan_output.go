@@ -199,7 +199,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if f.Sequential != nil {
 		fmt.Fprintf(w, "Label decisions %s one at a time, at most %d; stop at the first boundary reached (below).\n", from, r.SampleSize)
 	} else if r.AcceptanceNumber == 0 {
-		fmt.Fprintf(w, "Label %d decisions %s; accept %s if none of them is an error.\n", r.SampleSize, from, who)
+		fmt.Fprintf(w, "Label %s %s; accept %s if none of them is an error.\n", decisions(r.SampleSize), from, who)
 	} else {
 		fmt.Fprintf(w, "Label %d decisions %s; accept %s if at most %d of them are errors.\n", r.SampleSize, from, who, r.AcceptanceNumber)
 	}
@@ -433,4 +433,12 @@ func ratio(x float64) string {
 		return fmt.Sprintf("%.1f×", x)
 	}
 	return fmt.Sprintf("%.2g×", x)
+}
+
+// decisions is "1 decision" or "n decisions".
+func decisions(n int) string {
+	if n == 1 {
+		return "1 decision"
+	}
+	return strconv.Itoa(n) + " decisions"
 }
