@@ -29,17 +29,21 @@ func (w *worker) chunkPlain(c chunk) {
 	sep := w.split.sep
 	sepMask := uint64(sep) * swarOnes
 	const nlMask = uint64('\n') * swarOnes
-	need := w.split.need
+	need := w.s.hotNeed
+	last := w.hotLast
 	vals := w.vals
 	line := c.line
 	recStart, fieldStart, nf := 0, 0, 0
+	// skip: every needed field of the record is read; the rest of its
+	// separators are only counted, a word at a time.
+	skip := false
 	for i := 0; i < n; {
 		base := i
-		var m, mnl uint64
+		var ms, mnl uint64
 		if i+8 <= n {
 			x := binary.LittleEndian.Uint64(data[i:])
+			ms = zeroBytes(x ^ sepMask)
 			mnl = zeroBytes(x ^ nlMask)
-			m = zeroBytes(x^sepMask) | mnl
 			i += 8
 		} else {
 			for j := i; j < n; j++ {
@@ -47,13 +51,39 @@ func (w *worker) chunkPlain(c chunk) {
 				case '\n':
 					mnl |= 0x80 << (8 * uint(j-i))
 				case sep:
-					m |= 0x80 << (8 * uint(j-i))
+					ms |= 0x80 << (8 * uint(j-i))
 				}
 			}
-			m |= mnl
 			i = n
 		}
+		m := ms | mnl
 		for m != 0 {
+			if skip {
+				nlm := mnl & m
+				if nlm == 0 {
+					nf += bits.OnesCount64(ms & m)
+					break
+				}
+				nlbit := nlm & -nlm
+				nf += bits.OnesCount64(ms & m & (nlbit - 1))
+				m &^= nlbit | (nlbit - 1)
+				pos := base + bits.TrailingZeros64(nlbit)>>3
+				nf++ // the record's last field
+				end := pos
+				if data[end-1] == '\r' {
+					end--
+				}
+				if err := w.process(line, nf, data[recStart:end]); err != nil {
+					w.s.fail(c.seq, err)
+					return
+				}
+				line++
+				recStart, fieldStart, nf, skip = pos+1, pos+1, 0, false
+				if c.seq > w.s.errSeq.Load() {
+					return
+				}
+				continue
+			}
 			bit := m & -m
 			pos := base + bits.TrailingZeros64(m)>>3
 			m &^= bit
@@ -70,10 +100,11 @@ func (w *worker) chunkPlain(c chunk) {
 			nf++
 			fieldStart = pos + 1
 			if !nl {
+				skip = nf > last
 				continue
 			}
 			if end > recStart {
-				if err := w.process(line, nf); err != nil {
+				if err := w.process(line, nf, data[recStart:end]); err != nil {
 					w.s.fail(c.seq, err)
 					return
 				}
@@ -91,14 +122,14 @@ func (w *worker) chunkPlain(c chunk) {
 		if data[end-1] == '\r' {
 			end--
 		}
-		if nf < len(need) {
+		if !skip && nf < len(need) {
 			if sl := need[nf]; sl >= 0 {
 				vals[sl] = data[fieldStart:max(end, fieldStart)]
 			}
 		}
 		nf++
 		if end > recStart {
-			if err := w.process(line, nf); err != nil {
+			if err := w.process(line, nf, data[recStart:end]); err != nil {
 				w.s.fail(c.seq, err)
 			}
 		}

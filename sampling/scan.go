@@ -136,15 +136,19 @@ type scanner struct {
 	format string
 	header []string
 	// slots: one per distinct column read.
-	slotCols    []string
-	need        []int
-	idSlot      int
-	strataSlots []int
-	bandSlots   []int
-	filters     []compiledFilter
-	keepSlots   []int
-	bandLabels  [][]string
-	dataLine    int64 // line number of the first data line
+	slotCols []string
+	need     []int
+	// hotNeed has only the columns every row needs (id, strata, bands,
+	// filters); keepNeed only the kept ones, read again from the record
+	// bytes for the few rows that are kept.
+	hotNeed, keepNeed []int
+	idSlot            int
+	strataSlots       []int
+	bandSlots         []int
+	filters           []compiledFilter
+	keepSlots         []int
+	bandLabels        [][]string
+	dataLine          int64 // line number of the first data line
 
 	errSeq atomic.Int64 // lowest chunk seq that failed
 	mu     sync.Mutex
@@ -356,6 +360,7 @@ func (s *scanner) compile() error {
 		}
 		s.filters = append(s.filters, cf)
 	}
+	defer s.splitNeeds()
 	for i, c := range s.spec.Keep {
 		role := "kept"
 		if i < len(s.spec.KeepRoles) {
@@ -368,4 +373,33 @@ func (s *scanner) compile() error {
 		s.keepSlots = append(s.keepSlots, sl)
 	}
 	return nil
+}
+
+// splitNeeds derives hotNeed and keepNeed from need.
+func (s *scanner) splitNeeds() {
+	hot := map[int]bool{s.idSlot: true}
+	for _, sl := range s.strataSlots {
+		hot[sl] = true
+	}
+	for _, sl := range s.bandSlots {
+		hot[sl] = true
+	}
+	for _, f := range s.filters {
+		hot[f.slot] = true
+	}
+	keep := map[int]bool{}
+	for _, sl := range s.keepSlots {
+		keep[sl] = true
+	}
+	s.hotNeed = make([]int, len(s.need))
+	s.keepNeed = make([]int, len(s.need))
+	for c, sl := range s.need {
+		s.hotNeed[c], s.keepNeed[c] = -1, -1
+		if sl >= 0 && hot[sl] {
+			s.hotNeed[c] = sl
+		}
+		if sl >= 0 && keep[sl] {
+			s.keepNeed[c] = sl
+		}
+	}
 }

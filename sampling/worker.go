@@ -12,20 +12,24 @@ import (
 
 // worker parses, hashes and retains the rows of the chunks it is given.
 type worker struct {
-	s       *scanner
-	split   fieldSplitter
-	json    jsonFields
-	vals    [][]byte
-	hbuf    []byte
-	plen    int
-	label   []byte
-	strata  map[string]*wstratum
-	table   stratumTable
-	single  *wstratum
-	rows    int64
-	dups    []dupEvent
-	seq     int64
-	tooMany bool
+	s     *scanner
+	split fieldSplitter
+	// keepSplit reads the kept columns of a quote-free record that is
+	// kept; hotLast is the last column every row needs.
+	keepSplit fieldSplitter
+	hotLast   int
+	json      jsonFields
+	vals      [][]byte
+	hbuf      []byte
+	plen      int
+	label     []byte
+	strata    map[string]*wstratum
+	table     stratumTable
+	single    *wstratum
+	rows      int64
+	dups      []dupEvent
+	seq       int64
+	tooMany   bool
 }
 
 type wstratum struct {
@@ -55,6 +59,14 @@ func (s *scanner) newWorker() *worker {
 	default:
 		w.split = fieldSplitter{sep: ',', quoted: true, vals: w.vals}
 		w.split.setNeed(s.need)
+	}
+	w.keepSplit = fieldSplitter{sep: w.split.sep, vals: w.vals, noQuotes: true}
+	w.keepSplit.setNeed(s.keepNeed)
+	w.hotLast = -1
+	for c, sl := range s.hotNeed {
+		if sl >= 0 {
+			w.hotLast = c
+		}
 	}
 	w.hbuf = append([]byte(s.spec.Seed), ':')
 	w.plen = len(w.hbuf)
@@ -147,15 +159,18 @@ func (w *worker) record(line int64, rec []byte) *InputError {
 		if err != nil {
 			return inputErrorf(name, int(line), fieldName(s.header, nf), "%v", err)
 		}
-		return w.process(line, nf)
+		return w.process(line, nf, nil)
 	}
-	return w.process(line, -1)
+	return w.process(line, -1, nil)
 }
 
 // process handles one data record whose needed fields are in w.vals; nf
 // is its number of fields (−1 for JSON Lines, where keys are checked by
 // the parser).
-func (w *worker) process(line int64, nf int) *InputError {
+//
+// rec, when not nil, is the quote-free record whose kept columns have not
+// been read yet (they are read only if the row is kept).
+func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 	s := w.s
 	name := s.spec.Name
 	if nf >= 0 && nf != len(s.header) {
@@ -225,6 +240,9 @@ func (w *worker) process(line int64, nf int) *InputError {
 		return nil
 	}
 	if r := st.ret; r.admit(&key, line) {
+		if rec != nil {
+			w.keepSplit.split(rec)
+		}
 		a := appendPart(r.arena, id)
 		for _, sl := range s.keepSlots {
 			a = appendPart(a, w.vals[sl])
