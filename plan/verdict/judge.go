@@ -337,9 +337,9 @@ func reason(rc *record.Candidate, m judgeMethod, p *plan.File, n int, level floa
 	var s string
 	switch {
 	case m.ruleApplies && rc.Errors <= p.Rule.AcceptanceNumber:
-		s = fmt.Sprintf("%d errors ≤ c = %d in n = %d", rc.Errors, p.Rule.AcceptanceNumber, n)
+		s = fmt.Sprintf("%s ≤ c = %d in n = %d", errorsText(rc.Errors), p.Rule.AcceptanceNumber, n)
 	case m.ruleApplies && d.Level <= level*(1+1e-9):
-		s = fmt.Sprintf("%d errors > c = %d in n = %d", rc.Errors, p.Rule.AcceptanceNumber, n)
+		s = fmt.Sprintf("%s > c = %d in n = %d", errorsText(rc.Errors), p.Rule.AcceptanceNumber, n)
 	default:
 		cmp := "<"
 		if !d.Accepted {
@@ -358,6 +358,14 @@ func reason(rc *record.Candidate, m judgeMethod, p *plan.File, n int, level floa
 		s += fmt.Sprintf(" (Holm step %d, level %s)", d.Step, short(d.Level))
 	}
 	return s
+}
+
+// errorsText is "1 error" or "k errors".
+func errorsText(k int) string {
+	if k == 1 {
+		return "1 error"
+	}
+	return strconv.Itoa(k) + " errors"
 }
 
 func short(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }

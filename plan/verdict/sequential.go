@@ -50,8 +50,8 @@ func JudgeSequential(in Input) (*Result, error) {
 		}
 		d, at := rule.Judge(errs)
 		if d == sequential.Continue {
-			return nil, fmt.Errorf("%w: candidate %s has %d errors in the %d items labeled from the top, inside the boundaries; label further down the worksheet (up to %d items)",
-				ErrUndecided, c.Name, count(errs[:at]), at, rule.MaxSampleSize())
+			return nil, fmt.Errorf("%w: candidate %s has %s in the %d items labeled from the top, inside the boundaries; label further down the worksheet (up to %d items)",
+				ErrUndecided, c.Name, errorsText(count(errs[:at])), at, rule.MaxSampleSize())
 		}
 		sub := Input{Plan: p, Design: redesign(in.Design, in.Items[:at]), Items: in.Items[:at]}
 		rc, _, err := judgeCandidate(sub, ci, judgeMethod{bound: BoundClopperPearson}, level, 0)
@@ -65,10 +65,10 @@ func JudgeSequential(in Input) (*Result, error) {
 			rc.Reason = fmt.Sprintf("not reached: %s was rejected earlier in the fixed sequence", firstFail)
 		case d == sequential.Accept:
 			rc.Verdict = record.Accept
-			rc.Reason = fmt.Sprintf("%d errors in the first %d labels: at or below the acceptance boundary %d", rc.Errors, at, p.Sequential.AcceptIfErrorsAtMost[at-1])
+			rc.Reason = fmt.Sprintf("%s in the first %d labels: at or below the acceptance boundary %d", errorsText(rc.Errors), at, p.Sequential.AcceptIfErrorsAtMost[at-1])
 		default:
 			rc.Verdict = record.Reject
-			rc.Reason = fmt.Sprintf("%d errors in the first %d labels: at or above the rejection boundary %d", rc.Errors, at, *p.Sequential.RejectIfErrorsAtLeast[at-1])
+			rc.Reason = fmt.Sprintf("%s in the first %d labels: at or above the rejection boundary %d", errorsText(rc.Errors), at, *p.Sequential.RejectIfErrorsAtLeast[at-1])
 			if firstFail == "" {
 				firstFail = rc.Name
 			}

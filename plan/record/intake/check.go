@@ -340,7 +340,7 @@ func (res *Result) judgeable(p *plan.File, f *Folder, l *Labels, strata []verdic
 	}
 	if len(unresolved) > 0 && !opts.AllowIncomplete {
 		return &sampling.InputError{File: l.Path, Column: "label",
-			Msg:  fmt.Sprintf("%d items are unlabeled or unsure and no spare replaces them (items %s)", len(unresolved), first(unresolved)),
+			Msg:  fmt.Sprintf("%s unlabeled or unsure and no spare replaces %s (%s %s)", itemsAre(len(unresolved)), pron(len(unresolved)), itemWord(len(unresolved)), first(unresolved)),
 			Hint: "label them, label the stratum's spares in order, or pass --allow-incomplete to count each as an error for every candidate"}
 	}
 	if res.Counted > 0 {
@@ -426,7 +426,7 @@ func (res *Result) prefix(p *plan.File, f *Folder, l *Labels, strata []verdict.S
 	}
 	if len(unsure) > 0 && !opts.AllowIncomplete {
 		return &sampling.InputError{File: l.Path, Column: "label",
-			Msg:  fmt.Sprintf("%d items labeled from the top are marked unsure (items %s); a sequential plan cannot skip them", len(unsure), first(unsure)),
+			Msg:  fmt.Sprintf("%d %s labeled from the top marked unsure (%s %s); a sequential plan cannot skip %s", len(unsure), map[bool]string{true: "item is", false: "items are"}[len(unsure) == 1], itemWord(len(unsure)), first(unsure), pron(len(unsure))),
 			Hint: "label them, or pass --allow-incomplete to count each as an error for every candidate"}
 	}
 	if len(res.Items) == 0 {
@@ -445,4 +445,28 @@ func (res *Result) prefix(p *plan.File, f *Folder, l *Labels, strata []verdict.S
 	}
 	res.order = nil
 	return nil
+}
+
+// itemsAre is "1 item is" or "k items are".
+func itemsAre(k int) string {
+	if k == 1 {
+		return "1 item is"
+	}
+	return fmt.Sprintf("%d items are", k)
+}
+
+// itemWord is "item" or "items".
+func itemWord(k int) string {
+	if k == 1 {
+		return "item"
+	}
+	return "items"
+}
+
+// pron is "it" or "them".
+func pron(k int) string {
+	if k == 1 {
+		return "it"
+	}
+	return "them"
 }

@@ -47,7 +47,7 @@ func TestSparesReplaceInOrder(t *testing.T) {
 	rows[fx.spareIndex("a", 1)].Label = "ok"
 	// One item is still missing: refused without --allow-incomplete.
 	_, err := fx.check(t, rows, Options{})
-	if err == nil || !strings.Contains(err.Error(), "1 items are unlabeled or unsure and no spare replaces them") {
+	if err == nil || !strings.Contains(err.Error(), "1 item is unlabeled or unsure and no spare replaces it (item ") {
 		t.Fatalf("got %v", err)
 	}
 	var ie *sampling.InputError
