@@ -168,7 +168,7 @@ func verifySignatures(c *checkList, o *verifyOptions, rec *record.Record, js []b
 		case rec != nil && rec.SigningKey != "":
 			c.fail("%s is missing, but record.json says it was signed by %s", sigPath, rec.SigningKey)
 		default:
-			c.skip("signatures: the record is unsigned (no %s); record.pdf cannot be tied to record.json", signature.FileName)
+			c.skip("signatures: the record is unsigned (no %s)", signature.FileName)
 		}
 		return
 	}
