@@ -83,7 +83,8 @@ func parseAnticipatedYAML(data []byte, name string) (map[string]float64, error) 
 	return out, nil
 }
 
-// CheckAnticipated reports the first stratum with no anticipated error.
+// CheckAnticipated reports the first stratum (in label order) with no
+// anticipated error; name is the file they were read from.
 func CheckAnticipated(name string, p map[string]float64, labels []string) error {
 	for _, l := range labels {
 		if _, ok := p[l]; !ok {

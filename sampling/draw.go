@@ -123,6 +123,15 @@ func Draw(in DrawInput) (*Folder, error) {
 			return nil, err
 		}
 	}
+	if opts.Rule == Neyman && !in.NeymanFromBand {
+		labels := make([]string, len(counts))
+		for i, c := range counts {
+			labels[i] = c.Label
+		}
+		if err := CheckAnticipated(in.NeymanSource, opts.Anticipated, labels); err != nil {
+			return nil, err
+		}
+	}
 	alloc, err := Allocate(counts, n, opts)
 	if err != nil {
 		if errors.Is(err, ErrSampleTooLarge) {

@@ -294,15 +294,6 @@ func runDraw(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
-	if in.Alloc.Anticipated != nil {
-		labels := make([]string, len(f.Manifest.Strata))
-		for i, s := range f.Manifest.Strata {
-			labels[i] = s.Label
-		}
-		if err := sampling.CheckAnticipated(o.anticipated, in.Alloc.Anticipated, labels); err != nil {
-			return drawError(err)
-		}
-	}
 	if err := sampling.WriteFolder(o.out, f, o.force); err != nil {
 		if errors.Is(err, sampling.ErrFolderNotEmpty) {
 			return drawError(err)

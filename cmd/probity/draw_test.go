@@ -287,3 +287,36 @@ func TestDrawProgressBarOnlyOnTerminal(t *testing.T) {
 		t.Fatalf("bar %q", bar.String())
 	}
 }
+
+func TestDrawNeymanAnticipated(t *testing.T) {
+	dir := t.TempDir()
+	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 4000, Seed: 12})
+	ant := filepath.Join(dir, "anticipated.yaml")
+	os.WriteFile(ant, []byte("north: 0.01\nsouth: 0.02\neast: 0.05\nwest: 0.1\n"), 0o644)
+	out := filepath.Join(dir, "out")
+	code, stdout, stderr := runDrawCmd(t, nil, "--plan", drawPlan, "--log", log, "--out", out, "--strata", "region", "--allocation", "neyman", "--anticipated", ant)
+	if code != exitOK || !strings.Contains(stdout, "allocation: neyman") {
+		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
+	}
+	m, _, _ := sampling.ReadManifest(filepath.Join(out, "manifest.json"))
+	// n_h ∝ N_h·√(p_h(1−p_h)): west (p = 0.1) gets the most, north the least.
+	by := map[string]sampling.StratumInfo{}
+	for _, s := range m.Strata {
+		by[s.Label] = s
+	}
+	if !(by["west"].Sample > by["east"].Sample && by["east"].Sample > by["south"].Sample && by["south"].Sample > by["north"].Sample) || by["west"].Anticipated != 0.1 {
+		t.Fatalf("neyman strata %+v", m.Strata)
+	}
+	if code, stdout, _ = runDrawCmd(t, nil, "--check", out, "--plan", drawPlan, "--log", log); code != exitOK {
+		t.Fatalf("check of a neyman draw: %s", stdout)
+	}
+	os.WriteFile(ant, []byte("north: 0.01\n"), 0o644)
+	out2 := filepath.Join(dir, "out2")
+	code, _, stderr = runDrawCmd(t, nil, "--plan", drawPlan, "--log", log, "--out", out2, "--strata", "region", "--allocation", "neyman", "--anticipated", ant)
+	if code != exitBadInput || !strings.Contains(stderr, `anticipated.yaml: no anticipated error for stratum "east"`) {
+		t.Fatalf("missing stratum: exit %d %s", code, stderr)
+	}
+	if _, err := os.Stat(out2); !os.IsNotExist(err) {
+		t.Fatal("output left behind")
+	}
+}
