@@ -219,7 +219,7 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 		return fmt.Errorf("writing %s: %w", o.out, err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
-	fmt.Fprintf(d.stdout, "drawn inside %s from table %s; query sha256 %s\n", res.Spec.Dialect, res.Spec.Table, res.QuerySHA256)
+	fmt.Fprintf(d.stdout, "drawn inside %s from table %s (the log above is the query's result); query sha256 %s\n", res.Spec.Dialect, res.Spec.Table, res.QuerySHA256)
 	return nil
 }
 
