@@ -51,8 +51,31 @@ func TestRecordSequentialPlan(t *testing.T) {
 	if a.Verdict != record.Accept || a.StoppedAt != atA || b.Verdict != record.Reject || b.StoppedAt != atB || b.Labeled != atB {
 		t.Errorf("sorter-a %s at %d (want %d), sorter-b %s at %d (want %d)", a.Verdict, a.StoppedAt, atA, b.Verdict, b.StoppedAt, atB)
 	}
-	if r.Method.Bound != "sequential boundaries (bound descriptive)" || !r.Method.Approximate || len(r.OC) == 0 {
+	if r.Method.Bound != "sequential boundaries (stage-wise exact bound)" || r.Method.Approximate || len(r.OC) == 0 {
 		t.Errorf("method %+v, %d OC points", r.Method, len(r.OC))
+	}
+	// The bound and p-value are the stage-wise exact ones of the plan's
+	// boundaries, recomputed here from the stopping points.
+	for i, c := range []record.Candidate{a, b} {
+		d := []sequential.Decision{dA, dB}[i]
+		errs := [][]bool{errsA, errsB}[i]
+		o := sequential.Outcome{T: c.StoppedAt, D: d}
+		for _, e := range errs[:c.StoppedAt] {
+			if e {
+				o.E++
+			}
+		}
+		ub, err := sequential.UpperBound(fx.file.Sequential, o, c.BoundConfidence)
+		if err != nil {
+			t.Fatal(err)
+		}
+		pv, _ := sequential.PValue(fx.file.Sequential, o, fx.file.Inputs.Ceiling)
+		if !approxEqual(c.UpperBound, ub, 1e-12) || !approxEqual(c.PValue, pv, 1e-12) {
+			t.Errorf("%s: bound %v p %v, want stage-wise %v and %v", c.Name, c.UpperBound, c.PValue, ub, pv)
+		}
+		if c.Verdict == record.Accept && !(c.UpperBound < fx.file.Inputs.Ceiling) {
+			t.Errorf("%s accepted with a stage-wise bound %v not below the ceiling", c.Name, c.UpperBound)
+		}
 	}
 	// verify recomputes the same record.
 	if code, stdout, _ := runProbity(t, "verify", out, "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels); code != exitOK {
@@ -76,4 +99,15 @@ func TestRecordSequentialPlan(t *testing.T) {
 	if code != exitBadInput || !strings.Contains(stderr, "item 3 is labeled after the unlabeled item 2") {
 		t.Errorf("gap: exit %d: %s", code, stderr)
 	}
+}
+
+// approxEqual reports |a − b| ≤ tol·max(|a|, |b|, 1e-300); record.json keeps
+// 15 significant digits.
+func approxEqual(a, b, tol float64) bool {
+	d := a - b
+	if d < 0 {
+		d = -d
+	}
+	m := max(a, b, -a, -b, 1e-300)
+	return d <= tol*m
 }

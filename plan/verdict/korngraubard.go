@@ -39,7 +39,11 @@ func KornGraubardUpper(e Estimate, n int, confidence float64) float64 {
 	if df := n - e.SampledStrata; df >= 1 && n > 1 {
 		num := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(n - 1)}.Quantile(alpha)
 		den := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: float64(df)}.Quantile(alpha)
-		neff *= (num / den) * (num / den)
+		// At α = 1/2 both quantiles are 0 and the ratio is undefined; the
+		// adjustment is then skipped (the bound is the median-level one).
+		if num != 0 && den != 0 {
+			neff *= (num / den) * (num / den)
+		}
 	}
 	a := neff*p + 1
 	b := neff * (1 - p)

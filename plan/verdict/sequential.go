@@ -9,9 +9,15 @@ import (
 	"probity/plan/sequential"
 )
 
-// BoundSequential names the judgement of a sequential plan in
-// record.json's method.bound.
-const BoundSequential = "sequential boundaries (bound descriptive)"
+// BoundSequential names the judgement of a sequential plan of an unbounded
+// stream in record.json's method.bound: the bound and p-value are exact
+// for the stopping rule (stage-wise ordering).
+const BoundSequential = "sequential boundaries (stage-wise exact bound)"
+
+// BoundSequentialLot names the judgement of a sequential plan of a finite
+// lot: the bound is the Clopper–Pearson value at the stopping point,
+// descriptive only.
+const BoundSequentialLot = "sequential boundaries (bound descriptive)"
 
 // ErrUndecided is wrapped when the labeled items do not reach a decision
 // of a sequential plan's boundaries for some candidate.
@@ -23,8 +29,11 @@ var ErrUndecided = errors.New("the sequential plan has not decided")
 // rejected where they decide; items after that point do not count for it.
 // The boundaries carry the plan's exact risks. Errors, the estimate
 // x/t, the Clopper–Pearson bound and p-value at the stopping point t are
-// reported as descriptions only: they ignore the stopping rule, so they
-// are marked approximate. Multiplicity: under Bonferroni and Holm each
+// the upper bound and the p-value of H0: error ≥ ceiling take the stopping
+// rule into account for an unbounded stream: they are exact under the
+// stage-wise ordering of outcomes (sequential.UpperBound, PValue). For a
+// finite lot they are the Clopper–Pearson values at the stopping point,
+// which ignore the stopping rule and are marked approximate. Multiplicity: under Bonferroni and Holm each
 // candidate's boundaries are already at δ/M and decide on their own;
 // under fixed-sequence the candidates are taken in declared order and
 // those after the first rejection are not reached.
@@ -59,6 +68,15 @@ func JudgeSequential(in Input) (*Result, error) {
 			return nil, fmt.Errorf("candidate %s: %w", c.Name, err)
 		}
 		rc.StoppedAt = at
+		if p.Inputs.Population == 0 {
+			o := sequential.Outcome{T: at, E: count(errs[:at]), D: d}
+			if rc.UpperBound, err = sequential.UpperBound(p.Sequential, o, 1-level); err != nil {
+				return nil, fmt.Errorf("candidate %s: %w", c.Name, err)
+			}
+			if rc.PValue, err = sequential.PValue(p.Sequential, o, p.Inputs.Ceiling); err != nil {
+				return nil, fmt.Errorf("candidate %s: %w", c.Name, err)
+			}
+		}
 		switch {
 		case firstFail != "" && p.Inputs.Multiplicity == "fixed-sequence":
 			rc.Verdict = record.Reject
@@ -76,9 +94,15 @@ func JudgeSequential(in Input) (*Result, error) {
 		res.Candidates = append(res.Candidates, rc)
 	}
 	res.Overall = overall(p.Inputs.Require, res.Candidates)
-	res.Method = record.MethodInfo{Bound: BoundSequential, Approximate: true, Statement: fmt.Sprintf(
-		"Each candidate is judged by the plan's sequential boundaries, labeling from the top of the worksheet until its errors reach the acceptance or the rejection boundary (at most %d labels); the boundaries keep the false-accept risk at or below %s per candidate. The upper bounds and p-values are Clopper–Pearson values at the stopping point, shown for description only: they ignore the stopping rule.",
-		rule.MaxSampleSize(), pct(level))}
+	boundText := "The upper bounds and p-values are exact for the stopping rule: they order the possible stopping points stage-wise (an earlier acceptance is more favourable than a later one, a later rejection more favourable than an earlier one) and are computed by the same dynamic programme as the plan's risks."
+	res.Method = record.MethodInfo{Bound: BoundSequential}
+	if p.Inputs.Population > 0 {
+		boundText = "The upper bounds and p-values are Clopper–Pearson values at the stopping point, shown for description only: they ignore the stopping rule."
+		res.Method = record.MethodInfo{Bound: BoundSequentialLot, Approximate: true}
+	}
+	res.Method.Statement = fmt.Sprintf(
+		"Each candidate is judged by the plan's sequential boundaries, labeling from the top of the worksheet until its errors reach the acceptance or the rejection boundary (at most %d labels); the boundaries keep the false-accept risk at or below %s per candidate. %s",
+		rule.MaxSampleSize(), pct(level), boundText)
 	return res, nil
 }
 
