@@ -25,11 +25,15 @@ type worker struct {
 	label     []byte
 	strata    map[string]*wstratum
 	table     stratumTable
-	single    *wstratum
-	rows      int64
-	dups      []dupEvent
-	seq       int64
-	tooMany   bool
+	// packOK: strata are found by packed value numbers (stratumkey.go).
+	packOK  bool
+	interns []internTable
+	packed  packedTable
+	single  *wstratum
+	rows    int64
+	dups    []dupEvent
+	seq     int64
+	tooMany bool
 }
 
 type wstratum struct {
@@ -73,6 +77,8 @@ func (s *scanner) newWorker() *worker {
 	if len(s.strataSlots) == 0 && len(s.bandSlots) == 0 {
 		w.single = w.newStratum(AllStratum)
 	}
+	w.packOK = len(s.strataSlots)+len(s.bandSlots) <= maxPacked
+	w.interns = make([]internTable, len(s.strataSlots))
 	return w
 }
 
@@ -187,6 +193,28 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 		}
 	}
 	st := w.single
+	var packed uint64
+	if st == nil && w.packOK {
+		// The fast path: interned values and band indexes, packed.
+		for i, sl := range s.strataSlots {
+			id, ok := w.interns[i].find(w.vals[sl])
+			if !ok {
+				w.packOK = false
+				break
+			}
+			packed = packed<<16 | uint64(id+1)
+		}
+		if w.packOK {
+			for i, sl := range s.bandSlots {
+				idx, err := w.bandIndex(line, i, sl)
+				if err != nil {
+					return err
+				}
+				packed = packed<<16 | uint64(idx+1)
+			}
+			st = w.packed.find(packed)
+		}
+	}
 	if st == nil {
 		w.label = w.label[:0]
 		for i, sl := range s.strataSlots {
@@ -197,19 +225,9 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 			w.label = append(w.label, v...)
 		}
 		for i, sl := range s.bandSlots {
-			v := w.vals[sl]
-			f, err := parseScore(v)
-			b := s.spec.Bands[i]
-			idx := -1
-			if err == nil {
-				idx = b.Index(f)
-			}
-			if idx < 0 {
-				what := "is not a number"
-				if err == nil {
-					what = "is outside [0, 1], the range a band splits"
-				}
-				return inputErrorf(name, int(line), b.Column, "the band value %q %s", v, what)
+			idx, err := w.bandIndex(line, i, sl)
+			if err != nil {
+				return err
 			}
 			if len(s.strataSlots) > 0 || i > 0 {
 				w.label = append(w.label, '|')
@@ -232,6 +250,9 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 			}
 			st = w.newStratum(string(w.label))
 		}
+		if w.packOK {
+			w.packed.insert(packed, st)
+		}
 	}
 	st.count++
 	w.hbuf = append(w.hbuf[:w.plen], id...)
@@ -251,6 +272,25 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 		r.seal()
 	}
 	return nil
+}
+
+// bandIndex returns the interval of band i holding the row's value.
+func (w *worker) bandIndex(line int64, i, sl int) (int, *InputError) {
+	v := w.vals[sl]
+	f, err := parseScore(v)
+	b := w.s.spec.Bands[i]
+	idx := -1
+	if err == nil {
+		idx = b.Index(f)
+	}
+	if idx < 0 {
+		what := "is not a number"
+		if err == nil {
+			what = "is outside [0, 1], the range a band splits"
+		}
+		return 0, inputErrorf(w.s.spec.Name, int(line), b.Column, "the band value %q %s", v, what)
+	}
+	return idx, nil
 }
 
 // parseScore parses a band value without allocating.
