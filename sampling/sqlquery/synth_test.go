@@ -176,3 +176,37 @@ func FuzzParseTableName(f *testing.F) {
 func asInputError(err error, target **sampling.InputError) bool {
 	return errors.As(err, target)
 }
+
+// TestImportRefusesOtherPlanOrSeed edits the draw row's description and
+// the rows of a good result and checks each is refused with its reason.
+func TestImportRefusesOtherPlanOrSeed(t *testing.T) {
+	p, s, rows := synthCase()
+	good := string(synthResult(t, s, rows))
+	cases := []struct {
+		name, old, new, fingerprint, want string
+	}{
+		{"another plan", "", "", "other", "the result was made for another plan (fingerprint fp), not this one (other)"},
+		{"another seed", `""seed"":""synth""`, `""seed"":""synthetic""`, "fp", `the result was made with seed "synthetic", but the plan's seed is "synth"`},
+		{"selection seed not from the seed", `""selection_seed"":""synth""`, `""selection_seed"":""x""`, "fp", `the selection seed "x" does not follow from the plan's seed`},
+		{"another sample size", `""sample_size"":12`, `""sample_size"":13`, "fp", "the result was made for a sample of 13, but the plan's is 12"},
+		{"newer query format", `""format"":1`, `""format"":2`, "fp", "the result was made by a query of format 2; this probity reads format 1"},
+		{"table rows do not add up", "draw,,,90,", "draw,,,89,", "fp", "the table has 89 rows but 90 are in scope"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			data := good
+			if c.old != "" {
+				if !strings.Contains(data, c.old) {
+					t.Fatalf("the result lacks %q", c.old)
+				}
+				data = strings.Replace(data, c.old, c.new, 1)
+			}
+			path := filepath.Join(t.TempDir(), "result.csv")
+			os.WriteFile(path, []byte(data), 0o644)
+			_, err := Import(path, nil, p, c.fingerprint)
+			if err == nil || !strings.Contains(err.Error(), c.want) || !strings.HasPrefix(err.Error(), path+" line ") {
+				t.Errorf("Import: %v\nwant %q with the file and line", err, c.want)
+			}
+		})
+	}
+}
