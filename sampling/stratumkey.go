@@ -10,7 +10,7 @@ package sampling
 const maxPacked = 4
 
 // internTable maps a column's values to small numbers (open addressing on
-// an FNV-1a hash of the bytes).
+// valueHash).
 type internTable struct {
 	keys  []internEntry
 	count int
@@ -23,13 +23,15 @@ type internEntry struct {
 	used bool
 }
 
-func fnv1a(v []byte) uint64 {
-	h := uint64(14695981039346656037)
-	for _, c := range v {
-		h ^= uint64(c)
-		h *= 1099511628211
+// valueHash is a cheap hash of a category value: its length and its first,
+// middle and last bytes. Values that share them only cost a comparison.
+func valueHash(v []byte) uint64 {
+	n := len(v)
+	if n == 0 {
+		return 0x9E3779B97F4A7C15
 	}
-	return h
+	h := uint64(n) | uint64(v[0])<<16 | uint64(v[n/2])<<24 | uint64(v[n-1])<<32
+	return h * 0x9E3779B97F4A7C15
 }
 
 // find returns the number of v, adding v when new; ok is false once the
@@ -38,9 +40,9 @@ func (t *internTable) find(v []byte) (id int32, ok bool) {
 	if t.keys == nil {
 		t.keys = make([]internEntry, 16)
 	}
-	h := fnv1a(v)
+	h := valueHash(v)
 	mask := uint64(len(t.keys) - 1)
-	for i := h & mask; ; i = (i + 1) & mask {
+	for i := h >> 40 & mask; ; i = (i + 1) & mask {
 		e := &t.keys[i]
 		if !e.used {
 			if t.count >= 0xfffe {
@@ -67,7 +69,7 @@ func (t *internTable) grow() {
 		if !e.used {
 			continue
 		}
-		i := e.hash & mask
+		i := e.hash >> 40 & mask
 		for t.keys[i].used {
 			i = (i + 1) & mask
 		}
