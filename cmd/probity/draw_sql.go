@@ -103,6 +103,9 @@ func (so *drawSQLOptions) validate(c *cobra.Command, o *drawOptions) error {
 			return withHint(usageErrorf("--%s cannot be used with %s", name, mode), drawSQLConflictHint(name, mode))
 		}
 	}
+	if strings.TrimSpace(o.period) != o.period || strings.ContainsAny(o.period, "\n\r") {
+		return usageErrorf("--period %q has leading or trailing spaces", o.period)
+	}
 	if so.selected != "" {
 		if o.out == "" {
 			return withHint(usageErrorf("--out is required"), "name the folder to write the draw into, e.g. --out audit-2026-11")

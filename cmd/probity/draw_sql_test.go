@@ -260,6 +260,9 @@ func TestDrawSQLFlags(t *testing.T) {
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--show", "score"}, "--show score: the column holds candidate score-0.7's prediction or score"},
 		{[]string{"--plan", "../../testdata/draw/plan-sizing-only.yaml", "--sql", "postgres", "--table", "t"}, "is a sizing-only plan"},
 		{[]string{"--plan", sqlPlan, "--selected", "r.csv"}, "--out is required"},
+		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--period", " 2026-11"}, `--period " 2026-11" has leading or trailing spaces`},
+		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--spare", "-1"}, "--min-per-stratum and --spare cannot be negative"},
+		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--allocation", "best"}, `unknown allocation rule "best"`},
 		{[]string{"--plan", sqlPlan, "--selected", "r.csv", "--sql", "postgres"}, "--sql and --selected cannot be used together"},
 		{[]string{"--plan", sqlPlan, "--log", "x.csv", "--out", "d", "--table", "t"}, "--table is only used with --sql"},
 	}
