@@ -35,6 +35,8 @@ type recordOptions struct {
 	bound           string
 	force           bool
 	json            bool
+	// quality holds the double-labeling flags (record_quality.go).
+	quality labelQualityOptions
 }
 
 // newRecordCommand builds `probity record`.
@@ -102,6 +104,7 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard, "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
 	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
+	addLabelQualityFlags(fl, &opts.quality)
 	return cmd
 }
 
@@ -206,6 +209,10 @@ func runRecord(d deps, o *recordOptions) error {
 	if err != nil {
 		return withHint(badInput(err), "fix or remove the file in --templates; files not given fall back to the built-in wording")
 	}
+	adjust, err := labelQualityAdjust(o.quality, in.plan, in.folder, in.labels)
+	if err != nil {
+		return err
+	}
 	date := o.date
 	if date == "" {
 		date = d.now().UTC().Format("2006-01-02")
@@ -213,7 +220,7 @@ func runRecord(d deps, o *recordOptions) error {
 	rec, err := assemble.Assemble(assemble.Input{
 		Plan: in.plan, PlanFP: in.planFP, Folder: in.folder, Labels: in.labels,
 		AllowIncomplete: o.allowIncomplete, Bound: o.bound, Use: o.use, Date: date,
-		Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
+		Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP, Adjust: adjust,
 	})
 	if err != nil {
 		return recordInputError(err, o.labels)
@@ -230,6 +237,7 @@ func runRecord(d deps, o *recordOptions) error {
 	} else {
 		writeRecordSummary(d, o, rec, files)
 	}
+	reportLabelQuality(d, rec.LabelQuality, !o.json)
 	if rec.OverallVerdict != record.Accept {
 		return rejected("")
 	}

@@ -1,0 +1,335 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"probity/plan"
+	"probity/plan/record"
+	"probity/sampling"
+)
+
+// lqFixture is an invented audit of a seam-inspection classifier with
+// double labeling: a zero-failure plan (ceiling 10 %, confidence 90 %, one
+// candidate: n = 22, c = 0, so a single error rejects), a log of 300
+// decisions where the candidate is always right, and a draw with
+// --double 6. Labels are the truth unless a test edits them, so without
+// edits the audit passes.
+type lqFixture struct {
+	dir, planPath, draw string
+	ledger              []sampling.LedgerRow
+	worksheet, second   []sampling.WorksheetRow
+	truth               map[string]string
+}
+
+func newLQFixture(t *testing.T) *lqFixture {
+	t.Helper()
+	fx := &lqFixture{dir: t.TempDir(), truth: map[string]string{}}
+	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.9, Candidates: 1, ProducerRisk: 0.1,
+		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
+	f, err := plan.Build(in, plan.Meta{ToolVersion: "test", Created: time.Date(2026, 11, 30, 9, 0, 0, 0, time.UTC),
+		Seed: "a1b2c3d4e5f60718293a4b5c6d7e8f90", System: "Seam inspector", SystemVersion: "1.3",
+		Classes: []string{"defect", "ok"}, Candidates: []plan.Candidate{{Name: "seam-cnn", Column: "pred"}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if f.Rule.SampleSize != 22 || f.Rule.AcceptanceNumber != 0 {
+		t.Fatalf("plan n = %d, c = %d; the fixture expects the zero-failure plan n = 22, c = 0", f.Rule.SampleSize, f.Rule.AcceptanceNumber)
+	}
+	data, err := f.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	fx.planPath = filepath.Join(fx.dir, "plan.yaml")
+	lqWrite(t, fx.planPath, data)
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	w.Write([]string{"record_id", "scan", "pred"})
+	for i := 1; i <= 300; i++ {
+		id := fmt.Sprintf("s%04d", i)
+		truth := "ok"
+		if i%7 == 0 {
+			truth = "defect"
+		}
+		fx.truth[id] = truth
+		w.Write([]string{id, fmt.Sprintf("scan-%04d.png", i), truth})
+	}
+	w.Flush()
+	logPath := filepath.Join(fx.dir, "log.csv")
+	lqWrite(t, logPath, buf.Bytes())
+	log, err := os.Open(logPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer log.Close()
+	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: logPath, Log: log,
+		Format: "csv", IDColumn: "record_id", Show: []string{"scan"}, Double: 6,
+		Alloc: sampling.AllocOptions{Rule: sampling.Proportional}, ToolVersion: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	fx.draw = filepath.Join(fx.dir, "draw")
+	if err := sampling.WriteFolder(fx.draw, folder, false); err != nil {
+		t.Fatal(err)
+	}
+	fx.ledger, fx.worksheet, fx.second = folder.Ledger, folder.Worksheet, folder.Second
+	if len(fx.second) != 6 {
+		t.Fatalf("the draw doubled %d items, want 6", len(fx.second))
+	}
+	return fx
+}
+
+// other is the class that is not truth.
+func other(label string) string { return map[string]string{"ok": "defect", "defect": "ok"}[label] }
+
+// write labels a copy of rows with the truth and labeler, applies edit and
+// writes it to name.
+func (fx *lqFixture) write(t *testing.T, name string, rows []sampling.WorksheetRow, labeler string, edit func([]sampling.WorksheetRow)) string {
+	t.Helper()
+	rows = append([]sampling.WorksheetRow(nil), rows...)
+	for i := range rows {
+		rows[i].Label, rows[i].Labeler = fx.truth[rows[i].RecordID], labeler
+	}
+	if edit != nil {
+		edit(rows)
+	}
+	var buf bytes.Buffer
+	if err := sampling.WriteWorksheet(&buf, []string{"scan"}, rows); err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(fx.dir, name)
+	lqWrite(t, path, buf.Bytes())
+	return path
+}
+
+// adjudication writes an adjudication file with one row per (item, label).
+func (fx *lqFixture) adjudication(t *testing.T, name string, rows ...[2]string) string {
+	t.Helper()
+	var b strings.Builder
+	b.WriteString("item,record_id,final_label,decided_by,note\n")
+	for _, r := range rows {
+		var item int
+		fmt.Sscan(r[0], &item)
+		fmt.Fprintf(&b, "%d,%s,%s,Dana Reyes,\"checked the scan again, %s\"\n", item, fx.ledger[item-1].RecordID, r[1], r[1])
+	}
+	path := filepath.Join(fx.dir, name)
+	lqWrite(t, path, []byte(b.String()))
+	return path
+}
+
+func lqWrite(t *testing.T, path string, data []byte) {
+	t.Helper()
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func lqRun(t *testing.T, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	d := deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb,
+		now:    func() time.Time { return time.Date(2026, 12, 1, 12, 0, 0, 0, time.UTC) },
+		random: bytes.NewReader(bytes.Repeat([]byte{0x3c}, 256)), version: "0.1.0-test"}
+	code := run(args, d)
+	return code, out.String(), errb.String()
+}
+
+func lqRecord(t *testing.T, path string) *record.Record {
+	t.Helper()
+	data, err := os.ReadFile(filepath.Join(path, "record.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rec, err := record.Decode(data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return rec
+}
+
+// TestRecordJudgesOnTheAdjudicatedLabel: item 1 is doubled; the first
+// labeler gives the truth (the candidate is right), the second the other
+// class. The verdict follows the adjudication exactly: adjudicated to the
+// truth, 0 errors and ACCEPT; adjudicated to the other class, 1 error and
+// REJECT (c = 0); unadjudicated under --allow-unadjudicated, counted as an
+// error: REJECT; unadjudicated without it: refused, nothing written.
+func TestRecordJudgesOnTheAdjudicatedLabel(t *testing.T) {
+	fx := newLQFixture(t)
+	item1 := fx.ledger[0]
+	if !item1.Double {
+		t.Fatal("item 1 is not doubled")
+	}
+	truth := fx.truth[item1.RecordID]
+	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", nil)
+	second := fx.write(t, "labeled-second.csv", fx.second, "bea", func(rows []sampling.WorksheetRow) {
+		rows[0].Label = other(truth)
+	})
+	base := []string{"record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--second", second, "--date", "2026-12-01"}
+	out := func(name string) string { return filepath.Join(fx.dir, name) }
+
+	code, _, stderr := lqRun(t, append(base, "--out", out("rec-open"))...)
+	if code != exitBadInput || !strings.Contains(stderr, "1 doubled items have two different labels and need an adjudication: items 1") ||
+		!strings.Contains(stderr, "hint: ") {
+		t.Errorf("open disagreement: exit %d, stderr %q; want 2 naming item 1 with a hint", code, stderr)
+	}
+	if names := lqList(out("rec-open")); len(names) != 0 {
+		t.Errorf("a refused record left %v behind", names)
+	}
+
+	cases := []struct {
+		name     string
+		extra    []string
+		exit     int
+		errors   int
+		verdict  string
+		resolved string
+	}{
+		{"adjudicated to the truth", []string{"--adjudicated", fx.adjudication(t, "adj-truth.csv", [2]string{"1", truth})}, exitOK, 0, record.Accept, record.ResolvedAdjudicated},
+		{"adjudicated to the other class", []string{"--adjudicated", fx.adjudication(t, "adj-other.csv", [2]string{"1", other(truth)})}, exitRejected, 1, record.Reject, record.ResolvedAdjudicated},
+		{"left open", []string{"--allow-unadjudicated"}, exitRejected, 1, record.Reject, record.ResolvedCountedAsError},
+	}
+	for i, c := range cases {
+		dir := out(fmt.Sprintf("rec-%d", i))
+		code, stdout, stderr := lqRun(t, append(append(base, "--out", dir), c.extra...)...)
+		if code != c.exit {
+			t.Fatalf("%s: exit %d, want %d\nstdout %s\nstderr %s", c.name, code, c.exit, stdout, stderr)
+		}
+		rec := lqRecord(t, dir)
+		cand := rec.Candidates[0]
+		if cand.Errors != c.errors || cand.Verdict != c.verdict || cand.Labeled != 22 {
+			t.Errorf("%s: %d errors of %d, %s; want %d of 22, %s", c.name, cand.Errors, cand.Labeled, cand.Verdict, c.errors, c.verdict)
+		}
+		q := rec.LabelQuality
+		if q == nil {
+			t.Fatalf("%s: record.json has no label_quality", c.name)
+		}
+		if q.Doubled != 6 || q.Compared != 6 || q.Disagreed != 1 || len(q.Disagreements) != 1 || q.Disagreements[0].Resolution != c.resolved {
+			t.Errorf("%s: label quality %+v", c.name, q)
+		}
+		if want := record.SHA256(lqRead(t, second)); q.SecondWorksheet != want {
+			t.Errorf("%s: second worksheet fingerprint %q, want %q", c.name, q.SecondWorksheet, want)
+		}
+		if c.resolved == record.ResolvedCountedAsError {
+			if q.Unadjudicated != 1 || !strings.Contains(strings.Join(rec.Deviations.Notes, "\n"), "1 doubled item whose two labels disagree was not adjudicated and was counted as an error for every candidate") {
+				t.Errorf("%s: unadjudicated %d, deviations %q", c.name, q.Unadjudicated, rec.Deviations.Notes)
+			}
+		} else if q.Adjudications == "" || q.Disagreements[0].DecidedBy != "Dana Reyes" {
+			t.Errorf("%s: adjudication not recorded: %+v", c.name, q.Disagreements[0])
+		}
+	}
+}
+
+// TestRecordAdjudicationOverridesTheFirstLabel: the first labeler is
+// wrong on item 2 (so on the first labels alone the candidate makes an
+// error and is rejected); the second labeler is right and the adjudication
+// agrees with the second: the record accepts.
+func TestRecordAdjudicationOverridesTheFirstLabel(t *testing.T) {
+	fx := newLQFixture(t)
+	truth := fx.truth[fx.ledger[1].RecordID]
+	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []sampling.WorksheetRow) { rows[1].Label = other(truth) })
+	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
+	dir := filepath.Join(fx.dir, "single")
+	code, _, stderr := lqRun(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--out", dir, "--date", "2026-12-01")
+	if code != exitRejected {
+		t.Fatalf("first labels alone: exit %d (%s), want 1", code, stderr)
+	}
+	dir = filepath.Join(fx.dir, "double")
+	code, stdout, stderr := lqRun(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--out", dir, "--date", "2026-12-01",
+		"--second", second, "--adjudicated", fx.adjudication(t, "adj.csv", [2]string{"2", truth}))
+	if code != exitOK {
+		t.Fatalf("adjudicated: exit %d, want 0\n%s\n%s", code, stdout, stderr)
+	}
+	if rec := lqRecord(t, dir); rec.Candidates[0].Errors != 0 || rec.LabelQuality.Disagreements[0].Final != truth {
+		t.Errorf("errors %d, disagreement %+v", rec.Candidates[0].Errors, rec.LabelQuality.Disagreements[0])
+	}
+	pdf := lqRead(t, filepath.Join(dir, "record.pdf"))
+	if !bytes.Contains(pdf, []byte("%PDF")) {
+		t.Fatal("record.pdf is not a PDF")
+	}
+}
+
+func TestRecordLabelQualityBadInput(t *testing.T) {
+	fx := newLQFixture(t)
+	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", nil)
+	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
+	sameLabeler := fx.write(t, "same.csv", fx.second, "Ana", nil)
+	undoubled := fx.write(t, "undoubled.csv", append(append([]sampling.WorksheetRow(nil), fx.second...), fx.worksheet[10]), "bea", nil)
+	base := []string{"record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--date", "2026-12-01"}
+	cases := []struct {
+		name  string
+		extra []string
+		want  string
+	}{
+		{"adjudicated without second", []string{"--adjudicated", fx.adjudication(t, "a.csv")}, "--adjudicated only apply to double labeling, which needs --second FILE"},
+		{"strict without second", []string{"--strict"}, "--strict only apply to double labeling"},
+		{"item not doubled", []string{"--second", undoubled}, "was not drawn for a second label"},
+		{"same labeler, strict", []string{"--second", sameLabeler, "--strict"}, `was labeled by "Ana" in both worksheets; its two labels are not independent (--strict)`},
+		{"extra adjudication row", []string{"--second", second, "--adjudicated", fx.adjudication(t, "b.csv", [2]string{"1", fx.truth[fx.ledger[0].RecordID]})}, "the labelers agreed on item 1"},
+		{"adjudicated label outside the classes", []string{"--second", second, "--adjudicated", fx.adjudication(t, "c.csv", [2]string{"1", "maybe"})}, `final_label "maybe" is not one of the classes (defect, ok)`},
+		{"missing second file", []string{"--second", filepath.Join(fx.dir, "nope.csv")}, "nope.csv"},
+	}
+	for i, c := range cases {
+		dir := filepath.Join(fx.dir, fmt.Sprintf("out-%d", i))
+		code, stdout, stderr := lqRun(t, append(append(base, "--out", dir), c.extra...)...)
+		if code != exitBadInput || !strings.Contains(stderr, c.want) {
+			t.Errorf("%s: exit %d, stderr %q; want 2 with %q", c.name, code, stderr, c.want)
+		}
+		if stdout != "" || len(lqList(dir)) != 0 {
+			t.Errorf("%s: printed %q or left %v", c.name, stdout, lqList(dir))
+		}
+	}
+	// Without --strict the same labeler on both copies is a warning in
+	// the record, not a refusal.
+	dir := filepath.Join(fx.dir, "warned")
+	code, _, stderr := lqRun(t, append(append(base, "--out", dir), "--second", sameLabeler)...)
+	if code != exitOK {
+		t.Fatalf("same labeler without --strict: exit %d (%s)", code, stderr)
+	}
+	if w := strings.Join(lqRecord(t, dir).LabelQuality.Warnings, "\n"); !strings.Contains(w, "its two labels are not independent") {
+		t.Errorf("warnings %q", w)
+	}
+	if !strings.Contains(stderr, "probity: warning: ") || !strings.Contains(stderr, "its two labels are not independent") {
+		t.Errorf("the warning is not on stderr: %q", stderr)
+	}
+	// With --json stdout is record.json alone, label quality included;
+	// the warning stays on stderr.
+	dir = filepath.Join(fx.dir, "json")
+	code, stdout, stderr := lqRun(t, append(append(base, "--out", dir), "--second", sameLabeler, "--json")...)
+	if code != exitOK {
+		t.Fatalf("--json: exit %d (%s)", code, stderr)
+	}
+	rec, err := record.Decode([]byte(stdout))
+	if err != nil || rec.LabelQuality == nil || rec.LabelQuality.Doubled != 6 {
+		t.Errorf("--json stdout is not record.json with label_quality: %v\n%s", err, stdout)
+	}
+	if !strings.Contains(stderr, "its two labels are not independent") {
+		t.Errorf("--json: warning missing from stderr: %q", stderr)
+	}
+}
+
+func lqRead(t *testing.T, path string) []byte {
+	t.Helper()
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return data
+}
+
+func lqList(dir string) []string {
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return nil
+	}
+	var names []string
+	for _, e := range entries {
+		names = append(names, e.Name())
+	}
+	return names
+}
