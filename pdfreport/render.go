@@ -181,6 +181,7 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 		d.ocSection,
 		d.strataSection,
 		d.confusionSection,
+		d.labelQualitySection,
 		d.methodSection,
 		d.deviationsSection,
 		d.scopeSection,
