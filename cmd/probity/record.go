@@ -104,7 +104,7 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard, "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
 	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
-	addLabelQualityFlags(fl, &opts.quality)
+	addLabelQualityFlags(cmd, &opts.quality)
 	return cmd
 }
 

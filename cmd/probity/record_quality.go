@@ -8,7 +8,7 @@ import (
 	"slices"
 	"strings"
 
-	"github.com/spf13/pflag"
+	"github.com/spf13/cobra"
 
 	"probity/plan"
 	"probity/plan/agreement"
@@ -27,13 +27,35 @@ type labelQualityOptions struct {
 	strict             bool
 }
 
-// addLabelQualityFlags registers the double-labeling flags on fs.
-func addLabelQualityFlags(fs *pflag.FlagSet, o *labelQualityOptions) {
-	fs.StringVar(&o.second, "second", "", "labeled second worksheet (`FILE`, the worksheet-second.csv of a draw with --double): agreement, Cohen's kappa and Gwet's AC1 on the doubled items")
-	fs.StringVar(&o.adjudicated, "adjudicated", "", "adjudication `FILE` (CSV: "+strings.Join(agreement.AdjudicationColumns, ",")+"): the final label of every doubled item the two labelers did not agree on")
+// addLabelQualityFlags registers the double-labeling flags on cmd and
+// adds their explanation to its help.
+func addLabelQualityFlags(cmd *cobra.Command, o *labelQualityOptions) {
+	fs := cmd.Flags()
+	fs.StringVar(&o.second, "second", "", "the labeled second worksheet (worksheet-second.csv of a draw with --double): agreement, Cohen's kappa and Gwet's AC1 on the doubled items")
+	fs.StringVar(&o.adjudicated, "adjudicated", "", "adjudication CSV ("+strings.Join(agreement.AdjudicationColumns, ",")+"): the final label of each doubled item the two labelers did not agree on")
 	fs.BoolVar(&o.allowUnadjudicated, "allow-unadjudicated", false, "issue the record with disagreements left without an adjudication, counting each as an error for every candidate")
 	fs.BoolVar(&o.strict, "strict", false, "refuse (instead of warning about) an item labeled twice by the same person, a doubled item that does not name both labelers, or one with a blank label")
+	cmd.Long += labelQualityHelp
 }
+
+// labelQualityHelp is the part of record's help on double labeling.
+const labelQualityHelp = `
+
+Double labeling (a draw made with --double k): pass the labeled
+worksheet-second.csv with --second. The record then shows, on the doubled
+items, the agreement table, the observed agreement, Cohen's kappa and Gwet's
+AC1 with 95 % intervals, the labelers and how many rows each labeled, and
+every disagreement with its resolution. Each doubled item the two labelers
+did not agree on (two different classes, or a class and unsure) needs a row
+in the --adjudicated file, a CSV with the header
+
+  item,record_id,final_label,decided_by,note
+
+(final_label one of the plan's classes, decided_by not blank, note free);
+the judgement uses that label. Without a row the record is refused, unless
+--allow-unadjudicated, which counts each open disagreement as an error for
+every candidate. The same person giving both labels of an item is a warning,
+an error with --strict.`
 
 // validate checks the flags that only make sense with --second.
 func (o labelQualityOptions) validate() error {
