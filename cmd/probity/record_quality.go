@@ -112,6 +112,7 @@ func labelQualityAdjust(o labelQualityOptions, p *plan.File, f *intake.Folder, l
 		First: l.Rows, FirstFile: l.Path,
 		Second: second, SecondFile: o.second,
 		Strict: o.strict, AllowUnadjudicated: o.allowUnadjudicated,
+		Ceiling: p.Inputs.Ceiling,
 	}
 	adjSHA := ""
 	if o.adjudicated != "" {

@@ -11,14 +11,15 @@ import (
 )
 
 // fillDisagreement sets the disagreement rate of the compared items, its
-// one-sided Clopper–Pearson upper bound at conf, and the plain-words note.
-func fillDisagreement(q *record.LabelQuality, tb *Table, conf float64) {
+// one-sided Clopper–Pearson upper bound at conf, and the plain-words note
+// (which compares label error with ceiling when ceiling > 0).
+func fillDisagreement(q *record.LabelQuality, tb *Table, conf, ceiling float64) {
 	q.Disagreed = tb.N() - tb.Agreed()
 	if n := tb.N(); n > 0 {
 		q.DisagreementRate = float64(q.Disagreed) / float64(n)
 		q.DisagreementUpper = plan.ClopperPearsonUpper(q.Disagreed, n, conf)
 	}
-	q.Note = labelErrorNote(q, conf)
+	q.Note = labelErrorNote(q, conf, ceiling)
 }
 
 // pct formats a share as a percentage with one decimal.
@@ -36,7 +37,7 @@ func confPct(c float64) string {
 // most ε either way; when two independent labels differ at least one is
 // wrong, so the mean error rate of the two labelers is at least half their
 // disagreement rate (agreement cannot show that both are right).
-func labelErrorNote(q *record.LabelQuality, conf float64) string {
+func labelErrorNote(q *record.LabelQuality, conf, ceiling float64) string {
 	var b strings.Builder
 	b.WriteString("The reference labels are taken as the truth. An item whose reference label is wrong can hide a real error or add a false one, so if a share ε of the labels is wrong the true error rate can differ from the measured one by up to ε, and every upper bound in this record holds only within that margin. ")
 	if q.Compared == 0 {
@@ -46,7 +47,14 @@ func labelErrorNote(q *record.LabelQuality, conf float64) string {
 	fmt.Fprintf(&b, "On the %d doubled items both labelers put in a class they disagreed on %d (%s; one-sided %s upper bound %s). ",
 		q.Compared, q.Disagreed, pct(q.DisagreementRate), confPct(conf), pct(q.DisagreementUpper))
 	if q.Disagreed > 0 {
-		fmt.Fprintf(&b, "At least one of two differing labels is wrong, so a single labeler was wrong on at least %s of items on average; ", pct(q.DisagreementRate/2))
+		fmt.Fprintf(&b, "At least one of two differing labels is wrong, so a single labeler was wrong on at least %s of items on average", pct(q.DisagreementRate/2))
+		if ceiling > 0 {
+			fmt.Fprintf(&b, ", against an error ceiling of %s", confPct(ceiling))
+			if q.DisagreementRate/2 >= ceiling/4 {
+				b.WriteString(": label error of this size is not small beside the ceiling")
+			}
+		}
+		b.WriteString("; ")
 	} else {
 		b.WriteString("Full agreement does not prove the labels right: ")
 	}

@@ -128,3 +128,28 @@ func TestDegenerateIntervalIsFlagged(t *testing.T) {
 		t.Errorf("notes on a regular table: %q %q", res.Quality.Kappa.Note, res.Quality.AC1.Note)
 	}
 }
+
+func TestNoteComparesLabelErrorWithTheCeiling(t *testing.T) {
+	// The fixture's lower bound on a labeler's error is 1/6 (16.7 %); it
+	// is called not small when at least a quarter of the ceiling.
+	for _, c := range []struct {
+		ceiling float64
+		want    string
+		notWant string
+	}{
+		{0.9, "wrong on at least 16.7 % of items on average, against an error ceiling of 90 %; ", "not small"},
+		{0.2, "against an error ceiling of 20 %: label error of this size is not small beside the ceiling; ", ""},
+		{0, "wrong on at least 16.7 % of items on average; ", "ceiling of"},
+	} {
+		f := newFixture()
+		f.in.Ceiling = c.ceiling
+		res, err := Resolve(f.in)
+		if err != nil {
+			t.Fatal(err)
+		}
+		n := res.Quality.Note
+		if !strings.Contains(n, c.want) || (c.notWant != "" && strings.Contains(n, c.notWant)) {
+			t.Errorf("ceiling %v: note\n%s\nwant %q, not %q", c.ceiling, n, c.want, c.notWant)
+		}
+	}
+}

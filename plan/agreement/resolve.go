@@ -39,6 +39,9 @@ type Input struct {
 	// Confidence is the level of the kappa and AC1 intervals (0 means
 	// 0.95).
 	Confidence float64
+	// Ceiling is the plan's error ceiling, for comparison in the note on
+	// label error (0: not compared).
+	Ceiling float64
 }
 
 // Sources of a final label.
@@ -228,7 +231,7 @@ func Resolve(in Input) (*Result, error) {
 	}
 
 	fillAgreement(&q, tb, conf)
-	fillDisagreement(&q, tb, conf)
+	fillDisagreement(&q, tb, conf, in.Ceiling)
 	q.Labelers = countLabelers(in.First, in.Second)
 
 	res := &Result{Labels: make([]Final, 0, len(in.First))}
