@@ -33,7 +33,7 @@ no files needed: it writes the prediction log, makes the plan, draws the
 sample, labels it from the scenario's hidden ground truth (a few items are
 marked unsure and replaced by spares), issues a signed acceptance record
 with a throw-away key, and verifies it. Every step runs the real command;
-DIR/transcript.txt holds each command line and what it printed.
+DIR/commands.txt holds each command line and what it printed.
 
 The organisation, the classifier and the data are invented. The demo key is
 published with the source: it signs nothing but demo records.
@@ -80,7 +80,7 @@ func runDemo(d deps, o *demoOptions) error {
 		return err
 	}
 	// The steps run inside DIR with relative paths, as a user would type
-	// them: the transcript can be replayed there, and the artifacts (which
+	// them: the command log can be replayed there, and the artifacts (which
 	// record the paths they were given) do not depend on where DIR is.
 	back, err := os.Getwd()
 	if err != nil {
@@ -91,14 +91,14 @@ func runDemo(d deps, o *demoOptions) error {
 	}
 	defer os.Chdir(back)
 	shown := func(p string) string { return filepath.Join(o.out, p) }
-	var transcript bytes.Buffer
-	fmt.Fprintf(&transcript, "probity demo — %s\n%s: %s %s.\nEverything here is invented.\n\n", version, sc.Organisation, sc.System, sc.Description)
+	var cmdlog bytes.Buffer
+	fmt.Fprintf(&cmdlog, "probity demo — %s\n%s: %s %s.\nEverything here is invented.\n\n", version, sc.Organisation, sc.System, sc.Description)
 
 	if err := writeDemoFile("signoff.yaml", func(w io.Writer) error { _, err := io.WriteString(w, demoSignoff); return err }); err != nil {
 		return err
 	}
 	step := func(args ...string) (demoRun, error) {
-		r := runDemoStep(d, &transcript, args)
+		r := runDemoStep(d, &cmdlog, args)
 		if r.code == exitBadInput || r.code == exitInternal {
 			return r, &internalError{msg: fmt.Sprintf("demo step 'probity %s' failed (exit %d): %s", strings.Join(args, " "), r.code, firstLine(r.stderr))}
 		}
@@ -118,7 +118,7 @@ func runDemo(d deps, o *demoOptions) error {
 	}
 	keyDeps := d
 	keyDeps.random = demolog.ThrowAwayKeySource()
-	if r := runDemoStep(keyDeps, &transcript, []string{"keygen", "--out", keyPath}); r.code != exitOK {
+	if r := runDemoStep(keyDeps, &cmdlog, []string{"keygen", "--out", keyPath}); r.code != exitOK {
 		return &internalError{msg: "demo step keygen failed: " + firstLine(r.stderr)}
 	}
 
@@ -128,7 +128,7 @@ func runDemo(d deps, o *demoOptions) error {
 	var recDirs []string
 	var last demoMonth
 	for i, m := range months {
-		res, err := runDemoMonth(m, step, &transcript, keyPath, i == len(months)-1)
+		res, err := runDemoMonth(m, step, &cmdlog, keyPath, i == len(months)-1)
 		if err != nil {
 			return err
 		}
@@ -149,7 +149,7 @@ func runDemo(d deps, o *demoOptions) error {
 	if err != nil {
 		return err
 	}
-	if err := writeDemoFile("transcript.txt", func(w io.Writer) error { _, err := w.Write(transcript.Bytes()); return err }); err != nil {
+	if err := writeDemoFile("commands.txt", func(w io.Writer) error { _, err := w.Write(cmdlog.Bytes()); return err }); err != nil {
 		return err
 	}
 	verdict := "all checks passed"
@@ -158,7 +158,7 @@ func runDemo(d deps, o *demoOptions) error {
 	}
 	fmt.Fprintf(w, "  verify    %s: %s\n", shown(last.recDir), verdict)
 	fmt.Fprintf(w, "  trend     %s, %s (exit %d): %s\n", shown("trend.png"), shown("trend.pdf"), trend.code, demoTrendFlags(trend.stdout))
-	fmt.Fprintf(w, "every command and its output: %s (replay it inside %s)\n", shown("transcript.txt"), o.out)
+	fmt.Fprintf(w, "every command and its output: %s (replay it inside %s)\n", shown("commands.txt"), o.out)
 	if ver.code != exitOK {
 		return rejected("the demo's record did not verify")
 	}
@@ -176,7 +176,7 @@ type demoMonth struct {
 // the hidden truth and issues its signed record. For the latest month it
 // also asks `progress` about the first 400 labels, as an operator would
 // midway through labeling.
-func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), transcript *bytes.Buffer, keyPath string, latest bool) (demoMonth, error) {
+func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmdlog *bytes.Buffer, keyPath string, latest bool) (demoMonth, error) {
 	res := demoMonth{
 		logPath:    "prediction-log-" + m.Month + ".csv.gz",
 		drawDir:    "draw-" + m.Month,
@@ -195,7 +195,7 @@ func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), tra
 		return res, err
 	}
 	res.labeled, res.unsure = summary.Labeled, len(summary.Unsure)
-	fmt.Fprintf(transcript, "# simulated labeling of %s: %d items labeled from the hidden truth by %s; %d marked unsure (%s), replaced by spares %s\n\n",
+	fmt.Fprintf(cmdlog, "# simulated labeling of %s: %d items labeled from the hidden truth by %s; %d marked unsure (%s), replaced by spares %s\n\n",
 		m.Month, summary.Labeled, demolog.Labeler, len(summary.Unsure), strings.Join(summary.Unsure, ", "), strings.Join(summary.SparesUsed, ", "))
 	if latest {
 		partial := filepath.Join("labels-"+m.Month, "worksheet-first-400.csv")
@@ -241,8 +241,8 @@ func demoTrendFlags(out string) string {
 
 // runDemoStep runs one probity command line in a fresh command tree with
 // the scenario's clock, no terminal, and captured streams, and appends it
-// to the transcript.
-func runDemoStep(d deps, transcript *bytes.Buffer, args []string) demoRun {
+// to the command log.
+func runDemoStep(d deps, cmdlog *bytes.Buffer, args []string) demoRun {
 	var out, errb bytes.Buffer
 	sub := d
 	sub.stdin = strings.NewReader("")
@@ -250,11 +250,11 @@ func runDemoStep(d deps, transcript *bytes.Buffer, args []string) demoRun {
 	sub.now = func() time.Time { return demolog.Clock }
 	sub.stderrIsTerminal, sub.stdoutIsTerminal = false, false
 	code := run(args, sub)
-	fmt.Fprintf(transcript, "$ probity %s\n%s", quoteArgs(args), out.String())
+	fmt.Fprintf(cmdlog, "$ probity %s\n%s", quoteArgs(args), out.String())
 	if errb.Len() > 0 {
-		fmt.Fprintf(transcript, "[stderr]\n%s", errb.String())
+		fmt.Fprintf(cmdlog, "[stderr]\n%s", errb.String())
 	}
-	fmt.Fprintf(transcript, "[exit %d]\n\n", code)
+	fmt.Fprintf(cmdlog, "[exit %d]\n\n", code)
 	return demoRun{args: args, stdout: out.String(), stderr: errb.String(), code: code}
 }
 
@@ -368,7 +368,7 @@ func indentedLines(s string, max int) []string {
 	return out
 }
 
-// quoteArgs renders argv for the transcript, quoting what a shell would split.
+// quoteArgs renders argv for the command log, quoting what a shell would split.
 func quoteArgs(args []string) string {
 	q := make([]string, len(args))
 	for i, a := range args {

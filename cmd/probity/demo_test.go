@@ -61,7 +61,7 @@ func TestDemoEndToEnd(t *testing.T) {
 	a := filepath.Join(t.TempDir(), "demo-a")
 	runOnce(a)
 
-	files := []string{"plan.yaml", "signoff.yaml", "transcript.txt", "trend.png", "trend.pdf",
+	files := []string{"plan.yaml", "signoff.yaml", "commands.txt", "trend.png", "trend.pdf",
 		"keys/demo-signing-key", "keys/demo-signing-key.pub", "labels-2026-11/worksheet-first-400.csv"}
 	for _, m := range []string{"2026-10", "2026-11"} {
 		files = append(files, "prediction-log-"+m+".csv.gz",
@@ -138,14 +138,14 @@ func TestDemoEndToEnd(t *testing.T) {
 		t.Fatalf("verify exit %d:\n%s\n%s", code, out.String(), errb.String())
 	}
 
-	// The transcript shows the monthly steps: progress midway and the trend.
-	tr, err := os.ReadFile(filepath.Join(a, "transcript.txt"))
+	// The command log shows the monthly steps: progress midway and the trend.
+	tr, err := os.ReadFile(filepath.Join(a, "commands.txt"))
 	if err != nil {
 		t.Fatal(err)
 	}
 	for _, want := range []string{"$ probity progress ", "Labeled from the top: 400 of", "$ probity trend record-2026-10 record-2026-11", "latest period 2026-11"} {
 		if !bytes.Contains(tr, []byte(want)) {
-			t.Errorf("transcript lacks %q", want)
+			t.Errorf("command log lacks %q", want)
 		}
 	}
 
