@@ -224,8 +224,8 @@ func qualityPlural(n int, one, many string) string {
 }
 
 // matchSecondToDraw checks the labeled second worksheet against the draw's
-// worksheet-second.csv, when the folder has one: the same header and, for
-// every item, the same record id and shown values.
+// worksheet-second.csv, when the folder has one: the same shown columns
+// and, for every item, the same record id and shown values.
 func matchSecondToDraw(f *intake.Folder, path string, header []string, rows []sampling.WorksheetRow) error {
 	drawPath := filepath.Join(f.Dir, sampling.WorksheetSecondFile)
 	if _, err := os.Stat(drawPath); err != nil {
@@ -235,10 +235,10 @@ func matchSecondToDraw(f *intake.Folder, path string, header []string, rows []sa
 	if err != nil {
 		return qualityError(err)
 	}
-	if !slices.Equal(dh, header) {
+	if got, want := shownColumns(header), shownColumns(dh); !slices.Equal(got, want) {
 		return qualityError(&sampling.InputError{File: path, Line: 1,
-			Msg:  fmt.Sprintf("header is %s, but the draw's %s has %s", strings.Join(header, ","), sampling.WorksheetSecondFile, strings.Join(dh, ",")),
-			Hint: "label a copy of the worksheet-second.csv written by probity draw without changing its columns"})
+			Msg:  fmt.Sprintf("the shown columns are %s, but the draw's %s has %s", strings.Join(got, ","), sampling.WorksheetSecondFile, strings.Join(want, ",")),
+			Hint: "label a copy of the worksheet-second.csv written by probity draw without adding, removing or renaming columns"})
 	}
 	want := map[int]sampling.WorksheetRow{}
 	for _, r := range drows {
@@ -253,6 +253,19 @@ func matchSecondToDraw(f *intake.Folder, path string, header []string, rows []sa
 		}
 	}
 	return nil
+}
+
+// shownColumns returns the columns between record_id and label of a
+// worksheet header (item, record_id, shown…, label, note[, labeler]).
+func shownColumns(h []string) []string {
+	end := len(h)
+	if end > 0 && h[end-1] == "labeler" {
+		end--
+	}
+	if end < 4 {
+		return nil
+	}
+	return h[2 : end-2]
 }
 
 // qualityError maps an error from reading or resolving the double labels

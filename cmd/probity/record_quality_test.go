@@ -290,6 +290,8 @@ func TestRecordLabelQualityBadInput(t *testing.T) {
 		{"extra adjudication row", []string{"--second", second, "--adjudicated", fx.adjudication(t, "b.csv", [2]string{"1", fx.truth[fx.ledger[0].RecordID]})}, "the labelers agreed on item 1"},
 		{"adjudicated label outside the classes", []string{"--second", second, "--adjudicated", fx.adjudication(t, "c.csv", [2]string{"1", "maybe"})}, `final_label "maybe" is not one of the classes (defect, ok)`},
 		{"missing second file", []string{"--second", filepath.Join(fx.dir, "nope.csv")}, "nope.csv"},
+		{"second with an edited shown value", []string{"--second", fx.write(t, "edited.csv", fx.second, "bea", func(rows []sampling.WorksheetRow) { rows[2].Show[0] = "other.png" })},
+			"item 3 differs from the draw's worksheet-second.csv (record id or shown values)"},
 	}
 	for i, c := range cases {
 		dir := filepath.Join(fx.dir, fmt.Sprintf("out-%d", i))
