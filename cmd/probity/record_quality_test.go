@@ -352,3 +352,37 @@ func lqList(dir string) []string {
 	}
 	return names
 }
+
+// TestRecordFullAgreementChangesNothing: when the two labelers agree on
+// every doubled item the judgement is the one made from the first labels
+// alone, and record.json differs only by label_quality.
+func TestRecordFullAgreementChangesNothing(t *testing.T) {
+	fx := newLQFixture(t)
+	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []sampling.WorksheetRow) {
+		rows[7].Label = other(rows[7].Label) // one error by the candidate, outside the doubled items
+	})
+	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
+	single, double := filepath.Join(fx.dir, "single"), filepath.Join(fx.dir, "double")
+	base := []string{"record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--date", "2026-12-01"}
+	c1, _, e1 := lqRun(t, append(base, "--out", single)...)
+	c2, _, e2 := lqRun(t, append(base, "--out", double, "--second", second)...)
+	if c1 != exitRejected || c2 != exitRejected {
+		t.Fatalf("exit %d (%s) and %d (%s), want 1 and 1", c1, e1, c2, e2)
+	}
+	a, b := lqRecord(t, single), lqRecord(t, double)
+	if b.LabelQuality == nil || b.LabelQuality.Disagreed != 0 || !b.LabelQuality.AC1.Defined {
+		t.Fatalf("label quality %+v", b.LabelQuality)
+	}
+	b.LabelQuality = nil
+	ja, err := record.Encode(a)
+	if err != nil {
+		t.Fatal(err)
+	}
+	jb, err := record.Encode(b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(ja, jb) {
+		t.Errorf("record.json without label_quality differs from the single-label record:\n%s\n---\n%s", ja, jb)
+	}
+}
