@@ -355,7 +355,8 @@ func lqList(dir string) []string {
 
 // TestRecordFullAgreementChangesNothing: when the two labelers agree on
 // every doubled item the judgement is the one made from the first labels
-// alone, and record.json differs only by label_quality.
+// alone, and record.json differs only by label_quality and by the record
+// id (which also fingerprints the second worksheet).
 func TestRecordFullAgreementChangesNothing(t *testing.T) {
 	fx := newLQFixture(t)
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []sampling.WorksheetRow) {
@@ -373,7 +374,10 @@ func TestRecordFullAgreementChangesNothing(t *testing.T) {
 	if b.LabelQuality == nil || b.LabelQuality.Disagreed != 0 || !b.LabelQuality.AC1.Defined {
 		t.Fatalf("label quality %+v", b.LabelQuality)
 	}
-	b.LabelQuality = nil
+	if a.RecordID == b.RecordID {
+		t.Errorf("the record with a second worksheet has the single-label record's id %s", a.RecordID)
+	}
+	b.LabelQuality, b.RecordID = nil, a.RecordID
 	ja, err := record.Encode(a)
 	if err != nil {
 		t.Fatal(err)

@@ -30,6 +30,10 @@ type verifyOptions struct {
 	drawDir  string
 	labels   string
 	logPath  string
+	// second and adjudicated are the labeled second worksheet and the
+	// adjudication file of a record judged on double labels.
+	second      string
+	adjudicated string
 	// templatesDir is the wording record.pdf was rendered with.
 	templatesDir string
 }
@@ -51,7 +55,8 @@ outcome:
     the built-in wording or --templates), when this probity version made it;
   - with --plan, --draw, --labels: each input's SHA-256 is the one the
     record holds; given all three, the judgement is recomputed and compared
-    with record.json field by field;
+    with record.json field by field (a record judged on double labels also
+    needs --second and, if it had one, --adjudicated);
   - with --log (and --plan, --draw): the sample is drawn again from the log
     and compared with the draw folder, so the items labeled are exactly the
     ones chance picked.
@@ -67,6 +72,9 @@ failing checks say which file and what); 2 on bad usage or unreadable input.`,
 			return nil
 		},
 		PreRunE: func(cmd *cobra.Command, args []string) error {
+			if opts.adjudicated != "" && opts.second == "" {
+				return withHint(usageErrorf("--adjudicated needs --second"), "pass the labeled worksheet-second.csv the record was made with")
+			}
 			if opts.logPath != "" && (opts.drawDir == "" || opts.planPath == "") {
 				return withHint(usageErrorf("--log needs --plan and --draw"), "the sample is drawn again from the log with the plan's seed and the draw folder's settings")
 			}
@@ -83,6 +91,8 @@ failing checks say which file and what); 2 on bad usage or unreadable input.`,
 	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder, to check and recompute from")
 	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet, to check and recompute from")
 	fl.StringVar(&opts.logPath, "log", "", "the prediction log, to draw the sample again")
+	fl.StringVar(&opts.second, "second", "", "the labeled second worksheet of a record judged on double labels, to check and recompute from")
+	fl.StringVar(&opts.adjudicated, "adjudicated", "", "the adjudication file of such a record, to check and recompute from")
 	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder the record was made with, to re-render record.pdf")
 	return cmd
 }
@@ -260,6 +270,9 @@ func verifyInputs(c *checkList, o *verifyOptions, rec *record.Record) error {
 		}
 		same("labels fingerprint", o.labels, h, fp.Labels)
 	}
+	if err := verifyLabelQualityInputs(c, o, rec, readHash, same); err != nil {
+		return err
+	}
 	if o.planPath != "" && o.drawDir != "" && o.labels != "" {
 		if err := recompute(c, o, rec); err != nil {
 			return err
@@ -289,17 +302,27 @@ func recompute(c *checkList, o *verifyOptions, rec *record.Record) error {
 	if rec.Method.Bound == verdict.BoundWeightedHoeff {
 		bound = verdict.WeightedHoeffding
 	}
+	if rec.LabelQuality != nil && o.second == "" {
+		c.skip("judgement not recomputed: the record was judged on double labels; pass --second (and --adjudicated) as well")
+		return nil
+	}
+	var quality labelQualityOptions
+	if rec.LabelQuality != nil {
+		quality = labelQualityOptions{second: o.second, adjudicated: o.adjudicated,
+			allowUnadjudicated: rec.LabelQuality.AllowUnadjudicated, strict: rec.LabelQuality.Strict}
+	}
+	adjust, err := labelQualityAdjust(quality, in.plan, in.folder, in.labels)
+	if err != nil {
+		c.fail("the inputs do not give a record: %s", err.Error())
+		return nil
+	}
 	again, err := assemble.Assemble(assemble.Input{
 		Plan: in.plan, PlanFP: in.planFP, Folder: in.folder, Labels: in.labels,
 		AllowIncomplete: rec.Deviations.AllowIncomplete, Bound: bound, Use: rec.Use, Date: rec.Date,
-		Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
+		Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey, Adjust: adjust,
 	})
 	if err != nil {
 		c.fail("the inputs do not give a record: %s", recordInputError(err, o.labels).Error())
-		return nil
-	}
-	if rec.LabelQuality != nil {
-		c.skip("judgement not recomputed: the record uses double labeling (label_quality), and verify does not read the second worksheet or the adjudications")
 		return nil
 	}
 	// The fingerprints (and so the record id) were compared above, input
@@ -412,5 +435,34 @@ func verifyRendering(c *checkList, o *verifyOptions, rec *record.Record, version
 		return nil
 	}
 	c.skip("%s was not compared with a fresh rendering: the record was made by probity %s, this is %s", pdfPath, rec.ToolVersion, version)
+	return nil
+}
+
+// verifyLabelQualityInputs compares --second and --adjudicated with the
+// SHA-256 the record's label_quality holds.
+func verifyLabelQualityInputs(c *checkList, o *verifyOptions, rec *record.Record, readHash func(string) (string, error), same func(what, path, got, want string)) error {
+	if o.second == "" {
+		return nil
+	}
+	lq := rec.LabelQuality
+	if lq == nil {
+		c.fail("%s: the record was not judged on double labels, but --second was given", o.second)
+		return nil
+	}
+	h, err := readHash(o.second)
+	if err != nil {
+		return err
+	}
+	same("second-worksheet fingerprint", o.second, h, lq.SecondWorksheet)
+	switch {
+	case o.adjudicated != "":
+		h, err := readHash(o.adjudicated)
+		if err != nil {
+			return err
+		}
+		same("adjudications fingerprint", o.adjudicated, h, lq.Adjudications)
+	case lq.Adjudications != "":
+		c.fail("the record was judged with an adjudication file (SHA-256 %s…); pass it with --adjudicated", short12(lq.Adjudications))
+	}
 	return nil
 }

@@ -98,7 +98,7 @@ func TestIsCanonicalRejectsEdits(t *testing.T) {
 
 func TestID(t *testing.T) {
 	f := Fingerprints{Plan: "a", Log: "b", Manifest: "c", Ledger: "d", Worksheet: "e", Labels: "f"}
-	id := ID(f)
+	id := ID(f, nil)
 	if len(id) != IDLength {
 		t.Fatalf("id %q has length %d", id, len(id))
 	}
@@ -109,7 +109,18 @@ func TestID(t *testing.T) {
 	}
 	g := f
 	g.Labels = "g"
-	if ID(g) == id {
+	if ID(g, nil) == id {
 		t.Errorf("changing the labels fingerprint did not change the id")
+	}
+	// A record judged on double labels also depends on the second
+	// worksheet and the adjudications; the preimage gains two lines.
+	lq := &LabelQuality{SecondWorksheet: "s", Adjudications: "j"}
+	if got, want := ID(f, lq), SHA256([]byte("probity-record-id-v1\nplan:a\nlog:b\nmanifest:c\nledger:d\nworksheet:e\nlabels:f\nsecond:s\nadjudications:j\n"))[:12]; got != want {
+		t.Errorf("ID with label quality = %s, want %s", got, want)
+	}
+	other := *lq
+	other.Adjudications = "k"
+	if ID(f, &other) == ID(f, lq) {
+		t.Errorf("changing the adjudications did not change the id")
 	}
 }

@@ -16,13 +16,22 @@ const IDLength = 12
 //	        "plan:<hex>\nlog:<hex>\nmanifest:<hex>\nledger:<hex>\n" +
 //	        "worksheet:<hex>\nlabels:<hex>\n")
 //
-// over the fingerprints of the judged inputs, in that fixed order. The same
-// inputs always give the same id; a change to any of them changes it.
-func ID(f Fingerprints) string {
+// over the fingerprints of the judged inputs, in that fixed order. A record
+// judged on double labels (lq not nil) also depends on the labeled second
+// worksheet and the adjudication file, so their SHA-256 follow as
+//
+//	"second:<hex>\nadjudications:<hex>\n"
+//
+// (adjudications empty when there was no file). The same inputs always give
+// the same id; a change to any of them changes it.
+func ID(f Fingerprints, lq *LabelQuality) string {
 	var b strings.Builder
 	b.WriteString("probity-record-id-v1\n")
 	fmt.Fprintf(&b, "plan:%s\nlog:%s\nmanifest:%s\nledger:%s\nworksheet:%s\nlabels:%s\n",
 		f.Plan, f.Log, f.Manifest, f.Ledger, f.Worksheet, f.Labels)
+	if lq != nil {
+		fmt.Fprintf(&b, "second:%s\nadjudications:%s\n", lq.SecondWorksheet, lq.Adjudications)
+	}
 	sum := sha256.Sum256([]byte(b.String()))
 	return hex.EncodeToString(sum[:])[:IDLength]
 }

@@ -83,7 +83,6 @@ func Assemble(in Input) (*record.Record, error) {
 		Period: in.Folder.Manifest.Period, System: p.System, SystemVersion: p.SystemVersion, Use: in.Use,
 		Fingerprints: checked.Fingerprints, SigningKey: in.SigningKey,
 	}
-	rec.RecordID = record.ID(rec.Fingerprints)
 	if in.Adjust != nil {
 		lq, err := in.Adjust(checked)
 		if err != nil {
@@ -91,6 +90,7 @@ func Assemble(in Input) (*record.Record, error) {
 		}
 		rec.LabelQuality = lq
 	}
+	rec.RecordID = record.ID(rec.Fingerprints, rec.LabelQuality)
 	res, err := judge(p, checked, in.Bound)
 	if err != nil {
 		return nil, err
