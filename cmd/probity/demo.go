@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"time"
 
@@ -51,7 +52,7 @@ published with the source: it signs nothing but demo records.
 
 // demoUnsureAt are the main items (1-based, among main items) the simulated
 // labeler marks unsure.
-var demoUnsureAt = []int{12, 407, 1333}
+var demoUnsureAt = []int{112, 407, 1333}
 
 // demoSignoff is the sign-off file of the demo: invented people.
 const demoSignoff = `prepared:
@@ -136,12 +137,16 @@ func runDemo(d deps, o *demoOptions) error {
 		last = res
 		fmt.Fprintf(w, "  %s   log     %s (%d decisions)\n", m.Month, shown(res.logPath), m.Rows)
 		fmt.Fprintf(w, "            sample  %s/ (%d items labeled; %d unsure replaced by spares)\n", shown(res.drawDir), res.labeled, res.unsure)
+		if res.doubled > 0 {
+			fmt.Fprintf(w, "            double  %d items labeled twice, %d disagreements adjudicated (%s)\n", res.doubled, res.adjudicated, shown(res.adjudicatedPath))
+		}
 		fmt.Fprintf(w, "            record  %s (%s, exit %d)\n", shown(filepath.Join(res.recDir, "record.pdf")), demoOverall(res.record.stdout), res.record.code)
 	}
 	for _, l := range indentedLines(last.record.stdout, 6)[1:] {
 		fmt.Fprintf(w, "            %s\n", l)
 	}
-	ver, err := step("verify", last.recDir, "--pub", keyPath+".pub", "--plan", planPath, "--draw", last.drawDir, "--labels", last.labelsPath, "--log", last.logPath)
+	ver, err := step("verify", last.recDir, "--pub", keyPath+".pub", "--plan", planPath, "--draw", last.drawDir, "--labels", last.labelsPath,
+		"--second", last.secondPath, "--adjudicated", last.adjudicatedPath, "--log", last.logPath)
 	if err != nil {
 		return err
 	}
@@ -168,9 +173,20 @@ func runDemo(d deps, o *demoOptions) error {
 // demoMonth is what one audited month of the demo produced.
 type demoMonth struct {
 	logPath, drawDir, labelsPath, recDir string
-	labeled, unsure                      int
-	record                               demoRun
+	// secondPath and adjudicatedPath are set for the month with double
+	// labeling.
+	secondPath, adjudicatedPath string
+	labeled, unsure, doubled    int
+	adjudicated                 int
+	record                      demoRun
 }
+
+// demoDouble is how many items of the latest month get an independent
+// second label, and demoSecondWrongAt where (among them) the second
+// labeler slips.
+const demoDouble = 60
+
+var demoSecondWrongAt = []int{9, 41}
 
 // runDemoMonth writes one month's log, draws its sample, labels it from
 // the hidden truth and issues its signed record. For the latest month it
@@ -186,20 +202,31 @@ func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmd
 	if err := writeDemoFile(res.logPath, m.WriteLogGzip); err != nil {
 		return res, err
 	}
-	if _, err := step("draw", "--plan", "plan.yaml", "--log", res.logPath, "--out", res.drawDir, "--period", m.Month,
-		"--strata", "section", "--spare", "2", "--show", "scan_ref,inspected_on,weld_type", "--quiet"); err != nil {
+	drawArgs := []string{"draw", "--plan", "plan.yaml", "--log", res.logPath, "--out", res.drawDir, "--period", m.Month,
+		"--strata", "section", "--spare", "2", "--show", "scan_ref,inspected_on,weld_type", "--quiet"}
+	if latest {
+		drawArgs = append(drawArgs, "--double", strconv.Itoa(demoDouble))
+	}
+	if _, err := step(drawArgs...); err != nil {
 		return res, err
 	}
-	summary, err := demoLabel(m, res.drawDir, res.labelsPath, 0)
+	summary, firstRows, err := demoLabel(m, res.drawDir, res.labelsPath, 0)
 	if err != nil {
 		return res, err
+	}
+	if latest {
+		if err := demoSecondLabels(m, &res, firstRows); err != nil {
+			return res, err
+		}
+		fmt.Fprintf(cmdlog, "# simulated second labeling of the %d doubled items by %s, who disagrees on %d; %s adjudicated them: %s\n\n",
+			res.doubled, demolog.SecondLabeler, res.adjudicated, demolog.Adjudicator, res.adjudicatedPath)
 	}
 	res.labeled, res.unsure = summary.Labeled, len(summary.Unsure)
 	fmt.Fprintf(cmdlog, "# simulated labeling of %s: %d items labeled from the hidden truth by %s; %d marked unsure (%s), replaced by spares %s\n\n",
 		m.Month, summary.Labeled, demolog.Labeler, len(summary.Unsure), strings.Join(summary.Unsure, ", "), strings.Join(summary.SparesUsed, ", "))
 	if latest {
 		partial := filepath.Join("labels-"+m.Month, "worksheet-first-400.csv")
-		if _, err := demoLabel(m, res.drawDir, partial, 400); err != nil {
+		if _, _, err := demoLabel(m, res.drawDir, partial, 400); err != nil {
 			return res, err
 		}
 		if _, err := step("progress", "--plan", "plan.yaml", "--draw", res.drawDir, "--labels", partial); err != nil {
@@ -210,9 +237,42 @@ func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmd
 	if !latest {
 		date = demolog.Clock.AddDate(0, -1, 0).Format("2006-01-02")
 	}
-	res.record, err = step("record", "--plan", "plan.yaml", "--draw", res.drawDir, "--labels", res.labelsPath, "--out", res.recDir,
-		"--use", "safety", "--signoff", "signoff.yaml", "--sign-key", keyPath, "--date", date)
+	recordArgs := []string{"record", "--plan", "plan.yaml", "--draw", res.drawDir, "--labels", res.labelsPath, "--out", res.recDir,
+		"--use", "safety", "--signoff", "signoff.yaml", "--sign-key", keyPath, "--date", date}
+	if res.secondPath != "" {
+		recordArgs = append(recordArgs, "--second", res.secondPath, "--adjudicated", res.adjudicatedPath)
+	}
+	res.record, err = step(recordArgs...)
 	return res, err
+}
+
+// demoSecondLabels labels the draw's worksheet-second.csv as the second
+// labeler would and writes the adjudication of every disagreement.
+func demoSecondLabels(m demolog.Scenario, res *demoMonth, first []sampling.WorksheetRow) error {
+	man, _, err := sampling.ReadManifest(filepath.Join(res.drawDir, sampling.ManifestFile))
+	if err != nil {
+		return err
+	}
+	_, rows, err := sampling.ReadWorksheet(filepath.Join(res.drawDir, sampling.WorksheetSecondFile))
+	if err != nil {
+		return err
+	}
+	second, err := m.LabelSecond(rows, demoSecondWrongAt)
+	if err != nil {
+		return err
+	}
+	dir := filepath.Dir(res.labelsPath)
+	res.secondPath = filepath.Join(dir, "worksheet-second-labeled.csv")
+	res.adjudicatedPath = filepath.Join(dir, "adjudication.csv")
+	res.doubled = len(second)
+	if err := writeDemoFile(res.secondPath, func(w io.Writer) error { return sampling.WriteWorksheet(w, man.ShowColumns, second) }); err != nil {
+		return err
+	}
+	return writeDemoFile(res.adjudicatedPath, func(w io.Writer) error {
+		n, err := m.WriteAdjudications(w, first, second)
+		res.adjudicated = n
+		return err
+	})
 }
 
 // demoOverall picks the overall verdict out of record's output.
@@ -261,34 +321,35 @@ func runDemoStep(d deps, cmdlog *bytes.Buffer, args []string) demoRun {
 // demoLabel fills the drawn worksheet from the scenario's hidden truth and
 // writes it to path. With prefix > 0 only the first prefix items keep their
 // labels, as midway through labeling from the top.
-func demoLabel(sc demolog.Scenario, drawDir, path string, prefix int) (demolog.LabelingSummary, error) {
+func demoLabel(sc demolog.Scenario, drawDir, path string, prefix int) (demolog.LabelingSummary, []sampling.WorksheetRow, error) {
 	var sum demolog.LabelingSummary
 	m, _, err := sampling.ReadManifest(filepath.Join(drawDir, sampling.ManifestFile))
 	if err != nil {
-		return sum, err
+		return sum, nil, err
 	}
 	_, rows, err := sampling.ReadWorksheet(filepath.Join(drawDir, sampling.WorksheetFile))
 	if err != nil {
-		return sum, err
+		return sum, nil, err
 	}
 	names, err := demoCandidateNames(drawDir)
 	if err != nil {
-		return sum, err
+		return sum, nil, err
 	}
 	ledger, err := sampling.ReadLedger(filepath.Join(drawDir, sampling.LedgerFile), names)
 	if err != nil {
-		return sum, err
+		return sum, nil, err
 	}
 	labeled, sum, err := sc.Label(rows, ledger, demoUnsureAt)
 	if err != nil {
-		return sum, err
+		return sum, nil, err
 	}
 	if prefix > 0 {
 		for i := prefix; i < len(labeled); i++ {
 			labeled[i].Label, labeled[i].Note, labeled[i].Labeler = "", "", ""
 		}
 	}
-	return sum, writeDemoFile(path, func(w io.Writer) error { return sampling.WriteWorksheet(w, m.ShowColumns, labeled) })
+	err = writeDemoFile(path, func(w io.Writer) error { return sampling.WriteWorksheet(w, m.ShowColumns, labeled) })
+	return sum, labeled, err
 }
 
 // demoCandidateNames reads the candidate columns from the ledger header.

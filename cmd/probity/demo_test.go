@@ -62,7 +62,8 @@ func TestDemoEndToEnd(t *testing.T) {
 	runOnce(a)
 
 	files := []string{"plan.yaml", "signoff.yaml", "commands.txt", "trend.png", "trend.pdf",
-		"keys/demo-signing-key", "keys/demo-signing-key.pub", "labels-2026-11/worksheet-first-400.csv"}
+		"keys/demo-signing-key", "keys/demo-signing-key.pub", "labels-2026-11/worksheet-first-400.csv",
+		"draw-2026-11/worksheet-second.csv", "labels-2026-11/worksheet-second-labeled.csv", "labels-2026-11/adjudication.csv"}
 	for _, m := range []string{"2026-10", "2026-11"} {
 		files = append(files, "prediction-log-"+m+".csv.gz",
 			"draw-"+m+"/worksheet.csv", "draw-"+m+"/ledger.csv", "draw-"+m+"/manifest.json",
@@ -125,6 +126,9 @@ func TestDemoEndToEnd(t *testing.T) {
 			t.Errorf("candidate %s: verdict %s, want %s", name, v, want)
 		}
 	}
+	if q := rec.LabelQuality; q == nil || q.Doubled != demoDouble || q.Adjudicated != len(demoSecondWrongAt) || q.Unadjudicated != 0 {
+		t.Errorf("November label quality %+v, want %d doubled and %d adjudicated", q, demoDouble, len(demoSecondWrongAt))
+	}
 	if len(rec.Deviations.Unsure) != len(demoUnsureAt) || len(rec.Deviations.SparesUsed) != len(demoUnsureAt) {
 		t.Errorf("deviations: unsure %v, spares used %v", rec.Deviations.Unsure, rec.Deviations.SparesUsed)
 	}
@@ -134,7 +138,9 @@ func TestDemoEndToEnd(t *testing.T) {
 	rd := filepath.Join(a, "record-2026-11")
 	if code := run([]string{"verify", rd, "--pub", filepath.Join(a, "keys", "demo-signing-key.pub"),
 		"--plan", filepath.Join(a, "plan.yaml"), "--draw", filepath.Join(a, "draw-2026-11"),
-		"--labels", filepath.Join(a, "labels-2026-11", "worksheet-labeled.csv")}, demoDeps(&out, &errb)); code != exitOK {
+		"--labels", filepath.Join(a, "labels-2026-11", "worksheet-labeled.csv"),
+		"--second", filepath.Join(a, "labels-2026-11", "worksheet-second-labeled.csv"),
+		"--adjudicated", filepath.Join(a, "labels-2026-11", "adjudication.csv")}, demoDeps(&out, &errb)); code != exitOK || !strings.Contains(out.String(), "judgement recomputed") {
 		t.Fatalf("verify exit %d:\n%s\n%s", code, out.String(), errb.String())
 	}
 
@@ -154,7 +160,7 @@ func TestDemoEndToEnd(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		for _, want := range []string{"ACCEPT", "REJECT", "safety case", "licensed"} {
+		for _, want := range []string{"ACCEPT", "REJECT", "safety case", "licensed", "Label quality", "Gwet's AC1"} {
 			if !bytes.Contains(txt, []byte(want)) {
 				t.Errorf("record.pdf text lacks %q", want)
 			}
