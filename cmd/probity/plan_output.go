@@ -273,13 +273,16 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 		case row.SampleSize == 0:
 			fmt.Fprintf(w, "  %-36s %10s\n", title, fmt.Sprintf("over %d", plan.MaxSampleSize))
 		default:
-			note := ""
+			note, ref := "", "this plan"
+			if f.Sequential != nil {
+				ref = "the fixed plan"
+			}
 			if row.Rule == mine {
-				note = "  (this plan)"
+				note = "  (" + ref + ")"
 			} else if row.SampleSize == base {
 				note = "  the same"
 			} else if base > 0 {
-				note = "  " + ratio(float64(row.SampleSize)/float64(base)) + " this plan"
+				note = "  " + ratio(float64(row.SampleSize)/float64(base)) + " " + ref
 			}
 			fmt.Fprintf(w, "  %-36s %10d%s\n", title, row.SampleSize, note)
 		}
