@@ -2,11 +2,9 @@ package sampling
 
 import (
 	"bytes"
-	"crypto/sha256"
 	"encoding/binary"
 	"encoding/json"
 	"errors"
-	"hash"
 	"strconv"
 	"unsafe"
 )
@@ -21,10 +19,7 @@ type worker struct {
 	hotLast   int
 	json      jsonFields
 	vals      [][]byte
-	hbuf      []byte
-	hasher    hash.Hash
-	sum       []byte
-	plen      int
+	keys      *keyHasher
 	label     []byte
 	strata    map[string]*wstratum
 	table     stratumTable
@@ -75,9 +70,7 @@ func (s *scanner) newWorker() *worker {
 			w.hotLast = c
 		}
 	}
-	w.hbuf = append([]byte(s.spec.Seed), ':')
-	w.hasher = sha256.New()
-	w.plen = len(w.hbuf)
+	w.keys = newKeyHasher(s.spec.Seed)
 	if len(s.strataSlots) == 0 && len(s.bandSlots) == 0 {
 		w.single = w.newStratum(AllStratum)
 	}
@@ -259,12 +252,7 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 		}
 	}
 	st.count++
-	w.hbuf = append(w.hbuf[:w.plen], id...)
-	// A reused digest costs less per row than sha256.Sum256.
-	w.hasher.Reset()
-	w.hasher.Write(w.hbuf)
-	w.sum = w.hasher.Sum(w.sum[:0])
-	key := [32]byte(w.sum)
+	key := w.keys.sum(id)
 	if !st.ret.wants(binary.BigEndian.Uint64(key[:8])) {
 		return nil
 	}
