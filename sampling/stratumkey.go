@@ -1,5 +1,7 @@
 package sampling
 
+import "encoding/binary"
+
 // Finding a row's stratum without building its label: each strata
 // column's values are interned to small numbers, and the numbers (with
 // the band indexes) packed into one uint64 that indexes the worker's
@@ -14,6 +16,44 @@ const maxPacked = 4
 type internTable struct {
 	keys  []internEntry
 	count int
+	// short caches the numbers of values of 1 to 7 bytes by shortWord,
+	// direct-mapped: a hit costs one load and one comparison.
+	short [64]shortEntry
+}
+
+type shortEntry struct {
+	word uint64 // 0: empty (a shortWord is never 0)
+	id   int32
+}
+
+// shortWord packs a value of 1 to 7 bytes and its length into one word,
+// distinct for distinct values; ok is false for other lengths and when
+// fewer than 8 bytes can be loaded from v's array. The bytes past len(v)
+// are masked out.
+func shortWord(v []byte) (w uint64, ok bool) {
+	n := len(v)
+	if n == 0 || n > 7 || cap(v) < 8 {
+		return 0, false
+	}
+	x := binary.LittleEndian.Uint64(v[:8:8])
+	return x&(1<<(8*uint(n))-1) | uint64(n)<<56, true
+}
+
+// lookup is find with the short-value cache in front.
+func (t *internTable) lookup(v []byte) (id int32, ok bool) {
+	w, short := shortWord(v)
+	if !short {
+		return t.find(v)
+	}
+	e := &t.short[(w*0x9E3779B97F4A7C15)>>58]
+	if e.word == w {
+		return e.id, true
+	}
+	id, ok = t.find(v)
+	if ok {
+		*e = shortEntry{word: w, id: id}
+	}
+	return id, ok
 }
 
 type internEntry struct {

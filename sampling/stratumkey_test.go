@@ -59,3 +59,41 @@ func TestManyStrataColumnsUseLabels(t *testing.T) {
 		}
 	}
 }
+
+// TestInternLookupShortValues checks the short-value cache: values of 1 to
+// 8 bytes that differ only past a shorter value's end, or only in a late
+// byte, keep distinct numbers, whether or not 8 bytes can be loaded from
+// their array, and lookup agrees with find (common practice, no source).
+func TestInternLookupShortValues(t *testing.T) {
+	var tab internTable
+	vals := []string{"a", "ab", "abc", "abcdefg", "abcdefh", "abcdefgh", "b", "ba", "web", "app", "call", "wed", "\x00", "\x00\x00"}
+	want := map[string]int32{}
+	for round := 0; round < 3; round++ {
+		for _, v := range vals {
+			// The value inside a longer array (8-byte loads possible)
+			// and alone (not possible), with different bytes after it.
+			in := append([]byte(v), []byte("zzzzzzzz")[:round+1]...)[:len(v)]
+			alone := []byte(v)[:len(v):len(v)]
+			for _, b := range [][]byte{in, alone} {
+				id, ok := tab.lookup(b)
+				if !ok {
+					t.Fatalf("lookup(%q) refused", v)
+				}
+				if w, seen := want[v]; seen && w != id {
+					t.Fatalf("lookup(%q) = %d, earlier %d", v, id, w)
+				}
+				want[v] = id
+				if fid, _ := tab.find(b); fid != id {
+					t.Fatalf("find(%q) = %d, lookup %d", v, fid, id)
+				}
+			}
+		}
+	}
+	seen := map[int32]string{}
+	for v, id := range want {
+		if o, dup := seen[id]; dup {
+			t.Fatalf("%q and %q share number %d", v, o, id)
+		}
+		seen[id] = v
+	}
+}

@@ -194,7 +194,7 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 	if st == nil && w.packOK {
 		// The fast path: interned values and band indexes, packed.
 		for i, sl := range s.strataSlots {
-			id, ok := w.interns[i].find(w.vals[sl])
+			id, ok := w.interns[i].lookup(w.vals[sl])
 			if !ok {
 				w.packOK = false
 				break
