@@ -41,7 +41,8 @@ type ScanSpec struct {
 	// Workers is the number of parsing and hashing goroutines (0: one per
 	// CPU).
 	Workers int
-	// ChunkSize is the read size in bytes (0: 1 MiB).
+	// ChunkSize is the read size in bytes (0: 128 KiB, which keeps a chunk
+	// in the cache between the reader and the worker that takes it).
 	ChunkSize int
 	// MaxStrata bounds the number of strata (0: 10 000).
 	MaxStrata int
@@ -112,7 +113,7 @@ func Scan(src io.Reader, spec ScanSpec) (*ScanResult, error) {
 		spec.Workers = runtime.GOMAXPROCS(0)
 	}
 	if spec.ChunkSize <= 0 {
-		spec.ChunkSize = 1 << 20
+		spec.ChunkSize = 128 << 10
 	}
 	if spec.MaxStrata <= 0 {
 		spec.MaxStrata = 10000
