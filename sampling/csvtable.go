@@ -31,6 +31,28 @@ func readCSVTable(path string) (*csvTable, error) {
 	return parseCSVTable(data, path)
 }
 
+// CSVTable is a small CSV file with a header line, read whole: what
+// ParseCSVTable returns to callers outside this package (a query result,
+// an adjudication file). Lines[i] is the 1-based line Rows[i] starts on.
+type CSVTable struct {
+	Header []string
+	Rows   [][]string
+	Lines  []int
+}
+
+// ParseCSVTable parses a small CSV file with a header line, as the draw
+// folder's own files are read: a UTF-8 byte-order mark and CRLF line ends
+// are accepted, every row must have as many fields as the header, and an
+// empty file is an error. Errors are *InputError values naming name and
+// the line.
+func ParseCSVTable(data []byte, name string) (*CSVTable, error) {
+	t, err := parseCSVTable(data, name)
+	if err != nil {
+		return nil, err
+	}
+	return &CSVTable{Header: t.header, Rows: t.rows, Lines: t.lines}, nil
+}
+
 // parseCSVTable is readCSVTable on bytes already read.
 func parseCSVTable(data []byte, name string) (*csvTable, error) {
 	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))

@@ -1,11 +1,8 @@
 package agreement
 
 import (
-	"bytes"
-	"encoding/csv"
 	"errors"
 	"fmt"
-	"io"
 	"os"
 	"slices"
 	"strconv"
@@ -57,39 +54,27 @@ func ReadAdjudications(path string, classes []string) ([]Adjudication, error) {
 // ParseAdjudications is ReadAdjudications on bytes already read; name is
 // the file name used in messages.
 func ParseAdjudications(data []byte, name string, classes []string) ([]Adjudication, error) {
-	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
-	r := csv.NewReader(bytes.NewReader(data))
-	r.FieldsPerRecord = -1
-	var out []Adjudication
-	header := false
+	emptyHint := "start the file with the line: " + strings.Join(AdjudicationColumns, ",")
+	t, err := sampling.ParseCSVTable(data, name)
+	if err != nil {
+		var ie *sampling.InputError
+		if errors.As(err, &ie) && ie.Line == 0 && ie.Err == nil {
+			c := *ie
+			c.Hint = emptyHint
+			return nil, &c
+		}
+		return nil, err
+	}
+	if !slices.Equal(t.Header, AdjudicationColumns) {
+		return nil, &sampling.InputError{File: name, Line: 1,
+			Msg:  fmt.Sprintf("header is %s; an adjudication file's columns are %s", strings.Join(t.Header, ","), strings.Join(AdjudicationColumns, ",")),
+			Hint: emptyHint}
+	}
+	out := []Adjudication{}
 	items := map[int]int{}
 	ids := map[string]int{}
-	for {
-		rec, err := r.Read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				return nil, &sampling.InputError{File: name, Line: pe.Line, Msg: pe.Err.Error(), Err: err}
-			}
-			return nil, &sampling.InputError{File: name, Msg: err.Error(), Err: err}
-		}
-		line, _ := r.FieldPos(0)
-		if !header {
-			if !slices.Equal(rec, AdjudicationColumns) {
-				return nil, &sampling.InputError{File: name, Line: line,
-					Msg:  fmt.Sprintf("header is %s; an adjudication file's columns are %s", strings.Join(rec, ","), strings.Join(AdjudicationColumns, ",")),
-					Hint: "start the file with the line: " + strings.Join(AdjudicationColumns, ",")}
-			}
-			header = true
-			continue
-		}
-		if len(rec) != len(AdjudicationColumns) {
-			return nil, &sampling.InputError{File: name, Line: line,
-				Msg: fmt.Sprintf("%d fields, but the header has %d", len(rec), len(AdjudicationColumns))}
-		}
+	for i, rec := range t.Rows {
+		line := t.Lines[i]
 		a, err := parseAdjudication(name, line, rec, classes)
 		if err != nil {
 			return nil, err
@@ -105,13 +90,6 @@ func ParseAdjudications(data []byte, name string, classes []string) ([]Adjudicat
 		}
 		ids[a.RecordID] = line
 		out = append(out, a)
-	}
-	if !header {
-		return nil, &sampling.InputError{File: name, Msg: "the file is empty (no header line)",
-			Hint: "start the file with the line: " + strings.Join(AdjudicationColumns, ",")}
-	}
-	if out == nil {
-		out = []Adjudication{}
 	}
 	return out, nil
 }

@@ -2,7 +2,6 @@ package sqlquery
 
 import (
 	"bytes"
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io"
@@ -41,37 +40,21 @@ const (
 // COPY … CSV HEADER writes it (a UTF-8 byte-order mark and CRLF line ends
 // are accepted).
 func readResult(path string, data []byte) (*resultTable, error) {
-	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
-	r := csv.NewReader(bytes.NewReader(data))
-	r.FieldsPerRecord = -1
-	t := &resultTable{name: path}
-	for {
-		rec, err := r.Read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				return nil, &sampling.InputError{File: path, Line: pe.Line, Msg: "not a CSV result: " + pe.Err.Error(), Err: err}
-			}
-			return nil, &sampling.InputError{File: path, Msg: err.Error(), Err: err}
-		}
-		line, _ := r.FieldPos(0)
-		if t.header == nil {
-			t.header = rec
-			continue
-		}
-		if len(rec) != len(t.header) {
-			return nil, &sampling.InputError{File: path, Line: line, Msg: fmt.Sprintf("%d fields, but the header has %d", len(rec), len(t.header))}
-		}
-		t.rows = append(t.rows, rec)
-		t.lines = append(t.lines, line)
-	}
-	if t.header == nil {
+	if len(bytes.TrimSpace(bytes.TrimPrefix(data, []byte("\xef\xbb\xbf")))) == 0 {
 		return nil, &sampling.InputError{File: path, Msg: "the file is empty",
 			Hint: "save the query's result with its header, e.g. psql --csv -f draw.sql > result.csv"}
 	}
+	ct, err := sampling.ParseCSVTable(data, path)
+	if err != nil {
+		var ie *sampling.InputError
+		if errors.As(err, &ie) && ie.Line > 0 && ie.Err != nil {
+			c := *ie
+			c.Msg = "not a CSV result: " + c.Msg
+			return nil, &c
+		}
+		return nil, err
+	}
+	t := &resultTable{name: path, header: ct.Header, rows: ct.Rows, lines: ct.Lines}
 	want := ResultHeader(len(t.header) - fixedColumns)
 	if len(t.header) < fixedColumns || strings.Join(t.header, ",") != strings.Join(want, ",") {
 		return nil, &sampling.InputError{File: path, Line: 1,
