@@ -23,18 +23,18 @@ const (
 	keepWithHeading = 24.0
 )
 
-// rgb is a colour.
-type rgb struct{ r, g, b int }
+// rgb is a colour (the short name used throughout the layout code).
+type rgb = Colour
 
 var (
-	inkColour     = rgb{25, 25, 30}
-	mutedColour   = rgb{95, 100, 110}
-	headingColour = rgb{20, 45, 90}
-	ruleColour    = rgb{170, 178, 190}
-	headFill      = rgb{224, 230, 239}
-	zebraFill     = rgb{245, 247, 250}
-	acceptColour  = rgb{0, 122, 61}
-	rejectColour  = rgb{190, 25, 35}
+	inkColour     = Ink
+	mutedColour   = Muted
+	headingColour = Heading
+	ruleColour    = Rule
+	headFill      = HeadFill
+	zebraFill     = ZebraFill
+	acceptColour  = AcceptGreen
+	rejectColour  = RejectRed
 	white         = rgb{255, 255, 255}
 )
 
@@ -63,9 +63,9 @@ func (d *doc) mono(size float64) {
 	d.pdf.SetFont("mono", "", size)
 }
 
-func (d *doc) textColour(c rgb) { d.pdf.SetTextColor(c.r, c.g, c.b) }
-func (d *doc) fillColour(c rgb) { d.pdf.SetFillColor(c.r, c.g, c.b) }
-func (d *doc) drawColour(c rgb) { d.pdf.SetDrawColor(c.r, c.g, c.b) }
+func (d *doc) textColour(c rgb) { d.pdf.SetTextColor(c.R, c.G, c.B) }
+func (d *doc) fillColour(c rgb) { d.pdf.SetFillColor(c.R, c.G, c.B) }
+func (d *doc) drawColour(c rgb) { d.pdf.SetDrawColor(c.R, c.G, c.B) }
 
 // need starts a new page unless h millimetres fit below the cursor.
 // It reports whether it started one.

@@ -13,6 +13,7 @@ import (
 	"github.com/jung-kurt/gofpdf"
 	"gonum.org/v1/plot/vg"
 
+	"probity/pdfreport"
 	"probity/plan/record"
 	"probity/plan/trend"
 )
@@ -41,18 +42,19 @@ const (
 	colOverall = 15.0
 )
 
-type rgb struct{ r, g, b int }
+type rgb = pdfreport.Colour
 
+// The record's palette, plus the trend's own flag colour.
 var (
-	ink       = rgb{25, 25, 30}
-	muted     = rgb{95, 100, 110}
-	heading   = rgb{20, 45, 90}
-	headFill  = rgb{224, 230, 239}
-	zebraFill = rgb{245, 247, 250}
-	accept    = rgb{0, 122, 61}
-	reject    = rgb{190, 25, 35}
-	flag      = rgb{200, 95, 0}
-	rule      = rgb{170, 178, 190}
+	ink       = pdfreport.Ink
+	muted     = pdfreport.Muted
+	heading   = pdfreport.Heading
+	headFill  = pdfreport.HeadFill
+	zebraFill = pdfreport.ZebraFill
+	accept    = pdfreport.AcceptGreen
+	reject    = pdfreport.RejectRed
+	flag      = rgb{R: 200, G: 95, B: 0}
+	rule      = pdfreport.Rule
 )
 
 // PDF lays out t on one A4 portrait page (up to 36 periods and 4
@@ -144,10 +146,10 @@ type page struct {
 
 func (p *page) font(style string, size float64, c rgb) {
 	p.pdf.SetFont("sans", style, size)
-	p.pdf.SetTextColor(c.r, c.g, c.b)
+	p.pdf.SetTextColor(c.R, c.G, c.B)
 }
 
-func (p *page) fill(c rgb) { p.pdf.SetFillColor(c.r, c.g, c.b) }
+func (p *page) fill(c rgb) { p.pdf.SetFillColor(c.R, c.G, c.B) }
 
 // line writes one line of text across the page.
 func (p *page) line(text string, h float64) {
@@ -255,7 +257,7 @@ func (p *page) table(t *trend.Trend, candW, size, rowH float64) {
 		}
 		pdf.Ln(-1)
 	}
-	pdf.SetDrawColor(rule.r, rule.g, rule.b)
+	pdf.SetDrawColor(rule.R, rule.G, rule.B)
 	y := pdf.GetY()
 	pdf.Line(p.x, y, p.x+p.w, y)
 	p.font("", 7, muted)
@@ -293,7 +295,7 @@ func (p *page) warnings(ws []string) {
 func (p *page) footer(t *trend.Trend, info PageInfo, ph float64) {
 	pdf := p.pdf
 	y := ph - pageMargin - 4
-	pdf.SetDrawColor(rule.r, rule.g, rule.b)
+	pdf.SetDrawColor(rule.R, rule.G, rule.B)
 	pdf.Line(p.x, y-1, p.x+p.w, y-1)
 	pdf.SetXY(p.x, y)
 	p.font("", 7, muted)
