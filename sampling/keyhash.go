@@ -6,22 +6,35 @@ import (
 	"encoding"
 	"encoding/binary"
 	"hash"
+
+	"probity/sampling/sha256pair"
 )
 
 // keyHasher computes the selection key SHA-256("<seed>:<id>") of many
-// rows with one reused digest and no allocation.
+// rows without allocating.
 //
-// The fast path pads the message itself (FIPS 180-4 §5.1.1: a 1 bit,
-// zeros up to 56 mod 64 bytes, the length in bits as a big-endian 64-bit
-// number) and writes the padded blocks, so the digest runs only its
-// compression function on them. The state words after the last block
-// are then the hash (FIPS 180-4 §6.2.2, step 4); they are read from the
-// digest's binary encoding (the 4-byte magic, then the eight words
-// big-endian). This skips the copy of the digest and the second write
-// that Sum makes. newKeyHasher checks the fast path against
-// sha256.Sum256 and falls back to Sum when the encoding is not as
-// expected.
+// Where the processor has the SHA extensions it hashes two rows at once
+// (sha256pair): the whole 64-byte blocks of "<seed>:" are compressed once
+// (the midstate); each row then needs only its tail — the rest of the
+// prefix, the id and the FIPS 180-4 §5.1.1 padding (a 1 bit, zeros up to
+// 56 mod 64 bytes, the message length in bits as a big-endian 64-bit
+// number) — usually a single block. The state words after the last
+// block are the hash (FIPS 180-4 §6.2.2, step 4).
+//
+// Elsewhere it uses crypto/sha256 with the padded blocks written by
+// itself, so the digest runs only its compression function, and reads
+// the state from the digest's binary encoding (the 4-byte magic, then
+// the eight words big-endian), which skips the copy and second write of
+// Sum. Both paths are checked against sha256.Sum256 when the hasher is
+// made and fall back to Sum when the check fails.
 type keyHasher struct {
+	// pair: two rows at a time on the SHA extensions.
+	pair bool
+	mid  [8]uint32
+	rem  []byte // the prefix after its whole blocks (< 64 bytes)
+	ta   []byte
+	tb   []byte
+	// The crypto/sha256 path.
 	d    hash.Hash
 	app  encoding.BinaryAppender // nil: use Sum
 	buf  []byte
@@ -34,12 +47,29 @@ func newKeyHasher(seed string) *keyHasher {
 	k := &keyHasher{d: sha256.New()}
 	k.buf = append(append(k.buf, seed...), ':')
 	k.plen = len(k.buf)
+	checks := []string{"", "r1", string(bytes.Repeat([]byte("x"), 60)), string(bytes.Repeat([]byte("y"), 130))}
 	if app, ok := k.d.(encoding.BinaryAppender); ok {
 		k.app = app
-		// Self-check on ids that give one, two and three blocks.
-		for _, id := range []string{"", "r1", string(bytes.Repeat([]byte("x"), 60)), string(bytes.Repeat([]byte("y"), 130))} {
-			if k.sum([]byte(id)) != sha256.Sum256([]byte(seed+":"+id)) {
+		for _, id := range checks {
+			if k.cryptoSum([]byte(id)) != toHKey(ptr(sha256.Sum256([]byte(seed+":"+id)))) {
 				k.app = nil
+				break
+			}
+		}
+	}
+	if sha256pair.Accelerated() {
+		whole := k.plen / 64 * 64
+		k.mid = sha256pair.Init
+		for i := 0; i < whole; i += 64 {
+			sha256pair.Compress(&k.mid, (*[64]byte)(k.buf[i:]))
+		}
+		k.rem = append([]byte(nil), k.buf[whole:k.plen]...)
+		k.pair = true
+		for i, id := range checks {
+			other := []byte(checks[(i+1)%len(checks)])
+			a, b := k.key2([]byte(id), other)
+			if a != toHKey(ptr(sha256.Sum256([]byte(seed+":"+id)))) || b != toHKey(ptr(sha256.Sum256(append([]byte(seed+":"), other...)))) {
+				k.pair = false
 				break
 			}
 		}
@@ -47,8 +77,71 @@ func newKeyHasher(seed string) *keyHasher {
 	return k
 }
 
-// sum returns SHA-256("<seed>:<id>").
-func (k *keyHasher) sum(id []byte) [32]byte {
+func ptr(b [32]byte) *[32]byte { return &b }
+
+// key returns the key of one row.
+func (k *keyHasher) key(id []byte) hkey {
+	if !k.pair {
+		return k.cryptoSum(id)
+	}
+	t := k.tail(k.ta[:0], id)
+	k.ta = t
+	s := k.mid
+	for i := 0; i < len(t); i += 64 {
+		b := (*[64]byte)(t[i:])
+		sha256pair.Compress2(&s, &s, b, b)
+	}
+	return stateKey(&s)
+}
+
+// key2 returns the keys of two rows, hashed together.
+func (k *keyHasher) key2(a, b []byte) (hkey, hkey) {
+	if !k.pair {
+		return k.cryptoSum(a), k.cryptoSum(b)
+	}
+	ta, tb := k.tail(k.ta[:0], a), k.tail(k.tb[:0], b)
+	k.ta, k.tb = ta, tb
+	sa, sb := k.mid, k.mid
+	n := min(len(ta), len(tb))
+	for i := 0; i < n; i += 64 {
+		sha256pair.Compress2(&sa, &sb, (*[64]byte)(ta[i:]), (*[64]byte)(tb[i:]))
+	}
+	// Tails of different lengths: the longer one goes on alone.
+	for i := n; i < len(ta); i += 64 {
+		blk := (*[64]byte)(ta[i:])
+		sha256pair.Compress2(&sa, &sa, blk, blk)
+	}
+	for i := n; i < len(tb); i += 64 {
+		blk := (*[64]byte)(tb[i:])
+		sha256pair.Compress2(&sb, &sb, blk, blk)
+	}
+	return stateKey(&sa), stateKey(&sb)
+}
+
+// tail appends to dst the blocks that follow the midstate for this id:
+// the rest of the prefix, the id and the padding.
+func (k *keyHasher) tail(dst, id []byte) []byte {
+	dst = append(append(dst, k.rem...), id...)
+	n := len(dst)
+	padded := (n+8)/64*64 + 64
+	if cap(dst) < padded {
+		dst = append(dst, make([]byte, padded-n)...)
+	}
+	dst = dst[:padded]
+	dst[n] = 0x80
+	clear(dst[n+1 : padded-8])
+	binary.BigEndian.PutUint64(dst[padded-8:], uint64(k.plen+len(id))*8)
+	return dst
+}
+
+// stateKey is the key of a final state: its words, big-endian, in order.
+func stateKey(s *[8]uint32) hkey {
+	return hkey{uint64(s[0])<<32 | uint64(s[1]), uint64(s[2])<<32 | uint64(s[3]),
+		uint64(s[4])<<32 | uint64(s[5]), uint64(s[6])<<32 | uint64(s[7])}
+}
+
+// cryptoSum returns SHA-256("<seed>:<id>") through crypto/sha256.
+func (k *keyHasher) cryptoSum(id []byte) hkey {
 	b := append(k.buf[:k.plen], id...)
 	n := len(b)
 	k.d.Reset()
@@ -56,7 +149,7 @@ func (k *keyHasher) sum(id []byte) [32]byte {
 		k.d.Write(b)
 		k.out = k.d.Sum(k.out[:0])
 		k.buf = b
-		return [32]byte(k.out)
+		return toHKey((*[32]byte)(k.out))
 	}
 	padded := (n+8)/64*64 + 64
 	if cap(b) < padded {
@@ -74,7 +167,7 @@ func (k *keyHasher) sum(id []byte) [32]byte {
 		// Not reached with crypto/sha256; kept so a change of the
 		// encoding can only cost speed.
 		k.app = nil
-		return k.sum(id)
+		return k.cryptoSum(id)
 	}
-	return [32]byte(out[4:36])
+	return toHKey((*[32]byte)(out[4:36]))
 }

@@ -1,138 +1,61 @@
 package sampling
 
 import (
-	"encoding/binary"
 	"hash/maphash"
-	"math/bits"
-)
 
-// SWAR constants: eight bytes handled at once in a uint64.
-const (
-	swarLow7 = 0x7f7f7f7f7f7f7f7f
-	swarOnes = 0x0101010101010101
+	"probity/sampling/delimscan"
 )
-
-// zeroBytes sets the high bit of every byte of x that is zero, and only
-// of those (no carry crosses bytes, unlike the shorter borrow trick).
-func zeroBytes(x uint64) uint64 {
-	return ^(((x & swarLow7) + swarLow7) | x | swarLow7)
-}
 
 // chunkPlain processes a chunk of delimited records that holds no quote
-// character (every TSV chunk; CSV chunks without '"'). It finds
-// separators and line ends eight bytes at a time and cuts fields and
-// records in the same pass — the same records and fields as splitting
-// each line, without a call per field.
+// character (every TSV chunk; CSV chunks without '"'). Masks of the
+// separators and line ends (delimscan) are built for the whole chunk
+// first; records and the needed fields are then cut with bit arithmetic,
+// and the separators after the last needed field are only counted — the
+// same records and fields as splitting each line.
 func (w *worker) chunkPlain(c chunk) {
 	data := c.data
 	n := len(data)
-	sep := w.split.sep
-	sepMask := uint64(sep) * swarOnes
-	const nlMask = uint64('\n') * swarOnes
+	w.seps, w.nls = delimscan.Masks(data, w.split.sep, w.seps[:0], w.nls[:0])
+	seps, nls := w.seps, w.nls
 	need := w.s.hotNeed
 	last := w.hotLast
 	vals := w.vals
 	line := c.line
-	recStart, fieldStart, nf := 0, 0, 0
-	// skip: every needed field of the record is read; the rest of its
-	// separators are only counted, a word at a time.
-	skip := false
-	for i := 0; i < n; {
-		base := i
-		var ms, mnl uint64
-		if i+8 <= n {
-			x := binary.LittleEndian.Uint64(data[i:])
-			ms = zeroBytes(x ^ sepMask)
-			mnl = zeroBytes(x ^ nlMask)
-			i += 8
-		} else {
-			for j := i; j < n; j++ {
-				switch data[j] {
-				case '\n':
-					mnl |= 0x80 << (8 * uint(j-i))
-				case sep:
-					ms |= 0x80 << (8 * uint(j-i))
-				}
-			}
-			i = n
+	for recStart := 0; recStart < n; line++ {
+		nl := delimscan.Next(nls, recStart, n)
+		end := nl
+		if end > recStart && data[end-1] == '\r' {
+			end--
 		}
-		m := ms | mnl
-		for m != 0 {
-			if skip {
-				nlm := mnl & m
-				if nlm == 0 {
-					nf += bits.OnesCount64(ms & m)
+		if end > recStart {
+			nf := 0
+			for fs := recStart; ; {
+				p := delimscan.Next(seps, fs, end)
+				if nf < len(need) {
+					if sl := need[nf]; sl >= 0 {
+						vals[sl] = data[fs:p]
+					}
+				}
+				nf++
+				if p == end {
 					break
 				}
-				nlbit := nlm & -nlm
-				nf += bits.OnesCount64(ms & m & (nlbit - 1))
-				m &^= nlbit | (nlbit - 1)
-				pos := base + bits.TrailingZeros64(nlbit)>>3
-				nf++ // the record's last field
-				end := pos
-				if data[end-1] == '\r' {
-					end--
-				}
-				if err := w.process(line, nf, data[recStart:end]); err != nil {
-					w.s.fail(c.seq, err)
-					return
-				}
-				line++
-				recStart, fieldStart, nf, skip = pos+1, pos+1, 0, false
-				if c.seq > w.s.errSeq.Load() {
-					return
-				}
-				continue
-			}
-			bit := m & -m
-			pos := base + bits.TrailingZeros64(m)>>3
-			m &^= bit
-			end := pos
-			nl := mnl&bit != 0
-			if nl && end > fieldStart && data[end-1] == '\r' {
-				end--
-			}
-			if nf < len(need) {
-				if sl := need[nf]; sl >= 0 {
-					vals[sl] = data[fieldStart:end]
+				fs = p + 1
+				if nf > last {
+					// Every needed field is read: count the rest.
+					nf += delimscan.Count(seps, fs, end) + 1
+					break
 				}
 			}
-			nf++
-			fieldStart = pos + 1
-			if !nl {
-				skip = nf > last
-				continue
+			if err := w.process(line, nf, data[recStart:end]); err != nil {
+				w.s.fail(c.seq, err)
+				return
 			}
-			if end > recStart {
-				if err := w.process(line, nf, data[recStart:end]); err != nil {
-					w.s.fail(c.seq, err)
-					return
-				}
-			}
-			line++
-			recStart, nf = pos+1, 0
 			if c.seq > w.s.errSeq.Load() {
 				return
 			}
 		}
-	}
-	if recStart < n {
-		// The last record of the log, without a line end.
-		end := n
-		if data[end-1] == '\r' {
-			end--
-		}
-		if !skip && nf < len(need) {
-			if sl := need[nf]; sl >= 0 {
-				vals[sl] = data[fieldStart:max(end, fieldStart)]
-			}
-		}
-		nf++
-		if end > recStart {
-			if err := w.process(line, nf, data[recStart:end]); err != nil {
-				w.s.fail(c.seq, err)
-			}
-		}
+		recStart = nl + 1
 	}
 }
 

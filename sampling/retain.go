@@ -132,13 +132,12 @@ func (r *retainer) wants(head uint64) bool {
 // admit records a candidate with this key and line and reports whether
 // it was taken; if so the caller appends its fields to r.arena with
 // appendPart and then calls seal.
-func (r *retainer) admit(key *[32]byte, line int64) bool {
-	k := toHKey(key)
-	if r.cap == 0 || (r.full && r.thr.less(&k)) {
+func (r *retainer) admit(k *hkey, line int64) bool {
+	if r.cap == 0 || (r.full && r.thr.less(k)) {
 		r.evicted = true
 		return false
 	}
-	r.buf = append(r.buf, bentry{k: k, line: line, off: int32(len(r.arena))})
+	r.buf = append(r.buf, bentry{k: *k, line: line, off: int32(len(r.arena))})
 	return true
 }
 

@@ -2,7 +2,6 @@ package sampling
 
 import (
 	"bytes"
-	"encoding/binary"
 	"encoding/json"
 	"errors"
 	"strconv"
@@ -28,6 +27,10 @@ type worker struct {
 	interns []internTable
 	packed  packedTable
 	single  *wstratum
+	// seps and nls are the delimiter masks of the current chunk.
+	seps, nls []uint64
+	// pend is a row waiting to be hashed with the next one.
+	pend    pendingRow
 	rows    int64
 	dups    []dupEvent
 	seq     int64
@@ -99,6 +102,7 @@ func (w *worker) chunk(c chunk) {
 	quotes := w.s.format == FormatCSV && bytes.IndexByte(data, '"') >= 0
 	if w.s.format != FormatJSONL && !quotes {
 		w.chunkPlain(c)
+		w.flushPending()
 		return
 	}
 	w.split.noQuotes = !quotes
@@ -252,22 +256,60 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 		}
 	}
 	st.count++
-	key := w.keys.sum(id)
-	if !st.ret.wants(binary.BigEndian.Uint64(key[:8])) {
+	if rec != nil && w.keys.pair {
+		// Quote-free records stay in the chunk until it is done, so the
+		// row can wait for a second one and both are hashed together.
+		if w.pend.st == nil {
+			w.pend = pendingRow{st: st, id: id, line: line, rec: rec}
+			return nil
+		}
+		p := w.pend
+		w.pend.st = nil
+		ka, kb := w.keys.key2(p.id, id)
+		w.consider(p.st, &ka, p.id, p.line, p.rec)
+		w.consider(st, &kb, id, line, rec)
 		return nil
 	}
-	if r := st.ret; r.admit(&key, line) {
-		if rec != nil {
-			w.keepSplit.split(rec)
-		}
-		a := appendPart(r.arena, id)
-		for _, sl := range s.keepSlots {
-			a = appendPart(a, w.vals[sl])
-		}
-		r.arena = a
-		r.seal()
-	}
+	k := w.keys.key(id)
+	w.consider(st, &k, id, line, rec)
 	return nil
+}
+
+// pendingRow is a quote-free row whose key is not computed yet.
+type pendingRow struct {
+	st   *wstratum
+	id   []byte
+	line int64
+	rec  []byte
+}
+
+// flushPending hashes and considers the row left waiting at the end of a
+// chunk.
+func (w *worker) flushPending() {
+	if p := w.pend; p.st != nil {
+		w.pend.st = nil
+		k := w.keys.key(p.id)
+		w.consider(p.st, &k, p.id, p.line, p.rec)
+	}
+}
+
+// consider offers a row with this key to its stratum's retainer. rec, when
+// not nil, is the quote-free record whose kept columns have not been read
+// yet; otherwise they are in w.vals.
+func (w *worker) consider(st *wstratum, key *hkey, id []byte, line int64, rec []byte) {
+	r := st.ret
+	if !r.wants(key[0]) || !r.admit(key, line) {
+		return
+	}
+	if rec != nil {
+		w.keepSplit.split(rec)
+	}
+	a := appendPart(r.arena, id)
+	for _, sl := range w.s.keepSlots {
+		a = appendPart(a, w.vals[sl])
+	}
+	r.arena = a
+	r.seal()
 }
 
 // bandIndex returns the interval of band i holding the row's value.

@@ -1,0 +1,113 @@
+package delimscan
+
+import (
+	"encoding/binary"
+	"math/bits"
+)
+
+// Masks appends to seps and nls one word per 64 bytes of data (the last
+// word covers the rest, its high bits clear): bit j of seps[i] is set
+// when data[64·i+j] == sep, and of nls[i] when it is '\n'.
+func Masks(data []byte, sep byte, seps, nls []uint64) ([]uint64, []uint64) {
+	words := (len(data) + 63) / 64
+	seps, nls = grow(seps, words), grow(nls, words)
+	s, l := seps[len(seps)-words:], nls[len(nls)-words:]
+	whole := len(data) / 64
+	if whole > 0 {
+		masks(data[:64*whole], sep, s[:whole], l[:whole])
+	}
+	if rest := data[64*whole:]; len(rest) > 0 {
+		var ms, ml uint64
+		for j, c := range rest {
+			if c == sep {
+				ms |= 1 << uint(j)
+			}
+			if c == '\n' {
+				ml |= 1 << uint(j)
+			}
+		}
+		s[whole], l[whole] = ms, ml
+	}
+	return seps, nls
+}
+
+func grow(m []uint64, words int) []uint64 {
+	n := len(m) + words
+	if cap(m) < n {
+		m = append(make([]uint64, 0, n+n/4), m...)
+	}
+	return m[:n]
+}
+
+// SWAR constants: eight bytes handled at once in a uint64.
+const (
+	low7 = 0x7f7f7f7f7f7f7f7f
+	ones = 0x0101010101010101
+)
+
+// zeroBytes sets the high bit of every byte of x that is zero, and only
+// of those (no carry crosses bytes, unlike the shorter borrow trick).
+func zeroBytes(x uint64) uint64 {
+	return ^(((x & low7) + low7) | x | low7)
+}
+
+// gatherHigh packs the high bits of the eight bytes of x (all other bits
+// clear) into the low eight bits, byte 0 first: the multiplication moves
+// bit 8k+7 to bit 56+k without carries, as each product term lands on
+// its own bit.
+func gatherHigh(x uint64) uint64 {
+	return ((x >> 7) * 0x0102040810204080) >> 56
+}
+
+// masksPortable builds the masks of whole 64-byte blocks eight bytes at a
+// time.
+func masksPortable(data []byte, sep byte, seps, nls []uint64) {
+	sepBytes := uint64(sep) * ones
+	const nlBytes = uint64('\n') * ones
+	for i := range seps {
+		block := data[64*i : 64*i+64]
+		var ms, ml uint64
+		for k := 0; k < 8; k++ {
+			x := binary.LittleEndian.Uint64(block[8*k:])
+			ms |= gatherHigh(zeroBytes(x^sepBytes)) << (8 * k)
+			ml |= gatherHigh(zeroBytes(x^nlBytes)) << (8 * k)
+		}
+		seps[i], nls[i] = ms, ml
+	}
+}
+
+// Next returns the position of the first set bit of m at or after from
+// and before limit, or limit when there is none. m must cover limit.
+func Next(m []uint64, from, limit int) int {
+	if from >= limit {
+		return limit
+	}
+	wi := from >> 6
+	if x := m[wi] >> uint(from&63); x != 0 {
+		return min(from+bits.TrailingZeros64(x), limit)
+	}
+	for wi++; wi<<6 < limit; wi++ {
+		if x := m[wi]; x != 0 {
+			return min(wi<<6+bits.TrailingZeros64(x), limit)
+		}
+	}
+	return limit
+}
+
+// Count returns the number of set bits of m in [from, to).
+func Count(m []uint64, from, to int) int {
+	if from >= to {
+		return 0
+	}
+	fw, tw := from>>6, (to-1)>>6
+	first := m[fw] &^ (1<<uint(from&63) - 1)
+	lastMask := ^uint64(0) >> uint(63-(to-1)&63)
+	if fw == tw {
+		return bits.OnesCount64(first & lastMask)
+	}
+	n := bits.OnesCount64(first)
+	for i := fw + 1; i < tw; i++ {
+		n += bits.OnesCount64(m[i])
+	}
+	return n + bits.OnesCount64(m[tw]&lastMask)
+}
