@@ -84,7 +84,7 @@ func (k *keyHasher) key(id []byte) hkey {
 	if !k.pair {
 		return k.cryptoSum(id)
 	}
-	t := k.tail(k.ta[:0], id)
+	t := k.tail(k.ta, id)
 	k.ta = t
 	s := k.mid
 	for i := 0; i < len(t); i += 64 {
@@ -99,7 +99,7 @@ func (k *keyHasher) key2(a, b []byte) (hkey, hkey) {
 	if !k.pair {
 		return k.cryptoSum(a), k.cryptoSum(b)
 	}
-	ta, tb := k.tail(k.ta[:0], a), k.tail(k.tb[:0], b)
+	ta, tb := k.tail(k.ta, a), k.tail(k.tb, b)
 	k.ta, k.tb = ta, tb
 	sa, sb := k.mid, k.mid
 	n := min(len(ta), len(tb))
@@ -118,16 +118,18 @@ func (k *keyHasher) key2(a, b []byte) (hkey, hkey) {
 	return stateKey(&sa), stateKey(&sb)
 }
 
-// tail appends to dst the blocks that follow the midstate for this id:
-// the rest of the prefix, the id and the padding.
+// tail writes into dst, which starts with the rest of the prefix, the
+// blocks that follow the midstate for this id: that rest, the id and the
+// padding.
 func (k *keyHasher) tail(dst, id []byte) []byte {
-	dst = append(append(dst, k.rem...), id...)
-	n := len(dst)
+	r := len(k.rem)
+	n := r + len(id)
 	padded := (n+8)/64*64 + 64
-	if cap(dst) < padded {
-		dst = append(dst, make([]byte, padded-n)...)
+	if cap(dst) < padded || len(dst) < r {
+		dst = append(make([]byte, 0, max(padded, 128)), k.rem...)
 	}
 	dst = dst[:padded]
+	copy(dst[r:], id)
 	dst[n] = 0x80
 	clear(dst[n+1 : padded-8])
 	binary.BigEndian.PutUint64(dst[padded-8:], uint64(k.plen+len(id))*8)

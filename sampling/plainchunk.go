@@ -20,7 +20,20 @@ func (w *worker) chunkPlain(c chunk) {
 	need := w.s.hotNeed
 	last := w.hotLast
 	vals := w.vals
+	idSlot := w.s.idSlot
+	pair := w.keys.pair
 	line := c.line
+	// A row waiting for a second one, so that both are hashed together;
+	// its id and record stay in the chunk until the chunk is done.
+	var pst *wstratum
+	var pid, prec []byte
+	var pline int64
+	defer func() {
+		if pst != nil {
+			k := w.keys.key(pid)
+			w.consider(pst, &k, pid, pline, prec)
+		}
+	}()
 	for recStart := 0; recStart < n; line++ {
 		nl := delimscan.Next(nls, recStart, n)
 		end := nl
@@ -47,9 +60,25 @@ func (w *worker) chunkPlain(c chunk) {
 					break
 				}
 			}
-			if err := w.process(line, nf, data[recStart:end]); err != nil {
+			st, err := w.classify(line, nf)
+			if err != nil {
 				w.s.fail(c.seq, err)
 				return
+			}
+			if st != nil {
+				rec, id := data[recStart:end], vals[idSlot]
+				switch {
+				case !pair:
+					k := w.keys.key(id)
+					w.consider(st, &k, id, line, rec)
+				case pst == nil:
+					pst, pid, pline, prec = st, id, line, rec
+				default:
+					ka, kb := w.keys.key2(pid, id)
+					w.consider(pst, &ka, pid, pline, prec)
+					w.consider(st, &kb, id, line, rec)
+					pst = nil
+				}
 			}
 			if c.seq > w.s.errSeq.Load() {
 				return

@@ -29,12 +29,10 @@ type worker struct {
 	single  *wstratum
 	// seps and nls are the delimiter masks of the current chunk.
 	seps, nls []uint64
-	// pend is a row waiting to be hashed with the next one.
-	pend    pendingRow
-	rows    int64
-	dups    []dupEvent
-	seq     int64
-	tooMany bool
+	rows      int64
+	dups      []dupEvent
+	seq       int64
+	tooMany   bool
 }
 
 type wstratum struct {
@@ -102,7 +100,6 @@ func (w *worker) chunk(c chunk) {
 	quotes := w.s.format == FormatCSV && bytes.IndexByte(data, '"') >= 0
 	if w.s.format != FormatJSONL && !quotes {
 		w.chunkPlain(c)
-		w.flushPending()
 		return
 	}
 	w.split.noQuotes = !quotes
@@ -166,31 +163,41 @@ func (w *worker) record(line int64, rec []byte) *InputError {
 		if err != nil {
 			return inputErrorf(name, int(line), fieldName(s.header, nf), "%v", err)
 		}
-		return w.process(line, nf, nil)
+		return w.processNow(line, nf)
 	}
-	return w.process(line, -1, nil)
+	return w.processNow(line, -1)
 }
 
-// process handles one data record whose needed fields are in w.vals; nf
-// is its number of fields (−1 for JSON Lines, where keys are checked by
-// the parser).
-//
-// rec, when not nil, is the quote-free record whose kept columns have not
-// been read yet (they are read only if the row is kept).
-func (w *worker) process(line int64, nf int, rec []byte) *InputError {
+// processNow classifies a record whose fields are in w.vals and offers
+// it to its stratum at once.
+func (w *worker) processNow(line int64, nf int) *InputError {
+	st, err := w.classify(line, nf)
+	if st != nil {
+		id := w.vals[w.s.idSlot]
+		k := w.keys.key(id)
+		w.consider(st, &k, id, line, nil)
+	}
+	return err
+}
+
+// classify checks one data record whose needed fields are in w.vals, nf
+// its number of fields (−1 for JSON Lines, where keys are checked by the
+// parser), counts it and returns its stratum, or nil when the record is
+// outside the scope (--where).
+func (w *worker) classify(line int64, nf int) (*wstratum, *InputError) {
 	s := w.s
 	name := s.spec.Name
 	if nf >= 0 && nf != len(s.header) {
-		return inputErrorf(name, int(line), "", "%d fields, but the header has %d (%s)", nf, len(s.header), columnList(s.header))
+		return nil, inputErrorf(name, int(line), "", "%d fields, but the header has %d (%s)", nf, len(s.header), columnList(s.header))
 	}
 	w.rows++
 	id := w.vals[s.idSlot]
 	if len(id) == 0 {
-		return inputErrorf(name, int(line), s.spec.IDColumn, "the record id is empty")
+		return nil, inputErrorf(name, int(line), s.spec.IDColumn, "the record id is empty")
 	}
 	for _, f := range s.filters {
 		if _, ok := f.set[string(w.vals[f.slot])]; !ok {
-			return nil
+			return nil, nil
 		}
 	}
 	st := w.single
@@ -209,7 +216,7 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 			for i, sl := range s.bandSlots {
 				idx, err := w.bandIndex(line, i, sl)
 				if err != nil {
-					return err
+					return nil, err
 				}
 				packed = packed<<16 | uint64(idx+1)
 			}
@@ -228,7 +235,7 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 		for i, sl := range s.bandSlots {
 			idx, err := w.bandIndex(line, i, sl)
 			if err != nil {
-				return err
+				return nil, err
 			}
 			if len(s.strataSlots) > 0 || i > 0 {
 				w.label = append(w.label, '|')
@@ -241,13 +248,13 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 			// two different value lists could share a label.
 			for i, sl := range s.strataSlots {
 				if v := w.vals[sl]; bytes.IndexByte(v, '|') >= 0 {
-					return inputErrorf(name, int(line), s.spec.StrataColumns[i], "the value %q holds a |, which separates stratum values in labels", v)
+					return nil, inputErrorf(name, int(line), s.spec.StrataColumns[i], "the value %q holds a |, which separates stratum values in labels", v)
 				}
 			}
 			if len(w.strata) >= s.spec.MaxStrata {
 				e := inputErrorf(name, 0, "", "more than %d strata: the strata columns have too many distinct values to stratify by", s.spec.MaxStrata)
 				e.Hint = "stratify by columns with a few categories, or by score bands (--band)"
-				return e
+				return nil, e
 			}
 			st = w.newStratum(string(w.label))
 		}
@@ -256,41 +263,7 @@ func (w *worker) process(line int64, nf int, rec []byte) *InputError {
 		}
 	}
 	st.count++
-	if rec != nil && w.keys.pair {
-		// Quote-free records stay in the chunk until it is done, so the
-		// row can wait for a second one and both are hashed together.
-		if w.pend.st == nil {
-			w.pend = pendingRow{st: st, id: id, line: line, rec: rec}
-			return nil
-		}
-		p := w.pend
-		w.pend.st = nil
-		ka, kb := w.keys.key2(p.id, id)
-		w.consider(p.st, &ka, p.id, p.line, p.rec)
-		w.consider(st, &kb, id, line, rec)
-		return nil
-	}
-	k := w.keys.key(id)
-	w.consider(st, &k, id, line, rec)
-	return nil
-}
-
-// pendingRow is a quote-free row whose key is not computed yet.
-type pendingRow struct {
-	st   *wstratum
-	id   []byte
-	line int64
-	rec  []byte
-}
-
-// flushPending hashes and considers the row left waiting at the end of a
-// chunk.
-func (w *worker) flushPending() {
-	if p := w.pend; p.st != nil {
-		w.pend.st = nil
-		k := w.keys.key(p.id)
-		w.consider(p.st, &k, p.id, p.line, p.rec)
-	}
+	return st, nil
 }
 
 // consider offers a row with this key to its stratum's retainer. rec, when
