@@ -7,15 +7,14 @@ import (
 )
 
 // chunkPlain processes a chunk of delimited records that holds no quote
-// character (every TSV chunk; CSV chunks without '"'). Masks of the
-// separators and line ends (delimscan) are built for the whole chunk
-// first; records and the needed fields are then cut with bit arithmetic,
+// character (every TSV chunk; CSV chunks without '"'), whose masks of the
+// separators and line ends (delimscan) are in w.seps and w.nls. Records
+// and the needed fields are cut with bit arithmetic,
 // and the separators after the last needed field are only counted — the
 // same records and fields as splitting each line.
 func (w *worker) chunkPlain(c chunk) {
 	data := c.data
 	n := len(data)
-	w.seps, w.nls = delimscan.Masks(data, w.split.sep, w.seps[:0], w.nls[:0])
 	seps, nls := w.seps, w.nls
 	need := w.s.hotNeed
 	last := w.hotLast

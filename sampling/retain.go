@@ -105,8 +105,14 @@ func (h *hkey) cmp(o *hkey) int {
 // copy on the earlier line is kept and the repeat reported, so repeats
 // never take the place of other rows.
 type retainer struct {
-	cap          int
+	cap int
+	// buf holds the candidates: the first sorted of them in (key, line)
+	// order (those kept by the last compaction), then those admitted
+	// since; merged is the compaction's scratch, shared by the retainers
+	// of one goroutine.
 	buf          []bentry
+	sorted       int
+	merged       *[]bentry
 	arena, spare []byte
 	// thr is the threshold once full is set.
 	thr  hkey
@@ -119,8 +125,14 @@ type retainer struct {
 	onDup func(k *hkey, id []byte, kept, other int64)
 }
 
-func newRetainer(capacity int) *retainer {
-	return &retainer{cap: capacity}
+// newRetainer returns a retainer for capacity rows; scratch (nil: its
+// own) is the merge buffer, which retainers used by one goroutine may
+// share.
+func newRetainer(capacity int, scratch *[]bentry) *retainer {
+	if scratch == nil {
+		scratch = new([]bentry)
+	}
+	return &retainer{cap: capacity, merged: scratch}
 }
 
 // wants reports whether a key with first word head could enter (admit
@@ -152,27 +164,36 @@ func (r *retainer) seal() {
 }
 
 // compact sorts the buffer, resolves repeated keys (the earlier line is
-// kept) and keeps the cap smallest keys.
+// kept) and keeps the cap smallest keys. The rows kept by the last
+// compaction are still sorted, so only the rows admitted since are sorted
+// and the two runs merged: the result is the full sort by (key, line).
 func (r *retainer) compact() {
-	b := r.buf
-	slices.SortFunc(b, func(x, y bentry) int {
-		if c := x.k.cmp(&y.k); c != 0 {
-			return c
+	old, added := r.buf[:r.sorted], r.buf[r.sorted:]
+	slices.SortFunc(added, cmpEntry)
+	m := (*r.merged)[:0]
+	for len(old) > 0 && len(added) > 0 {
+		if cmpEntry(old[0], added[0]) <= 0 {
+			m = append(m, old[0])
+			old = old[1:]
+		} else {
+			m = append(m, added[0])
+			added = added[1:]
 		}
-		return cmpInt64(x.line, y.line)
-	})
-	out := b[:0]
-	for i := range b {
-		if len(out) > 0 && out[len(out)-1].k == b[i].k {
+	}
+	m = append(append(m, old...), added...)
+	out := r.buf[:0]
+	for i := range m {
+		if len(out) > 0 && out[len(out)-1].k == m[i].k {
 			if r.onDup != nil {
 				kept := &out[len(out)-1]
 				id := rowParts(r.arena[kept.off : kept.off+kept.n])[0]
-				r.onDup(&b[i].k, id, kept.line, b[i].line)
+				r.onDup(&m[i].k, id, kept.line, m[i].line)
 			}
 			continue
 		}
-		out = append(out, b[i])
+		out = append(out, m[i])
 	}
+	*r.merged = m
 	if len(out) > r.cap {
 		out = out[:r.cap]
 		r.evicted = true
@@ -186,10 +207,19 @@ func (r *retainer) compact() {
 	}
 	r.spare, r.arena = r.arena[:0], sp
 	r.buf = out
+	r.sorted = len(out)
 	if len(out) == r.cap && r.cap > 0 {
 		r.thr = out[len(out)-1].k
 		r.full = true
 	}
+}
+
+// cmpEntry orders entries by key, then line.
+func cmpEntry(x, y bentry) int {
+	if c := x.k.cmp(&y.k); c != 0 {
+		return c
+	}
+	return cmpInt64(x.line, y.line)
 }
 
 func cmpInt64(a, b int64) int {

@@ -6,6 +6,8 @@ import (
 	"errors"
 	"strconv"
 	"unsafe"
+
+	"probity/sampling/delimscan"
 )
 
 // worker parses, hashes and retains the rows of the chunks it is given.
@@ -27,6 +29,8 @@ type worker struct {
 	interns []internTable
 	packed  packedTable
 	single  *wstratum
+	// merge is the compaction scratch of the worker's retainers.
+	merge []bentry
 	// seps and nls are the delimiter masks of the current chunk.
 	seps, nls []uint64
 	rows      int64
@@ -83,7 +87,7 @@ func (s *scanner) newWorker() *worker {
 // newStratum starts a stratum's count and retainer; repeats the
 // retainer finds become the worker's repeat events.
 func (w *worker) newStratum(label string) *wstratum {
-	st := &wstratum{label: label, ret: newRetainer(w.s.spec.Capacity)}
+	st := &wstratum{label: label, ret: newRetainer(w.s.spec.Capacity, &w.merge)}
 	st.ret.onDup = func(k *hkey, id []byte, kept, other int64) {
 		w.dups = append(w.dups, dupEvent{key: k.bytes(), stratum: label, id: string(id), kept: kept, other: other})
 	}
@@ -97,10 +101,15 @@ func (w *worker) chunk(c chunk) {
 	w.seq = c.seq
 	data := c.data
 	line := c.line
-	quotes := w.s.format == FormatCSV && bytes.IndexByte(data, '"') >= 0
-	if w.s.format != FormatJSONL && !quotes {
-		w.chunkPlain(c)
-		return
+	quotes := false
+	if w.s.format != FormatJSONL {
+		var seen bool
+		w.seps, w.nls, seen = delimscan.Masks(data, w.split.sep, '"', w.seps[:0], w.nls[:0])
+		quotes = seen && w.s.format == FormatCSV
+		if !quotes {
+			w.chunkPlain(c)
+			return
+		}
 	}
 	w.split.noQuotes = !quotes
 	for len(data) > 0 {

@@ -7,18 +7,21 @@ import (
 
 // Masks appends to seps and nls one word per 64 bytes of data (the last
 // word covers the rest, its high bits clear): bit j of seps[i] is set
-// when data[64·i+j] == sep, and of nls[i] when it is '\n'.
-func Masks(data []byte, sep byte, seps, nls []uint64) ([]uint64, []uint64) {
+// when data[64·i+j] == sep, and of nls[i] when it is '\n'. seen reports
+// whether data holds the byte watch anywhere (a CSV reader watches for
+// '"', which calls for the slower quoted-field path).
+func Masks(data []byte, sep, watch byte, seps, nls []uint64) (s2, l2 []uint64, seen bool) {
 	words := (len(data) + 63) / 64
 	seps, nls = grow(seps, words), grow(nls, words)
 	s, l := seps[len(seps)-words:], nls[len(nls)-words:]
 	whole := len(data) / 64
 	if whole > 0 {
-		masks(data[:64*whole], sep, s[:whole], l[:whole])
+		seen = masks(data[:64*whole], sep, watch, s[:whole], l[:whole])
 	}
 	if rest := data[64*whole:]; len(rest) > 0 {
 		var ms, ml uint64
 		for j, c := range rest {
+			seen = seen || c == watch
 			if c == sep {
 				ms |= 1 << uint(j)
 			}
@@ -28,7 +31,7 @@ func Masks(data []byte, sep byte, seps, nls []uint64) ([]uint64, []uint64) {
 		}
 		s[whole], l[whole] = ms, ml
 	}
-	return seps, nls
+	return seps, nls, seen
 }
 
 func grow(m []uint64, words int) []uint64 {
@@ -60,20 +63,24 @@ func gatherHigh(x uint64) uint64 {
 }
 
 // masksPortable builds the masks of whole 64-byte blocks eight bytes at a
-// time.
-func masksPortable(data []byte, sep byte, seps, nls []uint64) {
+// time and reports whether the byte watch occurs.
+func masksPortable(data []byte, sep, watch byte, seps, nls []uint64) bool {
 	sepBytes := uint64(sep) * ones
+	watchBytes := uint64(watch) * ones
 	const nlBytes = uint64('\n') * ones
+	var seen uint64
 	for i := range seps {
 		block := data[64*i : 64*i+64]
 		var ms, ml uint64
 		for k := 0; k < 8; k++ {
 			x := binary.LittleEndian.Uint64(block[8*k:])
+			seen |= zeroBytes(x ^ watchBytes)
 			ms |= gatherHigh(zeroBytes(x^sepBytes)) << (8 * k)
 			ml |= gatherHigh(zeroBytes(x^nlBytes)) << (8 * k)
 		}
 		seps[i], nls[i] = ms, ml
 	}
+	return seen != 0
 }
 
 // Next returns the position of the first set bit of m at or after from

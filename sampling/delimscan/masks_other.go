@@ -2,7 +2,9 @@
 
 package delimscan
 
-func masks(data []byte, sep byte, seps, nls []uint64) { masksPortable(data, sep, seps, nls) }
+func masks(data []byte, sep, watch byte, seps, nls []uint64) bool {
+	return masksPortable(data, sep, watch, seps, nls)
+}
 
 // Accelerated reports whether the masks are built with vector
 // instructions.

@@ -1,6 +1,7 @@
 package delimscan
 
 import (
+	"bytes"
 	"math/rand/v2"
 	"testing"
 )
@@ -44,7 +45,10 @@ func TestMasksMatchReference(t *testing.T) {
 		for _, sep := range []byte{',', '\t', 0x80} {
 			ws, wl := reference(data, sep)
 			prefix := []uint64{7, 9}
-			s, l := Masks(data, sep, append([]uint64(nil), prefix...), append([]uint64(nil), prefix...))
+			s, l, seen := Masks(data, sep, '"', append([]uint64(nil), prefix...), append([]uint64(nil), prefix...))
+			if want := bytes.IndexByte(data, '"') >= 0; seen != want {
+				t.Fatalf("n=%d: seen %v, want %v", n, seen, want)
+			}
 			if len(s) != len(ws)+2 || len(l) != len(wl)+2 {
 				t.Fatalf("n=%d: %d and %d words, want %d", n, len(s), len(l), len(ws)+2)
 			}
@@ -55,7 +59,10 @@ func TestMasksMatchReference(t *testing.T) {
 			}
 			if whole := n / 64; whole > 0 {
 				ps, pl := make([]uint64, whole), make([]uint64, whole)
-				masksPortable(data, sep, ps, pl)
+				pseen := masksPortable(data, sep, '"', ps, pl)
+				if want := bytes.IndexByte(data[:64*whole], '"') >= 0; pseen != want {
+					t.Fatalf("portable n=%d: seen %v, want %v", n, pseen, want)
+				}
 				for i := range ps {
 					if ps[i] != ws[i] || pl[i] != wl[i] {
 						t.Fatalf("portable n=%d word %d differs", n, i)
@@ -72,7 +79,7 @@ func TestNextAndCount(t *testing.T) {
 	for trial := 0; trial < 300; trial++ {
 		n := r.IntN(400) + 1
 		data := randomText(r, n)
-		s, _ := Masks(data, ',', nil, nil)
+		s, _, _ := Masks(data, ',', '"', nil, nil)
 		for q := 0; q < 50; q++ {
 			from, to := r.IntN(n+1), r.IntN(n+1)
 			want := to
@@ -107,7 +114,7 @@ func BenchmarkMasks(b *testing.B) {
 	var s, l []uint64
 	b.SetBytes(int64(len(data)))
 	for i := 0; i < b.N; i++ {
-		s, l = Masks(data, ',', s[:0], l[:0])
+		s, l, _ = Masks(data, ',', '"', s[:0], l[:0])
 	}
 }
 
@@ -117,6 +124,26 @@ func BenchmarkMasksPortable(b *testing.B) {
 	s, l := make([]uint64, len(data)/64), make([]uint64, len(data)/64)
 	b.SetBytes(int64(len(data)))
 	for i := 0; i < b.N; i++ {
-		masksPortable(data, ',', s, l)
+		masksPortable(data, ',', '"', s, l)
+	}
+}
+
+// TestMasksSeeOneWatchByte puts a single '"' at every position of texts
+// that hold none otherwise.
+func TestMasksSeeOneWatchByte(t *testing.T) {
+	r := rand.New(rand.NewPCG(9, 10))
+	for _, n := range []int{1, 63, 64, 65, 200, 511} {
+		data := bytes.ReplaceAll(randomText(r, n), []byte{'"'}, []byte{'x'})
+		if _, _, seen := Masks(data, ',', '"', nil, nil); seen {
+			t.Fatalf("n=%d: seen without a quote", n)
+		}
+		for p := 0; p < n; p++ {
+			old := data[p]
+			data[p] = '"'
+			if _, _, seen := Masks(data, ',', '"', nil, nil); !seen {
+				t.Fatalf("n=%d: the quote at %d was not seen", n, p)
+			}
+			data[p] = old
+		}
 	}
 }
