@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"os"
 	"path/filepath"
+	"sort"
+	"strings"
 	"testing"
 )
 
@@ -102,6 +104,105 @@ func FuzzReadWorksheet(f *testing.F) {
 		for i := range rows {
 			if again[i].RecordID != rows[i].RecordID || again[i].Label != rows[i].Label || again[i].Note != rows[i].Note {
 				t.Fatalf("row %d changed on rewrite: %+v vs %+v", i, again[i], rows[i])
+			}
+		}
+	})
+}
+
+// FuzzScanQuoteFreeMatchesReference compares Scan on quote-free CSV with
+// a byte-by-byte reference written here: lines split at '\n' with one
+// trailing '\r' dropped, blank lines skipped, fields split at ','. When
+// the reference finds no bad row and no repeated id, Scan must succeed
+// with the same strata, counts and kept rows (the smallest keys by
+// SHA-256, from crypto/sha256 through Key); when the reference finds a
+// ragged row or an empty id, Scan must fail on the same line.
+func FuzzScanQuoteFreeMatchesReference(f *testing.F) {
+	f.Add([]byte("record_id,g,score\na,x,0.1\nb,y,0.9\r\nc,x,0.3\n\nd,y,0.2"), uint8(2), uint16(7))
+	f.Add([]byte("record_id,g,score\na,x\n"), uint8(1), uint16(64))
+	f.Add([]byte("g,record_id,score\nx,a,1\nx,,2\n"), uint8(3), uint16(3))
+	f.Add([]byte("record_id,g,score\n"+strings.Repeat("r1,x,1\nr2,yy,2\nr3,x,3\nr4,zz,\n", 9)), uint8(2), uint16(100))
+	f.Fuzz(func(t *testing.T, data []byte, capacity uint8, chunk uint16) {
+		data = bytes.ReplaceAll(data, []byte{'"'}, nil)
+		data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+		if len(data) > 1 && data[0] == 0x1f && data[1] == 0x8b {
+			return
+		}
+		lines := strings.Split(string(data), "\n")
+		header := strings.Split(strings.TrimSuffix(lines[0], "\r"), ",")
+		idCol, gCol := -1, -1
+		for i, h := range header {
+			if h == "record_id" && idCol < 0 {
+				idCol = i
+			}
+			if h == "g" && gCol < 0 {
+				gCol = i
+			}
+		}
+		seen := map[string]bool{}
+		for _, h := range header {
+			if seen[h] {
+				return // refused for a repeated column name; not compared
+			}
+			seen[h] = true
+		}
+		if idCol < 0 || gCol < 0 {
+			return
+		}
+		spec := ScanSpec{Name: "ref.csv", Format: FormatCSV, Seed: "s", StrataColumns: []string{"g"},
+			Capacity: int(capacity%6) + 1, ChunkSize: int(chunk%300) + 1, Workers: 2}
+		type kept struct{ key, id string }
+		strata := map[string][]kept{}
+		ids := map[string]bool{}
+		badLine := 0
+		rows := 0
+		for i, l := range lines[1:] {
+			l = strings.TrimSuffix(l, "\r")
+			if l == "" {
+				continue
+			}
+			f := strings.Split(l, ",")
+			if len(f) != len(header) || f[idCol] == "" {
+				badLine = i + 2
+				break
+			}
+			if ids[f[idCol]] || strings.Contains(f[gCol], "|") {
+				return // repeats and separator values have their own tests
+			}
+			ids[f[idCol]] = true
+			rows++
+			strata[f[gCol]] = append(strata[f[gCol]], kept{Key("s", f[idCol]), f[idCol]})
+		}
+		res, err := Scan(bytes.NewReader(data), spec)
+		if badLine > 0 {
+			ie, ok := err.(*InputError)
+			if !ok || ie.Line != badLine {
+				t.Fatalf("reference: bad row on line %d; Scan: %v", badLine, err)
+			}
+			return
+		}
+		if rows == 0 || len(strata) > 10000 {
+			return
+		}
+		if err != nil {
+			t.Fatalf("reference reads %d rows; Scan: %v", rows, err)
+		}
+		if len(res.Strata) != len(strata) || res.Rows != int64(rows) {
+			t.Fatalf("%d strata and %d rows, reference %d and %d", len(res.Strata), res.Rows, len(strata), rows)
+		}
+		for _, st := range res.Strata {
+			want := strata[st.Label]
+			sort.Slice(want, func(i, j int) bool { return want[i].key < want[j].key })
+			if st.Count != int64(len(want)) {
+				t.Fatalf("stratum %q: count %d, reference %d", st.Label, st.Count, len(want))
+			}
+			want = want[:min(len(want), spec.Capacity)]
+			if len(st.Rows) != len(want) {
+				t.Fatalf("stratum %q: %d rows kept, reference %d", st.Label, len(st.Rows), len(want))
+			}
+			for i := range want {
+				if st.Rows[i].ID != want[i].id || st.Rows[i].KeyHex() != want[i].key {
+					t.Fatalf("stratum %q row %d: %s, reference %s", st.Label, i, st.Rows[i].ID, want[i].id)
+				}
 			}
 		}
 	})
