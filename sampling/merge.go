@@ -24,15 +24,6 @@ func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 		sorted = append(sorted, l)
 	}
 	sort.Strings(sorted)
-	// Final compaction of every retainer first: it reports the last
-	// repeats found within a worker.
-	held := make([]map[string][]Row, len(workers))
-	for i, w := range workers {
-		held[i] = map[string][]Row{}
-		for l, ws := range w.strata {
-			held[i][l] = ws.ret.rows(l)
-		}
-	}
 	var events []dupEvent
 	for _, w := range workers {
 		events = append(events, w.dups...)
@@ -42,33 +33,14 @@ func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 	for i, label := range sorted {
 		index[label] = i
 		st := StratumScan{Label: label}
-		byKey := map[[32]byte]*Row{}
-		for wi, w := range workers {
+		for _, w := range workers {
 			ws, ok := w.strata[label]
 			if !ok {
 				continue
 			}
 			st.Count += ws.count
-			rows := held[wi][label]
-			for k := range rows {
-				r := &rows[k]
-				if prev, ok := byKey[r.Key]; ok {
-					ev := dupEvent{key: r.Key, stratum: label, id: r.ID, kept: prev.Line, other: r.Line}
-					if r.Line < prev.Line {
-						ev.kept, ev.other = r.Line, prev.Line
-						byKey[r.Key] = r
-					}
-					events = append(events, ev)
-					continue
-				}
-				byKey[r.Key] = r
-			}
+			st.Rows = mergeRows(st.Rows, w.held[label], label, &events)
 		}
-		st.Rows = make([]Row, 0, len(byKey))
-		for _, r := range byKey {
-			st.Rows = append(st.Rows, *r)
-		}
-		sort.Slice(st.Rows, func(a, b int) bool { return keyLess(&st.Rows[a].Key, &st.Rows[b].Key) })
 		if len(st.Rows) > s.spec.Capacity {
 			st.Rows = st.Rows[:s.spec.Capacity]
 		}
@@ -146,6 +118,35 @@ func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 	}
 	res.Strata = out
 	return res, nil
+}
+
+// mergeRows merges two runs of rows sorted by key into one; of two rows
+// with the same key (a repeated id held by two workers) the one on the
+// earlier line is kept and the other reported as a repeat.
+func mergeRows(a, b []Row, label string, events *[]dupEvent) []Row {
+	if len(a) == 0 {
+		return b
+	}
+	out := make([]Row, 0, len(a)+len(b))
+	for len(a) > 0 && len(b) > 0 {
+		switch c := bytes.Compare(a[0].Key[:], b[0].Key[:]); {
+		case c < 0:
+			out = append(out, a[0])
+			a = a[1:]
+		case c > 0:
+			out = append(out, b[0])
+			b = b[1:]
+		default:
+			keep, other := a[0], b[0]
+			if other.Line < keep.Line {
+				keep, other = other, keep
+			}
+			*events = append(*events, dupEvent{key: keep.Key, stratum: label, id: keep.ID, kept: keep.Line, other: other.Line})
+			out = append(out, keep)
+			a, b = a[1:], b[1:]
+		}
+	}
+	return append(append(out, a...), b...)
 }
 
 // duplicateError names the first few repeated ids and their lines.

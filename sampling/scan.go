@@ -254,6 +254,7 @@ func (s *scanner) run() (*ScanResult, error) {
 				*c.buf = (*c.buf)[:0]
 				pool <- c.buf
 			}
+			w.finish()
 		}(workers[i])
 	}
 	lines, readErr := s.feed(br, rest, rerr, chunks, pool)

@@ -29,6 +29,8 @@ type worker struct {
 	interns []internTable
 	packed  packedTable
 	single  *wstratum
+	// held is each stratum's kept rows after the pass (finish).
+	held map[string][]Row
 	// merge is the compaction scratch of the worker's retainers.
 	merge []bentry
 	// seps and nls are the delimiter masks of the current chunk.
@@ -82,6 +84,16 @@ func (s *scanner) newWorker() *worker {
 	w.packOK = len(s.strataSlots)+len(s.bandSlots) <= maxPacked
 	w.interns = make([]internTable, len(s.strataSlots))
 	return w
+}
+
+// finish compacts every retainer of the worker for the last time (which
+// reports the last repeats it holds) and keeps their rows, ascending by
+// key, in held.
+func (w *worker) finish() {
+	w.held = make(map[string][]Row, len(w.strata))
+	for l, ws := range w.strata {
+		w.held[l] = ws.ret.rows(l)
+	}
 }
 
 // newStratum starts a stratum's count and retainer; repeats the
