@@ -168,6 +168,9 @@ type jsonFields struct {
 	names []string // key of each slot
 	vals  [][]byte
 	obj   map[string]json.RawMessage
+	// slot and found serve the fast path (jsonflat.go).
+	slot  map[string]int
+	found []bool
 }
 
 // jsonValueError is a problem with one key of a JSON record.
@@ -181,6 +184,18 @@ func (e *jsonValueError) Error() string { return e.msg }
 // parse decodes rec (one JSON object) and fills vals: strings unquoted,
 // numbers and booleans as written, null as empty.
 func (j *jsonFields) parse(rec []byte) error {
+	if j.parseFlat(rec) {
+		return nil
+	}
+	return j.parseGeneral(rec)
+}
+
+// parseGeneral is parse through encoding/json, for every record the fast
+// path leaves (and for the wording of every error).
+func (j *jsonFields) parseGeneral(rec []byte) error {
+	if j.obj == nil {
+		j.obj = map[string]json.RawMessage{}
+	}
 	clear(j.obj)
 	if err := json.Unmarshal(rec, &j.obj); err != nil {
 		var te *json.UnmarshalTypeError
