@@ -10,7 +10,22 @@ import "golang.org/x/sys/cpu"
 //go:noescape
 func masksAVX2(data *byte, sep, watch byte, seps, nls *uint64, blocks int) bool
 
-var useAVX2 = cpu.X86.HasAVX2
+// useAVX2: the processor has AVX2 and the assembly agrees with the
+// portable code on a test text.
+var useAVX2 = cpu.X86.HasAVX2 && selfCheck()
+
+// selfCheck compares the assembly with the portable code on two blocks
+// holding every byte value.
+func selfCheck() bool {
+	var data [256]byte
+	for i := range data {
+		data[i] = byte(i*73 + 11)
+	}
+	var as, al, ps, pl [4]uint64
+	aSeen := masksAVX2(&data[0], ',', '"', &as[0], &al[0], 4)
+	pSeen := masksPortable(data[:], ',', '"', ps[:], pl[:])
+	return as == ps && al == pl && aSeen == pSeen
+}
 
 func masks(data []byte, sep, watch byte, seps, nls []uint64) bool {
 	if !useAVX2 || len(seps) == 0 {
