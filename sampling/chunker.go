@@ -52,19 +52,23 @@ func (s *scanner) recordEnd(buf []byte, eof bool) int {
 	if s.format != FormatCSV && s.format != "" || bytes.IndexByte(buf, '"') < 0 {
 		return bytes.LastIndexByte(buf, '\n') + 1
 	}
-	in := false
-	last := 0
-	for i, c := range buf {
-		switch c {
-		case '"':
-			in = !in
-		case '\n':
-			if !in {
-				last = i + 1
-			}
-		}
+	// A newline is outside quotes when an even number of quote characters
+	// precedes it (buf starts outside quotes). Try the last newline first,
+	// then the ones before it, counting the quotes between them.
+	p := bytes.LastIndexByte(buf, '\n')
+	if p < 0 {
+		return 0
 	}
-	return last
+	odd := bytes.Count(buf[:p], []byte{'"'})%2 == 1
+	for odd {
+		q := bytes.LastIndexByte(buf[:p], '\n')
+		if q < 0 {
+			return 0
+		}
+		odd = odd != (bytes.Count(buf[q:p], []byte{'"'})%2 == 1)
+		p = q
+	}
+	return p + 1
 }
 
 // firstRecordEnd returns the end (past the '\n') of the first record in

@@ -398,3 +398,28 @@ func TestScanErrors(t *testing.T) {
 		})
 	}
 }
+
+// TestRepeatsNameTheFirstLine: an id on three lines read by different
+// workers is reported as repeats of its first line every time (before,
+// a worker that saw only the later copies reported the earlier of those).
+func TestRepeatsNameTheFirstLine(t *testing.T) {
+	data := []byte("record_id,g\nr,x\nq,x\nr,x\np,x\nr,x\n")
+	want := `"r" (lines 2 and 4), "r" (lines 2 and 6)`
+	for i := 0; i < 200; i++ {
+		spec := ScanSpec{Name: "log.csv", Seed: "s", StrataColumns: []string{"g"}, Capacity: 5, ChunkSize: 4, Workers: 2, Dedupe: true}
+		res, err := Scan(bytes.NewReader(data), spec)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var got []string
+		for _, d := range res.Duplicates {
+			got = append(got, fmt.Sprintf("%q (lines %d and %d)", d.ID, d.FirstLine, d.Line))
+		}
+		if strings.Join(got, ", ") != want {
+			t.Fatalf("run %d: repeats %s, want %s", i, strings.Join(got, ", "), want)
+		}
+		if res.InScope != 3 {
+			t.Fatalf("run %d: %d rows in scope, want 3", i, res.InScope)
+		}
+	}
+}

@@ -48,16 +48,19 @@ func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 	}
 	// Only repeats among the kept rows are certain to be seen whatever the
 	// order of the rows and the split into chunks; keep exactly those.
-	kept := make([]map[[32]byte]bool, len(strata))
+	// Each repeat names the first line of its id (the row kept): a worker
+	// that saw only later copies reported the earliest of those.
+	kept := make([]map[[32]byte]int64, len(strata))
 	for i := range strata {
-		kept[i] = make(map[[32]byte]bool, len(strata[i].Rows))
+		kept[i] = make(map[[32]byte]int64, len(strata[i].Rows))
 		for _, r := range strata[i].Rows {
-			kept[i][r.Key] = true
+			kept[i][r.Key] = r.Line
 		}
 	}
 	var valid []dupEvent
 	for _, ev := range events {
-		if kept[index[ev.stratum]][ev.key] {
+		if first, ok := kept[index[ev.stratum]][ev.key]; ok {
+			ev.kept = first
 			valid = append(valid, ev)
 			strata[index[ev.stratum]].Count--
 		}

@@ -46,6 +46,10 @@ type ScanSpec struct {
 	ChunkSize int
 	// MaxStrata bounds the number of strata (0: 10 000).
 	MaxStrata int
+	// lineByLine sends CSV chunks holding quotes through the general
+	// line-by-line reader instead of the delimiter masks (tests compare
+	// the two).
+	lineByLine bool
 	// Progress, if set, is called from the reading goroutine after each
 	// chunk with the bytes read so far (of the raw, possibly compressed
 	// file) and the lines.

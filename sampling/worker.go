@@ -33,12 +33,16 @@ type worker struct {
 	held map[string][]Row
 	// merge is the compaction scratch of the worker's retainers.
 	merge []bentry
-	// seps and nls are the delimiter masks of the current chunk.
-	seps, nls []uint64
-	rows      int64
-	dups      []dupEvent
-	seq       int64
-	tooMany   bool
+	// seps, nls and quotes are the delimiter masks of the current chunk;
+	// sepS and nlS those outside quoted fields.
+	seps, nls, quotes []uint64
+	sepS, nlS         []uint64
+	// keepQuoted reads the kept columns of a kept record holding quotes.
+	keepQuoted fieldSplitter
+	rows       int64
+	dups       []dupEvent
+	seq        int64
+	tooMany    bool
 }
 
 type wstratum struct {
@@ -71,6 +75,8 @@ func (s *scanner) newWorker() *worker {
 	}
 	w.keepSplit = fieldSplitter{sep: w.split.sep, vals: w.vals, noQuotes: true}
 	w.keepSplit.setNeed(s.keepNeed)
+	w.keepQuoted = fieldSplitter{sep: w.split.sep, quoted: true, vals: w.vals}
+	w.keepQuoted.setNeed(s.keepNeed)
 	w.hotLast = -1
 	for c, sl := range s.hotNeed {
 		if sl >= 0 {
@@ -116,10 +122,14 @@ func (w *worker) chunk(c chunk) {
 	quotes := false
 	if w.s.format != FormatJSONL {
 		var seen bool
-		w.seps, w.nls, seen = delimscan.Masks(data, w.split.sep, '"', w.seps[:0], w.nls[:0])
+		w.seps, w.nls, w.quotes, seen = delimscan.Masks(data, w.split.sep, '"', w.seps[:0], w.nls[:0], w.quotes[:0])
 		quotes = seen && w.s.format == FormatCSV
-		if !quotes {
+		switch {
+		case !quotes:
 			w.chunkPlain(c)
+			return
+		case !w.s.spec.lineByLine:
+			w.chunkQuoted(c)
 			return
 		}
 	}
@@ -196,7 +206,7 @@ func (w *worker) processNow(line int64, nf int) *InputError {
 	if st != nil {
 		id := w.vals[w.s.idSlot]
 		k := w.keys.key(id)
-		w.consider(st, &k, id, line, nil)
+		w.consider(st, &k, id, line, nil, false)
 	}
 	return err
 }
@@ -288,14 +298,17 @@ func (w *worker) classify(line int64, nf int) (*wstratum, *InputError) {
 }
 
 // consider offers a row with this key to its stratum's retainer. rec, when
-// not nil, is the quote-free record whose kept columns have not been read
-// yet; otherwise they are in w.vals.
-func (w *worker) consider(st *wstratum, key *hkey, id []byte, line int64, rec []byte) {
+// not nil, is the record whose kept columns have not been read yet (quoted
+// tells whether it holds quote characters); otherwise they are in w.vals.
+func (w *worker) consider(st *wstratum, key *hkey, id []byte, line int64, rec []byte, quoted bool) {
 	r := st.ret
 	if !r.wants(key[0]) || !r.admit(key, line) {
 		return
 	}
-	if rec != nil {
+	switch {
+	case rec != nil && quoted:
+		w.keepQuoted.split(rec)
+	case rec != nil:
 		w.keepSplit.split(rec)
 	}
 	a := appendPart(r.arena, id)

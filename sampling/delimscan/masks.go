@@ -5,33 +5,63 @@ import (
 	"math/bits"
 )
 
-// Masks appends to seps and nls one word per 64 bytes of data (the last
-// word covers the rest, its high bits clear): bit j of seps[i] is set
-// when data[64·i+j] == sep, and of nls[i] when it is '\n'. seen reports
-// whether data holds the byte watch anywhere (a CSV reader watches for
-// '"', which calls for the slower quoted-field path).
-func Masks(data []byte, sep, watch byte, seps, nls []uint64) (s2, l2 []uint64, seen bool) {
+// Masks appends to seps, nls and quotes one word per 64 bytes of data
+// (the last word covers the rest, its high bits clear): bit j of seps[i]
+// is set when data[64·i+j] == sep, of nls[i] when it is '\n', and of
+// quotes[i] when it is quote. seen reports whether quote occurs at all.
+func Masks(data []byte, sep, quote byte, seps, nls, quotes []uint64) (s2, l2, q2 []uint64, seen bool) {
 	words := (len(data) + 63) / 64
-	seps, nls = grow(seps, words), grow(nls, words)
-	s, l := seps[len(seps)-words:], nls[len(nls)-words:]
+	seps, nls, quotes = grow(seps, words), grow(nls, words), grow(quotes, words)
+	s, l, q := seps[len(seps)-words:], nls[len(nls)-words:], quotes[len(quotes)-words:]
 	whole := len(data) / 64
 	if whole > 0 {
-		seen = masks(data[:64*whole], sep, watch, s[:whole], l[:whole])
+		seen = masks(data[:64*whole], sep, quote, s[:whole], l[:whole], q[:whole])
 	}
 	if rest := data[64*whole:]; len(rest) > 0 {
-		var ms, ml uint64
+		var ms, ml, mq uint64
 		for j, c := range rest {
-			seen = seen || c == watch
 			if c == sep {
 				ms |= 1 << uint(j)
 			}
 			if c == '\n' {
 				ml |= 1 << uint(j)
 			}
+			if c == quote {
+				mq |= 1 << uint(j)
+			}
 		}
-		s[whole], l[whole] = ms, ml
+		s[whole], l[whole], q[whole] = ms, ml, mq
+		seen = seen || mq != 0
 	}
-	return seps, nls, seen
+	return seps, nls, quotes, seen
+}
+
+// OutsideQuotes clears in seps and nls the bits of bytes inside quoted
+// fields, quotes being the quote mask of the same text, which must start
+// outside quotes. A byte is inside when an odd number of quote characters
+// precede it or it is an opening quote itself (the prefix XOR of the
+// quote bits); doubled quotes inside a field toggle twice and change
+// nothing. This is how RFC 4180 CSV tells a separator or line end that
+// ends a field from one that is part of its value.
+func OutsideQuotes(quotes, seps, nls []uint64) {
+	var carry uint64 // all ones when the previous word ended inside quotes
+	for i, q := range quotes {
+		in := prefixXor(q) ^ carry
+		seps[i] &^= in
+		nls[i] &^= in
+		carry = uint64(int64(in) >> 63)
+	}
+}
+
+// prefixXor sets bit i of the result to the XOR of bits 0..i of x.
+func prefixXor(x uint64) uint64 {
+	x ^= x << 1
+	x ^= x << 2
+	x ^= x << 4
+	x ^= x << 8
+	x ^= x << 16
+	x ^= x << 32
+	return x
 }
 
 func grow(m []uint64, words int) []uint64 {
@@ -63,22 +93,23 @@ func gatherHigh(x uint64) uint64 {
 }
 
 // masksPortable builds the masks of whole 64-byte blocks eight bytes at a
-// time and reports whether the byte watch occurs.
-func masksPortable(data []byte, sep, watch byte, seps, nls []uint64) bool {
+// time and reports whether the byte quote occurs.
+func masksPortable(data []byte, sep, quote byte, seps, nls, quotes []uint64) bool {
 	sepBytes := uint64(sep) * ones
-	watchBytes := uint64(watch) * ones
+	quoteBytes := uint64(quote) * ones
 	const nlBytes = uint64('\n') * ones
 	var seen uint64
 	for i := range seps {
 		block := data[64*i : 64*i+64]
-		var ms, ml uint64
+		var ms, ml, mq uint64
 		for k := 0; k < 8; k++ {
 			x := binary.LittleEndian.Uint64(block[8*k:])
-			seen |= zeroBytes(x ^ watchBytes)
 			ms |= gatherHigh(zeroBytes(x^sepBytes)) << (8 * k)
 			ml |= gatherHigh(zeroBytes(x^nlBytes)) << (8 * k)
+			mq |= gatherHigh(zeroBytes(x^quoteBytes)) << (8 * k)
 		}
-		seps[i], nls[i] = ms, ml
+		seps[i], nls[i], quotes[i] = ms, ml, mq
+		seen |= mq
 	}
 	return seen != 0
 }

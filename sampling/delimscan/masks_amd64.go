@@ -5,10 +5,10 @@ package delimscan
 import "golang.org/x/sys/cpu"
 
 // masksAVX2 builds the masks of len(seps) whole 64-byte blocks with AVX2
-// compares (masks_amd64.s) and reports whether the byte watch occurs.
+// compares (masks_amd64.s) and reports whether the byte quote occurs.
 //
 //go:noescape
-func masksAVX2(data *byte, sep, watch byte, seps, nls *uint64, blocks int) bool
+func masksAVX2(data *byte, sep, quote byte, seps, nls, quotes *uint64, blocks int) bool
 
 // useAVX2: the processor has AVX2 and the assembly agrees with the
 // portable code on a test text.
@@ -21,19 +21,20 @@ func selfCheck() bool {
 	for i := range data {
 		data[i] = byte(i*73 + 11)
 	}
-	var as, al, ps, pl [4]uint64
-	aSeen := masksAVX2(&data[0], ',', '"', &as[0], &al[0], 4)
-	pSeen := masksPortable(data[:], ',', '"', ps[:], pl[:])
-	return as == ps && al == pl && aSeen == pSeen
+	var as, al, aq, ps, pl, pq [4]uint64
+	aSeen := masksAVX2(&data[0], ',', '"', &as[0], &al[0], &aq[0], 4)
+	pSeen := masksPortable(data[:], ',', '"', ps[:], pl[:], pq[:])
+	return as == ps && al == pl && aq == pq && aSeen == pSeen
 }
 
-func masks(data []byte, sep, watch byte, seps, nls []uint64) bool {
+func masks(data []byte, sep, quote byte, seps, nls, quotes []uint64) bool {
 	if !useAVX2 || len(seps) == 0 {
-		return masksPortable(data, sep, watch, seps, nls)
+		return masksPortable(data, sep, quote, seps, nls, quotes)
 	}
 	_ = data[64*len(seps)-1]
 	_ = nls[len(seps)-1]
-	return masksAVX2(&data[0], sep, watch, &seps[0], &nls[0], len(seps))
+	_ = quotes[len(seps)-1]
+	return masksAVX2(&data[0], sep, quote, &seps[0], &nls[0], &quotes[0], len(seps))
 }
 
 // Accelerated reports whether the masks are built with vector

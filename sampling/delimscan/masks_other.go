@@ -2,8 +2,8 @@
 
 package delimscan
 
-func masks(data []byte, sep, watch byte, seps, nls []uint64) bool {
-	return masksPortable(data, sep, watch, seps, nls)
+func masks(data []byte, sep, quote byte, seps, nls, quotes []uint64) bool {
+	return masksPortable(data, sep, quote, seps, nls, quotes)
 }
 
 // Accelerated reports whether the masks are built with vector
