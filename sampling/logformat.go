@@ -3,12 +3,13 @@ package sampling
 import (
 	"bufio"
 	"bytes"
-	"compress/gzip"
 	"crypto/sha256"
 	"hash"
 	"io"
 	"path/filepath"
 	"strings"
+
+	"github.com/klauspost/compress/gzip"
 )
 
 // Log formats.
