@@ -88,8 +88,7 @@ func (k *keyHasher) key(id []byte) hkey {
 	k.ta = t
 	s := k.mid
 	for i := 0; i < len(t); i += 64 {
-		b := (*[64]byte)(t[i:])
-		sha256pair.Compress2(&s, &s, b, b)
+		sha256pair.Compress1(&s, (*[64]byte)(t[i:]))
 	}
 	return stateKey(&s)
 }
@@ -108,12 +107,10 @@ func (k *keyHasher) key2(a, b []byte) (hkey, hkey) {
 	}
 	// Tails of different lengths: the longer one goes on alone.
 	for i := n; i < len(ta); i += 64 {
-		blk := (*[64]byte)(ta[i:])
-		sha256pair.Compress2(&sa, &sa, blk, blk)
+		sha256pair.Compress1(&sa, (*[64]byte)(ta[i:]))
 	}
 	for i := n; i < len(tb); i += 64 {
-		blk := (*[64]byte)(tb[i:])
-		sha256pair.Compress2(&sb, &sb, blk, blk)
+		sha256pair.Compress1(&sb, (*[64]byte)(tb[i:]))
 	}
 	return stateKey(&sa), stateKey(&sb)
 }

@@ -33,6 +33,16 @@ func Compress2(a, b *[8]uint32, ba, bb *[64]byte) {
 	}
 }
 
+// Compress1 applies the SHA-256 compression function to one state and
+// block, on the SHA extensions where the processor has them.
+func Compress1(h *[8]uint32, block *[64]byte) {
+	if useAsm {
+		compress1(h, block)
+		return
+	}
+	Compress(h, block)
+}
+
 // Compress applies the SHA-256 compression function to one state and
 // block in portable Go (FIPS 180-4 §6.2.2, written from the standard).
 func Compress(h *[8]uint32, block *[64]byte) {

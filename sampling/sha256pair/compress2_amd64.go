@@ -9,6 +9,11 @@ import "golang.org/x/sys/cpu"
 //go:noescape
 func compress2(sa, sb *[8]uint32, ba, bb *[64]byte)
 
+// compress1 is the same compression for one state and block.
+//
+//go:noescape
+func compress1(s *[8]uint32, blk *[64]byte)
+
 // cpuid returns the registers of CPUID leaf eax, subleaf ecx.
 func cpuid(eax, ecx uint32) (a, b, c, d uint32)
 
@@ -33,9 +38,10 @@ func selfCheck() bool {
 	}
 	sa, sb := Init, Init
 	sb[3] ^= 0x5a5a
-	ra, rb := sa, sb
+	ra, rb, s1 := sa, sb, sa
 	compress2(&sa, &sb, &ba, &bb)
+	compress1(&s1, &ba)
 	Compress(&ra, &ba)
 	Compress(&rb, &bb)
-	return sa == ra && sb == rb
+	return sa == ra && sb == rb && s1 == ra
 }

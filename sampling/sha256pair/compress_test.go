@@ -119,11 +119,12 @@ func TestCompressPortableMatchesAsm(t *testing.T) {
 		for j := range ba {
 			ba[j], bb[j] = byte(r.Uint32()), byte(r.Uint32())
 		}
-		ra, rb := sa, sb
+		ra, rb, s1 := sa, sb, sa
 		Compress2(&sa, &sb, &ba, &bb)
+		Compress1(&s1, &ba)
 		Compress(&ra, &ba)
 		Compress(&rb, &bb)
-		if sa != ra || sb != rb {
+		if sa != ra || sb != rb || s1 != ra {
 			t.Fatalf("case %d: states differ", i)
 		}
 	}
@@ -139,6 +140,16 @@ func BenchmarkCompress2(b *testing.B) {
 	}
 }
 
+// BenchmarkCompress1 is one block compression per op.
+func BenchmarkCompress1(b *testing.B) {
+	s := Init
+	var blk [64]byte
+	b.SetBytes(64)
+	for i := 0; i < b.N; i++ {
+		Compress1(&s, &blk)
+	}
+}
+
 // BenchmarkCompressPortable is one portable block compression per op.
 func BenchmarkCompressPortable(b *testing.B) {
 	s := Init
@@ -147,15 +158,4 @@ func BenchmarkCompressPortable(b *testing.B) {
 	for i := 0; i < b.N; i++ {
 		Compress(&s, &blk)
 	}
-}
-
-func BenchmarkZZIndependent(b *testing.B) {
-	var ba, bb [64]byte
-	var sink uint32
-	for i := 0; i < b.N; i++ {
-		sa, sb := Init, Init
-		Compress2(&sa, &sb, &ba, &bb)
-		sink += sa[0] + sb[0]
-	}
-	_ = sink
 }

@@ -1,5 +1,5 @@
 // Package sha256pair runs the SHA-256 compression function (FIPS 180-4
-// §6.2.2) on two independent (state, block) pairs at once.
+// §6.2.2) on two independent (state, block) pairs at once, or on one.
 //
 // A selection key is the SHA-256 of a short message, so a draw spends
 // most of its hashing time in one or two compressions per row. On x86-64

@@ -1,9 +1,10 @@
 //go:build ignore
 
 // gen writes compress2_amd64.s: the SHA-256 compression function (FIPS
-// 180-4 §6.2.2) run on two independent (state, block) pairs at once with
-// the x86 SHA extensions, the rounds of the two interleaved so that the
-// processor overlaps them. Run it with go generate.
+// 180-4 §6.2.2) with the x86 SHA extensions, run on two independent
+// (state, block) pairs at once, the rounds of the two interleaved so that
+// the processor overlaps them (compress2), and on one (compress1). Run it
+// with go generate.
 package main
 
 import (
@@ -65,16 +66,31 @@ func main() {
 	emit("MOVQ sb+8(FP), %s", b.state)
 	emit("MOVQ ba+16(FP), %s", a.block)
 	emit("MOVQ bb+24(FP), %s", b.block)
+	body([]lane{a, b}, tmp, mask, shuf)
+
+	out.WriteString("\n// func compress1(s *[8]uint32, blk *[64]byte)\n")
+	out.WriteString("TEXT ·compress1(SB), NOSPLIT, $32-16\n")
+	emit("MOVQ s+0(FP), %s", a.state)
+	emit("MOVQ blk+8(FP), %s", a.block)
+	body([]lane{a}, tmp, mask, shuf)
+	if err := os.WriteFile("compress2_amd64.s", out.Bytes(), 0o644); err != nil {
+		log.Fatal(err)
+	}
+}
+
+// body emits the compression of every lane, the lanes' rounds
+// interleaved group by group.
+func body(lanes []lane, tmp, mask, shuf string) {
 	emit("MOVOU flipMask<>(SB), %s", mask)
-	for _, l := range []lane{a, b} {
+	for _, l := range lanes {
 		loadState(l, shuf)
 	}
 	for g := 0; g < 16; g++ {
-		for _, l := range []lane{a, b} {
+		for _, l := range lanes {
 			group(l, g, tmp, mask)
 		}
 	}
-	for _, l := range []lane{a, b} {
+	for _, l := range lanes {
 		// Memory operands of SSE arithmetic must be 16-byte aligned;
 		// the stack frame is not, so the saved state is loaded first.
 		emit("MOVOU %d(SP), %s", l.save, tmp)
@@ -84,9 +100,6 @@ func main() {
 		storeState(l, shuf)
 	}
 	emit("RET")
-	if err := os.WriteFile("compress2_amd64.s", out.Bytes(), 0o644); err != nil {
-		log.Fatal(err)
-	}
 }
 
 // loadState reads h0..h7 and rearranges them into ABEF and CDGH, saving
