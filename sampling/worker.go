@@ -29,6 +29,8 @@ type worker struct {
 	interns []internTable
 	packed  packedTable
 	single  *wstratum
+	// bandCache remembers the interval of short band values, per band.
+	bandCache [][1 << bandCacheBits]shortEntry
 	// held is each stratum's kept rows after the pass (finish).
 	held map[string][]Row
 	// merge is the compaction scratch of the worker's retainers.
@@ -319,9 +321,26 @@ func (w *worker) consider(st *wstratum, key *hkey, id []byte, line int64, rec []
 	r.seal()
 }
 
+// bandCacheBits is log2 of the entries of each band's value cache.
+const bandCacheBits = 15
+
 // bandIndex returns the interval of band i holding the row's value.
+// Values of 1 to 7 bytes (most scores as written) are remembered in a
+// direct-mapped cache by their bytes, so a repeated value is not parsed
+// again; the interval is a function of the bytes alone.
 func (w *worker) bandIndex(line int64, i, sl int) (int, *InputError) {
 	v := w.vals[sl]
+	word, short := shortWord(v)
+	var e *shortEntry
+	if short {
+		if w.bandCache == nil {
+			w.bandCache = make([][1 << bandCacheBits]shortEntry, len(w.s.spec.Bands))
+		}
+		e = &w.bandCache[i][(word*0x9E3779B97F4A7C15)>>(64-bandCacheBits)]
+		if e.word == word {
+			return int(e.id), nil
+		}
+	}
 	f, err := parseScore(v)
 	b := w.s.spec.Bands[i]
 	idx := -1
@@ -334,6 +353,9 @@ func (w *worker) bandIndex(line int64, i, sl int) (int, *InputError) {
 			what = "is outside [0, 1], the range a band splits"
 		}
 		return 0, inputErrorf(w.s.spec.Name, int(line), b.Column, "the band value %q %s", v, what)
+	}
+	if e != nil {
+		*e = shortEntry{word: word, id: int32(idx)}
 	}
 	return idx, nil
 }
