@@ -10,6 +10,7 @@ import (
 	"os"
 	"os/exec"
 	"sort"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -421,5 +422,46 @@ func TestRepeatsNameTheFirstLine(t *testing.T) {
 		if res.InScope != 3 {
 			t.Fatalf("run %d: %d rows in scope, want 3", i, res.InScope)
 		}
+	}
+}
+
+// TestBandValuesRepeated: band strata of many rows whose scores repeat
+// (so most are found in the value cache) count the same as classifying
+// each written value by hand: [0, 0.5), [0.5, 0.9), [0.9, 1].
+func TestBandValuesRepeated(t *testing.T) {
+	values := []string{"0", "0.5", "0.49", "0.4999999", "0.9", "0.90", "1", "0.8999", ".5", "5e-1", " 0.5", "0.50001", "1.0"}
+	want := map[string]int64{}
+	var b strings.Builder
+	b.WriteString("record_id,score\n")
+	for i := 0; i < 6000; i++ {
+		v := values[(i*7+i/13)%len(values)]
+		fmt.Fprintf(&b, "r%d,%s\n", i, v)
+		f, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		switch {
+		case f < 0.5:
+			want["[0,0.5)"]++
+		case f < 0.9:
+			want["[0.5,0.9)"]++
+		default:
+			want["[0.9,1]"]++
+		}
+	}
+	band, err := ParseBand("score=0.5,0.9")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Scan(strings.NewReader(b.String()), ScanSpec{Name: "log.csv", Seed: "s", Bands: []Band{band}, Capacity: 10, ChunkSize: 1000, Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := map[string]int64{}
+	for _, st := range res.Strata {
+		got[st.Label] = st.Count
+	}
+	if fmt.Sprint(got) != fmt.Sprint(want) {
+		t.Fatalf("band counts %v, want %v", got, want)
 	}
 }
