@@ -51,7 +51,7 @@ func newKeyHasher(seed string) *keyHasher {
 	if app, ok := k.d.(encoding.BinaryAppender); ok {
 		k.app = app
 		for _, id := range checks {
-			if k.cryptoSum([]byte(id)) != toHKey(ptr(sha256.Sum256([]byte(seed+":"+id)))) {
+			if k.cryptoSum([]byte(id)) != toHKey(digestRef(sha256.Sum256([]byte(seed+":"+id)))) {
 				k.app = nil
 				break
 			}
@@ -65,10 +65,11 @@ func newKeyHasher(seed string) *keyHasher {
 		}
 		k.rem = append([]byte(nil), k.buf[whole:k.plen]...)
 		k.pair = true
+		want := func(id string) hkey { return toHKey(digestRef(sha256.Sum256([]byte(seed + ":" + id)))) }
 		for i, id := range checks {
-			other := []byte(checks[(i+1)%len(checks)])
-			a, b := k.key2([]byte(id), other)
-			if a != toHKey(ptr(sha256.Sum256([]byte(seed+":"+id)))) || b != toHKey(ptr(sha256.Sum256(append([]byte(seed+":"), other...)))) {
+			other := checks[(i+1)%len(checks)]
+			a, b := k.key2([]byte(id), []byte(other))
+			if a != want(id) || b != want(other) || k.key([]byte(id)) != want(id) {
 				k.pair = false
 				break
 			}
@@ -77,7 +78,8 @@ func newKeyHasher(seed string) *keyHasher {
 	return k
 }
 
-func ptr(b [32]byte) *[32]byte { return &b }
+// digestRef returns a pointer to a copy of a digest (for toHKey).
+func digestRef(b [32]byte) *[32]byte { return &b }
 
 // key returns the key of one row.
 func (k *keyHasher) key(id []byte) hkey {

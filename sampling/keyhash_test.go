@@ -23,7 +23,7 @@ func TestKeyHasherMatchesSum256(t *testing.T) {
 		for n := 0; n+len(seed)+1 <= 200; n++ {
 			id := bytes.Repeat([]byte{byte('a' + n%26)}, n)
 			got := k.cryptoSum(id)
-			want := toHKey(ptr(sha256.Sum256([]byte(seed + ":" + string(id)))))
+			want := toHKey(digestRef(sha256.Sum256([]byte(seed + ":" + string(id)))))
 			if got != want {
 				t.Fatalf("seed %q, id of %d bytes: got %x, want %x", seed, n, got, want)
 			}
@@ -51,7 +51,7 @@ func TestKeyHasherPairsMatchSum256(t *testing.T) {
 		if sha256pair.Accelerated() && !k.pair {
 			t.Fatalf("seed of %d bytes: the pair path was disabled by its self-check", len(seed))
 		}
-		want := func(id []byte) hkey { return toHKey(ptr(sha256.Sum256([]byte(seed + ":" + string(id))))) }
+		want := func(id []byte) hkey { return toHKey(digestRef(sha256.Sum256([]byte(seed + ":" + string(id))))) }
 		for n := 0; n <= 150; n++ {
 			a := bytes.Repeat([]byte{byte('a' + n%26)}, n)
 			b := []byte(strings.Repeat("Z", (n*37)%151))
