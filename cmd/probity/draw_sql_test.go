@@ -250,7 +250,7 @@ func TestDrawSQLFlags(t *testing.T) {
 		want string
 	}{
 		{[]string{"--plan", sqlPlan, "--sql", "postgres"}, "probity: --sql needs --table\nhint: name the table or view"},
-		{[]string{"--plan", sqlPlan, "--sql", "oracle", "--table", "t"}, `--sql: unknown SQL dialect "oracle" (supported: postgres, duckdb)`},
+		{[]string{"--plan", sqlPlan, "--sql", "oracle", "--table", "t"}, `--sql: unknown SQL dialect "oracle" (supported: postgres, duckdb, clickhouse)`},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--log", "x.csv"}, "--log cannot be used with --sql\nhint: the query reads the table, not a log"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--out", "d"}, "--out cannot be used with --sql"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--allocation", "neyman"}, "--allocation neyman cannot run inside the engine"},
