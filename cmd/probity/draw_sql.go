@@ -48,18 +48,18 @@ the table written with NULL '(null)', e.g.
 gives the same worksheet and ledger with --log, and
 probity draw --check DIR --log EXPORT verifies a draw made in the engine.
 
-ClickHouse draws in two steps (it has no window functions here). With
---sql clickhouse --table NAME, draw prints the counts query; run it with
+ClickHouse draws in two steps (it has no window functions). With --sql
+clickhouse --table NAME, draw prints the counts query; run it with
   clickhouse-client < counts.sql > counts.csv
-then draw --plan PLAN.yaml --sql clickhouse --counts counts.csv computes the
-allocation from those counts (as a draw from a file does, neyman included
-only from a log) and prints the selection query; run it the same way and
+then draw --plan PLAN.yaml --sql clickhouse --counts counts.csv allocates the
+sample from those counts (as a draw from a file does; the other settings come
+from counts.csv) and prints the selection query; run it the same way and
 import its result with --counts counts.csv --selected selected.csv --out DIR.
 The import checks the selection against the counts (the table counted again
 must give the same strata) and the manifest records the counts file's
-SHA-256. Both queries end with FORMAT CSVWithNames, which writes ids exactly;
-never set skip_unavailable_shards (a shard that does not answer must fail the
-query, not drop its rows).`
+SHA-256. Both queries end with FORMAT CSVWithNames, which writes ids exactly.
+Never set skip_unavailable_shards: a shard that does not answer must fail the
+query, not drop its rows.`
 
 // hookDrawSQL adds --sql, --table and --selected to the draw command and
 // routes the command to the SQL paths when they are given; otherwise the
