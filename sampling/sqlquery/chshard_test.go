@@ -151,3 +151,35 @@ func TestClickHouseShardStopped(t *testing.T) {
 		}
 	})
 }
+
+// TestQuotingInClickHouse checks that every nasty string survives as a
+// literal, as a column alias and as a table and column name in a real
+// server (ClickHouse reads backslash escapes in both).
+func TestQuotingInClickHouse(t *testing.T) {
+	c := chcluster.Start(t)
+	for i, s := range nastyStrings {
+		lit, err := ClickHouse.QuoteLiteral(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		id, err := ClickHouse.QuoteIdent(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		out := c.MustQuery(t, "SELECT hex("+lit+") AS "+id+" FORMAT CSVWithNames", nil)
+		want := csvQuote(s) + "\n" + csvQuote(strings.ToUpper(hexOf(s))) + "\n"
+		if string(out) != want {
+			t.Errorf("case %d: %q came back as\n%s", i, s, out)
+		}
+		table := "default." + quotePart(s)
+		qt, err := ClickHouse.QuoteTable(table)
+		if err != nil {
+			t.Fatalf("QuoteTable(%q): %v", table, err)
+		}
+		c.MustQuery(t, "CREATE TABLE "+qt+" ("+id+" UInt8) ENGINE = Memory", nil)
+		out = c.MustQuery(t, "SELECT name FROM system.columns WHERE database = 'default' AND table = "+lit+" FORMAT CSV", nil)
+		if string(out) != csvQuote(s)+"\n" {
+			t.Errorf("case %d: the column of table %q came back as %q", i, s, out)
+		}
+	}
+}
