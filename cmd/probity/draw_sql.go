@@ -83,7 +83,7 @@ func hookDrawSQL(d deps, cmd *cobra.Command, o *drawOptions) {
 	cmd.PreRunE = func(c *cobra.Command, args []string) error {
 		if so.dialect == "" && so.selected == "" {
 			if so.table != "" {
-				return withHint(usageErrorf("--table is only used with --sql"), "add --sql postgres or --sql duckdb to print the drawing query")
+				return withHint(usageErrorf("--table is only used with --sql"), "add --sql postgres, duckdb or clickhouse to print the drawing query")
 			}
 			if so.counts != "" {
 				return withHint(usageErrorf("--counts is only used with --sql clickhouse or --selected"),
