@@ -4,13 +4,16 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
 	"probity/sampling"
 	"probity/sampling/loggen"
+	"probity/sampling/sqlquery"
 	"probity/sampling/sqlquery/chcluster"
 )
 
@@ -162,4 +165,43 @@ func TestDrawClickHouse(t *testing.T) {
 			t.Errorf("selection query with a differing flag: exit %d, stdout %d bytes, stderr:\n%s", code, len(stdout), stderr)
 		}
 	})
+}
+
+// TestDrawClickHouseLongQuery checks that a selection query longer than
+// ClickHouse parses by default comes with the client flag to run it.
+func TestDrawClickHouseLongQuery(t *testing.T) {
+	p, fp, err := loadDrawPlan(sqlPlan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := &sqlquery.Spec{Format: sqlquery.QueryFormat, ToolVersion: "test", Dialect: sqlquery.ClickHouse, PlanFingerprint: fp, Seed: p.Seed,
+		SelectionSeed: p.Seed, Table: "t", IDColumn: "record_id", Strata: []string{"region"}, Candidates: p.Candidates,
+		SampleSize: p.Rule.SampleSize, Allocation: "equal"}
+	detail, err := s.MarshalDetail()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	w := csv.NewWriter(&b)
+	w.Write(sqlquery.ResultHeader(2))
+	const strata = 3000
+	total := strconv.Itoa(strata * 10)
+	w.Write([]string{sqlquery.KindCounts, "", "", total, "", "", "", "", string(detail), "", ""})
+	w.Write([]string{sqlquery.KindInScope, "", "", total, "", "", "", "", "", "", ""})
+	w.Write([]string{sqlquery.KindEmptyIDs, "", "", "0", "", "", "", "", "", "", ""})
+	w.Write([]string{sqlquery.KindRepeatedRows, "", "", "0", "", "", "", "", "", "", ""})
+	for i := range strata {
+		w.Write([]string{sqlquery.KindStratum, "", fmt.Sprintf("a region with a long name, number %05d", i), "10", "", "", "", "", "", "", ""})
+	}
+	w.Flush()
+	counts := filepath.Join(t.TempDir(), "counts.csv")
+	if err := os.WriteFile(counts, b.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, stdout, stderr := runDrawCmd(t, nil, "--plan", sqlPlan, "--sql", "clickhouse", "--counts", counts, "-q")
+	want := fmt.Sprintf("probity: the query is %d bytes, more than ClickHouse parses by default (max_query_size %d)\nhint: run it with clickhouse-client --max_query_size=%d\n",
+		len(stdout), sqlquery.ClickHouseMaxQuerySize, len(stdout)+1)
+	if code != exitOK || len(stdout) <= sqlquery.ClickHouseMaxQuerySize || stderr != want {
+		t.Errorf("exit %d, %d bytes, stderr:\n%s\nwant:\n%s", code, len(stdout), stderr, want)
+	}
 }

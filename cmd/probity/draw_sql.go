@@ -248,11 +248,21 @@ func printCountsQuery(d deps, o *drawOptions, s *sqlquery.Spec) error {
 	if _, err := io.WriteString(d.stdout, q); err != nil {
 		return err
 	}
+	noteQuerySize(d, q)
 	if !o.quiet {
 		fmt.Fprintf(d.stderr, "probity: counts query (step 1 of 2) for %s on %s, sha256 %s\n", s.Dialect, s.Table, sampling.SHA256Hex([]byte(q)))
 		fmt.Fprintf(d.stderr, "probity: run it, save the result as CSV with a header, then: probity draw --plan %s --sql %s --counts COUNTS.csv > selection.sql\n", o.planPath, s.Dialect)
 	}
 	return nil
+}
+
+// noteQuerySize warns when a ClickHouse query is longer than the server
+// parses by default.
+func noteQuerySize(d deps, q string) {
+	if len(q) > sqlquery.ClickHouseMaxQuerySize {
+		fmt.Fprintf(d.stderr, "probity: the query is %d bytes, more than ClickHouse parses by default (max_query_size %d)\nhint: run it with clickhouse-client --max_query_size=%d\n",
+			len(q), sqlquery.ClickHouseMaxQuerySize, len(q)+1)
+	}
 }
 
 // runDrawSelectionSQL reads the counts query's result, allocates the
@@ -276,6 +286,7 @@ func runDrawSelectionSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOp
 	if _, err := io.WriteString(d.stdout, q); err != nil {
 		return err
 	}
+	noteQuerySize(d, q)
 	if !o.quiet {
 		n, spares := 0, 0
 		for _, a := range counts.Strata {

@@ -14,6 +14,12 @@ import (
 // a KindDraw row instead, whose description also names the counts file.
 const KindCounts = "counts"
 
+// ClickHouseMaxQuerySize is ClickHouse's default max_query_size: a longer
+// query text (the selection query of thousands of strata lists their
+// labels) is refused unless the client raises it, e.g.
+// clickhouse-client --max_query_size=1000000.
+const ClickHouseMaxQuerySize = 262144
+
 // chSettings are the settings both ClickHouse queries pin, so that a
 // profile's limits fail the query instead of silently cutting it short
 // (an overflow mode "break" stops reading, sorting or grouping and returns
