@@ -48,16 +48,29 @@ type chQuery struct {
 	first  string // a min(id) column
 	values []string
 	detail string // the literal of the draw description
+	err    error  // the first string that could not be quoted
 }
 
 // withEntry is one "expr AS alias" of a WITH clause.
 type withEntry struct{ alias, expr string }
 
-// lit quotes a string the Spec has already been checked to allow (valid
-// UTF-8 without NUL bytes; see Spec.validate and newQuoter).
+// lit quotes a string as a literal; a string that cannot be quoted (not
+// UTF-8, or holding a NUL byte) is remembered in c.err, which fails the
+// query.
 func (c *chQuery) lit(s string) string {
-	l, _ := ClickHouse.QuoteLiteral(s)
+	l, err := ClickHouse.QuoteLiteral(s)
+	if err != nil && c.err == nil {
+		c.err = err
+	}
 	return l
+}
+
+// done returns the query text, or the first quoting error.
+func (c *chQuery) done(b *strings.Builder) (string, error) {
+	if c.err != nil {
+		return "", fmt.Errorf("%w: %v", ErrSpec, c.err)
+	}
+	return b.String(), nil
 }
 
 // alias returns a name for an inner column that differs from every column
@@ -175,6 +188,9 @@ func newCHQuery(s *Spec) (*chQuery, error) {
 	}
 	c.count = c.alias("n")
 	c.first = c.alias("first_id")
+	if c.err != nil {
+		return nil, fmt.Errorf("%w: %v", ErrSpec, c.err)
+	}
 	return c, nil
 }
 
@@ -309,7 +325,7 @@ func CountsQuery(s *Spec) (string, error) {
 				"WHERE "+in+"\n    GROUP BY "+st+", "+bad)),
 	}
 	c.outer(&b, sec, "sec, sk, sk2", "distributed_group_by_no_merge = 0, "+chSettings)
-	return b.String(), nil
+	return c.done(&b)
 }
 
 // selectionGroups splits the strata that take rows (n_h + spares > 0) into
@@ -429,5 +445,5 @@ func SelectionQuery(counts *Counts) (string, error) {
 		st, tuple, lookup(takes, "0"), rs, strings.Join(reads, "\n      UNION ALL\n"), st, rs, r)
 	sec = append(sec, item)
 	c.outer(&b, sec, "sec, sk, sk2", "distributed_group_by_no_merge = 1, "+chSettings)
-	return b.String(), nil
+	return c.done(&b)
 }

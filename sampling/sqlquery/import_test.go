@@ -167,6 +167,7 @@ func TestQueryRefusesBadSpecs(t *testing.T) {
 	}{
 		{func(s *Spec) { s.Allocation = "neyman" }, "neyman allocation is not available for a clickhouse draw"},
 		{func(s *Spec) { s.Table = "a.b.c" }, "ClickHouse names a table database.table"},
+		{func(s *Spec) { s.Where = []string{"region=a\x00b"} }, "contains a NUL byte"},
 	}...)
 	for i, c := range chCases {
 		s := ch
