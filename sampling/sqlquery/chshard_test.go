@@ -106,12 +106,21 @@ func TestClickHouseShardStopped(t *testing.T) {
 		if err := cmd.Start(); err != nil {
 			t.Fatal(err)
 		}
-		// Wait until shard 2 runs its part of the query, then stop it.
-		deadline := time.Now().Add(20 * time.Second)
+		exited := make(chan error, 1)
+		go func() { exited <- cmd.Wait() }()
+		t.Cleanup(func() { _ = cmd.Process.Kill() })
+		// Wait until shard 2 runs a part of the query (a query the initiator
+		// sent it), then stop it.
+		deadline := time.Now().Add(60 * time.Second)
 		for {
-			n, err := c.Shards[1].Query("SELECT count() FROM system.processes WHERE query LIKE '%LIMIT % BY probity_stratum%' AND query NOT LIKE '%system.processes%'", nil)
+			n, err := c.Shards[1].Query("SELECT count() FROM system.processes WHERE is_initial_query = 0", nil)
 			if err == nil && strings.TrimSpace(string(n)) != "0" {
 				break
+			}
+			select {
+			case err := <-exited:
+				t.Fatalf("the selection query ended (%v) before shard 2 was seen running it:\n%s", err, errb.String())
+			default:
 			}
 			if time.Now().After(deadline) {
 				t.Fatal("shard 2 never ran the selection query")
@@ -121,7 +130,7 @@ func TestClickHouseShardStopped(t *testing.T) {
 		if err := c.Shards[1].Kill(); err != nil {
 			t.Fatal(err)
 		}
-		if err := cmd.Wait(); err == nil {
+		if err := <-exited; err == nil {
 			t.Fatalf("the selection query succeeded with a shard stopped midway:\n%s", out.String())
 		}
 		t.Logf("clickhouse-client: %s", strings.TrimSpace(errb.String()))
