@@ -25,7 +25,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		PerCandidateRisk: riskPct(p.PerCandidateRisk),
 		Candidates:       p.Candidates,
 		Require:          p.Require,
-		MultiplicityRule: p.Multiplicity,
+		MultiplicityRule: p.Multiplicity.String(),
 		Model:            p.Model,
 		Rule:             p.Method,
 		Sequential:       p.Design == "sequential",
@@ -50,7 +50,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		f.ProducerRisk = riskPct(*p.ProducerRisk)
 	}
 	if p.Candidates > 1 {
-		f.Multiplicity = multiplicityName(p.Multiplicity)
+		f.Multiplicity = p.Multiplicity.Title()
 	}
 	if p.Population > 0 {
 		f.Population = count(p.Population)
@@ -96,19 +96,6 @@ func boundName(id string) string {
 func weightedBound(id string) bool {
 	id = strings.ToLower(id)
 	return strings.Contains(id, "korn") || strings.Contains(id, "weighted")
-}
-
-// multiplicityName prints a multiplicity rule in words.
-func multiplicityName(id string) string {
-	switch id {
-	case "bonferroni":
-		return "Bonferroni"
-	case "holm":
-		return "Holm step-down"
-	case "fixed-sequence":
-		return "fixed-sequence"
-	}
-	return id
 }
 
 // modelName prints a probability model in words.

@@ -135,7 +135,7 @@ func fixtureRecord(use string) *record.Record {
 			Method:           "exact",
 			Model:            "binomial",
 			Design:           "fixed",
-			Multiplicity:     "bonferroni",
+			Multiplicity:     plan.Bonferroni,
 			Require:          "all",
 			Ceiling:          0.02,
 			Confidence:       0.95,
@@ -216,7 +216,7 @@ func manyRecord() *record.Record {
 	rec := fixtureRecord("safety")
 	rec.System = "Conveyor weld-seam inspection — Überwachungssystem with a deliberately long name to wrap"
 	rec.Plan.Candidates = 12
-	rec.Plan.Multiplicity = "holm"
+	rec.Plan.Multiplicity = plan.Holm
 	rec.Plan.Require = "any"
 	rec.Plan.Population = 1250000
 	rec.Plan.PerCandidateRisk = 0.05 / 12

@@ -38,7 +38,7 @@ func (d *doc) planInfo(c *content) {
 			req = "at least one candidate must be accepted"
 		}
 		rows = append(rows,
-			kv("Multiplicity", multiplicityName(p.Multiplicity)+"; "+req),
+			kv("Multiplicity", p.Multiplicity.Title()+"; "+req),
 		)
 	}
 	rows = append(rows,

@@ -18,7 +18,7 @@ type BudgetRow struct {
 // one-sided Clopper–Pearson upper bound; for a lot of N it is D/N for the
 // smallest D with P(X ≤ x | N, D, n) ≤ δ/M' (the exact hypergeometric
 // bound, in whole errors). Rows stop at x = n − 1.
-func Budget(n int, confidence float64, candidates int, multiplicity string, population int64, rows int) ([]BudgetRow, error) {
+func Budget(n int, confidence float64, candidates int, multiplicity Multiplicity, population int64, rows int) ([]BudgetRow, error) {
 	if n < 1 || n > MaxSampleSize {
 		return nil, &InputError{Field: "budget", Value: strconv.Itoa(n), Allowed: "between 1 and 100000000"}
 	}
@@ -31,7 +31,7 @@ func Budget(n int, confidence float64, candidates int, multiplicity string, popu
 	if population < 0 || (population > 0 && int64(n) > population) {
 		return nil, &InputError{Field: "population", Value: strconv.FormatInt(population, 10), Allowed: "at least the budget " + strconv.Itoa(n)}
 	}
-	alpha := PerCandidateRisk(confidence, candidates, multiplicity)
+	alpha := multiplicity.PerCandidateRisk(1-confidence, candidates)
 	var out []BudgetRow
 	for x := 0; x < rows && x < n; x++ {
 		var ceil float64
@@ -70,7 +70,7 @@ func lotUpperErrors(x, n int, population int64, alpha float64) int64 {
 // does not. It answers "with this budget, how many errors may the plan
 // allow?". The inputs are not validated.
 func AcceptanceNumberFor(n int, in Inputs) int {
-	alpha := PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+	alpha := in.PerCandidateRisk()
 	keeps := sizer{in: in, alpha: alpha}.exactRule()
 	// keeps(c, n) is true up to some c and false after: find the first false.
 	first := sort.Search(n, func(c int) bool { return !keeps(c, n) })

@@ -15,7 +15,9 @@
 //   - Size: the rule and the comparison for a set of Inputs; Build: the
 //     whole plan File (size.go, build.go, search.go, rules.go);
 //   - File.OC, File.AcceptProbability, File.KeyPoints: the exact OC curve
-//     (oc.go); PerCandidateRisk, File.PerCandidateConfidence (multiplicity.go);
+//     (oc.go); Multiplicity with its PerCandidateRisk, Inputs.PerCandidateRisk,
+//     File.PerCandidateConfidence (multiplicity.go); the other settings are
+//     types too, written by name in the plan file (setting.go);
 //   - Budget, AcceptanceNumberFor: the inverse question (budget.go);
 //   - File.Marshal, Parse, Load, Fingerprint: the plan file (file.go).
 //

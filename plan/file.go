@@ -74,8 +74,8 @@ type Inputs struct {
 	Population int64 `yaml:"population,omitempty"`
 	// Method is the decision rule: "exact", "hoeffding" or "kl".
 	Method string `yaml:"method"`
-	// Multiplicity is "bonferroni", "holm" or "fixed-sequence".
-	Multiplicity string `yaml:"multiplicity"`
+	// Multiplicity shares δ among the candidates.
+	Multiplicity Multiplicity `yaml:"multiplicity"`
 	// Design is "fixed" (label n, count errors) or "sequential".
 	Design string `yaml:"design"`
 	// Require is "all" (every candidate must be accepted for the audit to
@@ -180,7 +180,7 @@ func Parse(data []byte, name string) (*File, error) {
 	dec.KnownFields(true)
 	var f File
 	if err := dec.Decode(&f); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrPlanFile, err)
+		return nil, fmt.Errorf("%s: %w: %v", name, ErrPlanFile, fileKeyError(err))
 	}
 	if err := f.validate(); err != nil {
 		return nil, fmt.Errorf("%s: %w: %v", name, ErrPlanFile, err)
@@ -268,6 +268,17 @@ func (f *File) validate() error {
 	return nil
 }
 
+// fileKeyError rephrases a setting refused while decoding (an *InputError
+// from UnmarshalText) with its key in the file: `inputs.method "exakt" is
+// not one of exact, hoeffding, kl`.
+func fileKeyError(err error) error {
+	var ie *InputError
+	if !errors.As(err, &ie) {
+		return err
+	}
+	return fmt.Errorf("inputs.%s %s is not %s", ie.Field, ie.Value, ie.Allowed)
+}
+
 // validateNames refuses an unknown method, multiplicity, design or
 // requirement in a plan file; empty values are left to the caller's
 // defaults.
@@ -277,7 +288,6 @@ func (in Inputs) validateNames() error {
 		allowed    []string
 	}{
 		{"method", in.Method, Methods},
-		{"multiplicity", in.Multiplicity, Multiplicities},
 		{"design", in.Design, []string{DesignFixed, DesignSequential}},
 		{"require", in.Require, []string{RequireAll, RequireAny}},
 	} {

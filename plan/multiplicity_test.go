@@ -5,12 +5,12 @@ import "testing"
 func TestEffectiveCandidates(t *testing.T) {
 	for _, tc := range []struct {
 		m    int
-		mult string
+		mult Multiplicity
 		want int
 	}{
 		{5, Bonferroni, 5}, {5, Holm, 5}, {5, FixedSequence, 1}, {1, Bonferroni, 1}, {0, Bonferroni, 1},
 	} {
-		if got := EffectiveCandidates(tc.m, tc.mult); got != tc.want {
+		if got := tc.mult.EffectiveCandidates(tc.m); got != tc.want {
 			t.Errorf("EffectiveCandidates(%d, %s) = %d, want %d", tc.m, tc.mult, got, tc.want)
 		}
 	}

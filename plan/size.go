@@ -54,8 +54,8 @@ func (in Inputs) Validate() error {
 	if !slices.Contains(Methods, in.Method) {
 		return &InputError{Field: "method", Value: strconv.Quote(in.Method), Allowed: "one of " + strings.Join(Methods, ", ")}
 	}
-	if !slices.Contains(Multiplicities, in.Multiplicity) {
-		return &InputError{Field: "multiplicity", Value: strconv.Quote(in.Multiplicity), Allowed: "one of " + strings.Join(Multiplicities, ", ")}
+	if !multiplicitySpelling.known(in.Multiplicity) {
+		return multiplicitySpelling.invalid(in.Multiplicity.String())
 	}
 	if in.Design != DesignFixed && in.Design != DesignSequential {
 		return &InputError{Field: "design", Value: strconv.Quote(in.Design), Allowed: "fixed or sequential"}
@@ -80,7 +80,7 @@ func Size(in Inputs) (Rule, []RuleSize, error) {
 	if err := in.Validate(); err != nil {
 		return Rule{}, nil, err
 	}
-	alpha := PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+	alpha := in.PerCandidateRisk()
 	s := sizer{in: in, alpha: alpha}
 	chosen := s.methodRule(in.Method)
 	res := s.search(chosen)
@@ -214,7 +214,7 @@ func (s sizer) tooLarge(res searchResult) error {
 func (s sizer) relax(consumerSide bool) []string {
 	if consumerSide || s.in.Anticipated == nil {
 		r := []string{"ceiling", "confidence"}
-		if EffectiveCandidates(s.in.Candidates, s.in.Multiplicity) > 1 {
+		if s.in.Multiplicity.EffectiveCandidates(s.in.Candidates) > 1 {
 			r = append(r, "candidates")
 		}
 		return r

@@ -106,8 +106,8 @@ func TestNISTSingleSamplingOC(t *testing.T) {
 func TestMultiplicity(t *testing.T) {
 	base := inputs(0.02, 0.95)
 	base.Anticipated = ptr(0.01)
-	sizes := map[string]int{}
-	for _, m := range Multiplicities {
+	sizes := map[Multiplicity]int{}
+	for _, m := range Multiplicities() {
 		in := base
 		in.Candidates = 5
 		in.Multiplicity = m
@@ -141,7 +141,7 @@ func TestValidateAndLimits(t *testing.T) {
 		{"anticipated", func(in *Inputs) { in.Anticipated = ptr(0.02) }},
 		{"producer-risk", func(in *Inputs) { in.ProducerRisk = 0 }},
 		{"method", func(in *Inputs) { in.Method = "wald" }},
-		{"multiplicity", func(in *Inputs) { in.Multiplicity = "sidak" }},
+		{"multiplicity", func(in *Inputs) { in.Multiplicity = Multiplicity(99) }},
 		{"ceiling", func(in *Inputs) { in.Ceiling = math.NaN() }},
 	}
 	for _, tc := range bad {
@@ -214,7 +214,7 @@ func TestSizeInvariants(t *testing.T) {
 			in.Ceiling = 0.5
 		}
 		in.Candidates = 1 + rng.IntN(20)
-		in.Multiplicity = Multiplicities[rng.IntN(3)]
+		in.Multiplicity = Multiplicities()[rng.IntN(3)]
 		in.ProducerRisk = 0.01 + 0.5*rng.Float64()
 		if i%3 != 0 {
 			in.Anticipated = ptr(in.Ceiling * rng.Float64() * 0.8)
@@ -230,7 +230,7 @@ func TestSizeInvariants(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%+v: %v", in, err)
 		}
-		alpha := PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+		alpha := in.PerCandidateRisk()
 		if !(r.ConsumerRisk <= alpha) || (r.ProducerRisk != nil && !(*r.ProducerRisk <= in.ProducerRisk)) {
 			t.Errorf("%+v: risks %v / %v", in, r.ConsumerRisk, r.ProducerRisk)
 		}

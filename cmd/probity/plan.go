@@ -101,7 +101,7 @@ the time and the tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.producerRisk, "producer-risk", "0.10", "`RISK`: the largest allowed chance of rejecting a model whose error is p0")
 	fl.StringVar(&o.population, "population", "", "`N`, when the audit covers one batch of N decisions (hypergeometric)")
 	fl.StringVar(&o.method, "method", plan.MethodExact, "the decision `RULE`: exact, hoeffding or kl")
-	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni, "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
+	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni.String(), "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
 	fl.StringVar(&o.design, "design", plan.DesignFixed, "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
 	fl.StringVar(&o.require, "require", plan.RequireAll, "`all` candidates or `any` one must be accepted for the audit to pass")
 	fl.StringVar(&o.budget, "budget", "", "with `n` labels: the ceiling each number of errors certifies (no plan is made)")
@@ -148,7 +148,7 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	if o.confidence == "" {
 		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
 	}
-	in := plan.Inputs{Method: o.method, Multiplicity: o.multiplicity, Design: o.design, Require: o.require}
+	in := plan.Inputs{Method: o.method, Design: o.design, Require: o.require}
 	var err error
 	if in.Ceiling, err = parseNumber("ceiling", o.ceiling); err != nil {
 		return err
@@ -196,6 +196,9 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 		}
 		in.Candidates = len(o.declared)
 	}
+	if in.Multiplicity, err = plan.ParseMultiplicity(o.multiplicity); err != nil {
+		return planInputError(err)
+	}
 	if err := in.Validate(); err != nil {
 		return planInputError(err)
 	}
@@ -223,7 +226,7 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 	if o.confidence == "" {
 		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
 	}
-	in := plan.Inputs{Multiplicity: o.multiplicity}
+	var in plan.Inputs
 	if in.Confidence, err = parseNumber("confidence", o.confidence); err != nil {
 		return err
 	}
@@ -238,8 +241,8 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 		return usageErrorf("--candidates %d: must be between 1 and 1000000", m)
 	}
 	in.Candidates = int(m)
-	if !slices.Contains(plan.Multiplicities, o.multiplicity) {
-		return usageErrorf("--multiplicity %q: must be one of %s", o.multiplicity, strings.Join(plan.Multiplicities, ", "))
+	if in.Multiplicity, err = plan.ParseMultiplicity(o.multiplicity); err != nil {
+		return planInputError(err)
 	}
 	if o.population != "" {
 		if in.Population, err = parseCount("population", o.population); err != nil {

@@ -73,7 +73,7 @@ type planJSON struct {
 	PerCandidateConfidence float64             `json:"per_candidate_confidence"`
 	Method                 string              `json:"method"`
 	Model                  string              `json:"model"`
-	Multiplicity           string              `json:"multiplicity"`
+	Multiplicity           plan.Multiplicity   `json:"multiplicity"`
 	Design                 string              `json:"design"`
 	Require                string              `json:"require"`
 	Ceiling                float64             `json:"ceiling"`
@@ -237,7 +237,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 		bad = fmt.Sprintf("a batch with %d or more errors (%s of %d)", r.BadLotErrors, pct(in.Ceiling), in.Population)
 	}
 	allowed := fmt.Sprintf("allowed %s: %s confidence", pct(r.PerCandidateRisk), pct(in.Confidence))
-	if m > 1 && in.Multiplicity != plan.FixedSequence {
+	if in.Multiplicity.EffectiveCandidates(m) > 1 {
 		allowed = fmt.Sprintf("allowed %s per candidate, so %s confidence for all %d together", pct(r.PerCandidateRisk), pct(in.Confidence), m)
 	}
 	fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (%s).\n", bad, pct(r.ConsumerRisk), allowed)
@@ -365,7 +365,7 @@ func runPlanBudget(d deps, o *planOptions) error {
 	if err != nil {
 		return planInputError(err)
 	}
-	alpha := plan.PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+	alpha := in.PerCandidateRisk()
 	var c *int
 	if o.hasCeiling {
 		v := plan.AcceptanceNumberFor(o.budgetN, in)
@@ -373,15 +373,15 @@ func runPlanBudget(d deps, o *planOptions) error {
 	}
 	if o.json {
 		type budgetJSON struct {
-			Budget           int              `json:"budget"`
-			Confidence       float64          `json:"confidence"`
-			Candidates       int              `json:"candidates"`
-			Multiplicity     string           `json:"multiplicity"`
-			PerCandidateRisk float64          `json:"per_candidate_risk"`
-			Population       *int64           `json:"population"`
-			Rows             []plan.BudgetRow `json:"rows"`
-			Ceiling          *float64         `json:"ceiling"`
-			AcceptanceNumber *int             `json:"acceptance_number"`
+			Budget           int               `json:"budget"`
+			Confidence       float64           `json:"confidence"`
+			Candidates       int               `json:"candidates"`
+			Multiplicity     plan.Multiplicity `json:"multiplicity"`
+			PerCandidateRisk float64           `json:"per_candidate_risk"`
+			Population       *int64            `json:"population"`
+			Rows             []plan.BudgetRow  `json:"rows"`
+			Ceiling          *float64          `json:"ceiling"`
+			AcceptanceNumber *int              `json:"acceptance_number"`
 		}
 		j := budgetJSON{Budget: o.budgetN, Confidence: in.Confidence, Candidates: in.Candidates, Multiplicity: in.Multiplicity,
 			PerCandidateRisk: alpha, Rows: rows, AcceptanceNumber: c}

@@ -5,6 +5,8 @@
 // new.
 package record
 
+import "probity/plan"
+
 // Format is the version of the record.json layout written by this code.
 const Format = 1
 
@@ -56,24 +58,24 @@ type Record struct {
 
 // PlanInfo repeats the plan's rule and inputs.
 type PlanInfo struct {
-	Fingerprint      string   `json:"fingerprint"`
-	Method           string   `json:"method"`       // exact, hoeffding, kl
-	Model            string   `json:"model"`        // binomial, hypergeometric, ...
-	Design           string   `json:"design"`       // fixed or sequential
-	Multiplicity     string   `json:"multiplicity"` // bonferroni, holm, fixed-sequence
-	Require          string   `json:"require"`      // all or any
-	Ceiling          float64  `json:"ceiling"`
-	Confidence       float64  `json:"confidence"`
-	Candidates       int      `json:"candidates"`
-	Anticipated      *float64 `json:"anticipated"`
-	Population       int64    `json:"population"`
-	SampleSize       int      `json:"sample_size"`
-	AcceptanceNumber int      `json:"acceptance_number"`
-	PerCandidateRisk float64  `json:"per_candidate_risk"`
-	ConsumerRisk     float64  `json:"consumer_risk"`
-	ProducerRisk     *float64 `json:"producer_risk"`
-	Seed             string   `json:"seed"`
-	SelectionSeed    string   `json:"selection_seed"`
+	Fingerprint      string            `json:"fingerprint"`
+	Method           string            `json:"method"` // exact, hoeffding, kl
+	Model            string            `json:"model"`  // binomial, hypergeometric, ...
+	Design           string            `json:"design"` // fixed or sequential
+	Multiplicity     plan.Multiplicity `json:"multiplicity"`
+	Require          string            `json:"require"` // all or any
+	Ceiling          float64           `json:"ceiling"`
+	Confidence       float64           `json:"confidence"`
+	Candidates       int               `json:"candidates"`
+	Anticipated      *float64          `json:"anticipated"`
+	Population       int64             `json:"population"`
+	SampleSize       int               `json:"sample_size"`
+	AcceptanceNumber int               `json:"acceptance_number"`
+	PerCandidateRisk float64           `json:"per_candidate_risk"`
+	ConsumerRisk     float64           `json:"consumer_risk"`
+	ProducerRisk     *float64          `json:"producer_risk"`
+	Seed             string            `json:"seed"`
+	SelectionSeed    string            `json:"selection_seed"`
 }
 
 // Fingerprints are lowercase hex SHA-256 digests.

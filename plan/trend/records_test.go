@@ -10,6 +10,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"probity/plan"
 	"probity/plan/record"
 )
 
@@ -30,7 +31,7 @@ func testPlan() record.PlanInfo {
 		Method:           "exact",
 		Model:            "binomial",
 		Design:           "fixed",
-		Multiplicity:     "bonferroni",
+		Multiplicity:     plan.Bonferroni,
 		Require:          "all",
 		Ceiling:          0.02,
 		Confidence:       0.95,

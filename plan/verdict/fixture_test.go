@@ -9,7 +9,7 @@ import (
 )
 
 // testPlan builds a plan with one or more label-column candidates.
-func testPlan(n, c int, ceiling, confidence float64, m int, multiplicity string) *plan.File {
+func testPlan(n, c int, ceiling, confidence float64, m int, multiplicity plan.Multiplicity) *plan.File {
 	f := &plan.File{
 		Format: plan.FileFormat, Seed: "00112233445566778899aabbccddeeff",
 		Inputs: plan.Inputs{Ceiling: ceiling, Confidence: confidence, Candidates: m, Method: "exact",
@@ -18,7 +18,7 @@ func testPlan(n, c int, ceiling, confidence float64, m int, multiplicity string)
 		Classes: []string{"ok", "defect"},
 	}
 	switch multiplicity {
-	case "fixed-sequence":
+	case plan.FixedSequence:
 		f.Rule.PerCandidateRisk = 1 - confidence
 	default:
 		f.Rule.PerCandidateRisk = (1 - confidence) / float64(m)

@@ -160,12 +160,9 @@ func Judge(in Input) (*Result, error) {
 		adj := d.Adjusted
 		rc.AdjustedPValue = &adj
 		switch {
-		case d.NotReached && p.Inputs.Multiplicity == "fixed-sequence":
-			rc.Verdict = record.Reject
-			rc.Reason = fmt.Sprintf("not reached: %s was rejected earlier in the fixed sequence", firstFail)
 		case d.NotReached:
 			rc.Verdict = record.Reject
-			rc.Reason = fmt.Sprintf("not reached: Holm's step-down stopped at %s", firstFail)
+			rc.Reason = p.Inputs.Multiplicity.NotReachedReason(firstFail)
 		case d.Accepted:
 			rc.Verdict = record.Accept
 		default:
@@ -173,12 +170,12 @@ func Judge(in Input) (*Result, error) {
 		}
 		if !d.NotReached {
 			rc.Reason = reason(rc, m, p, n, level, d)
-			if !d.Accepted && firstFail == "" && p.Inputs.Multiplicity == "fixed-sequence" {
+			if !d.Accepted && firstFail == "" && p.Inputs.Multiplicity == plan.FixedSequence {
 				firstFail = rc.Name
 			}
 		}
 	}
-	if p.Inputs.Multiplicity == "holm" {
+	if p.Inputs.Multiplicity == plan.Holm {
 		// The Holm stop point is the not-accepted candidate with the
 		// smallest step; fill the not-reached reasons with it.
 		best := 0
@@ -189,7 +186,7 @@ func Judge(in Input) (*Result, error) {
 		}
 		for ci, d := range decisions {
 			if d.NotReached {
-				res.Candidates[ci].Reason = fmt.Sprintf("not reached: Holm's step-down stopped at %s", firstFail)
+				res.Candidates[ci].Reason = plan.Holm.NotReachedReason(firstFail)
 			}
 		}
 	}
@@ -354,7 +351,7 @@ func reason(rc *record.Candidate, m judgeMethod, p *plan.File, n int, level floa
 			s = fmt.Sprintf("p-value %s %s level %s", short(rc.PValue), cmp, short(d.Level))
 		}
 	}
-	if p.Inputs.Multiplicity == "holm" && d.Step > 1 {
+	if p.Inputs.Multiplicity == plan.Holm && d.Step > 1 {
 		s += fmt.Sprintf(" (Holm step %d, level %s)", d.Step, short(d.Level))
 	}
 	return s

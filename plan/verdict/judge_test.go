@@ -30,18 +30,18 @@ func TestVerdictAgreesWithPlanC(t *testing.T) {
 		ceiling      float64
 		confidence   float64
 		m            int
-		multiplicity string
+		multiplicity plan.Multiplicity
 	}{
-		{1271, 0.02, 0.95, 1, "bonferroni"}, // the issue's example plan (c = 17)
-		{150, 0.02, 0.95, 1, "bonferroni"},
-		{59, 0.05, 0.95, 1, "bonferroni"}, // zero-failure plan (c = 0)
-		{300, 0.05, 0.99, 3, "bonferroni"},
-		{200, 0.10, 0.90, 2, "fixed-sequence"},
-		{400, 0.03, 0.95, 4, "holm"},
+		{1271, 0.02, 0.95, 1, plan.Bonferroni}, // the issue's example plan (c = 17)
+		{150, 0.02, 0.95, 1, plan.Bonferroni},
+		{59, 0.05, 0.95, 1, plan.Bonferroni}, // zero-failure plan (c = 0)
+		{300, 0.05, 0.99, 3, plan.Bonferroni},
+		{200, 0.10, 0.90, 2, plan.FixedSequence},
+		{400, 0.03, 0.95, 4, plan.Holm},
 	}
 	for _, tc := range cases {
 		level := (1 - tc.confidence) / float64(tc.m)
-		if tc.multiplicity == "fixed-sequence" {
+		if tc.multiplicity == plan.FixedSequence {
 			level = 1 - tc.confidence
 		}
 		c := largestC(tc.n, tc.ceiling, level)
@@ -104,7 +104,7 @@ func TestHypergeometricVerdictAgreesWithPlanC(t *testing.T) {
 				c = x
 			}
 		}
-		p := testPlan(tc.n, c, tc.ceiling, 0.95, 1, "bonferroni")
+		p := testPlan(tc.n, c, tc.ceiling, 0.95, 1, plan.Bonferroni)
 		p.Rule.Model, p.Inputs.Population = "hypergeometric", tc.N
 		d := Design{Strata: []Stratum{{Label: "lot", Population: tc.N, Sample: tc.n}}}
 		for x := 0; x <= tc.n; x++ {
@@ -149,7 +149,7 @@ func TestEdgeCasesAgainstScipy(t *testing.T) {
 	python(t, script.String(), &want)
 	const tol = 1e-9 // relative; the bound is solved to full double precision
 	for i, e := range edges {
-		p := testPlan(e.n, 0, e.ceiling, e.confidence, 1, "bonferroni")
+		p := testPlan(e.n, 0, e.ceiling, e.confidence, 1, plan.Bonferroni)
 		d := oneStratum(e.n)
 		r := judge(t, Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{e.x}})})
 		c := r.Candidates[0]
@@ -209,7 +209,7 @@ print(json.dumps(dict(Est=est,Var=var,Lo=lo,Hi=hi)))`, &want)
 	if d.SelfWeighting() {
 		t.Fatalf("unequal weights judged self-weighting")
 	}
-	p := testPlan(180, 3, 0.08, 0.95, 1, "bonferroni")
+	p := testPlan(180, 3, 0.08, 0.95, 1, plan.Bonferroni)
 	items := itemsWithErrors(d, [][]int{x})
 	r := judge(t, Input{Plan: p, Design: d, Items: items})
 	c := r.Candidates[0]
@@ -239,7 +239,7 @@ func close(got, want, rel float64) bool {
 }
 
 func TestSequentialPlanRefused(t *testing.T) {
-	p := testPlan(10, 0, 0.1, 0.9, 1, "bonferroni")
+	p := testPlan(10, 0, 0.1, 0.9, 1, plan.Bonferroni)
 	p.Sequential = &plan.SequentialRule{MaxSampleSize: 10}
 	d := oneStratum(10)
 	_, err := Judge(Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{0}})})

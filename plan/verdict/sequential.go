@@ -78,9 +78,9 @@ func JudgeSequential(in Input) (*Result, error) {
 			}
 		}
 		switch {
-		case firstFail != "" && p.Inputs.Multiplicity == "fixed-sequence":
+		case firstFail != "" && p.Inputs.Multiplicity == plan.FixedSequence:
 			rc.Verdict = record.Reject
-			rc.Reason = fmt.Sprintf("not reached: %s was rejected earlier in the fixed sequence", firstFail)
+			rc.Reason = plan.FixedSequence.NotReachedReason(firstFail)
 		case d == sequential.Accept:
 			rc.Verdict = record.Accept
 			rc.Reason = fmt.Sprintf("%s in the first %d labels: at or below the acceptance boundary %d", errorsText(rc.Errors), at, p.Sequential.AcceptIfErrorsAtMost[at-1])
