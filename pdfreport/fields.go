@@ -3,6 +3,7 @@ package pdfreport
 import (
 	"strings"
 
+	"probity/plan"
 	"probity/plan/record"
 	"probity/templates"
 )
@@ -28,7 +29,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		MultiplicityRule: p.Multiplicity.String(),
 		Model:            p.Model,
 		Rule:             p.Method,
-		Sequential:       p.Design == "sequential",
+		Sequential:       p.Design == plan.DesignSequential,
 		SampleSize:       p.SampleSize,
 		AcceptanceNumber: p.AcceptanceNumber,
 		Bound:            boundName(rec.Method.Bound),

@@ -134,7 +134,7 @@ func fixtureRecord(use string) *record.Record {
 			Fingerprint:      "9d1f0c6a4be57d2e8f3a1c0b9e8d7f6a5b4c3d2e1f0a9b8c7d6e5f4a3b2c1d0e",
 			Method:           "exact",
 			Model:            "binomial",
-			Design:           "fixed",
+			Design:           plan.DesignFixed,
 			Multiplicity:     plan.Bonferroni,
 			Require:          "all",
 			Ceiling:          0.02,

@@ -2,6 +2,8 @@ package pdfreport
 
 import (
 	"strings"
+
+	"probity/plan"
 )
 
 // kv is one key/value row.
@@ -43,10 +45,10 @@ func (d *doc) planInfo(c *content) {
 	}
 	rows = append(rows,
 		kv("Per-candidate confidence", f.BoundConfidence+" (risk "+f.PerCandidateRisk+")"),
-		kv("Decision rule", joinNonEmpty("; ", ruleName(p.Method, p.Model), designName(p.Design))),
+		kv("Decision rule", joinNonEmpty("; ", ruleName(p.Method, p.Model), p.Design.Title())),
 		kv("Sample size n", itoa(p.SampleSize)+" decisions"),
 	)
-	if p.Design != "sequential" {
+	if p.Design != plan.DesignSequential {
 		use := " (accept when errors ≤ c)"
 		if f.Weighted {
 			use = " (for a self-weighting sample; this one is weighted, so the bound decides)"
@@ -76,17 +78,6 @@ func (d *doc) planInfo(c *content) {
 		rows = append(rows, kvMono("Selection seed", p.SelectionSeed))
 	}
 	d.drawTable(&table{title: "The plan", cols: []column{{w: 32}, {w: 68}}, rows: rows, keyFill: true, size: bodySize - 0.5})
-}
-
-// designName prints a design in words.
-func designName(id string) string {
-	switch id {
-	case "fixed", "":
-		return "fixed sample"
-	case "sequential":
-		return "sequential (stops when a boundary is reached)"
-	}
-	return id
 }
 
 // ruleName says which rule the plan uses and under which model.

@@ -12,6 +12,7 @@ import (
 	"strings"
 	"testing"
 
+	"probity/plan"
 	"probity/plan/record"
 	"probity/templates"
 )
@@ -349,7 +350,7 @@ func TestUnusualRecordsLayOut(t *testing.T) {
 		want []string
 	}{
 		{"sequential without curve or strata", func(r *record.Record) {
-			r.Plan.Design = "sequential"
+			r.Plan.Design = plan.DesignSequential
 			r.OC = nil
 			r.Strata = nil
 			for i := range r.Candidates {

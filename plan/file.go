@@ -76,8 +76,8 @@ type Inputs struct {
 	Method string `yaml:"method"`
 	// Multiplicity shares δ among the candidates.
 	Multiplicity Multiplicity `yaml:"multiplicity"`
-	// Design is "fixed" (label n, count errors) or "sequential".
-	Design string `yaml:"design"`
+	// Design is fixed (label n, count errors) or sequential.
+	Design Design `yaml:"design"`
 	// Require is "all" (every candidate must be accepted for the audit to
 	// pass) or "any" (at least one must be, e.g. choosing among
 	// thresholds).
@@ -288,7 +288,6 @@ func (in Inputs) validateNames() error {
 		allowed    []string
 	}{
 		{"method", in.Method, Methods},
-		{"design", in.Design, []string{DesignFixed, DesignSequential}},
 		{"require", in.Require, []string{RequireAll, RequireAny}},
 	} {
 		if c.value != "" && !slices.Contains(c.allowed, c.value) {

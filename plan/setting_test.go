@@ -31,6 +31,12 @@ func settingCases() []settingCase {
 			parse:  func(s string) (fmt.Stringer, error) { return ParseMultiplicity(s) },
 			unset:  new(Multiplicity), allowed: "one of bonferroni, holm, fixed-sequence",
 		},
+		{
+			field: "design", names: []string{"fixed", "sequential"},
+			values: []fmt.Stringer{DesignFixed, DesignSequential},
+			parse:  func(s string) (fmt.Stringer, error) { return ParseDesign(s) },
+			unset:  new(Design), allowed: "fixed or sequential",
+		},
 	}
 }
 
@@ -134,6 +140,17 @@ func TestMultiplicityWording(t *testing.T) {
 	}{{Bonferroni, 0.05 / 4}, {Holm, 0.05 / 4}, {FixedSequence, 0.05}, {MultiplicityUnset, 0.05 / 4}} {
 		if got := tc.m.PerCandidateRisk(0.05, 4); got != tc.want {
 			t.Errorf("%v.PerCandidateRisk(0.05, 4) = %v, want %v", tc.m, got, tc.want)
+		}
+	}
+}
+
+func TestDesignTitle(t *testing.T) {
+	for d, want := range map[Design]string{
+		DesignFixed: "fixed sample", DesignUnset: "fixed sample",
+		DesignSequential: "sequential (stops when a boundary is reached)",
+	} {
+		if got := d.Title(); got != want {
+			t.Errorf("%v.Title() = %q, want %q", d, got, want)
 		}
 	}
 }

@@ -6,15 +6,6 @@ import (
 	"strings"
 )
 
-// Designs of a plan (Inputs.Design).
-const (
-	// DesignFixed labels n decisions and counts the errors.
-	DesignFixed = "fixed"
-	// DesignSequential judges after every label against boundaries
-	// (File.Sequential); it is filled in by plan/sequential.
-	DesignSequential = "sequential"
-)
-
 // Requirements for Inputs.Require.
 const (
 	RequireAll = "all"
@@ -57,8 +48,8 @@ func (in Inputs) Validate() error {
 	if !multiplicitySpelling.known(in.Multiplicity) {
 		return multiplicitySpelling.invalid(in.Multiplicity.String())
 	}
-	if in.Design != DesignFixed && in.Design != DesignSequential {
-		return &InputError{Field: "design", Value: strconv.Quote(in.Design), Allowed: "fixed or sequential"}
+	if !designSpelling.known(in.Design) {
+		return designSpelling.invalid(in.Design.String())
 	}
 	if in.Require != RequireAll && in.Require != RequireAny {
 		return &InputError{Field: "require", Value: strconv.Quote(in.Require), Allowed: "all or any"}

@@ -102,7 +102,7 @@ the time and the tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.population, "population", "", "`N`, when the audit covers one batch of N decisions (hypergeometric)")
 	fl.StringVar(&o.method, "method", plan.MethodExact, "the decision `RULE`: exact, hoeffding or kl")
 	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni.String(), "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
-	fl.StringVar(&o.design, "design", plan.DesignFixed, "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
+	fl.StringVar(&o.design, "design", plan.DesignFixed.String(), "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
 	fl.StringVar(&o.require, "require", plan.RequireAll, "`all` candidates or `any` one must be accepted for the audit to pass")
 	fl.StringVar(&o.budget, "budget", "", "with `n` labels: the ceiling each number of errors certifies (no plan is made)")
 	fl.StringVar(&o.out, "out", "", "write the plan file (YAML) to `PATH`")
@@ -148,7 +148,7 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	if o.confidence == "" {
 		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
 	}
-	in := plan.Inputs{Method: o.method, Design: o.design, Require: o.require}
+	in := plan.Inputs{Method: o.method, Require: o.require}
 	var err error
 	if in.Ceiling, err = parseNumber("ceiling", o.ceiling); err != nil {
 		return err
@@ -183,8 +183,8 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 			return usageErrorf("--population %d: must be at least 1", in.Population)
 		}
 	}
-	if o.design != plan.DesignFixed && o.design != plan.DesignSequential {
-		return usageErrorf("--design %q: must be fixed or sequential", o.design)
+	if in.Design, err = plan.ParseDesign(o.design); err != nil {
+		return planInputError(err)
 	}
 	if err := o.parseCandidates(); err != nil {
 		return err
@@ -407,8 +407,8 @@ func runPlan(d deps, o *planOptions) error {
 	return writePlanReport(d.stdout, f, o.out, fingerprint)
 }
 
-// applyDesign is the hook for the plan's design: "fixed" keeps the
-// (n, c) rule Build made; "sequential" turns it into boundaries
+// applyDesign is the hook for the plan's design: fixed keeps the
+// (n, c) rule Build made; sequential turns it into boundaries
 // (plan_sequential.go, plan/sequential).
 func applyDesign(f *plan.File) error {
 	switch f.Inputs.Design {

@@ -74,7 +74,7 @@ type planJSON struct {
 	Method                 string              `json:"method"`
 	Model                  string              `json:"model"`
 	Multiplicity           plan.Multiplicity   `json:"multiplicity"`
-	Design                 string              `json:"design"`
+	Design                 plan.Design         `json:"design"`
 	Require                string              `json:"require"`
 	Ceiling                float64             `json:"ceiling"`
 	Confidence             float64             `json:"confidence"`

@@ -198,7 +198,7 @@ func progressStatus(d sequential.Decision) string {
 
 // writeProgress prints the human-readable assessment.
 func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
-	if res.Design == "sequential" {
+	if res.Design == plan.DesignSequential {
 		fmt.Fprintf(w, "Sequential plan: at most %d labels; each candidate stops at its boundaries.\n", res.SampleSize)
 	} else {
 		fmt.Fprintf(w, "Fixed plan: %d labels, accept with at most %d errors; stopping early by exact curtailment (no change to either risk).\n",

@@ -14,6 +14,7 @@ import (
 	"testing"
 	"time"
 
+	"probity/plan"
 	"probity/plan/record"
 	trendpkg "probity/plan/trend"
 )
@@ -300,7 +301,7 @@ func TestTrendBadInput(t *testing.T) {
 			"hint: a trend compares audits of one model, method, design, ceiling and confidence"}},
 		{"sequential mixed with fixed", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
-			r.Plan.Design = "sequential"
+			r.Plan.Design = plan.DesignSequential
 			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
 		}, []string{"plan.design is sequential here but fixed"}},
 		{"different ceilings", func(t *testing.T, dir string) []string {

@@ -54,11 +54,11 @@ type Candidate struct {
 
 // Result is the state of the audit.
 type Result struct {
-	// Design is "fixed" or "sequential"; SampleSize is n (fixed) or the
+	// Design is fixed or sequential; SampleSize is n (fixed) or the
 	// truncation point (sequential); AcceptanceNumber is c (fixed only).
-	Design           string `json:"design"`
-	SampleSize       int    `json:"sample_size"`
-	AcceptanceNumber *int   `json:"acceptance_number"`
+	Design           plan.Design `json:"design"`
+	SampleSize       int         `json:"sample_size"`
+	AcceptanceNumber *int        `json:"acceptance_number"`
 	// Labeled is the labeled prefix of the sample (spares excluded);
 	// SparesLabeled counts labeled spare items, which progress ignores.
 	Labeled       int         `json:"labeled"`

@@ -18,7 +18,7 @@ import (
 func fixture(n, c, spares int, cands []string, labels []string) Input {
 	p := &plan.File{
 		Format: plan.FileFormat, Seed: "00", Classes: []string{"ok", "bad"},
-		Inputs: plan.Inputs{Ceiling: 0.2, Confidence: 0.95, Candidates: len(cands), Multiplicity: plan.Bonferroni, Design: "fixed", Require: "all"},
+		Inputs: plan.Inputs{Ceiling: 0.2, Confidence: 0.95, Candidates: len(cands), Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: "all"},
 		Rule:   plan.Rule{SampleSize: n, AcceptanceNumber: c},
 	}
 	for _, name := range cands {
@@ -244,7 +244,7 @@ func TestSequentialPlanMatchesJudge(t *testing.T) {
 		upto := 20 + seed*7
 		in := fixture(T, d.FinalAcceptance, 0, []string{"A"}, labels[:min(upto, T)])
 		in.Plan.Sequential = d.Rule
-		in.Plan.Inputs.Design = "sequential"
+		in.Plan.Inputs.Design = plan.DesignSequential
 		res, err := Assess(in)
 		if err != nil {
 			t.Fatal(err)

@@ -29,12 +29,12 @@ type candRules struct {
 // Bonferroni).
 func rulesFor(p *plan.File) ([]candRules, *Result, error) {
 	res := &Result{Design: p.Inputs.Design}
-	if res.Design == "" {
-		res.Design = "fixed"
+	if res.Design == plan.DesignUnset {
+		res.Design = plan.DesignFixed
 	}
 	var out candRules
 	if p.Sequential != nil {
-		res.Design = "sequential"
+		res.Design = plan.DesignSequential
 		r, err := sequential.NewRule(p.Sequential)
 		if err != nil {
 			return nil, nil, fmt.Errorf("the plan's sequential rule is not valid: %w", err)

@@ -61,7 +61,7 @@ type PlanInfo struct {
 	Fingerprint      string            `json:"fingerprint"`
 	Method           string            `json:"method"` // exact, hoeffding, kl
 	Model            string            `json:"model"`  // binomial, hypergeometric, ...
-	Design           string            `json:"design"` // fixed or sequential
+	Design           plan.Design       `json:"design"`
 	Multiplicity     plan.Multiplicity `json:"multiplicity"`
 	Require          string            `json:"require"` // all or any
 	Ceiling          float64           `json:"ceiling"`

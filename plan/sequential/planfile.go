@@ -25,7 +25,7 @@ var (
 // acceptance number a_T, and Rule.ConsumerRisk and Rule.ProducerRisk the
 // sequential plan's exact risks. The per-candidate risk is unchanged
 // (δ/M' under the plan's multiplicity rule). Inputs.Design is set to
-// "sequential".
+// plan.DesignSequential.
 func Apply(f *plan.File, maxSampleSize int) (*Design, error) {
 	if f.Inputs.Anticipated == nil {
 		return nil, ErrNeedsAnticipated

@@ -30,7 +30,7 @@ func testPlan() record.PlanInfo {
 		Fingerprint:      fingerprint("plan of the ticket router audit"),
 		Method:           "exact",
 		Model:            "binomial",
-		Design:           "fixed",
+		Design:           plan.DesignFixed,
 		Multiplicity:     plan.Bonferroni,
 		Require:          "all",
 		Ceiling:          0.02,

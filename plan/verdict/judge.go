@@ -90,7 +90,7 @@ func Judge(in Input) (*Result, error) {
 	if p == nil || p.IsSizingOnly() {
 		return nil, fmt.Errorf("%w: the plan declares no candidates", ErrInput)
 	}
-	if p.Sequential != nil || p.Inputs.Design == "sequential" {
+	if p.Sequential != nil || p.Inputs.Design == plan.DesignSequential {
 		return nil, ErrSequential
 	}
 	if err := in.Design.validate(); err != nil {
