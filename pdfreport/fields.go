@@ -25,7 +25,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		BoundConfidence:  confidence(boundConfidence(rec)),
 		PerCandidateRisk: riskPct(p.PerCandidateRisk),
 		Candidates:       p.Candidates,
-		Require:          p.Require,
+		Require:          p.Require.String(),
 		MultiplicityRule: p.Multiplicity.String(),
 		Model:            p.Model,
 		Rule:             p.Method,

@@ -136,7 +136,7 @@ func fixtureRecord(use string) *record.Record {
 			Model:            "binomial",
 			Design:           plan.DesignFixed,
 			Multiplicity:     plan.Bonferroni,
-			Require:          "all",
+			Require:          plan.RequireAll,
 			Ceiling:          0.02,
 			Confidence:       0.95,
 			Candidates:       3,
@@ -217,7 +217,7 @@ func manyRecord() *record.Record {
 	rec.System = "Conveyor weld-seam inspection — Überwachungssystem with a deliberately long name to wrap"
 	rec.Plan.Candidates = 12
 	rec.Plan.Multiplicity = plan.Holm
-	rec.Plan.Require = "any"
+	rec.Plan.Require = plan.RequireAny
 	rec.Plan.Population = 1250000
 	rec.Plan.PerCandidateRisk = 0.05 / 12
 	rec.Method.Statement = "One-sided Korn–Graubard upper bound at 99.583 % per candidate (Holm, M = 12)."

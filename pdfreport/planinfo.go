@@ -35,12 +35,8 @@ func (d *doc) planInfo(c *content) {
 		kv("Candidates (M)", cands),
 	}
 	if p.Candidates > 1 {
-		req := "every candidate must be accepted"
-		if p.Require == "any" {
-			req = "at least one candidate must be accepted"
-		}
 		rows = append(rows,
-			kv("Multiplicity", p.Multiplicity.Title()+"; "+req),
+			kv("Multiplicity", p.Multiplicity.Title()+"; "+p.Require.Title()),
 		)
 	}
 	rows = append(rows,

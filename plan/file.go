@@ -78,10 +78,9 @@ type Inputs struct {
 	Multiplicity Multiplicity `yaml:"multiplicity"`
 	// Design is fixed (label n, count errors) or sequential.
 	Design Design `yaml:"design"`
-	// Require is "all" (every candidate must be accepted for the audit to
-	// pass) or "any" (at least one must be, e.g. choosing among
-	// thresholds).
-	Require string `yaml:"require"`
+	// Require is all (every candidate must be accepted for the audit to
+	// pass) or any (at least one must be, e.g. choosing among thresholds).
+	Require Require `yaml:"require"`
 }
 
 // Rule is the acceptance rule of a plan: label SampleSize decisions and
@@ -288,7 +287,6 @@ func (in Inputs) validateNames() error {
 		allowed    []string
 	}{
 		{"method", in.Method, Methods},
-		{"require", in.Require, []string{RequireAll, RequireAny}},
 	} {
 		if c.value != "" && !slices.Contains(c.allowed, c.value) {
 			return fmt.Errorf("inputs.%s %q is not one of %s", c.key, c.value, strings.Join(c.allowed, ", "))

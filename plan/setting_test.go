@@ -37,6 +37,12 @@ func settingCases() []settingCase {
 			parse:  func(s string) (fmt.Stringer, error) { return ParseDesign(s) },
 			unset:  new(Design), allowed: "fixed or sequential",
 		},
+		{
+			field: "require", names: []string{"all", "any"},
+			values: []fmt.Stringer{RequireAll, RequireAny},
+			parse:  func(s string) (fmt.Stringer, error) { return ParseRequire(s) },
+			unset:  new(Require), allowed: "all or any",
+		},
 	}
 }
 
@@ -152,5 +158,22 @@ func TestDesignTitle(t *testing.T) {
 		if got := d.Title(); got != want {
 			t.Errorf("%v.Title() = %q, want %q", d, got, want)
 		}
+	}
+}
+
+// TestRequireMet: any needs one accepted candidate, all (and unset) every
+// one; checked against the definition for every count up to 4.
+func TestRequireMet(t *testing.T) {
+	for total := 0; total <= 4; total++ {
+		for acc := 0; acc <= total; acc++ {
+			for r, want := range map[Require]bool{RequireAny: acc >= 1, RequireAll: acc == total, RequireUnset: acc == total} {
+				if got := r.Met(acc, total); got != want {
+					t.Errorf("%q.Met(%d, %d) = %v, want %v", r, acc, total, got, want)
+				}
+			}
+		}
+	}
+	if RequireAny.Title() != "at least one candidate must be accepted" || RequireUnset.Title() != "every candidate must be accepted" {
+		t.Errorf("titles %q, %q", RequireAny.Title(), RequireUnset.Title())
 	}
 }

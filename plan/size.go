@@ -6,12 +6,6 @@ import (
 	"strings"
 )
 
-// Requirements for Inputs.Require.
-const (
-	RequireAll = "all"
-	RequireAny = "any"
-)
-
 // DefaultProducerRisk is the producer's risk used when none is given.
 const DefaultProducerRisk = 0.10
 
@@ -51,8 +45,8 @@ func (in Inputs) Validate() error {
 	if !designSpelling.known(in.Design) {
 		return designSpelling.invalid(in.Design.String())
 	}
-	if in.Require != RequireAll && in.Require != RequireAny {
-		return &InputError{Field: "require", Value: strconv.Quote(in.Require), Allowed: "all or any"}
+	if !requireSpelling.known(in.Require) {
+		return requireSpelling.invalid(in.Require.String())
 	}
 	return nil
 }

@@ -103,7 +103,7 @@ the time and the tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.method, "method", plan.MethodExact, "the decision `RULE`: exact, hoeffding or kl")
 	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni.String(), "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
 	fl.StringVar(&o.design, "design", plan.DesignFixed.String(), "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
-	fl.StringVar(&o.require, "require", plan.RequireAll, "`all` candidates or `any` one must be accepted for the audit to pass")
+	fl.StringVar(&o.require, "require", plan.RequireAll.String(), "`all` candidates or `any` one must be accepted for the audit to pass")
 	fl.StringVar(&o.budget, "budget", "", "with `n` labels: the ceiling each number of errors certifies (no plan is made)")
 	fl.StringVar(&o.out, "out", "", "write the plan file (YAML) to `PATH`")
 	fl.BoolVar(&o.force, "force", false, "replace an existing --out file")
@@ -148,7 +148,7 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	if o.confidence == "" {
 		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
 	}
-	in := plan.Inputs{Method: o.method, Require: o.require}
+	in := plan.Inputs{Method: o.method}
 	var err error
 	if in.Ceiling, err = parseNumber("ceiling", o.ceiling); err != nil {
 		return err
@@ -197,6 +197,9 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 		in.Candidates = len(o.declared)
 	}
 	if in.Multiplicity, err = plan.ParseMultiplicity(o.multiplicity); err != nil {
+		return planInputError(err)
+	}
+	if in.Require, err = plan.ParseRequire(o.require); err != nil {
 		return planInputError(err)
 	}
 	if err := in.Validate(); err != nil {

@@ -75,7 +75,7 @@ type planJSON struct {
 	Model                  string              `json:"model"`
 	Multiplicity           plan.Multiplicity   `json:"multiplicity"`
 	Design                 plan.Design         `json:"design"`
-	Require                string              `json:"require"`
+	Require                plan.Require        `json:"require"`
 	Ceiling                float64             `json:"ceiling"`
 	Confidence             float64             `json:"confidence"`
 	Candidates             int                 `json:"candidates"`

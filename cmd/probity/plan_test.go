@@ -114,7 +114,7 @@ func TestPlanOutFile(t *testing.T) {
 		t.Errorf("metadata: %q %q %q", f.ToolVersion, f.System, f.SystemVersion)
 	}
 	if f.Inputs.Candidates != 2 || len(f.Candidates) != 2 || f.Candidates[0].Name != "score>=0.50" || f.Candidates[1].Name != "score>=0.70" ||
-		*f.Candidates[1].Threshold != 0.7 || f.Inputs.Require != "any" || f.Inputs.Design != plan.DesignFixed {
+		*f.Candidates[1].Threshold != 0.7 || f.Inputs.Require != plan.RequireAny || f.Inputs.Design != plan.DesignFixed {
 		t.Errorf("candidates/inputs: %+v %+v", f.Inputs, f.Candidates)
 	}
 	if strings.Join(f.Classes, ",") != "fraud,ok" || f.Rule.SampleSize != 1271 {

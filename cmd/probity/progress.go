@@ -225,8 +225,8 @@ func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
 	tw.Flush()
 	fmt.Fprintln(w)
 	req := p.Inputs.Require
-	if req == "" {
-		req = "all"
+	if req == plan.RequireUnset {
+		req = plan.RequireAll
 	}
 	switch res.Overall {
 	case sequential.Continue:

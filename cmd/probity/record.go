@@ -276,11 +276,7 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 		fmt.Fprintf(w, "  %-*s  %s  %d/%d errors, estimate %s, upper bound %s — %s\n", width, c.Name, c.Verdict, c.Errors, c.Labeled,
 			fmt.Sprintf("%.4f", c.Estimate), fmt.Sprintf("%.4f", c.UpperBound), c.Reason)
 	}
-	need := "every candidate"
-	if rec.Plan.Require == "any" {
-		need = "at least one candidate"
-	}
-	fmt.Fprintf(w, "overall: %s (%s must be accepted)\n", rec.OverallVerdict, need)
+	fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
 	if rec.Deviations.AllowIncomplete {
 		fmt.Fprintf(w, "note: unlabeled or unsure items were counted as errors for every candidate (--allow-incomplete)\n")
 	}

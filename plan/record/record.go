@@ -63,7 +63,7 @@ type PlanInfo struct {
 	Model            string            `json:"model"`  // binomial, hypergeometric, ...
 	Design           plan.Design       `json:"design"`
 	Multiplicity     plan.Multiplicity `json:"multiplicity"`
-	Require          string            `json:"require"` // all or any
+	Require          plan.Require      `json:"require"`
 	Ceiling          float64           `json:"ceiling"`
 	Confidence       float64           `json:"confidence"`
 	Candidates       int               `json:"candidates"`

@@ -32,7 +32,7 @@ func testPlan() record.PlanInfo {
 		Model:            "binomial",
 		Design:           plan.DesignFixed,
 		Multiplicity:     plan.Bonferroni,
-		Require:          "all",
+		Require:          plan.RequireAll,
 		Ceiling:          0.02,
 		Confidence:       0.95,
 		Candidates:       3,

@@ -13,7 +13,7 @@ func testPlan(n, c int, ceiling, confidence float64, m int, multiplicity plan.Mu
 	f := &plan.File{
 		Format: plan.FileFormat, Seed: "00112233445566778899aabbccddeeff",
 		Inputs: plan.Inputs{Ceiling: ceiling, Confidence: confidence, Candidates: m, Method: "exact",
-			Multiplicity: multiplicity, Design: plan.DesignFixed, Require: "all"},
+			Multiplicity: multiplicity, Design: plan.DesignFixed, Require: plan.RequireAll},
 		Rule:    plan.Rule{Model: "binomial", SampleSize: n, AcceptanceNumber: c},
 		Classes: []string{"ok", "defect"},
 	}

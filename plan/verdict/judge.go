@@ -367,22 +367,15 @@ func errorsText(k int) string {
 
 func short(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }
 
-func overall(require string, cands []record.Candidate) string {
-	any, all := false, true
+// overall is the audit's verdict under the plan's requirement.
+func overall(require plan.Require, cands []record.Candidate) string {
+	accepted := 0
 	for _, c := range cands {
 		if c.Verdict == record.Accept {
-			any = true
-		} else {
-			all = false
+			accepted++
 		}
 	}
-	if require == "any" {
-		if any {
-			return record.Accept
-		}
-		return record.Reject
-	}
-	if all {
+	if require.Met(accepted, len(cands)) {
 		return record.Accept
 	}
 	return record.Reject

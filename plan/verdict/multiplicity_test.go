@@ -80,7 +80,7 @@ func TestJudgeMultiplicityReasons(t *testing.T) {
 	if r.Overall != record.Reject {
 		t.Errorf("overall %s with require all", r.Overall)
 	}
-	p.Inputs.Require = "any"
+	p.Inputs.Require = plan.RequireAny
 	if r := judge(t, Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{c}, {c + 1}, {0}})}); r.Overall != record.Accept {
 		t.Errorf("overall %s with require any", r.Overall)
 	}
