@@ -28,7 +28,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		Require:          p.Require.String(),
 		MultiplicityRule: p.Multiplicity.String(),
 		Model:            p.Model,
-		Rule:             p.Method,
+		Rule:             p.Method.String(),
 		Sequential:       p.Design == plan.DesignSequential,
 		SampleSize:       p.SampleSize,
 		AcceptanceNumber: p.AcceptanceNumber,

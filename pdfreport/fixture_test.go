@@ -132,7 +132,7 @@ func fixtureRecord(use string) *record.Record {
 		Use:           use,
 		Plan: record.PlanInfo{
 			Fingerprint:      "9d1f0c6a4be57d2e8f3a1c0b9e8d7f6a5b4c3d2e1f0a9b8c7d6e5f4a3b2c1d0e",
-			Method:           "exact",
+			Method:           plan.MethodExact,
 			Model:            "binomial",
 			Design:           plan.DesignFixed,
 			Multiplicity:     plan.Bonferroni,

@@ -76,15 +76,14 @@ func (d *doc) planInfo(c *content) {
 	d.drawTable(&table{title: "The plan", cols: []column{{w: 32}, {w: 68}}, rows: rows, keyFill: true, size: bodySize - 0.5})
 }
 
-// ruleName says which rule the plan uses and under which model.
-func ruleName(method, model string) string {
+// ruleName says which rule the plan uses and, for the exact test, under
+// which model.
+func ruleName(method plan.Method, model string) string {
 	switch method {
-	case "exact":
-		return "exact test, " + modelName(model)
-	case "hoeffding":
-		return "Hoeffding bound (distribution-free)"
-	case "kl":
-		return "Chernoff bound, Kullback–Leibler form (distribution-free)"
+	case plan.MethodExact:
+		return method.Title() + ", " + modelName(model)
+	case plan.MethodHoeffding, plan.MethodKL:
+		return method.Title()
 	}
-	return joinNonEmpty("; ", method, modelName(model))
+	return joinNonEmpty("; ", method.String(), modelName(model))
 }

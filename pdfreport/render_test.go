@@ -363,7 +363,7 @@ func TestUnusualRecordsLayOut(t *testing.T) {
 			r.System, r.SystemVersion, r.Period, r.Use = "", "", "", ""
 			r.Plan.Population = 20000
 			r.Plan.Model = "hypergeometric"
-			r.Plan.Method = "exact"
+			r.Plan.Method = plan.MethodExact
 			r.Method.Bound = "exact-hypergeometric"
 			r.Plan.Candidates = 1
 			r.Plan.Anticipated, r.Plan.ProducerRisk = nil, nil

@@ -7,8 +7,6 @@ import (
 	"errors"
 	"fmt"
 	"os"
-	"slices"
-	"strings"
 	"time"
 
 	"gopkg.in/yaml.v3"
@@ -72,8 +70,8 @@ type Inputs struct {
 	// Population is N for a finite lot (hypergeometric); 0 means an
 	// unbounded stream (binomial).
 	Population int64 `yaml:"population,omitempty"`
-	// Method is the decision rule: "exact", "hoeffding" or "kl".
-	Method string `yaml:"method"`
+	// Method is the decision rule: exact, hoeffding or kl.
+	Method Method `yaml:"method"`
 	// Multiplicity shares δ among the candidates.
 	Multiplicity Multiplicity `yaml:"multiplicity"`
 	// Design is fixed (label n, count errors) or sequential.
@@ -231,9 +229,6 @@ func (f *File) validate() error {
 	if len(f.Candidates) > 0 && len(f.Candidates) != in.Candidates {
 		return fmt.Errorf("inputs.candidates is %d but %d candidates are declared", in.Candidates, len(f.Candidates))
 	}
-	if err := in.validateNames(); err != nil {
-		return err
-	}
 	if p0 := in.Anticipated; p0 != nil && !(*p0 >= 0 && *p0 < in.Ceiling) {
 		return fmt.Errorf("inputs.anticipated %v is outside [0, ceiling)", *p0)
 	}
@@ -269,28 +264,12 @@ func (f *File) validate() error {
 
 // fileKeyError rephrases a setting refused while decoding (an *InputError
 // from UnmarshalText) with its key in the file: `inputs.method "exakt" is
-// not one of exact, hoeffding, kl`.
+// not one of exact, hoeffding, kl`. A setting left empty decodes as unset
+// and is left to the reader's default.
 func fileKeyError(err error) error {
 	var ie *InputError
 	if !errors.As(err, &ie) {
 		return err
 	}
 	return fmt.Errorf("inputs.%s %s is not %s", ie.Field, ie.Value, ie.Allowed)
-}
-
-// validateNames refuses an unknown method, multiplicity, design or
-// requirement in a plan file; empty values are left to the caller's
-// defaults.
-func (in Inputs) validateNames() error {
-	for _, c := range []struct {
-		key, value string
-		allowed    []string
-	}{
-		{"method", in.Method, Methods},
-	} {
-		if c.value != "" && !slices.Contains(c.allowed, c.value) {
-			return fmt.Errorf("inputs.%s %q is not one of %s", c.key, c.value, strings.Join(c.allowed, ", "))
-		}
-	}
-	return nil
 }

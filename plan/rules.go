@@ -2,27 +2,15 @@ package plan
 
 import "math"
 
-// Decision rules ("methods") and the comparison rows they appear under.
+// The rows of a plan's comparison (RuleSize.Rule): the sample size each
+// rule needs for the same risks.
 const (
-	// MethodExact accepts at ≤ c errors where c keeps the exact binomial
-	// (or, for a lot, hypergeometric) consumer's risk.
-	MethodExact = "exact"
-	// MethodHoeffding accepts when estimate + sqrt(ln(M'/δ)/(2n)) ≤ ceiling.
-	MethodHoeffding = "hoeffding"
-	// MethodKL accepts when the Chernoff relative-entropy bound excludes
-	// the ceiling.
-	MethodKL = "kl"
-
-	// Comparison row names.
 	RuleExactBinomial       = "exact-binomial"
 	RuleExactHypergeometric = "exact-hypergeometric"
 	RuleHoeffding           = "hoeffding"
 	RuleKL                  = "kl"
 	RuleChebyshev           = "chebyshev"
 )
-
-// Methods lists the accepted values of Inputs.Method.
-var Methods = []string{MethodExact, MethodHoeffding, MethodKL}
 
 // exactBinomialKeeps: accept at ≤ c of n keeps the consumer's risk when
 //

@@ -43,6 +43,12 @@ func settingCases() []settingCase {
 			parse:  func(s string) (fmt.Stringer, error) { return ParseRequire(s) },
 			unset:  new(Require), allowed: "all or any",
 		},
+		{
+			field: "method", names: []string{"exact", "hoeffding", "kl"},
+			values: []fmt.Stringer{MethodExact, MethodHoeffding, MethodKL},
+			parse:  func(s string) (fmt.Stringer, error) { return ParseMethod(s) },
+			unset:  new(Method), allowed: "one of exact, hoeffding, kl",
+		},
 	}
 }
 
@@ -175,5 +181,22 @@ func TestRequireMet(t *testing.T) {
 	}
 	if RequireAny.Title() != "at least one candidate must be accepted" || RequireUnset.Title() != "every candidate must be accepted" {
 		t.Errorf("titles %q, %q", RequireAny.Title(), RequireUnset.Title())
+	}
+}
+
+// TestMethodComparisonRule: each method is sized by its own comparison row
+// (the exact one by the lot's model).
+func TestMethodComparisonRule(t *testing.T) {
+	for _, tc := range []struct {
+		m          Method
+		population int64
+		want       string
+	}{
+		{MethodExact, 0, RuleExactBinomial}, {MethodExact, 5000, RuleExactHypergeometric},
+		{MethodUnset, 0, RuleExactBinomial}, {MethodHoeffding, 5000, RuleHoeffding}, {MethodKL, 0, RuleKL},
+	} {
+		if got := tc.m.ComparisonRule(tc.population); got != tc.want {
+			t.Errorf("%q.ComparisonRule(%d) = %s, want %s", tc.m, tc.population, got, tc.want)
+		}
 	}
 }

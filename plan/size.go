@@ -1,9 +1,7 @@
 package plan
 
 import (
-	"slices"
 	"strconv"
-	"strings"
 )
 
 // DefaultProducerRisk is the producer's risk used when none is given.
@@ -36,8 +34,8 @@ func (in Inputs) Validate() error {
 	if in.Population < 0 {
 		return &InputError{Field: "population", Value: strconv.FormatInt(in.Population, 10), Allowed: "at least 1 (or omitted for an unbounded stream)"}
 	}
-	if !slices.Contains(Methods, in.Method) {
-		return &InputError{Field: "method", Value: strconv.Quote(in.Method), Allowed: "one of " + strings.Join(Methods, ", ")}
+	if !methodSpelling.known(in.Method) {
+		return methodSpelling.invalid(in.Method.String())
 	}
 	if !multiplicitySpelling.known(in.Multiplicity) {
 		return multiplicitySpelling.invalid(in.Multiplicity.String())
@@ -103,7 +101,7 @@ func (s sizer) exactRule() func(c, n int) bool {
 	return exactBinomialKeeps(s.in.Ceiling, s.alpha)
 }
 
-func (s sizer) methodRule(method string) func(c, n int) bool {
+func (s sizer) methodRule(method Method) func(c, n int) bool {
 	switch method {
 	case MethodHoeffding:
 		return hoeffdingKeeps(s.in.Ceiling, s.alpha)

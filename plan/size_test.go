@@ -140,7 +140,7 @@ func TestValidateAndLimits(t *testing.T) {
 		{"candidates", func(in *Inputs) { in.Candidates = 0 }},
 		{"anticipated", func(in *Inputs) { in.Anticipated = ptr(0.02) }},
 		{"producer-risk", func(in *Inputs) { in.ProducerRisk = 0 }},
-		{"method", func(in *Inputs) { in.Method = "wald" }},
+		{"method", func(in *Inputs) { in.Method = Method(99) }},
 		{"multiplicity", func(in *Inputs) { in.Multiplicity = Multiplicity(99) }},
 		{"ceiling", func(in *Inputs) { in.Ceiling = math.NaN() }},
 	}

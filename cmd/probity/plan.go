@@ -100,7 +100,7 @@ the time and the tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.anticipated, "anticipated", "", "`P0`, the error a good model is expected to have (below the ceiling)")
 	fl.StringVar(&o.producerRisk, "producer-risk", "0.10", "`RISK`: the largest allowed chance of rejecting a model whose error is p0")
 	fl.StringVar(&o.population, "population", "", "`N`, when the audit covers one batch of N decisions (hypergeometric)")
-	fl.StringVar(&o.method, "method", plan.MethodExact, "the decision `RULE`: exact, hoeffding or kl")
+	fl.StringVar(&o.method, "method", plan.MethodExact.String(), "the decision `RULE`: exact, hoeffding or kl")
 	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni.String(), "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
 	fl.StringVar(&o.design, "design", plan.DesignFixed.String(), "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
 	fl.StringVar(&o.require, "require", plan.RequireAll.String(), "`all` candidates or `any` one must be accepted for the audit to pass")
@@ -148,7 +148,7 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	if o.confidence == "" {
 		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
 	}
-	in := plan.Inputs{Method: o.method}
+	var in plan.Inputs
 	var err error
 	if in.Ceiling, err = parseNumber("ceiling", o.ceiling); err != nil {
 		return err
@@ -195,6 +195,9 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 				"drop --candidates: M follows from the declared candidates")
 		}
 		in.Candidates = len(o.declared)
+	}
+	if in.Method, err = plan.ParseMethod(o.method); err != nil {
+		return planInputError(err)
 	}
 	if in.Multiplicity, err = plan.ParseMultiplicity(o.multiplicity); err != nil {
 		return planInputError(err)

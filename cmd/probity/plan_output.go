@@ -71,7 +71,7 @@ type planJSON struct {
 	ProducerRisk           *float64            `json:"producer_risk"`
 	PerCandidateRisk       float64             `json:"per_candidate_risk"`
 	PerCandidateConfidence float64             `json:"per_candidate_confidence"`
-	Method                 string              `json:"method"`
+	Method                 plan.Method         `json:"method"`
 	Model                  string              `json:"model"`
 	Multiplicity           plan.Multiplicity   `json:"multiplicity"`
 	Design                 plan.Design         `json:"design"`
@@ -171,20 +171,6 @@ var ruleTitles = map[string]string{
 	plan.RuleChebyshev:           "Chebyshev (for comparison only)",
 }
 
-// chosenRule is the comparison row of the plan's own method.
-func chosenRule(f *plan.File) string {
-	switch f.Inputs.Method {
-	case plan.MethodHoeffding:
-		return plan.RuleHoeffding
-	case plan.MethodKL:
-		return plan.RuleKL
-	}
-	if f.Inputs.Population > 0 {
-		return plan.RuleExactHypergeometric
-	}
-	return plan.RuleExactBinomial
-}
-
 func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	r, in := f.Rule, f.Inputs
 	m := in.Candidates
@@ -264,7 +250,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if f.Sequential != nil {
 		base = int64(f.Sequential.FixedSampleSize)
 	}
-	mine := chosenRule(f)
+	mine := in.Method.ComparisonRule(in.Population)
 	for _, row := range f.Comparison {
 		title := ruleTitles[row.Rule]
 		switch {

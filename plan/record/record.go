@@ -59,8 +59,8 @@ type Record struct {
 // PlanInfo repeats the plan's rule and inputs.
 type PlanInfo struct {
 	Fingerprint      string            `json:"fingerprint"`
-	Method           string            `json:"method"` // exact, hoeffding, kl
-	Model            string            `json:"model"`  // binomial, hypergeometric, ...
+	Method           plan.Method       `json:"method"`
+	Model            string            `json:"model"` // binomial, hypergeometric, ...
 	Design           plan.Design       `json:"design"`
 	Multiplicity     plan.Multiplicity `json:"multiplicity"`
 	Require          plan.Require      `json:"require"`

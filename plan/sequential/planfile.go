@@ -30,7 +30,7 @@ func Apply(f *plan.File, maxSampleSize int) (*Design, error) {
 	if f.Inputs.Anticipated == nil {
 		return nil, ErrNeedsAnticipated
 	}
-	if f.Inputs.Method != "" && f.Inputs.Method != plan.MethodExact {
+	if f.Inputs.Method != plan.MethodUnset && f.Inputs.Method != plan.MethodExact {
 		return nil, fmt.Errorf("%w, not %s", ErrNeedsExact, f.Inputs.Method)
 	}
 	spec := Spec{

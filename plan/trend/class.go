@@ -27,7 +27,7 @@ import (
 // anticipated error and the lot size.
 type Class struct {
 	Model      string      `json:"model"`
-	Method     string      `json:"method"`
+	Method     plan.Method `json:"method"`
 	Design     plan.Design `json:"design"`
 	Ceiling    float64     `json:"ceiling"`
 	Confidence float64     `json:"confidence"`
@@ -74,7 +74,7 @@ func (a Class) differ(b Class) (field, va, vb string, ok bool) {
 	case a.Model != b.Model:
 		return "plan.model", a.Model, b.Model, true
 	case a.Method != b.Method:
-		return "plan.method", a.Method, b.Method, true
+		return "plan.method", a.Method.String(), b.Method.String(), true
 	case a.Design != b.Design:
 		return "plan.design", a.Design.String(), b.Design.String(), true
 	case a.Ceiling != b.Ceiling:

@@ -28,7 +28,7 @@ func testPlan() record.PlanInfo {
 	p0, pr := 0.005, 0.0901
 	return record.PlanInfo{
 		Fingerprint:      fingerprint("plan of the ticket router audit"),
-		Method:           "exact",
+		Method:           plan.MethodExact,
 		Model:            "binomial",
 		Design:           plan.DesignFixed,
 		Multiplicity:     plan.Bonferroni,

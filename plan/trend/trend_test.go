@@ -82,7 +82,7 @@ func TestBuildYear(t *testing.T) {
 	if len(tr.Warnings) != 0 {
 		t.Errorf("warnings on a consistent year: %v", tr.Warnings)
 	}
-	if tr.Class != (Class{Model: "binomial", Method: "exact", Design: plan.DesignFixed, Ceiling: 0.02, Confidence: 0.95}) {
+	if tr.Class != (Class{Model: "binomial", Method: plan.MethodExact, Design: plan.DesignFixed, Ceiling: 0.02, Confidence: 0.95}) {
 		t.Errorf("class %+v", tr.Class)
 	}
 }
@@ -147,7 +147,7 @@ func TestBuildRefusesMixedClasses(t *testing.T) {
 		edit  func(p *record.PlanInfo)
 	}{
 		{"plan.model", func(p *record.PlanInfo) { p.Model = "hypergeometric"; p.Population = 40000 }},
-		{"plan.method", func(p *record.PlanInfo) { p.Method = "hoeffding" }},
+		{"plan.method", func(p *record.PlanInfo) { p.Method = plan.MethodHoeffding }},
 		{"plan.design", func(p *record.PlanInfo) { p.Design = plan.DesignSequential }},
 		{"plan.ceiling", func(p *record.PlanInfo) { p.Ceiling = 0.03 }},
 		{"plan.confidence", func(p *record.PlanInfo) { p.Confidence = 0.99 }},

@@ -12,7 +12,7 @@ import (
 func testPlan(n, c int, ceiling, confidence float64, m int, multiplicity plan.Multiplicity) *plan.File {
 	f := &plan.File{
 		Format: plan.FileFormat, Seed: "00112233445566778899aabbccddeeff",
-		Inputs: plan.Inputs{Ceiling: ceiling, Confidence: confidence, Candidates: m, Method: "exact",
+		Inputs: plan.Inputs{Ceiling: ceiling, Confidence: confidence, Candidates: m, Method: plan.MethodExact,
 			Multiplicity: multiplicity, Design: plan.DesignFixed, Require: plan.RequireAll},
 		Rule:    plan.Rule{Model: "binomial", SampleSize: n, AcceptanceNumber: c},
 		Classes: []string{"ok", "defect"},
