@@ -27,7 +27,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		Candidates:       p.Candidates,
 		Require:          p.Require.String(),
 		MultiplicityRule: p.Multiplicity.String(),
-		Model:            p.Model,
+		Model:            p.Model.String(),
 		Rule:             p.Method.String(),
 		Sequential:       p.Design == plan.DesignSequential,
 		SampleSize:       p.SampleSize,
@@ -97,19 +97,4 @@ func boundName(id string) string {
 func weightedBound(id string) bool {
 	id = strings.ToLower(id)
 	return strings.Contains(id, "korn") || strings.Contains(id, "weighted")
-}
-
-// modelName prints a probability model in words.
-func modelName(id string) string {
-	switch id {
-	case "binomial":
-		return "binomial model (unbounded stream)"
-	case "hypergeometric":
-		return "hypergeometric model (finite lot)"
-	case "hoeffding":
-		return "Hoeffding inequality"
-	case "kl":
-		return "Chernoff bound (Kullback–Leibler form)"
-	}
-	return id
 }

@@ -133,7 +133,7 @@ func fixtureRecord(use string) *record.Record {
 		Plan: record.PlanInfo{
 			Fingerprint:      "9d1f0c6a4be57d2e8f3a1c0b9e8d7f6a5b4c3d2e1f0a9b8c7d6e5f4a3b2c1d0e",
 			Method:           plan.MethodExact,
-			Model:            "binomial",
+			Model:            plan.ModelBinomial,
 			Design:           plan.DesignFixed,
 			Multiplicity:     plan.Bonferroni,
 			Require:          plan.RequireAll,

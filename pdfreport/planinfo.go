@@ -78,12 +78,12 @@ func (d *doc) planInfo(c *content) {
 
 // ruleName says which rule the plan uses and, for the exact test, under
 // which model.
-func ruleName(method plan.Method, model string) string {
+func ruleName(method plan.Method, model plan.Model) string {
 	switch method {
 	case plan.MethodExact:
-		return method.Title() + ", " + modelName(model)
+		return method.Title() + ", " + model.Title()
 	case plan.MethodHoeffding, plan.MethodKL:
 		return method.Title()
 	}
-	return joinNonEmpty("; ", method.String(), modelName(model))
+	return joinNonEmpty("; ", method.String(), model.Title())
 }

@@ -362,7 +362,7 @@ func TestUnusualRecordsLayOut(t *testing.T) {
 		{"finite lot, one candidate, nothing optional", func(r *record.Record) {
 			r.System, r.SystemVersion, r.Period, r.Use = "", "", "", ""
 			r.Plan.Population = 20000
-			r.Plan.Model = "hypergeometric"
+			r.Plan.Model = plan.ModelHypergeometric
 			r.Plan.Method = plan.MethodExact
 			r.Method.Bound = "exact-hypergeometric"
 			r.Plan.Candidates = 1

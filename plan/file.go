@@ -84,9 +84,9 @@ type Inputs struct {
 // Rule is the acceptance rule of a plan: label SampleSize decisions and
 // accept a candidate if it makes at most AcceptanceNumber errors.
 type Rule struct {
-	// Model names the probability model behind the risks: "binomial",
-	// "hypergeometric", "hoeffding" or "kl".
-	Model string `yaml:"model"`
+	// Model is the probability model behind the risks: binomial,
+	// hypergeometric, hoeffding or kl.
+	Model Model `yaml:"model"`
 	// SampleSize is n.
 	SampleSize int `yaml:"sample_size"`
 	// AcceptanceNumber is c: accept when errors ≤ c.
@@ -271,5 +271,9 @@ func fileKeyError(err error) error {
 	if !errors.As(err, &ie) {
 		return err
 	}
-	return fmt.Errorf("inputs.%s %s is not %s", ie.Field, ie.Value, ie.Allowed)
+	section := "inputs"
+	if ie.Field == modelSpelling.field {
+		section = "rule"
+	}
+	return fmt.Errorf("%s.%s %s is not %s", section, ie.Field, ie.Value, ie.Allowed)
 }

@@ -49,6 +49,12 @@ func settingCases() []settingCase {
 			parse:  func(s string) (fmt.Stringer, error) { return ParseMethod(s) },
 			unset:  new(Method), allowed: "one of exact, hoeffding, kl",
 		},
+		{
+			field: "model", names: []string{"binomial", "hypergeometric", "hoeffding", "kl"},
+			values: []fmt.Stringer{ModelBinomial, ModelHypergeometric, ModelHoeffding, ModelKL},
+			parse:  func(s string) (fmt.Stringer, error) { return ParseModel(s) },
+			unset:  new(Model), allowed: "one of binomial, hypergeometric, hoeffding, kl",
+		},
 	}
 }
 
@@ -197,6 +203,23 @@ func TestMethodComparisonRule(t *testing.T) {
 	} {
 		if got := tc.m.ComparisonRule(tc.population); got != tc.want {
 			t.Errorf("%q.ComparisonRule(%d) = %s, want %s", tc.m, tc.population, got, tc.want)
+		}
+	}
+}
+
+// TestMethodModel: the model behind each method's risks, as plan files
+// have always recorded it.
+func TestMethodModel(t *testing.T) {
+	for _, tc := range []struct {
+		m          Method
+		population int64
+		want       Model
+	}{
+		{MethodExact, 0, ModelBinomial}, {MethodExact, 5000, ModelHypergeometric}, {MethodUnset, 5000, ModelHypergeometric},
+		{MethodHoeffding, 5000, ModelHoeffding}, {MethodKL, 0, ModelKL},
+	} {
+		if got := tc.m.Model(tc.population); got != tc.want {
+			t.Errorf("%q.Model(%d) = %q, want %q", tc.m, tc.population, got, tc.want)
 		}
 	}
 }

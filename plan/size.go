@@ -158,16 +158,7 @@ func (s sizer) row(name string, keeps func(c, n int) bool) RuleSize {
 // rule assembles the Rule for a search result with its actual risks.
 func (s sizer) rule(res searchResult) Rule {
 	r := Rule{SampleSize: res.n, AcceptanceNumber: res.c, PerCandidateRisk: s.alpha}
-	switch {
-	case s.in.Method == MethodHoeffding:
-		r.Model = "hoeffding"
-	case s.in.Method == MethodKL:
-		r.Model = "kl"
-	case s.in.Population > 0:
-		r.Model = "hypergeometric"
-	default:
-		r.Model = "binomial"
-	}
+	r.Model = s.in.Method.Model(s.in.Population)
 	if s.in.Population > 0 {
 		r.BadLotErrors = BadLotErrors(s.in.Population, s.in.Ceiling)
 		r.ConsumerRisk = HypergeometricCDF(res.c, s.in.Population, r.BadLotErrors, res.n)

@@ -72,7 +72,7 @@ type planJSON struct {
 	PerCandidateRisk       float64             `json:"per_candidate_risk"`
 	PerCandidateConfidence float64             `json:"per_candidate_confidence"`
 	Method                 plan.Method         `json:"method"`
-	Model                  string              `json:"model"`
+	Model                  plan.Model          `json:"model"`
 	Multiplicity           plan.Multiplicity   `json:"multiplicity"`
 	Design                 plan.Design         `json:"design"`
 	Require                plan.Require        `json:"require"`

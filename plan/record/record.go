@@ -60,7 +60,7 @@ type Record struct {
 type PlanInfo struct {
 	Fingerprint      string            `json:"fingerprint"`
 	Method           plan.Method       `json:"method"`
-	Model            string            `json:"model"` // binomial, hypergeometric, ...
+	Model            plan.Model        `json:"model"`
 	Design           plan.Design       `json:"design"`
 	Multiplicity     plan.Multiplicity `json:"multiplicity"`
 	Require          plan.Require      `json:"require"`

@@ -26,7 +26,7 @@ import (
 // candidate set and with it the multiplicity split, the sample size, the
 // anticipated error and the lot size.
 type Class struct {
-	Model      string      `json:"model"`
+	Model      plan.Model  `json:"model"`
 	Method     plan.Method `json:"method"`
 	Design     plan.Design `json:"design"`
 	Ceiling    float64     `json:"ceiling"`
@@ -72,7 +72,7 @@ func (a Class) differ(b Class) (field, va, vb string, ok bool) {
 	num := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 	switch {
 	case a.Model != b.Model:
-		return "plan.model", a.Model, b.Model, true
+		return "plan.model", a.Model.String(), b.Model.String(), true
 	case a.Method != b.Method:
 		return "plan.method", a.Method.String(), b.Method.String(), true
 	case a.Design != b.Design:

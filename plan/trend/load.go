@@ -250,7 +250,7 @@ func check(r *record.Record, name string, data []byte) error {
 	if !(r.Plan.Confidence > 0 && r.Plan.Confidence < 1) {
 		return bad("plan.confidence", []any{"plan", "confidence"}, "%v is outside (0, 1)", r.Plan.Confidence)
 	}
-	for _, f := range []struct{ key, v string }{{"model", r.Plan.Model}, {"method", r.Plan.Method.String()}, {"design", r.Plan.Design.String()}} {
+	for _, f := range []struct{ key, v string }{{"model", r.Plan.Model.String()}, {"method", r.Plan.Method.String()}, {"design", r.Plan.Design.String()}} {
 		if f.v == "" {
 			return bad("plan."+f.key, []any{"plan", f.key}, "is empty")
 		}

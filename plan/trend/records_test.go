@@ -29,7 +29,7 @@ func testPlan() record.PlanInfo {
 	return record.PlanInfo{
 		Fingerprint:      fingerprint("plan of the ticket router audit"),
 		Method:           plan.MethodExact,
-		Model:            "binomial",
+		Model:            plan.ModelBinomial,
 		Design:           plan.DesignFixed,
 		Multiplicity:     plan.Bonferroni,
 		Require:          plan.RequireAll,

@@ -82,7 +82,7 @@ func TestBuildYear(t *testing.T) {
 	if len(tr.Warnings) != 0 {
 		t.Errorf("warnings on a consistent year: %v", tr.Warnings)
 	}
-	if tr.Class != (Class{Model: "binomial", Method: plan.MethodExact, Design: plan.DesignFixed, Ceiling: 0.02, Confidence: 0.95}) {
+	if tr.Class != (Class{Model: plan.ModelBinomial, Method: plan.MethodExact, Design: plan.DesignFixed, Ceiling: 0.02, Confidence: 0.95}) {
 		t.Errorf("class %+v", tr.Class)
 	}
 }
@@ -146,7 +146,7 @@ func TestBuildRefusesMixedClasses(t *testing.T) {
 		field string
 		edit  func(p *record.PlanInfo)
 	}{
-		{"plan.model", func(p *record.PlanInfo) { p.Model = "hypergeometric"; p.Population = 40000 }},
+		{"plan.model", func(p *record.PlanInfo) { p.Model = plan.ModelHypergeometric; p.Population = 40000 }},
 		{"plan.method", func(p *record.PlanInfo) { p.Method = plan.MethodHoeffding }},
 		{"plan.design", func(p *record.PlanInfo) { p.Design = plan.DesignSequential }},
 		{"plan.ceiling", func(p *record.PlanInfo) { p.Ceiling = 0.03 }},

@@ -205,13 +205,13 @@ func chooseMethod(p *plan.File, selfWeighting bool, n int, lot int64, unequal st
 		return judgeMethod{bound: BoundKornGraubard, approximate: true}, nil
 	}
 	switch p.Rule.Model {
-	case "binomial", "":
+	case plan.ModelBinomial, plan.ModelUnset:
 		return judgeMethod{bound: BoundClopperPearson, ruleApplies: sameN}, nil
-	case "hypergeometric":
+	case plan.ModelHypergeometric:
 		return judgeMethod{bound: BoundHypergeometric, ruleApplies: sameN && lot == p.Inputs.Population}, nil
-	case "hoeffding":
+	case plan.ModelHoeffding:
 		return judgeMethod{bound: BoundHoeffding, ruleApplies: sameN}, nil
-	case "kl":
+	case plan.ModelKL:
 		return judgeMethod{bound: BoundChernoff, ruleApplies: sameN}, nil
 	}
 	return judgeMethod{}, fmt.Errorf("%w: rule.model %q is not binomial, hypergeometric, hoeffding or kl", ErrInput, p.Rule.Model)

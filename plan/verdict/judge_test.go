@@ -105,7 +105,7 @@ func TestHypergeometricVerdictAgreesWithPlanC(t *testing.T) {
 			}
 		}
 		p := testPlan(tc.n, c, tc.ceiling, 0.95, 1, plan.Bonferroni)
-		p.Rule.Model, p.Inputs.Population = "hypergeometric", tc.N
+		p.Rule.Model, p.Inputs.Population = plan.ModelHypergeometric, tc.N
 		d := Design{Strata: []Stratum{{Label: "lot", Population: tc.N, Sample: tc.n}}}
 		for x := 0; x <= tc.n; x++ {
 			r := judge(t, Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{x}})})
