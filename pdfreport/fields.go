@@ -32,14 +32,17 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		Sequential:       p.Design == plan.DesignSequential,
 		SampleSize:       p.SampleSize,
 		AcceptanceNumber: p.AcceptanceNumber,
-		Bound:            boundName(rec.Method.Bound),
+		Bound:            rec.Method.Bound.Title(),
 		Approximate:      rec.Method.Approximate,
-		Weighted:         weightedBound(rec.Method.Bound),
+		Weighted:         rec.Method.Bound.Weighted(),
 		AllowIncomplete:  rec.Deviations.AllowIncomplete,
 		Stratified:       len(rec.Strata) > 1,
 	}
 	if f.System == "" {
 		f.System = "the system under audit"
+	}
+	if f.Bound == "" {
+		f.Bound = "stated"
 	}
 	if p.ConsumerRisk > 0 {
 		f.ConsumerRisk = riskPct(p.ConsumerRisk)
@@ -69,32 +72,4 @@ func boundConfidence(rec *record.Record) float64 {
 		}
 	}
 	return 1 - rec.Plan.PerCandidateRisk
-}
-
-// boundName prints a bound identifier in words.
-func boundName(id string) string {
-	base := strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(id), "(approximate)"))
-	switch strings.ToLower(base) {
-	case "clopper-pearson":
-		return "Clopper–Pearson (exact binomial)"
-	case "korn-graubard":
-		return "Korn–Graubard"
-	case "weighted-hoeffding":
-		return "weighted Hoeffding"
-	case "hypergeometric", "exact-hypergeometric":
-		return "exact hypergeometric"
-	case "hoeffding":
-		return "Hoeffding"
-	case "kl":
-		return "Chernoff (Kullback–Leibler)"
-	case "":
-		return "stated"
-	}
-	return base
-}
-
-// weightedBound reports whether the bound weights strata by N_h/N.
-func weightedBound(id string) bool {
-	id = strings.ToLower(id)
-	return strings.Contains(id, "korn") || strings.Contains(id, "weighted")
 }

@@ -166,7 +166,7 @@ func fixtureRecord(use string) *record.Record {
 			Unsure:     []string{"w00311"},
 		},
 		Method: record.MethodInfo{
-			Bound:     "clopper-pearson",
+			Bound:     plan.BoundClopperPearson,
 			Statement: "One-sided Clopper–Pearson upper bound at 98.333 % per candidate (Bonferroni, M = 3); accept when errors ≤ c = 3 of n = 464.",
 		},
 		Signoff: []record.Signoff{
@@ -221,7 +221,7 @@ func manyRecord() *record.Record {
 	rec.Plan.Population = 1250000
 	rec.Plan.PerCandidateRisk = 0.05 / 12
 	rec.Method.Statement = "One-sided Korn–Graubard upper bound at 99.583 % per candidate (Holm, M = 12)."
-	rec.Method.Bound = "korn-graubard (approximate)"
+	rec.Method.Bound = plan.BoundKornGraubard
 	rec.Method.Approximate = true
 	rec.Method.Assumptions = []string{"Korn–Graubard uses the effective sample size of the stratified design."}
 	rec.Signoff = nil

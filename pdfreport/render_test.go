@@ -364,7 +364,7 @@ func TestUnusualRecordsLayOut(t *testing.T) {
 			r.Plan.Population = 20000
 			r.Plan.Model = plan.ModelHypergeometric
 			r.Plan.Method = plan.MethodExact
-			r.Method.Bound = "exact-hypergeometric"
+			r.Method.Bound = plan.BoundExactHypergeometric
 			r.Plan.Candidates = 1
 			r.Plan.Anticipated, r.Plan.ProducerRisk = nil, nil
 			r.Candidates = r.Candidates[:1]

@@ -55,6 +55,17 @@ func settingCases() []settingCase {
 			parse:  func(s string) (fmt.Stringer, error) { return ParseModel(s) },
 			unset:  new(Model), allowed: "one of binomial, hypergeometric, hoeffding, kl",
 		},
+		{
+			field: "bound", names: []string{"clopper-pearson", "exact-hypergeometric", "hoeffding", "kl",
+				"korn-graubard (approximate)", "weighted-hoeffding",
+				"sequential boundaries (stage-wise exact bound)", "sequential boundaries (bound descriptive)"},
+			values: []fmt.Stringer{BoundClopperPearson, BoundExactHypergeometric, BoundHoeffding, BoundChernoff,
+				BoundKornGraubard, BoundWeightedHoeffding, BoundSequential, BoundSequentialLot},
+			parse: func(s string) (fmt.Stringer, error) { return ParseBound(s) },
+			unset: new(Bound),
+			allowed: "one of clopper-pearson, exact-hypergeometric, hoeffding, kl, korn-graubard (approximate), weighted-hoeffding, " +
+				"sequential boundaries (stage-wise exact bound), sequential boundaries (bound descriptive)",
+		},
 	}
 }
 
@@ -220,6 +231,30 @@ func TestMethodModel(t *testing.T) {
 	} {
 		if got := tc.m.Model(tc.population); got != tc.want {
 			t.Errorf("%q.Model(%d) = %q, want %q", tc.m, tc.population, got, tc.want)
+		}
+	}
+}
+
+// TestBoundProperties: the words and kinds of each bound as the record and
+// the PDF have always shown them.
+func TestBoundProperties(t *testing.T) {
+	for _, tc := range []struct {
+		b                            Bound
+		title                        string
+		weighted, exact, approximate bool
+	}{
+		{BoundClopperPearson, "Clopper–Pearson (exact binomial)", false, true, false},
+		{BoundExactHypergeometric, "exact hypergeometric", false, true, false},
+		{BoundHoeffding, "Hoeffding", false, false, false},
+		{BoundChernoff, "Chernoff (Kullback–Leibler)", false, false, false},
+		{BoundKornGraubard, "Korn–Graubard", true, false, true},
+		{BoundWeightedHoeffding, "weighted Hoeffding", true, false, false},
+		{BoundSequential, "sequential boundaries (stage-wise exact bound)", false, false, false},
+		{BoundSequentialLot, "sequential boundaries (bound descriptive)", false, false, true},
+		{BoundUnset, "", false, false, false},
+	} {
+		if tc.b.Title() != tc.title || tc.b.Weighted() != tc.weighted || tc.b.Exact() != tc.exact || tc.b.Approximate() != tc.approximate {
+			t.Errorf("%q: title %q weighted %v exact %v approximate %v", tc.b, tc.b.Title(), tc.b.Weighted(), tc.b.Exact(), tc.b.Approximate())
 		}
 	}
 }

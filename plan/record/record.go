@@ -40,8 +40,8 @@ type Record struct {
 	// OC is the plan's operating-characteristic curve, as plotted.
 	OC         []OCPoint  `json:"oc"`
 	Deviations Deviations `json:"deviations"`
-	// Method names the bound used (e.g. "clopper-pearson",
-	// "korn-graubard (approximate)", "weighted-hoeffding") and its
+	// Method names the bound used (plan.Bound: "clopper-pearson",
+	// "korn-graubard (approximate)", "weighted-hoeffding", …) and its
 	// assumptions in words.
 	Method  MethodInfo `json:"method"`
 	Signoff []Signoff  `json:"signoff"`
@@ -166,10 +166,10 @@ type Deviations struct {
 
 // MethodInfo states the method and its assumptions.
 type MethodInfo struct {
-	Bound       string   `json:"bound"`
-	Approximate bool     `json:"approximate"`
-	Statement   string   `json:"statement"`
-	Assumptions []string `json:"assumptions"`
+	Bound       plan.Bound `json:"bound"`
+	Approximate bool       `json:"approximate"`
+	Statement   string     `json:"statement"`
+	Assumptions []string   `json:"assumptions"`
 }
 
 // Signoff is one line of the sign-off block.

@@ -73,7 +73,7 @@ func TestVerdictAgreesWithPlanC(t *testing.T) {
 			if (cand.PValue <= level) != (x <= c) {
 				t.Fatalf("n=%d c=%d x=%d: p-value %v vs level %v disagrees with the rule", tc.n, c, x, cand.PValue, level)
 			}
-			if r.Method.Bound != BoundClopperPearson || !r.SelfWeighting {
+			if r.Method.Bound != plan.BoundClopperPearson || !r.SelfWeighting {
 				t.Fatalf("bound %s, self-weighting %v", r.Method.Bound, r.SelfWeighting)
 			}
 		}
@@ -113,7 +113,7 @@ func TestHypergeometricVerdictAgreesWithPlanC(t *testing.T) {
 			if (cand.Verdict == record.Accept) != (x <= c) || (cand.UpperBound < tc.ceiling) != (x <= c) {
 				t.Fatalf("N=%d n=%d c=%d x=%d: %s, bound %v (%s)", tc.N, tc.n, c, x, cand.Verdict, cand.UpperBound, cand.Reason)
 			}
-			if r.Method.Bound != BoundHypergeometric {
+			if r.Method.Bound != plan.BoundExactHypergeometric {
 				t.Fatalf("bound %s", r.Method.Bound)
 			}
 		}
@@ -224,7 +224,7 @@ print(json.dumps(dict(Est=est,Var=var,Lo=lo,Hi=hi)))`, &want)
 	if c.Strata[2].Errors != 0 || c.Strata[2].Lower != 0 {
 		t.Errorf("stratum with no errors: %+v", c.Strata[2])
 	}
-	if r.Method.Bound != BoundKornGraubard || !r.Method.Approximate {
+	if r.Method.Bound != plan.BoundKornGraubard || !r.Method.Approximate {
 		t.Errorf("unequal weights judged with %s (approximate %v)", r.Method.Bound, r.Method.Approximate)
 	}
 }
@@ -245,5 +245,26 @@ func TestSequentialPlanRefused(t *testing.T) {
 	_, err := Judge(Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{0}})})
 	if !errors.Is(err, ErrSequential) {
 		t.Errorf("got %v, want ErrSequential", err)
+	}
+}
+
+// TestUnequalBound: the option's names are those of the record command,
+// each selects its bound, and a record's bound gives back its option.
+func TestUnequalBound(t *testing.T) {
+	for _, tc := range []struct {
+		name  string
+		u     UnequalBound
+		bound plan.Bound
+	}{{"korn-graubard", KornGraubard, plan.BoundKornGraubard}, {"weighted-hoeffding", WeightedHoeffding, plan.BoundWeightedHoeffding}} {
+		u, err := ParseUnequalBound(tc.name)
+		if err != nil || u != tc.u || u.String() != tc.name || u.Bound() != tc.bound || UnequalBoundOf(tc.bound) != tc.u {
+			t.Errorf("%s: parsed %v, %v; bound %q", tc.name, u, err, u.Bound())
+		}
+	}
+	if _, err := ParseUnequalBound("korn-graubard (approximate)"); !errors.Is(err, ErrInput) {
+		t.Errorf("record spelling accepted as the option: %v", err)
+	}
+	if UnequalBoundOf(plan.BoundClopperPearson) != KornGraubard {
+		t.Error("a self-weighting record's option is not the default")
 	}
 }

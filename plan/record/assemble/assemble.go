@@ -33,9 +33,9 @@ type Input struct {
 	Labels *intake.Labels
 	// AllowIncomplete counts unlabeled and unsure items as errors.
 	AllowIncomplete bool
-	// Bound is the bound for unequal weights: verdict.KornGraubard ("")
-	// or verdict.WeightedHoeffding.
-	Bound string
+	// Bound is the bound for unequal weights (verdict.KornGraubard unless
+	// set).
+	Bound verdict.UnequalBound
 	// Use is the declared use (templates.Uses()).
 	Use string
 	// Date is the record's date, YYYY-MM-DD.
@@ -100,7 +100,7 @@ func Assemble(in Input) (*record.Record, error) {
 	rec.OverallVerdict = res.Overall
 	rec.Method = res.Method
 	rec.Method.Assumptions = append(rec.Method.Assumptions, res.Notes...)
-	if res.SelfWeighting && !strings.Contains(rec.Method.Bound, "korn") && !strings.Contains(rec.Method.Bound, "weighted") {
+	if res.SelfWeighting && !rec.Method.Bound.Weighted() {
 		if s := checked.Design.MaxWeightSpread(); s > 1e-12 {
 			rec.Method.Assumptions = append(rec.Method.Assumptions, fmt.Sprintf(
 				"The strata's inclusion weights N_h/n_h differ by at most %s %% through the rounding of the proportional allocation; the sample is judged as a simple random sample.",
@@ -141,7 +141,7 @@ func checkUse(use string) error {
 }
 
 // judge runs the verdict package on the checked items.
-func judge(p *plan.File, c *intake.Result, bound string) (*verdict.Result, error) {
+func judge(p *plan.File, c *intake.Result, bound verdict.UnequalBound) (*verdict.Result, error) {
 	in := verdict.Input{Plan: p, Design: c.Design, Items: c.Items, UnequalBound: bound}
 	if p.Sequential != nil {
 		return verdict.JudgeSequential(in)
