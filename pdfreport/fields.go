@@ -24,7 +24,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		FamilyRisk:       riskPct(1 - p.Confidence),
 		BoundConfidence:  confidence(boundConfidence(rec)),
 		PerCandidateRisk: riskPct(p.PerCandidateRisk),
-		Candidates:       p.Candidates,
+		Candidates:       p.CandidateCount,
 		Require:          p.Require.String(),
 		MultiplicityRule: p.Multiplicity.String(),
 		Model:            p.Model.String(),
@@ -53,7 +53,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 	if p.ProducerRisk != nil {
 		f.ProducerRisk = riskPct(*p.ProducerRisk)
 	}
-	if p.Candidates > 1 {
+	if p.CandidateCount > 1 {
 		f.Multiplicity = p.Multiplicity.Title()
 	}
 	if p.Population > 0 {

@@ -139,7 +139,7 @@ func fixtureRecord(use string) *record.Record {
 			Require:          plan.RequireAll,
 			Ceiling:          0.02,
 			Confidence:       0.95,
-			Candidates:       3,
+			CandidateCount:   3,
 			Anticipated:      ptr(0.003),
 			SampleSize:       464,
 			AcceptanceNumber: 3,
@@ -215,7 +215,7 @@ func fixtureRecord(use string) *record.Record {
 func manyRecord() *record.Record {
 	rec := fixtureRecord("safety")
 	rec.System = "Conveyor weld-seam inspection — Überwachungssystem with a deliberately long name to wrap"
-	rec.Plan.Candidates = 12
+	rec.Plan.CandidateCount = 12
 	rec.Plan.Multiplicity = plan.Holm
 	rec.Plan.Require = plan.RequireAny
 	rec.Plan.Population = 1250000

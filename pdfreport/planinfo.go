@@ -25,7 +25,7 @@ func (d *doc) planInfo(c *content) {
 	for _, cand := range c.rec.Candidates {
 		names = append(names, cand.Name)
 	}
-	cands := itoa(p.Candidates)
+	cands := itoa(p.CandidateCount)
 	if len(names) > 0 {
 		cands += ": " + strings.Join(names, ", ")
 	}
@@ -34,7 +34,7 @@ func (d *doc) planInfo(c *content) {
 		kv("Confidence (family-wise)", f.Confidence+" (risk δ = "+f.FamilyRisk+")"),
 		kv("Candidates (M)", cands),
 	}
-	if p.Candidates > 1 {
+	if p.CandidateCount > 1 {
 		rows = append(rows,
 			kv("Multiplicity", p.Multiplicity.Title()+"; "+p.Require.Title()),
 		)

@@ -365,7 +365,7 @@ func TestUnusualRecordsLayOut(t *testing.T) {
 			r.Plan.Model = plan.ModelHypergeometric
 			r.Plan.Method = plan.MethodExact
 			r.Method.Bound = plan.BoundExactHypergeometric
-			r.Plan.Candidates = 1
+			r.Plan.CandidateCount = 1
 			r.Plan.Anticipated, r.Plan.ProducerRisk = nil, nil
 			r.Candidates = r.Candidates[:1]
 			r.Candidates[0].Confusion = record.Confusion{}

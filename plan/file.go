@@ -59,9 +59,10 @@ type Inputs struct {
 	// Confidence is 1 − δ, in (0, 1); δ is the family-wise risk of
 	// accepting a candidate whose error is at or above the ceiling.
 	Confidence float64 `yaml:"confidence"`
-	// Candidates is M, the number of models or thresholds judged on the
-	// same sample (≥ 1).
-	Candidates int `yaml:"candidates"`
+	// CandidateCount is M, the number of models or thresholds judged on
+	// the same sample (≥ 1). It is written under the key candidates, as
+	// the plan file has always had it; File.Candidates lists them.
+	CandidateCount int `yaml:"candidates"`
 	// Anticipated is p0, the error a good model is expected to have; nil
 	// gives the zero-failure plan.
 	Anticipated *float64 `yaml:"anticipated,omitempty"`
@@ -223,11 +224,11 @@ func (f *File) validate() error {
 	if !(in.Confidence > 0 && in.Confidence < 1) {
 		return fmt.Errorf("inputs.confidence %v is outside (0, 1)", in.Confidence)
 	}
-	if in.Candidates < 1 {
-		return fmt.Errorf("inputs.candidates %d is below 1", in.Candidates)
+	if in.CandidateCount < 1 {
+		return fmt.Errorf("inputs.candidates %d is below 1", in.CandidateCount)
 	}
-	if len(f.Candidates) > 0 && len(f.Candidates) != in.Candidates {
-		return fmt.Errorf("inputs.candidates is %d but %d candidates are declared", in.Candidates, len(f.Candidates))
+	if len(f.Candidates) > 0 && len(f.Candidates) != in.CandidateCount {
+		return fmt.Errorf("inputs.candidates is %d but %d candidates are declared", in.CandidateCount, len(f.Candidates))
 	}
 	if p0 := in.Anticipated; p0 != nil && !(*p0 >= 0 && *p0 < in.Ceiling) {
 		return fmt.Errorf("inputs.anticipated %v is outside [0, ceiling)", *p0)

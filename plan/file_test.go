@@ -14,7 +14,7 @@ func examplePlan(t testing.TB) *File {
 	t.Helper()
 	in := inputs(0.02, 0.95)
 	in.Anticipated = ptr(0.01)
-	in.Candidates = 2
+	in.CandidateCount = 2
 	in.Population = 20000
 	th := 0.7
 	f, err := Build(in, Meta{

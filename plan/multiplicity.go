@@ -87,7 +87,7 @@ func (m Multiplicity) NotReachedReason(stoppedAt string) string {
 
 // PerCandidateRisk is the plan's α = δ/M' with δ = 1 − Confidence.
 func (in Inputs) PerCandidateRisk() float64 {
-	return in.Multiplicity.PerCandidateRisk(1-in.Confidence, in.Candidates)
+	return in.Multiplicity.PerCandidateRisk(1-in.Confidence, in.CandidateCount)
 }
 
 // PerCandidateConfidence is 1 − δ/M', the confidence at which each

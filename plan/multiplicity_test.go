@@ -14,7 +14,7 @@ func TestEffectiveCandidates(t *testing.T) {
 			t.Errorf("EffectiveCandidates(%d, %s) = %d, want %d", tc.m, tc.mult, got, tc.want)
 		}
 	}
-	f := &File{Inputs: Inputs{Confidence: 0.95, Candidates: 4, Multiplicity: Bonferroni}}
+	f := &File{Inputs: Inputs{Confidence: 0.95, CandidateCount: 4, Multiplicity: Bonferroni}}
 	if got := f.PerCandidateConfidence(); got != 1-(1-0.95)/4 {
 		t.Errorf("PerCandidateConfidence = %v", got)
 	}

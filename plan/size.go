@@ -22,8 +22,8 @@ func (in Inputs) Validate() error {
 	if err := open01("confidence", in.Confidence); err != nil {
 		return err
 	}
-	if in.Candidates < 1 {
-		return &InputError{Field: "candidates", Value: strconv.Itoa(in.Candidates), Allowed: "at least 1"}
+	if in.CandidateCount < 1 {
+		return &InputError{Field: "candidates", Value: strconv.Itoa(in.CandidateCount), Allowed: "at least 1"}
 	}
 	if p0 := in.Anticipated; p0 != nil && !(*p0 >= 0 && *p0 < in.Ceiling) {
 		return &InputError{Field: "anticipated", Value: fmtNum(*p0), Allowed: "at least 0 and below the ceiling " + fmtNum(in.Ceiling)}
@@ -188,7 +188,7 @@ func (s sizer) tooLarge(res searchResult) error {
 func (s sizer) relax(consumerSide bool) []string {
 	if consumerSide || s.in.Anticipated == nil {
 		r := []string{"ceiling", "confidence"}
-		if s.in.Multiplicity.EffectiveCandidates(s.in.Candidates) > 1 {
+		if s.in.Multiplicity.EffectiveCandidates(s.in.CandidateCount) > 1 {
 			r = append(r, "candidates")
 		}
 		return r

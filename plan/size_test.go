@@ -11,7 +11,7 @@ func ptr(v float64) *float64 { return &v }
 
 // inputs returns valid default inputs for tests.
 func inputs(ceiling, confidence float64) Inputs {
-	return Inputs{Ceiling: ceiling, Confidence: confidence, Candidates: 1, ProducerRisk: DefaultProducerRisk,
+	return Inputs{Ceiling: ceiling, Confidence: confidence, CandidateCount: 1, ProducerRisk: DefaultProducerRisk,
 		Method: MethodExact, Multiplicity: Bonferroni, Design: DesignFixed, Require: RequireAll}
 }
 
@@ -109,7 +109,7 @@ func TestMultiplicity(t *testing.T) {
 	sizes := map[Multiplicity]int{}
 	for _, m := range Multiplicities() {
 		in := base
-		in.Candidates = 5
+		in.CandidateCount = 5
 		in.Multiplicity = m
 		r, _, err := Size(in)
 		if err != nil {
@@ -137,7 +137,7 @@ func TestValidateAndLimits(t *testing.T) {
 		{"ceiling", func(in *Inputs) { in.Ceiling = 0 }},
 		{"ceiling", func(in *Inputs) { in.Ceiling = 1 }},
 		{"confidence", func(in *Inputs) { in.Confidence = 1.2 }},
-		{"candidates", func(in *Inputs) { in.Candidates = 0 }},
+		{"candidates", func(in *Inputs) { in.CandidateCount = 0 }},
 		{"anticipated", func(in *Inputs) { in.Anticipated = ptr(0.02) }},
 		{"producer-risk", func(in *Inputs) { in.ProducerRisk = 0 }},
 		{"method", func(in *Inputs) { in.Method = Method(99) }},
@@ -213,7 +213,7 @@ func TestSizeInvariants(t *testing.T) {
 		if in.Ceiling >= 1 {
 			in.Ceiling = 0.5
 		}
-		in.Candidates = 1 + rng.IntN(20)
+		in.CandidateCount = 1 + rng.IntN(20)
 		in.Multiplicity = Multiplicities()[rng.IntN(3)]
 		in.ProducerRisk = 0.01 + 0.5*rng.Float64()
 		if i%3 != 0 {

@@ -166,7 +166,7 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	if m < 1 || m > 1_000_000 {
 		return usageErrorf("--candidates %d: must be between 1 and 1000000", m)
 	}
-	in.Candidates = int(m)
+	in.CandidateCount = int(m)
 	o.mSet = changed("candidates")
 	if o.anticipated != "" {
 		p0, err := parseNumber("anticipated", o.anticipated)
@@ -190,11 +190,11 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 		return err
 	}
 	if len(o.declared) > 0 {
-		if o.mSet && in.Candidates != len(o.declared) {
-			return withHint(usageErrorf("--candidates %d disagrees with the %d candidates declared", in.Candidates, len(o.declared)),
+		if o.mSet && in.CandidateCount != len(o.declared) {
+			return withHint(usageErrorf("--candidates %d disagrees with the %d candidates declared", in.CandidateCount, len(o.declared)),
 				"drop --candidates: M follows from the declared candidates")
 		}
-		in.Candidates = len(o.declared)
+		in.CandidateCount = len(o.declared)
 	}
 	if in.Method, err = plan.ParseMethod(o.method); err != nil {
 		return planInputError(err)
@@ -246,7 +246,7 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 	if m < 1 || m > 1_000_000 {
 		return usageErrorf("--candidates %d: must be between 1 and 1000000", m)
 	}
-	in.Candidates = int(m)
+	in.CandidateCount = int(m)
 	if in.Multiplicity, err = plan.ParseMultiplicity(o.multiplicity); err != nil {
 		return planInputError(err)
 	}

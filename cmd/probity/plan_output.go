@@ -121,7 +121,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
 		ConsumerRisk: r.ConsumerRisk, ProducerRisk: r.ProducerRisk,
 		PerCandidateRisk: r.PerCandidateRisk, PerCandidateConfidence: f.PerCandidateConfidence(),
 		Method: in.Method, Model: r.Model, Multiplicity: in.Multiplicity, Design: in.Design, Require: in.Require,
-		Ceiling: in.Ceiling, Confidence: in.Confidence, Candidates: in.Candidates,
+		Ceiling: in.Ceiling, Confidence: in.Confidence, Candidates: in.CandidateCount,
 		Anticipated: in.Anticipated, ProducerRiskAllowed: in.ProducerRisk,
 		Comparison: map[string]*int64{}, Seed: f.Seed, CandidateNames: []string{},
 		Sequential: sequentialPlanJSON(f),
@@ -173,7 +173,7 @@ var ruleTitles = map[string]string{
 
 func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	r, in := f.Rule, f.Inputs
-	m := in.Candidates
+	m := in.CandidateCount
 	who := "the model"
 	if m > 1 {
 		who = fmt.Sprintf("each of the %d candidates", m)
@@ -347,7 +347,7 @@ func decimalsFor(v float64) int {
 // runPlanBudget answers --budget: the ceiling each error count certifies.
 func runPlanBudget(d deps, o *planOptions) error {
 	in := o.in
-	rows, err := plan.Budget(o.budgetN, in.Confidence, in.Candidates, in.Multiplicity, in.Population, 11)
+	rows, err := plan.Budget(o.budgetN, in.Confidence, in.CandidateCount, in.Multiplicity, in.Population, 11)
 	if err != nil {
 		return planInputError(err)
 	}
@@ -369,7 +369,7 @@ func runPlanBudget(d deps, o *planOptions) error {
 			Ceiling          *float64          `json:"ceiling"`
 			AcceptanceNumber *int              `json:"acceptance_number"`
 		}
-		j := budgetJSON{Budget: o.budgetN, Confidence: in.Confidence, Candidates: in.Candidates, Multiplicity: in.Multiplicity,
+		j := budgetJSON{Budget: o.budgetN, Confidence: in.Confidence, Candidates: in.CandidateCount, Multiplicity: in.Multiplicity,
 			PerCandidateRisk: alpha, Rows: rows, AcceptanceNumber: c}
 		if in.Population > 0 {
 			j.Population = &in.Population
@@ -404,7 +404,7 @@ func runPlanBudget(d deps, o *planOptions) error {
 
 // zeroFailureN is the smallest n with (1 − ceiling)^n ≤ α.
 func zeroFailureN(ceiling, alpha float64) int {
-	in := plan.Inputs{Ceiling: ceiling, Confidence: 1 - alpha, Candidates: 1, ProducerRisk: plan.DefaultProducerRisk,
+	in := plan.Inputs{Ceiling: ceiling, Confidence: 1 - alpha, CandidateCount: 1, ProducerRisk: plan.DefaultProducerRisk,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
 	r, _, err := plan.Size(in)
 	if err != nil {

@@ -18,7 +18,7 @@ import (
 func fixture(n, c, spares int, cands []string, labels []string) Input {
 	p := &plan.File{
 		Format: plan.FileFormat, Seed: "00", Classes: []string{"ok", "bad"},
-		Inputs: plan.Inputs{Ceiling: 0.2, Confidence: 0.95, Candidates: len(cands), Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
+		Inputs: plan.Inputs{Ceiling: 0.2, Confidence: 0.95, CandidateCount: len(cands), Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
 		Rule:   plan.Rule{SampleSize: n, AcceptanceNumber: c},
 	}
 	for _, name := range cands {

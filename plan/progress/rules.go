@@ -57,7 +57,7 @@ func rulesFor(p *plan.File) ([]candRules, *Result, error) {
 			return nil, nil, err
 		}
 		rc := c
-		if p.Inputs.Multiplicity == plan.Holm && p.Inputs.Candidates > 1 {
+		if p.Inputs.Multiplicity == plan.Holm && p.Inputs.CandidateCount > 1 {
 			rc = holmRejectNumber(p, n, c)
 		}
 		rej := acc

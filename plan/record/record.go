@@ -66,7 +66,7 @@ type PlanInfo struct {
 	Require          plan.Require      `json:"require"`
 	Ceiling          float64           `json:"ceiling"`
 	Confidence       float64           `json:"confidence"`
-	Candidates       int               `json:"candidates"`
+	CandidateCount   int               `json:"candidates"` // M; Record.Candidates lists them
 	Anticipated      *float64          `json:"anticipated"`
 	Population       int64             `json:"population"`
 	SampleSize       int               `json:"sample_size"`

@@ -35,7 +35,7 @@ func testPlan() record.PlanInfo {
 		Require:          plan.RequireAll,
 		Ceiling:          0.02,
 		Confidence:       0.95,
-		Candidates:       3,
+		CandidateCount:   3,
 		Anticipated:      &p0,
 		SampleSize:       613,
 		AcceptanceNumber: 5,

@@ -12,7 +12,7 @@ import (
 func testPlan(n, c int, ceiling, confidence float64, m int, multiplicity plan.Multiplicity) *plan.File {
 	f := &plan.File{
 		Format: plan.FileFormat, Seed: "00112233445566778899aabbccddeeff",
-		Inputs: plan.Inputs{Ceiling: ceiling, Confidence: confidence, Candidates: m, Method: plan.MethodExact,
+		Inputs: plan.Inputs{Ceiling: ceiling, Confidence: confidence, CandidateCount: m, Method: plan.MethodExact,
 			Multiplicity: multiplicity, Design: plan.DesignFixed, Require: plan.RequireAll},
 		Rule:    plan.Rule{Model: plan.ModelBinomial, SampleSize: n, AcceptanceNumber: c},
 		Classes: []string{"ok", "defect"},

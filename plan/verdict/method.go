@@ -25,9 +25,9 @@ func methodInfo(p *plan.File, m judgeMethod, n int, level float64, res *Result) 
 	fmt.Fprintf(&b, "One-sided upper %s confidence bounds by %s", pct(1-level), boundWords[m.bound])
 	switch p.Inputs.Multiplicity {
 	case plan.Bonferroni:
-		fmt.Fprintf(&b, ", Bonferroni-adjusted for %d candidates so they hold simultaneously at %s", p.Inputs.Candidates, pct(p.Inputs.Confidence))
+		fmt.Fprintf(&b, ", Bonferroni-adjusted for %d candidates so they hold simultaneously at %s", p.Inputs.CandidateCount, pct(p.Inputs.Confidence))
 	case plan.Holm:
-		fmt.Fprintf(&b, " (simultaneous at %s over %d candidates); candidates are accepted by Holm's step-down procedure at family-wise risk %s", pct(p.Inputs.Confidence), p.Inputs.Candidates, pct(1-p.Inputs.Confidence))
+		fmt.Fprintf(&b, " (simultaneous at %s over %d candidates); candidates are accepted by Holm's step-down procedure at family-wise risk %s", pct(p.Inputs.Confidence), p.Inputs.CandidateCount, pct(1-p.Inputs.Confidence))
 	case plan.FixedSequence:
 		fmt.Fprintf(&b, "; candidates are tested in their declared order at %s and testing stops at the first rejection", pct(1-p.Inputs.Confidence))
 	}
