@@ -57,7 +57,7 @@ func klKeeps(ceiling, alpha float64) func(c, n int) bool {
 	l := math.Log(1 / alpha)
 	return func(c, n int) bool {
 		q := float64(c) / float64(n)
-		return q < ceiling && float64(n)*bernoulliKL(q, ceiling) >= l
+		return q < ceiling && float64(n)*BernoulliKL(q, ceiling) >= l
 	}
 }
 
@@ -73,16 +73,4 @@ func chebyshevKeeps(ceiling, alpha float64) func(c, n int) bool {
 		fn := float64(n)
 		return float64(c)/fn+math.Sqrt(v/fn) <= ceiling
 	}
-}
-
-// bernoulliKL is kl(q‖p) for 0 ≤ q ≤ 1, 0 < p < 1, with 0·ln 0 = 0.
-func bernoulliKL(q, p float64) float64 {
-	var s float64
-	if q > 0 {
-		s += q * math.Log(q/p)
-	}
-	if q < 1 {
-		s += (1 - q) * (math.Log1p(-q) - math.Log1p(-p))
-	}
-	return s
 }

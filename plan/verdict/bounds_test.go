@@ -2,6 +2,7 @@ package verdict
 
 import (
 	"math"
+	"probity/plan"
 	"testing"
 )
 
@@ -52,7 +53,7 @@ func TestHoeffdingAndChernoffBounds(t *testing.T) {
 	for _, c := range []struct{ x, n int }{{0, 100}, {5, 1000}, {40, 200}} {
 		u := ChernoffUpper(c.x, c.n, 0.95)
 		p := float64(c.x) / float64(c.n)
-		if got := float64(c.n) * klBernoulli(p, u); !close(got, math.Log(20), 1e-9) {
+		if got := float64(c.n) * plan.BernoulliKL(p, u); !close(got, math.Log(20), 1e-9) {
 			t.Errorf("%+v: n·KL at the bound %v, want ln 20", c, got)
 		}
 		h := WeightedHoeffdingUpper(Estimate{Rate: p, SumW2n: 1 / float64(c.n)}, 0.95)
