@@ -36,32 +36,13 @@ func Budget(n int, confidence float64, candidates int, multiplicity Multiplicity
 	for x := 0; x < rows && x < n; x++ {
 		var ceil float64
 		if population > 0 {
-			ceil = float64(lotUpperErrors(x, n, population, alpha)) / float64(population)
+			ceil = float64(hypergeometricUpperErrors(x, n, population, alpha)+1) / float64(population)
 		} else {
 			ceil = ClopperPearsonUpper(x, n, 1-alpha)
 		}
 		out = append(out, BudgetRow{Errors: x, Ceiling: ceil})
 	}
 	return out, nil
-}
-
-// lotUpperErrors is the smallest D in [x+1, N] with P(X ≤ x | N, D, n) ≤
-// α; P falls as D grows, so it is found by bisection. N when even D = N
-// does not reach α (it always does when n = N).
-func lotUpperErrors(x, n int, population int64, alpha float64) int64 {
-	lo, hi := int64(x), population // P(lo) > α (D ≤ x: P = 1), P(hi) ≤ α or hi = N
-	if HypergeometricCDF(x, population, hi, n) > alpha {
-		return population
-	}
-	for hi-lo > 1 {
-		mid := lo + (hi-lo)/2
-		if HypergeometricCDF(x, population, mid, n) <= alpha {
-			hi = mid
-		} else {
-			lo = mid
-		}
-	}
-	return hi
 }
 
 // AcceptanceNumberFor returns the largest c for which accepting at ≤ c

@@ -6,34 +6,6 @@ import (
 	"testing"
 )
 
-// TestHypergeometricUpperAgainstScipy: D_U found by a full scan over D with
-// scipy.stats.hypergeom.cdf.
-func TestHypergeometricUpperAgainstScipy(t *testing.T) {
-	type hc struct {
-		x, n int
-		N    int64
-		conf float64
-	}
-	cases := []hc{{0, 50, 1000, 0.95}, {3, 120, 500, 0.95}, {10, 200, 5000, 0.99}, {5, 5, 40, 0.9}, {0, 1, 10, 0.95}}
-	var want []float64
-	python(t, `
-import json, numpy as np
-from scipy.stats import hypergeom
-out=[]
-for x,n,N,conf in [(0,50,1000,0.95),(3,120,500,0.95),(10,200,5000,0.99),(5,5,40,0.9),(0,1,10,0.95)]:
-    D=np.arange(x, N-(n-x)+1)
-    ok=D[hypergeom.cdf(x, N, D, n) > 1-conf]
-    out.append(float(ok.max())/N)
-print(json.dumps(out))`, &want)
-	for i, c := range cases {
-		// scipy.stats.hypergeom.cdf scan; exact (both give D/N for the
-		// same integer D).
-		if got := HypergeometricUpper(c.x, c.n, c.N, c.conf); got != want[i] {
-			t.Errorf("%+v: %v, scipy scan %v", c, got, want[i])
-		}
-	}
-}
-
 // TestHoeffdingAndChernoffBounds checks the closed forms and their
 // defining equations.
 func TestHoeffdingAndChernoffBounds(t *testing.T) {

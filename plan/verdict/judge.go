@@ -241,7 +241,7 @@ func judgeCandidate(in Input, ci int, m judgeMethod, level float64, lot int64) (
 	case plan.BoundExactHypergeometric:
 		rc.Estimate = float64(x) / float64(n)
 		t.PValue = plan.HypergeometricPValueAtLeast(x, n, lot, ceiling)
-		upperAt = func(cf float64) float64 { return HypergeometricUpper(x, n, lot, cf) }
+		upperAt = func(cf float64) float64 { return plan.HypergeometricUpper(x, n, lot, cf) }
 	case plan.BoundHoeffding:
 		rc.Estimate = float64(x) / float64(n)
 		e := Estimate{Rate: rc.Estimate, SumW2n: 1 / float64(n)}
