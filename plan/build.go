@@ -21,15 +21,15 @@ type Meta struct {
 	// Classes are the label values; required with Candidates.
 	Classes []string
 	// Candidates are declared in testing order; when present their number
-	// is M and must agree with Inputs.Candidates.
+	// is M and must agree with Inputs.CandidateCount.
 	Candidates []Candidate
 }
 
 // Build sizes the plan for the inputs (see Size) and assembles the plan
 // file with its metadata. The result passes the same checks Parse applies.
 func Build(in Inputs, m Meta) (*File, error) {
-	if len(m.Candidates) > 0 && in.Candidates != len(m.Candidates) {
-		return nil, &InputError{Field: "candidates", Value: strconv.Itoa(in.Candidates),
+	if len(m.Candidates) > 0 && in.CandidateCount != len(m.Candidates) {
+		return nil, &InputError{Field: "candidates", Value: strconv.Itoa(in.CandidateCount),
 			Allowed: fmt.Sprintf("%d, the number of candidates declared (or omitted)", len(m.Candidates))}
 	}
 	rule, cmp, err := Size(in)

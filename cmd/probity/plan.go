@@ -100,10 +100,10 @@ the time and the tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.anticipated, "anticipated", "", "`P0`, the error a good model is expected to have (below the ceiling)")
 	fl.StringVar(&o.producerRisk, "producer-risk", "0.10", "`RISK`: the largest allowed chance of rejecting a model whose error is p0")
 	fl.StringVar(&o.population, "population", "", "`N`, when the audit covers one batch of N decisions (hypergeometric)")
-	fl.StringVar(&o.method, "method", plan.MethodExact, "the decision `RULE`: exact, hoeffding or kl")
-	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni, "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
-	fl.StringVar(&o.design, "design", plan.DesignFixed, "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
-	fl.StringVar(&o.require, "require", plan.RequireAll, "`all` candidates or `any` one must be accepted for the audit to pass")
+	fl.StringVar(&o.method, "method", plan.MethodExact.String(), "the decision `RULE`: exact, hoeffding or kl")
+	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni.String(), "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
+	fl.StringVar(&o.design, "design", plan.DesignFixed.String(), "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
+	fl.StringVar(&o.require, "require", plan.RequireAll.String(), "`all` candidates or `any` one must be accepted for the audit to pass")
 	fl.StringVar(&o.budget, "budget", "", "with `n` labels: the ceiling each number of errors certifies (no plan is made)")
 	fl.StringVar(&o.out, "out", "", "write the plan file (YAML) to `PATH`")
 	fl.BoolVar(&o.force, "force", false, "replace an existing --out file")
@@ -148,7 +148,7 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	if o.confidence == "" {
 		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
 	}
-	in := plan.Inputs{Method: o.method, Multiplicity: o.multiplicity, Design: o.design, Require: o.require}
+	var in plan.Inputs
 	var err error
 	if in.Ceiling, err = parseNumber("ceiling", o.ceiling); err != nil {
 		return err
@@ -166,7 +166,7 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	if m < 1 || m > 1_000_000 {
 		return usageErrorf("--candidates %d: must be between 1 and 1000000", m)
 	}
-	in.Candidates = int(m)
+	in.CandidateCount = int(m)
 	o.mSet = changed("candidates")
 	if o.anticipated != "" {
 		p0, err := parseNumber("anticipated", o.anticipated)
@@ -183,18 +183,27 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 			return usageErrorf("--population %d: must be at least 1", in.Population)
 		}
 	}
-	if o.design != plan.DesignFixed && o.design != plan.DesignSequential {
-		return usageErrorf("--design %q: must be fixed or sequential", o.design)
+	if in.Design, err = plan.ParseDesign(o.design); err != nil {
+		return planInputError(err)
 	}
 	if err := o.parseCandidates(); err != nil {
 		return err
 	}
 	if len(o.declared) > 0 {
-		if o.mSet && in.Candidates != len(o.declared) {
-			return withHint(usageErrorf("--candidates %d disagrees with the %d candidates declared", in.Candidates, len(o.declared)),
+		if o.mSet && in.CandidateCount != len(o.declared) {
+			return withHint(usageErrorf("--candidates %d disagrees with the %d candidates declared", in.CandidateCount, len(o.declared)),
 				"drop --candidates: M follows from the declared candidates")
 		}
-		in.Candidates = len(o.declared)
+		in.CandidateCount = len(o.declared)
+	}
+	if in.Method, err = plan.ParseMethod(o.method); err != nil {
+		return planInputError(err)
+	}
+	if in.Multiplicity, err = plan.ParseMultiplicity(o.multiplicity); err != nil {
+		return planInputError(err)
+	}
+	if in.Require, err = plan.ParseRequire(o.require); err != nil {
+		return planInputError(err)
 	}
 	if err := in.Validate(); err != nil {
 		return planInputError(err)
@@ -223,7 +232,7 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 	if o.confidence == "" {
 		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
 	}
-	in := plan.Inputs{Multiplicity: o.multiplicity}
+	var in plan.Inputs
 	if in.Confidence, err = parseNumber("confidence", o.confidence); err != nil {
 		return err
 	}
@@ -237,9 +246,9 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 	if m < 1 || m > 1_000_000 {
 		return usageErrorf("--candidates %d: must be between 1 and 1000000", m)
 	}
-	in.Candidates = int(m)
-	if !slices.Contains(plan.Multiplicities, o.multiplicity) {
-		return usageErrorf("--multiplicity %q: must be one of %s", o.multiplicity, strings.Join(plan.Multiplicities, ", "))
+	in.CandidateCount = int(m)
+	if in.Multiplicity, err = plan.ParseMultiplicity(o.multiplicity); err != nil {
+		return planInputError(err)
 	}
 	if o.population != "" {
 		if in.Population, err = parseCount("population", o.population); err != nil {
@@ -404,8 +413,8 @@ func runPlan(d deps, o *planOptions) error {
 	return writePlanReport(d.stdout, f, o.out, fingerprint)
 }
 
-// applyDesign is the hook for the plan's design: "fixed" keeps the
-// (n, c) rule Build made; "sequential" turns it into boundaries
+// applyDesign is the hook for the plan's design: fixed keeps the
+// (n, c) rule Build made; sequential turns it into boundaries
 // (plan_sequential.go, plan/sequential).
 func applyDesign(f *plan.File) error {
 	switch f.Inputs.Design {

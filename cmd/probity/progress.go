@@ -198,7 +198,7 @@ func progressStatus(d sequential.Decision) string {
 
 // writeProgress prints the human-readable assessment.
 func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
-	if res.Design == "sequential" {
+	if res.Design == plan.DesignSequential {
 		fmt.Fprintf(w, "Sequential plan: at most %d labels; each candidate stops at its boundaries.\n", res.SampleSize)
 	} else {
 		fmt.Fprintf(w, "Fixed plan: %d labels, accept with at most %d errors; stopping early by exact curtailment (no change to either risk).\n",
@@ -225,8 +225,8 @@ func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
 	tw.Flush()
 	fmt.Fprintln(w)
 	req := p.Inputs.Require
-	if req == "" {
-		req = "all"
+	if req == plan.RequireUnset {
+		req = plan.RequireAll
 	}
 	switch res.Overall {
 	case sequential.Continue:

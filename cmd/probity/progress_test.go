@@ -33,7 +33,7 @@ type progressFiles struct {
 func progressFixture(t *testing.T, seq bool) progressFiles {
 	t.Helper()
 	p0 := 0.02
-	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.95, Candidates: 2, Anticipated: &p0, ProducerRisk: 0.10,
+	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.95, CandidateCount: 2, Anticipated: &p0, ProducerRisk: 0.10,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
 	if seq {
 		in.Design = plan.DesignSequential

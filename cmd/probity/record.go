@@ -33,6 +33,7 @@ type recordOptions struct {
 	paper           string
 	templatesDir    string
 	bound           string
+	unequal         verdict.UnequalBound
 	force           bool
 	json            bool
 	// quality holds the double-labeling flags (record_quality.go).
@@ -101,7 +102,7 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 	fl.StringVar(&opts.date, "date", "", "the record's date, YYYY-MM-DD (default: today, UTC)")
 	fl.StringVar(&opts.paper, "paper", "a4", "paper size of record.pdf: a4 or letter")
 	fl.StringVar(&opts.templatesDir, "templates", "", "folder of wording files overriding the built-in ones")
-	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard, "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
+	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
 	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
 	addLabelQualityFlags(cmd, &opts.quality)
@@ -127,9 +128,11 @@ func (o *recordOptions) validate() error {
 			return withHint(usageErrorf("--date %q is not a date in the form YYYY-MM-DD", o.date), "for example --date 2026-03-31")
 		}
 	}
-	if !oneOf(o.bound, []string{verdict.KornGraubard, verdict.WeightedHoeffding}) {
+	u, err := verdict.ParseUnequalBound(o.bound)
+	if err != nil {
 		return usageErrorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
 	}
+	o.unequal = u
 	return nil
 }
 
@@ -219,7 +222,7 @@ func runRecord(d deps, o *recordOptions) error {
 	}
 	rec, err := assemble.Assemble(assemble.Input{
 		Plan: in.plan, PlanFP: in.planFP, Folder: in.folder, Labels: in.labels,
-		AllowIncomplete: o.allowIncomplete, Bound: o.bound, Use: o.use, Date: date,
+		AllowIncomplete: o.allowIncomplete, Bound: o.unequal, Use: o.use, Date: date,
 		Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP, Adjust: adjust,
 	})
 	if err != nil {
@@ -276,11 +279,7 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 		fmt.Fprintf(w, "  %-*s  %s  %d/%d errors, estimate %s, upper bound %s — %s\n", width, c.Name, c.Verdict, c.Errors, c.Labeled,
 			fmt.Sprintf("%.4f", c.Estimate), fmt.Sprintf("%.4f", c.UpperBound), c.Reason)
 	}
-	need := "every candidate"
-	if rec.Plan.Require == "any" {
-		need = "at least one candidate"
-	}
-	fmt.Fprintf(w, "overall: %s (%s must be accepted)\n", rec.OverallVerdict, need)
+	fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
 	if rec.Deviations.AllowIncomplete {
 		fmt.Fprintf(w, "note: unlabeled or unsure items were counted as errors for every candidate (--allow-incomplete)\n")
 	}

@@ -45,11 +45,11 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 	t.Helper()
 	fx := &recFixture{dir: t.TempDir(), truth: map[string]string{}, show: []string{"parcel"}}
 	p0 := 0.01
-	in := plan.Inputs{Ceiling: 0.05, Confidence: 0.95, Candidates: 1, Anticipated: &p0, ProducerRisk: 0.2,
+	in := plan.Inputs{Ceiling: 0.05, Confidence: 0.95, CandidateCount: 1, Anticipated: &p0, ProducerRisk: 0.2,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
 	cands := []plan.Candidate{{Name: "sorter-a", Column: "pred_a"}}
 	if both {
-		in.Candidates = 2
+		in.CandidateCount = 2
 		cands = append(cands, plan.Candidate{Name: "sorter-b", Column: "pred_b"})
 	}
 	f, err := plan.Build(in, plan.Meta{ToolVersion: "test", Created: time.Date(2026, 11, 30, 9, 0, 0, 0, time.UTC),

@@ -32,7 +32,7 @@ type lqFixture struct {
 func newLQFixture(t *testing.T) *lqFixture {
 	t.Helper()
 	fx := &lqFixture{dir: t.TempDir(), truth: map[string]string{}}
-	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.9, Candidates: 1, ProducerRisk: 0.1,
+	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.9, CandidateCount: 1, ProducerRisk: 0.1,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
 	f, err := plan.Build(in, plan.Meta{ToolVersion: "test", Created: time.Date(2026, 11, 30, 9, 0, 0, 0, time.UTC),
 		Seed: "a1b2c3d4e5f60718293a4b5c6d7e8f90", System: "Seam inspector", SystemVersion: "1.3",

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"probity/plan"
 	"probity/plan/record"
 	"probity/sampling"
 )
@@ -41,7 +42,7 @@ func TestRecordAcceptedExitsZero(t *testing.T) {
 		t.Errorf("record folder holds %s", got)
 	}
 	r := readRecord(t, out)
-	if r.OverallVerdict != record.Accept || r.Date != "2026-12-01" || r.System != "Parcel sorter" || len(r.Strata) != 3 || len(r.OC) == 0 || r.Method.Bound != "clopper-pearson" {
+	if r.OverallVerdict != record.Accept || r.Date != "2026-12-01" || r.System != "Parcel sorter" || len(r.Strata) != 3 || len(r.OC) == 0 || r.Method.Bound != plan.BoundClopperPearson {
 		t.Errorf("record: %+v", r)
 	}
 	if r.Fingerprints.Labels != record.SHA256(mustRead(t, labels)) || r.RecordID != record.ID(r.Fingerprints, nil) {
@@ -223,7 +224,7 @@ func TestRecordUnequalWeights(t *testing.T) {
 			t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
 		}
 		r := readRecord(t, out)
-		if r.Method.Bound != c.bound || r.Method.Approximate != (c.flag == "korn-graubard") || !strings.Contains(r.Method.Statement, "N_h/N") {
+		if r.Method.Bound.String() != c.bound || r.Method.Approximate != (c.flag == "korn-graubard") || !strings.Contains(r.Method.Statement, "N_h/N") {
 			t.Errorf("%s: method %+v", c.flag, r.Method)
 		}
 	}

@@ -14,6 +14,7 @@ import (
 	"testing"
 	"time"
 
+	"probity/plan"
 	"probity/plan/record"
 	trendpkg "probity/plan/trend"
 )
@@ -294,13 +295,13 @@ func TestTrendBadInput(t *testing.T) {
 			"hint: keep the record that was signed off"}},
 		{"lot plan mixed with stream plan", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
-			r.Plan.Model, r.Plan.Population = "hypergeometric", 41250
+			r.Plan.Model, r.Plan.Population = plan.ModelHypergeometric, 41250
 			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
 		}, []string{"april.json: plan.model is hypergeometric here but binomial in " + trendMonth("2026-03") + " (period 2026-03): records of different classes of plan cannot share a trend",
 			"hint: a trend compares audits of one model, method, design, ceiling and confidence"}},
 		{"sequential mixed with fixed", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
-			r.Plan.Design = "sequential"
+			r.Plan.Design = plan.DesignSequential
 			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
 		}, []string{"plan.design is sequential here but fixed"}},
 		{"different ceilings", func(t *testing.T, dir string) []string {

@@ -298,10 +298,7 @@ func recompute(c *checkList, o *verifyOptions, rec *record.Record) error {
 		}
 		return err
 	}
-	bound := verdict.KornGraubard
-	if rec.Method.Bound == verdict.BoundWeightedHoeff {
-		bound = verdict.WeightedHoeffding
-	}
+	bound := verdict.UnequalBoundOf(rec.Method.Bound)
 	if rec.LabelQuality != nil && o.second == "" {
 		c.skip("judgement not recomputed: the record was judged on double labels; pass --second (and --adjudicated) as well")
 		return nil

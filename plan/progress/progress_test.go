@@ -18,7 +18,7 @@ import (
 func fixture(n, c, spares int, cands []string, labels []string) Input {
 	p := &plan.File{
 		Format: plan.FileFormat, Seed: "00", Classes: []string{"ok", "bad"},
-		Inputs: plan.Inputs{Ceiling: 0.2, Confidence: 0.95, Candidates: len(cands), Multiplicity: plan.Bonferroni, Design: "fixed", Require: "all"},
+		Inputs: plan.Inputs{Ceiling: 0.2, Confidence: 0.95, CandidateCount: len(cands), Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
 		Rule:   plan.Rule{SampleSize: n, AcceptanceNumber: c},
 	}
 	for _, name := range cands {
@@ -165,13 +165,13 @@ func TestOverallAndFixedSequence(t *testing.T) {
 	if res.Candidates[0].Decision != sequential.Accept || res.Candidates[1].Decision != sequential.Reject || res.Overall != sequential.Reject {
 		t.Errorf("all: %s %s overall %s", res.Candidates[0].Decision, res.Candidates[1].Decision, res.Overall)
 	}
-	in.Plan.Inputs.Require = "any"
+	in.Plan.Inputs.Require = plan.RequireAny
 	res, _ = Assess(in)
 	if res.Overall != sequential.Accept {
 		t.Errorf("any: overall %s", res.Overall)
 	}
 	// fixed-sequence with B first: A is then not tested
-	in.Plan.Inputs.Require = "all"
+	in.Plan.Inputs.Require = plan.RequireAll
 	in.Plan.Inputs.Multiplicity = plan.FixedSequence
 	in.Plan.Candidates[0], in.Plan.Candidates[1] = in.Plan.Candidates[1], in.Plan.Candidates[0]
 	for i := range in.Ledger {
@@ -244,7 +244,7 @@ func TestSequentialPlanMatchesJudge(t *testing.T) {
 		upto := 20 + seed*7
 		in := fixture(T, d.FinalAcceptance, 0, []string{"A"}, labels[:min(upto, T)])
 		in.Plan.Sequential = d.Rule
-		in.Plan.Inputs.Design = "sequential"
+		in.Plan.Inputs.Design = plan.DesignSequential
 		res, err := Assess(in)
 		if err != nil {
 			t.Fatal(err)

@@ -29,12 +29,12 @@ type candRules struct {
 // Bonferroni).
 func rulesFor(p *plan.File) ([]candRules, *Result, error) {
 	res := &Result{Design: p.Inputs.Design}
-	if res.Design == "" {
-		res.Design = "fixed"
+	if res.Design == plan.DesignUnset {
+		res.Design = plan.DesignFixed
 	}
 	var out candRules
 	if p.Sequential != nil {
-		res.Design = "sequential"
+		res.Design = plan.DesignSequential
 		r, err := sequential.NewRule(p.Sequential)
 		if err != nil {
 			return nil, nil, fmt.Errorf("the plan's sequential rule is not valid: %w", err)
@@ -57,7 +57,7 @@ func rulesFor(p *plan.File) ([]candRules, *Result, error) {
 			return nil, nil, err
 		}
 		rc := c
-		if p.Inputs.Multiplicity == plan.Holm && p.Inputs.Candidates > 1 {
+		if p.Inputs.Multiplicity == plan.Holm && p.Inputs.CandidateCount > 1 {
 			rc = holmRejectNumber(p, n, c)
 		}
 		rej := acc

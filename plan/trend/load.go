@@ -2,16 +2,19 @@ package trend
 
 import (
 	"bytes"
+	"encoding"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io/fs"
 	"os"
 	"path/filepath"
+	"reflect"
 	"sort"
 	"strings"
 	"time"
 
+	"probity/plan"
 	"probity/plan/record"
 )
 
@@ -247,7 +250,7 @@ func check(r *record.Record, name string, data []byte) error {
 	if !(r.Plan.Confidence > 0 && r.Plan.Confidence < 1) {
 		return bad("plan.confidence", []any{"plan", "confidence"}, "%v is outside (0, 1)", r.Plan.Confidence)
 	}
-	for _, f := range []struct{ key, v string }{{"model", r.Plan.Model}, {"method", r.Plan.Method}, {"design", r.Plan.Design}} {
+	for _, f := range []struct{ key, v string }{{"model", r.Plan.Model.String()}, {"method", r.Plan.Method.String()}, {"design", r.Plan.Design.String()}} {
 		if f.v == "" {
 			return bad("plan."+f.key, []any{"plan", f.key}, "is empty")
 		}
@@ -292,6 +295,7 @@ func check(r *record.Record, name string, data []byte) error {
 func decodeError(name string, data []byte, err error) error {
 	var se *json.SyntaxError
 	var te *json.UnmarshalTypeError
+	var ie *plan.InputError
 	switch {
 	case len(bytes.TrimSpace(data)) == 0:
 		return &InputError{File: name, Msg: "is empty", Hint: "trend reads the record.json files written by 'probity record'"}
@@ -303,8 +307,20 @@ func decodeError(name string, data []byte, err error) error {
 		if field == "" {
 			return &InputError{File: name, Line: lineAt(data, te.Offset), Msg: "is not a record: the top level is a JSON " + te.Value + ", not an object"}
 		}
+		kind := te.Type.Kind().String()
+		if reflect.PointerTo(te.Type).Implements(reflect.TypeFor[encoding.TextUnmarshaler]()) {
+			kind = "string" // a setting, written by its name
+		}
 		return &InputError{File: name, Line: lineAt(data, te.Offset), Field: field,
-			Msg: fmt.Sprintf("is a JSON %s where a %s belongs", te.Value, jsonKind(te.Type.Kind().String()))}
+			Msg: fmt.Sprintf("is a JSON %s where a %s belongs", te.Value, jsonKind(kind))}
+	case errors.As(err, &ie):
+		// a setting whose name is not one of its values
+		path := []any{"plan", ie.Field}
+		if ie.Field == "bound" {
+			path = []any{"method", "bound"}
+		}
+		return &InputError{File: name, Line: lineOf(data, path), Field: fmt.Sprintf("%s.%s", path...),
+			Msg: fmt.Sprintf("%s is not %s", ie.Value, ie.Allowed)}
 	}
 	return &InputError{File: name, Msg: "is not valid JSON: " + err.Error()}
 }

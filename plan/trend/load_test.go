@@ -84,6 +84,12 @@ func TestLoadRefusesBadRecords(t *testing.T) {
 			m["candidates"].([]any)[2].(map[string]any)["name"] = "router-a"
 		}, field: "candidates[2].name", msgPart: "repeats candidates[0]"},
 		{name: "bad overall verdict", edit: func(m map[string]any) { m["overall_verdict"] = "" }, field: "overall_verdict", msgPart: "neither"},
+		{name: "unknown multiplicity", edit: func(m map[string]any) { m["plan"].(map[string]any)["multiplicity"] = "sidak" },
+			field: "plan.multiplicity", msgPart: `"sidak" is not one of bonferroni, holm, fixed-sequence`},
+		{name: "unknown bound", edit: func(m map[string]any) { m["method"].(map[string]any)["bound"] = "wilson" },
+			field: "method.bound", msgPart: `"wilson" is not one of clopper-pearson,`},
+		{name: "multiplicity as a number", edit: func(m map[string]any) { m["plan"].(map[string]any)["multiplicity"] = 2 },
+			field: "plan.multiplicity", msgPart: "a JSON number where a string belongs"},
 	}
 	base, err := json.MarshalIndent(yearRecords()[0], "", "  ")
 	if err != nil {

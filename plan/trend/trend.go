@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strings"
 
+	"probity/plan"
 	"probity/plan/record"
 )
 
@@ -228,7 +229,7 @@ func Build(entries []Entry, opts Options) (*Trend, error) {
 	t.Warnings = append(t.Warnings, planWarnings(t.Periods)...)
 	t.Warnings = append(t.Warnings, candidateWarnings(t, labels)...)
 	t.Warnings = append(t.Warnings, weightWarnings(es)...)
-	if t.Class.Design == "sequential" && len(es) > 1 {
+	if t.Class.Design == plan.DesignSequential && len(es) > 1 {
 		t.Warnings = append(t.Warnings, "the design is sequential: how many items were labeled depends on where the boundaries stopped, "+
 			"and the test treats each period's count as a fixed sample, so its p-values are approximate")
 	}

@@ -33,9 +33,9 @@ type Input struct {
 	Labels *intake.Labels
 	// AllowIncomplete counts unlabeled and unsure items as errors.
 	AllowIncomplete bool
-	// Bound is the bound for unequal weights: verdict.KornGraubard ("")
-	// or verdict.WeightedHoeffding.
-	Bound string
+	// Bound is the bound for unequal weights (verdict.KornGraubard unless
+	// set).
+	Bound verdict.UnequalBound
 	// Use is the declared use (templates.Uses()).
 	Use string
 	// Date is the record's date, YYYY-MM-DD.
@@ -100,7 +100,7 @@ func Assemble(in Input) (*record.Record, error) {
 	rec.OverallVerdict = res.Overall
 	rec.Method = res.Method
 	rec.Method.Assumptions = append(rec.Method.Assumptions, res.Notes...)
-	if res.SelfWeighting && !strings.Contains(rec.Method.Bound, "korn") && !strings.Contains(rec.Method.Bound, "weighted") {
+	if res.SelfWeighting && !rec.Method.Bound.Weighted() {
 		if s := checked.Design.MaxWeightSpread(); s > 1e-12 {
 			rec.Method.Assumptions = append(rec.Method.Assumptions, fmt.Sprintf(
 				"The strata's inclusion weights N_h/n_h differ by at most %s %% through the rounding of the proportional allocation; the sample is judged as a simple random sample.",
@@ -141,7 +141,7 @@ func checkUse(use string) error {
 }
 
 // judge runs the verdict package on the checked items.
-func judge(p *plan.File, c *intake.Result, bound string) (*verdict.Result, error) {
+func judge(p *plan.File, c *intake.Result, bound verdict.UnequalBound) (*verdict.Result, error) {
 	in := verdict.Input{Plan: p, Design: c.Design, Items: c.Items, UnequalBound: bound}
 	if p.Sequential != nil {
 		return verdict.JudgeSequential(in)
@@ -161,7 +161,7 @@ func planInfo(p *plan.File, fp string, f *intake.Folder) record.PlanInfo {
 	return record.PlanInfo{
 		Fingerprint: fp, Method: in.Method, Model: p.Rule.Model, Design: in.Design,
 		Multiplicity: in.Multiplicity, Require: in.Require, Ceiling: in.Ceiling, Confidence: in.Confidence,
-		Candidates: in.Candidates, Anticipated: in.Anticipated, Population: in.Population,
+		CandidateCount: in.CandidateCount, Anticipated: in.Anticipated, Population: in.Population,
 		SampleSize: p.Rule.SampleSize, AcceptanceNumber: p.Rule.AcceptanceNumber,
 		PerCandidateRisk: p.Rule.PerCandidateRisk, ConsumerRisk: p.Rule.ConsumerRisk, ProducerRisk: p.Rule.ProducerRisk,
 		Seed: p.Seed, SelectionSeed: f.Manifest.SelectionSeed,

@@ -27,8 +27,8 @@ func newDrawFixture(t *testing.T) *drawFixture {
 	t.Helper()
 	p := &plan.File{
 		Format: plan.FileFormat, Seed: "00112233445566778899aabbccddeeff",
-		Inputs:     plan.Inputs{Ceiling: 0.1, Confidence: 0.9, Candidates: 2, Method: "exact", Multiplicity: "bonferroni", Design: "fixed", Require: "all"},
-		Rule:       plan.Rule{Model: "binomial", SampleSize: 29, AcceptanceNumber: 0, PerCandidateRisk: 0.05},
+		Inputs:     plan.Inputs{Ceiling: 0.1, Confidence: 0.9, CandidateCount: 2, Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
+		Rule:       plan.Rule{Model: plan.ModelBinomial, SampleSize: 29, AcceptanceNumber: 0, PerCandidateRisk: 0.05},
 		Classes:    []string{"ok", "defect"},
 		Candidates: []plan.Candidate{{Name: "m1", Column: "pred_a"}, {Name: "m2", Column: "pred_b"}},
 	}
