@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"probity/plan/inputerr"
 	"slices"
 	"strings"
 	"time"
@@ -173,26 +174,33 @@ func (f *File) Marshal() ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
-// Parse decodes a plan file. name is used in error messages. Unknown keys
+// Parse decodes a plan file. name is used in error messages, which are
+// *inputerr.Error wrapping ErrPlanFile. Unknown keys
 // are refused, so a typo in a hand-edited plan is not silently ignored.
 func Parse(data []byte, name string) (*File, error) {
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	dec.KnownFields(true)
 	var f File
 	if err := dec.Decode(&f); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrPlanFile, err)
+		return nil, planFileError(name, err)
 	}
 	if err := f.validate(); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrPlanFile, err)
+		return nil, planFileError(name, err)
 	}
 	return &f, nil
+}
+
+// planFileError is the input error about a plan file's content: it names
+// the file and wraps ErrPlanFile.
+func planFileError(name string, err error) error {
+	return inputerr.At(name, 0, "", "%w: %v", ErrPlanFile, err).WithHint("use the plan file written by probity plan, unedited")
 }
 
 // Load reads and parses a plan file and returns it with its fingerprint.
 func Load(path string) (*File, string, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, "", err
+		return nil, "", inputerr.FromPath(err)
 	}
 	f, err := Parse(data, path)
 	if err != nil {

@@ -29,7 +29,7 @@ const DefaultProducerRisk = 0.10
 func (in Inputs) Validate() error {
 	open01 := func(field string, v float64) error {
 		if !(v > 0 && v < 1) {
-			return &InputError{Field: field, Value: fmtNum(v), Allowed: "between 0 and 1 (exclusive)"}
+			return outOfRange(field, fmtNum(v), "between 0 and 1 (exclusive)")
 		}
 		return nil
 	}
@@ -40,28 +40,28 @@ func (in Inputs) Validate() error {
 		return err
 	}
 	if in.Candidates < 1 {
-		return &InputError{Field: "candidates", Value: strconv.Itoa(in.Candidates), Allowed: "at least 1"}
+		return outOfRange("candidates", strconv.Itoa(in.Candidates), "at least 1")
 	}
 	if p0 := in.Anticipated; p0 != nil && !(*p0 >= 0 && *p0 < in.Ceiling) {
-		return &InputError{Field: "anticipated", Value: fmtNum(*p0), Allowed: "at least 0 and below the ceiling " + fmtNum(in.Ceiling)}
+		return outOfRange("anticipated", fmtNum(*p0), "at least 0 and below the ceiling "+fmtNum(in.Ceiling))
 	}
 	if err := open01("producer-risk", in.ProducerRisk); err != nil {
 		return err
 	}
 	if in.Population < 0 {
-		return &InputError{Field: "population", Value: strconv.FormatInt(in.Population, 10), Allowed: "at least 1 (or omitted for an unbounded stream)"}
+		return outOfRange("population", strconv.FormatInt(in.Population, 10), "at least 1 (or omitted for an unbounded stream)")
 	}
 	if !slices.Contains(Methods, in.Method) {
-		return &InputError{Field: "method", Value: strconv.Quote(in.Method), Allowed: "one of " + strings.Join(Methods, ", ")}
+		return outOfRange("method", strconv.Quote(in.Method), "one of "+strings.Join(Methods, ", "))
 	}
 	if !slices.Contains(Multiplicities, in.Multiplicity) {
-		return &InputError{Field: "multiplicity", Value: strconv.Quote(in.Multiplicity), Allowed: "one of " + strings.Join(Multiplicities, ", ")}
+		return outOfRange("multiplicity", strconv.Quote(in.Multiplicity), "one of "+strings.Join(Multiplicities, ", "))
 	}
 	if in.Design != DesignFixed && in.Design != DesignSequential {
-		return &InputError{Field: "design", Value: strconv.Quote(in.Design), Allowed: "fixed or sequential"}
+		return outOfRange("design", strconv.Quote(in.Design), "fixed or sequential")
 	}
 	if in.Require != RequireAll && in.Require != RequireAny {
-		return &InputError{Field: "require", Value: strconv.Quote(in.Require), Allowed: "all or any"}
+		return outOfRange("require", strconv.Quote(in.Require), "all or any")
 	}
 	return nil
 }
@@ -88,7 +88,7 @@ func Size(in Inputs) (Rule, []RuleSize, error) {
 		return Rule{}, nil, s.tooLarge(res)
 	}
 	if in.Population > 0 && int64(res.n) >= in.Population {
-		return Rule{}, nil, &TooLargeError{Limit: res.n, Population: in.Population, Relax: s.relax(true)}
+		return Rule{}, nil, tooLargeError(&TooLargeError{Limit: res.n, Population: in.Population, Relax: s.relax(true)})
 	}
 	rule := s.rule(res)
 	var cmp []RuleSize
@@ -206,7 +206,7 @@ func (s sizer) tooLarge(res searchResult) error {
 	if s.in.Population > 0 && s.in.Population <= MaxSampleSize {
 		e.Population = s.in.Population
 	}
-	return e
+	return tooLargeError(e)
 }
 
 // relax names the inputs that shrink the plan: the consumer's side when even

@@ -5,10 +5,10 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
-	"fmt"
 	"io"
 	"os"
 	"path/filepath"
+	"probity/plan/inputerr"
 )
 
 // Folder is the content of a draw folder, ready to be written: the
@@ -86,7 +86,7 @@ func CheckFolderWritable(dir string, force bool) error {
 		return err
 	}
 	if !st.IsDir() {
-		return fmt.Errorf("%s exists and is not a folder", dir)
+		return inputerr.At(dir, 0, "", "exists and is not a folder")
 	}
 	if force {
 		return nil
@@ -99,7 +99,7 @@ func CheckFolderWritable(dir string, force bool) error {
 	if _, err := d.Readdirnames(1); err == io.EOF {
 		return nil
 	}
-	return fmt.Errorf("%s: %w", dir, ErrFolderNotEmpty)
+	return inputerr.At(dir, 0, "", "%w", ErrFolderNotEmpty)
 }
 
 // WriteFolder renders f and writes it into dir, creating dir if needed.

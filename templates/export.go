@@ -19,7 +19,7 @@ func (s *Set) WriteDir(dir string) error {
 	for _, name := range Names() {
 		path := filepath.Join(dir, name)
 		if _, err := os.Lstat(path); err == nil {
-			return &FileError{Path: path, Msg: "already exists; choose an empty directory"}
+			return fileError(path, "already exists; choose an empty directory")
 		} else if !errors.Is(err, fs.ErrNotExist) {
 			return err
 		}

@@ -12,6 +12,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"probity/plan/inputerr"
 	"probity/sampling"
 	"probity/sampling/demolog"
 )
@@ -88,7 +89,7 @@ func runDemo(d deps, o *demoOptions) error {
 		return err
 	}
 	if err := os.Chdir(o.out); err != nil {
-		return badInput(err)
+		return inputerr.FromPath(err)
 	}
 	defer os.Chdir(back)
 	shown := func(p string) string { return filepath.Join(o.out, p) }
@@ -375,9 +376,9 @@ func prepareDemoDir(dir string, force bool) error {
 	case os.IsNotExist(err):
 		return os.MkdirAll(dir, 0o755)
 	case err != nil:
-		return badInput(err)
+		return inputerr.FromPath(err)
 	case len(entries) > 0 && !force:
-		return withHint(usageErrorf("%s is not empty", dir), "give another --out, or --force to replace an earlier demo's artifacts")
+		return inputerr.Errorf("%s is not empty", dir).WithHint("give another --out, or --force to replace an earlier demo's artifacts")
 	}
 	for _, e := range entries {
 		if err := os.RemoveAll(filepath.Join(dir, e.Name())); err != nil {

@@ -230,7 +230,7 @@ func TestProgressBadInput(t *testing.T) {
 		msg, hint string
 	}{
 		{"gap", []string{"--plan", pf.plan, "--draw", pf.draw, "--labels", gap},
-			"labels.csv line 7, column label: item 6 is labeled but item 5 above it (line 6) is not: the labels must be a prefix of the worksheet",
+			"labels.csv line 7, field label: item 6 is labeled but item 5 above it (line 6) is not: the labels must be a prefix of the worksheet",
 			"hint: label item 5 and every unlabeled item above item 6"},
 		{"missing flag", []string{"--plan", pf.plan, "--draw", pf.draw}, "probity: --labels is required", "hint: see 'probity progress --help'"},
 		{"no such plan", []string{"--plan", filepath.Join(pf.dir, "nope.yaml"), "--draw", pf.draw, "--labels", gap}, "nope.yaml: no such file", "hint: check the path"},

@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"probity/plan/inputerr"
 	"probity/plan/record/signature"
 )
 
@@ -30,21 +31,21 @@ func checkOutWritable(dir string, force bool) error {
 		return nil
 	}
 	if err != nil {
-		return usageErrorf("%s: %v", dir, err)
+		return inputerr.Errorf("%s: %v", dir, err)
 	}
 	if !st.IsDir() {
-		return withHint(usageErrorf("--out %s exists and is not a folder", dir), "name a new folder for the record")
+		return inputerr.Errorf("--out %s exists and is not a folder", dir).WithHint("name a new folder for the record")
 	}
 	if force {
 		return nil
 	}
 	f, err := os.Open(dir)
 	if err != nil {
-		return usageErrorf("%s: %v", dir, err)
+		return inputerr.Errorf("%s: %v", dir, err)
 	}
 	defer f.Close()
 	if _, err := f.Readdirnames(1); err != io.EOF {
-		return withHint(usageErrorf("--out %s is not empty", dir), "name a new folder, or pass --force to replace the record files in it")
+		return inputerr.Errorf("--out %s is not empty", dir).WithHint("name a new folder, or pass --force to replace the record files in it")
 	}
 	return nil
 }
@@ -58,7 +59,7 @@ func writeRecordFolder(dir string, files []namedFile, force bool) (err error) {
 	parent := filepath.Dir(filepath.Clean(dir))
 	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".tmp-*")
 	if err != nil {
-		return usageErrorf("cannot write into %s: %v", parent, err)
+		return inputerr.Errorf("cannot write into %s: %v", parent, err)
 	}
 	defer func() {
 		if err != nil || tmp != "" {
@@ -67,15 +68,15 @@ func writeRecordFolder(dir string, files []namedFile, force bool) (err error) {
 	}()
 	for _, f := range files {
 		if err := os.WriteFile(filepath.Join(tmp, f.name), f.data, 0o644); err != nil {
-			return usageErrorf("writing %s: %v", f.name, err)
+			return inputerr.Errorf("writing %s: %v", f.name, err)
 		}
 	}
 	if _, statErr := os.Stat(dir); errors.Is(statErr, os.ErrNotExist) {
 		if err := os.Chmod(tmp, 0o755); err != nil {
-			return usageErrorf("%s: %v", tmp, err)
+			return inputerr.Errorf("%s: %v", tmp, err)
 		}
 		if err := os.Rename(tmp, dir); err != nil {
-			return usageErrorf("cannot create %s: %v", dir, err)
+			return inputerr.Errorf("cannot create %s: %v", dir, err)
 		}
 		tmp = ""
 		return nil

@@ -9,6 +9,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"probity/plan/inputerr"
 	"sort"
 	"strings"
 )
@@ -96,7 +97,7 @@ func (s *Sig) Marshal() []byte {
 // line.
 func Parse(data []byte, name string) (*Sig, error) {
 	bad := func(line int, format string, args ...any) error {
-		return fmt.Errorf("%s line %d: %w: %s", name, line, ErrSigFile, fmt.Sprintf(format, args...))
+		return inputerr.At(name, line, "", "%w: %s", ErrSigFile, fmt.Sprintf(format, args...))
 	}
 	sc := bufio.NewScanner(bytes.NewReader(data))
 	var lines []string
@@ -104,7 +105,7 @@ func Parse(data []byte, name string) (*Sig, error) {
 		lines = append(lines, sc.Text())
 	}
 	if err := sc.Err(); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrSigFile, err)
+		return nil, inputerr.At(name, 0, "", "%w: %v", ErrSigFile, err)
 	}
 	if len(lines) == 0 || lines[0] != Header {
 		return nil, bad(1, "the first line must be %q", Header)
