@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"probity/plan/inputerr"
+	"probity/sampling/safewrite"
 	"reflect"
 	"strings"
 	"testing"
@@ -41,7 +42,7 @@ func sampleFolder() *Folder {
 func TestFolderRoundTrip(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "draw")
 	f := sampleFolder()
-	if err := WriteFolder(dir, f, false); err != nil {
+	if err := WriteFolder(dir, f, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	names, _ := filepath.Glob(filepath.Join(dir, "*"))
@@ -87,13 +88,13 @@ func TestFolderRoundTrip(t *testing.T) {
 		t.Fatal("manifest does not re-encode to the same bytes")
 	}
 	// A second write is refused without force, allowed with it.
-	err = WriteFolder(dir, sampleFolder(), false)
-	if !errors.Is(err, ErrFolderNotEmpty) {
-		t.Fatalf("second write: %v, want ErrFolderNotEmpty", err)
+	err = WriteFolder(dir, sampleFolder(), safewrite.FolderOptions{})
+	if !errors.Is(err, safewrite.ErrNotEmpty) {
+		t.Fatalf("second write: %v, want safewrite.ErrNotEmpty", err)
 	}
 	g := sampleFolder()
 	g.Second = nil
-	if err := WriteFolder(dir, g, true); err != nil {
+	if err := WriteFolder(dir, g, safewrite.FolderOptions{Replace: true}); err != nil {
 		t.Fatal(err)
 	}
 	if _, err := os.Stat(filepath.Join(dir, WorksheetSecondFile)); !errors.Is(err, os.ErrNotExist) {

@@ -14,6 +14,7 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // drawOptions are the flags of probity draw.
@@ -255,7 +256,7 @@ func drawError(err error) error {
 		return inputerr.SetHint(err, "each record id must appear once; --dedupe first keeps the first row of each id")
 	case errors.Is(err, sampling.ErrIDColumn):
 		return inputerr.SetHint(err, "name the id column with --id COLUMN")
-	case errors.Is(err, sampling.ErrFolderNotEmpty):
+	case errors.Is(err, safewrite.ErrNotEmpty) && inputerr.HintOf(err) == "":
 		return inputerr.SetHint(err, "choose a new folder, or add --force to overwrite the draw in it")
 	case errors.Is(err, sampling.ErrNotDrawable):
 		return inputerr.SetHint(err, "declare candidates with probity plan --candidate NAME=COLUMN or --thresholds COLUMN:t1,t2 --positive L --negative L")
@@ -268,7 +269,7 @@ func runDraw(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
-	if err := sampling.CheckFolderWritable(o.out, o.force); err != nil {
+	if err := safewrite.CheckFolder(o.out, o.force); err != nil {
 		return drawError(err)
 	}
 	in := sampling.DrawInput{
@@ -294,14 +295,20 @@ func runDraw(d deps, o *drawOptions) error {
 	if err != nil {
 		return drawError(err)
 	}
-	if err := sampling.WriteFolder(o.out, f, o.force); err != nil {
-		if errors.Is(err, sampling.ErrFolderNotEmpty) {
-			return drawError(err)
-		}
-		return fmt.Errorf("writing %s: %w", o.out, err)
+	if err := sampling.WriteFolder(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: o.inputs()}); err != nil {
+		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
 	return nil
+}
+
+// inputs are the files the draw reads, which its output never replaces.
+func (o *drawOptions) inputs() []string {
+	in := []string{o.planPath, o.anticipated}
+	if o.logPath != "-" {
+		in = append(in, o.logPath)
+	}
+	return in
 }
 
 // drawFromLog opens the log and draws, with a progress bar when stderr is

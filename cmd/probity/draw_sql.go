@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -12,6 +11,7 @@ import (
 
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 	"probity/sampling/sqlquery"
 )
 
@@ -207,7 +207,7 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 	if err != nil {
 		return err
 	}
-	if err := sampling.CheckFolderWritable(o.out, o.force); err != nil {
+	if err := safewrite.CheckFolder(o.out, o.force); err != nil {
 		return drawError(err)
 	}
 	res, err := sqlquery.Import(so.selected, d.stdin, p, fp)
@@ -221,11 +221,8 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 	if err != nil {
 		return drawError(err)
 	}
-	if err := sampling.WriteFolder(o.out, f, o.force); err != nil {
-		if errors.Is(err, sampling.ErrFolderNotEmpty) {
-			return drawError(err)
-		}
-		return fmt.Errorf("writing %s: %w", o.out, err)
+	if err := sampling.WriteFolder(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: []string{o.planPath, so.selected}}); err != nil {
+		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
 	fmt.Fprintf(d.stdout, "drawn inside %s from table %s (the log above is the query's result); query sha256 %s\n", res.Spec.Dialect, res.Spec.Table, res.QuerySHA256)

@@ -10,6 +10,7 @@ import (
 
 	"probity/plan/inputerr"
 	"probity/plan/record/signature"
+	"probity/sampling/safewrite"
 )
 
 // keygenOptions are the flags of probity keygen.
@@ -65,41 +66,14 @@ func runKeygen(d deps, o *keygenOptions) error {
 	if err != nil {
 		return &internalError{msg: err.Error()}
 	}
-	if err := writeNew(o.out, privPEM, 0o600); err != nil {
-		return err
+	err = safewrite.Write([]safewrite.File{{Path: o.out, Data: privPEM, Perm: 0o600}, {Path: pubPath, Data: pubPEM, Perm: 0o644}}, safewrite.Options{})
+	if errors.Is(err, safewrite.ErrExists) {
+		return inputerr.SetHint(err, "keygen never overwrites a key: choose another --out name, or remove the old key pair yourself")
 	}
-	if err := writeNew(pubPath, pubPEM, 0o644); err != nil {
-		os.Remove(o.out)
+	if err != nil {
 		return err
 	}
 	fmt.Fprintf(d.stdout, "private key: %s (mode 0600; keep it secret)\npublic key:  %s\nfingerprint: %s\n", o.out, pubPath, signature.Fingerprint(pub))
-	return nil
-}
-
-// writeNew creates path (failing if it exists) with mode perm and writes
-// data; on failure the partial file is removed.
-func writeNew(path string, data []byte, perm os.FileMode) error {
-	f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, perm)
-	if err != nil {
-		if errors.Is(err, os.ErrExist) {
-			return inputerr.Errorf("%s already exists; keygen never overwrites a key", path)
-		}
-		return inputerr.Errorf("cannot create %s: %v", path, err)
-	}
-	if _, err := f.Write(data); err != nil {
-		f.Close()
-		os.Remove(path)
-		return inputerr.Errorf("writing %s: %v", path, err)
-	}
-	if err := f.Chmod(perm); err != nil { // exact mode, whatever the umask
-		f.Close()
-		os.Remove(path)
-		return inputerr.Errorf("%s: %v", path, err)
-	}
-	if err := f.Close(); err != nil {
-		os.Remove(path)
-		return inputerr.Errorf("writing %s: %v", path, err)
-	}
 	return nil
 }
 

@@ -15,6 +15,7 @@ import (
 	"probity/plan/progress"
 	"probity/plan/sequential"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // progressFixture writes, into a temp dir, a plan for two column
@@ -76,7 +77,7 @@ func progressFixture(t *testing.T, seq bool) progressFiles {
 		Ledger:     led, Worksheet: ws,
 	}
 	draw := filepath.Join(dir, "draw")
-	if err := sampling.WriteFolder(draw, folder, false); err != nil {
+	if err := sampling.WriteFolder(draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	return progressFiles{dir: dir, plan: planPath, draw: draw, n: n, c: f.Rule.AcceptanceNumber, file: f, ledger: led, worksheet: ws}

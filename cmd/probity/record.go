@@ -236,7 +236,7 @@ func runRecord(d deps, o *recordOptions) error {
 	if err != nil {
 		return err
 	}
-	if err := writeRecordFolder(o.out, files, o.force); err != nil {
+	if err := writeRecordFolder(o.out, files, o.force, recordInputFiles(o)); err != nil {
 		return err
 	}
 	if o.json {

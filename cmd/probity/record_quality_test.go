@@ -14,6 +14,7 @@ import (
 	"probity/plan"
 	"probity/plan/record"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // lqFixture is an invented audit of a seam-inspection classifier with
@@ -76,7 +77,7 @@ func newLQFixture(t *testing.T) *lqFixture {
 		t.Fatal(err)
 	}
 	fx.draw = filepath.Join(fx.dir, "draw")
-	if err := sampling.WriteFolder(fx.draw, folder, false); err != nil {
+	if err := sampling.WriteFolder(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	fx.ledger, fx.worksheet, fx.second = folder.Ledger, folder.Worksheet, folder.Second

@@ -16,7 +16,9 @@ import (
 	chart "probity/pdfreport/trend"
 	"probity/plan/inputerr"
 	"probity/plan/record"
+	"probity/plan/record/signature"
 	"probity/plan/trend"
+	"probity/sampling/safewrite"
 )
 
 // trendOptions are the flags and arguments of probity trend.
@@ -97,11 +99,6 @@ func (o *trendOptions) validate() error {
 		if strings.HasSuffix(o.chart, string(filepath.Separator)) {
 			return inputerr.Errorf("--chart %s: give a prefix, not a folder", o.chart).WithHint("e.g. --chart " + filepath.Join(o.chart, "trend"))
 		}
-		dir := filepath.Dir(o.chart)
-		st, err := os.Stat(dir)
-		if err != nil || !st.IsDir() {
-			return inputerr.Errorf("--chart %s: folder %s does not exist", o.chart, dir).WithHint("create it first")
-		}
 	}
 	return nil
 }
@@ -146,7 +143,7 @@ func runTrend(d deps, o *trendOptions) error {
 	}
 	var files *trendChartFiles
 	if o.chart != "" {
-		files, err = writeTrendChart(t, o.chart, d)
+		files, err = writeTrendChart(t, o.chart, loaded, d)
 		if err != nil {
 			return err
 		}
@@ -179,10 +176,11 @@ func trendInputError(err error) error {
 	return err
 }
 
-// writeTrendChart renders the PNG and the PDF, writes both under temporary
-// names beside the prefix and renames them into place, so a failure leaves
-// neither behind.
-func writeTrendChart(t *trend.Trend, prefix string, d deps) (*trendChartFiles, error) {
+// writeTrendChart renders the PNG and the PDF and writes both through
+// safewrite, together: a failure leaves neither, a missing folder is
+// created, and neither may replace a file of a record (the records read,
+// or a record folder the prefix points into).
+func writeTrendChart(t *trend.Trend, prefix string, loaded *trend.Loaded, d deps) (*trendChartFiles, error) {
 	w, h := chart.ChartSize(t)
 	pngData, err := chart.PNG(t, w, h, trendChartDPI)
 	if err != nil {
@@ -197,48 +195,37 @@ func writeTrendChart(t *trend.Trend, prefix string, d deps) (*trendChartFiles, e
 		return nil, inputerr.SetHint(err, "the PNG chart has no size limit; make the PDF from fewer records")
 	}
 	files := &trendChartFiles{PNG: prefix + ".png", PDF: prefix + ".pdf"}
-	if err := writeTrendFiles([]string{files.PNG, files.PDF}, [][]byte{pngData, pdfData}); err != nil {
+	err = safewrite.Write([]safewrite.File{{Path: files.PNG, Data: pngData}, {Path: files.PDF, Data: pdfData}},
+		safewrite.Options{Replace: true, Protected: trendProtected(loaded, filepath.Dir(prefix))})
+	if errors.Is(err, safewrite.ErrProtected) {
+		return nil, inputerr.SetHint(err, "--chart names a record's own file; give a prefix outside the record folders, e.g. --chart audits/trend")
+	}
+	if err != nil {
 		return nil, err
 	}
 	return files, nil
 }
 
-// writeTrendFiles writes each data to a temporary file beside its
-// path, then renames them all; on any failure it removes what it wrote.
-func writeTrendFiles(paths []string, data [][]byte) error {
-	var tmps []string
-	cleanup := func() {
-		for _, t := range tmps {
-			os.Remove(t)
+// trendProtected are the files a chart must never replace: every record
+// read, the record.pdf and record.sig beside each record.json, and the
+// files of a record folder the chart's folder is.
+func trendProtected(loaded *trend.Loaded, chartDir string) []string {
+	var out []string
+	recordFolder := func(dir string) {
+		for _, name := range []string{recordJSON, recordPDF, signature.FileName} {
+			out = append(out, filepath.Join(dir, name))
 		}
 	}
-	for i, p := range paths {
-		f, err := os.CreateTemp(filepath.Dir(p), "."+filepath.Base(p)+".*.tmp")
-		if err != nil {
-			cleanup()
-			return inputerr.Errorf("cannot write %s: %v", p, err)
-		}
-		tmps = append(tmps, f.Name())
-		if _, err := f.Write(data[i]); err != nil {
-			f.Close()
-			cleanup()
-			return inputerr.Errorf("cannot write %s: %v", p, err)
-		}
-		if err := f.Close(); err != nil {
-			cleanup()
-			return inputerr.Errorf("cannot write %s: %v", p, err)
+	for _, e := range loaded.Entries {
+		out = append(out, e.Path)
+		if filepath.Base(e.Path) == recordJSON {
+			recordFolder(filepath.Dir(e.Path))
 		}
 	}
-	for i, p := range paths {
-		if err := os.Rename(tmps[i], p); err != nil {
-			for _, done := range paths[:i] {
-				os.Remove(done)
-			}
-			cleanup()
-			return inputerr.Errorf("cannot write %s: %v", p, err)
-		}
+	if _, err := os.Stat(filepath.Join(chartDir, recordJSON)); err == nil {
+		recordFolder(chartDir)
 	}
-	return nil
+	return out
 }
 
 // trendShortList joins up to n items, then "and k more".

@@ -3,6 +3,7 @@ package safewrite
 import (
 	"errors"
 	"os"
+	"path/filepath"
 	"sync"
 )
 
@@ -21,19 +22,30 @@ var pending = struct {
 	paths   []string
 }{}
 
-// track adds path to the registry; the caller holds the lock.
+// track adds path to the registry; the caller holds the lock. Paths are
+// kept absolute, so Abort finds them whatever the working folder is by
+// then.
 func track(path string) {
-	pending.paths = append(pending.paths, path)
+	pending.paths = append(pending.paths, absolute(path))
 }
 
 // untrack drops path from the registry; the caller holds the lock.
 func untrack(path string) {
+	path = absolute(path)
 	for i := len(pending.paths) - 1; i >= 0; i-- {
 		if pending.paths[i] == path {
 			pending.paths = append(pending.paths[:i], pending.paths[i+1:]...)
 			return
 		}
 	}
+}
+
+// absolute is path made absolute (as it is, if that fails).
+func absolute(path string) string {
+	if a, err := filepath.Abs(path); err == nil {
+		return a
+	}
+	return path
 }
 
 // locked runs f under the registry's lock, unless Abort has run.

@@ -64,7 +64,13 @@ type Options struct {
 	// Protected are the files the command reads: none of them is written
 	// over, with or without Replace.
 	Protected []string
+	// InExistingFolder refuses a target whose folder does not exist,
+	// instead of creating it with its missing parents.
+	InExistingFolder bool
 }
+
+// ErrNoFolder: the target's folder does not exist (InExistingFolder).
+var ErrNoFolder = errors.New("folder does not exist")
 
 // File is one file to write.
 type File struct {
@@ -103,6 +109,11 @@ func Write(files []File, o Options) (err error) {
 	}()
 	for _, f := range files {
 		dir := filepath.Dir(f.Path)
+		if o.InExistingFolder {
+			if st, err := os.Stat(dir); err != nil || !st.IsDir() {
+				return inputerr.At(f.Path, 0, "", "%w: %s", ErrNoFolder, dir)
+			}
+		}
 		if err := w.mkdirAll(dir); err != nil {
 			return err
 		}
