@@ -94,6 +94,7 @@ func WriteFolder(dir string, files []File, o FolderOptions) (err error) {
 		}
 		temps = append(temps, tmp)
 	}
+	beforePlace()
 	return locked(func() error {
 		for i, f := range files {
 			if err := place(temps[i], filepath.Join(dir, f.Path), true); err != nil {
@@ -152,6 +153,7 @@ func writeNewFolder(dir string, files []File) (err error) {
 	if err := syncDir(tmp); err != nil {
 		return writeError(dir, err)
 	}
+	beforePlace()
 	return locked(func() error {
 		if err := os.Rename(tmp, dir); err != nil {
 			if st, serr := os.Lstat(dir); serr == nil && st.IsDir() {

@@ -89,3 +89,22 @@ func Claim(dir string) (release func(), err error) {
 		pending.Unlock()
 	}, nil
 }
+
+// pauseBeforePlace, when set, runs once every temporary of a write is on
+// disk and before any of them is moved into place (see
+// SetPauseBeforePlace).
+var pauseBeforePlace func()
+
+// SetPauseBeforePlace installs f (nil: none) to run in every write between
+// its temporaries being on disk and their being moved into place. It is
+// for tests of the commands, which stop a process there with a signal or
+// kill it, to show what an interruption leaves behind; probity itself
+// never sets it.
+func SetPauseBeforePlace(f func()) { pauseBeforePlace = f }
+
+// beforePlace runs the pause, if any.
+func beforePlace() {
+	if pauseBeforePlace != nil {
+		pauseBeforePlace()
+	}
+}

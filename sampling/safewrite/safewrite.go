@@ -129,6 +129,7 @@ func Write(files []File, o Options) (err error) {
 		}
 		temps = append(temps, tmp)
 	}
+	beforePlace()
 	return locked(func() error {
 		var placed []string
 		for i, f := range files {
