@@ -19,6 +19,10 @@ func run(args []string, d deps) (code int) {
 		}
 	}()
 	root := newRootCommand(d)
+	// An unknown command is cobra's to find and the user's to fix.
+	if _, _, err := root.Find(args); err != nil {
+		return reportError(d.stderr, inputerr.Errorf("%w", err).WithHint("see 'probity --help' for the commands"))
+	}
 	root.SetArgs(args)
 	err := root.Execute()
 	return reportError(d.stderr, err)
@@ -38,15 +42,6 @@ signed acceptance record.
 		Version:       d.version,
 		SilenceErrors: true,
 		SilenceUsage:  true,
-		// Args and RunE make an unknown command an input error (exit 2)
-		// and a bare "probity" print the help.
-		Args: func(c *cobra.Command, args []string) error {
-			if len(args) > 0 {
-				return inputerr.Errorf("unknown command %q for %q", args[0], c.CommandPath()).WithHint("see 'probity --help' for the commands")
-			}
-			return nil
-		},
-		RunE: func(c *cobra.Command, args []string) error { return c.Help() },
 	}
 	root.SetOut(d.stdout)
 	root.SetErr(d.stderr)

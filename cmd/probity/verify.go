@@ -202,7 +202,7 @@ func verifySignatures(c *checkList, o *verifyOptions, rec *record.Record, js []b
 			continue
 		}
 		if err := sig.Verify(f.name, f.data); err != nil {
-			c.fail("%s (in %s)", strings.TrimPrefix(err.Error(), signature.ErrMismatch.Error()+": "), o.dir)
+			c.fail("%s (in %s)", err, o.dir)
 		} else {
 			c.ok("%s: signature valid", filepath.Join(o.dir, f.name))
 		}
