@@ -195,8 +195,8 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 			hint   string
 			result string
 		}{
-			{"another plan", []string{"--plan", sqlOtherPlan}, "column detail: the result was made for another plan", "import it with the plan the query was printed from", result},
-			{"key does not match its id", nil, "column key: the key of record", "the result was edited",
+			{"another plan", []string{"--plan", sqlOtherPlan}, "field detail: the result was made for another plan", "import it with the plan the query was printed from", result},
+			{"key does not match its id", nil, "field key: the key of record", "the result was edited",
 				tamper(func(l []string) []string {
 					f := strings.Split(l[itemLine], ",")
 					f[1] = f[1] + "x"
@@ -211,7 +211,7 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 					}
 					return append(l[:last], l[last+1:]...)
 				})},
-			{"allocation edited", nil, "column stratum_sample: stratum", "",
+			{"allocation edited", nil, "field stratum_sample: stratum", "",
 				tamper(func(l []string) []string {
 					for i, s := range l {
 						if strings.HasPrefix(s, "stratum,") {
@@ -223,7 +223,7 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 					}
 					return l
 				})},
-			{"not a result", nil, "line 1: the header is not that of a probity draw query", "save the result of the query printed by probity draw --sql", export},
+			{"not a result", nil, "line 1: the header is not that of a probity draw query", "save the result of the drawing query probity printed", export},
 			{"a flag that differs", []string{"--strata", "region"}, `--strata "region" differs from the draw the result was made for ("region,channel")`, "the result carries the draw's settings", result},
 		}
 		for _, c := range cases {
