@@ -1,10 +1,11 @@
+//go:build unix
+
 package main
 
 import (
 	"bytes"
 	"errors"
 	"flag"
-	"io/fs"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -90,20 +91,6 @@ func (h *helperProcess) stop(t *testing.T, sig os.Signal) int {
 	}
 	t.Fatal(err)
 	return 0
-}
-
-// tree lists every path under root, relative to it.
-func tree(t *testing.T, root string) []string {
-	t.Helper()
-	var out []string
-	filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
-		if err == nil && p != root {
-			rel, _ := filepath.Rel(root, p)
-			out = append(out, rel)
-		}
-		return nil
-	})
-	return out
 }
 
 // interruptInputs writes a small log for the draws below, in a folder of
