@@ -25,7 +25,7 @@ const (
 const DefaultProducerRisk = 0.10
 
 // Validate checks every input against its allowed range and returns an
-// *InputError naming the first one out of range.
+// *inputerr.Error naming the first one out of range.
 func (in Inputs) Validate() error {
 	open01 := func(field string, v float64) error {
 		if !(v > 0 && v < 1) {

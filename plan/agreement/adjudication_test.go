@@ -86,7 +86,7 @@ func FuzzParseAdjudications(f *testing.F) {
 		if err != nil {
 			var ie *inputerr.Error
 			if !errors.As(err, &ie) || ie.File != "fuzz.csv" {
-				t.Fatalf("error %v is not an InputError naming the file", err)
+				t.Fatalf("error %v is not an input error naming the file", err)
 			}
 			return
 		}
