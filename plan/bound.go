@@ -41,7 +41,7 @@ var boundSpelling = spelling[Bound]{field: "bound", names: []string{"",
 	"sequential boundaries (stage-wise exact bound)", "sequential boundaries (bound descriptive)"}}
 
 // ParseBound returns the bound named s as record.json writes it, or an
-// *InputError on the field "bound".
+// input error (inputerr.Error) on the field "bound".
 func ParseBound(s string) (Bound, error) { return boundSpelling.parse(s) }
 
 // String is the name as written in record.json ("" when unset).

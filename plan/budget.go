@@ -20,16 +20,16 @@ type BudgetRow struct {
 // bound, in whole errors). Rows stop at x = n − 1.
 func Budget(n int, confidence float64, candidates int, multiplicity Multiplicity, population int64, rows int) ([]BudgetRow, error) {
 	if n < 1 || n > MaxSampleSize {
-		return nil, &InputError{Field: "budget", Value: strconv.Itoa(n), Allowed: "between 1 and 100000000"}
+		return nil, outOfRange("budget", strconv.Itoa(n), "between 1 and 100000000")
 	}
 	if !(confidence > 0 && confidence < 1) {
-		return nil, &InputError{Field: "confidence", Value: fmtNum(confidence), Allowed: "between 0 and 1 (exclusive)"}
+		return nil, outOfRange("confidence", fmtNum(confidence), "between 0 and 1 (exclusive)")
 	}
 	if candidates < 1 {
-		return nil, &InputError{Field: "candidates", Value: strconv.Itoa(candidates), Allowed: "at least 1"}
+		return nil, outOfRange("candidates", strconv.Itoa(candidates), "at least 1")
 	}
 	if population < 0 || (population > 0 && int64(n) > population) {
-		return nil, &InputError{Field: "population", Value: strconv.FormatInt(population, 10), Allowed: "at least the budget " + strconv.Itoa(n)}
+		return nil, outOfRange("population", strconv.FormatInt(population, 10), "at least the budget "+strconv.Itoa(n))
 	}
 	alpha := multiplicity.PerCandidateRisk(1-confidence, candidates)
 	var out []BudgetRow

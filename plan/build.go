@@ -2,6 +2,7 @@ package plan
 
 import (
 	"fmt"
+	"probity/plan/inputerr"
 	"strconv"
 	"time"
 )
@@ -29,8 +30,7 @@ type Meta struct {
 // file with its metadata. The result passes the same checks Parse applies.
 func Build(in Inputs, m Meta) (*File, error) {
 	if len(m.Candidates) > 0 && in.CandidateCount != len(m.Candidates) {
-		return nil, &InputError{Field: "candidates", Value: strconv.Itoa(in.CandidateCount),
-			Allowed: fmt.Sprintf("%d, the number of candidates declared (or omitted)", len(m.Candidates))}
+		return nil, outOfRange("candidates", strconv.Itoa(in.CandidateCount), fmt.Sprintf("%d, the number of candidates declared (or omitted)", len(m.Candidates)))
 	}
 	rule, cmp, err := Size(in)
 	if err != nil {
@@ -50,7 +50,7 @@ func Build(in Inputs, m Meta) (*File, error) {
 		Candidates:    m.Candidates,
 	}
 	if err := f.validate(); err != nil {
-		return nil, err
+		return nil, inputerr.Errorf("%w", err)
 	}
 	return f, nil
 }

@@ -19,7 +19,7 @@ const (
 var designSpelling = spelling[Design]{field: "design", names: []string{"", "fixed", "sequential"}}
 
 // ParseDesign returns the design named s ("fixed" or "sequential"), or an
-// *InputError on the field "design".
+// input error (inputerr.Error) on the field "design".
 func ParseDesign(s string) (Design, error) { return designSpelling.parse(s) }
 
 // String is the name as written in plan.yaml ("" when unset).

@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"probity/plan/inputerr"
 	"time"
 
 	"gopkg.in/yaml.v3"
@@ -171,26 +172,33 @@ func (f *File) Marshal() ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
-// Parse decodes a plan file. name is used in error messages. Unknown keys
+// Parse decodes a plan file. name is used in error messages, which are
+// *inputerr.Error wrapping ErrPlanFile. Unknown keys
 // are refused, so a typo in a hand-edited plan is not silently ignored.
 func Parse(data []byte, name string) (*File, error) {
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	dec.KnownFields(true)
 	var f File
 	if err := dec.Decode(&f); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrPlanFile, fileKeyError(err))
+		return nil, planFileError(name, fileKeyError(err))
 	}
 	if err := f.validate(); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrPlanFile, err)
+		return nil, planFileError(name, err)
 	}
 	return &f, nil
+}
+
+// planFileError is the input error about a plan file's content: it names
+// the file and wraps ErrPlanFile.
+func planFileError(name string, err error) error {
+	return inputerr.At(name, 0, "", "%w: %v", ErrPlanFile, err).WithHint("use the plan file written by probity plan, unedited")
 }
 
 // Load reads and parses a plan file and returns it with its fingerprint.
 func Load(path string) (*File, string, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, "", err
+		return nil, "", inputerr.FromPath(err)
 	}
 	f, err := Parse(data, path)
 	if err != nil {
@@ -263,18 +271,18 @@ func (f *File) validate() error {
 	return nil
 }
 
-// fileKeyError rephrases a setting refused while decoding (an *InputError
-// from UnmarshalText) with its key in the file: `inputs.method "exakt" is
-// not one of exact, hoeffding, kl`. A setting left empty decodes as unset
-// and is left to the reader's default.
+// fileKeyError rephrases a setting refused while decoding (an input error
+// from UnmarshalText) with its key in the file: `inputs.method "exakt":
+// must be one of exact, hoeffding, kl`. A setting left empty decodes as
+// unset and is left to the reader's default.
 func fileKeyError(err error) error {
-	var ie *InputError
-	if !errors.As(err, &ie) {
+	ie, ok := inputerr.As(err)
+	if !ok || ie.Field == "" {
 		return err
 	}
 	section := "inputs"
 	if ie.Field == modelSpelling.field {
 		section = "rule"
 	}
-	return fmt.Errorf("%s.%s %s is not %s", section, ie.Field, ie.Value, ie.Allowed)
+	return fmt.Errorf("%s.%s %s", section, ie.Field, ie.Msg)
 }

@@ -77,9 +77,9 @@ func TestParseRefusesBadPlans(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, tc := range []struct{ old, new, want string }{
-		{"method: exact", "method: exakt", `inputs.method "exakt" is not one of`},
-		{"multiplicity: bonferroni", "multiplicity: sidak", `inputs.multiplicity "sidak" is not one of bonferroni, holm, fixed-sequence`},
-		{"model: hypergeometric", "model: poisson", `rule.model "poisson" is not one of binomial, hypergeometric, hoeffding, kl`},
+		{"method: exact", "method: exakt", `inputs.method "exakt": must be one of`},
+		{"multiplicity: bonferroni", "multiplicity: sidak", `inputs.multiplicity "sidak": must be one of bonferroni, holm, fixed-sequence`},
+		{"model: hypergeometric", "model: poisson", `rule.model "poisson": must be one of binomial, hypergeometric, hoeffding, kl`},
 		{"ceiling: 0.02", "ceiling: 2", "inputs.ceiling 2 is outside (0, 1)"},
 		{"seed: 00112233445566778899aabbccddeeff", "seed: \"\"", "seed is empty"},
 		{"format: 1", "format: 9", "format 9 is not supported"},

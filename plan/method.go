@@ -25,7 +25,7 @@ var methodSpelling = spelling[Method]{field: "method", names: []string{"", "exac
 func Methods() []Method { return methodSpelling.values() }
 
 // ParseMethod returns the rule named s ("exact", "hoeffding" or "kl"), or
-// an *InputError on the field "method".
+// an input error (inputerr.Error) on the field "method".
 func ParseMethod(s string) (Method, error) { return methodSpelling.parse(s) }
 
 // String is the name as written in plan.yaml ("" when unset).

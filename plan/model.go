@@ -25,7 +25,7 @@ const (
 var modelSpelling = spelling[Model]{field: "model",
 	names: []string{"", "binomial", "hypergeometric", "hoeffding", "kl"}}
 
-// ParseModel returns the model named s, or an *InputError on the field
+// ParseModel returns the model named s, or an input error (inputerr.Error) on the field
 // "model".
 func ParseModel(s string) (Model, error) { return modelSpelling.parse(s) }
 

@@ -31,7 +31,7 @@ var multiplicitySpelling = spelling[Multiplicity]{field: "multiplicity",
 func Multiplicities() []Multiplicity { return multiplicitySpelling.values() }
 
 // ParseMultiplicity returns the adjustment named s ("bonferroni", "holm" or
-// "fixed-sequence"), or an *InputError on the field "multiplicity".
+// "fixed-sequence"), or an input error (inputerr.Error) on the field "multiplicity".
 func ParseMultiplicity(s string) (Multiplicity, error) { return multiplicitySpelling.parse(s) }
 
 // String is the name as written in plan.yaml ("" when unset).

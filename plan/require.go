@@ -20,7 +20,7 @@ const (
 var requireSpelling = spelling[Require]{field: "require", names: []string{"", "all", "any"}}
 
 // ParseRequire returns the requirement named s ("all" or "any"), or an
-// *InputError on the field "require".
+// input error (inputerr.Error) on the field "require".
 func ParseRequire(s string) (Require, error) { return requireSpelling.parse(s) }
 
 // String is the name as written in plan.yaml ("" when unset).

@@ -48,7 +48,7 @@ func (s spelling[T]) allowed() string {
 }
 
 // parse returns the value named text (exactly, case included). An unknown
-// or empty name is an *InputError on the setting's field.
+// or empty name is an input error (inputerr.Error) on the setting's field.
 func (s spelling[T]) parse(text string) (T, error) {
 	for i, n := range s.names {
 		if i > 0 && n == text {
@@ -58,9 +58,9 @@ func (s spelling[T]) parse(text string) (T, error) {
 	return 0, s.invalid(text)
 }
 
-// invalid is the *InputError for a value that is not one of the names.
+// invalid is the input error for a value that is not one of the names.
 func (s spelling[T]) invalid(text string) error {
-	return &InputError{Field: s.field, Value: strconv.Quote(text), Allowed: s.allowed()}
+	return outOfRange(s.field, strconv.Quote(text), s.allowed())
 }
 
 // marshal is v's name as text; unset is the empty string and a value

@@ -3,12 +3,13 @@ package plan
 import (
 	"encoding"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"strings"
 	"testing"
 
 	"gopkg.in/yaml.v3"
+
+	"probity/plan/inputerr"
 )
 
 // settingCase is one setting type: its values in order, their names in
@@ -71,7 +72,7 @@ func settingCases() []settingCase {
 
 // TestSettingSpelling: every value's name is the spelling the files have
 // always used (common practice, no source: the file format), parsing
-// reads it back, and anything else is refused with an *InputError naming
+// reads it back, and anything else is refused with an input error naming
 // the field.
 func TestSettingSpelling(t *testing.T) {
 	for _, sc := range settingCases() {
@@ -90,8 +91,8 @@ func TestSettingSpelling(t *testing.T) {
 		}
 		for _, bad := range []string{"", "x", strings.ToUpper(sc.names[0]), " " + sc.names[0]} {
 			_, err := sc.parse(bad)
-			var ie *InputError
-			if !errors.As(err, &ie) || ie.Field != sc.field || ie.Allowed != sc.allowed || ie.Value != fmt.Sprintf("%q", bad) {
+			ie, ok := inputerr.As(err)
+			if !ok || ie.Field != sc.field || ie.Msg != fmt.Sprintf("%q: must be %s", bad, sc.allowed) {
 				t.Errorf("parse %s %q: error %v, want an InputError on %s allowing %s", sc.field, bad, err, sc.field, sc.allowed)
 			}
 		}

@@ -8,11 +8,11 @@ import (
 const DefaultProducerRisk = 0.10
 
 // Validate checks every input against its allowed range and returns an
-// *InputError naming the first one out of range.
+// *inputerr.Error naming the first one out of range.
 func (in Inputs) Validate() error {
 	open01 := func(field string, v float64) error {
 		if !(v > 0 && v < 1) {
-			return &InputError{Field: field, Value: fmtNum(v), Allowed: "between 0 and 1 (exclusive)"}
+			return outOfRange(field, fmtNum(v), "between 0 and 1 (exclusive)")
 		}
 		return nil
 	}
@@ -23,16 +23,16 @@ func (in Inputs) Validate() error {
 		return err
 	}
 	if in.CandidateCount < 1 {
-		return &InputError{Field: "candidates", Value: strconv.Itoa(in.CandidateCount), Allowed: "at least 1"}
+		return outOfRange("candidates", strconv.Itoa(in.CandidateCount), "at least 1")
 	}
 	if p0 := in.Anticipated; p0 != nil && !(*p0 >= 0 && *p0 < in.Ceiling) {
-		return &InputError{Field: "anticipated", Value: fmtNum(*p0), Allowed: "at least 0 and below the ceiling " + fmtNum(in.Ceiling)}
+		return outOfRange("anticipated", fmtNum(*p0), "at least 0 and below the ceiling "+fmtNum(in.Ceiling))
 	}
 	if err := open01("producer-risk", in.ProducerRisk); err != nil {
 		return err
 	}
 	if in.Population < 0 {
-		return &InputError{Field: "population", Value: strconv.FormatInt(in.Population, 10), Allowed: "at least 1 (or omitted for an unbounded stream)"}
+		return outOfRange("population", strconv.FormatInt(in.Population, 10), "at least 1 (or omitted for an unbounded stream)")
 	}
 	if !methodSpelling.known(in.Method) {
 		return methodSpelling.invalid(in.Method.String())
@@ -71,7 +71,7 @@ func Size(in Inputs) (Rule, []RuleSize, error) {
 		return Rule{}, nil, s.tooLarge(res)
 	}
 	if in.Population > 0 && int64(res.n) >= in.Population {
-		return Rule{}, nil, &TooLargeError{Limit: res.n, Population: in.Population, Relax: s.relax(true)}
+		return Rule{}, nil, tooLargeError(&TooLargeError{Limit: res.n, Population: in.Population, Relax: s.relax(true)})
 	}
 	rule := s.rule(res)
 	var cmp []RuleSize
@@ -180,7 +180,7 @@ func (s sizer) tooLarge(res searchResult) error {
 	if s.in.Population > 0 && s.in.Population <= MaxSampleSize {
 		e.Population = s.in.Population
 	}
-	return e
+	return tooLargeError(e)
 }
 
 // relax names the inputs that shrink the plan: the consumer's side when even

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"probity/plan/inputerr"
 	"testing"
 )
 
@@ -148,9 +149,9 @@ func TestValidateAndLimits(t *testing.T) {
 		in := inputs(0.02, 0.95)
 		tc.edit(&in)
 		_, _, err := Size(in)
-		var ie *InputError
+		var ie *inputerr.Error
 		if !errors.As(err, &ie) || ie.Field != tc.field {
-			t.Errorf("%s: error %v, want an InputError on %s", tc.field, err, tc.field)
+			t.Errorf("%s: error %v, want an input error on %s", tc.field, err, tc.field)
 		}
 	}
 	// more than 10^8 labels: which input to relax.

@@ -5,61 +5,27 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"io/fs"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
 
 	"probity/plan"
+	"probity/plan/inputerr"
+	"probity/sampling/safewrite"
 )
 
-// writePlanFile writes data to path through a temporary file in the same
-// folder, so a reader never sees half a plan. Without force an existing
-// file is refused, atomically (link, not rename).
+// writePlanFile writes data to path through safewrite, so a reader never
+// sees half a plan. Without force an existing file is refused; with it,
+// only a regular file is replaced. The folder must exist.
 func writePlanFile(path string, data []byte, force bool) error {
-	if !force {
-		if _, err := os.Lstat(path); err == nil {
-			return withHint(usageErrorf("--out %s already exists", path), "add --force to replace it, or choose another name")
-		}
+	err := safewrite.WriteFile(path, data, 0, safewrite.Options{Replace: force, InExistingFolder: true})
+	switch {
+	case errors.Is(err, safewrite.ErrExists):
+		return inputerr.Errorf("--out %s already exists", path).WithHint("add --force to replace it, or choose another name").Wrap(err)
+	case errors.Is(err, safewrite.ErrNoFolder):
+		return inputerr.Errorf("--out %s: folder %s does not exist", path, filepath.Dir(path)).Wrap(err)
 	}
-	dir := filepath.Dir(path)
-	tmp, err := os.CreateTemp(dir, ".plan-*.tmp")
-	if err != nil {
-		if errors.Is(err, fs.ErrNotExist) {
-			return usageErrorf("--out %s: folder %s does not exist", path, dir)
-		}
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	name := tmp.Name()
-	defer os.Remove(name) // a no-op once linked or renamed away
-	if _, err := tmp.Write(data); err != nil {
-		tmp.Close()
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	if err := tmp.Sync(); err != nil {
-		tmp.Close()
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	if err := tmp.Close(); err != nil {
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	if err := os.Chmod(name, 0o644); err != nil {
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	if force {
-		if err := os.Rename(name, path); err != nil {
-			return usageErrorf("--out %s: %v", path, err)
-		}
-		return nil
-	}
-	if err := os.Link(name, path); err != nil {
-		if errors.Is(err, fs.ErrExist) {
-			return withHint(usageErrorf("--out %s already exists", path), "add --force to replace it, or choose another name")
-		}
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	return nil
+	return err
 }
 
 // planJSON is the object `probity plan --json` prints; field order is the

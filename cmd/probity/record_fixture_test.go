@@ -13,6 +13,7 @@ import (
 	"probity/plan"
 	"probity/plan/sequential"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // recFixture is an invented audit, made in code with the same package
@@ -110,7 +111,7 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 		t.Fatal(err)
 	}
 	fx.draw = filepath.Join(fx.dir, "draw")
-	if err := sampling.WriteFolder(fx.draw, folder, false); err != nil {
+	if err := sampling.WriteFolder(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	fx.ledger, fx.worksheet = folder.Ledger, folder.Worksheet

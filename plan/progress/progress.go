@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/sequential"
 	"probity/sampling"
 )
@@ -73,11 +74,11 @@ type Result struct {
 }
 
 // Assess reads the labeled prefix and judges every candidate. Errors about
-// the worksheet are *sampling.InputError naming the file, line and column.
+// the worksheet are *inputerr.Error naming the file, line and column.
 func Assess(in Input) (*Result, error) {
 	p := in.Plan
 	if p == nil || p.IsSizingOnly() {
-		return nil, fmt.Errorf("the plan declares no candidates, so there is nothing to judge")
+		return nil, inputerr.Errorf("the plan declares no candidates, so there is nothing to judge").WithHint("use the plan the sample was drawn from")
 	}
 	rules, res, err := rulesFor(p)
 	if err != nil {

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/sequential"
 	"probity/sampling"
 )
@@ -91,12 +92,12 @@ func TestFixedCurtailment(t *testing.T) {
 func TestGapBreaksPrefixRule(t *testing.T) {
 	in := fixture(20, 2, 0, []string{"A"}, labelsOf("ooo_oo"))
 	_, err := Assess(in)
-	var ie *sampling.InputError
+	var ie *inputerr.Error
 	if !errors.As(err, &ie) {
-		t.Fatalf("err = %v, want *sampling.InputError", err)
+		t.Fatalf("err = %v, want *inputerr.Error", err)
 	}
-	if ie.Line != 6 || ie.Column != "label" || !strings.Contains(ie.Msg, "item 5 is labeled but item 4 above it (line 5) is not") || !strings.Contains(ie.Msg, "prefix") {
-		t.Errorf("error = %q (line %d, column %s)", ie.Error(), ie.Line, ie.Column)
+	if ie.Line != 6 || ie.Field != "label" || !strings.Contains(ie.Msg, "item 5 is labeled but item 4 above it (line 5) is not") || !strings.Contains(ie.Msg, "prefix") {
+		t.Errorf("error = %q (line %d, column %s)", ie.Error(), ie.Line, ie.Field)
 	}
 	if !strings.Contains(ie.Hint, "label item 4") {
 		t.Errorf("hint = %q", ie.Hint)
@@ -111,7 +112,7 @@ func TestBadWorksheets(t *testing.T) {
 	}
 	in = fixture(10, 1, 0, []string{"A"}, labelsOf("oo"))
 	in.Worksheet[3].RecordID = "other"
-	if _, err := Assess(in); err == nil || !strings.Contains(err.Error(), `labels.csv line 5, column record_id: item 4 is "other"`) {
+	if _, err := Assess(in); err == nil || !strings.Contains(err.Error(), `labels.csv line 5, field record_id: item 4 is "other"`) {
 		t.Errorf("altered id: %v", err)
 	}
 	in = fixture(10, 1, 0, []string{"A"}, labelsOf("oo"))

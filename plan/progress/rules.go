@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/sequential"
 )
 
@@ -37,7 +38,7 @@ func rulesFor(p *plan.File) ([]candRules, *Result, error) {
 		res.Design = plan.DesignSequential
 		r, err := sequential.NewRule(p.Sequential)
 		if err != nil {
-			return nil, nil, fmt.Errorf("the plan's sequential rule is not valid: %w", err)
+			return nil, nil, inputerr.Errorf("the plan's sequential rule is not valid: %w", err)
 		}
 		res.SampleSize = r.MaxSampleSize()
 		out = candRules{accept: r, reject: r,
@@ -91,7 +92,7 @@ func rulesFor(p *plan.File) ([]candRules, *Result, error) {
 func curtailedRule(n, c int) (*sequential.Rule, error) {
 	rr, err := sequential.Curtailed(n, c)
 	if err != nil {
-		return nil, fmt.Errorf("the plan's rule n = %d, c = %d is not valid: %w", n, c, err)
+		return nil, inputerr.Errorf("the plan's rule n = %d, c = %d is not valid: %w", n, c, err)
 	}
 	return sequential.NewRule(rr)
 }

@@ -7,6 +7,7 @@ import (
 	"strconv"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 )
 
@@ -68,7 +69,7 @@ type judgeMethod struct {
 func Judge(in Input) (*Result, error) {
 	p := in.Plan
 	if p == nil || p.IsSizingOnly() {
-		return nil, fmt.Errorf("%w: the plan declares no candidates", ErrInput)
+		return nil, inputerr.Errorf("%w: the plan declares no candidates", ErrInput)
 	}
 	if p.Sequential != nil || p.Inputs.Design == plan.DesignSequential {
 		return nil, ErrSequential
@@ -79,21 +80,21 @@ func Judge(in Input) (*Result, error) {
 	counts := make([]int, len(in.Design.Strata))
 	for i, it := range in.Items {
 		if it.Stratum < 0 || it.Stratum >= len(counts) {
-			return nil, fmt.Errorf("%w: item %d (%s) has no stratum", ErrInput, i+1, it.RecordID)
+			return nil, inputerr.Errorf("%w: item %d (%s) has no stratum", ErrInput, i+1, it.RecordID)
 		}
 		if len(it.Predictions) != len(p.Candidates) {
-			return nil, fmt.Errorf("%w: item %d (%s) has %d predictions for %d candidates", ErrInput, i+1, it.RecordID, len(it.Predictions), len(p.Candidates))
+			return nil, inputerr.Errorf("%w: item %d (%s) has %d predictions for %d candidates", ErrInput, i+1, it.RecordID, len(it.Predictions), len(p.Candidates))
 		}
 		counts[it.Stratum]++
 	}
 	for h, s := range in.Design.Strata {
 		if counts[h] != s.Sample {
-			return nil, fmt.Errorf("%w: stratum %q has %d items but n_h = %d", ErrInput, s.Label, counts[h], s.Sample)
+			return nil, inputerr.Errorf("%w: stratum %q has %d items but n_h = %d", ErrInput, s.Label, counts[h], s.Sample)
 		}
 	}
 	unequal := in.UnequalBound
 	if unequal != KornGraubard && unequal != WeightedHoeffding {
-		return nil, fmt.Errorf("%w: bound %q is not %s or %s", ErrInput, unequal, KornGraubard, WeightedHoeffding)
+		return nil, inputerr.Errorf("%w: bound %q is not %s or %s", ErrInput, unequal, KornGraubard, WeightedHoeffding)
 	}
 
 	res := &Result{SelfWeighting: in.Design.SelfWeighting()}
@@ -111,7 +112,7 @@ func Judge(in Input) (*Result, error) {
 	}
 	level := p.Rule.PerCandidateRisk
 	if !(level > 0 && level < 1) {
-		return nil, fmt.Errorf("%w: rule.per_candidate_risk %v is outside (0, 1)", ErrInput, level)
+		return nil, inputerr.Errorf("%w: rule.per_candidate_risk %v is outside (0, 1)", ErrInput, level)
 	}
 	if !m.ruleApplies && res.SelfWeighting && n != p.Rule.SampleSize {
 		res.Notes = append(res.Notes, fmt.Sprintf("%d items were judged where the plan asks for n = %d; the verdict follows the p-value, not the plan's c", n, p.Rule.SampleSize))
@@ -129,7 +130,7 @@ func Judge(in Input) (*Result, error) {
 	delta := 1 - p.Inputs.Confidence
 	decisions, err := Decide(p.Inputs.Multiplicity, tests, delta)
 	if err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrInput, err)
+		return nil, inputerr.Errorf("%w: %v", ErrInput, err)
 	}
 	firstFail := ""
 	for ci := range res.Candidates {
@@ -188,7 +189,7 @@ func chooseMethod(p *plan.File, selfWeighting bool, n int, lot int64, unequal Un
 	case plan.ModelKL:
 		return judgeMethod{bound: plan.BoundChernoff, ruleApplies: sameN}, nil
 	}
-	return judgeMethod{}, fmt.Errorf("%w: rule.model %q is not binomial, hypergeometric, hoeffding or kl", ErrInput, p.Rule.Model)
+	return judgeMethod{}, inputerr.Errorf("%w: rule.model %q is not binomial, hypergeometric, hoeffding or kl", ErrInput, p.Rule.Model)
 }
 
 // judgeCandidate counts one candidate's errors and computes its estimate,
@@ -263,7 +264,7 @@ func judgeCandidate(in Input, ci int, m judgeMethod, level float64, lot int64) (
 	rc.UpperBound = upperAt(conf)
 	rc.PValue = t.PValue
 	if math.IsNaN(rc.UpperBound) || math.IsNaN(t.PValue) {
-		return rc, Test{}, fmt.Errorf("%w: the %s bound is undefined for %d errors in %d", ErrInput, m.bound, x, n)
+		return rc, Test{}, inputerr.Errorf("%w: the %s bound is undefined for %d errors in %d", ErrInput, m.bound, x, n)
 	}
 	exact := m.bound.Exact()
 	accept := p.Rule.AcceptanceNumber

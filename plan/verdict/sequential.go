@@ -5,6 +5,7 @@ import (
 	"fmt"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/sequential"
 )
@@ -30,11 +31,11 @@ var ErrUndecided = errors.New("the sequential plan has not decided")
 func JudgeSequential(in Input) (*Result, error) {
 	p := in.Plan
 	if p == nil || p.IsSizingOnly() || p.Sequential == nil {
-		return nil, fmt.Errorf("%w: not a sequential plan with candidates", ErrInput)
+		return nil, inputerr.Errorf("%w: not a sequential plan with candidates", ErrInput)
 	}
 	rule, err := sequential.NewRule(p.Sequential)
 	if err != nil {
-		return nil, fmt.Errorf("%w: plan sequential rule: %v", ErrInput, err)
+		return nil, inputerr.Errorf("%w: plan sequential rule: %v", ErrInput, err)
 	}
 	if err := in.Design.validate(); err != nil {
 		return nil, err
@@ -49,8 +50,9 @@ func JudgeSequential(in Input) (*Result, error) {
 		}
 		d, at := rule.Judge(errs)
 		if d == sequential.Continue {
-			return nil, fmt.Errorf("%w: candidate %s has %s in the %d items labeled from the top, inside the boundaries; label further down the worksheet (up to %d items)",
-				ErrUndecided, c.Name, errorsText(count(errs[:at])), at, rule.MaxSampleSize())
+			return nil, inputerr.Errorf("%w: candidate %s has %s in the %d items labeled from the top, inside the boundaries; label further down the worksheet (up to %d items)",
+				ErrUndecided, c.Name, errorsText(count(errs[:at])), at, rule.MaxSampleSize()).
+				WithHint("'probity progress' says how many more labels each candidate can need")
 		}
 		sub := Input{Plan: p, Design: redesign(in.Design, in.Items[:at]), Items: in.Items[:at]}
 		rc, _, err := judgeCandidate(sub, ci, judgeMethod{bound: plan.BoundClopperPearson}, level, 0)

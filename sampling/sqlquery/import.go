@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -53,7 +54,7 @@ type Item struct {
 
 // Import reads and checks a query result. p and fingerprint are the plan
 // the result must have been made for; stdin is read when path is "-".
-// Every problem is a *sampling.InputError naming the file, line and
+// Every problem is a *inputerr.Error naming the file, line and
 // column.
 func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Result, error) {
 	data, err := readFile(path, stdin)
@@ -66,14 +67,14 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	}
 	res := &Result{Path: path, SHA256: sampling.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{}}
 	if len(t.rows) == 0 || t.rows[0][colKind] != KindDraw {
-		return nil, &sampling.InputError{File: path, Line: 2, Column: "kind", Msg: "the first row must be the draw row (kind " + KindDraw + ")",
+		return nil, &inputerr.Error{File: path, Line: 2, Field: "kind", Msg: "the first row must be the draw row (kind " + KindDraw + ")",
 			Hint: "save the whole result of the query, in the order it returns"}
 	}
 	if res.Spec, err = checkDrawRow(t, p, fingerprint); err != nil {
 		return nil, err
 	}
 	if res.Query, err = Query(res.Spec); err != nil {
-		return nil, &sampling.InputError{File: path, Line: t.lines[0], Column: "detail", Msg: err.Error(), Err: err}
+		return nil, &inputerr.Error{File: path, Line: t.lines[0], Field: "detail", Msg: err.Error(), Err: err}
 	}
 	res.QuerySHA256 = sampling.SHA256Hex([]byte(res.Query))
 	if res.TableRows, err = t.int64At(0, colStratumSize); err != nil {
@@ -81,14 +82,13 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	}
 	nValues := len(res.Spec.valueColumns())
 	if len(t.header)-fixedColumns != nValues {
-		return nil, &sampling.InputError{File: path, Line: 1, Msg: fmt.Sprintf("%d value columns, but the draw row lists %d", len(t.header)-fixedColumns, nValues)}
+		return nil, &inputerr.Error{File: path, Line: 1, Msg: fmt.Sprintf("%d value columns, but the draw row lists %d", len(t.header)-fixedColumns, nValues)}
 	}
 	if res.InScope, err = checkIDRows(t); err != nil {
 		return nil, err
 	}
 	if pop := p.Inputs.Population; pop > 0 && res.Spec.Period == "" && res.InScope != pop {
-		return nil, withHint(&sampling.InputError{File: path, Msg: fmt.Sprintf("%d rows of %s are in scope but the plan is for a lot of %d (inputs.population)", res.InScope, res.Spec.Table, pop)},
-			fmt.Sprintf("a finite-lot plan judges exactly one lot: plan again with --population %d, or draw with --period LABEL to take this table as the period's lot", res.InScope))
+		return nil, (&inputerr.Error{File: path, Msg: fmt.Sprintf("%d rows of %s are in scope but the plan is for a lot of %d (inputs.population)", res.InScope, res.Spec.Table, pop)}).WithHint(fmt.Sprintf("a finite-lot plan judges exactly one lot: plan again for a lot of %d, or draw for a period to take this table as the period's lot", res.InScope))
 	}
 	if err := res.checkStrata(t); err != nil {
 		return nil, err
@@ -107,16 +107,13 @@ func checkDrawRow(t *resultTable, p *plan.File, fingerprint string) (*Spec, erro
 		return nil, t.rowError(0, colDetail, "%v", err)
 	}
 	if d.Format != QueryFormat {
-		return nil, withHint(t.rowError(0, colDetail, "the result was made by a query of format %d; this probity reads format %d", d.Format, QueryFormat),
-			"print the query again with this probity's draw --sql and run it")
+		return nil, t.rowError(0, colDetail, "the result was made by a query of format %d; this probity reads format %d", d.Format, QueryFormat).WithHint("print the query again with this probity and run it")
 	}
 	if d.PlanFingerprint != fingerprint {
-		return nil, withHint(t.rowError(0, colDetail, "the result was made for another plan (fingerprint %s), not this one (%s)", short(d.PlanFingerprint), short(fingerprint)),
-			"import it with the plan the query was printed from, or print and run the query for this plan")
+		return nil, t.rowError(0, colDetail, "the result was made for another plan (fingerprint %s), not this one (%s)", short(d.PlanFingerprint), short(fingerprint)).WithHint("import it with the plan the query was printed from, or print and run the query for this plan")
 	}
 	if d.Seed != p.Seed {
-		return nil, withHint(t.rowError(0, colDetail, "the result was made with seed %q, but the plan's seed is %q", d.Seed, p.Seed),
-			"print and run the query for this plan")
+		return nil, t.rowError(0, colDetail, "the result was made with seed %q, but the plan's seed is %q", d.Seed, p.Seed).WithHint("print and run the query for this plan")
 	}
 	want := p.Seed
 	if d.Period != "" {
@@ -131,7 +128,7 @@ func checkDrawRow(t *resultTable, p *plan.File, fingerprint string) (*Spec, erro
 	s := d.Spec
 	s.Candidates = p.Candidates
 	if got := s.valueColumns(); !slices.Equal(got, d.Values) {
-		return nil, t.rowError(0, colDetail, "the value columns %q are not those the plan's candidates and --show need (%q)", d.Values, got)
+		return nil, t.rowError(0, colDetail, "the value columns %q are not those the plan's candidates and the shown columns need (%q)", d.Values, got)
 	}
 	return &s, nil
 }
@@ -162,20 +159,18 @@ func checkIDRows(t *resultTable) (int64, error) {
 	}
 	for _, k := range []string{KindInScope, KindEmptyIDs, KindDuplicateIDs} {
 		if _, ok := counts[k]; !ok {
-			return 0, &sampling.InputError{File: t.name, Msg: "the " + k + " row is missing", Hint: "save the whole result of the query"}
+			return 0, &inputerr.Error{File: t.name, Msg: "the " + k + " row is missing", Hint: "save the whole result of the query"}
 		}
 	}
 	if n := counts[KindEmptyIDs]; n > 0 {
-		return 0, withHint(&sampling.InputError{File: t.name, Column: "record_id", Msg: fmt.Sprintf("the table has %d %s whose id is NULL or empty", n, plural(n, "row", "rows"))},
-			"every row needs an id; fill them in or leave those rows out of the table or view")
+		return 0, (&inputerr.Error{File: t.name, Field: "record_id", Msg: fmt.Sprintf("the table has %d %s whose id is NULL or empty", n, plural(n, "row", "rows"))}).WithHint("every row needs an id; fill them in or leave those rows out of the table or view")
 	}
 	if n := counts[KindDuplicateIDs]; n > 0 || len(dupExamples) > 0 {
 		line := 0
 		if len(dupLines) > 0 {
 			line = dupLines[0]
 		}
-		return 0, withHint(&sampling.InputError{File: t.name, Line: line, Column: "record_id", Msg: fmt.Sprintf("%d %s more than once in the table, e.g. %s", n, plural(n, "id occurs", "ids occur"), joinList(dupExamples))},
-			"ids must be unique; a draw inside the engine cannot keep a first copy (draw from an export with --dedupe first)")
+		return 0, (&inputerr.Error{File: t.name, Line: line, Field: "record_id", Msg: fmt.Sprintf("%d %s more than once in the table, e.g. %s", n, plural(n, "id occurs", "ids occur"), joinList(dupExamples))}).WithHint("ids must be unique; a draw inside the engine cannot keep a first copy (draw from an export of the table, keeping the first row of each id)")
 	}
 	return counts[KindInScope], nil
 }
@@ -190,14 +185,14 @@ func badValueError(t *resultTable, i int) error {
 	if n == "1" {
 		rows = "row in scope has"
 	}
-	e := &sampling.InputError{File: t.name, Line: t.lines[i], Column: "detail"}
+	e := &inputerr.Error{File: t.name, Line: t.lines[i], Field: "detail"}
 	switch what {
 	case "strata":
 		e.Msg = fmt.Sprintf("column %s: %s %s a value holding a |, which separates stratum values in labels (first id %q)", col, n, rows, row[colRecordID])
 		e.Hint = "stratify by a column whose values hold no |"
 	case "band":
 		e.Msg = fmt.Sprintf("band column %s: %s %s a value that is not a number in [0, 1] (first id %q; NULL reads as %s)", col, n, rows, row[colRecordID], NullText)
-		e.Hint = "a band splits a score in [0, 1]; leave the other rows out with --where or a view"
+		e.Hint = "a band splits a score in [0, 1]; leave the other rows out with a filter or a view"
 	default:
 		e.Msg = fmt.Sprintf("unknown problem %q", row[colDetail])
 	}
@@ -210,12 +205,6 @@ func plural(n int64, one, many string) string {
 		return one
 	}
 	return many
-}
-
-// withHint sets an error's hint.
-func withHint(e *sampling.InputError, hint string) *sampling.InputError {
-	e.Hint = hint
-	return e
 }
 
 // short abbreviates a fingerprint for a message.

@@ -16,6 +16,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/intake"
 	"probity/plan/verdict"
@@ -61,17 +62,17 @@ type Input struct {
 var ErrInput = errors.New("invalid record input")
 
 // Assemble checks the inputs and builds the record. Errors from the intake
-// checks are *sampling.InputError values naming the file and line.
+// checks are *inputerr.Error values naming the file and line.
 func Assemble(in Input) (*record.Record, error) {
 	if err := checkUse(in.Use); err != nil {
 		return nil, err
 	}
 	if _, err := time.Parse("2006-01-02", in.Date); err != nil {
-		return nil, fmt.Errorf("%w: date %q is not a date in the form YYYY-MM-DD", ErrInput, in.Date)
+		return nil, inputerr.Errorf("%w: date %q is not a date in the form YYYY-MM-DD", ErrInput, in.Date)
 	}
 	p := in.Plan
 	if p.IsSizingOnly() {
-		return nil, fmt.Errorf("%w: the plan declares no candidates, so there is nothing to judge", ErrInput)
+		return nil, inputerr.Errorf("%w: the plan declares no candidates, so there is nothing to judge", ErrInput)
 	}
 	seq := p.Sequential != nil
 	checked, err := intake.Check(p, in.PlanFP, in.Folder, in.Labels, intake.Options{AllowIncomplete: in.AllowIncomplete, Prefix: seq})
@@ -117,7 +118,7 @@ func Assemble(in Input) (*record.Record, error) {
 	}
 	if seq {
 		if rec.OC, err = verdict.SequentialOC(p, OCPoints, ocTop(p)); err != nil {
-			return nil, fmt.Errorf("%w: %v", ErrInput, err)
+			return nil, inputerr.Errorf("%w: %v", ErrInput, err)
 		}
 	} else {
 		for _, pt := range p.OC(OCPoints) {
@@ -137,7 +138,7 @@ func checkUse(use string) error {
 			return nil
 		}
 	}
-	return fmt.Errorf("%w: use %q is not one of %s", ErrInput, use, strings.Join(templates.Uses(), ", "))
+	return inputerr.Errorf("%w: use %q is not one of %s", ErrInput, use, strings.Join(templates.Uses(), ", "))
 }
 
 // judge runs the verdict package on the checked items.

@@ -9,6 +9,7 @@ import (
 
 	"probity/plan"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // drawFixture is a small draw folder made in code: a plan with two label
@@ -74,7 +75,7 @@ func newDrawFixture(t *testing.T) *drawFixture {
 			Allocation: sampling.AllocationInfo{Rule: "proportional", Spare: 2}, Strata: strata, SampleSize: 29, Spares: 4},
 		Candidates: []string{"m1", "m2"}, Show: []string{"text"}, Ledger: ledger, Worksheet: ws,
 	}
-	if err := sampling.WriteFolder(filepath.Join(fx.dir, "draw"), fx.folder, false); err != nil {
+	if err := sampling.WriteFolder(filepath.Join(fx.dir, "draw"), fx.folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	return fx
