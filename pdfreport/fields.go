@@ -3,6 +3,7 @@ package pdfreport
 import (
 	"strings"
 
+	"probity/plan"
 	"probity/plan/record"
 	"probity/templates"
 )
@@ -23,22 +24,25 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		FamilyRisk:       riskPct(1 - p.Confidence),
 		BoundConfidence:  confidence(boundConfidence(rec)),
 		PerCandidateRisk: riskPct(p.PerCandidateRisk),
-		Candidates:       p.Candidates,
-		Require:          p.Require,
-		MultiplicityRule: p.Multiplicity,
-		Model:            p.Model,
-		Rule:             p.Method,
-		Sequential:       p.Design == "sequential",
+		Candidates:       p.CandidateCount,
+		Require:          p.Require.String(),
+		MultiplicityRule: p.Multiplicity.String(),
+		Model:            p.Model.String(),
+		Rule:             p.Method.String(),
+		Sequential:       p.Design == plan.DesignSequential,
 		SampleSize:       p.SampleSize,
 		AcceptanceNumber: p.AcceptanceNumber,
-		Bound:            boundName(rec.Method.Bound),
+		Bound:            rec.Method.Bound.Title(),
 		Approximate:      rec.Method.Approximate,
-		Weighted:         weightedBound(rec.Method.Bound),
+		Weighted:         rec.Method.Bound.Weighted(),
 		AllowIncomplete:  rec.Deviations.AllowIncomplete,
 		Stratified:       len(rec.Strata) > 1,
 	}
 	if f.System == "" {
 		f.System = "the system under audit"
+	}
+	if f.Bound == "" {
+		f.Bound = "stated"
 	}
 	if p.ConsumerRisk > 0 {
 		f.ConsumerRisk = riskPct(p.ConsumerRisk)
@@ -49,8 +53,8 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 	if p.ProducerRisk != nil {
 		f.ProducerRisk = riskPct(*p.ProducerRisk)
 	}
-	if p.Candidates > 1 {
-		f.Multiplicity = multiplicityName(p.Multiplicity)
+	if p.CandidateCount > 1 {
+		f.Multiplicity = p.Multiplicity.Title()
 	}
 	if p.Population > 0 {
 		f.Population = count(p.Population)
@@ -68,60 +72,4 @@ func boundConfidence(rec *record.Record) float64 {
 		}
 	}
 	return 1 - rec.Plan.PerCandidateRisk
-}
-
-// boundName prints a bound identifier in words.
-func boundName(id string) string {
-	base := strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(id), "(approximate)"))
-	switch strings.ToLower(base) {
-	case "clopper-pearson":
-		return "Clopper–Pearson (exact binomial)"
-	case "korn-graubard":
-		return "Korn–Graubard"
-	case "weighted-hoeffding":
-		return "weighted Hoeffding"
-	case "hypergeometric", "exact-hypergeometric":
-		return "exact hypergeometric"
-	case "hoeffding":
-		return "Hoeffding"
-	case "kl":
-		return "Chernoff (Kullback–Leibler)"
-	case "":
-		return "stated"
-	}
-	return base
-}
-
-// weightedBound reports whether the bound weights strata by N_h/N.
-func weightedBound(id string) bool {
-	id = strings.ToLower(id)
-	return strings.Contains(id, "korn") || strings.Contains(id, "weighted")
-}
-
-// multiplicityName prints a multiplicity rule in words.
-func multiplicityName(id string) string {
-	switch id {
-	case "bonferroni":
-		return "Bonferroni"
-	case "holm":
-		return "Holm step-down"
-	case "fixed-sequence":
-		return "fixed-sequence"
-	}
-	return id
-}
-
-// modelName prints a probability model in words.
-func modelName(id string) string {
-	switch id {
-	case "binomial":
-		return "binomial model (unbounded stream)"
-	case "hypergeometric":
-		return "hypergeometric model (finite lot)"
-	case "hoeffding":
-		return "Hoeffding inequality"
-	case "kl":
-		return "Chernoff bound (Kullback–Leibler form)"
-	}
-	return id
 }

@@ -2,6 +2,8 @@ package pdfreport
 
 import (
 	"github.com/jung-kurt/gofpdf"
+
+	"probity/plan"
 )
 
 // ocSection embeds the OC figure with its caption, kept on one page.
@@ -13,7 +15,7 @@ func (d *doc) ocSection(c *content) {
 	}
 	p := c.rec.Plan
 	rule := "n = " + itoa(p.SampleSize) + ", c = " + itoa(p.AcceptanceNumber)
-	if p.Design == "sequential" {
+	if p.Design == plan.DesignSequential {
 		rule = "sequential, at most " + itoa(p.SampleSize) + " labels"
 	}
 	caption := "The curve gives, for each true error rate, the probability that a candidate is accepted by the " +

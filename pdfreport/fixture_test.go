@@ -132,14 +132,14 @@ func fixtureRecord(use string) *record.Record {
 		Use:           use,
 		Plan: record.PlanInfo{
 			Fingerprint:      "9d1f0c6a4be57d2e8f3a1c0b9e8d7f6a5b4c3d2e1f0a9b8c7d6e5f4a3b2c1d0e",
-			Method:           "exact",
-			Model:            "binomial",
-			Design:           "fixed",
-			Multiplicity:     "bonferroni",
-			Require:          "all",
+			Method:           plan.MethodExact,
+			Model:            plan.ModelBinomial,
+			Design:           plan.DesignFixed,
+			Multiplicity:     plan.Bonferroni,
+			Require:          plan.RequireAll,
 			Ceiling:          0.02,
 			Confidence:       0.95,
-			Candidates:       3,
+			CandidateCount:   3,
 			Anticipated:      ptr(0.003),
 			SampleSize:       464,
 			AcceptanceNumber: 3,
@@ -166,7 +166,7 @@ func fixtureRecord(use string) *record.Record {
 			Unsure:     []string{"w00311"},
 		},
 		Method: record.MethodInfo{
-			Bound:     "clopper-pearson",
+			Bound:     plan.BoundClopperPearson,
 			Statement: "One-sided Clopper–Pearson upper bound at 98.333 % per candidate (Bonferroni, M = 3); accept when errors ≤ c = 3 of n = 464.",
 		},
 		Signoff: []record.Signoff{
@@ -215,13 +215,13 @@ func fixtureRecord(use string) *record.Record {
 func manyRecord() *record.Record {
 	rec := fixtureRecord("safety")
 	rec.System = "Conveyor weld-seam inspection — Überwachungssystem with a deliberately long name to wrap"
-	rec.Plan.Candidates = 12
-	rec.Plan.Multiplicity = "holm"
-	rec.Plan.Require = "any"
+	rec.Plan.CandidateCount = 12
+	rec.Plan.Multiplicity = plan.Holm
+	rec.Plan.Require = plan.RequireAny
 	rec.Plan.Population = 1250000
 	rec.Plan.PerCandidateRisk = 0.05 / 12
 	rec.Method.Statement = "One-sided Korn–Graubard upper bound at 99.583 % per candidate (Holm, M = 12)."
-	rec.Method.Bound = "korn-graubard (approximate)"
+	rec.Method.Bound = plan.BoundKornGraubard
 	rec.Method.Approximate = true
 	rec.Method.Assumptions = []string{"Korn–Graubard uses the effective sample size of the stratified design."}
 	rec.Signoff = nil

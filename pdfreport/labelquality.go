@@ -128,12 +128,12 @@ func disagreementText(q *record.LabelQuality) string {
 func resolutionText(q *record.LabelQuality) string {
 	s := plural(q.Adjudicated, "item", "items") + " adjudicated"
 	if q.Unadjudicated > 0 {
-		s += "; " + plural(q.Unadjudicated, "disagreement", "disagreements") + " not adjudicated, each counted as an error for every candidate (--allow-unadjudicated)"
+		s += "; " + plural(q.Unadjudicated, "disagreement", "disagreements") + " not adjudicated, each counted as an error for every candidate (unadjudicated disagreements allowed)"
 	} else {
 		s += "; no disagreement left open"
 	}
 	if q.Strict {
-		s += "; labeler independence enforced (--strict)"
+		s += "; labeler independence enforced"
 	}
 	return s
 }

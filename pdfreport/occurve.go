@@ -13,6 +13,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
 
+	"probity/plan"
 	"probity/plan/record"
 )
 
@@ -97,7 +98,7 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 	curve.Color = plotCurve
 	curve.Width = vg.Points(1.8)
 	p.Add(curve)
-	if rec.Plan.Design == "sequential" {
+	if rec.Plan.Design == plan.DesignSequential {
 		leg.Add(fmt.Sprintf("OC curve, sequential, n ≤ %d", rec.Plan.SampleSize), curve)
 	} else {
 		leg.Add(fmt.Sprintf("OC curve, n = %d, c = %d", rec.Plan.SampleSize, rec.Plan.AcceptanceNumber), curve)

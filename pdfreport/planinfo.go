@@ -2,6 +2,8 @@ package pdfreport
 
 import (
 	"strings"
+
+	"probity/plan"
 )
 
 // kv is one key/value row.
@@ -23,7 +25,7 @@ func (d *doc) planInfo(c *content) {
 	for _, cand := range c.rec.Candidates {
 		names = append(names, cand.Name)
 	}
-	cands := itoa(p.Candidates)
+	cands := itoa(p.CandidateCount)
 	if len(names) > 0 {
 		cands += ": " + strings.Join(names, ", ")
 	}
@@ -32,21 +34,17 @@ func (d *doc) planInfo(c *content) {
 		kv("Confidence (family-wise)", f.Confidence+" (risk δ = "+f.FamilyRisk+")"),
 		kv("Candidates (M)", cands),
 	}
-	if p.Candidates > 1 {
-		req := "every candidate must be accepted"
-		if p.Require == "any" {
-			req = "at least one candidate must be accepted"
-		}
+	if p.CandidateCount > 1 {
 		rows = append(rows,
-			kv("Multiplicity", multiplicityName(p.Multiplicity)+"; "+req),
+			kv("Multiplicity", p.Multiplicity.Title()+"; "+p.Require.Title()),
 		)
 	}
 	rows = append(rows,
 		kv("Per-candidate confidence", f.BoundConfidence+" (risk "+f.PerCandidateRisk+")"),
-		kv("Decision rule", joinNonEmpty("; ", ruleName(p.Method, p.Model), designName(p.Design))),
+		kv("Decision rule", joinNonEmpty("; ", ruleName(p.Method, p.Model), p.Design.Title())),
 		kv("Sample size n", itoa(p.SampleSize)+" decisions"),
 	)
-	if p.Design != "sequential" {
+	if p.Design != plan.DesignSequential {
 		use := " (accept when errors ≤ c)"
 		if f.Weighted {
 			use = " (for a self-weighting sample; this one is weighted, so the bound decides)"
@@ -78,26 +76,14 @@ func (d *doc) planInfo(c *content) {
 	d.drawTable(&table{title: "The plan", cols: []column{{w: 32}, {w: 68}}, rows: rows, keyFill: true, size: bodySize - 0.5})
 }
 
-// designName prints a design in words.
-func designName(id string) string {
-	switch id {
-	case "fixed", "":
-		return "fixed sample"
-	case "sequential":
-		return "sequential (stops when a boundary is reached)"
-	}
-	return id
-}
-
-// ruleName says which rule the plan uses and under which model.
-func ruleName(method, model string) string {
+// ruleName says which rule the plan uses and, for the exact test, under
+// which model.
+func ruleName(method plan.Method, model plan.Model) string {
 	switch method {
-	case "exact":
-		return "exact test, " + modelName(model)
-	case "hoeffding":
-		return "Hoeffding bound (distribution-free)"
-	case "kl":
-		return "Chernoff bound, Kullback–Leibler form (distribution-free)"
+	case plan.MethodExact:
+		return method.Title() + ", " + model.Title()
+	case plan.MethodHoeffding, plan.MethodKL:
+		return method.Title()
 	}
-	return joinNonEmpty("; ", method, modelName(model))
+	return joinNonEmpty("; ", method.String(), model.Title())
 }

@@ -12,6 +12,7 @@ import (
 	"strings"
 	"testing"
 
+	"probity/plan"
 	"probity/plan/record"
 	"probity/templates"
 )
@@ -349,7 +350,7 @@ func TestUnusualRecordsLayOut(t *testing.T) {
 		want []string
 	}{
 		{"sequential without curve or strata", func(r *record.Record) {
-			r.Plan.Design = "sequential"
+			r.Plan.Design = plan.DesignSequential
 			r.OC = nil
 			r.Strata = nil
 			for i := range r.Candidates {
@@ -361,10 +362,10 @@ func TestUnusualRecordsLayOut(t *testing.T) {
 		{"finite lot, one candidate, nothing optional", func(r *record.Record) {
 			r.System, r.SystemVersion, r.Period, r.Use = "", "", "", ""
 			r.Plan.Population = 20000
-			r.Plan.Model = "hypergeometric"
-			r.Plan.Method = "exact"
-			r.Method.Bound = "exact-hypergeometric"
-			r.Plan.Candidates = 1
+			r.Plan.Model = plan.ModelHypergeometric
+			r.Plan.Method = plan.MethodExact
+			r.Method.Bound = plan.BoundExactHypergeometric
+			r.Plan.CandidateCount = 1
 			r.Plan.Anticipated, r.Plan.ProducerRisk = nil, nil
 			r.Candidates = r.Candidates[:1]
 			r.Candidates[0].Confusion = record.Confusion{}

@@ -156,11 +156,7 @@ func (d *doc) verdictBanner(c *content) {
 	case "":
 		word = "NO VERDICT"
 	}
-	need := "every candidate must be accepted"
-	if rec.Plan.Require == "any" {
-		need = "at least one candidate must be accepted"
-	}
-	detail := itoa(accepted) + " of " + itoa(len(rec.Candidates)) + " candidates accepted; " + need + "."
+	detail := itoa(accepted) + " of " + itoa(len(rec.Candidates)) + " candidates accepted; " + rec.Plan.Require.Title() + "."
 	const h = 15.0
 	d.need(h + 2)
 	y := d.pdf.GetY()

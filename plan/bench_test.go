@@ -7,7 +7,7 @@ import "testing"
 // measured, including the four comparison rows.
 func BenchmarkSizeStrict(b *testing.B) {
 	in := inputs(0.001, 0.999)
-	in.Candidates = 100
+	in.CandidateCount = 100
 	for b.Loop() {
 		if _, _, err := Size(in); err != nil {
 			b.Fatal(err)
@@ -17,7 +17,7 @@ func BenchmarkSizeStrict(b *testing.B) {
 
 func BenchmarkSizeStrictAnticipated(b *testing.B) {
 	in := inputs(0.001, 0.999)
-	in.Candidates = 100
+	in.CandidateCount = 100
 	in.Anticipated = ptr(0.0005)
 	for b.Loop() {
 		if _, _, err := Size(in); err != nil {
@@ -38,7 +38,7 @@ func BenchmarkSizeIssueExample(b *testing.B) {
 
 func BenchmarkSizeLot(b *testing.B) {
 	in := inputs(0.001, 0.999)
-	in.Candidates = 100
+	in.CandidateCount = 100
 	in.Anticipated = ptr(0.0005)
 	in.Population = 5_000_000
 	for b.Loop() {

@@ -18,25 +18,25 @@ type BudgetRow struct {
 // one-sided Clopper–Pearson upper bound; for a lot of N it is D/N for the
 // smallest D with P(X ≤ x | N, D, n) ≤ δ/M' (the exact hypergeometric
 // bound, in whole errors). Rows stop at x = n − 1.
-func Budget(n int, confidence float64, candidates int, multiplicity string, population int64, rows int) ([]BudgetRow, error) {
+func Budget(n int, confidence float64, candidates int, multiplicity Multiplicity, population int64, rows int) ([]BudgetRow, error) {
 	if n < 1 || n > MaxSampleSize {
-		return nil, &InputError{Field: "budget", Value: strconv.Itoa(n), Allowed: "between 1 and 100000000"}
+		return nil, outOfRange("budget", strconv.Itoa(n), "between 1 and 100000000")
 	}
 	if !(confidence > 0 && confidence < 1) {
-		return nil, &InputError{Field: "confidence", Value: fmtNum(confidence), Allowed: "between 0 and 1 (exclusive)"}
+		return nil, outOfRange("confidence", fmtNum(confidence), "between 0 and 1 (exclusive)")
 	}
 	if candidates < 1 {
-		return nil, &InputError{Field: "candidates", Value: strconv.Itoa(candidates), Allowed: "at least 1"}
+		return nil, outOfRange("candidates", strconv.Itoa(candidates), "at least 1")
 	}
 	if population < 0 || (population > 0 && int64(n) > population) {
-		return nil, &InputError{Field: "population", Value: strconv.FormatInt(population, 10), Allowed: "at least the budget " + strconv.Itoa(n)}
+		return nil, outOfRange("population", strconv.FormatInt(population, 10), "at least the budget "+strconv.Itoa(n))
 	}
-	alpha := PerCandidateRisk(confidence, candidates, multiplicity)
+	alpha := multiplicity.PerCandidateRisk(1-confidence, candidates)
 	var out []BudgetRow
 	for x := 0; x < rows && x < n; x++ {
 		var ceil float64
 		if population > 0 {
-			ceil = float64(lotUpperErrors(x, n, population, alpha)) / float64(population)
+			ceil = float64(hypergeometricUpperErrors(x, n, population, alpha)+1) / float64(population)
 		} else {
 			ceil = ClopperPearsonUpper(x, n, 1-alpha)
 		}
@@ -45,32 +45,13 @@ func Budget(n int, confidence float64, candidates int, multiplicity string, popu
 	return out, nil
 }
 
-// lotUpperErrors is the smallest D in [x+1, N] with P(X ≤ x | N, D, n) ≤
-// α; P falls as D grows, so it is found by bisection. N when even D = N
-// does not reach α (it always does when n = N).
-func lotUpperErrors(x, n int, population int64, alpha float64) int64 {
-	lo, hi := int64(x), population // P(lo) > α (D ≤ x: P = 1), P(hi) ≤ α or hi = N
-	if HypergeometricCDF(x, population, hi, n) > alpha {
-		return population
-	}
-	for hi-lo > 1 {
-		mid := lo + (hi-lo)/2
-		if HypergeometricCDF(x, population, mid, n) <= alpha {
-			hi = mid
-		} else {
-			lo = mid
-		}
-	}
-	return hi
-}
-
 // AcceptanceNumberFor returns the largest c for which accepting at ≤ c
 // errors in n labels keeps the exact consumer's risk of the inputs
 // (binomial, or hypergeometric with a population), or −1 when even c = 0
 // does not. It answers "with this budget, how many errors may the plan
 // allow?". The inputs are not validated.
 func AcceptanceNumberFor(n int, in Inputs) int {
-	alpha := PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+	alpha := in.PerCandidateRisk()
 	keeps := sizer{in: in, alpha: alpha}.exactRule()
 	// keeps(c, n) is true up to some c and false after: find the first false.
 	first := sort.Search(n, func(c int) bool { return !keeps(c, n) })

@@ -3,6 +3,7 @@ package plan
 import (
 	"errors"
 	"math"
+	"probity/plan/inputerr"
 	"testing"
 )
 
@@ -52,7 +53,7 @@ func TestBudgetLot(t *testing.T) {
 			t.Errorf("x = %d: %v, scan gives %v", r.Errors, r.Ceiling, want)
 		}
 	}
-	var ie *InputError
+	var ie *inputerr.Error
 	if _, err := Budget(500, 0.95, 1, Bonferroni, 100, 3); !errors.As(err, &ie) || ie.Field != "population" {
 		t.Errorf("budget above the lot: %v", err)
 	}

@@ -2,6 +2,7 @@ package plan
 
 import (
 	"fmt"
+	"probity/plan/inputerr"
 	"strconv"
 	"time"
 )
@@ -21,16 +22,15 @@ type Meta struct {
 	// Classes are the label values; required with Candidates.
 	Classes []string
 	// Candidates are declared in testing order; when present their number
-	// is M and must agree with Inputs.Candidates.
+	// is M and must agree with Inputs.CandidateCount.
 	Candidates []Candidate
 }
 
 // Build sizes the plan for the inputs (see Size) and assembles the plan
 // file with its metadata. The result passes the same checks Parse applies.
 func Build(in Inputs, m Meta) (*File, error) {
-	if len(m.Candidates) > 0 && in.Candidates != len(m.Candidates) {
-		return nil, &InputError{Field: "candidates", Value: strconv.Itoa(in.Candidates),
-			Allowed: fmt.Sprintf("%d, the number of candidates declared (or omitted)", len(m.Candidates))}
+	if len(m.Candidates) > 0 && in.CandidateCount != len(m.Candidates) {
+		return nil, outOfRange("candidates", strconv.Itoa(in.CandidateCount), fmt.Sprintf("%d, the number of candidates declared (or omitted)", len(m.Candidates)))
 	}
 	rule, cmp, err := Size(in)
 	if err != nil {
@@ -50,7 +50,7 @@ func Build(in Inputs, m Meta) (*File, error) {
 		Candidates:    m.Candidates,
 	}
 	if err := f.validate(); err != nil {
-		return nil, err
+		return nil, inputerr.Errorf("%w", err)
 	}
 	return f, nil
 }

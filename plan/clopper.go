@@ -142,3 +142,44 @@ func closer(f func(float64) float64, target, lo, hi float64) float64 {
 	}
 	return hi
 }
+
+// HypergeometricUpper is the exact one-sided upper confidence bound on the
+// error rate of a finite lot of N decisions after x errors in a sample of n
+// drawn without replacement: D_U / N, where
+//
+//	D_U = max{ D : P(X ≤ x | N, D, n) > α },   α = 1 − confidence,
+//
+// the largest lot error count not rejected by the exact test (the
+// Clopper–Pearson test inversion applied to the hypergeometric; from
+// memory, no single source). NaN outside 0 ≤ x ≤ n ≤ N, n ≥ 1 or
+// 0 < confidence < 1.
+func HypergeometricUpper(x, n int, N int64, confidence float64) float64 {
+	if n < 1 || x < 0 || x > n || int64(n) > N || !(confidence > 0 && confidence < 1) {
+		return math.NaN()
+	}
+	return float64(hypergeometricUpperErrors(x, n, N, 1-confidence)) / float64(N)
+}
+
+// hypergeometricUpperErrors is D_U = max{D : P(X ≤ x | N, D, n) > α} for
+// 0 ≤ x ≤ n ≤ N and 0 < α < 1. P(X ≤ x | D) falls as D grows, so D_U is
+// found by bisection over x ≤ D ≤ N − (n − x), the largest D that allows
+// only x errors (at D = x the probability is 1). D_U + 1 is the fewest
+// errors the lot can hold for the test to reject, the lowest lot error
+// count x errors in n certify (Budget).
+func hypergeometricUpperErrors(x, n int, N int64, alpha float64) int64 {
+	lo := int64(x)                // P(X ≤ x | D = x) = 1 > α
+	hi := N - int64(n) + int64(x) // the largest D that allows only x errors
+	if HypergeometricCDF(x, N, hi, n) > alpha {
+		return hi
+	}
+	// Invariant: CDF(lo) > α ≥ CDF(hi).
+	for hi-lo > 1 {
+		mid := lo + (hi-lo)/2
+		if HypergeometricCDF(x, N, mid, n) > alpha {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return lo
+}

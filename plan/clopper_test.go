@@ -138,3 +138,44 @@ func TestLotErrors(t *testing.T) {
 		t.Errorf("BinomialPValueAtLeast = %v, want %v", got, want)
 	}
 }
+
+// TestHypergeometricUpperAgainstScipy: D_U found by a full scan over D with
+// scipy.stats.hypergeom.cdf; exact (both give D/N for the same integer D).
+func TestHypergeometricUpperAgainstScipy(t *testing.T) {
+	type hc struct {
+		X, N int
+		Lot  int64
+		Conf float64
+	}
+	cases := []hc{{0, 50, 1000, 0.95}, {3, 120, 500, 0.95}, {10, 200, 5000, 0.99}, {5, 5, 40, 0.9}, {0, 1, 10, 0.95}}
+	var want []float64
+	runScipy(t, `
+import json, sys, numpy as np
+from scipy.stats import hypergeom
+out = []
+for c in json.load(sys.stdin):
+    x, n, N, conf = c["X"], c["N"], c["Lot"], c["Conf"]
+    D = np.arange(x, N - (n - x) + 1)
+    ok = D[hypergeom.cdf(x, N, D, n) > 1 - conf]
+    out.append(float(ok.max()) / N)
+print(json.dumps(out))`, cases, &want)
+	for i, c := range cases {
+		if got := HypergeometricUpper(c.X, c.N, c.Lot, c.Conf); got != want[i] {
+			t.Errorf("%+v: %v, scipy scan %v", c, got, want[i])
+		}
+	}
+}
+
+// TestHypergeometricUpperDomain: NaN outside 0 ≤ x ≤ n ≤ N, n ≥ 1,
+// 0 < confidence < 1 (the documented domain).
+func TestHypergeometricUpperDomain(t *testing.T) {
+	for _, c := range []struct {
+		x, n int
+		N    int64
+		conf float64
+	}{{-1, 5, 10, 0.9}, {6, 5, 10, 0.9}, {0, 0, 10, 0.9}, {0, 11, 10, 0.9}, {0, 5, 10, 1}, {0, 5, 10, 0}} {
+		if got := HypergeometricUpper(c.x, c.n, c.N, c.conf); !math.IsNaN(got) {
+			t.Errorf("%+v: %v, want NaN", c, got)
+		}
+	}
+}

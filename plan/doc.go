@@ -9,13 +9,18 @@
 //
 //   - BinomialCDF, BinomialSF, HypergeometricCDF, HypergeometricSF and the
 //     PMFs: tails accurate deep into both ends (tails.go);
-//   - ClopperPearsonUpper/Lower/Interval, BinomialPValueAtLeast,
+//   - ClopperPearsonUpper/Lower/Interval, HypergeometricUpper (the exact
+//     bound for a finite lot), BinomialPValueAtLeast,
 //     HypergeometricPValueAtLeast, BadLotErrors (D1), GoodLotErrors (D0)
-//     (clopper.go);
+//     (clopper.go); BernoulliKL, the exponent of the Chernoff bound (kl.go);
 //   - Size: the rule and the comparison for a set of Inputs; Build: the
 //     whole plan File (size.go, build.go, search.go, rules.go);
 //   - File.OC, File.AcceptProbability, File.KeyPoints: the exact OC curve
-//     (oc.go); PerCandidateRisk, File.PerCandidateConfidence (multiplicity.go);
+//     (oc.go); Inputs.PerCandidateRisk, File.PerCandidateConfidence;
+//   - the settings, each a type written by its name in plan.yaml and
+//     record.json, with what its callers need: Multiplicity (its
+//     PerCandidateRisk δ/M'), Method, Model, Design, Require and Bound (the
+//     bound a judgement used) (setting.go and one file each);
 //   - Budget, AcceptanceNumberFor: the inverse question (budget.go);
 //   - File.Marshal, Parse, Load, Fingerprint: the plan file (file.go).
 //

@@ -3,25 +3,22 @@ package plan
 import (
 	"fmt"
 	"strings"
+
+	"probity/plan/inputerr"
 )
 
-// InputError is a requirement outside its allowed range. Field is the
-// input's name as the plan file and the command spell it ("ceiling",
-// "producer-risk", …).
-type InputError struct {
-	Field string
-	// Value is the value as given; Allowed says what is allowed, as a
-	// phrase that completes "must be …".
-	Value   string
-	Allowed string
-}
-
-func (e *InputError) Error() string {
-	return fmt.Sprintf("%s %s: must be %s", e.Field, e.Value, e.Allowed)
+// outOfRange is a requirement outside its allowed range: an input error
+// whose Field is the input's name as the plan file and the command spell it
+// ("ceiling", "producer-risk", …) and whose message is the value as given
+// and what is allowed ("1.5: must be between 0 and 1 (exclusive)").
+func outOfRange(field, value, allowed string) *inputerr.Error {
+	return &inputerr.Error{Field: field, Msg: value + ": must be " + allowed}
 }
 
 // TooLargeError reports a requirement that needs more labels than the
-// limit (MaxSampleSize, or the lot size for a finite population).
+// limit (MaxSampleSize, or the lot size for a finite population). Size
+// returns it as the cause of an input error, so a caller can name the
+// inputs to relax in its own words.
 type TooLargeError struct {
 	// Limit is the largest sample that was allowed.
 	Limit int
@@ -37,4 +34,9 @@ func (e *TooLargeError) Error() string {
 			e.Population, strings.Join(e.Relax, " or "))
 	}
 	return fmt.Sprintf("the plan would need more than %d labels; relax %s", e.Limit, strings.Join(e.Relax, " or "))
+}
+
+// tooLargeError is TooLargeError as the input error Size returns.
+func tooLargeError(e *TooLargeError) *inputerr.Error {
+	return &inputerr.Error{Msg: e.Error(), Err: e}
 }

@@ -7,8 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
-	"slices"
-	"strings"
+	"probity/plan/inputerr"
 	"time"
 
 	"gopkg.in/yaml.v3"
@@ -61,9 +60,10 @@ type Inputs struct {
 	// Confidence is 1 − δ, in (0, 1); δ is the family-wise risk of
 	// accepting a candidate whose error is at or above the ceiling.
 	Confidence float64 `yaml:"confidence"`
-	// Candidates is M, the number of models or thresholds judged on the
-	// same sample (≥ 1).
-	Candidates int `yaml:"candidates"`
+	// CandidateCount is M, the number of models or thresholds judged on
+	// the same sample (≥ 1). It is written under the key candidates, as
+	// the plan file has always had it; File.Candidates lists them.
+	CandidateCount int `yaml:"candidates"`
 	// Anticipated is p0, the error a good model is expected to have; nil
 	// gives the zero-failure plan.
 	Anticipated *float64 `yaml:"anticipated,omitempty"`
@@ -72,24 +72,23 @@ type Inputs struct {
 	// Population is N for a finite lot (hypergeometric); 0 means an
 	// unbounded stream (binomial).
 	Population int64 `yaml:"population,omitempty"`
-	// Method is the decision rule: "exact", "hoeffding" or "kl".
-	Method string `yaml:"method"`
-	// Multiplicity is "bonferroni", "holm" or "fixed-sequence".
-	Multiplicity string `yaml:"multiplicity"`
-	// Design is "fixed" (label n, count errors) or "sequential".
-	Design string `yaml:"design"`
-	// Require is "all" (every candidate must be accepted for the audit to
-	// pass) or "any" (at least one must be, e.g. choosing among
-	// thresholds).
-	Require string `yaml:"require"`
+	// Method is the decision rule: exact, hoeffding or kl.
+	Method Method `yaml:"method"`
+	// Multiplicity shares δ among the candidates.
+	Multiplicity Multiplicity `yaml:"multiplicity"`
+	// Design is fixed (label n, count errors) or sequential.
+	Design Design `yaml:"design"`
+	// Require is all (every candidate must be accepted for the audit to
+	// pass) or any (at least one must be, e.g. choosing among thresholds).
+	Require Require `yaml:"require"`
 }
 
 // Rule is the acceptance rule of a plan: label SampleSize decisions and
 // accept a candidate if it makes at most AcceptanceNumber errors.
 type Rule struct {
-	// Model names the probability model behind the risks: "binomial",
-	// "hypergeometric", "hoeffding" or "kl".
-	Model string `yaml:"model"`
+	// Model is the probability model behind the risks: binomial,
+	// hypergeometric, hoeffding or kl.
+	Model Model `yaml:"model"`
 	// SampleSize is n.
 	SampleSize int `yaml:"sample_size"`
 	// AcceptanceNumber is c: accept when errors ≤ c.
@@ -173,26 +172,33 @@ func (f *File) Marshal() ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
-// Parse decodes a plan file. name is used in error messages. Unknown keys
+// Parse decodes a plan file. name is used in error messages, which are
+// *inputerr.Error wrapping ErrPlanFile. Unknown keys
 // are refused, so a typo in a hand-edited plan is not silently ignored.
 func Parse(data []byte, name string) (*File, error) {
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	dec.KnownFields(true)
 	var f File
 	if err := dec.Decode(&f); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrPlanFile, err)
+		return nil, planFileError(name, fileKeyError(err))
 	}
 	if err := f.validate(); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrPlanFile, err)
+		return nil, planFileError(name, err)
 	}
 	return &f, nil
+}
+
+// planFileError is the input error about a plan file's content: it names
+// the file and wraps ErrPlanFile.
+func planFileError(name string, err error) error {
+	return inputerr.At(name, 0, "", "%w: %v", ErrPlanFile, err).WithHint("use the plan file written by probity plan, unedited")
 }
 
 // Load reads and parses a plan file and returns it with its fingerprint.
 func Load(path string) (*File, string, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, "", err
+		return nil, "", inputerr.FromPath(err)
 	}
 	f, err := Parse(data, path)
 	if err != nil {
@@ -226,14 +232,11 @@ func (f *File) validate() error {
 	if !(in.Confidence > 0 && in.Confidence < 1) {
 		return fmt.Errorf("inputs.confidence %v is outside (0, 1)", in.Confidence)
 	}
-	if in.Candidates < 1 {
-		return fmt.Errorf("inputs.candidates %d is below 1", in.Candidates)
+	if in.CandidateCount < 1 {
+		return fmt.Errorf("inputs.candidates %d is below 1", in.CandidateCount)
 	}
-	if len(f.Candidates) > 0 && len(f.Candidates) != in.Candidates {
-		return fmt.Errorf("inputs.candidates is %d but %d candidates are declared", in.Candidates, len(f.Candidates))
-	}
-	if err := in.validateNames(); err != nil {
-		return err
+	if len(f.Candidates) > 0 && len(f.Candidates) != in.CandidateCount {
+		return fmt.Errorf("inputs.candidates is %d but %d candidates are declared", in.CandidateCount, len(f.Candidates))
 	}
 	if p0 := in.Anticipated; p0 != nil && !(*p0 >= 0 && *p0 < in.Ceiling) {
 		return fmt.Errorf("inputs.anticipated %v is outside [0, ceiling)", *p0)
@@ -268,22 +271,18 @@ func (f *File) validate() error {
 	return nil
 }
 
-// validateNames refuses an unknown method, multiplicity, design or
-// requirement in a plan file; empty values are left to the caller's
-// defaults.
-func (in Inputs) validateNames() error {
-	for _, c := range []struct {
-		key, value string
-		allowed    []string
-	}{
-		{"method", in.Method, Methods},
-		{"multiplicity", in.Multiplicity, Multiplicities},
-		{"design", in.Design, []string{DesignFixed, DesignSequential}},
-		{"require", in.Require, []string{RequireAll, RequireAny}},
-	} {
-		if c.value != "" && !slices.Contains(c.allowed, c.value) {
-			return fmt.Errorf("inputs.%s %q is not one of %s", c.key, c.value, strings.Join(c.allowed, ", "))
-		}
+// fileKeyError rephrases a setting refused while decoding (an input error
+// from UnmarshalText) with its key in the file: `inputs.method "exakt":
+// must be one of exact, hoeffding, kl`. A setting left empty decodes as
+// unset and is left to the reader's default.
+func fileKeyError(err error) error {
+	ie, ok := inputerr.As(err)
+	if !ok || ie.Field == "" {
+		return err
 	}
-	return nil
+	section := "inputs"
+	if ie.Field == modelSpelling.field {
+		section = "rule"
+	}
+	return fmt.Errorf("%s.%s %s", section, ie.Field, ie.Msg)
 }

@@ -14,7 +14,7 @@ func examplePlan(t testing.TB) *File {
 	t.Helper()
 	in := inputs(0.02, 0.95)
 	in.Anticipated = ptr(0.01)
-	in.Candidates = 2
+	in.CandidateCount = 2
 	in.Population = 20000
 	th := 0.7
 	f, err := Build(in, Meta{
@@ -77,7 +77,9 @@ func TestParseRefusesBadPlans(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, tc := range []struct{ old, new, want string }{
-		{"method: exact", "method: exakt", `inputs.method "exakt" is not one of`},
+		{"method: exact", "method: exakt", `inputs.method "exakt": must be one of`},
+		{"multiplicity: bonferroni", "multiplicity: sidak", `inputs.multiplicity "sidak": must be one of bonferroni, holm, fixed-sequence`},
+		{"model: hypergeometric", "model: poisson", `rule.model "poisson": must be one of binomial, hypergeometric, hoeffding, kl`},
 		{"ceiling: 0.02", "ceiling: 2", "inputs.ceiling 2 is outside (0, 1)"},
 		{"seed: 00112233445566778899aabbccddeeff", "seed: \"\"", "seed is empty"},
 		{"format: 1", "format: 9", "format 9 is not supported"},

@@ -56,7 +56,7 @@ func TestMonteCarloGuarantee(t *testing.T) {
 	base := inputs(0.02, 0.95)
 	base.Anticipated = ptr(0.01)
 	multi := base
-	multi.Candidates, multi.Confidence = 5, 0.9
+	multi.CandidateCount, multi.Confidence = 5, 0.9
 	zero := inputs(0.05, 0.9)
 	lot := base
 	lot.Population = 20000

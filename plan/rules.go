@@ -2,27 +2,15 @@ package plan
 
 import "math"
 
-// Decision rules ("methods") and the comparison rows they appear under.
+// The rows of a plan's comparison (RuleSize.Rule): the sample size each
+// rule needs for the same risks.
 const (
-	// MethodExact accepts at ≤ c errors where c keeps the exact binomial
-	// (or, for a lot, hypergeometric) consumer's risk.
-	MethodExact = "exact"
-	// MethodHoeffding accepts when estimate + sqrt(ln(M'/δ)/(2n)) ≤ ceiling.
-	MethodHoeffding = "hoeffding"
-	// MethodKL accepts when the Chernoff relative-entropy bound excludes
-	// the ceiling.
-	MethodKL = "kl"
-
-	// Comparison row names.
 	RuleExactBinomial       = "exact-binomial"
 	RuleExactHypergeometric = "exact-hypergeometric"
 	RuleHoeffding           = "hoeffding"
 	RuleKL                  = "kl"
 	RuleChebyshev           = "chebyshev"
 )
-
-// Methods lists the accepted values of Inputs.Method.
-var Methods = []string{MethodExact, MethodHoeffding, MethodKL}
 
 // exactBinomialKeeps: accept at ≤ c of n keeps the consumer's risk when
 //
@@ -69,7 +57,7 @@ func klKeeps(ceiling, alpha float64) func(c, n int) bool {
 	l := math.Log(1 / alpha)
 	return func(c, n int) bool {
 		q := float64(c) / float64(n)
-		return q < ceiling && float64(n)*bernoulliKL(q, ceiling) >= l
+		return q < ceiling && float64(n)*BernoulliKL(q, ceiling) >= l
 	}
 }
 
@@ -85,16 +73,4 @@ func chebyshevKeeps(ceiling, alpha float64) func(c, n int) bool {
 		fn := float64(n)
 		return float64(c)/fn+math.Sqrt(v/fn) <= ceiling
 	}
-}
-
-// bernoulliKL is kl(q‖p) for 0 ≤ q ≤ 1, 0 < p < 1, with 0·ln 0 = 0.
-func bernoulliKL(q, p float64) float64 {
-	var s float64
-	if q > 0 {
-		s += q * math.Log(q/p)
-	}
-	if q < 1 {
-		s += (1 - q) * (math.Log1p(-q) - math.Log1p(-p))
-	}
-	return s
 }

@@ -5,22 +5,6 @@ import (
 	"testing"
 )
 
-// kl(q‖p) reference values computed by hand from the definition
-// q ln(q/p) + (1−q) ln((1−q)/(1−p)) (common practice, no source);
-// tolerance 1e-12 relative.
-func TestBernoulliKL(t *testing.T) {
-	for _, tc := range []struct{ q, p, want float64 }{
-		{0.01, 0.02, 0.01*math.Log(0.5) + 0.99*math.Log(0.99/0.98)},
-		{0, 0.02, -math.Log(0.98)},
-		{0.5, 0.5, 0},
-		{1, 0.5, math.Log(2)},
-	} {
-		if got := bernoulliKL(tc.q, tc.p); math.Abs(got-tc.want) > 1e-12*math.Max(tc.want, 1e-300) && got != tc.want {
-			t.Errorf("kl(%v‖%v) = %v, want %v", tc.q, tc.p, got, tc.want)
-		}
-	}
-}
-
 // Closed forms at c = 0 (common practice, no source): Hoeffding needs
 // n ≥ ln(1/α)/(2·ceiling²); Chebyshev–Cantelli n ≥ (1−ceiling)(1−α)/(α·ceiling);
 // kl at zero errors is the exact zero-failure rule.

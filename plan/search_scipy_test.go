@@ -92,8 +92,8 @@ func TestSearchAgainstScipy(t *testing.T) {
 	var cases []searchCase
 	for i := 0; i < 300; i++ {
 		in := inputs(math.Pow(10, -2.3+1.8*rng.Float64()), []float64{0.8, 0.9, 0.95, 0.99, 0.999}[rng.IntN(5)])
-		in.Candidates = 1 + rng.IntN(4)
-		in.Multiplicity = Multiplicities[rng.IntN(3)]
+		in.CandidateCount = 1 + rng.IntN(4)
+		in.Multiplicity = Multiplicities()[rng.IntN(3)]
 		in.ProducerRisk = []float64{0.05, 0.1, 0.2}[rng.IntN(3)]
 		c := searchCase{Ceiling: in.Ceiling, P0: -1, Beta: in.ProducerRisk, Rule: "exact"}
 		if i%5 != 0 {
@@ -118,7 +118,7 @@ func TestSearchAgainstScipy(t *testing.T) {
 				in.Anticipated, c.P0 = &p0, p0
 			}
 		}
-		c.Alpha = PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+		c.Alpha = in.PerCandidateRisk()
 		c.in = in
 		cases = append(cases, c)
 	}

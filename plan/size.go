@@ -1,35 +1,18 @@
 package plan
 
 import (
-	"slices"
 	"strconv"
-	"strings"
-)
-
-// Designs of a plan (Inputs.Design).
-const (
-	// DesignFixed labels n decisions and counts the errors.
-	DesignFixed = "fixed"
-	// DesignSequential judges after every label against boundaries
-	// (File.Sequential); it is filled in by plan/sequential.
-	DesignSequential = "sequential"
-)
-
-// Requirements for Inputs.Require.
-const (
-	RequireAll = "all"
-	RequireAny = "any"
 )
 
 // DefaultProducerRisk is the producer's risk used when none is given.
 const DefaultProducerRisk = 0.10
 
 // Validate checks every input against its allowed range and returns an
-// *InputError naming the first one out of range.
+// *inputerr.Error naming the first one out of range.
 func (in Inputs) Validate() error {
 	open01 := func(field string, v float64) error {
 		if !(v > 0 && v < 1) {
-			return &InputError{Field: field, Value: fmtNum(v), Allowed: "between 0 and 1 (exclusive)"}
+			return outOfRange(field, fmtNum(v), "between 0 and 1 (exclusive)")
 		}
 		return nil
 	}
@@ -39,29 +22,29 @@ func (in Inputs) Validate() error {
 	if err := open01("confidence", in.Confidence); err != nil {
 		return err
 	}
-	if in.Candidates < 1 {
-		return &InputError{Field: "candidates", Value: strconv.Itoa(in.Candidates), Allowed: "at least 1"}
+	if in.CandidateCount < 1 {
+		return outOfRange("candidates", strconv.Itoa(in.CandidateCount), "at least 1")
 	}
 	if p0 := in.Anticipated; p0 != nil && !(*p0 >= 0 && *p0 < in.Ceiling) {
-		return &InputError{Field: "anticipated", Value: fmtNum(*p0), Allowed: "at least 0 and below the ceiling " + fmtNum(in.Ceiling)}
+		return outOfRange("anticipated", fmtNum(*p0), "at least 0 and below the ceiling "+fmtNum(in.Ceiling))
 	}
 	if err := open01("producer-risk", in.ProducerRisk); err != nil {
 		return err
 	}
 	if in.Population < 0 {
-		return &InputError{Field: "population", Value: strconv.FormatInt(in.Population, 10), Allowed: "at least 1 (or omitted for an unbounded stream)"}
+		return outOfRange("population", strconv.FormatInt(in.Population, 10), "at least 1 (or omitted for an unbounded stream)")
 	}
-	if !slices.Contains(Methods, in.Method) {
-		return &InputError{Field: "method", Value: strconv.Quote(in.Method), Allowed: "one of " + strings.Join(Methods, ", ")}
+	if !methodSpelling.known(in.Method) {
+		return methodSpelling.invalid(in.Method.String())
 	}
-	if !slices.Contains(Multiplicities, in.Multiplicity) {
-		return &InputError{Field: "multiplicity", Value: strconv.Quote(in.Multiplicity), Allowed: "one of " + strings.Join(Multiplicities, ", ")}
+	if !multiplicitySpelling.known(in.Multiplicity) {
+		return multiplicitySpelling.invalid(in.Multiplicity.String())
 	}
-	if in.Design != DesignFixed && in.Design != DesignSequential {
-		return &InputError{Field: "design", Value: strconv.Quote(in.Design), Allowed: "fixed or sequential"}
+	if !designSpelling.known(in.Design) {
+		return designSpelling.invalid(in.Design.String())
 	}
-	if in.Require != RequireAll && in.Require != RequireAny {
-		return &InputError{Field: "require", Value: strconv.Quote(in.Require), Allowed: "all or any"}
+	if !requireSpelling.known(in.Require) {
+		return requireSpelling.invalid(in.Require.String())
 	}
 	return nil
 }
@@ -80,7 +63,7 @@ func Size(in Inputs) (Rule, []RuleSize, error) {
 	if err := in.Validate(); err != nil {
 		return Rule{}, nil, err
 	}
-	alpha := PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+	alpha := in.PerCandidateRisk()
 	s := sizer{in: in, alpha: alpha}
 	chosen := s.methodRule(in.Method)
 	res := s.search(chosen)
@@ -88,7 +71,7 @@ func Size(in Inputs) (Rule, []RuleSize, error) {
 		return Rule{}, nil, s.tooLarge(res)
 	}
 	if in.Population > 0 && int64(res.n) >= in.Population {
-		return Rule{}, nil, &TooLargeError{Limit: res.n, Population: in.Population, Relax: s.relax(true)}
+		return Rule{}, nil, tooLargeError(&TooLargeError{Limit: res.n, Population: in.Population, Relax: s.relax(true)})
 	}
 	rule := s.rule(res)
 	var cmp []RuleSize
@@ -118,7 +101,7 @@ func (s sizer) exactRule() func(c, n int) bool {
 	return exactBinomialKeeps(s.in.Ceiling, s.alpha)
 }
 
-func (s sizer) methodRule(method string) func(c, n int) bool {
+func (s sizer) methodRule(method Method) func(c, n int) bool {
 	switch method {
 	case MethodHoeffding:
 		return hoeffdingKeeps(s.in.Ceiling, s.alpha)
@@ -175,16 +158,7 @@ func (s sizer) row(name string, keeps func(c, n int) bool) RuleSize {
 // rule assembles the Rule for a search result with its actual risks.
 func (s sizer) rule(res searchResult) Rule {
 	r := Rule{SampleSize: res.n, AcceptanceNumber: res.c, PerCandidateRisk: s.alpha}
-	switch {
-	case s.in.Method == MethodHoeffding:
-		r.Model = "hoeffding"
-	case s.in.Method == MethodKL:
-		r.Model = "kl"
-	case s.in.Population > 0:
-		r.Model = "hypergeometric"
-	default:
-		r.Model = "binomial"
-	}
+	r.Model = s.in.Method.Model(s.in.Population)
 	if s.in.Population > 0 {
 		r.BadLotErrors = BadLotErrors(s.in.Population, s.in.Ceiling)
 		r.ConsumerRisk = HypergeometricCDF(res.c, s.in.Population, r.BadLotErrors, res.n)
@@ -206,7 +180,7 @@ func (s sizer) tooLarge(res searchResult) error {
 	if s.in.Population > 0 && s.in.Population <= MaxSampleSize {
 		e.Population = s.in.Population
 	}
-	return e
+	return tooLargeError(e)
 }
 
 // relax names the inputs that shrink the plan: the consumer's side when even
@@ -214,7 +188,7 @@ func (s sizer) tooLarge(res searchResult) error {
 func (s sizer) relax(consumerSide bool) []string {
 	if consumerSide || s.in.Anticipated == nil {
 		r := []string{"ceiling", "confidence"}
-		if EffectiveCandidates(s.in.Candidates, s.in.Multiplicity) > 1 {
+		if s.in.Multiplicity.EffectiveCandidates(s.in.CandidateCount) > 1 {
 			r = append(r, "candidates")
 		}
 		return r

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"probity/plan/inputerr"
 	"testing"
 )
 
@@ -11,7 +12,7 @@ func ptr(v float64) *float64 { return &v }
 
 // inputs returns valid default inputs for tests.
 func inputs(ceiling, confidence float64) Inputs {
-	return Inputs{Ceiling: ceiling, Confidence: confidence, Candidates: 1, ProducerRisk: DefaultProducerRisk,
+	return Inputs{Ceiling: ceiling, Confidence: confidence, CandidateCount: 1, ProducerRisk: DefaultProducerRisk,
 		Method: MethodExact, Multiplicity: Bonferroni, Design: DesignFixed, Require: RequireAll}
 }
 
@@ -106,10 +107,10 @@ func TestNISTSingleSamplingOC(t *testing.T) {
 func TestMultiplicity(t *testing.T) {
 	base := inputs(0.02, 0.95)
 	base.Anticipated = ptr(0.01)
-	sizes := map[string]int{}
-	for _, m := range Multiplicities {
+	sizes := map[Multiplicity]int{}
+	for _, m := range Multiplicities() {
 		in := base
-		in.Candidates = 5
+		in.CandidateCount = 5
 		in.Multiplicity = m
 		r, _, err := Size(in)
 		if err != nil {
@@ -137,20 +138,20 @@ func TestValidateAndLimits(t *testing.T) {
 		{"ceiling", func(in *Inputs) { in.Ceiling = 0 }},
 		{"ceiling", func(in *Inputs) { in.Ceiling = 1 }},
 		{"confidence", func(in *Inputs) { in.Confidence = 1.2 }},
-		{"candidates", func(in *Inputs) { in.Candidates = 0 }},
+		{"candidates", func(in *Inputs) { in.CandidateCount = 0 }},
 		{"anticipated", func(in *Inputs) { in.Anticipated = ptr(0.02) }},
 		{"producer-risk", func(in *Inputs) { in.ProducerRisk = 0 }},
-		{"method", func(in *Inputs) { in.Method = "wald" }},
-		{"multiplicity", func(in *Inputs) { in.Multiplicity = "sidak" }},
+		{"method", func(in *Inputs) { in.Method = Method(99) }},
+		{"multiplicity", func(in *Inputs) { in.Multiplicity = Multiplicity(99) }},
 		{"ceiling", func(in *Inputs) { in.Ceiling = math.NaN() }},
 	}
 	for _, tc := range bad {
 		in := inputs(0.02, 0.95)
 		tc.edit(&in)
 		_, _, err := Size(in)
-		var ie *InputError
+		var ie *inputerr.Error
 		if !errors.As(err, &ie) || ie.Field != tc.field {
-			t.Errorf("%s: error %v, want an InputError on %s", tc.field, err, tc.field)
+			t.Errorf("%s: error %v, want an input error on %s", tc.field, err, tc.field)
 		}
 	}
 	// more than 10^8 labels: which input to relax.
@@ -213,8 +214,8 @@ func TestSizeInvariants(t *testing.T) {
 		if in.Ceiling >= 1 {
 			in.Ceiling = 0.5
 		}
-		in.Candidates = 1 + rng.IntN(20)
-		in.Multiplicity = Multiplicities[rng.IntN(3)]
+		in.CandidateCount = 1 + rng.IntN(20)
+		in.Multiplicity = Multiplicities()[rng.IntN(3)]
 		in.ProducerRisk = 0.01 + 0.5*rng.Float64()
 		if i%3 != 0 {
 			in.Anticipated = ptr(in.Ceiling * rng.Float64() * 0.8)
@@ -230,7 +231,7 @@ func TestSizeInvariants(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%+v: %v", in, err)
 		}
-		alpha := PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+		alpha := in.PerCandidateRisk()
 		if !(r.ConsumerRisk <= alpha) || (r.ProducerRisk != nil && !(*r.ProducerRisk <= in.ProducerRisk)) {
 			t.Errorf("%+v: risks %v / %v", in, r.ConsumerRisk, r.ProducerRisk)
 		}

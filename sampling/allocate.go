@@ -2,9 +2,9 @@ package sampling
 
 import (
 	"errors"
-	"fmt"
 	"math"
 	"math/big"
+	"probity/plan/inputerr"
 	"sort"
 )
 
@@ -77,10 +77,10 @@ var ErrSampleTooLarge = errors.New("the sample is larger than the log")
 // when the minimum per stratum alone exceeds n.
 func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocation, error) {
 	if n < 1 {
-		return nil, fmt.Errorf("%w: sample size %d is below 1", ErrAllocation, n)
+		return nil, inputerr.Errorf("%w: sample size %d is below 1", ErrAllocation, n)
 	}
 	if opts.MinPerStratum < 0 || opts.Spare < 0 {
-		return nil, fmt.Errorf("%w: minimum per stratum and spares cannot be negative", ErrAllocation)
+		return nil, inputerr.Errorf("%w: minimum per stratum and spares cannot be negative", ErrAllocation)
 	}
 	rule := opts.Rule
 	if rule == "" {
@@ -90,7 +90,7 @@ func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocat
 	var total int64
 	for i, s := range strata {
 		if s.Population < 1 {
-			return nil, fmt.Errorf("%w: stratum %q has population %d", ErrAllocation, s.Label, s.Population)
+			return nil, inputerr.Errorf("%w: stratum %q has population %d", ErrAllocation, s.Label, s.Population)
 		}
 		out[i] = StratumAllocation{Label: s.Label, Population: s.Population}
 		total += s.Population
@@ -98,11 +98,11 @@ func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocat
 	sort.Slice(out, func(i, j int) bool { return out[i].Label < out[j].Label })
 	for i := 1; i < len(out); i++ {
 		if out[i].Label == out[i-1].Label {
-			return nil, fmt.Errorf("%w: stratum %q is listed twice", ErrAllocation, out[i].Label)
+			return nil, inputerr.Errorf("%w: stratum %q is listed twice", ErrAllocation, out[i].Label)
 		}
 	}
 	if total < int64(n) {
-		return nil, fmt.Errorf("%w: the sample needs %d items but the strata hold %d rows", ErrSampleTooLarge, n, total)
+		return nil, inputerr.Errorf("%w: the sample needs %d items but the strata hold %d rows", ErrSampleTooLarge, n, total)
 	}
 	weights := make([]*big.Rat, len(out))
 	for i := range out {
@@ -119,7 +119,7 @@ func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocat
 			out[i].Anticipated = opts.Anticipated[out[i].Label]
 			weights[i] = new(big.Rat).SetFloat64(float64(out[i].Population) * sd)
 		default:
-			return nil, fmt.Errorf("%w: unknown allocation rule %q (proportional, neyman or equal)", ErrAllocation, rule)
+			return nil, inputerr.Errorf("%w: unknown allocation rule %q (proportional, neyman or equal)", ErrAllocation, rule)
 		}
 	}
 	// fixed[i] >= 0 pins stratum i at that size (the minimum per stratum).
@@ -136,7 +136,7 @@ func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocat
 			}
 		}
 		if m < 0 {
-			return nil, fmt.Errorf("%w: a minimum of %d per stratum over %d strata needs more than the sample's %d items", ErrAllocation, opts.MinPerStratum, len(out), n)
+			return nil, inputerr.Errorf("%w: a minimum of %d per stratum over %d strata needs more than the sample's %d items", ErrAllocation, opts.MinPerStratum, len(out), n)
 		}
 		alloc := apportion(out, weights, fixed, m)
 		changed := false
@@ -152,7 +152,7 @@ func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocat
 				sum += a
 			}
 			if sum != int64(n) {
-				return nil, fmt.Errorf("%w: the minimum per stratum leaves %d of %d items without a stratum that can take them", ErrAllocation, int64(n)-sum, n)
+				return nil, inputerr.Errorf("%w: the minimum per stratum leaves %d of %d items without a stratum that can take them", ErrAllocation, int64(n)-sum, n)
 			}
 			for i := range out {
 				out[i].Sample = int(alloc[i])
@@ -245,15 +245,15 @@ func apportion(strata []StratumAllocation, weights []*big.Rat, fixed []int64, m 
 func neymanStdDev(label string, opts AllocOptions) (float64, error) {
 	if p, ok := opts.Anticipated[label]; ok {
 		if !(p > 0 && p < 1) {
-			return 0, fmt.Errorf("%w: anticipated error %v for stratum %q is outside (0, 1)", ErrAllocation, p, label)
+			return 0, inputerr.Errorf("%w: anticipated error %v for stratum %q is outside (0, 1)", ErrAllocation, p, label)
 		}
 		return math.Sqrt(p * (1 - p)), nil
 	}
 	if sd, ok := opts.StdDev[label]; ok {
 		if !(sd > 0) || math.IsInf(sd, 0) {
-			return 0, fmt.Errorf("%w: standard deviation %v for stratum %q is not a positive number", ErrAllocation, sd, label)
+			return 0, inputerr.Errorf("%w: standard deviation %v for stratum %q is not a positive number", ErrAllocation, sd, label)
 		}
 		return sd, nil
 	}
-	return 0, fmt.Errorf("%w: no anticipated error for stratum %q (neyman allocation needs one per stratum)", ErrAllocation, label)
+	return 0, inputerr.Errorf("%w: no anticipated error for stratum %q (neyman allocation needs one per stratum)", ErrAllocation, label)
 }

@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"probity/plan/inputerr"
 	"strconv"
 	"strings"
 
@@ -19,7 +20,7 @@ import (
 func ReadAnticipated(path string) (map[string]float64, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, err
+		return nil, inputerr.FromPath(err)
 	}
 	ext := strings.ToLower(filepath.Ext(path))
 	if ext == ".yaml" || ext == ".yml" {

@@ -26,9 +26,9 @@ func TestReadAnticipated(t *testing.T) {
 	}
 	bad := []struct{ name, content, want string }{
 		{"b.csv", "stratum,p\n", `header column 2 is "p", expected "anticipated_error"`},
-		{"c.csv", "stratum,anticipated_error\nx,0\n", `c.csv line 2, column anticipated_error: "0" is not a number strictly between 0 and 1`},
-		{"d.csv", "stratum,anticipated_error\nx,0.1\nx,0.2\n", `d.csv line 3, column stratum: stratum "x" is listed twice (lines 2 and 3)`},
-		{"e.yaml", "x: high\n", `e.yaml line 1, column x: "high" is not a number strictly between 0 and 1`},
+		{"c.csv", "stratum,anticipated_error\nx,0\n", `c.csv line 2, field anticipated_error: "0" is not a number strictly between 0 and 1`},
+		{"d.csv", "stratum,anticipated_error\nx,0.1\nx,0.2\n", `d.csv line 3, field stratum: stratum "x" is listed twice (lines 2 and 3)`},
+		{"e.yaml", "x: high\n", `e.yaml line 1, field x: "high" is not a number strictly between 0 and 1`},
 		{"f.yaml", "- 1\n", `expected a mapping`},
 	}
 	for _, b := range bad {

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"probity/plan/inputerr"
 	"strings"
 )
 
@@ -24,7 +25,9 @@ const maxListed = 20
 
 // DrawInputFromManifest returns the draw options recorded in a manifest,
 // so that a check can repeat the draw exactly. Plan, Log and LogPath are
-// left for the caller.
+// left for the caller. An option the manifest holds that cannot be used is
+// an input error whose Field is the manifest's key and whose File is left
+// for the caller, who knows where the manifest was read from.
 func DrawInputFromManifest(m *Manifest) (DrawInput, error) {
 	in := DrawInput{
 		Format:        m.Log.Format,
@@ -41,14 +44,14 @@ func DrawInputFromManifest(m *Manifest) (DrawInput, error) {
 	for _, s := range m.Bands {
 		b, err := ParseBand(s)
 		if err != nil {
-			return in, fmt.Errorf("%w: manifest bands: %v", ErrInput, err)
+			return in, &inputerr.Error{Field: "bands", Msg: err.Error(), Err: err}
 		}
 		in.Bands = append(in.Bands, b)
 	}
 	for _, s := range m.Where {
 		f, err := ParseFilter(s)
 		if err != nil {
-			return in, fmt.Errorf("%w: manifest where: %v", ErrInput, err)
+			return in, &inputerr.Error{Field: "where", Msg: err.Error(), Err: err}
 		}
 		in.Where = append(in.Where, f)
 	}

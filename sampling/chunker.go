@@ -5,11 +5,12 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"probity/plan/inputerr"
 )
 
 // readError turns a read failure into an InputError (a truncated gzip
 // stream, most often).
-func (s *scanner) readError(err error, lines int64) *InputError {
+func (s *scanner) readError(err error, lines int64) *inputerr.Error {
 	where := ""
 	if lines > 0 {
 		where = fmt.Sprintf(" after line %d", lines)
@@ -97,7 +98,7 @@ func trimEOL(b []byte) []byte {
 
 // feed cuts the stream into chunks that end on record boundaries and
 // sends them to the workers. It returns the number of lines read.
-func (s *scanner) feed(r io.Reader, rest []byte, rerr error, out chan<- chunk, pool chan *[]byte) (int64, *InputError) {
+func (s *scanner) feed(r io.Reader, rest []byte, rerr error, out chan<- chunk, pool chan *[]byte) (int64, *inputerr.Error) {
 	line := s.dataLine
 	var seq int64
 	carry := append([]byte(nil), rest...)

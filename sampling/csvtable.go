@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"probity/plan/inputerr"
 	"strconv"
 )
 
@@ -26,7 +27,7 @@ type csvTable struct {
 func readCSVTable(path string) (*csvTable, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, err
+		return nil, inputerr.FromPath(err)
 	}
 	return parseCSVTable(data, path)
 }
@@ -43,7 +44,7 @@ type CSVTable struct {
 // ParseCSVTable parses a small CSV file with a header line, as the draw
 // folder's own files are read: a UTF-8 byte-order mark and CRLF line ends
 // are accepted, every row must have as many fields as the header, and an
-// empty file is an error. Errors are *InputError values naming name and
+// empty file is an error. Errors are *inputerr.Error values naming name and
 // the line.
 func ParseCSVTable(data []byte, name string) (*CSVTable, error) {
 	t, err := parseCSVTable(data, name)
@@ -67,9 +68,9 @@ func parseCSVTable(data []byte, name string) (*csvTable, error) {
 		if err != nil {
 			var pe *csv.ParseError
 			if errors.As(err, &pe) {
-				return nil, &InputError{File: name, Line: pe.Line, Msg: pe.Err.Error(), Err: err}
+				return nil, &inputerr.Error{File: name, Line: pe.Line, Msg: pe.Err.Error(), Err: err}
 			}
-			return nil, &InputError{File: name, Msg: err.Error(), Err: err}
+			return nil, &inputerr.Error{File: name, Msg: err.Error(), Err: err}
 		}
 		line, _ := r.FieldPos(0)
 		if t.header == nil {

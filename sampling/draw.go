@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 )
 
 // DrawInput is everything a draw from a log file depends on.
@@ -60,14 +61,14 @@ const capacityMargin = 8
 func Draw(in DrawInput) (*Folder, error) {
 	p := in.Plan
 	if p.IsSizingOnly() {
-		return nil, fmt.Errorf("%w: it declares no candidates (models or thresholds) to judge", ErrNotDrawable)
+		return nil, inputerr.Errorf("%w: it declares no candidates (models or thresholds) to judge", ErrNotDrawable)
 	}
 	if in.IDColumn == "" {
 		in.IDColumn = "record_id"
 	}
 	n := p.Rule.SampleSize
 	if in.Double < 0 || in.Double > n {
-		return nil, &OptionError{Option: fmt.Sprintf("--double %d", in.Double), Msg: fmt.Sprintf("must be between 0 and the sample size %d", n)}
+		return nil, &inputerr.Error{Field: "double", Msg: fmt.Sprintf("%d: must be between 0 and the sample size %d", in.Double, n)}
 	}
 	if err := checkShow(in); err != nil {
 		return nil, err
@@ -109,7 +110,7 @@ func Draw(in DrawInput) (*Folder, error) {
 	}
 	if pop := p.Inputs.Population; pop > 0 && in.Period == "" && res.InScope != pop {
 		e := inputErrorf(name, 0, "", "%d rows are in scope but the plan is for a lot of %d (inputs.population)", res.InScope, pop)
-		e.Hint = fmt.Sprintf("a finite-lot plan judges exactly one lot: plan again with --population %d, or draw with --period LABEL to take this log as the period's lot", res.InScope)
+		e.Hint = fmt.Sprintf("a finite-lot plan judges exactly one lot: plan again for a lot of %d, or draw for a period to take this log as the period's lot", res.InScope)
 		return nil, e
 	}
 	counts := make([]StratumCount, len(res.Strata))
@@ -152,7 +153,7 @@ func Draw(in DrawInput) (*Folder, error) {
 		}
 		need := a.Sample + a.Spare
 		if need > len(st.Rows) {
-			return nil, fmt.Errorf("%w: stratum %q needs %d rows but only %d could be kept: too many ids repeat across strata", ErrDuplicateIDs, a.Label, need, len(st.Rows))
+			return nil, inputerr.Errorf("%w: stratum %q needs %d rows but only %d could be kept: too many ids repeat across strata", ErrDuplicateIDs, a.Label, need, len(st.Rows))
 		}
 		for j := 0; j < need; j++ {
 			r := &st.Rows[j]
@@ -267,7 +268,7 @@ func checkShow(in DrawInput) error {
 			}
 		}
 		if why != "" {
-			return &OptionError{Option: "--show " + s, Msg: why}
+			return &inputerr.Error{Field: "show_columns", Msg: s + ": " + why}
 		}
 		seen[s] = true
 	}
@@ -279,7 +280,7 @@ func checkShow(in DrawInput) error {
 // min(m, 1 − m); m is the band interval's midpoint.
 func bandAnticipated(in DrawInput, counts []StratumCount) (map[string]float64, error) {
 	if len(in.Bands) == 0 {
-		return nil, fmt.Errorf("%w: neyman allocation needs anticipated errors per stratum (--anticipated FILE) or a score band (--band)", ErrAllocation)
+		return nil, inputerr.Errorf("%w: neyman allocation needs anticipated errors per stratum or a score band", ErrAllocation)
 	}
 	b := in.Bands[0]
 	labels := b.Labels()

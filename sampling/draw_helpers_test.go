@@ -14,8 +14,8 @@ func testPlan(seed string, n int) *plan.File {
 	thr := 0.5
 	return &plan.File{
 		Format: plan.FileFormat, Seed: seed,
-		Inputs:  plan.Inputs{Ceiling: 0.05, Confidence: 0.95, Candidates: 2, Method: "exact", Multiplicity: "bonferroni", Design: "fixed", Require: "all"},
-		Rule:    plan.Rule{Model: "binomial", SampleSize: n, AcceptanceNumber: 1},
+		Inputs:  plan.Inputs{Ceiling: 0.05, Confidence: 0.95, CandidateCount: 2, Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
+		Rule:    plan.Rule{Model: plan.ModelBinomial, SampleSize: n, AcceptanceNumber: 1},
 		Classes: []string{"fraud", "ok"},
 		Candidates: []plan.Candidate{
 			{Name: "model-a", Column: "model_a"},

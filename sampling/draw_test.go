@@ -334,7 +334,7 @@ func TestQuotedCSVAcrossChunks(t *testing.T) {
 func TestDedupe(t *testing.T) {
 	log := []byte("record_id,model_a,score,g\na,ok,0.1,x\nb,ok,0.1,x\na,fraud,0.9,y\nc,ok,0.1,x\nb,ok,0.1,x\nd,ok,0.2,x\n")
 	_, err := Draw(DrawInput{Plan: testPlan("d", 2), LogPath: "log.csv", Log: bytes.NewReader(log), StrataColumns: []string{"g"}})
-	want := `log.csv line 4, column record_id: record id "a" appears again (first on line 2); 2 repeats among the rows that could be drawn: "a" (lines 2 and 4), "b" (lines 3 and 6)`
+	want := `log.csv line 4, field record_id: record id "a" appears again (first on line 2); 2 repeats among the rows that could be drawn: "a" (lines 2 and 4), "b" (lines 3 and 6)`
 	if err == nil || err.Error() != want {
 		t.Fatalf("error %v\nwant %s", err, want)
 	}
@@ -362,22 +362,22 @@ func TestScanErrors(t *testing.T) {
 	}{
 		{"empty", "", nil, "log.csv: the log is empty"},
 		{"header only", h, nil, "log.csv: the log has a header but no rows"},
-		{"missing id column", "id,model_a,score\n1,ok,0.1\n", nil, `log.csv line 1, column record_id: the id column "record_id" is not in the log; its columns are: id, model_a, score`},
-		{"missing strata column", h + "a,ok,0.1,n\n", func(in *DrawInput) { in.StrataColumns = []string{"zone"} }, `log.csv line 1, column zone: the strata column "zone" is not in the log; its columns are: record_id, model_a, score, region`},
-		{"missing candidate column", "record_id,score\na,0.1\n", nil, `log.csv line 1, column model_a: the candidate model-a column "model_a" is not in the log; its columns are: record_id, score`},
-		{"missing show column", h + "a,ok,0.1,n\n", func(in *DrawInput) { in.Show = []string{"text"} }, `log.csv line 1, column text: the shown column "text" is not in the log`},
+		{"missing id column", "id,model_a,score\n1,ok,0.1\n", nil, `log.csv line 1, field record_id: the id column "record_id" is not in the log; its columns are: id, model_a, score`},
+		{"missing strata column", h + "a,ok,0.1,n\n", func(in *DrawInput) { in.StrataColumns = []string{"zone"} }, `log.csv line 1, field zone: the strata column "zone" is not in the log; its columns are: record_id, model_a, score, region`},
+		{"missing candidate column", "record_id,score\na,0.1\n", nil, `log.csv line 1, field model_a: the candidate model-a column "model_a" is not in the log; its columns are: record_id, score`},
+		{"missing show column", h + "a,ok,0.1,n\n", func(in *DrawInput) { in.Show = []string{"text"} }, `log.csv line 1, field text: the shown column "text" is not in the log`},
 		{"ragged", h + "a,ok,0.1,n\nb,ok,0.1\n", nil, "log.csv line 3: 3 fields, but the header has 4 (record_id, model_a, score, region)"},
-		{"empty id", h + "a,ok,0.1,n\n,ok,0.1,n\n", nil, "log.csv line 3, column record_id: the record id is empty"},
-		{"band not numeric", h + "a,ok,0.1,n\nb,ok,high,n\n", func(in *DrawInput) { in.Bands = []Band{{Column: "score", Edges: []float64{0.5}}} }, `log.csv line 3, column score: the band value "high" is not a number`},
-		{"band out of range", h + "a,ok,1.5,n\n", func(in *DrawInput) { in.Bands = []Band{{Column: "score", Edges: []float64{0.5}}} }, `log.csv line 2, column score: the band value "1.5" is outside [0, 1]`},
-		{"bare quote", h + "a,o\"k,0.1,n\n", nil, `log.csv line 2, column model_a: a " appears inside a field that is not quoted`},
+		{"empty id", h + "a,ok,0.1,n\n,ok,0.1,n\n", nil, "log.csv line 3, field record_id: the record id is empty"},
+		{"band not numeric", h + "a,ok,0.1,n\nb,ok,high,n\n", func(in *DrawInput) { in.Bands = []Band{{Column: "score", Edges: []float64{0.5}}} }, `log.csv line 3, field score: the band value "high" is not a number`},
+		{"band out of range", h + "a,ok,1.5,n\n", func(in *DrawInput) { in.Bands = []Band{{Column: "score", Edges: []float64{0.5}}} }, `log.csv line 2, field score: the band value "1.5" is outside [0, 1]`},
+		{"bare quote", h + "a,o\"k,0.1,n\n", nil, `log.csv line 2, field model_a: a " appears inside a field that is not quoted`},
 		{"sample larger than log", h + "a,ok,0.1,n\nb,ok,0.1,n\n", func(in *DrawInput) { in.Plan = testPlan("s", 5) }, "log.csv: the plan needs a sample of 5 but only 2 rows are in scope"},
 		{"filter leaves nothing", h + "a,ok,0.1,n\n", func(in *DrawInput) { in.Where = []Filter{{Column: "region", Values: []string{"s"}}} }, "log.csv: no row of the 1 in the log matches the filter region=s"},
 		{"truncated gzip", string(truncated), func(in *DrawInput) { in.LogPath = "log.csv.gz"; in.StrataColumns = nil }, "log.csv.gz: the compressed data ends early after line"},
-		{"bad score on a drawn row", h + "a,ok,x,n\n", nil, `log.csv line 2, column score: candidate score-0.7: score "x" in column score is not a finite number`},
+		{"bad score on a drawn row", h + "a,ok,x,n\n", nil, `log.csv line 2, field score: candidate score-0.7: score "x" in column score is not a finite number`},
 		{"jsonl not object", "{\"record_id\":\"a\",\"model_a\":\"ok\",\"score\":0.1}\n[1,2]\n", func(in *DrawInput) { in.LogPath = "log.jsonl" }, "log.jsonl line 2: the line is not a JSON object"},
-		{"jsonl missing key", "{\"record_id\":\"a\",\"model_a\":\"ok\",\"score\":0.1}\n{\"record_id\":\"b\",\"score\":0.1}\n", func(in *DrawInput) { in.LogPath = "log.jsonl" }, `log.jsonl line 2, column model_a: key "model_a" is missing`},
-		{"show candidate", h + "a,ok,0.1,n\n", func(in *DrawInput) { in.Show = []string{"model_a"} }, "--show model_a: this column holds candidate model-a's prediction or score; labelers must not see the model's answer"},
+		{"jsonl missing key", "{\"record_id\":\"a\",\"model_a\":\"ok\",\"score\":0.1}\n{\"record_id\":\"b\",\"score\":0.1}\n", func(in *DrawInput) { in.LogPath = "log.jsonl" }, `log.jsonl line 2, field model_a: key "model_a" is missing`},
+		{"show candidate", h + "a,ok,0.1,n\n", func(in *DrawInput) { in.Show = []string{"model_a"} }, "show_columns model_a: this column holds candidate model-a's prediction or score; labelers must not see the model's answer"},
 		{"population mismatch", h + "a,ok,0.1,n\nb,ok,0.1,n\n", func(in *DrawInput) { in.Plan.Inputs.Population = 3 }, "log.csv: 2 rows are in scope but the plan is for a lot of 3 (inputs.population)"},
 	}
 	for _, c := range cases {

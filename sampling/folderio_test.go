@@ -5,6 +5,8 @@ import (
 	"errors"
 	"os"
 	"path/filepath"
+	"probity/plan/inputerr"
+	"probity/sampling/safewrite"
 	"reflect"
 	"strings"
 	"testing"
@@ -40,7 +42,7 @@ func sampleFolder() *Folder {
 func TestFolderRoundTrip(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "draw")
 	f := sampleFolder()
-	if err := WriteFolder(dir, f, false); err != nil {
+	if err := WriteFolder(dir, f, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	names, _ := filepath.Glob(filepath.Join(dir, "*"))
@@ -86,13 +88,13 @@ func TestFolderRoundTrip(t *testing.T) {
 		t.Fatal("manifest does not re-encode to the same bytes")
 	}
 	// A second write is refused without force, allowed with it.
-	err = WriteFolder(dir, sampleFolder(), false)
-	if !errors.Is(err, ErrFolderNotEmpty) {
-		t.Fatalf("second write: %v, want ErrFolderNotEmpty", err)
+	err = WriteFolder(dir, sampleFolder(), safewrite.FolderOptions{})
+	if !errors.Is(err, safewrite.ErrNotEmpty) {
+		t.Fatalf("second write: %v, want safewrite.ErrNotEmpty", err)
 	}
 	g := sampleFolder()
 	g.Second = nil
-	if err := WriteFolder(dir, g, true); err != nil {
+	if err := WriteFolder(dir, g, safewrite.FolderOptions{Replace: true}); err != nil {
 		t.Fatal(err)
 	}
 	if _, err := os.Stat(filepath.Join(dir, WorksheetSecondFile)); !errors.Is(err, os.ErrNotExist) {
@@ -121,18 +123,18 @@ func TestReadErrors(t *testing.T) {
 	}{
 		{"ledger header", "ledger.csv", "item,record_id\n", `ledger.csv line 1: header has 2 columns, expected 10: item, record_id, stratum, stratum_size, stratum_sample, weight, key, spare, double, m1`},
 		{"ledger candidate order", "ledger.csv", strings.Replace(lh, "m1", "m2", 1), `ledger.csv line 1: header column 10 is "m2", expected "m1"`},
-		{"ledger key", "ledger.csv", lh + "1,r1,all,10,2,5,XYZ,false,false,yes\n", `ledger.csv line 2, column key: "XYZ" is not 64 lowercase hex digits`},
+		{"ledger key", "ledger.csv", lh + "1,r1,all,10,2,5,XYZ,false,false,yes\n", `ledger.csv line 2, field key: "XYZ" is not 64 lowercase hex digits`},
 		{"ledger ragged", "ledger.csv", lh + "1,r1,all\n", `ledger.csv line 2: 3 fields, but the header has 10`},
-		{"ledger dup", "ledger.csv", lh + "1,r1,all,10,2,5," + key + ",false,false,yes\n2,r1,all,10,2,5," + key + ",false,false,yes\n", `ledger.csv line 3, column record_id: record_id "r1" appears twice (lines 2 and 3)`},
-		{"ledger spare", "ledger.csv", lh + "1,r1,all,10,2,5," + key + ",yes,false,yes\n", `ledger.csv line 2, column spare: "yes" is neither true nor false`},
-		{"ledger weight", "ledger.csv", lh + "1,r1,all,10,2,NaN," + key + ",false,false,yes\n", `ledger.csv line 2, column weight: "NaN" is not a non-negative number`},
+		{"ledger dup", "ledger.csv", lh + "1,r1,all,10,2,5," + key + ",false,false,yes\n2,r1,all,10,2,5," + key + ",false,false,yes\n", `ledger.csv line 3, field record_id: record_id "r1" appears twice (lines 2 and 3)`},
+		{"ledger spare", "ledger.csv", lh + "1,r1,all,10,2,5," + key + ",yes,false,yes\n", `ledger.csv line 2, field spare: "yes" is neither true nor false`},
+		{"ledger weight", "ledger.csv", lh + "1,r1,all,10,2,NaN," + key + ",false,false,yes\n", `ledger.csv line 2, field weight: "NaN" is not a non-negative number`},
 		{"worksheet header", "worksheet.csv", "item,label\n", `worksheet.csv line 1: header is item, label; a worksheet's columns are`},
-		{"worksheet item", "worksheet.csv", "item,record_id,label,note\nx,r1,,\n", `worksheet.csv line 2, column item: "x" is not a positive whole number`},
-		{"worksheet empty id", "worksheet.csv", "item,record_id,label,note,labeler\n1,,yes,,ann\n", `worksheet.csv line 2, column record_id: record_id is empty`},
+		{"worksheet item", "worksheet.csv", "item,record_id,label,note\nx,r1,,\n", `worksheet.csv line 2, field item: "x" is not a positive whole number`},
+		{"worksheet empty id", "worksheet.csv", "item,record_id,label,note,labeler\n1,,yes,,ann\n", `worksheet.csv line 2, field record_id: record_id is empty`},
 		{"worksheet quote", "worksheet.csv", "item,record_id,label,note\n1,r1,yes,\"open\n", `worksheet.csv line 2: extraneous or missing " in quoted-field`},
 		{"worksheet empty", "worksheet.csv", "", `worksheet.csv: the file is empty (no header line)`},
 		{"manifest json", "manifest.json", "{\n  \"format\": 1,\n  \"seed\": \n}\n", `manifest.json line 4: not a valid manifest: invalid character`},
-		{"manifest format", "manifest.json", `{"format": 9, "selection_seed": "s"}`, `manifest.json column format: format 9 is not supported`},
+		{"manifest format", "manifest.json", `{"format": 9, "selection_seed": "s"}`, `manifest.json, field format: format 9 is not supported`},
 		{"manifest unknown", "manifest.json", `{"format": 1, "colour": "s"}`, `unknown field "colour"`},
 	}
 	for _, c := range cases {
@@ -152,8 +154,8 @@ func TestReadErrors(t *testing.T) {
 			if err == nil {
 				t.Fatal("no error")
 			}
-			if !errors.Is(err, ErrInput) {
-				t.Errorf("error %v does not wrap ErrInput", err)
+			if !inputerr.Is(err) {
+				t.Errorf("error %v is not an input error", err)
 			}
 			msg := strings.ReplaceAll(err.Error(), dir+string(filepath.Separator), "")
 			if !strings.Contains(msg, c.want) {

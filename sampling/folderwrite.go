@@ -4,11 +4,7 @@ import (
 	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
-	"errors"
-	"fmt"
-	"io"
-	"os"
-	"path/filepath"
+	"probity/sampling/safewrite"
 )
 
 // Folder is the content of a draw folder, ready to be written: the
@@ -30,10 +26,6 @@ type NamedFile struct {
 	Name string
 	Data []byte
 }
-
-// ErrFolderNotEmpty is returned by WriteFolder for a non-empty directory
-// when overwriting was not asked for.
-var ErrFolderNotEmpty = errors.New("output folder is not empty")
 
 // Render encodes the folder's files in the order they are written:
 // worksheet.csv, worksheet-second.csv (if any), ledger.csv, then
@@ -74,109 +66,21 @@ func SHA256Hex(data []byte) string {
 	return hex.EncodeToString(s[:])
 }
 
-// CheckFolderWritable returns ErrFolderNotEmpty (wrapped, naming dir) when
-// dir exists, is not empty and force is false, and an error when dir
-// exists but is not a directory. A missing dir is fine.
-func CheckFolderWritable(dir string, force bool) error {
-	st, err := os.Stat(dir)
-	if errors.Is(err, os.ErrNotExist) {
-		return nil
-	}
+// WriteFolder renders f and writes it into dir through safewrite: a new
+// dir appears whole; into an existing one (o.Replace, the draw's --force)
+// the files are moved into place together, manifest.json last, and a
+// worksheet-second.csv of an earlier draw is removed when f has none.
+func WriteFolder(dir string, f *Folder, o safewrite.FolderOptions) error {
+	rendered, err := f.Render()
 	if err != nil {
 		return err
 	}
-	if !st.IsDir() {
-		return fmt.Errorf("%s exists and is not a folder", dir)
+	files := make([]safewrite.File, len(rendered))
+	for i, nf := range rendered {
+		files[i] = safewrite.File{Path: nf.Name, Data: nf.Data}
 	}
-	if force {
-		return nil
-	}
-	d, err := os.Open(dir)
-	if err != nil {
-		return err
-	}
-	defer d.Close()
-	if _, err := d.Readdirnames(1); err == io.EOF {
-		return nil
-	}
-	return fmt.Errorf("%s: %w", dir, ErrFolderNotEmpty)
-}
-
-// WriteFolder renders f and writes it into dir, creating dir if needed.
-// A non-empty dir is refused unless force. Each file is written to a
-// temporary name in dir and renamed into place, manifest.json last; on
-// failure the temporary files are removed, and so is dir if WriteFolder
-// created it. With force, a stale worksheet-second.csv from an earlier draw
-// is removed when f has none.
-func WriteFolder(dir string, f *Folder, force bool) (err error) {
-	files, err := f.Render()
-	if err != nil {
-		return err
-	}
-	if err := CheckFolderWritable(dir, force); err != nil {
-		return err
-	}
-	created := false
-	if _, statErr := os.Stat(dir); errors.Is(statErr, os.ErrNotExist) {
-		if err := os.MkdirAll(dir, 0o755); err != nil {
-			return err
-		}
-		created = true
-	}
-	var temps []string
-	defer func() {
-		if err == nil {
-			return
-		}
-		for _, t := range temps {
-			os.Remove(t)
-		}
-		if created {
-			os.RemoveAll(dir)
-		}
-	}()
-	for _, nf := range files {
-		tmp, err := writeTemp(dir, nf)
-		if tmp != "" {
-			temps = append(temps, tmp)
-		}
-		if err != nil {
-			return err
-		}
-	}
-	for i, nf := range files {
-		if err := os.Rename(temps[i], filepath.Join(dir, nf.Name)); err != nil {
-			return err
-		}
-	}
-	temps = nil
 	if f.Second == nil {
-		if err := os.Remove(filepath.Join(dir, WorksheetSecondFile)); err != nil && !errors.Is(err, os.ErrNotExist) {
-			return err
-		}
+		o.Stale = append(o.Stale, WorksheetSecondFile)
 	}
-	return nil
-}
-
-// writeTemp writes nf to a new temporary file in dir and returns its path.
-func writeTemp(dir string, nf NamedFile) (string, error) {
-	t, err := os.CreateTemp(dir, "."+nf.Name+".tmp-*")
-	if err != nil {
-		return "", err
-	}
-	if _, err := t.Write(nf.Data); err != nil {
-		t.Close()
-		return t.Name(), err
-	}
-	if err := t.Sync(); err != nil {
-		t.Close()
-		return t.Name(), err
-	}
-	if err := t.Close(); err != nil {
-		return t.Name(), err
-	}
-	if err := os.Chmod(t.Name(), 0o644); err != nil {
-		return t.Name(), err
-	}
-	return t.Name(), nil
+	return safewrite.WriteFolder(dir, files, o)
 }

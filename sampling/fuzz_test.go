@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"probity/plan/inputerr"
 	"sort"
 	"strings"
 	"testing"
@@ -34,7 +35,7 @@ func FuzzScan(f *testing.F) {
 			Capacity: int(capacity%20) + 1, ChunkSize: int(chunk%512) + 1, Workers: 2, Dedupe: capacity%2 == 0}
 		res, err := Scan(bytes.NewReader(data), spec)
 		if err != nil {
-			ie, ok := err.(*InputError)
+			ie, ok := err.(*inputerr.Error)
 			if !ok {
 				t.Fatalf("error %T %v is not an InputError", err, err)
 			}
@@ -76,7 +77,7 @@ func FuzzReadWorksheet(f *testing.F) {
 		}
 		h, rows, err := ReadWorksheet(p)
 		if err != nil {
-			if _, ok := err.(*InputError); !ok {
+			if _, ok := err.(*inputerr.Error); !ok {
 				t.Fatalf("error %T %v is not an InputError", err, err)
 			}
 			return
@@ -175,7 +176,7 @@ func FuzzScanQuoteFreeMatchesReference(f *testing.F) {
 		}
 		res, err := Scan(bytes.NewReader(data), spec)
 		if badLine > 0 {
-			ie, ok := err.(*InputError)
+			ie, ok := err.(*inputerr.Error)
 			if !ok || ie.Line != badLine {
 				t.Fatalf("reference: bad row on line %d; Scan: %v", badLine, err)
 			}

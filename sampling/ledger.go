@@ -41,7 +41,7 @@ func WriteLedger(w io.Writer, candidates []string, rows []LedgerRow) error {
 // stratum, stratum_size, stratum_sample, weight, key, spare, double, then
 // the candidate names in plan order. (A ledger without the double column,
 // from before double labeling, is also read; Double is then false.) Every
-// field is checked; errors are *InputError naming file, line and column.
+// field is checked; errors are *inputerr.Error naming file, line and column.
 func ReadLedger(path string, candidates []string) ([]LedgerRow, error) {
 	t, err := readCSVTable(path)
 	if err != nil {

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"probity/plan/inputerr"
 )
 
 // MarshalManifest encodes m as manifest.json: keys in struct order (maps
@@ -69,7 +70,7 @@ func ParseManifest(data []byte, name string) (*Manifest, error) {
 		case errors.As(err, &te):
 			line = lineAt(data, te.Offset)
 		}
-		return nil, &InputError{File: name, Line: line, Msg: "not a valid manifest: " + err.Error(), Err: err}
+		return nil, &inputerr.Error{File: name, Line: line, Msg: "not a valid manifest: " + err.Error(), Err: err}
 	}
 	if dec.More() {
 		return nil, inputErrorf(name, 0, "", "not a valid manifest: extra data after the JSON object")
@@ -88,7 +89,7 @@ func ParseManifest(data []byte, name string) (*Manifest, error) {
 func ReadManifest(path string) (*Manifest, []byte, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, inputerr.FromPath(err)
 	}
 	m, err := ParseManifest(data, path)
 	if err != nil {

@@ -3,6 +3,7 @@ package sampling
 import (
 	"bytes"
 	"fmt"
+	"probity/plan/inputerr"
 	"sort"
 	"strings"
 )
@@ -153,7 +154,7 @@ func mergeRows(a, b []Row, label string, events *[]dupEvent) []Row {
 }
 
 // duplicateError names the first few repeated ids and their lines.
-func (s *scanner) duplicateError(d []Duplicate) *InputError {
+func (s *scanner) duplicateError(d []Duplicate) *inputerr.Error {
 	first := d[0]
 	var b strings.Builder
 	fmt.Fprintf(&b, "record id %q appears again (first on line %d)", first.ID, first.FirstLine)
@@ -172,6 +173,6 @@ func (s *scanner) duplicateError(d []Duplicate) *InputError {
 	}
 	e := inputErrorf(s.spec.Name, int(first.Line), s.spec.IDColumn, "%s", b.String())
 	e.Err = ErrDuplicateIDs
-	e.Hint = "each record id must appear once; --dedupe first keeps the first row of each id"
+	e.Hint = "each record id must appear once"
 	return e
 }

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"io"
+	"probity/plan/inputerr"
 	"runtime"
 	"sort"
 	"sync"
@@ -98,6 +99,10 @@ type ScanResult struct {
 // ErrDuplicateIDs is wrapped by the error for repeated ids without Dedupe.
 var ErrDuplicateIDs = errors.New("duplicate record ids")
 
+// ErrIDColumn is the cause of the error about a log without the id column
+// the draw was told to use.
+var ErrIDColumn = errors.New("the id column is not in the log")
+
 // Scan reads a prediction log in one pass and keeps, per stratum, the
 // Capacity rows with the smallest keys, with bounded memory: reading,
 // splitting and SHA-256 hashing run on Workers goroutines over chunks of
@@ -157,7 +162,7 @@ type scanner struct {
 
 	errSeq atomic.Int64 // lowest chunk seq that failed
 	mu     sync.Mutex
-	errs   []*InputError
+	errs   []*inputerr.Error
 }
 
 type compiledFilter struct {
@@ -172,7 +177,7 @@ type chunk struct {
 	buf  *[]byte
 }
 
-func (s *scanner) fail(seq int64, e *InputError) {
+func (s *scanner) fail(seq int64, e *inputerr.Error) {
 	s.mu.Lock()
 	s.errs = append(s.errs, e)
 	s.mu.Unlock()
@@ -293,7 +298,7 @@ func (s *scanner) run() (*ScanResult, error) {
 	}
 	if res.InScope == 0 {
 		e := inputErrorf(s.spec.Name, 0, "", "no row of the %d in the log matches the filter %s", res.Rows, filterList(s.spec.Where))
-		e.Hint = "check the --where values against the log (values are compared exactly, case included)"
+		e.Hint = "check the filter's values against the log (values are compared exactly, case included)"
 		return nil, e
 	}
 	return res, nil
@@ -337,7 +342,8 @@ func (s *scanner) compile() error {
 	}
 	var err error
 	if s.idSlot, err = slot(s.spec.IDColumn, "id"); err != nil {
-		err.(*InputError).Hint = "name the id column with --id COLUMN"
+		ie := err.(*inputerr.Error)
+		ie.Err, ie.Hint = ErrIDColumn, "name the log's id column"
 		return err
 	}
 	for _, c := range s.spec.StrataColumns {

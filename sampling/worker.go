@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"unsafe"
 
+	"probity/plan/inputerr"
 	"probity/sampling/delimscan"
 )
 
@@ -178,7 +179,7 @@ func (w *worker) chunk(c chunk) {
 }
 
 // record handles one data record.
-func (w *worker) record(line int64, rec []byte) *InputError {
+func (w *worker) record(line int64, rec []byte) *inputerr.Error {
 	s := w.s
 	name := s.spec.Name
 	switch s.format {
@@ -203,7 +204,7 @@ func (w *worker) record(line int64, rec []byte) *InputError {
 
 // processNow classifies a record whose fields are in w.vals and offers
 // it to its stratum at once.
-func (w *worker) processNow(line int64, nf int) *InputError {
+func (w *worker) processNow(line int64, nf int) *inputerr.Error {
 	st, err := w.classify(line, nf)
 	if st != nil {
 		id := w.vals[w.s.idSlot]
@@ -217,7 +218,7 @@ func (w *worker) processNow(line int64, nf int) *InputError {
 // its number of fields (−1 for JSON Lines, where keys are checked by the
 // parser), counts it and returns its stratum, or nil when the record is
 // outside the scope (--where).
-func (w *worker) classify(line int64, nf int) (*wstratum, *InputError) {
+func (w *worker) classify(line int64, nf int) (*wstratum, *inputerr.Error) {
 	s := w.s
 	name := s.spec.Name
 	if nf >= 0 && nf != len(s.header) {
@@ -286,7 +287,7 @@ func (w *worker) classify(line int64, nf int) (*wstratum, *InputError) {
 			}
 			if len(w.strata) >= s.spec.MaxStrata {
 				e := inputErrorf(name, 0, "", "more than %d strata: the strata columns have too many distinct values to stratify by", s.spec.MaxStrata)
-				e.Hint = "stratify by columns with a few categories, or by score bands (--band)"
+				e.Hint = "stratify by columns with a few categories, or by score bands"
 				return nil, e
 			}
 			st = w.newStratum(string(w.label))
@@ -328,7 +329,7 @@ const bandCacheBits = 15
 // Values of 1 to 7 bytes (most scores as written) are remembered in a
 // direct-mapped cache by their bytes, so a repeated value is not parsed
 // again; the interval is a function of the bytes alone.
-func (w *worker) bandIndex(line int64, i, sl int) (int, *InputError) {
+func (w *worker) bandIndex(line int64, i, sl int) (int, *inputerr.Error) {
 	v := w.vals[sl]
 	word, short := shortWord(v)
 	var e *shortEntry

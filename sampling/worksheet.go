@@ -36,7 +36,7 @@ func WriteWorksheet(w io.Writer, show []string, rows []WorksheetRow) error {
 // record_id, any show columns, label, note and optionally labeler (in that
 // order). It returns the header as found and the rows with their line
 // numbers. Items must be positive whole numbers and record ids non-empty,
-// each appearing once. Errors are *InputError naming file, line, column.
+// each appearing once. Errors are *inputerr.Error naming file, line, column.
 func ReadWorksheet(path string) (header []string, rows []WorksheetRow, err error) {
 	t, err := readCSVTable(path)
 	if err != nil {

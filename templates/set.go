@@ -10,6 +10,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"probity/plan/inputerr"
 	"regexp"
 	"sort"
 	"strings"
@@ -85,19 +86,12 @@ func isTemplate(name string) bool { return !strings.HasPrefix(name, "caution-") 
 // content.
 var ErrTemplate = errors.New("invalid template")
 
-// FileError is an error about one template file.
-type FileError struct {
-	// Path is the file as the user named it (the override directory joined
-	// with the file name), or "embedded:NAME" for an embedded file.
-	Path string
-	// Msg says what is wrong.
-	Msg string
+// fileError is the input error about one template file: path is the file
+// as the user named it (the override directory joined with the file name),
+// or "embedded:NAME" for an embedded file. It wraps ErrTemplate.
+func fileError(path, msg string) *inputerr.Error {
+	return &inputerr.Error{File: path, Msg: msg, Err: ErrTemplate}
 }
-
-func (e *FileError) Error() string { return e.Path + ": " + e.Msg }
-
-// Unwrap lets errors.Is match ErrTemplate.
-func (e *FileError) Unwrap() error { return ErrTemplate }
 
 // Set is a loaded, checked set of wording files.
 type Set struct {
@@ -140,7 +134,7 @@ func Load(dir string) (*Set, error) {
 func (s *Set) override(dir string, origin map[string]string) error {
 	entries, err := os.ReadDir(dir)
 	if err != nil {
-		return fmt.Errorf("templates directory: %w", err)
+		return inputerr.FromPath(err)
 	}
 	known := map[string]bool{}
 	for _, n := range Names() {
@@ -153,14 +147,14 @@ func (s *Set) override(dir string, origin map[string]string) error {
 		}
 		path := filepath.Join(dir, name)
 		if e.IsDir() {
-			return &FileError{Path: path, Msg: "is a directory; the templates directory holds files only"}
+			return fileError(path, "is a directory; the templates directory holds files only")
 		}
 		if !known[name] {
-			return &FileError{Path: path, Msg: "is not a template file name (known: " + strings.Join(Names(), ", ") + ")"}
+			return fileError(path, "is not a template file name (known: "+strings.Join(Names(), ", ")+")")
 		}
 		b, err := fs.ReadFile(os.DirFS(dir), name)
 		if err != nil {
-			return &FileError{Path: path, Msg: err.Error()}
+			return fileError(path, err.Error())
 		}
 		s.text[name] = string(b)
 		origin[name] = path
@@ -173,17 +167,17 @@ func (s *Set) override(dir string, origin map[string]string) error {
 func (s *Set) check(name, path string) error {
 	text := s.text[name]
 	if !utf8.ValidString(text) {
-		return &FileError{Path: path, Msg: "is not valid UTF-8 text"}
+		return fileError(path, "is not valid UTF-8 text")
 	}
 	if !isTemplate(name) {
 		if len(Blocks(text)) == 0 {
-			return &FileError{Path: path, Msg: "is empty; a caution cannot be removed, only reworded"}
+			return fileError(path, "is empty; a caution cannot be removed, only reworded")
 		}
 		return nil
 	}
 	t, err := template.New(name).Option("missingkey=error").Parse(text)
 	if err != nil {
-		return &FileError{Path: path, Msg: "does not parse: " + trimTemplateErr(err.Error(), name)}
+		return fileError(path, "does not parse: "+trimTemplateErr(err.Error(), name))
 	}
 	// Execute now, so a misspelt field is caught at load time rather than
 	// while a record is being written.
@@ -192,7 +186,7 @@ func (s *Set) check(name, path string) error {
 	for _, f := range []Fields{sampleFields(), {}} {
 		var buf bytes.Buffer
 		if err := t.Execute(&buf, f); err != nil {
-			return &FileError{Path: path, Msg: "cannot be filled in: " + trimTemplateErr(err.Error(), name)}
+			return fileError(path, "cannot be filled in: "+trimTemplateErr(err.Error(), name))
 		}
 	}
 	s.parsed[name] = t

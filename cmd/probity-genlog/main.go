@@ -11,9 +11,11 @@ import (
 	"bufio"
 	"flag"
 	"fmt"
+	"io"
 	"os"
 
 	"probity/sampling/loggen"
+	"probity/sampling/safewrite"
 )
 
 func main() {
@@ -40,19 +42,11 @@ func write(out string, c loggen.Config) error {
 		}
 		return w.Flush()
 	}
-	tmp := out + ".tmp"
-	f, err := os.Create(tmp)
-	if err != nil {
-		return err
-	}
-	if err := loggen.Write(f, c); err != nil {
-		f.Close()
-		os.Remove(tmp)
-		return err
-	}
-	if err := f.Close(); err != nil {
-		os.Remove(tmp)
-		return err
-	}
-	return os.Rename(tmp, out)
+	return safewrite.Write([]safewrite.File{{Path: out, Stream: func(w io.Writer) error {
+		bw := bufio.NewWriterSize(w, 1<<20)
+		if err := loggen.Write(bw, c); err != nil {
+			return err
+		}
+		return bw.Flush()
+	}}}, safewrite.Options{Replace: true})
 }

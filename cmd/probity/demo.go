@@ -2,18 +2,23 @@ package main
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
+	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
 
+	"probity/plan/inputerr"
 	"probity/sampling"
 	"probity/sampling/demolog"
+	"probity/sampling/safewrite"
 )
 
 // demoOptions are the flags of probity demo.
@@ -77,9 +82,14 @@ type demoRun struct {
 func runDemo(d deps, o *demoOptions) error {
 	months := demolog.Months()
 	sc := months[len(months)-1]
-	if err := prepareDemoDir(o.out, o.force); err != nil {
+	release, err := safewrite.PrepareFolder(o.out, o.force, isDemoFolder)
+	if errors.Is(err, safewrite.ErrNotEmpty) && inputerr.HintOf(err) == "" {
+		return inputerr.SetHint(err, "give another --out, or --force to replace an earlier demo's artifacts")
+	}
+	if err != nil {
 		return err
 	}
+	defer release()
 	// The steps run inside DIR with relative paths, as a user would type
 	// them: the command log can be replayed there, and the artifacts (which
 	// record the paths they were given) do not depend on where DIR is.
@@ -88,7 +98,7 @@ func runDemo(d deps, o *demoOptions) error {
 		return err
 	}
 	if err := os.Chdir(o.out); err != nil {
-		return badInput(err)
+		return inputerr.FromPath(err)
 	}
 	defer os.Chdir(back)
 	shown := func(p string) string { return filepath.Join(o.out, p) }
@@ -367,45 +377,26 @@ func demoCandidateNames(drawDir string) ([]string, error) {
 	return cols[fixed:], nil
 }
 
-// prepareDemoDir makes DIR, refusing a non-empty one unless force, in which
-// case the previous demo's artifacts are removed first.
-func prepareDemoDir(dir string, force bool) error {
-	entries, err := os.ReadDir(dir)
-	switch {
-	case os.IsNotExist(err):
-		return os.MkdirAll(dir, 0o755)
-	case err != nil:
-		return badInput(err)
-	case len(entries) > 0 && !force:
-		return withHint(usageErrorf("%s is not empty", dir), "give another --out, or --force to replace an earlier demo's artifacts")
+// demoArtifact matches the names the demo writes at the top of its folder.
+var demoArtifact = regexp.MustCompile(`^(commands\.txt|signoff\.yaml|plan\.yaml|keys|trend\.(png|pdf)|prediction-log-[0-9]{4}-[0-9]{2}\.csv\.gz|(draw|labels|record)-[0-9]{4}-[0-9]{2})$`)
+
+// isDemoFolder recognises a folder an earlier demo filled: it holds the
+// demo's command log and plan, and nothing the demo does not write.
+func isDemoFolder(names []string) bool {
+	if !slices.Contains(names, "commands.txt") || !slices.Contains(names, "plan.yaml") {
+		return false
 	}
-	for _, e := range entries {
-		if err := os.RemoveAll(filepath.Join(dir, e.Name())); err != nil {
-			return err
+	for _, n := range names {
+		if !demoArtifact.MatchString(n) {
+			return false
 		}
 	}
-	return nil
+	return true
 }
 
-// writeDemoFile writes a file through a temporary name and a rename.
+// writeDemoFile writes a file of the demo through safewrite.
 func writeDemoFile(path string, write func(io.Writer) error) error {
-	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-		return err
-	}
-	tmp, err := os.CreateTemp(filepath.Dir(path), ".tmp-"+filepath.Base(path)+"-*")
-	if err != nil {
-		return err
-	}
-	if err := write(tmp); err != nil {
-		tmp.Close()
-		os.Remove(tmp.Name())
-		return err
-	}
-	if err := tmp.Close(); err != nil {
-		os.Remove(tmp.Name())
-		return err
-	}
-	return os.Rename(tmp.Name(), path)
+	return safewrite.Write([]safewrite.File{{Path: path, Stream: write}}, safewrite.Options{Replace: true})
 }
 
 func firstLine(s string) string {

@@ -12,7 +12,9 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // drawOptions are the flags of probity draw.
@@ -140,69 +142,68 @@ Labels written into the worksheets since the draw are not differences.
 // validate checks the flags before any file is read.
 func (o *drawOptions) validate() error {
 	if o.planPath == "" {
-		return withHint(usageErrorf("--plan is required"), "give the plan file made by 'probity plan', e.g. --plan plan.yaml")
+		return inputerr.Errorf("--plan is required").WithHint("give the plan file made by 'probity plan', e.g. --plan plan.yaml")
 	}
 	if o.logPath == "" {
-		return withHint(usageErrorf("--log is required"), "give the prediction log, e.g. --log predictions.csv.gz (- reads stdin)")
+		return inputerr.Errorf("--log is required").WithHint("give the prediction log, e.g. --log predictions.csv.gz (- reads stdin)")
 	}
 	if o.check != "" {
 		if o.out != "" {
-			return withHint(usageErrorf("--check and --out cannot be used together"), "--check DIR verifies an existing draw; --out DIR makes a new one")
+			return inputerr.Errorf("--check and --out cannot be used together").WithHint("--check DIR verifies an existing draw; --out DIR makes a new one")
 		}
 		return nil
 	}
 	if o.out == "" {
-		return withHint(usageErrorf("--out is required"), "name the folder to write the draw into, e.g. --out audit-2026-11")
+		return inputerr.Errorf("--out is required").WithHint("name the folder to write the draw into, e.g. --out audit-2026-11")
 	}
 	switch o.format {
 	case "", sampling.FormatCSV, sampling.FormatTSV, sampling.FormatJSONL:
 	default:
-		return withHint(usageErrorf("--format %s is not csv, tsv or jsonl", o.format), "leave it out to detect the format")
+		return inputerr.Errorf("--format %s is not csv, tsv or jsonl", o.format).WithHint("leave it out to detect the format")
 	}
 	switch o.allocation {
 	case sampling.Proportional, sampling.Equal:
 		if o.anticipated != "" {
-			return withHint(usageErrorf("--anticipated is only used by --allocation neyman"), "add --allocation neyman, or drop --anticipated")
+			return inputerr.Errorf("--anticipated is only used by --allocation neyman").WithHint("add --allocation neyman, or drop --anticipated")
 		}
 	case sampling.Neyman:
 		if o.anticipated == "" && len(o.bands) == 0 {
-			return withHint(usageErrorf("--allocation neyman needs the anticipated error of each stratum"),
-				"give --anticipated FILE (CSV stratum,anticipated_error or YAML), or stratify by a score band (--band score=0.5,0.9) to derive it")
+			return inputerr.Errorf("--allocation neyman needs the anticipated error of each stratum").WithHint("give --anticipated FILE (CSV stratum,anticipated_error or YAML), or stratify by a score band (--band score=0.5,0.9) to derive it")
 		}
 	default:
-		return withHint(usageErrorf("--allocation %s is not proportional, neyman or equal", o.allocation), "the default is proportional")
+		return inputerr.Errorf("--allocation %s is not proportional, neyman or equal", o.allocation).WithHint("the default is proportional")
 	}
 	for _, v := range []struct {
 		name string
 		n    int
 	}{{"--min-per-stratum", o.minPer}, {"--spare", o.spare}, {"--double", o.double}} {
 		if v.n < 0 {
-			return usageErrorf("%s %d is negative", v.name, v.n)
+			return inputerr.Errorf("%s %d is negative", v.name, v.n)
 		}
 	}
 	if o.dedupe != "" && o.dedupe != "first" {
-		return withHint(usageErrorf("--dedupe %s is not supported", o.dedupe), "--dedupe first keeps the first row of each repeated id")
+		return inputerr.Errorf("--dedupe %s is not supported", o.dedupe).WithHint("--dedupe first keeps the first row of each repeated id")
 	}
 	if strings.TrimSpace(o.period) != o.period || strings.ContainsAny(o.period, "\n\r") {
-		return usageErrorf("--period %q has leading or trailing spaces", o.period)
+		return inputerr.Errorf("--period %q has leading or trailing spaces", o.period)
 	}
 	for _, b := range o.bands {
 		pb, err := sampling.ParseBand(b)
 		if err != nil {
-			return withHint(usageErrorf("--band: %v", err), "e.g. --band score=0.5,0.9")
+			return inputerr.Errorf("--band: %v", err).WithHint("e.g. --band score=0.5,0.9")
 		}
 		o.parsedBands = append(o.parsedBands, pb)
 	}
 	for _, w := range o.where {
 		pf, err := sampling.ParseFilter(w)
 		if err != nil {
-			return withHint(usageErrorf("--where: %v", err), "e.g. --where region=north,south")
+			return inputerr.Errorf("--where: %v", err).WithHint("e.g. --where region=north,south")
 		}
 		o.parsedWhere = append(o.parsedWhere, pf)
 	}
 	for _, c := range append(append([]string{o.id}, o.strata...), o.show...) {
 		if strings.TrimSpace(c) == "" {
-			return usageErrorf("an empty column name was given (check --id, --strata and --show)")
+			return inputerr.Errorf("an empty column name was given (check --id, --strata and --show)")
 		}
 	}
 	return nil
@@ -212,11 +213,10 @@ func (o *drawOptions) validate() error {
 func loadDrawPlan(path string) (*plan.File, string, error) {
 	p, fp, err := plan.Load(path)
 	if err != nil {
-		return nil, "", badInput(err)
+		return nil, "", err
 	}
 	if p.IsSizingOnly() {
-		return nil, "", withHint(usageErrorf("%s is a sizing-only plan: it declares no candidates, so it cannot be drawn", path),
-			"declare the models or thresholds to judge: probity plan … --candidate NAME=COLUMN, or --thresholds COLUMN:t1,t2 --positive LABEL --negative LABEL")
+		return nil, "", inputerr.Errorf("%s is a sizing-only plan: it declares no candidates, so it cannot be drawn", path).WithHint("declare the models or thresholds to judge: probity plan … --candidate NAME=COLUMN, or --thresholds COLUMN:t1,t2 --positive LABEL --negative LABEL")
 	}
 	return p, fp, nil
 }
@@ -228,39 +228,40 @@ func openDrawLog(d deps, path string) (io.Reader, func(), int64, error) {
 	}
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, nil, 0, withHint(usageErrorf("cannot open the log: %v", err), "check the --log path")
+		return nil, nil, 0, inputerr.Errorf("cannot open the log: %w", err).WithHint("check the --log path")
 	}
 	var size int64
 	if st, err := f.Stat(); err == nil {
 		if st.IsDir() {
 			f.Close()
-			return nil, nil, 0, usageErrorf("--log %s is a folder, not a file", path)
+			return nil, nil, 0, inputerr.Errorf("--log %s is a folder, not a file", path)
 		}
 		size = st.Size()
 	}
 	return f, func() { f.Close() }, size, nil
 }
 
-// drawError maps a sampling error to probity's error shape.
+// drawFlags names the flag of each draw setting the sampling package
+// names by its manifest key.
+var drawFlags = map[string]string{
+	"double": "--double", "show_columns": "--show", "bands": "--band", "where": "--where",
+}
+
+// drawError adds the draw command's flags to an error of the sampling
+// package: the flag that gave a setting, and the flag that fixes a
+// refusal.
 func drawError(err error) error {
-	var ie *sampling.InputError
-	if errors.As(err, &ie) {
-		if ie.Hint != "" {
-			return withHint(badInput(err), ie.Hint)
-		}
-		return badInput(err)
+	switch {
+	case errors.Is(err, sampling.ErrDuplicateIDs):
+		return inputerr.SetHint(err, "each record id must appear once; --dedupe first keeps the first row of each id")
+	case errors.Is(err, sampling.ErrIDColumn):
+		return inputerr.SetHint(err, "name the id column with --id COLUMN")
+	case errors.Is(err, safewrite.ErrNotEmpty) && inputerr.HintOf(err) == "":
+		return inputerr.SetHint(err, "choose a new folder, or add --force to overwrite the draw in it")
+	case errors.Is(err, sampling.ErrNotDrawable):
+		return inputerr.SetHint(err, "declare candidates with probity plan --candidate NAME=COLUMN or --thresholds COLUMN:t1,t2 --positive L --negative L")
 	}
-	var oe *sampling.OptionError
-	if errors.As(err, &oe) {
-		return badInput(err)
-	}
-	if errors.Is(err, sampling.ErrAllocation) || errors.Is(err, sampling.ErrInput) || errors.Is(err, sampling.ErrDuplicateIDs) {
-		return badInput(err)
-	}
-	if errors.Is(err, sampling.ErrFolderNotEmpty) {
-		return withHint(badInput(err), "choose a new folder, or add --force to overwrite the draw in it")
-	}
-	return err
+	return flagNames(err, drawFlags)
 }
 
 func runDraw(d deps, o *drawOptions) error {
@@ -268,7 +269,7 @@ func runDraw(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
-	if err := sampling.CheckFolderWritable(o.out, o.force); err != nil {
+	if err := safewrite.CheckFolder(o.out, o.force); err != nil {
 		return drawError(err)
 	}
 	in := sampling.DrawInput{
@@ -292,16 +293,22 @@ func runDraw(d deps, o *drawOptions) error {
 	}
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
-		return err
+		return drawError(err)
 	}
-	if err := sampling.WriteFolder(o.out, f, o.force); err != nil {
-		if errors.Is(err, sampling.ErrFolderNotEmpty) {
-			return drawError(err)
-		}
-		return fmt.Errorf("writing %s: %w", o.out, err)
+	if err := sampling.WriteFolder(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: o.inputs()}); err != nil {
+		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
 	return nil
+}
+
+// inputs are the files the draw reads, which its output never replaces.
+func (o *drawOptions) inputs() []string {
+	in := []string{o.planPath, o.anticipated}
+	if o.logPath != "-" {
+		in = append(in, o.logPath)
+	}
+	return in
 }
 
 // drawFromLog opens the log and draws, with a progress bar when stderr is
@@ -322,13 +329,7 @@ func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*sampling.Fold
 	if bar != nil {
 		bar.finish()
 	}
-	if err != nil {
-		if errors.Is(err, sampling.ErrNotDrawable) {
-			return nil, withHint(badInput(err), "declare candidates with probity plan --candidate NAME=COLUMN or --thresholds COLUMN:t1,t2 --positive L --negative L")
-		}
-		return nil, drawError(err)
-	}
-	return f, nil
+	return f, err
 }
 
 // writeDrawSummary prints what was drawn.
@@ -380,25 +381,27 @@ func runDrawCheck(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
-	m, _, err := sampling.ReadManifest(filepath.Join(o.check, sampling.ManifestFile))
+	mpath := filepath.Join(o.check, sampling.ManifestFile)
+	m, _, err := sampling.ReadManifest(mpath)
 	if err != nil {
 		if errors.Is(err, os.ErrNotExist) {
-			return withHint(usageErrorf("%s has no %s: it is not a draw folder", o.check, sampling.ManifestFile), "give the folder written by probity draw --out")
+			return inputerr.Errorf("%s has no %s: it is not a draw folder", o.check, sampling.ManifestFile).WithHint("give the folder written by probity draw --out")
 		}
-		return drawError(err)
+		return err
 	}
+	// The settings come from the manifest: an error about one names it.
 	in, err := sampling.DrawInputFromManifest(m)
 	if err != nil {
-		return drawError(err)
+		return inFile(err, mpath)
 	}
 	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
-		return err
+		return inFile(err, mpath)
 	}
 	rep, err := sampling.CompareFolder(o.check, f)
 	if err != nil {
-		return drawError(err)
+		return err
 	}
 	if len(rep.Differences) == 0 {
 		fmt.Fprintf(d.stdout, "same: %s holds exactly the %d items and %d spares that the seed picks from %s (%d rows, sha256 %s)\n",

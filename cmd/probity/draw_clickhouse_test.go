@@ -143,8 +143,8 @@ func TestDrawClickHouse(t *testing.T) {
 			want string
 			hint string
 		}{
-			{"selection without its counts", []string{"--selected", selected}, "a clickhouse selection is checked against the counts it was made from", "import it together with the counts file: --counts COUNTS.csv"},
-			{"counts given as the selection", []string{"--counts", counts, "--selected", counts}, "this is the result of the counts query (step 1 of 2)", "print the selection query with --counts"},
+			{"selection without its counts", []string{"--selected", selected}, "a clickhouse selection is checked against the counts it was made from", "import it together with the counts file its selection query was printed from"},
+			{"counts given as the selection", []string{"--counts", counts, "--selected", counts}, "this is the result of the counts query (step 1 of 2)", "print the selection query from this counts file"},
 			{"selection given as the counts", []string{"--counts", selected, "--selected", selected}, "this is the result of a selection query, not of the counts query", ""},
 			{"a flag that differs", []string{"--counts", counts, "--selected", selected, "--spare", "2"}, `--spare "2" differs from the draw the result was made for ("1")`, "the result carries the draw's settings"},
 		}

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -10,7 +9,9 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 	"probity/sampling/sqlquery"
 )
 
@@ -83,11 +84,11 @@ func hookDrawSQL(d deps, cmd *cobra.Command, o *drawOptions) {
 	cmd.PreRunE = func(c *cobra.Command, args []string) error {
 		if so.dialect == "" && so.selected == "" {
 			if so.table != "" {
-				return withHint(usageErrorf("--table is only used with --sql"), "add --sql postgres, duckdb or clickhouse to print the drawing query")
+				return inputerr.Errorf("--table is only used with --sql").WithHint("add --sql postgres, duckdb or clickhouse to print the drawing query")
 			}
 			if so.counts != "" {
-				return withHint(usageErrorf("--counts is only used with --sql clickhouse or --selected"),
-					"print the selection query with --sql clickhouse --counts FILE, or import its result with --counts FILE --selected RESULT")
+				return inputerr.Errorf("--counts is only used with --sql clickhouse or --selected").
+					WithHint("print the selection query with --sql clickhouse --counts FILE, or import its result with --counts FILE --selected RESULT")
 			}
 			return pre(c, args)
 		}
@@ -109,11 +110,10 @@ func hookDrawSQL(d deps, cmd *cobra.Command, o *drawOptions) {
 // validate checks the flags of the two SQL paths.
 func (so *drawSQLOptions) validate(c *cobra.Command, o *drawOptions) error {
 	if so.dialect != "" && so.selected != "" {
-		return withHint(usageErrorf("--sql and --selected cannot be used together"),
-			"--sql prints the query; --selected imports its result")
+		return inputerr.Errorf("--sql and --selected cannot be used together").WithHint("--sql prints the query; --selected imports its result")
 	}
 	if o.planPath == "" {
-		return withHint(usageErrorf("--plan is required"), "give the plan file made by 'probity plan', e.g. --plan plan.yaml")
+		return inputerr.Errorf("--plan is required").WithHint("give the plan file made by 'probity plan', e.g. --plan plan.yaml")
 	}
 	mode := "--sql"
 	refused := []string{"log", "check", "format", "dedupe", "anticipated"}
@@ -124,34 +124,34 @@ func (so *drawSQLOptions) validate(c *cobra.Command, o *drawOptions) error {
 	}
 	for _, name := range refused {
 		if c.Flags().Changed(name) {
-			return withHint(usageErrorf("--%s cannot be used with %s", name, mode), drawSQLConflictHint(name, mode))
+			return inputerr.Errorf("--%s cannot be used with %s", name, mode).WithHint(drawSQLConflictHint(name, mode))
 		}
 	}
 	if strings.TrimSpace(o.period) != o.period || strings.ContainsAny(o.period, "\n\r") {
-		return usageErrorf("--period %q has leading or trailing spaces", o.period)
+		return inputerr.Errorf("--period %q has leading or trailing spaces", o.period)
 	}
 	if so.selected != "" {
 		if o.out == "" {
-			return withHint(usageErrorf("--out is required"), "name the folder to write the draw into, e.g. --out audit-2026-11")
+			return inputerr.Errorf("--out is required").WithHint("name the folder to write the draw into, e.g. --out audit-2026-11")
 		}
 		if so.selected == "-" && so.counts == "-" {
-			return usageErrorf("--counts and --selected cannot both read stdin")
+			return inputerr.Errorf("--counts and --selected cannot both read stdin")
 		}
 		return nil
 	}
-	d, err := sqlquery.ParseDialect(so.dialect)
+	dialect, err := sqlquery.ParseDialect(so.dialect)
 	if err != nil {
-		return withHint(usageErrorf("--sql: %v", err), "e.g. --sql postgres")
+		return inputerr.Errorf("--sql: %v", err).WithHint("e.g. --sql postgres")
 	}
-	if so.counts != "" && !d.TwoStep() {
-		return withHint(usageErrorf("--counts cannot be used with --sql %s", d), "--sql "+string(d)+" prints one query that counts and selects; --counts is for --sql clickhouse")
+	if so.counts != "" && !dialect.TwoStep() {
+		return inputerr.Errorf("--counts cannot be used with --sql %s", dialect).
+			WithHint("--sql " + string(dialect) + " prints one query that counts and selects; --counts is for --sql clickhouse")
 	}
 	if so.table == "" && so.counts == "" {
-		return withHint(usageErrorf("--sql needs --table"), "name the table or view holding the prediction log, e.g. --table analytics.predictions")
+		return inputerr.Errorf("--sql needs --table").WithHint("name the table or view holding the prediction log, e.g. --table analytics.predictions")
 	}
 	if o.allocation == sampling.Neyman {
-		return withHint(usageErrorf("--allocation neyman cannot run inside the engine"),
-			"use proportional or equal with --sql, or export the table and draw with --log")
+		return inputerr.Errorf("--allocation neyman cannot run inside the engine").WithHint("use proportional or equal with --sql, or export the table and draw with --log")
 	}
 	return nil
 }
@@ -192,18 +192,25 @@ func drawSpec(d deps, o *drawOptions, so *drawSQLOptions, planPath string) (*sql
 	for _, b := range o.bands {
 		pb, err := sampling.ParseBand(b)
 		if err != nil {
-			return nil, withHint(usageErrorf("--band: %v", err), "e.g. --band score=0.5,0.9")
+			return nil, inputerr.Errorf("--band: %v", err).WithHint("e.g. --band score=0.5,0.9")
 		}
 		s.Bands = append(s.Bands, pb.String())
 	}
 	for _, w := range o.where {
 		pf, err := sampling.ParseFilter(w)
 		if err != nil {
-			return nil, withHint(usageErrorf("--where: %v", err), "e.g. --where region=north,south")
+			return nil, inputerr.Errorf("--where: %v", err).WithHint("e.g. --where region=north,south")
 		}
 		s.Where = append(s.Where, pf.String())
 	}
 	return s, nil
+}
+
+// sqlFlags names the flag of each setting of a query's Spec, by its JSON
+// key.
+var sqlFlags = map[string]string{
+	"table": "--table", "id_column": "--id", "bands": "--band", "where": "--where", "show": "--show",
+	"double": "--double", "spare": "--spare", "min_per_stratum": "--min-per-stratum", "allocation": "--allocation",
 }
 
 // runDrawSQL prints the drawing query (for clickhouse, the counts query,
@@ -221,7 +228,7 @@ func runDrawSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOptions) er
 	}
 	q, err := sqlquery.Query(s)
 	if err != nil {
-		return specError(err)
+		return flagNames(err, sqlFlags)
 	}
 	if _, err := io.WriteString(d.stdout, q); err != nil {
 		return err
@@ -233,17 +240,11 @@ func runDrawSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOptions) er
 	return nil
 }
 
-// specError is an error about a draw that cannot be turned into a query,
-// without the package's prefix.
-func specError(err error) error {
-	return badInput(errors.New(strings.TrimPrefix(err.Error(), sqlquery.ErrSpec.Error()+": ")))
-}
-
 // printCountsQuery prints the first query of a two-step draw.
 func printCountsQuery(d deps, o *drawOptions, s *sqlquery.Spec) error {
 	q, err := sqlquery.CountsQuery(s)
 	if err != nil {
-		return specError(err)
+		return flagNames(err, sqlFlags)
 	}
 	if _, err := io.WriteString(d.stdout, q); err != nil {
 		return err
@@ -281,7 +282,7 @@ func runDrawSelectionSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOp
 	}
 	q, err := sqlquery.SelectionQuery(counts)
 	if err != nil {
-		return specError(err)
+		return flagNames(err, sqlFlags)
 	}
 	if _, err := io.WriteString(d.stdout, q); err != nil {
 		return err
@@ -299,13 +300,14 @@ func runDrawSelectionSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOp
 	return nil
 }
 
-// runDrawSelected imports a query's result into the draw folder.
+// runDrawSelected imports a query's result into the draw folder (with
+// --counts, a two-step selection checked against its counts).
 func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOptions) error {
 	p, fp, err := loadDrawPlan(o.planPath)
 	if err != nil {
 		return err
 	}
-	if err := sampling.CheckFolderWritable(o.out, o.force); err != nil {
+	if err := safewrite.CheckFolder(o.out, o.force); err != nil {
 		return drawError(err)
 	}
 	var res *sqlquery.Result
@@ -314,8 +316,7 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 		if err != nil {
 			return drawError(err)
 		}
-		res, err = sqlquery.ImportSelection(so.selected, d.stdin, p, fp, counts)
-		if err != nil {
+		if res, err = sqlquery.ImportSelection(so.selected, d.stdin, p, fp, counts); err != nil {
 			return drawError(err)
 		}
 	} else if res, err = sqlquery.Import(so.selected, d.stdin, p, fp); err != nil {
@@ -328,11 +329,8 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 	if err != nil {
 		return drawError(err)
 	}
-	if err := sampling.WriteFolder(o.out, f, o.force); err != nil {
-		if errors.Is(err, sampling.ErrFolderNotEmpty) {
-			return drawError(err)
-		}
-		return fmt.Errorf("writing %s: %w", o.out, err)
+	if err := sampling.WriteFolder(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: []string{o.planPath, so.selected, so.counts}}); err != nil {
+		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
 	fmt.Fprintf(d.stdout, "drawn inside %s from table %s (the log above is the query's result); query sha256 %s\n", res.Spec.Dialect, res.Spec.Table, res.QuerySHA256)
@@ -382,8 +380,7 @@ func checkResultFlags(file string, c *cobra.Command, o *drawOptions, so *drawSQL
 	}
 	for _, ch := range checks {
 		if c.Flags().Changed(ch.flag) && ch.given != ch.in {
-			return withHint(usageErrorf("%s: --%s %q differs from the draw the result was made for (%q)", file, ch.flag, ch.given, ch.in),
-				"the result carries the draw's settings; drop the flag, or import the result of the query printed with these settings")
+			return inputerr.Errorf("%s: --%s %q differs from the draw the result was made for (%q)", file, ch.flag, ch.given, ch.in).WithHint("the result carries the draw's settings; drop the flag, or import the result of the query printed with these settings")
 		}
 	}
 	return nil
@@ -406,25 +403,26 @@ func runDrawCheckEngine(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
-	m, _, err := sampling.ReadManifest(filepath.Join(o.check, sampling.ManifestFile))
+	mpath := filepath.Join(o.check, sampling.ManifestFile)
+	m, _, err := sampling.ReadManifest(mpath)
 	if err != nil {
-		return drawError(err)
+		return err
 	}
 	in, err := sampling.DrawInputFromManifest(m)
 	if err != nil {
-		return drawError(err)
+		return inFile(err, mpath)
 	}
 	in.Format = ""
 	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
-		return err
+		return inFile(err, mpath)
 	}
 	exportSHA, exportBytes := f.Manifest.Log.SHA256, f.Manifest.Log.Bytes
 	f.Manifest.Log.SHA256, f.Manifest.Log.Bytes = m.Log.SHA256, m.Log.Bytes
 	rep, err := sampling.CompareFolder(o.check, f)
 	if err != nil {
-		return drawError(err)
+		return err
 	}
 	if len(rep.Differences) == 0 {
 		fmt.Fprintf(d.stdout, "same: %s, drawn inside %s from table %s, holds exactly the %d items and %d spares that the seed picks from %s (%d rows, sha256 %s, %d bytes)\n",

@@ -195,8 +195,8 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 			hint   string
 			result string
 		}{
-			{"another plan", []string{"--plan", sqlOtherPlan}, "column detail: the result was made for another plan", "import it with the plan the query was printed from", result},
-			{"key does not match its id", nil, "column key: the key of record", "the result was edited",
+			{"another plan", []string{"--plan", sqlOtherPlan}, "field detail: the result was made for another plan", "import it with the plan the query was printed from", result},
+			{"key does not match its id", nil, "field key: the key of record", "the result was edited",
 				tamper(func(l []string) []string {
 					f := strings.Split(l[itemLine], ",")
 					f[1] = f[1] + "x"
@@ -211,7 +211,7 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 					}
 					return append(l[:last], l[last+1:]...)
 				})},
-			{"allocation edited", nil, "column stratum_sample: stratum", "",
+			{"allocation edited", nil, "field stratum_sample: stratum", "",
 				tamper(func(l []string) []string {
 					for i, s := range l {
 						if strings.HasPrefix(s, "stratum,") {
@@ -223,7 +223,7 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 					}
 					return l
 				})},
-			{"not a result", nil, "line 1: the header is not that of a probity draw query", "save the result of the query printed by probity draw --sql", export},
+			{"not a result", nil, "line 1: the header is not that of a probity draw query", "save the result of the drawing query probity printed", export},
 			{"a flag that differs", []string{"--strata", "region"}, `--strata "region" differs from the draw the result was made for ("region,channel")`, "the result carries the draw's settings", result},
 		}
 		for _, c := range cases {
@@ -255,13 +255,13 @@ func TestDrawSQLFlags(t *testing.T) {
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--out", "d"}, "--out cannot be used with --sql"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--allocation", "neyman"}, "--allocation neyman cannot run inside the engine"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--dedupe", "first"}, "--dedupe cannot be used with --sql"},
-		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", `a..b`}, `--table: invalid SQL name: table name "a..b" has an empty part`},
+		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", `a..b`}, `--table a..b: invalid SQL name: table name "a..b" has an empty part`},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--id", strings.Repeat("x", 64)}, "is 64 bytes long; postgres keeps only the first 63"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--show", "score"}, "--show score: the column holds candidate score-0.7's prediction or score"},
 		{[]string{"--plan", "../../testdata/draw/plan-sizing-only.yaml", "--sql", "postgres", "--table", "t"}, "is a sizing-only plan"},
 		{[]string{"--plan", sqlPlan, "--selected", "r.csv"}, "--out is required"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--period", " 2026-11"}, `--period " 2026-11" has leading or trailing spaces`},
-		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--spare", "-1"}, "--min-per-stratum and --spare cannot be negative"},
+		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--spare", "-1"}, "--spare -1 is negative"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--allocation", "best"}, `unknown allocation rule "best"`},
 		{[]string{"--plan", sqlPlan, "--selected", "r.csv", "--sql", "postgres"}, "--sql and --selected cannot be used together"},
 		{[]string{"--plan", sqlPlan, "--log", "x.csv", "--out", "d", "--table", "t"}, "--table is only used with --sql"},

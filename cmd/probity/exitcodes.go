@@ -14,6 +14,11 @@ const (
 	exitBadInput = 2
 	// exitInternal: an internal error (a recovered panic); please report it.
 	exitInternal = 3
+	// exitInterrupted and exitTerminated: stopped by SIGINT (Ctrl-C) or
+	// SIGTERM (128 + the signal's number); what was being written was
+	// removed.
+	exitInterrupted = 130
+	exitTerminated  = 143
 )
 
 // exitCodesHelp is appended to the root command's long help.
@@ -22,4 +27,5 @@ const exitCodesHelp = `Exit codes:
      accepted, every check passed
   1  rejected: a candidate was rejected, or a check or verification failed
   2  bad input or usage: nothing was written
-  3  internal error: please report it with the command line you ran`
+  3  internal error: please report it with the command line you ran
+  130, 143  stopped by Ctrl-C (SIGINT) or SIGTERM: nothing half-written is left`

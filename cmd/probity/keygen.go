@@ -8,7 +8,9 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"probity/plan/inputerr"
 	"probity/plan/record/signature"
+	"probity/sampling/safewrite"
 )
 
 // keygenOptions are the flags of probity keygen.
@@ -33,7 +35,7 @@ keep it where only the signer can read it.
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			if opts.out == "" {
-				return withHint(usageErrorf("--out is required"), "for example: probity keygen --out audit-key")
+				return inputerr.Errorf("--out is required").WithHint("for example: probity keygen --out audit-key")
 			}
 			return nil
 		},
@@ -49,7 +51,7 @@ func runKeygen(d deps, o *keygenOptions) error {
 	pubPath := o.out + ".pub"
 	for _, p := range []string{o.out, pubPath} {
 		if _, err := os.Lstat(p); err == nil {
-			return withHint(usageErrorf("%s already exists; keygen never overwrites a key", p), "choose another --out name, or remove the old key pair yourself")
+			return inputerr.Errorf("%s already exists; keygen never overwrites a key", p).WithHint("choose another --out name, or remove the old key pair yourself")
 		}
 	}
 	pub, priv, err := signature.GenerateKey(d.random)
@@ -64,41 +66,14 @@ func runKeygen(d deps, o *keygenOptions) error {
 	if err != nil {
 		return &internalError{msg: err.Error()}
 	}
-	if err := writeNew(o.out, privPEM, 0o600); err != nil {
-		return err
+	err = safewrite.Write([]safewrite.File{{Path: o.out, Data: privPEM, Perm: 0o600}, {Path: pubPath, Data: pubPEM, Perm: 0o644}}, safewrite.Options{})
+	if errors.Is(err, safewrite.ErrExists) {
+		return inputerr.SetHint(err, "keygen never overwrites a key: choose another --out name, or remove the old key pair yourself")
 	}
-	if err := writeNew(pubPath, pubPEM, 0o644); err != nil {
-		os.Remove(o.out)
+	if err != nil {
 		return err
 	}
 	fmt.Fprintf(d.stdout, "private key: %s (mode 0600; keep it secret)\npublic key:  %s\nfingerprint: %s\n", o.out, pubPath, signature.Fingerprint(pub))
-	return nil
-}
-
-// writeNew creates path (failing if it exists) with mode perm and writes
-// data; on failure the partial file is removed.
-func writeNew(path string, data []byte, perm os.FileMode) error {
-	f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, perm)
-	if err != nil {
-		if errors.Is(err, os.ErrExist) {
-			return usageErrorf("%s already exists; keygen never overwrites a key", path)
-		}
-		return usageErrorf("cannot create %s: %v", path, err)
-	}
-	if _, err := f.Write(data); err != nil {
-		f.Close()
-		os.Remove(path)
-		return usageErrorf("writing %s: %v", path, err)
-	}
-	if err := f.Chmod(perm); err != nil { // exact mode, whatever the umask
-		f.Close()
-		os.Remove(path)
-		return usageErrorf("%s: %v", path, err)
-	}
-	if err := f.Close(); err != nil {
-		os.Remove(path)
-		return usageErrorf("writing %s: %v", path, err)
-	}
 	return nil
 }
 
@@ -107,11 +82,11 @@ func writeNew(path string, data []byte, perm os.FileMode) error {
 func loadPrivateKey(path string) (ed25519.PrivateKey, string, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, "", withHint(usageErrorf("cannot read --sign-key %s: %v", path, errors.Unwrap(err)), "make a key pair with 'probity keygen --out NAME'")
+		return nil, "", inputerr.Errorf("cannot read --sign-key %s: %v", path, errors.Unwrap(err)).WithHint("make a key pair with 'probity keygen --out NAME'")
 	}
 	priv, err := signature.ParsePrivate(data, path)
 	if err != nil {
-		return nil, "", withHint(badInput(err), "pass the private key file written by probity keygen (not the .pub file)")
+		return nil, "", inputerr.SetHint(err, "pass the private key file written by probity keygen (not the .pub file)")
 	}
 	return priv, signature.Fingerprint(priv.Public().(ed25519.PublicKey)), nil
 }
@@ -120,11 +95,11 @@ func loadPrivateKey(path string) (ed25519.PrivateKey, string, error) {
 func loadPublicKey(path string) (ed25519.PublicKey, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, withHint(usageErrorf("cannot read --pub %s: %v", path, errors.Unwrap(err)), "pass the NAME.pub file written by probity keygen")
+		return nil, inputerr.Errorf("cannot read --pub %s: %v", path, errors.Unwrap(err)).WithHint("pass the NAME.pub file written by probity keygen")
 	}
 	pub, err := signature.ParsePublic(data, path)
 	if err != nil {
-		return nil, withHint(badInput(err), "pass the NAME.pub file written by probity keygen")
+		return nil, inputerr.SetHint(err, "pass the NAME.pub file written by probity keygen")
 	}
 	return pub, nil
 }

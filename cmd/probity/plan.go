@@ -12,6 +12,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 )
 
 // planOptions are the flags of probity plan. Numbers are read as strings
@@ -100,10 +101,10 @@ the time and the tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.anticipated, "anticipated", "", "`P0`, the error a good model is expected to have (below the ceiling)")
 	fl.StringVar(&o.producerRisk, "producer-risk", "0.10", "`RISK`: the largest allowed chance of rejecting a model whose error is p0")
 	fl.StringVar(&o.population, "population", "", "`N`, when the audit covers one batch of N decisions (hypergeometric)")
-	fl.StringVar(&o.method, "method", plan.MethodExact, "the decision `RULE`: exact, hoeffding or kl")
-	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni, "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
-	fl.StringVar(&o.design, "design", plan.DesignFixed, "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
-	fl.StringVar(&o.require, "require", plan.RequireAll, "`all` candidates or `any` one must be accepted for the audit to pass")
+	fl.StringVar(&o.method, "method", plan.MethodExact.String(), "the decision `RULE`: exact, hoeffding or kl")
+	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni.String(), "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
+	fl.StringVar(&o.design, "design", plan.DesignFixed.String(), "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
+	fl.StringVar(&o.require, "require", plan.RequireAll.String(), "`all` candidates or `any` one must be accepted for the audit to pass")
 	fl.StringVar(&o.budget, "budget", "", "with `n` labels: the ceiling each number of errors certifies (no plan is made)")
 	fl.StringVar(&o.out, "out", "", "write the plan file (YAML) to `PATH`")
 	fl.BoolVar(&o.force, "force", false, "replace an existing --out file")
@@ -123,7 +124,7 @@ the time and the tool version; its SHA-256 identifies the plan later.
 func parseNumber(flag, s string) (float64, error) {
 	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
 	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, usageErrorf("--%s %q is not a number", flag, s)
+		return 0, inputerr.Errorf("--%s %q is not a number", flag, s)
 	}
 	return v, nil
 }
@@ -131,7 +132,7 @@ func parseNumber(flag, s string) (float64, error) {
 func parseCount(flag, s string) (int64, error) {
 	v, err := strconv.ParseInt(strings.TrimSpace(s), 10, 64)
 	if err != nil {
-		return 0, usageErrorf("--%s %q is not a whole number", flag, s)
+		return 0, inputerr.Errorf("--%s %q is not a whole number", flag, s)
 	}
 	return v, nil
 }
@@ -143,12 +144,12 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 		return o.validateBudget(changed)
 	}
 	if o.ceiling == "" {
-		return withHint(usageErrorf("--ceiling is required: the error rate that must not be exceeded"), "e.g. --ceiling 0.02 for 2%")
+		return inputerr.Errorf("--ceiling is required: the error rate that must not be exceeded").WithHint("e.g. --ceiling 0.02 for 2%")
 	}
 	if o.confidence == "" {
-		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
+		return inputerr.Errorf("--confidence is required").WithHint("e.g. --confidence 0.95")
 	}
-	in := plan.Inputs{Method: o.method, Multiplicity: o.multiplicity, Design: o.design, Require: o.require}
+	var in plan.Inputs
 	var err error
 	if in.Ceiling, err = parseNumber("ceiling", o.ceiling); err != nil {
 		return err
@@ -164,9 +165,9 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 		return err
 	}
 	if m < 1 || m > 1_000_000 {
-		return usageErrorf("--candidates %d: must be between 1 and 1000000", m)
+		return inputerr.Errorf("--candidates %d: must be between 1 and 1000000", m)
 	}
-	in.Candidates = int(m)
+	in.CandidateCount = int(m)
 	o.mSet = changed("candidates")
 	if o.anticipated != "" {
 		p0, err := parseNumber("anticipated", o.anticipated)
@@ -180,27 +181,35 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 			return err
 		}
 		if in.Population < 1 {
-			return usageErrorf("--population %d: must be at least 1", in.Population)
+			return inputerr.Errorf("--population %d: must be at least 1", in.Population)
 		}
 	}
-	if o.design != plan.DesignFixed && o.design != plan.DesignSequential {
-		return usageErrorf("--design %q: must be fixed or sequential", o.design)
+	if in.Design, err = plan.ParseDesign(o.design); err != nil {
+		return planInputError(err)
 	}
 	if err := o.parseCandidates(); err != nil {
 		return err
 	}
 	if len(o.declared) > 0 {
-		if o.mSet && in.Candidates != len(o.declared) {
-			return withHint(usageErrorf("--candidates %d disagrees with the %d candidates declared", in.Candidates, len(o.declared)),
-				"drop --candidates: M follows from the declared candidates")
+		if o.mSet && in.CandidateCount != len(o.declared) {
+			return inputerr.Errorf("--candidates %d disagrees with the %d candidates declared", in.CandidateCount, len(o.declared)).WithHint("drop --candidates: M follows from the declared candidates")
 		}
-		in.Candidates = len(o.declared)
+		in.CandidateCount = len(o.declared)
+	}
+	if in.Method, err = plan.ParseMethod(o.method); err != nil {
+		return planInputError(err)
+	}
+	if in.Multiplicity, err = plan.ParseMultiplicity(o.multiplicity); err != nil {
+		return planInputError(err)
+	}
+	if in.Require, err = plan.ParseRequire(o.require); err != nil {
+		return planInputError(err)
 	}
 	if err := in.Validate(); err != nil {
 		return planInputError(err)
 	}
 	if o.seed != "" && (strings.TrimSpace(o.seed) != o.seed || len(o.seed) > 256 || strings.ContainsAny(o.seed, "\n\r\t")) {
-		return usageErrorf("--seed must be one line of at most 256 characters without surrounding spaces")
+		return inputerr.Errorf("--seed must be one line of at most 256 characters without surrounding spaces")
 	}
 	o.in = in
 	return nil
@@ -213,40 +222,40 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 		return err
 	}
 	if n < 1 || n > plan.MaxSampleSize {
-		return usageErrorf("--budget %d: must be between 1 and %d", n, plan.MaxSampleSize)
+		return inputerr.Errorf("--budget %d: must be between 1 and %d", n, plan.MaxSampleSize)
 	}
 	for _, f := range []string{"out", "anticipated", "candidate", "thresholds", "design", "method"} {
 		if changed(f) {
-			return withHint(usageErrorf("--%s has no effect with --budget, which makes no plan", f), "drop --budget to make a plan")
+			return inputerr.Errorf("--%s has no effect with --budget, which makes no plan", f).WithHint("drop --budget to make a plan")
 		}
 	}
 	if o.confidence == "" {
-		return withHint(usageErrorf("--confidence is required"), "e.g. --confidence 0.95")
+		return inputerr.Errorf("--confidence is required").WithHint("e.g. --confidence 0.95")
 	}
-	in := plan.Inputs{Multiplicity: o.multiplicity}
+	var in plan.Inputs
 	if in.Confidence, err = parseNumber("confidence", o.confidence); err != nil {
 		return err
 	}
 	if !(in.Confidence > 0 && in.Confidence < 1) {
-		return usageErrorf("--confidence %s: must be between 0 and 1 (exclusive)", o.confidence)
+		return inputerr.Errorf("--confidence %s: must be between 0 and 1 (exclusive)", o.confidence)
 	}
 	m, err := parseCount("candidates", o.candidates)
 	if err != nil {
 		return err
 	}
 	if m < 1 || m > 1_000_000 {
-		return usageErrorf("--candidates %d: must be between 1 and 1000000", m)
+		return inputerr.Errorf("--candidates %d: must be between 1 and 1000000", m)
 	}
-	in.Candidates = int(m)
-	if !slices.Contains(plan.Multiplicities, o.multiplicity) {
-		return usageErrorf("--multiplicity %q: must be one of %s", o.multiplicity, strings.Join(plan.Multiplicities, ", "))
+	in.CandidateCount = int(m)
+	if in.Multiplicity, err = plan.ParseMultiplicity(o.multiplicity); err != nil {
+		return planInputError(err)
 	}
 	if o.population != "" {
 		if in.Population, err = parseCount("population", o.population); err != nil {
 			return err
 		}
 		if in.Population < n {
-			return usageErrorf("--population %d: must be at least the budget %d", in.Population, n)
+			return inputerr.Errorf("--population %d: must be at least the budget %d", in.Population, n)
 		}
 	}
 	if o.ceiling != "" {
@@ -254,7 +263,7 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 			return err
 		}
 		if !(in.Ceiling > 0 && in.Ceiling < 1) {
-			return usageErrorf("--ceiling %s: must be between 0 and 1 (exclusive)", o.ceiling)
+			return inputerr.Errorf("--ceiling %s: must be between 0 and 1 (exclusive)", o.ceiling)
 		}
 		o.hasCeiling = true
 	}
@@ -262,13 +271,17 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 	return nil
 }
 
-// planInputError turns a plan package error into a one-line user error
-// naming the flag.
+// planFlags names the flag of each plan input, by the name the plan
+// package gives it.
+var planFlags = map[string]string{
+	"ceiling": "--ceiling", "confidence": "--confidence", "candidates": "--candidates", "anticipated": "--anticipated",
+	"producer-risk": "--producer-risk", "population": "--population", "method": "--method",
+	"multiplicity": "--multiplicity", "design": "--design", "require": "--require", "budget": "--budget",
+}
+
+// planInputError names the flags in a plan package error: the flag that
+// gave an input out of range, and the flags to relax for a plan too large.
 func planInputError(err error) error {
-	var ie *plan.InputError
-	if errors.As(err, &ie) {
-		return &userError{msg: "--" + ie.Error(), err: err}
-	}
 	var tl *plan.TooLargeError
 	if errors.As(err, &tl) {
 		flags := make([]string, len(tl.Relax))
@@ -284,25 +297,23 @@ func planInputError(err error) error {
 			hints = append(hints, what[r])
 		}
 		if tl.Population > 0 {
-			return withHint(usageErrorf("--population %d is smaller than the plan needs: the guarantee would need every decision in the batch labeled", tl.Population),
-				strings.Join(hints, ", or ")+"; or label the whole batch")
+			return inputerr.Errorf("--population %d is smaller than the plan needs: the guarantee would need every decision in the batch labeled", tl.Population).WithHint(strings.Join(hints, ", or ") + "; or label the whole batch").Wrap(err)
 		}
-		return withHint(usageErrorf("the plan would need more than %d labels; relax %s", tl.Limit, strings.Join(flags, " or ")),
-			strings.Join(hints, ", or "))
+		return inputerr.Errorf("the plan would need more than %d labels; relax %s", tl.Limit, strings.Join(flags, " or ")).WithHint(strings.Join(hints, ", or ")).Wrap(err)
 	}
-	return badInput(err)
+	return flagNames(err, planFlags)
 }
 
 // parseCandidates reads --candidate, --classes, --thresholds, --positive
 // and --negative.
 func (o *planOptions) parseCandidates() error {
 	if len(o.candidate) > 0 && o.thresholds != "" {
-		return usageErrorf("use either --candidate or --thresholds, not both")
+		return inputerr.Errorf("use either --candidate or --thresholds, not both")
 	}
 	seen := map[string]bool{}
 	add := func(c plan.Candidate) error {
 		if seen[c.Name] {
-			return usageErrorf("candidate %q is declared twice", c.Name)
+			return inputerr.Errorf("candidate %q is declared twice", c.Name)
 		}
 		seen[c.Name] = true
 		o.declared = append(o.declared, c)
@@ -311,47 +322,47 @@ func (o *planOptions) parseCandidates() error {
 	switch {
 	case len(o.candidate) > 0:
 		if o.positive != "" || o.negative != "" {
-			return usageErrorf("--positive and --negative go with --thresholds; with --candidate list the labels in --classes")
+			return inputerr.Errorf("--positive and --negative go with --thresholds; with --candidate list the labels in --classes")
 		}
 		for _, spec := range o.candidate {
 			name, col, ok := strings.Cut(spec, "=")
 			if !ok || name == "" || col == "" || strings.TrimSpace(name) != name || strings.TrimSpace(col) != col {
-				return withHint(usageErrorf("--candidate %q is not NAME=COLUMN", spec), "e.g. --candidate model-a=pred_a")
+				return inputerr.Errorf("--candidate %q is not NAME=COLUMN", spec).WithHint("e.g. --candidate model-a=pred_a")
 			}
 			if err := add(plan.Candidate{Name: name, Column: col}); err != nil {
 				return err
 			}
 		}
 		if o.classes == "" {
-			return withHint(usageErrorf("--classes is required with --candidate: the label values a labeler may give"), "e.g. --classes spam,ham")
+			return inputerr.Errorf("--classes is required with --candidate: the label values a labeler may give").WithHint("e.g. --classes spam,ham")
 		}
 		for _, c := range strings.Split(o.classes, ",") {
 			c = strings.TrimSpace(c)
 			if c == "" || slices.Contains(o.classesList, c) {
-				return usageErrorf("--classes %q: each label must be non-empty and listed once", o.classes)
+				return inputerr.Errorf("--classes %q: each label must be non-empty and listed once", o.classes)
 			}
 			o.classesList = append(o.classesList, c)
 		}
 		if len(o.classesList) < 2 {
-			return usageErrorf("--classes %q: list at least two labels", o.classes)
+			return inputerr.Errorf("--classes %q: list at least two labels", o.classes)
 		}
 	case o.thresholds != "":
 		i := strings.LastIndex(o.thresholds, ":")
 		if i <= 0 || i == len(o.thresholds)-1 {
-			return withHint(usageErrorf("--thresholds %q is not COLUMN:t1,t2,...", o.thresholds), "e.g. --thresholds score:0.5,0.6,0.7")
+			return inputerr.Errorf("--thresholds %q is not COLUMN:t1,t2,...", o.thresholds).WithHint("e.g. --thresholds score:0.5,0.6,0.7")
 		}
 		col := o.thresholds[:i]
 		if o.positive == "" || o.negative == "" || o.positive == o.negative {
-			return withHint(usageErrorf("--thresholds needs --positive and --negative, two different labels"), "e.g. --positive fraud --negative ok")
+			return inputerr.Errorf("--thresholds needs --positive and --negative, two different labels").WithHint("e.g. --positive fraud --negative ok")
 		}
 		if o.classes != "" {
-			return usageErrorf("--classes is not used with --thresholds: the labels are --positive and --negative")
+			return inputerr.Errorf("--classes is not used with --thresholds: the labels are --positive and --negative")
 		}
 		for _, ts := range strings.Split(o.thresholds[i+1:], ",") {
 			ts = strings.TrimSpace(ts)
 			v, err := strconv.ParseFloat(ts, 64)
 			if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-				return usageErrorf("--thresholds: %q is not a number", ts)
+				return inputerr.Errorf("--thresholds: %q is not a number", ts)
 			}
 			if err := add(plan.Candidate{Name: col + ">=" + ts, ScoreColumn: col, Threshold: &v, Positive: o.positive, Negative: o.negative}); err != nil {
 				return err
@@ -360,7 +371,7 @@ func (o *planOptions) parseCandidates() error {
 		o.classesList = []string{o.positive, o.negative}
 	default:
 		if o.classes != "" || o.positive != "" || o.negative != "" {
-			return usageErrorf("--classes, --positive and --negative describe declared candidates; add --candidate or --thresholds")
+			return inputerr.Errorf("--classes, --positive and --negative describe declared candidates; add --candidate or --thresholds")
 		}
 	}
 	return nil
@@ -404,8 +415,8 @@ func runPlan(d deps, o *planOptions) error {
 	return writePlanReport(d.stdout, f, o.out, fingerprint)
 }
 
-// applyDesign is the hook for the plan's design: "fixed" keeps the
-// (n, c) rule Build made; "sequential" turns it into boundaries
+// applyDesign is the hook for the plan's design: fixed keeps the
+// (n, c) rule Build made; sequential turns it into boundaries
 // (plan_sequential.go, plan/sequential).
 func applyDesign(f *plan.File) error {
 	switch f.Inputs.Design {
@@ -414,5 +425,5 @@ func applyDesign(f *plan.File) error {
 	case plan.DesignSequential:
 		return applySequentialDesign(f)
 	}
-	return usageErrorf("--design %q: must be fixed or sequential", f.Inputs.Design)
+	return inputerr.Errorf("--design %q: must be fixed or sequential", f.Inputs.Design)
 }

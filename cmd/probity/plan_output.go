@@ -5,61 +5,27 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"io/fs"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
 
 	"probity/plan"
+	"probity/plan/inputerr"
+	"probity/sampling/safewrite"
 )
 
-// writePlanFile writes data to path through a temporary file in the same
-// folder, so a reader never sees half a plan. Without force an existing
-// file is refused, atomically (link, not rename).
+// writePlanFile writes data to path through safewrite, so a reader never
+// sees half a plan. Without force an existing file is refused; with it,
+// only a regular file is replaced. The folder must exist.
 func writePlanFile(path string, data []byte, force bool) error {
-	if !force {
-		if _, err := os.Lstat(path); err == nil {
-			return withHint(usageErrorf("--out %s already exists", path), "add --force to replace it, or choose another name")
-		}
+	err := safewrite.WriteFile(path, data, 0, safewrite.Options{Replace: force, InExistingFolder: true})
+	switch {
+	case errors.Is(err, safewrite.ErrExists):
+		return inputerr.Errorf("--out %s already exists", path).WithHint("add --force to replace it, or choose another name").Wrap(err)
+	case errors.Is(err, safewrite.ErrNoFolder):
+		return inputerr.Errorf("--out %s: folder %s does not exist", path, filepath.Dir(path)).Wrap(err)
 	}
-	dir := filepath.Dir(path)
-	tmp, err := os.CreateTemp(dir, ".plan-*.tmp")
-	if err != nil {
-		if errors.Is(err, fs.ErrNotExist) {
-			return usageErrorf("--out %s: folder %s does not exist", path, dir)
-		}
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	name := tmp.Name()
-	defer os.Remove(name) // a no-op once linked or renamed away
-	if _, err := tmp.Write(data); err != nil {
-		tmp.Close()
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	if err := tmp.Sync(); err != nil {
-		tmp.Close()
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	if err := tmp.Close(); err != nil {
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	if err := os.Chmod(name, 0o644); err != nil {
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	if force {
-		if err := os.Rename(name, path); err != nil {
-			return usageErrorf("--out %s: %v", path, err)
-		}
-		return nil
-	}
-	if err := os.Link(name, path); err != nil {
-		if errors.Is(err, fs.ErrExist) {
-			return withHint(usageErrorf("--out %s already exists", path), "add --force to replace it, or choose another name")
-		}
-		return usageErrorf("--out %s: %v", path, err)
-	}
-	return nil
+	return err
 }
 
 // planJSON is the object `probity plan --json` prints; field order is the
@@ -71,11 +37,11 @@ type planJSON struct {
 	ProducerRisk           *float64            `json:"producer_risk"`
 	PerCandidateRisk       float64             `json:"per_candidate_risk"`
 	PerCandidateConfidence float64             `json:"per_candidate_confidence"`
-	Method                 string              `json:"method"`
-	Model                  string              `json:"model"`
-	Multiplicity           string              `json:"multiplicity"`
-	Design                 string              `json:"design"`
-	Require                string              `json:"require"`
+	Method                 plan.Method         `json:"method"`
+	Model                  plan.Model          `json:"model"`
+	Multiplicity           plan.Multiplicity   `json:"multiplicity"`
+	Design                 plan.Design         `json:"design"`
+	Require                plan.Require        `json:"require"`
 	Ceiling                float64             `json:"ceiling"`
 	Confidence             float64             `json:"confidence"`
 	Candidates             int                 `json:"candidates"`
@@ -121,7 +87,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
 		ConsumerRisk: r.ConsumerRisk, ProducerRisk: r.ProducerRisk,
 		PerCandidateRisk: r.PerCandidateRisk, PerCandidateConfidence: f.PerCandidateConfidence(),
 		Method: in.Method, Model: r.Model, Multiplicity: in.Multiplicity, Design: in.Design, Require: in.Require,
-		Ceiling: in.Ceiling, Confidence: in.Confidence, Candidates: in.Candidates,
+		Ceiling: in.Ceiling, Confidence: in.Confidence, Candidates: in.CandidateCount,
 		Anticipated: in.Anticipated, ProducerRiskAllowed: in.ProducerRisk,
 		Comparison: map[string]*int64{}, Seed: f.Seed, CandidateNames: []string{},
 		Sequential: sequentialPlanJSON(f),
@@ -171,23 +137,9 @@ var ruleTitles = map[string]string{
 	plan.RuleChebyshev:           "Chebyshev (for comparison only)",
 }
 
-// chosenRule is the comparison row of the plan's own method.
-func chosenRule(f *plan.File) string {
-	switch f.Inputs.Method {
-	case plan.MethodHoeffding:
-		return plan.RuleHoeffding
-	case plan.MethodKL:
-		return plan.RuleKL
-	}
-	if f.Inputs.Population > 0 {
-		return plan.RuleExactHypergeometric
-	}
-	return plan.RuleExactBinomial
-}
-
 func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	r, in := f.Rule, f.Inputs
-	m := in.Candidates
+	m := in.CandidateCount
 	who := "the model"
 	if m > 1 {
 		who = fmt.Sprintf("each of the %d candidates", m)
@@ -237,7 +189,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 		bad = fmt.Sprintf("a batch with %d or more errors (%s of %d)", r.BadLotErrors, pct(in.Ceiling), in.Population)
 	}
 	allowed := fmt.Sprintf("allowed %s: %s confidence", pct(r.PerCandidateRisk), pct(in.Confidence))
-	if m > 1 && in.Multiplicity != plan.FixedSequence {
+	if in.Multiplicity.EffectiveCandidates(m) > 1 {
 		allowed = fmt.Sprintf("allowed %s per candidate, so %s confidence for all %d together", pct(r.PerCandidateRisk), pct(in.Confidence), m)
 	}
 	fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (%s).\n", bad, pct(r.ConsumerRisk), allowed)
@@ -264,7 +216,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if f.Sequential != nil {
 		base = int64(f.Sequential.FixedSampleSize)
 	}
-	mine := chosenRule(f)
+	mine := in.Method.ComparisonRule(in.Population)
 	for _, row := range f.Comparison {
 		title := ruleTitles[row.Rule]
 		switch {
@@ -361,11 +313,11 @@ func decimalsFor(v float64) int {
 // runPlanBudget answers --budget: the ceiling each error count certifies.
 func runPlanBudget(d deps, o *planOptions) error {
 	in := o.in
-	rows, err := plan.Budget(o.budgetN, in.Confidence, in.Candidates, in.Multiplicity, in.Population, 11)
+	rows, err := plan.Budget(o.budgetN, in.Confidence, in.CandidateCount, in.Multiplicity, in.Population, 11)
 	if err != nil {
 		return planInputError(err)
 	}
-	alpha := plan.PerCandidateRisk(in.Confidence, in.Candidates, in.Multiplicity)
+	alpha := in.PerCandidateRisk()
 	var c *int
 	if o.hasCeiling {
 		v := plan.AcceptanceNumberFor(o.budgetN, in)
@@ -373,17 +325,17 @@ func runPlanBudget(d deps, o *planOptions) error {
 	}
 	if o.json {
 		type budgetJSON struct {
-			Budget           int              `json:"budget"`
-			Confidence       float64          `json:"confidence"`
-			Candidates       int              `json:"candidates"`
-			Multiplicity     string           `json:"multiplicity"`
-			PerCandidateRisk float64          `json:"per_candidate_risk"`
-			Population       *int64           `json:"population"`
-			Rows             []plan.BudgetRow `json:"rows"`
-			Ceiling          *float64         `json:"ceiling"`
-			AcceptanceNumber *int             `json:"acceptance_number"`
+			Budget           int               `json:"budget"`
+			Confidence       float64           `json:"confidence"`
+			Candidates       int               `json:"candidates"`
+			Multiplicity     plan.Multiplicity `json:"multiplicity"`
+			PerCandidateRisk float64           `json:"per_candidate_risk"`
+			Population       *int64            `json:"population"`
+			Rows             []plan.BudgetRow  `json:"rows"`
+			Ceiling          *float64          `json:"ceiling"`
+			AcceptanceNumber *int              `json:"acceptance_number"`
 		}
-		j := budgetJSON{Budget: o.budgetN, Confidence: in.Confidence, Candidates: in.Candidates, Multiplicity: in.Multiplicity,
+		j := budgetJSON{Budget: o.budgetN, Confidence: in.Confidence, Candidates: in.CandidateCount, Multiplicity: in.Multiplicity,
 			PerCandidateRisk: alpha, Rows: rows, AcceptanceNumber: c}
 		if in.Population > 0 {
 			j.Population = &in.Population
@@ -418,7 +370,7 @@ func runPlanBudget(d deps, o *planOptions) error {
 
 // zeroFailureN is the smallest n with (1 − ceiling)^n ≤ α.
 func zeroFailureN(ceiling, alpha float64) int {
-	in := plan.Inputs{Ceiling: ceiling, Confidence: 1 - alpha, Candidates: 1, ProducerRisk: plan.DefaultProducerRisk,
+	in := plan.Inputs{Ceiling: ceiling, Confidence: 1 - alpha, CandidateCount: 1, ProducerRisk: plan.DefaultProducerRisk,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
 	r, _, err := plan.Size(in)
 	if err != nil {

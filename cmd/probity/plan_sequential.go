@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/sequential"
 )
 
@@ -38,16 +39,13 @@ func applySequentialDesign(f *plan.File) error {
 	case err == nil:
 		return nil
 	case errors.Is(err, sequential.ErrNeedsAnticipated):
-		return withHint(usageErrorf("--design sequential needs --anticipated: the boundaries are searched between the anticipated error and the ceiling"),
-			"add --anticipated P with P below --ceiling, the error a good model is expected to have")
+		return inputerr.Errorf("--design sequential needs --anticipated: the boundaries are searched between the anticipated error and the ceiling").WithHint("add --anticipated P with P below --ceiling, the error a good model is expected to have")
 	case errors.Is(err, sequential.ErrNeedsExact):
-		return withHint(usageErrorf("--design sequential works with --method exact only (%v)", err),
-			"drop --method or use --method exact")
+		return inputerr.Errorf("--design sequential works with --method exact only (%v)", err).WithHint("drop --method or use --method exact")
 	case errors.Is(err, sequential.ErrTooLarge):
-		return withHint(usageErrorf("--design sequential: %v", err),
-			"use --design fixed, or relax --ceiling, --anticipated or --confidence")
+		return inputerr.Errorf("--design sequential: %v", err).WithHint("use --design fixed, or relax --ceiling, --anticipated or --confidence")
 	case errors.Is(err, sequential.ErrDomain):
-		return withHint(usageErrorf("--design sequential: %v", err), "use --design fixed for these inputs")
+		return inputerr.Errorf("--design sequential: %v", err).WithHint("use --design fixed for these inputs")
 	}
 	return &internalError{msg: err.Error()}
 }

@@ -13,7 +13,7 @@ import (
 func planSeqExample(t *testing.T, anticipated bool) *plan.File {
 	t.Helper()
 	p0 := 0.01
-	in := plan.Inputs{Ceiling: 0.02, Confidence: 0.95, Candidates: 1, ProducerRisk: 0.10,
+	in := plan.Inputs{Ceiling: 0.02, Confidence: 0.95, CandidateCount: 1, ProducerRisk: 0.10,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignSequential, Require: plan.RequireAll}
 	if anticipated {
 		in.Anticipated = &p0

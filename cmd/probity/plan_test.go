@@ -113,8 +113,8 @@ func TestPlanOutFile(t *testing.T) {
 	if f.ToolVersion != "0.1.0-test" || f.System != "claims-triage" || f.SystemVersion != "4.2" {
 		t.Errorf("metadata: %q %q %q", f.ToolVersion, f.System, f.SystemVersion)
 	}
-	if f.Inputs.Candidates != 2 || len(f.Candidates) != 2 || f.Candidates[0].Name != "score>=0.50" || f.Candidates[1].Name != "score>=0.70" ||
-		*f.Candidates[1].Threshold != 0.7 || f.Inputs.Require != "any" || f.Inputs.Design != "fixed" {
+	if f.Inputs.CandidateCount != 2 || len(f.Candidates) != 2 || f.Candidates[0].Name != "score>=0.50" || f.Candidates[1].Name != "score>=0.70" ||
+		*f.Candidates[1].Threshold != 0.7 || f.Inputs.Require != plan.RequireAny || f.Inputs.Design != plan.DesignFixed {
 		t.Errorf("candidates/inputs: %+v %+v", f.Inputs, f.Candidates)
 	}
 	if strings.Join(f.Classes, ",") != "fraud,ok" || f.Rule.SampleSize != 1271 {

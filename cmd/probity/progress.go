@@ -2,7 +2,6 @@ package main
 
 import (
 	"encoding/json"
-	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -13,6 +12,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/progress"
 	"probity/plan/sequential"
 	"probity/sampling"
@@ -55,7 +55,7 @@ decision.`,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			for _, f := range []struct{ name, v string }{{"plan", opts.planPath}, {"draw", opts.drawDir}, {"labels", opts.labels}} {
 				if f.v == "" {
-					return withHint(usageErrorf("--%s is required", f.name), "see 'probity progress --help'")
+					return inputerr.Errorf("--%s is required", f.name).WithHint("see 'probity progress --help'")
 				}
 			}
 			return nil
@@ -97,7 +97,7 @@ func runProgress(d deps, opts *progressOptions) error {
 	}
 	res, err := progress.Assess(in)
 	if err != nil {
-		return progressInputError(err)
+		return err
 	}
 	if opts.json {
 		rep := progressReport{Plan: opts.planPath, PlanFingerprint: fingerprint, Labels: opts.labels, Period: period, Result: res}
@@ -119,35 +119,31 @@ func loadProgressInput(opts *progressOptions) (progress.Input, string, string, e
 	var in progress.Input
 	p, fingerprint, err := plan.Load(opts.planPath)
 	if err != nil {
-		return in, "", "", progressInputError(err)
+		return in, "", "", err
 	}
 	if p.IsSizingOnly() {
-		return in, "", "", withHint(usageErrorf("%s: the plan declares no candidates, so there is nothing to judge", opts.planPath),
-			"use the plan the sample was drawn from")
+		return in, "", "", inputerr.Errorf("%s: the plan declares no candidates, so there is nothing to judge", opts.planPath).WithHint("use the plan the sample was drawn from")
 	}
 	if p.Sequential != nil {
 		if err := sequential.Validate(p.Sequential); err != nil {
-			return in, "", "", withHint(usageErrorf("%s: sequential: %v", opts.planPath, err),
-				"the boundaries were edited by hand; use the plan file probity plan wrote")
+			return in, "", "", inputerr.Errorf("%s: sequential: %v", opts.planPath, err).WithHint("the boundaries were edited by hand; use the plan file probity plan wrote")
 		}
 	}
 	manifestPath := filepath.Join(opts.drawDir, sampling.ManifestFile)
 	m, _, err := sampling.ReadManifest(manifestPath)
 	if err != nil {
-		return in, "", "", progressInputError(err)
+		return in, "", "", err
 	}
 	if m.PlanFingerprint != fingerprint {
-		return in, "", "", withHint(usageErrorf("%s: plan_fingerprint %s is not the fingerprint of %s (%s)", manifestPath, progressShort(m.PlanFingerprint), opts.planPath, progressShort(fingerprint)),
-			"use the plan file the sample was drawn from, unedited")
+		return in, "", "", inputerr.Errorf("%s: plan_fingerprint %s is not the fingerprint of %s (%s)", manifestPath, progressShort(m.PlanFingerprint), opts.planPath, progressShort(fingerprint)).WithHint("use the plan file the sample was drawn from, unedited")
 	}
 	ledgerPath := filepath.Join(opts.drawDir, sampling.LedgerFile)
 	data, err := os.ReadFile(ledgerPath)
 	if err != nil {
-		return in, "", "", progressInputError(err)
+		return in, "", "", err
 	}
 	if want := m.Files[sampling.LedgerFile]; sampling.SHA256Hex(data) != want {
-		return in, "", "", withHint(usageErrorf("%s: SHA-256 %s differs from the manifest's %s", ledgerPath, progressShort(sampling.SHA256Hex(data)), progressShort(want)),
-			"the ledger was changed after the draw; use the original file")
+		return in, "", "", inputerr.Errorf("%s: SHA-256 %s differs from the manifest's %s", ledgerPath, progressShort(sampling.SHA256Hex(data)), progressShort(want)).WithHint("the ledger was changed after the draw; use the original file")
 	}
 	names := make([]string, len(p.Candidates))
 	for i, c := range p.Candidates {
@@ -155,27 +151,13 @@ func loadProgressInput(opts *progressOptions) (progress.Input, string, string, e
 	}
 	ledger, err := sampling.ReadLedger(ledgerPath, names)
 	if err != nil {
-		return in, "", "", progressInputError(err)
+		return in, "", "", err
 	}
 	_, ws, err := sampling.ReadWorksheet(opts.labels)
 	if err != nil {
-		return in, "", "", progressInputError(err)
+		return in, "", "", err
 	}
 	return progress.Input{Plan: p, Ledger: ledger, Worksheet: ws, WorksheetName: opts.labels}, fingerprint, m.Period, nil
-}
-
-// progressInputError turns a package error into a user error, keeping an
-// input error's hint.
-func progressInputError(err error) error {
-	var ie *sampling.InputError
-	if errors.As(err, &ie) && ie.Hint != "" {
-		return withHint(badInput(err), ie.Hint)
-	}
-	var pe *os.PathError
-	if errors.As(err, &pe) {
-		return withHint(badInput(err), "check the path")
-	}
-	return badInput(err)
 }
 
 func progressShort(fp string) string {
@@ -198,7 +180,7 @@ func progressStatus(d sequential.Decision) string {
 
 // writeProgress prints the human-readable assessment.
 func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
-	if res.Design == "sequential" {
+	if res.Design == plan.DesignSequential {
 		fmt.Fprintf(w, "Sequential plan: at most %d labels; each candidate stops at its boundaries.\n", res.SampleSize)
 	} else {
 		fmt.Fprintf(w, "Fixed plan: %d labels, accept with at most %d errors; stopping early by exact curtailment (no change to either risk).\n",
@@ -225,8 +207,8 @@ func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
 	tw.Flush()
 	fmt.Fprintln(w)
 	req := p.Inputs.Require
-	if req == "" {
-		req = "all"
+	if req == plan.RequireUnset {
+		req = plan.RequireAll
 	}
 	switch res.Overall {
 	case sequential.Continue:

@@ -15,6 +15,7 @@ import (
 	"probity/plan/progress"
 	"probity/plan/sequential"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // progressFixture writes, into a temp dir, a plan for two column
@@ -33,7 +34,7 @@ type progressFiles struct {
 func progressFixture(t *testing.T, seq bool) progressFiles {
 	t.Helper()
 	p0 := 0.02
-	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.95, Candidates: 2, Anticipated: &p0, ProducerRisk: 0.10,
+	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.95, CandidateCount: 2, Anticipated: &p0, ProducerRisk: 0.10,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
 	if seq {
 		in.Design = plan.DesignSequential
@@ -76,7 +77,7 @@ func progressFixture(t *testing.T, seq bool) progressFiles {
 		Ledger:     led, Worksheet: ws,
 	}
 	draw := filepath.Join(dir, "draw")
-	if err := sampling.WriteFolder(draw, folder, false); err != nil {
+	if err := sampling.WriteFolder(draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	return progressFiles{dir: dir, plan: planPath, draw: draw, n: n, c: f.Rule.AcceptanceNumber, file: f, ledger: led, worksheet: ws}
@@ -230,7 +231,7 @@ func TestProgressBadInput(t *testing.T) {
 		msg, hint string
 	}{
 		{"gap", []string{"--plan", pf.plan, "--draw", pf.draw, "--labels", gap},
-			"labels.csv line 7, column label: item 6 is labeled but item 5 above it (line 6) is not: the labels must be a prefix of the worksheet",
+			"labels.csv line 7, field label: item 6 is labeled but item 5 above it (line 6) is not: the labels must be a prefix of the worksheet",
 			"hint: label item 5 and every unlabeled item above item 6"},
 		{"missing flag", []string{"--plan", pf.plan, "--draw", pf.draw}, "probity: --labels is required", "hint: see 'probity progress --help'"},
 		{"no such plan", []string{"--plan", filepath.Join(pf.dir, "nope.yaml"), "--draw", pf.draw, "--labels", gap}, "nope.yaml: no such file", "hint: check the path"},

@@ -2,6 +2,7 @@ package main
 
 import (
 	"crypto/ed25519"
+	"errors"
 	"fmt"
 	"os"
 	"strings"
@@ -11,6 +12,7 @@ import (
 
 	"probity/pdfreport"
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/record/intake"
@@ -33,6 +35,7 @@ type recordOptions struct {
 	paper           string
 	templatesDir    string
 	bound           string
+	unequal         verdict.UnequalBound
 	force           bool
 	json            bool
 	// quality holds the double-labeling flags (record_quality.go).
@@ -101,7 +104,7 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 	fl.StringVar(&opts.date, "date", "", "the record's date, YYYY-MM-DD (default: today, UTC)")
 	fl.StringVar(&opts.paper, "paper", "a4", "paper size of record.pdf: a4 or letter")
 	fl.StringVar(&opts.templatesDir, "templates", "", "folder of wording files overriding the built-in ones")
-	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard, "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
+	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
 	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
 	addLabelQualityFlags(cmd, &opts.quality)
@@ -112,24 +115,26 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 func (o *recordOptions) validate() error {
 	for _, f := range []struct{ name, v string }{{"plan", o.planPath}, {"draw", o.drawDir}, {"labels", o.labels}, {"out", o.out}} {
 		if f.v == "" {
-			return withHint(usageErrorf("--%s is required", f.name), "see 'probity record --help'")
+			return inputerr.Errorf("--%s is required", f.name).WithHint("see 'probity record --help'")
 		}
 	}
 	if !oneOf(o.use, templates.Uses()) {
-		return withHint(usageErrorf("--use %q is not one of %s", o.use, strings.Join(templates.Uses(), ", ")), "pick the use the classifier's decisions serve")
+		return inputerr.Errorf("--use %q is not one of %s", o.use, strings.Join(templates.Uses(), ", ")).WithHint("pick the use the classifier's decisions serve")
 	}
 	o.paper = strings.ToLower(o.paper)
 	if !oneOf(o.paper, []string{"a4", "letter"}) {
-		return usageErrorf("--paper %q is not a4 or letter", o.paper)
+		return inputerr.Errorf("--paper %q is not a4 or letter", o.paper)
 	}
 	if o.date != "" {
 		if _, err := time.Parse("2006-01-02", o.date); err != nil {
-			return withHint(usageErrorf("--date %q is not a date in the form YYYY-MM-DD", o.date), "for example --date 2026-03-31")
+			return inputerr.Errorf("--date %q is not a date in the form YYYY-MM-DD", o.date).WithHint("for example --date 2026-03-31")
 		}
 	}
-	if !oneOf(o.bound, []string{verdict.KornGraubard, verdict.WeightedHoeffding}) {
-		return usageErrorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
+	u, err := verdict.ParseUnequalBound(o.bound)
+	if err != nil {
+		return inputerr.Errorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
 	}
+	o.unequal = u
 	return nil
 }
 
@@ -154,11 +159,10 @@ type recordInputs struct {
 func loadRecordInputs(planPath, drawDir, labels string) (*recordInputs, error) {
 	p, fp, err := plan.Load(planPath)
 	if err != nil {
-		return nil, recordInputError(err, planPath)
+		return nil, err
 	}
 	if p.IsSizingOnly() {
-		return nil, withHint(usageErrorf("%s: the plan declares no candidates, so there is nothing to judge", planPath),
-			"use the plan the sample was drawn from")
+		return nil, inputerr.Errorf("%s: the plan declares no candidates, so there is nothing to judge", planPath).WithHint("use the plan the sample was drawn from")
 	}
 	names := make([]string, len(p.Candidates))
 	for i, c := range p.Candidates {
@@ -166,11 +170,11 @@ func loadRecordInputs(planPath, drawDir, labels string) (*recordInputs, error) {
 	}
 	f, err := intake.ReadFolder(drawDir, fp, names)
 	if err != nil {
-		return nil, recordInputError(err, drawDir)
+		return nil, err
 	}
 	l, err := intake.ReadLabels(labels)
 	if err != nil {
-		return nil, recordInputError(err, labels)
+		return nil, err
 	}
 	return &recordInputs{plan: p, planFP: fp, folder: f, labels: l}, nil
 }
@@ -187,10 +191,10 @@ func runRecord(d deps, o *recordOptions) error {
 	if o.signoff != "" {
 		data, err := os.ReadFile(o.signoff)
 		if err != nil {
-			return recordInputError(err, o.signoff)
+			return inputerr.FromPath(err)
 		}
 		if signoff, err = record.ParseSignoff(data, o.signoff); err != nil {
-			return withHint(badInput(err), "see 'probity record --help' for the sign-off file's keys")
+			return inputerr.SetHint(err, "see 'probity record --help' for the sign-off file's keys")
 		}
 	}
 	var priv ed25519.PrivateKey
@@ -206,8 +210,11 @@ func runRecord(d deps, o *recordOptions) error {
 		}
 	}
 	set, err := templates.Load(o.templatesDir)
+	if errors.Is(err, templates.ErrTemplate) {
+		return inputerr.SetHint(err, "fix or remove the file in --templates; files not given fall back to the built-in wording")
+	}
 	if err != nil {
-		return withHint(badInput(err), "fix or remove the file in --templates; files not given fall back to the built-in wording")
+		return err
 	}
 	adjust, err := labelQualityAdjust(o.quality, in.plan, in.folder, in.labels)
 	if err != nil {
@@ -219,17 +226,20 @@ func runRecord(d deps, o *recordOptions) error {
 	}
 	rec, err := assemble.Assemble(assemble.Input{
 		Plan: in.plan, PlanFP: in.planFP, Folder: in.folder, Labels: in.labels,
-		AllowIncomplete: o.allowIncomplete, Bound: o.bound, Use: o.use, Date: date,
+		AllowIncomplete: o.allowIncomplete, Bound: o.unequal, Use: o.use, Date: date,
 		Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP, Adjust: adjust,
 	})
+	if errors.Is(err, intake.ErrIncomplete) {
+		return inputerr.SetHint(err, inputerr.HintOf(err)+", or pass --allow-incomplete to count each as an error for every candidate")
+	}
 	if err != nil {
-		return recordInputError(err, o.labels)
+		return err
 	}
 	files, err := renderRecord(rec, o.paper, set, priv)
 	if err != nil {
 		return err
 	}
-	if err := writeRecordFolder(o.out, files, o.force); err != nil {
+	if err := writeRecordFolder(o.out, files, o.force, recordInputFiles(o)); err != nil {
 		return err
 	}
 	if o.json {
@@ -276,11 +286,7 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 		fmt.Fprintf(w, "  %-*s  %s  %d/%d errors, estimate %s, upper bound %s — %s\n", width, c.Name, c.Verdict, c.Errors, c.Labeled,
 			fmt.Sprintf("%.4f", c.Estimate), fmt.Sprintf("%.4f", c.UpperBound), c.Reason)
 	}
-	need := "every candidate"
-	if rec.Plan.Require == "any" {
-		need = "at least one candidate"
-	}
-	fmt.Fprintf(w, "overall: %s (%s must be accepted)\n", rec.OverallVerdict, need)
+	fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
 	if rec.Deviations.AllowIncomplete {
 		fmt.Fprintf(w, "note: unlabeled or unsure items were counted as errors for every candidate (--allow-incomplete)\n")
 	}

@@ -13,6 +13,7 @@ import (
 	"probity/plan"
 	"probity/plan/sequential"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // recFixture is an invented audit, made in code with the same package
@@ -45,11 +46,11 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 	t.Helper()
 	fx := &recFixture{dir: t.TempDir(), truth: map[string]string{}, show: []string{"parcel"}}
 	p0 := 0.01
-	in := plan.Inputs{Ceiling: 0.05, Confidence: 0.95, Candidates: 1, Anticipated: &p0, ProducerRisk: 0.2,
+	in := plan.Inputs{Ceiling: 0.05, Confidence: 0.95, CandidateCount: 1, Anticipated: &p0, ProducerRisk: 0.2,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
 	cands := []plan.Candidate{{Name: "sorter-a", Column: "pred_a"}}
 	if both {
-		in.Candidates = 2
+		in.CandidateCount = 2
 		cands = append(cands, plan.Candidate{Name: "sorter-b", Column: "pred_b"})
 	}
 	f, err := plan.Build(in, plan.Meta{ToolVersion: "test", Created: time.Date(2026, 11, 30, 9, 0, 0, 0, time.UTC),
@@ -110,7 +111,7 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 		t.Fatal(err)
 	}
 	fx.draw = filepath.Join(fx.dir, "draw")
-	if err := sampling.WriteFolder(fx.draw, folder, false); err != nil {
+	if err := sampling.WriteFolder(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	fx.ledger, fx.worksheet = folder.Ledger, folder.Worksheet

@@ -12,6 +12,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/agreement"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/intake"
 	"probity/sampling"
@@ -75,8 +76,7 @@ func (o labelQualityOptions) validate() error {
 	if len(given) == 0 {
 		return nil
 	}
-	return withHint(usageErrorf("%s only apply to double labeling, which needs --second FILE", strings.Join(given, " and ")),
-		"pass the labeled worksheet-second.csv with --second")
+	return inputerr.Errorf("%s only apply to double labeling, which needs --second FILE", strings.Join(given, " and ")).WithHint("pass the labeled worksheet-second.csv with --second")
 }
 
 // labelQualityAdjust prepares the judgement of a record with double
@@ -97,11 +97,11 @@ func labelQualityAdjust(o labelQualityOptions, p *plan.File, f *intake.Folder, l
 	}
 	secondBytes, err := os.ReadFile(o.second)
 	if err != nil {
-		return nil, qualityError(err)
+		return nil, inputerr.FromPath(err)
 	}
 	secondHeader, second, err := sampling.ReadWorksheet(o.second)
 	if err != nil {
-		return nil, qualityError(err)
+		return nil, err
 	}
 	if err := matchSecondToDraw(f, o.second, secondHeader, second); err != nil {
 		return nil, err
@@ -118,16 +118,23 @@ func labelQualityAdjust(o labelQualityOptions, p *plan.File, f *intake.Folder, l
 	if o.adjudicated != "" {
 		data, err := os.ReadFile(o.adjudicated)
 		if err != nil {
-			return nil, qualityError(err)
+			return nil, inputerr.FromPath(err)
 		}
 		if in.Adjudications, err = agreement.ParseAdjudications(data, o.adjudicated, p.Classes); err != nil {
-			return nil, qualityError(err)
+			return nil, err
 		}
 		in.AdjudicationFile, adjSHA = o.adjudicated, record.SHA256(data)
 	}
 	resolved, err := agreement.Resolve(in)
+	if errors.Is(err, agreement.ErrUnadjudicated) {
+		fix := "or pass --allow-unadjudicated to count them as errors for every candidate"
+		if o.adjudicated == "" {
+			return nil, inputerr.SetHint(err, inputerr.HintOf(err)+" and pass --adjudicated FILE, "+fix)
+		}
+		return nil, inputerr.SetHint(err, inputerr.HintOf(err)+", "+fix)
+	}
 	if err != nil {
-		return nil, qualityError(err)
+		return nil, err
 	}
 	// An item to be counted as an error keeps a class label here (one of
 	// its two labels is a class), so that the intake neither replaces it by
@@ -160,9 +167,9 @@ func labelQualityAdjust(o labelQualityOptions, p *plan.File, f *intake.Folder, l
 			return nil, &internalError{msg: fmt.Sprintf("%d unadjudicated items to count as errors, %d found among the judged items", len(counted), marked)}
 		}
 		if marked > 0 {
-			note := fmt.Sprintf("%d doubled items whose two labels disagree were not adjudicated and were counted as errors for every candidate (--allow-unadjudicated)", marked)
+			note := fmt.Sprintf("%d doubled items whose two labels disagree were not adjudicated and were counted as errors for every candidate (unadjudicated disagreements allowed)", marked)
 			if marked == 1 {
-				note = "1 doubled item whose two labels disagree was not adjudicated and was counted as an error for every candidate (--allow-unadjudicated)"
+				note = "1 doubled item whose two labels disagree was not adjudicated and was counted as an error for every candidate (unadjudicated disagreements allowed)"
 			}
 			res.Deviations.Notes = append(res.Deviations.Notes, note)
 		}
@@ -233,12 +240,12 @@ func matchSecondToDraw(f *intake.Folder, path string, header []string, rows []sa
 	}
 	dh, drows, err := sampling.ReadWorksheet(drawPath)
 	if err != nil {
-		return qualityError(err)
+		return err
 	}
 	if got, want := shownColumns(header), shownColumns(dh); !slices.Equal(got, want) {
-		return qualityError(&sampling.InputError{File: path, Line: 1,
+		return &inputerr.Error{File: path, Line: 1,
 			Msg:  fmt.Sprintf("the shown columns are %s, but the draw's %s has %s", strings.Join(got, ","), sampling.WorksheetSecondFile, strings.Join(want, ",")),
-			Hint: "label a copy of the worksheet-second.csv written by probity draw without adding, removing or renaming columns"})
+			Hint: "label a copy of the worksheet-second.csv written by probity draw without adding, removing or renaming columns"}
 	}
 	want := map[int]sampling.WorksheetRow{}
 	for _, r := range drows {
@@ -247,9 +254,9 @@ func matchSecondToDraw(f *intake.Folder, path string, header []string, rows []sa
 	for _, r := range rows {
 		w, ok := want[r.Item]
 		if ok && (w.RecordID != r.RecordID || !slices.Equal(w.Show, r.Show)) {
-			return qualityError(&sampling.InputError{File: path, Line: r.Line, Column: "item",
+			return &inputerr.Error{File: path, Line: r.Line, Field: "item",
 				Msg:  fmt.Sprintf("item %d differs from the draw's %s (record id or shown values)", r.Item, sampling.WorksheetSecondFile),
-				Hint: "label a copy of the worksheet-second.csv written by probity draw without editing its rows"})
+				Hint: "label a copy of the worksheet-second.csv written by probity draw without editing its rows"}
 		}
 	}
 	return nil
@@ -266,17 +273,6 @@ func shownColumns(h []string) []string {
 		return nil
 	}
 	return h[2 : end-2]
-}
-
-// qualityError maps an error from reading or resolving the double labels
-// to probity's error shape: a file problem is a user error (exit 2) with
-// its hint line.
-func qualityError(err error) error {
-	var ie *sampling.InputError
-	if errors.As(err, &ie) && ie.Hint != "" {
-		return withHint(badInput(err), ie.Hint)
-	}
-	return badInput(err)
 }
 
 // reportLabelQuality prints the label-quality line of a record to stdout

@@ -14,6 +14,7 @@ import (
 	"probity/plan"
 	"probity/plan/record"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // lqFixture is an invented audit of a seam-inspection classifier with
@@ -32,7 +33,7 @@ type lqFixture struct {
 func newLQFixture(t *testing.T) *lqFixture {
 	t.Helper()
 	fx := &lqFixture{dir: t.TempDir(), truth: map[string]string{}}
-	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.9, Candidates: 1, ProducerRisk: 0.1,
+	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.9, CandidateCount: 1, ProducerRisk: 0.1,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
 	f, err := plan.Build(in, plan.Meta{ToolVersion: "test", Created: time.Date(2026, 11, 30, 9, 0, 0, 0, time.UTC),
 		Seed: "a1b2c3d4e5f60718293a4b5c6d7e8f90", System: "Seam inspector", SystemVersion: "1.3",
@@ -76,7 +77,7 @@ func newLQFixture(t *testing.T) *lqFixture {
 		t.Fatal(err)
 	}
 	fx.draw = filepath.Join(fx.dir, "draw")
-	if err := sampling.WriteFolder(fx.draw, folder, false); err != nil {
+	if err := sampling.WriteFolder(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	fx.ledger, fx.worksheet, fx.second = folder.Ledger, folder.Worksheet, folder.Second
@@ -286,7 +287,7 @@ func TestRecordLabelQualityBadInput(t *testing.T) {
 		{"adjudicated without second", []string{"--adjudicated", fx.adjudication(t, "a.csv")}, "--adjudicated only apply to double labeling, which needs --second FILE"},
 		{"strict without second", []string{"--strict"}, "--strict only apply to double labeling"},
 		{"item not doubled", []string{"--second", undoubled}, "was not drawn for a second label"},
-		{"same labeler, strict", []string{"--second", sameLabeler, "--strict"}, `was labeled by "Ana" in both worksheets; its two labels are not independent (--strict)`},
+		{"same labeler, strict", []string{"--second", sameLabeler, "--strict"}, `was labeled by "Ana" in both worksheets; its two labels are not independent (labeler independence enforced)`},
 		{"extra adjudication row", []string{"--second", second, "--adjudicated", fx.adjudication(t, "b.csv", [2]string{"1", fx.truth[fx.ledger[0].RecordID]})}, "the labelers agreed on item 1"},
 		{"adjudicated label outside the classes", []string{"--second", second, "--adjudicated", fx.adjudication(t, "c.csv", [2]string{"1", "maybe"})}, `final_label "maybe" is not one of the classes (defect, ok)`},
 		{"missing second file", []string{"--second", filepath.Join(fx.dir, "nope.csv")}, "nope.csv"},

@@ -5,6 +5,7 @@ import (
 	"strings"
 	"testing"
 
+	"probity/plan"
 	"probity/plan/record"
 	"probity/plan/sequential"
 	"probity/sampling"
@@ -51,7 +52,7 @@ func TestRecordSequentialPlan(t *testing.T) {
 	if a.Verdict != record.Accept || a.StoppedAt != atA || b.Verdict != record.Reject || b.StoppedAt != atB || b.Labeled != atB {
 		t.Errorf("sorter-a %s at %d (want %d), sorter-b %s at %d (want %d)", a.Verdict, a.StoppedAt, atA, b.Verdict, b.StoppedAt, atB)
 	}
-	if r.Method.Bound != "sequential boundaries (stage-wise exact bound)" || r.Method.Approximate || len(r.OC) == 0 {
+	if r.Method.Bound != plan.BoundSequential || r.Method.Approximate || len(r.OC) == 0 {
 		t.Errorf("method %+v, %d OC points", r.Method, len(r.OC))
 	}
 	// The bound and p-value are the stage-wise exact ones of the plan's

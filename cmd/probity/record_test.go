@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"probity/plan"
 	"probity/plan/record"
 	"probity/sampling"
 )
@@ -41,7 +42,7 @@ func TestRecordAcceptedExitsZero(t *testing.T) {
 		t.Errorf("record folder holds %s", got)
 	}
 	r := readRecord(t, out)
-	if r.OverallVerdict != record.Accept || r.Date != "2026-12-01" || r.System != "Parcel sorter" || len(r.Strata) != 3 || len(r.OC) == 0 || r.Method.Bound != "clopper-pearson" {
+	if r.OverallVerdict != record.Accept || r.Date != "2026-12-01" || r.System != "Parcel sorter" || len(r.Strata) != 3 || len(r.OC) == 0 || r.Method.Bound != plan.BoundClopperPearson {
 		t.Errorf("record: %+v", r)
 	}
 	if r.Fingerprints.Labels != record.SHA256(mustRead(t, labels)) || r.RecordID != record.ID(r.Fingerprints, nil) {
@@ -126,15 +127,15 @@ func TestRecordBadInputLeavesNothing(t *testing.T) {
 		{"changed id", fx.labels(t, "changed.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow { r[0].RecordID = "forged"; return r }), nil, "",
 			[]string{"changed.csv: rows differ from the ledger", `added: line 2 (item 1, record_id "forged")`}},
 		{"label outside the classes", fx.labels(t, "bad.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow { r[2].Label = "maybe"; return r }), nil, "",
-			[]string{`bad.csv line 4, column label: label "maybe" (item 3) is not one of the plan's classes (ok, defect), blank or "unsure"`, "hint: use exactly one of: ok, defect"}},
+			[]string{`bad.csv line 4, field label: label "maybe" (item 3) is not one of the plan's classes (ok, defect), blank or "unsure"`, "hint: use exactly one of: ok, defect"}},
 		{"incomplete", fx.labels(t, "partial.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
 			r[1].Label = ""
 			r[5].Label = "unsure"
 			return r
 		}), nil, "",
-			[]string{"partial.csv column label: 2 items are unlabeled or unsure and no spare replaces them (items 2, 6)", "--allow-incomplete"}},
+			[]string{"partial.csv, field label: 2 items are unlabeled or unsure and no spare replaces them (items 2, 6)", "--allow-incomplete"}},
 		{"other plan", good, nil, other.planPath,
-			[]string{"manifest.json column plan_fingerprint: the draw was made from the plan with SHA-256", "hint: pass the plan file the draw was made with"}},
+			[]string{"manifest.json, field plan_fingerprint: the draw was made from the plan with SHA-256", "hint: pass the plan file the draw was made with"}},
 		{"bad use", good, []string{"--use", "aviation"}, "", []string{`--use "aviation" is not one of general, safety, medical, vehicle, credit, employment`}},
 		{"bad date", good, []string{"--date", "1.12.2026"}, "", []string{`--date "1.12.2026" is not a date in the form YYYY-MM-DD`}},
 		{"bad sign-off", good, []string{"--signoff", writeTemp(t, fx.dir, "signoff.yaml", "approved:\n  name: A\n  when: today\n")}, "", []string{"signoff.yaml line 2, field approved"}},
@@ -223,7 +224,7 @@ func TestRecordUnequalWeights(t *testing.T) {
 			t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
 		}
 		r := readRecord(t, out)
-		if r.Method.Bound != c.bound || r.Method.Approximate != (c.flag == "korn-graubard") || !strings.Contains(r.Method.Statement, "N_h/N") {
+		if r.Method.Bound.String() != c.bound || r.Method.Approximate != (c.flag == "korn-graubard") || !strings.Contains(r.Method.Statement, "N_h/N") {
 			t.Errorf("%s: method %+v", c.flag, r.Method)
 		}
 	}

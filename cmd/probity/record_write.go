@@ -1,13 +1,12 @@
 package main
 
 import (
-	"errors"
-	"fmt"
-	"io"
-	"os"
 	"path/filepath"
 
+	"probity/plan/inputerr"
 	"probity/plan/record/signature"
+	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // Names of the files in a record folder.
@@ -22,78 +21,43 @@ type namedFile struct {
 	data []byte
 }
 
-// checkOutWritable refuses an --out that exists and is not an empty folder
-// (unless force), before anything is computed.
+// recordOutHint is the hint for an --out folder that is not empty.
+const recordOutHint = "name a new folder, or pass --force to replace the record files in it"
+
+// checkOutWritable refuses an --out that a write would refuse (not a
+// folder, or not empty without force), before anything is computed.
 func checkOutWritable(dir string, force bool) error {
-	st, err := os.Stat(dir)
-	if errors.Is(err, os.ErrNotExist) {
-		return nil
-	}
-	if err != nil {
-		return usageErrorf("%s: %v", dir, err)
-	}
-	if !st.IsDir() {
-		return withHint(usageErrorf("--out %s exists and is not a folder", dir), "name a new folder for the record")
-	}
-	if force {
-		return nil
-	}
-	f, err := os.Open(dir)
-	if err != nil {
-		return usageErrorf("%s: %v", dir, err)
-	}
-	defer f.Close()
-	if _, err := f.Readdirnames(1); err != io.EOF {
-		return withHint(usageErrorf("--out %s is not empty", dir), "name a new folder, or pass --force to replace the record files in it")
-	}
-	return nil
+	return recordOutError(safewrite.CheckFolder(dir, force))
 }
 
-// writeRecordFolder writes the files into dir so that a failure leaves
-// nothing behind: everything is written into a temporary folder beside
-// dir, which is renamed to dir when dir does not exist; otherwise each file
-// is renamed into dir, and a stale record.sig from an earlier run is
-// removed when this record is unsigned.
-func writeRecordFolder(dir string, files []namedFile, force bool) (err error) {
-	parent := filepath.Dir(filepath.Clean(dir))
-	tmp, err := os.MkdirTemp(parent, "."+filepath.Base(dir)+".tmp-*")
-	if err != nil {
-		return usageErrorf("cannot write into %s: %v", parent, err)
+// recordOutError adds the record command's hint to a refused --out.
+func recordOutError(err error) error {
+	if inputerr.Is(err) && inputerr.HintOf(err) == "" {
+		return inputerr.SetHint(err, recordOutHint)
 	}
-	defer func() {
-		if err != nil || tmp != "" {
-			os.RemoveAll(tmp)
-		}
-	}()
-	for _, f := range files {
-		if err := os.WriteFile(filepath.Join(tmp, f.name), f.data, 0o644); err != nil {
-			return usageErrorf("writing %s: %v", f.name, err)
-		}
+	return err
+}
+
+// writeRecordFolder writes the files into dir through safewrite: a new
+// folder appears whole; into an existing one (force) the files are
+// replaced together, and a record.sig of an earlier signed record is
+// removed when this record is unsigned. None of the record's inputs is
+// ever written over.
+func writeRecordFolder(dir string, files []namedFile, force bool, inputs []string) error {
+	out := make([]safewrite.File, len(files))
+	for i, f := range files {
+		out[i] = safewrite.File{Path: f.name, Data: f.data}
 	}
-	if _, statErr := os.Stat(dir); errors.Is(statErr, os.ErrNotExist) {
-		if err := os.Chmod(tmp, 0o755); err != nil {
-			return usageErrorf("%s: %v", tmp, err)
-		}
-		if err := os.Rename(tmp, dir); err != nil {
-			return usageErrorf("cannot create %s: %v", dir, err)
-		}
-		tmp = ""
-		return nil
+	return recordOutError(safewrite.WriteFolder(dir, out, safewrite.FolderOptions{
+		Replace: force, Protected: inputs, Stale: []string{signature.FileName},
+	}))
+}
+
+// recordInputFiles are the files a record is made from.
+func recordInputFiles(o *recordOptions) []string {
+	in := []string{o.planPath, o.labels, o.signoff, o.signKey, o.quality.second, o.quality.adjudicated}
+	for _, name := range []string{sampling.ManifestFile, sampling.LedgerFile, sampling.WorksheetFile, sampling.WorksheetSecondFile} {
+		in = append(in, filepath.Join(o.drawDir, name))
 	}
-	if err := checkOutWritable(dir, force); err != nil {
-		return err
-	}
-	signed := false
-	for _, f := range files {
-		signed = signed || f.name == signature.FileName
-		if err := os.Rename(filepath.Join(tmp, f.name), filepath.Join(dir, f.name)); err != nil {
-			return fmt.Errorf("moving %s into %s: %w", f.name, dir, err)
-		}
-	}
-	if !signed {
-		if err := os.Remove(filepath.Join(dir, signature.FileName)); err != nil && !errors.Is(err, os.ErrNotExist) {
-			return err
-		}
-	}
-	return nil
+	return in
 }

@@ -1,9 +1,8 @@
 package main
 
 import (
-	"errors"
 	"fmt"
-	"io"
+	"probity/plan/inputerr"
 	"runtime/debug"
 
 	"github.com/spf13/cobra"
@@ -15,12 +14,15 @@ import (
 func run(args []string, d deps) (code int) {
 	defer func() {
 		if r := recover(); r != nil {
-			fmt.Fprintf(d.stderr, "probity: internal error: %v\n", r)
-			fmt.Fprintf(d.stderr, "hint: this is a bug in probity, not in your input; please report it with the command line you ran\n%s", debug.Stack())
+			fmt.Fprintf(d.stderr, "probity: internal error: %v\n%s\n%s", r, internalPlea, debug.Stack())
 			code = exitInternal
 		}
 	}()
 	root := newRootCommand(d)
+	// An unknown command is cobra's to find and the user's to fix.
+	if _, _, err := root.Find(args); err != nil {
+		return reportError(d.stderr, inputerr.Errorf("%w", err).WithHint("see 'probity --help' for the commands"))
+	}
 	root.SetArgs(args)
 	err := root.Execute()
 	return reportError(d.stderr, err)
@@ -46,42 +48,28 @@ signed acceptance record.
 	root.SetIn(d.stdin)
 	root.SetVersionTemplate("probity {{.Version}}\n")
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
-		return &userError{msg: err.Error(), hint: "see '" + c.CommandPath() + " --help'", err: err}
+		return inputerr.Errorf("%w", err).WithHint("see '" + c.CommandPath() + " --help'")
 	})
 	root.CompletionOptions.DisableDefaultCmd = true
-	root.AddCommand(commands(d)...)
+	for _, c := range commands(d) {
+		usageArgs(c)
+		root.AddCommand(c)
+	}
 	return root
 }
 
-// reportError prints err in probity's one-line shape and maps it to an exit
-// code: outcome errors (rejections, failed checks) to 1, internal errors to
-// 3, everything else — bad flags, bad files — to 2.
-func reportError(stderr io.Writer, err error) int {
-	if err == nil {
-		return exitOK
+// usageArgs makes the errors of c's argument check (cobra's own, such as
+// cobra.NoArgs) input errors with a pointer to c's help.
+func usageArgs(c *cobra.Command) {
+	check := c.Args
+	if check == nil {
+		return
 	}
-	var oe *outcomeError
-	if errors.As(err, &oe) {
-		if oe.msg != "" {
-			fmt.Fprintf(stderr, "probity: %s\n", oe.msg)
+	c.Args = func(cmd *cobra.Command, args []string) error {
+		err := check(cmd, args)
+		if err == nil || inputerr.Is(err) {
+			return err
 		}
-		return exitRejected
+		return inputerr.Errorf("%w", err).WithHint("see '" + cmd.CommandPath() + " --help'")
 	}
-	var ie *internalError
-	if errors.As(err, &ie) {
-		fmt.Fprintf(stderr, "probity: internal error: %s\n", ie.msg)
-		fmt.Fprintln(stderr, "hint: this is a bug in probity, not in your input; please report it with the command line you ran")
-		return exitInternal
-	}
-	fmt.Fprintf(stderr, "probity: %s\n", err.Error())
-	var ue *userError
-	if errors.As(err, &ue) && ue.hint != "" {
-		fmt.Fprintf(stderr, "hint: %s\n", ue.hint)
-	}
-	return exitBadInput
 }
-
-// internalError is a broken invariant inside probity: exit code 3.
-type internalError struct{ msg string }
-
-func (e *internalError) Error() string { return e.msg }

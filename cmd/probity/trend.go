@@ -14,8 +14,11 @@ import (
 	"github.com/spf13/cobra"
 
 	chart "probity/pdfreport/trend"
+	"probity/plan/inputerr"
 	"probity/plan/record"
+	"probity/plan/record/signature"
 	"probity/plan/trend"
+	"probity/sampling/safewrite"
 )
 
 // trendOptions are the flags and arguments of probity trend.
@@ -63,8 +66,7 @@ trend exits 1 when the latest period's record rejects (overall verdict
 REJECT) and 0 otherwise, whatever the flags.`,
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) == 0 {
-				return withHint(usageErrorf("trend needs at least one record.json or folder of records"),
-					"e.g. 'probity trend audits/' or 'probity trend audits/2026-*/record.json'")
+				return inputerr.Errorf("trend needs at least one record.json or folder of records").WithHint("e.g. 'probity trend audits/' or 'probity trend audits/2026-*/record.json'")
 			}
 			return nil
 		},
@@ -87,22 +89,15 @@ REJECT) and 0 otherwise, whatever the flags.`,
 // validate checks the flags before any file is read.
 func (o *trendOptions) validate() error {
 	if !(o.alpha > 0 && o.alpha <= 0.5) {
-		return withHint(usageErrorf("--alpha %v is outside (0, 0.5]", o.alpha), "the usual level is 0.05")
+		return inputerr.Errorf("--alpha %v is outside (0, 0.5]", o.alpha).WithHint("the usual level is 0.05")
 	}
 	if o.chart != "" {
 		ext := strings.ToLower(filepath.Ext(o.chart))
 		if ext == ".png" || ext == ".pdf" {
-			return withHint(usageErrorf("--chart %s: give a prefix, not a file name", o.chart),
-				"--chart "+strings.TrimSuffix(o.chart, filepath.Ext(o.chart))+" writes both the .png and the .pdf")
+			return inputerr.Errorf("--chart %s: give a prefix, not a file name", o.chart).WithHint("--chart " + strings.TrimSuffix(o.chart, filepath.Ext(o.chart)) + " writes both the .png and the .pdf")
 		}
 		if strings.HasSuffix(o.chart, string(filepath.Separator)) {
-			return withHint(usageErrorf("--chart %s: give a prefix, not a folder", o.chart),
-				"e.g. --chart "+filepath.Join(o.chart, "trend"))
-		}
-		dir := filepath.Dir(o.chart)
-		st, err := os.Stat(dir)
-		if err != nil || !st.IsDir() {
-			return withHint(usageErrorf("--chart %s: folder %s does not exist", o.chart, dir), "create it first")
+			return inputerr.Errorf("--chart %s: give a prefix, not a folder", o.chart).WithHint("e.g. --chart " + filepath.Join(o.chart, "trend"))
 		}
 	}
 	return nil
@@ -148,7 +143,7 @@ func runTrend(d deps, o *trendOptions) error {
 	}
 	var files *trendChartFiles
 	if o.chart != "" {
-		files, err = writeTrendChart(t, o.chart, d)
+		files, err = writeTrendChart(t, o.chart, loaded, d)
 		if err != nil {
 			return err
 		}
@@ -173,28 +168,23 @@ func runTrend(d deps, o *trendOptions) error {
 	return nil
 }
 
-// trendInputError turns the trend package's errors into user errors with
-// their hints.
+// trendInputError adds the flag that fixes a record without a period.
 func trendInputError(err error) error {
-	var ie *trend.InputError
-	if errors.As(err, &ie) && ie.Hint != "" {
-		return withHint(badInput(err), ie.Hint)
+	if errors.Is(err, trend.ErrNoPeriod) {
+		return inputerr.SetHint(err, "draw each month's sample with 'probity draw --period LABEL' (e.g. 2026-11) and record it again")
 	}
-	var h interface{ Hint() string }
-	if errors.As(err, &h) {
-		return withHint(badInput(err), h.Hint())
-	}
-	return badInput(err)
+	return err
 }
 
-// writeTrendChart renders the PNG and the PDF, writes both under temporary
-// names beside the prefix and renames them into place, so a failure leaves
-// neither behind.
-func writeTrendChart(t *trend.Trend, prefix string, d deps) (*trendChartFiles, error) {
+// writeTrendChart renders the PNG and the PDF and writes both through
+// safewrite, together: a failure leaves neither, a missing folder is
+// created, and neither may replace a file of a record (the records read,
+// or a record folder the prefix points into).
+func writeTrendChart(t *trend.Trend, prefix string, loaded *trend.Loaded, d deps) (*trendChartFiles, error) {
 	w, h := chart.ChartSize(t)
 	pngData, err := chart.PNG(t, w, h, trendChartDPI)
 	if err != nil {
-		return nil, badInput(err)
+		return nil, err
 	}
 	date, err := time.Parse("2006-01-02", t.Latest.Date)
 	if err != nil {
@@ -202,51 +192,40 @@ func writeTrendChart(t *trend.Trend, prefix string, d deps) (*trendChartFiles, e
 	}
 	pdfData, err := chart.PDF(t, chart.PageInfo{Date: date, ToolVersion: d.version})
 	if err != nil {
-		return nil, withHint(badInput(err), "the PNG chart has no size limit; make the PDF from fewer records")
+		return nil, inputerr.SetHint(err, "the PNG chart has no size limit; make the PDF from fewer records")
 	}
 	files := &trendChartFiles{PNG: prefix + ".png", PDF: prefix + ".pdf"}
-	if err := writeTrendFiles([]string{files.PNG, files.PDF}, [][]byte{pngData, pdfData}); err != nil {
+	err = safewrite.Write([]safewrite.File{{Path: files.PNG, Data: pngData}, {Path: files.PDF, Data: pdfData}},
+		safewrite.Options{Replace: true, Protected: trendProtected(loaded, filepath.Dir(prefix))})
+	if errors.Is(err, safewrite.ErrProtected) {
+		return nil, inputerr.SetHint(err, "--chart names a record's own file; give a prefix outside the record folders, e.g. --chart audits/trend")
+	}
+	if err != nil {
 		return nil, err
 	}
 	return files, nil
 }
 
-// writeTrendFiles writes each data to a temporary file beside its
-// path, then renames them all; on any failure it removes what it wrote.
-func writeTrendFiles(paths []string, data [][]byte) error {
-	var tmps []string
-	cleanup := func() {
-		for _, t := range tmps {
-			os.Remove(t)
+// trendProtected are the files a chart must never replace: every record
+// read, the record.pdf and record.sig beside each record.json, and the
+// files of a record folder the chart's folder is.
+func trendProtected(loaded *trend.Loaded, chartDir string) []string {
+	var out []string
+	recordFolder := func(dir string) {
+		for _, name := range []string{recordJSON, recordPDF, signature.FileName} {
+			out = append(out, filepath.Join(dir, name))
 		}
 	}
-	for i, p := range paths {
-		f, err := os.CreateTemp(filepath.Dir(p), "."+filepath.Base(p)+".*.tmp")
-		if err != nil {
-			cleanup()
-			return usageErrorf("cannot write %s: %v", p, err)
-		}
-		tmps = append(tmps, f.Name())
-		if _, err := f.Write(data[i]); err != nil {
-			f.Close()
-			cleanup()
-			return usageErrorf("cannot write %s: %v", p, err)
-		}
-		if err := f.Close(); err != nil {
-			cleanup()
-			return usageErrorf("cannot write %s: %v", p, err)
+	for _, e := range loaded.Entries {
+		out = append(out, e.Path)
+		if filepath.Base(e.Path) == recordJSON {
+			recordFolder(filepath.Dir(e.Path))
 		}
 	}
-	for i, p := range paths {
-		if err := os.Rename(tmps[i], p); err != nil {
-			for _, done := range paths[:i] {
-				os.Remove(done)
-			}
-			cleanup()
-			return usageErrorf("cannot write %s: %v", p, err)
-		}
+	if _, err := os.Stat(filepath.Join(chartDir, recordJSON)); err == nil {
+		recordFolder(chartDir)
 	}
-	return nil
+	return out
 }
 
 // trendShortList joins up to n items, then "and k more".

@@ -14,6 +14,7 @@ import (
 
 	"probity/pdfreport"
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/record/signature"
@@ -67,16 +68,16 @@ verify exits 0 when every check it ran passed and 1 when any failed (the
 failing checks say which file and what); 2 on bad usage or unreadable input.`,
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) != 1 {
-				return withHint(usageErrorf("verify needs exactly one record folder, got %d arguments", len(args)), "probity verify RECDIR [--pub KEY.pub]")
+				return inputerr.Errorf("verify needs exactly one record folder, got %d arguments", len(args)).WithHint("probity verify RECDIR [--pub KEY.pub]")
 			}
 			return nil
 		},
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			if opts.adjudicated != "" && opts.second == "" {
-				return withHint(usageErrorf("--adjudicated needs --second"), "pass the labeled worksheet-second.csv the record was made with")
+				return inputerr.Errorf("--adjudicated needs --second").WithHint("pass the labeled worksheet-second.csv the record was made with")
 			}
 			if opts.logPath != "" && (opts.drawDir == "" || opts.planPath == "") {
-				return withHint(usageErrorf("--log needs --plan and --draw"), "the sample is drawn again from the log with the plan's seed and the draw folder's settings")
+				return inputerr.Errorf("--log needs --plan and --draw").WithHint("the sample is drawn again from the log with the plan's seed and the draw folder's settings")
 			}
 			return nil
 		},
@@ -120,7 +121,7 @@ func (c *checkList) skip(format string, args ...any) {
 func runVerify(d deps, o *verifyOptions) error {
 	st, err := os.Stat(o.dir)
 	if err != nil || !st.IsDir() {
-		return withHint(usageErrorf("%s is not a record folder", o.dir), "pass the --out folder of probity record")
+		return inputerr.Errorf("%s is not a record folder", o.dir).WithHint("pass the --out folder of probity record")
 	}
 	var trusted ed25519.PublicKey
 	if o.pub != "" {
@@ -132,7 +133,7 @@ func runVerify(d deps, o *verifyOptions) error {
 	jsonPath := filepath.Join(o.dir, recordJSON)
 	js, err := os.ReadFile(jsonPath)
 	if err != nil {
-		return withHint(usageErrorf("cannot read %s: %v", jsonPath, errors.Unwrap(err)), "pass the --out folder of probity record")
+		return inputerr.Errorf("cannot read %s: %v", jsonPath, errors.Unwrap(err)).WithHint("pass the --out folder of probity record").Wrap(err)
 	}
 	rec, err := record.Decode(js)
 	switch {
@@ -201,7 +202,7 @@ func verifySignatures(c *checkList, o *verifyOptions, rec *record.Record, js []b
 			continue
 		}
 		if err := sig.Verify(f.name, f.data); err != nil {
-			c.fail("%s (in %s)", strings.TrimPrefix(err.Error(), signature.ErrMismatch.Error()+": "), o.dir)
+			c.fail("%s (in %s)", err, o.dir)
 		} else {
 			c.ok("%s: signature valid", filepath.Join(o.dir, f.name))
 		}
@@ -238,7 +239,7 @@ func verifyInputs(c *checkList, o *verifyOptions, rec *record.Record) error {
 	readHash := func(path string) (string, error) {
 		data, err := os.ReadFile(path)
 		if err != nil {
-			return "", withHint(usageErrorf("cannot read %s: %v", path, errors.Unwrap(err)), "check the path")
+			return "", inputerr.Errorf("cannot read %s: %v", path, errors.Unwrap(err)).WithHint("check the path").Wrap(err)
 		}
 		return record.SHA256(data), nil
 	}
@@ -253,7 +254,7 @@ func verifyInputs(c *checkList, o *verifyOptions, rec *record.Record) error {
 		mpath := filepath.Join(o.drawDir, sampling.ManifestFile)
 		m, mb, err := sampling.ReadManifest(mpath)
 		if err != nil {
-			return recordInputError(err, mpath)
+			return err
 		}
 		same("manifest fingerprint", mpath, record.SHA256(mb), fp.Manifest)
 		same("log fingerprint (from the manifest)", mpath, m.Log.SHA256, fp.Log)
@@ -291,17 +292,16 @@ func verifyInputs(c *checkList, o *verifyOptions, rec *record.Record) error {
 func recompute(c *checkList, o *verifyOptions, rec *record.Record) error {
 	in, err := loadRecordInputs(o.planPath, o.drawDir, o.labels)
 	if err != nil {
-		var ue *userError
-		if errors.As(err, &ue) && !isPathError(err) {
+		// A file that cannot be read is a usage error; bad content in
+		// one is a failed check.
+		var pe *fs.PathError
+		if inputerr.Is(err) && !errors.As(err, &pe) {
 			c.fail("the inputs do not give a record: %s", err.Error())
 			return nil
 		}
 		return err
 	}
-	bound := verdict.KornGraubard
-	if rec.Method.Bound == verdict.BoundWeightedHoeff {
-		bound = verdict.WeightedHoeffding
-	}
+	bound := verdict.UnequalBoundOf(rec.Method.Bound)
 	if rec.LabelQuality != nil && o.second == "" {
 		c.skip("judgement not recomputed: the record was judged on double labels; pass --second (and --adjudicated) as well")
 		return nil
@@ -322,7 +322,7 @@ func recompute(c *checkList, o *verifyOptions, rec *record.Record) error {
 		Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey, Adjust: adjust,
 	})
 	if err != nil {
-		c.fail("the inputs do not give a record: %s", recordInputError(err, o.labels).Error())
+		c.fail("the inputs do not give a record: %s", err.Error())
 		return nil
 	}
 	// The fingerprints (and so the record id) were compared above, input
@@ -344,44 +344,39 @@ func recompute(c *checkList, o *verifyOptions, rec *record.Record) error {
 	return nil
 }
 
-func isPathError(err error) bool {
-	var pe *fs.PathError
-	return errors.As(err, &pe) || strings.HasPrefix(err.Error(), "cannot read ")
-}
-
 // redraw draws the sample again from the log and compares it with the
 // draw folder.
 func redraw(c *checkList, o *verifyOptions) error {
 	p, planFP, err := plan.Load(o.planPath)
 	if err != nil {
-		return recordInputError(err, o.planPath)
+		return err
 	}
-	m, _, err := sampling.ReadManifest(filepath.Join(o.drawDir, sampling.ManifestFile))
+	mpath := filepath.Join(o.drawDir, sampling.ManifestFile)
+	m, _, err := sampling.ReadManifest(mpath)
 	if err != nil {
-		return recordInputError(err, o.drawDir)
+		return err
 	}
 	di, err := sampling.DrawInputFromManifest(m)
 	if err != nil {
-		return recordInputError(err, o.drawDir)
+		return inFile(err, mpath)
 	}
 	f, err := os.Open(o.logPath)
 	if err != nil {
-		return withHint(usageErrorf("cannot read --log %s: %v", o.logPath, errors.Unwrap(err)), "pass the log the sample was drawn from")
+		return inputerr.Errorf("cannot read --log %s: %v", o.logPath, errors.Unwrap(err)).WithHint("pass the log the sample was drawn from").Wrap(err)
 	}
 	defer f.Close()
 	di.Plan, di.PlanFingerprint, di.LogPath, di.Log, di.ToolVersion = p, planFP, o.logPath, f, m.ToolVersion
 	want, err := sampling.Draw(di)
 	if err != nil {
-		var ie *sampling.InputError
-		if errors.As(err, &ie) {
-			c.fail("drawing the sample again from %s: %v", o.logPath, err)
+		if inputerr.Is(err) {
+			c.fail("drawing the sample again from %s: %v", o.logPath, inFile(err, mpath))
 			return nil
 		}
 		return &internalError{msg: err.Error()}
 	}
 	rep, err := sampling.CompareFolder(o.drawDir, want)
 	if err != nil {
-		return recordInputError(err, o.drawDir)
+		return err
 	}
 	if len(rep.Differences) == 0 {
 		c.ok("sample drawn again from %s: the draw folder holds exactly the %d items and %d spares chance picked", o.logPath, rep.Items, rep.Spares)
@@ -413,7 +408,7 @@ func verifyRendering(c *checkList, o *verifyOptions, rec *record.Record, version
 	}
 	set, err := templates.Load(o.templatesDir)
 	if err != nil {
-		return withHint(badInput(err), "pass the --templates folder the record was made with")
+		return inputerr.SetHint(err, "pass the --templates folder the record was made with")
 	}
 	for _, paper := range []string{"a4", "letter"} {
 		again, err := pdfreport.Render(rec, pdfreport.Options{Paper: paper, Templates: set})

@@ -18,6 +18,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
 
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/trend"
 )
@@ -72,7 +73,7 @@ func PNG(t *trend.Trend, w, h vg.Length, dpi int) ([]byte, error) {
 		return nil, err
 	}
 	if w < minWidth || h < vg.Length(headerH+len(t.Candidates)*60) || dpi < 36 || dpi > 600 {
-		return nil, fmt.Errorf("%w: size %v × %v at %d dpi is too small or too large", ErrTrend, w, h, dpi)
+		return nil, inputerr.Errorf("%w: size %v × %v at %d dpi is too small or too large", ErrTrend, w, h, dpi)
 	}
 	c := vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(dpi), vgimg.UseBackgroundColor(color.White))
 	if err := drawChart(t, draw.New(c)); err != nil {

@@ -14,6 +14,7 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"probity/pdfreport"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/trend"
 )
@@ -69,7 +70,7 @@ func PDF(t *trend.Trend, info PageInfo) ([]byte, error) {
 		return nil, err
 	}
 	if len(t.Periods) > maxPeriods {
-		return nil, fmt.Errorf("%w: %d periods do not fit on one page (at most %d); pass fewer records", ErrTrend, len(t.Periods), maxPeriods)
+		return nil, inputerr.Errorf("%w: %d periods do not fit on one page (at most %d); pass fewer records", ErrTrend, len(t.Periods), maxPeriods)
 	}
 	k := len(t.Candidates)
 	orient, ph := "P", 297.0
@@ -111,7 +112,7 @@ func PDF(t *trend.Trend, info PageInfo) ([]byte, error) {
 		chartH = avail
 	}
 	if chartH < 20+18*float64(k) {
-		return nil, fmt.Errorf("%w: the chart and a table of %d periods do not fit on one page", ErrTrend, len(t.Periods))
+		return nil, inputerr.Errorf("%w: the chart and a table of %d periods do not fit on one page", ErrTrend, len(t.Periods))
 	}
 	// Draw at the chart's natural width (so the legend fits) and let the
 	// page scale it down; the DPI gives chartDPI pixels per inch on paper.

@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -42,11 +43,11 @@ type Adjudication struct {
 // ReadAdjudications reads an adjudication file (CSV with the header
 // AdjudicationColumns; a UTF-8 byte-order mark and CRLF line ends are
 // accepted). Every final_label must be one of classes. Errors are
-// *sampling.InputError naming the file, line and column.
+// *inputerr.Error naming the file, line and column.
 func ReadAdjudications(path string, classes []string) ([]Adjudication, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, err
+		return nil, inputerr.FromPath(err)
 	}
 	return ParseAdjudications(data, path, classes)
 }
@@ -57,7 +58,7 @@ func ParseAdjudications(data []byte, name string, classes []string) ([]Adjudicat
 	emptyHint := "start the file with the line: " + strings.Join(AdjudicationColumns, ",")
 	t, err := sampling.ParseCSVTable(data, name)
 	if err != nil {
-		var ie *sampling.InputError
+		var ie *inputerr.Error
 		if errors.As(err, &ie) && ie.Line == 0 && ie.Err == nil {
 			c := *ie
 			c.Hint = emptyHint
@@ -66,7 +67,7 @@ func ParseAdjudications(data []byte, name string, classes []string) ([]Adjudicat
 		return nil, err
 	}
 	if !slices.Equal(t.Header, AdjudicationColumns) {
-		return nil, &sampling.InputError{File: name, Line: 1,
+		return nil, &inputerr.Error{File: name, Line: 1,
 			Msg:  fmt.Sprintf("header is %s; an adjudication file's columns are %s", strings.Join(t.Header, ","), strings.Join(AdjudicationColumns, ",")),
 			Hint: emptyHint}
 	}
@@ -80,12 +81,12 @@ func ParseAdjudications(data []byte, name string, classes []string) ([]Adjudicat
 			return nil, err
 		}
 		if prev, ok := items[a.Item]; ok {
-			return nil, &sampling.InputError{File: name, Line: line, Column: "item",
+			return nil, &inputerr.Error{File: name, Line: line, Field: "item",
 				Msg: fmt.Sprintf("item %d is adjudicated twice (lines %d and %d)", a.Item, prev, line)}
 		}
 		items[a.Item] = line
 		if prev, ok := ids[a.RecordID]; ok {
-			return nil, &sampling.InputError{File: name, Line: line, Column: "record_id",
+			return nil, &inputerr.Error{File: name, Line: line, Field: "record_id",
 				Msg: fmt.Sprintf("record_id %q is adjudicated twice (lines %d and %d)", a.RecordID, prev, line)}
 		}
 		ids[a.RecordID] = line
@@ -97,7 +98,7 @@ func ParseAdjudications(data []byte, name string, classes []string) ([]Adjudicat
 // parseAdjudication checks one data row.
 func parseAdjudication(name string, line int, rec, classes []string) (Adjudication, error) {
 	bad := func(col, format string, args ...any) error {
-		return &sampling.InputError{File: name, Line: line, Column: col, Msg: fmt.Sprintf(format, args...)}
+		return &inputerr.Error{File: name, Line: line, Field: col, Msg: fmt.Sprintf(format, args...)}
 	}
 	a := Adjudication{Line: line, RecordID: rec[1], FinalLabel: rec[2], DecidedBy: strings.TrimSpace(rec[3]), Note: rec[4]}
 	n, err := strconv.Atoi(rec[0])
@@ -110,13 +111,13 @@ func parseAdjudication(name string, line int, rec, classes []string) (Adjudicati
 	}
 	switch {
 	case a.FinalLabel == "":
-		e := bad("final_label", "final_label is empty").(*sampling.InputError)
+		e := bad("final_label", "final_label is empty").(*inputerr.Error)
 		e.Hint = "write the decided class (" + strings.Join(classes, ", ") + ") or remove the row"
 		return a, e
 	case !slices.Contains(classes, a.FinalLabel):
-		e := bad("final_label", "final_label %q is not one of the classes (%s)", a.FinalLabel, strings.Join(classes, ", ")).(*sampling.InputError)
+		e := bad("final_label", "final_label %q is not one of the classes (%s)", a.FinalLabel, strings.Join(classes, ", ")).(*inputerr.Error)
 		if a.FinalLabel == Unsure {
-			e.Hint = "an adjudication must decide; leave the item out and pass --allow-unadjudicated to count it as an error for every candidate"
+			e.Hint = "an adjudication must decide one of the classes; leave the item out to keep the disagreement open"
 		}
 		return a, e
 	}

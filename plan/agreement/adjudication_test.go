@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"probity/sampling"
+	"probity/plan/inputerr"
 )
 
 var classes = []string{"defect", "ok"}
@@ -64,17 +64,14 @@ func TestParseAdjudicationsErrors(t *testing.T) {
 	}
 	for _, c := range cases {
 		_, err := ParseAdjudications([]byte(c.data), "adj.csv", classes)
-		var ie *sampling.InputError
+		var ie *inputerr.Error
 		if !errors.As(err, &ie) {
-			t.Errorf("%s: error %v is not an *sampling.InputError", c.name, err)
+			t.Errorf("%s: error %v is not an *inputerr.Error", c.name, err)
 			continue
 		}
-		if !errors.Is(err, sampling.ErrInput) {
-			t.Errorf("%s: error does not wrap sampling.ErrInput", c.name)
-		}
-		if ie.File != "adj.csv" || ie.Line != c.line || ie.Column != c.column || !strings.Contains(ie.Msg, c.msg) {
+		if ie.File != "adj.csv" || ie.Line != c.line || ie.Field != c.column || !strings.Contains(ie.Msg, c.msg) {
 			t.Errorf("%s: got file %q line %d column %q msg %q; want line %d column %q msg containing %q",
-				c.name, ie.File, ie.Line, ie.Column, ie.Msg, c.line, c.column, c.msg)
+				c.name, ie.File, ie.Line, ie.Field, ie.Msg, c.line, c.column, c.msg)
 		}
 	}
 }
@@ -87,9 +84,9 @@ func FuzzParseAdjudications(f *testing.F) {
 	f.Fuzz(func(t *testing.T, data []byte) {
 		rows, err := ParseAdjudications(data, "fuzz.csv", classes)
 		if err != nil {
-			var ie *sampling.InputError
+			var ie *inputerr.Error
 			if !errors.As(err, &ie) || ie.File != "fuzz.csv" {
-				t.Fatalf("error %v is not an InputError naming the file", err)
+				t.Fatalf("error %v is not an input error naming the file", err)
 			}
 			return
 		}

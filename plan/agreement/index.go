@@ -1,24 +1,12 @@
 package agreement
 
 import (
-	"fmt"
 	"slices"
 	"strings"
 
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
-
-// inputError builds an input error naming file, line (0: the whole file)
-// and column ("" when not about one column).
-func inputError(file string, line int, column, format string, args ...any) *sampling.InputError {
-	return &sampling.InputError{File: file, Line: line, Column: column, Msg: fmt.Sprintf(format, args...)}
-}
-
-// withHint attaches the obvious fix to e and returns it.
-func withHint(e *sampling.InputError, hint string) error {
-	e.Hint = hint
-	return e
-}
 
 // indexLedger maps items to ledger rows and returns the doubled items in
 // item order.
@@ -33,7 +21,7 @@ func indexLedger(in Input) (map[int]sampling.LedgerRow, []int, error) {
 	}
 	slices.Sort(doubled)
 	if len(doubled) == 0 {
-		return nil, nil, withHint(inputError(in.LedgerFile, 0, "double", "no item is marked for a second label"), "draw with --double k to have k items labeled twice, or leave out --second")
+		return nil, nil, inputerr.At(in.LedgerFile, 0, "double", "no item is marked for a second label").WithHint("draw with items marked for a second label, or judge without a second worksheet")
 	}
 	return ledger, doubled, nil
 }
@@ -55,7 +43,7 @@ func labelOK(tb *Table, label string) bool {
 
 // badLabel is the error for a label outside the classes.
 func badLabel(file string, r sampling.WorksheetRow, classes []string) error {
-	return withHint(inputError(file, r.Line, "label", "label %q of item %d is not one of the classes (%s), blank or %s", r.Label, r.Item, strings.Join(classes, ", "), Unsure), "correct the label; write "+Unsure+" when the item cannot be decided")
+	return inputerr.At(file, r.Line, "label", "label %q of item %d is not one of the classes (%s), blank or %s", r.Label, r.Item, strings.Join(classes, ", "), Unsure).WithHint("correct the label; write " + Unsure + " when the item cannot be decided")
 }
 
 // indexFirst maps the doubled items to their rows in the first worksheet,
@@ -69,10 +57,10 @@ func indexFirst(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb *
 	for _, item := range doubled {
 		r, ok := rows[item]
 		if !ok {
-			return nil, withHint(inputError(in.FirstFile, 0, "item", "item %d (record_id %q) is in the ledger but not in the worksheet", item, ledger[item].RecordID), "use the worksheet written by probity draw, with every row")
+			return nil, inputerr.At(in.FirstFile, 0, "item", "item %d (record_id %q) is in the ledger but not in the worksheet", item, ledger[item].RecordID).WithHint("use the worksheet written by probity draw, with every row")
 		}
 		if r.RecordID != ledger[item].RecordID {
-			return nil, withHint(inputError(in.FirstFile, r.Line, "record_id", "item %d has record_id %q, but the ledger has %q", item, r.RecordID, ledger[item].RecordID), "the worksheet was edited after the draw; use the original file")
+			return nil, inputerr.At(in.FirstFile, r.Line, "record_id", "item %d has record_id %q, but the ledger has %q", item, r.RecordID, ledger[item].RecordID).WithHint("the worksheet was edited after the draw; use the original file")
 		}
 		r.Label = normalLabel(r.Label)
 		if !labelOK(tb, r.Label) {
@@ -93,11 +81,11 @@ func indexSecond(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb 
 		l, ok := ledger[r.Item]
 		switch {
 		case !ok:
-			return nil, withHint(inputError(in.SecondFile, r.Line, "item", "item %d is not in the ledger", r.Item), again)
+			return nil, inputerr.At(in.SecondFile, r.Line, "item", "item %d is not in the ledger", r.Item).WithHint(again)
 		case r.RecordID != l.RecordID:
-			return nil, withHint(inputError(in.SecondFile, r.Line, "record_id", "item %d has record_id %q, but the ledger has %q", r.Item, r.RecordID, l.RecordID), again)
+			return nil, inputerr.At(in.SecondFile, r.Line, "record_id", "item %d has record_id %q, but the ledger has %q", r.Item, r.RecordID, l.RecordID).WithHint(again)
 		case !l.Double:
-			return nil, withHint(inputError(in.SecondFile, r.Line, "item", "item %d (record_id %q) was not drawn for a second label", r.Item, r.RecordID), again)
+			return nil, inputerr.At(in.SecondFile, r.Line, "item", "item %d (record_id %q) was not drawn for a second label", r.Item, r.RecordID).WithHint(again)
 		case !labelOK(tb, r.Label):
 			return nil, badLabel(in.SecondFile, r, tb.Classes)
 		}
@@ -110,7 +98,7 @@ func indexSecond(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb 
 		}
 	}
 	if len(missing) > 0 {
-		return nil, withHint(inputError(in.SecondFile, 0, "item", "%d doubled items are missing: items %s", len(missing), itemList(missing, 10)), again)
+		return nil, inputerr.At(in.SecondFile, 0, "item", "%d doubled items are missing: items %s", len(missing), itemList(missing, 10)).WithHint(again)
 	}
 	return out, nil
 }
@@ -124,11 +112,11 @@ func indexAdjudications(in Input, ledger map[int]sampling.LedgerRow) (map[int]Ad
 		l, ok := ledger[a.Item]
 		switch {
 		case !ok:
-			return nil, withHint(inputError(in.AdjudicationFile, a.Line, "item", "item %d is not in the ledger", a.Item), "remove the row or correct the item number")
+			return nil, inputerr.At(in.AdjudicationFile, a.Line, "item", "item %d is not in the ledger", a.Item).WithHint("remove the row or correct the item number")
 		case a.RecordID != l.RecordID:
-			return nil, withHint(inputError(in.AdjudicationFile, a.Line, "record_id", "item %d has record_id %q, but the ledger has %q", a.Item, a.RecordID, l.RecordID), "correct the item number or the record_id")
+			return nil, inputerr.At(in.AdjudicationFile, a.Line, "record_id", "item %d has record_id %q, but the ledger has %q", a.Item, a.RecordID, l.RecordID).WithHint("correct the item number or the record_id")
 		case !l.Double:
-			return nil, withHint(inputError(in.AdjudicationFile, a.Line, "item", "item %d was not doubled; only doubled items the labelers did not agree on are adjudicated", a.Item), "remove the row")
+			return nil, inputerr.At(in.AdjudicationFile, a.Line, "item", "item %d was not doubled; only doubled items the labelers did not agree on are adjudicated", a.Item).WithHint("remove the row")
 		}
 		out[a.Item] = a
 	}

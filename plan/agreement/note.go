@@ -72,7 +72,7 @@ func labelErrorNote(q *record.LabelQuality, conf, ceiling float64) string {
 
 // UnsureTreatment says in words what the judgement did with the items
 // whose final label is unsure: replaced by spares (replaced of them, in
-// draw order) and, with --allow-incomplete, the rest counted as errors for
+// draw order) and, when incomplete labeling is allowed, the rest counted as errors for
 // every candidate.
 func UnsureTreatment(unsure, replaced int, allowIncomplete bool) string {
 	switch {
@@ -81,9 +81,9 @@ func UnsureTreatment(unsure, replaced int, allowIncomplete bool) string {
 	case replaced >= unsure:
 		return fmt.Sprintf("all %d replaced by spares, in draw order", unsure)
 	case allowIncomplete && replaced > 0:
-		return fmt.Sprintf("%d replaced by spares, in draw order; the other %d counted as errors for every candidate (--allow-incomplete)", replaced, unsure-replaced)
+		return fmt.Sprintf("%d replaced by spares, in draw order; the other %d counted as errors for every candidate (incomplete labeling allowed)", replaced, unsure-replaced)
 	case allowIncomplete:
-		return fmt.Sprintf("all %d counted as errors for every candidate (--allow-incomplete)", unsure)
+		return fmt.Sprintf("all %d counted as errors for every candidate (incomplete labeling allowed)", unsure)
 	case replaced > 0:
 		return fmt.Sprintf("%d replaced by spares, in draw order; %d not replaced", replaced, unsure-replaced)
 	default:

@@ -76,8 +76,8 @@ func TestUnsureTreatment(t *testing.T) {
 	}{
 		{0, 0, false, "none"},
 		{3, 3, false, "all 3 replaced by spares, in draw order"},
-		{3, 1, true, "1 replaced by spares, in draw order; the other 2 counted as errors for every candidate (--allow-incomplete)"},
-		{2, 0, true, "all 2 counted as errors for every candidate (--allow-incomplete)"},
+		{3, 1, true, "1 replaced by spares, in draw order; the other 2 counted as errors for every candidate (incomplete labeling allowed)"},
+		{2, 0, true, "all 2 counted as errors for every candidate (incomplete labeling allowed)"},
 		{2, 1, false, "1 replaced by spares, in draw order; 1 not replaced"},
 		{2, 0, false, "2 not replaced"},
 	}

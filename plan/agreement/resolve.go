@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"strings"
 
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/sampling"
 )
@@ -110,7 +111,7 @@ const (
 //     adjudication row decides it.
 //
 // Only pairs of two classes enter the agreement table, kappa and AC1.
-// Errors are *sampling.InputError naming the file, line and column.
+// Errors are *inputerr.Error naming the file, line and column.
 func Resolve(in Input) (*Result, error) {
 	conf := in.Confidence
 	if conf == 0 {
@@ -166,8 +167,8 @@ func Resolve(in Input) (*Result, error) {
 		switch {
 		case ac && bc && a == b:
 			if hasAdj {
-				return nil, withHint(inputError(in.AdjudicationFile, ad.Line, "item",
-					"the labelers agreed on item %d (both %q); only disagreements are adjudicated", item, a), "remove the row")
+				return nil, inputerr.At(in.AdjudicationFile, ad.Line, "item",
+					"the labelers agreed on item %d (both %q); only disagreements are adjudicated", item, a).WithHint("remove the row")
 			}
 			fin.Label, fin.Source = a, FromAgreement
 		case (ac || bc) && a != "" && b != "":
@@ -193,8 +194,7 @@ func Resolve(in Input) (*Result, error) {
 				q.Adjudicated++
 				q.Disagreements = append(q.Disagreements, adjudicated(fin, f, s, ad))
 			case in.Strict:
-				return nil, withHint(inputError(blankFile, line, "label", "item %d has no label, but it was drawn for two independent labels (--strict)", item),
-					"have it labeled, or adjudicate it")
+				return nil, inputerr.At(blankFile, line, "label", "item %d has no label, but it was drawn for two independent labels (labeler independence enforced)", item).WithHint("have it labeled, or adjudicate it")
 			default:
 				fin.Label, fin.Source = side, FromOneSide
 				q.Warnings = append(q.Warnings, fmt.Sprintf("%s line %d: item %d has no label here, so it has one label only and is not compared", blankFile, line, item))
@@ -227,7 +227,7 @@ func Resolve(in Input) (*Result, error) {
 			return nil, unadjudicatedError(in, open)
 		}
 		q.Unadjudicated = len(open)
-		q.Warnings = append(q.Warnings, fmt.Sprintf("%d disagreements were not adjudicated and count as errors for every candidate (--allow-unadjudicated): items %s", len(open), itemList(open, len(open))))
+		q.Warnings = append(q.Warnings, fmt.Sprintf("%d disagreements were not adjudicated and count as errors for every candidate (unadjudicated disagreements allowed): items %s", len(open), itemList(open, len(open))))
 	}
 
 	fillAgreement(&q, tb, conf)
@@ -319,13 +319,20 @@ func itemList(items []int, max int) string {
 	return b.String()
 }
 
+// ErrUnadjudicated is the cause of the refusal of disagreements left
+// without an adjudication when Input.AllowUnadjudicated is not set; a
+// caller can name its own ways of giving the adjudications or allowing
+// them in the hint.
+var ErrUnadjudicated = errors.New("disagreements are not adjudicated")
+
 // unadjudicatedError is the refusal for disagreements without a row.
 func unadjudicatedError(in Input, open []int) error {
-	fix := "or pass --allow-unadjudicated to count them as errors for every candidate"
 	if in.AdjudicationFile == "" {
-		return withHint(inputError(in.SecondFile, 0, "", "%d doubled items have two different labels and need an adjudication: items %s", len(open), itemList(open, 10)), "write one row per item to an adjudication file (columns "+strings.Join(AdjudicationColumns, ",")+") and pass --adjudicated FILE, "+fix)
+		return inputerr.At(in.SecondFile, 0, "", "%d doubled items have two different labels and need an adjudication: items %s", len(open), itemList(open, 10)).
+			Wrap(ErrUnadjudicated).WithHint("write one row per item to an adjudication file (columns " + strings.Join(AdjudicationColumns, ",") + ")")
 	}
-	return withHint(inputError(in.AdjudicationFile, 0, "", "no row for %d of the disagreements: items %s", len(open), itemList(open, 10)), "add one row per item, "+fix)
+	return inputerr.At(in.AdjudicationFile, 0, "", "no row for %d of the disagreements: items %s", len(open), itemList(open, 10)).
+		Wrap(ErrUnadjudicated).WithHint("add one row per item")
 }
 
 // sameLabeler compares two labeler names, ignoring case and surrounding
@@ -340,7 +347,7 @@ func sameLabeler(a, b string) bool {
 func checkIndependence(in Input, f, s sampling.WorksheetRow, q *record.LabelQuality, unnamed *int) error {
 	if sameLabeler(f.Labeler, s.Labeler) {
 		if in.Strict {
-			return withHint(inputError(in.SecondFile, s.Line, "labeler", "item %d was labeled by %q in both worksheets; its two labels are not independent (--strict)", s.Item, strings.TrimSpace(s.Labeler)), "have another person give the second label")
+			return inputerr.At(in.SecondFile, s.Line, "labeler", "item %d was labeled by %q in both worksheets; its two labels are not independent (labeler independence enforced)", s.Item, strings.TrimSpace(s.Labeler)).WithHint("have another person give the second label")
 		}
 		q.Warnings = append(q.Warnings, fmt.Sprintf("%s line %d: item %d was labeled by %q in both worksheets; its two labels are not independent", in.SecondFile, s.Line, s.Item, strings.TrimSpace(s.Labeler)))
 		return nil
@@ -351,7 +358,7 @@ func checkIndependence(in Input, f, s sampling.WorksheetRow, q *record.LabelQual
 			if strings.TrimSpace(f.Labeler) == "" {
 				file, line = in.FirstFile, f.Line
 			}
-			return withHint(inputError(file, line, "labeler", "item %d does not name its labeler; --strict needs both labelers of every doubled item", s.Item), "fill in the labeler column")
+			return inputerr.At(file, line, "labeler", "item %d does not name its labeler; enforcing labeler independence needs both labelers of every doubled item", s.Item).WithHint("fill in the labeler column")
 		}
 		*unnamed++
 	}

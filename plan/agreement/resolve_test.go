@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/sampling"
 )
@@ -173,12 +174,12 @@ func TestResolveUnadjudicated(t *testing.T) {
 
 func assertInputError(t *testing.T, err error, file string, line int, column, msg string) {
 	t.Helper()
-	var ie *sampling.InputError
+	var ie *inputerr.Error
 	if !errors.As(err, &ie) {
-		t.Fatalf("error %v is not an *sampling.InputError", err)
+		t.Fatalf("error %v is not an *inputerr.Error", err)
 	}
-	if ie.File != file || ie.Line != line || ie.Column != column || !strings.Contains(ie.Msg, msg) {
-		t.Errorf("got %q line %d column %q: %q\nwant %q line %d column %q: …%q…", ie.File, ie.Line, ie.Column, ie.Msg, file, line, column, msg)
+	if ie.File != file || ie.Line != line || ie.Field != column || !strings.Contains(ie.Msg, msg) {
+		t.Errorf("got %q line %d column %q: %q\nwant %q line %d column %q: …%q…", ie.File, ie.Line, ie.Field, ie.Msg, file, line, column, msg)
 	}
 	if ie.Hint == "" {
 		t.Errorf("error %q has no hint", ie.Error())

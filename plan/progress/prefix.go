@@ -2,9 +2,8 @@ package progress
 
 import (
 	"fmt"
+	"probity/plan/inputerr"
 	"strings"
-
-	"probity/sampling"
 )
 
 // prefix checks the labeled worksheet against the ledger and returns the
@@ -22,7 +21,7 @@ func prefix(in Input) ([]item, int, error) {
 		classes[c] = true
 	}
 	if len(ws) != len(led) {
-		return nil, 0, &sampling.InputError{File: name, Msg: fmt.Sprintf("has %d items but the draw's ledger has %d", len(ws), len(led)),
+		return nil, 0, &inputerr.Error{File: name, Msg: fmt.Sprintf("has %d items but the draw's ledger has %d", len(ws), len(led)),
 			Hint: "label a copy of the worksheet.csv from the same draw folder, without adding or removing rows"}
 	}
 	var items []item
@@ -32,13 +31,13 @@ func prefix(in Input) ([]item, int, error) {
 	for i, w := range ws {
 		l := led[i]
 		if w.Item != l.Item || w.RecordID != l.RecordID {
-			return nil, 0, &sampling.InputError{File: name, Line: w.Line, Column: "record_id",
+			return nil, 0, &inputerr.Error{File: name, Line: w.Line, Field: "record_id",
 				Msg:  fmt.Sprintf("item %d is %q but the ledger's row %d is item %d, %q", w.Item, w.RecordID, i+1, l.Item, l.RecordID),
 				Hint: "the worksheet was edited or reordered after the draw; use the worksheet.csv of the same draw folder"}
 		}
 		label := strings.TrimSpace(w.Label)
 		if label != "" && label != Unsure && !classes[label] {
-			return nil, 0, &sampling.InputError{File: name, Line: w.Line, Column: "label",
+			return nil, 0, &inputerr.Error{File: name, Line: w.Line, Field: "label",
 				Msg:  fmt.Sprintf("label %q of item %d is not one of the plan's classes (%s), blank or %s", label, w.Item, strings.Join(in.Plan.Classes, ", "), Unsure),
 				Hint: "use exactly the class names of the plan, or unsure"}
 		}
@@ -55,13 +54,13 @@ func prefix(in Input) ([]item, int, error) {
 			continue
 		}
 		if gap != 0 {
-			return nil, 0, &sampling.InputError{File: name, Line: w.Line, Column: "label",
+			return nil, 0, &inputerr.Error{File: name, Line: w.Line, Field: "label",
 				Msg: fmt.Sprintf("item %d is labeled but item %d above it (line %d) is not: the labels must be a prefix of the worksheet (every item from the top, none skipped), or the labeled items are not a random sample",
 					w.Item, gap, gapLine),
 				Hint: fmt.Sprintf("label item %d and every unlabeled item above item %d, then run progress again", gap, w.Item)}
 		}
 		if len(l.Predictions) != len(in.Plan.Candidates) {
-			return nil, 0, &sampling.InputError{File: name, Line: w.Line,
+			return nil, 0, &inputerr.Error{File: name, Line: w.Line,
 				Msg: fmt.Sprintf("the ledger holds %d predictions for item %d but the plan has %d candidates", len(l.Predictions), w.Item, len(in.Plan.Candidates))}
 		}
 		items = append(items, item{label: label, preds: l.Predictions})

@@ -2,9 +2,9 @@ package progress
 
 import (
 	"fmt"
-	"strings"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/sequential"
 	"probity/sampling"
 )
@@ -54,11 +54,11 @@ type Candidate struct {
 
 // Result is the state of the audit.
 type Result struct {
-	// Design is "fixed" or "sequential"; SampleSize is n (fixed) or the
+	// Design is fixed or sequential; SampleSize is n (fixed) or the
 	// truncation point (sequential); AcceptanceNumber is c (fixed only).
-	Design           string `json:"design"`
-	SampleSize       int    `json:"sample_size"`
-	AcceptanceNumber *int   `json:"acceptance_number"`
+	Design           plan.Design `json:"design"`
+	SampleSize       int         `json:"sample_size"`
+	AcceptanceNumber *int        `json:"acceptance_number"`
 	// Labeled is the labeled prefix of the sample (spares excluded);
 	// SparesLabeled counts labeled spare items, which progress ignores.
 	Labeled       int         `json:"labeled"`
@@ -74,11 +74,11 @@ type Result struct {
 }
 
 // Assess reads the labeled prefix and judges every candidate. Errors about
-// the worksheet are *sampling.InputError naming the file, line and column.
+// the worksheet are *inputerr.Error naming the file, line and column.
 func Assess(in Input) (*Result, error) {
 	p := in.Plan
 	if p == nil || p.IsSizingOnly() {
-		return nil, fmt.Errorf("the plan declares no candidates, so there is nothing to judge")
+		return nil, inputerr.Errorf("the plan declares no candidates, so there is nothing to judge").WithHint("use the plan the sample was drawn from")
 	}
 	rules, res, err := rulesFor(p)
 	if err != nil {
@@ -204,8 +204,10 @@ func chainFixedSequence(cs []Candidate) {
 	}
 }
 
-// overall combines the candidates under require all or any.
-func overall(require string, cs []Candidate) (sequential.Decision, int) {
+// overall combines the candidates under require all or any: accept once
+// the accepted ones meet it, reject once even the undecided ones could
+// not.
+func overall(require plan.Require, cs []Candidate) (sequential.Decision, int) {
 	acc, rej, most := 0, 0, 0
 	for _, c := range cs {
 		switch c.Decision {
@@ -216,20 +218,11 @@ func overall(require string, cs []Candidate) (sequential.Decision, int) {
 		}
 		most = max(most, c.MaxRemaining)
 	}
-	if strings.EqualFold(require, "any") {
-		switch {
-		case acc > 0:
-			return sequential.Accept, 0
-		case rej == len(cs):
-			return sequential.Reject, 0
-		}
-		return sequential.Continue, most
-	}
 	switch {
-	case rej > 0:
-		return sequential.Reject, 0
-	case acc == len(cs):
+	case require.Met(acc, len(cs)):
 		return sequential.Accept, 0
+	case !require.Met(len(cs)-rej, len(cs)):
+		return sequential.Reject, 0
 	}
 	return sequential.Continue, most
 }

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/sequential"
 	"probity/sampling"
 )
@@ -18,7 +19,7 @@ import (
 func fixture(n, c, spares int, cands []string, labels []string) Input {
 	p := &plan.File{
 		Format: plan.FileFormat, Seed: "00", Classes: []string{"ok", "bad"},
-		Inputs: plan.Inputs{Ceiling: 0.2, Confidence: 0.95, Candidates: len(cands), Multiplicity: plan.Bonferroni, Design: "fixed", Require: "all"},
+		Inputs: plan.Inputs{Ceiling: 0.2, Confidence: 0.95, CandidateCount: len(cands), Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
 		Rule:   plan.Rule{SampleSize: n, AcceptanceNumber: c},
 	}
 	for _, name := range cands {
@@ -91,12 +92,12 @@ func TestFixedCurtailment(t *testing.T) {
 func TestGapBreaksPrefixRule(t *testing.T) {
 	in := fixture(20, 2, 0, []string{"A"}, labelsOf("ooo_oo"))
 	_, err := Assess(in)
-	var ie *sampling.InputError
+	var ie *inputerr.Error
 	if !errors.As(err, &ie) {
-		t.Fatalf("err = %v, want *sampling.InputError", err)
+		t.Fatalf("err = %v, want *inputerr.Error", err)
 	}
-	if ie.Line != 6 || ie.Column != "label" || !strings.Contains(ie.Msg, "item 5 is labeled but item 4 above it (line 5) is not") || !strings.Contains(ie.Msg, "prefix") {
-		t.Errorf("error = %q (line %d, column %s)", ie.Error(), ie.Line, ie.Column)
+	if ie.Line != 6 || ie.Field != "label" || !strings.Contains(ie.Msg, "item 5 is labeled but item 4 above it (line 5) is not") || !strings.Contains(ie.Msg, "prefix") {
+		t.Errorf("error = %q (line %d, column %s)", ie.Error(), ie.Line, ie.Field)
 	}
 	if !strings.Contains(ie.Hint, "label item 4") {
 		t.Errorf("hint = %q", ie.Hint)
@@ -111,7 +112,7 @@ func TestBadWorksheets(t *testing.T) {
 	}
 	in = fixture(10, 1, 0, []string{"A"}, labelsOf("oo"))
 	in.Worksheet[3].RecordID = "other"
-	if _, err := Assess(in); err == nil || !strings.Contains(err.Error(), `labels.csv line 5, column record_id: item 4 is "other"`) {
+	if _, err := Assess(in); err == nil || !strings.Contains(err.Error(), `labels.csv line 5, field record_id: item 4 is "other"`) {
 		t.Errorf("altered id: %v", err)
 	}
 	in = fixture(10, 1, 0, []string{"A"}, labelsOf("oo"))
@@ -165,13 +166,13 @@ func TestOverallAndFixedSequence(t *testing.T) {
 	if res.Candidates[0].Decision != sequential.Accept || res.Candidates[1].Decision != sequential.Reject || res.Overall != sequential.Reject {
 		t.Errorf("all: %s %s overall %s", res.Candidates[0].Decision, res.Candidates[1].Decision, res.Overall)
 	}
-	in.Plan.Inputs.Require = "any"
+	in.Plan.Inputs.Require = plan.RequireAny
 	res, _ = Assess(in)
 	if res.Overall != sequential.Accept {
 		t.Errorf("any: overall %s", res.Overall)
 	}
 	// fixed-sequence with B first: A is then not tested
-	in.Plan.Inputs.Require = "all"
+	in.Plan.Inputs.Require = plan.RequireAll
 	in.Plan.Inputs.Multiplicity = plan.FixedSequence
 	in.Plan.Candidates[0], in.Plan.Candidates[1] = in.Plan.Candidates[1], in.Plan.Candidates[0]
 	for i := range in.Ledger {
@@ -244,7 +245,7 @@ func TestSequentialPlanMatchesJudge(t *testing.T) {
 		upto := 20 + seed*7
 		in := fixture(T, d.FinalAcceptance, 0, []string{"A"}, labels[:min(upto, T)])
 		in.Plan.Sequential = d.Rule
-		in.Plan.Inputs.Design = "sequential"
+		in.Plan.Inputs.Design = plan.DesignSequential
 		res, err := Assess(in)
 		if err != nil {
 			t.Fatal(err)

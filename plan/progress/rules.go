@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/sequential"
 )
 
@@ -29,15 +30,15 @@ type candRules struct {
 // Bonferroni).
 func rulesFor(p *plan.File) ([]candRules, *Result, error) {
 	res := &Result{Design: p.Inputs.Design}
-	if res.Design == "" {
-		res.Design = "fixed"
+	if res.Design == plan.DesignUnset {
+		res.Design = plan.DesignFixed
 	}
 	var out candRules
 	if p.Sequential != nil {
-		res.Design = "sequential"
+		res.Design = plan.DesignSequential
 		r, err := sequential.NewRule(p.Sequential)
 		if err != nil {
-			return nil, nil, fmt.Errorf("the plan's sequential rule is not valid: %w", err)
+			return nil, nil, inputerr.Errorf("the plan's sequential rule is not valid: %w", err)
 		}
 		res.SampleSize = r.MaxSampleSize()
 		out = candRules{accept: r, reject: r,
@@ -57,7 +58,7 @@ func rulesFor(p *plan.File) ([]candRules, *Result, error) {
 			return nil, nil, err
 		}
 		rc := c
-		if p.Inputs.Multiplicity == plan.Holm && p.Inputs.Candidates > 1 {
+		if p.Inputs.Multiplicity == plan.Holm && p.Inputs.CandidateCount > 1 {
 			rc = holmRejectNumber(p, n, c)
 		}
 		rej := acc
@@ -91,7 +92,7 @@ func rulesFor(p *plan.File) ([]candRules, *Result, error) {
 func curtailedRule(n, c int) (*sequential.Rule, error) {
 	rr, err := sequential.Curtailed(n, c)
 	if err != nil {
-		return nil, fmt.Errorf("the plan's rule n = %d, c = %d is not valid: %w", n, c, err)
+		return nil, inputerr.Errorf("the plan's rule n = %d, c = %d is not valid: %w", n, c, err)
 	}
 	return sequential.NewRule(rr)
 }

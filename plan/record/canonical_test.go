@@ -2,6 +2,7 @@ package record
 
 import (
 	"bytes"
+	"probity/plan"
 	"strings"
 	"testing"
 )
@@ -16,7 +17,7 @@ func fixture() *Record {
 		Date:        "2026-01-31",
 		System:      "Sorter <β>",
 		Use:         "general",
-		Plan:        PlanInfo{Method: "exact", Ceiling: 0.02, Confidence: 0.95, Anticipated: &p0, SampleSize: 1271, AcceptanceNumber: 17, PerCandidateRisk: 0.05, ConsumerRisk: 0.049712345678901234},
+		Plan:        PlanInfo{Method: plan.MethodExact, Ceiling: 0.02, Confidence: 0.95, Anticipated: &p0, SampleSize: 1271, AcceptanceNumber: 17, PerCandidateRisk: 0.05, ConsumerRisk: 0.049712345678901234},
 		Candidates: []Candidate{{
 			Name: "m1", Labeled: 1271, Errors: 9, Estimate: 9.0 / 1271, UpperBound: 0.0123456789012345678,
 			BoundConfidence: 0.95, PValue: 1e-7, AdjustedPValue: &adj, Verdict: Accept,

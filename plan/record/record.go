@@ -5,6 +5,8 @@
 // new.
 package record
 
+import "probity/plan"
+
 // Format is the version of the record.json layout written by this code.
 const Format = 1
 
@@ -38,8 +40,8 @@ type Record struct {
 	// OC is the plan's operating-characteristic curve, as plotted.
 	OC         []OCPoint  `json:"oc"`
 	Deviations Deviations `json:"deviations"`
-	// Method names the bound used (e.g. "clopper-pearson",
-	// "korn-graubard (approximate)", "weighted-hoeffding") and its
+	// Method names the bound used (plan.Bound: "clopper-pearson",
+	// "korn-graubard (approximate)", "weighted-hoeffding", …) and its
 	// assumptions in words.
 	Method  MethodInfo `json:"method"`
 	Signoff []Signoff  `json:"signoff"`
@@ -56,24 +58,24 @@ type Record struct {
 
 // PlanInfo repeats the plan's rule and inputs.
 type PlanInfo struct {
-	Fingerprint      string   `json:"fingerprint"`
-	Method           string   `json:"method"`       // exact, hoeffding, kl
-	Model            string   `json:"model"`        // binomial, hypergeometric, ...
-	Design           string   `json:"design"`       // fixed or sequential
-	Multiplicity     string   `json:"multiplicity"` // bonferroni, holm, fixed-sequence
-	Require          string   `json:"require"`      // all or any
-	Ceiling          float64  `json:"ceiling"`
-	Confidence       float64  `json:"confidence"`
-	Candidates       int      `json:"candidates"`
-	Anticipated      *float64 `json:"anticipated"`
-	Population       int64    `json:"population"`
-	SampleSize       int      `json:"sample_size"`
-	AcceptanceNumber int      `json:"acceptance_number"`
-	PerCandidateRisk float64  `json:"per_candidate_risk"`
-	ConsumerRisk     float64  `json:"consumer_risk"`
-	ProducerRisk     *float64 `json:"producer_risk"`
-	Seed             string   `json:"seed"`
-	SelectionSeed    string   `json:"selection_seed"`
+	Fingerprint      string            `json:"fingerprint"`
+	Method           plan.Method       `json:"method"`
+	Model            plan.Model        `json:"model"`
+	Design           plan.Design       `json:"design"`
+	Multiplicity     plan.Multiplicity `json:"multiplicity"`
+	Require          plan.Require      `json:"require"`
+	Ceiling          float64           `json:"ceiling"`
+	Confidence       float64           `json:"confidence"`
+	CandidateCount   int               `json:"candidates"` // M; Record.Candidates lists them
+	Anticipated      *float64          `json:"anticipated"`
+	Population       int64             `json:"population"`
+	SampleSize       int               `json:"sample_size"`
+	AcceptanceNumber int               `json:"acceptance_number"`
+	PerCandidateRisk float64           `json:"per_candidate_risk"`
+	ConsumerRisk     float64           `json:"consumer_risk"`
+	ProducerRisk     *float64          `json:"producer_risk"`
+	Seed             string            `json:"seed"`
+	SelectionSeed    string            `json:"selection_seed"`
 }
 
 // Fingerprints are lowercase hex SHA-256 digests.
@@ -164,10 +166,10 @@ type Deviations struct {
 
 // MethodInfo states the method and its assumptions.
 type MethodInfo struct {
-	Bound       string   `json:"bound"`
-	Approximate bool     `json:"approximate"`
-	Statement   string   `json:"statement"`
-	Assumptions []string `json:"assumptions"`
+	Bound       plan.Bound `json:"bound"`
+	Approximate bool       `json:"approximate"`
+	Statement   string     `json:"statement"`
+	Assumptions []string   `json:"assumptions"`
 }
 
 // Signoff is one line of the sign-off block.

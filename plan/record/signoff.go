@@ -3,7 +3,7 @@ package record
 import (
 	"bytes"
 	"errors"
-	"fmt"
+	"probity/plan/inputerr"
 	"strings"
 	"time"
 
@@ -39,14 +39,14 @@ type signoffEntry struct {
 func ParseSignoff(data []byte, name string) ([]Signoff, error) {
 	var root yaml.Node
 	if err := yaml.Unmarshal(data, &root); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrSignoffFile, err)
+		return nil, inputerr.At(name, 0, "", "%w: %v", ErrSignoffFile, err)
 	}
 	if len(root.Content) == 0 {
 		return nil, nil
 	}
 	top := root.Content[0]
 	if top.Kind != yaml.MappingNode {
-		return nil, fmt.Errorf("%s line %d: %w: expected the keys %s", name, top.Line, ErrSignoffFile, strings.Join(SignoffRoles, ", "))
+		return nil, inputerr.At(name, top.Line, "", "%w: expected the keys %s", ErrSignoffFile, strings.Join(SignoffRoles, ", "))
 	}
 	byRole := map[string]Signoff{}
 	for i := 0; i+1 < len(top.Content); i += 2 {
@@ -56,17 +56,17 @@ func ParseSignoff(data []byte, name string) ([]Signoff, error) {
 			known = known || r == k.Value
 		}
 		if !known {
-			return nil, fmt.Errorf("%s line %d, field %s: %w: unknown role (use %s)", name, k.Line, k.Value, ErrSignoffFile, strings.Join(SignoffRoles, ", "))
+			return nil, inputerr.At(name, k.Line, k.Value, "%w: unknown role (use %s)", ErrSignoffFile, strings.Join(SignoffRoles, ", "))
 		}
 		if _, dup := byRole[k.Value]; dup {
-			return nil, fmt.Errorf("%s line %d, field %s: %w: the role is given twice", name, k.Line, k.Value, ErrSignoffFile)
+			return nil, inputerr.At(name, k.Line, k.Value, "%w: the role is given twice", ErrSignoffFile)
 		}
 		var e signoffEntry
 		enc, _ := yaml.Marshal(v)
 		dec := yaml.NewDecoder(bytes.NewReader(enc))
 		dec.KnownFields(true)
 		if err := dec.Decode(&e); err != nil {
-			return nil, fmt.Errorf("%s line %d, field %s: %w: %s", name, v.Line, k.Value, ErrSignoffFile, yamlReason(err))
+			return nil, inputerr.At(name, v.Line, k.Value, "%w: %s", ErrSignoffFile, yamlReason(err))
 		}
 		if e.Date != "" {
 			if _, err := time.Parse("2006-01-02", e.Date); err != nil {
@@ -76,7 +76,7 @@ func ParseSignoff(data []byte, name string) ([]Signoff, error) {
 						line = v.Content[j].Line
 					}
 				}
-				return nil, fmt.Errorf("%s line %d, field %s.date: %w: %q is not a date in the form YYYY-MM-DD", name, line, k.Value, ErrSignoffFile, e.Date)
+				return nil, inputerr.At(name, line, k.Value+".date", "%w: %q is not a date in the form YYYY-MM-DD", ErrSignoffFile, e.Date)
 			}
 		}
 		byRole[k.Value] = Signoff{Role: k.Value, Name: strings.TrimSpace(e.Name), Title: strings.TrimSpace(e.Title), Date: e.Date, Meaning: strings.TrimSpace(e.Meaning)}

@@ -25,12 +25,12 @@ var (
 // acceptance number a_T, and Rule.ConsumerRisk and Rule.ProducerRisk the
 // sequential plan's exact risks. The per-candidate risk is unchanged
 // (δ/M' under the plan's multiplicity rule). Inputs.Design is set to
-// "sequential".
+// plan.DesignSequential.
 func Apply(f *plan.File, maxSampleSize int) (*Design, error) {
 	if f.Inputs.Anticipated == nil {
 		return nil, ErrNeedsAnticipated
 	}
-	if f.Inputs.Method != "" && f.Inputs.Method != plan.MethodExact {
+	if f.Inputs.Method != plan.MethodUnset && f.Inputs.Method != plan.MethodExact {
 		return nil, fmt.Errorf("%w, not %s", ErrNeedsExact, f.Inputs.Method)
 	}
 	spec := Spec{

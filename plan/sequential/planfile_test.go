@@ -9,9 +9,9 @@ import (
 	"probity/plan"
 )
 
-func exampleInputs(design string) plan.Inputs {
+func exampleInputs(design plan.Design) plan.Inputs {
 	p0 := 0.01
-	return plan.Inputs{Ceiling: 0.02, Confidence: 0.95, Candidates: 1, Anticipated: &p0, ProducerRisk: 0.10,
+	return plan.Inputs{Ceiling: 0.02, Confidence: 0.95, CandidateCount: 1, Anticipated: &p0, ProducerRisk: 0.10,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: design, Require: plan.RequireAll}
 }
 

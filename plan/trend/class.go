@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"strconv"
 
+	"probity/plan"
 	"probity/plan/record"
 )
 
@@ -25,11 +26,11 @@ import (
 // candidate set and with it the multiplicity split, the sample size, the
 // anticipated error and the lot size.
 type Class struct {
-	Model      string  `json:"model"`
-	Method     string  `json:"method"`
-	Design     string  `json:"design"`
-	Ceiling    float64 `json:"ceiling"`
-	Confidence float64 `json:"confidence"`
+	Model      plan.Model  `json:"model"`
+	Method     plan.Method `json:"method"`
+	Design     plan.Design `json:"design"`
+	Ceiling    float64     `json:"ceiling"`
+	Confidence float64     `json:"confidence"`
 }
 
 // ClassOf returns the class of the plan a record was judged under.
@@ -71,11 +72,11 @@ func (a Class) differ(b Class) (field, va, vb string, ok bool) {
 	num := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 	switch {
 	case a.Model != b.Model:
-		return "plan.model", a.Model, b.Model, true
+		return "plan.model", a.Model.String(), b.Model.String(), true
 	case a.Method != b.Method:
-		return "plan.method", a.Method, b.Method, true
+		return "plan.method", a.Method.String(), b.Method.String(), true
 	case a.Design != b.Design:
-		return "plan.design", a.Design, b.Design, true
+		return "plan.design", a.Design.String(), b.Design.String(), true
 	case a.Ceiling != b.Ceiling:
 		return "plan.ceiling", num(a.Ceiling), num(b.Ceiling), true
 	case a.Confidence != b.Confidence:

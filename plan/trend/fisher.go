@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+
+	"probity/plan"
 )
 
 // Alternative is the direction of a one-sided test on a 2×2 table.
@@ -54,9 +56,10 @@ var ErrTable = errors.New("invalid 2×2 table")
 //
 // Greater returns P(X ≥ A), Less returns P(X ≤ A) (R. A. Fisher, The Design
 // of Experiments, 1935, §2; Agresti, Categorical Data Analysis, 3rd ed.,
-// §3.5.1). Binomial coefficients are computed through log-gamma (math.Lgamma)
-// so tables with tens of thousands of items do not overflow. A table with an
-// empty row or column has p-value 1, as in scipy.stats.fisher_exact.
+// §3.5.1). The tails are the plan's (plan.HypergeometricSF and
+// plan.HypergeometricCDF), which keep their relative accuracy deep into
+// both ends for tables of any audit's size. A table with an empty row or
+// column has p-value 1, as in scipy.stats.fisher_exact.
 func FisherExact(t Table, alt Alternative) (float64, error) {
 	if t.A < 0 || t.B < 0 || t.C < 0 || t.D < 0 {
 		return 0, fmt.Errorf("%w: cells %d, %d, %d, %d must be non-negative", ErrTable, t.A, t.B, t.C, t.D)
@@ -73,44 +76,18 @@ func FisherExact(t Table, alt Alternative) (float64, error) {
 	}
 	lo := max(0, n+k-total)
 	hi := min(n, k)
-	var from, to int
+	var p float64
 	switch alt {
 	case Greater:
-		from, to = t.A, hi
+		if t.A <= lo {
+			return 1, nil
+		}
+		p = plan.HypergeometricSF(t.A-1, int64(total), int64(k), n) // P(X ≥ A)
 	case Less:
-		from, to = lo, t.A
+		if t.A >= hi {
+			return 1, nil
+		}
+		p = plan.HypergeometricCDF(t.A, int64(total), int64(k), n) // P(X ≤ A)
 	}
-	if from <= lo && to >= hi {
-		return 1, nil
-	}
-	p := hypergeomSum(total, k, n, from, to)
 	return math.Min(1, p), nil
-}
-
-// hypergeomSum returns Σ_{j=from}^{to} P(X = j) for X ~ Hypergeometric(N
-// population, K marked, n draws), summing exp(log P − shift) with the
-// largest log-term as shift so no term underflows before the sum is taken.
-func hypergeomSum(total, k, n, from, to int) float64 {
-	logDen := logChoose(total, n)
-	terms := make([]float64, 0, to-from+1)
-	top := math.Inf(-1)
-	for j := from; j <= to; j++ {
-		lp := logChoose(k, j) + logChoose(total-k, n-j) - logDen
-		terms = append(terms, lp)
-		top = math.Max(top, lp)
-	}
-	var s float64
-	for _, lp := range terms {
-		s += math.Exp(lp - top)
-	}
-	return math.Exp(top) * s
-}
-
-// logChoose is log C(a, b) = lnΓ(a+1) − lnΓ(b+1) − lnΓ(a−b+1) for
-// 0 ≤ b ≤ a.
-func logChoose(a, b int) float64 {
-	la, _ := math.Lgamma(float64(a) + 1)
-	lb, _ := math.Lgamma(float64(b) + 1)
-	lc, _ := math.Lgamma(float64(a-b) + 1)
-	return la - lb - lc
 }

@@ -2,16 +2,19 @@ package trend
 
 import (
 	"bytes"
+	"encoding"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io/fs"
 	"os"
 	"path/filepath"
+	"reflect"
 	"sort"
 	"strings"
 	"time"
 
+	"probity/plan/inputerr"
 	"probity/plan/record"
 )
 
@@ -24,37 +27,10 @@ type Entry struct {
 }
 
 // ErrNotRecord is wrapped by every error about a file that is not a usable
-// record.json.
+// record.json. Load's and Decode's errors are *inputerr.Error naming the
+// file, the line and the JSON path of the field (e.g.
+// "candidates[2].errors").
 var ErrNotRecord = errors.New("not a usable record")
-
-// InputError is a problem with one input file: File names it, Line is the
-// 1-based line of the offending value (0 when unknown) and Field its JSON
-// path (e.g. "candidates[2].errors"; "" when the whole file is at fault).
-type InputError struct {
-	File  string
-	Line  int
-	Field string
-	Msg   string
-	Hint  string
-}
-
-// Error formats the problem as "file line N: field F: message".
-func (e *InputError) Error() string {
-	var b strings.Builder
-	b.WriteString(e.File)
-	if e.Line > 0 {
-		fmt.Fprintf(&b, " line %d", e.Line)
-	}
-	b.WriteString(": ")
-	if e.Field != "" {
-		fmt.Fprintf(&b, "%s ", e.Field)
-	}
-	b.WriteString(e.Msg)
-	return b.String()
-}
-
-// Unwrap makes errors.Is(err, ErrNotRecord) true.
-func (e *InputError) Unwrap() error { return ErrNotRecord }
 
 // Loaded is what Load found: the records, and the JSON files under a folder
 // that were skipped because they are not records (a draw's manifest.json,
@@ -84,7 +60,7 @@ func Load(paths []string) (*Loaded, error) {
 		}
 		data, err := os.ReadFile(path)
 		if err != nil {
-			return false, &InputError{File: path, Msg: readReason(err)}
+			return false, &inputerr.Error{Err: ErrNotRecord, File: path, Msg: readReason(err)}
 		}
 		if !mustBe && !looksLikeRecord(data) {
 			if !json.Valid(data) {
@@ -105,7 +81,7 @@ func Load(paths []string) (*Loaded, error) {
 	for _, p := range paths {
 		st, err := os.Stat(p)
 		if err != nil {
-			return nil, &InputError{File: p, Msg: readReason(err)}
+			return nil, &inputerr.Error{Err: ErrNotRecord, File: p, Msg: readReason(err)}
 		}
 		if !st.IsDir() {
 			if _, err := add(p, true); err != nil {
@@ -124,7 +100,7 @@ func Load(paths []string) (*Loaded, error) {
 			return nil
 		})
 		if err != nil {
-			return nil, &InputError{File: p, Msg: readReason(err)}
+			return nil, &inputerr.Error{Err: ErrNotRecord, File: p, Msg: readReason(err)}
 		}
 		sort.Strings(files)
 		found := 0
@@ -138,7 +114,7 @@ func Load(paths []string) (*Loaded, error) {
 			}
 		}
 		if found == 0 {
-			return nil, &InputError{File: p, Msg: "holds no record.json (no *.json file under it is a record)",
+			return nil, &inputerr.Error{Err: ErrNotRecord, File: p, Msg: "holds no record.json (no *.json file under it is a record)",
 				Hint: "name the record files, or the folder the record command wrote them into"}
 		}
 	}
@@ -185,7 +161,7 @@ func Decode(data []byte, name string) (*record.Record, error) {
 		return nil, decodeError(name, data, err)
 	}
 	missing := func(field string, path ...any) error {
-		return &InputError{File: name, Line: lineOf(data, path), Field: field, Msg: "is missing",
+		return &inputerr.Error{Err: ErrNotRecord, File: name, Line: lineOf(data, path), Field: field, Msg: "missing",
 			Hint: "trend reads the record.json written by 'probity record'; was this file edited or cut short?"}
 	}
 	for _, k := range requiredTop {
@@ -195,7 +171,7 @@ func Decode(data []byte, name string) (*record.Record, error) {
 	}
 	var planKeys map[string]json.RawMessage
 	if err := json.Unmarshal(top["plan"], &planKeys); err != nil {
-		return nil, &InputError{File: name, Line: lineOf(data, []any{"plan"}), Field: "plan", Msg: "is not an object"}
+		return nil, &inputerr.Error{Err: ErrNotRecord, File: name, Line: lineOf(data, []any{"plan"}), Field: "plan", Msg: "not an object"}
 	}
 	for _, k := range requiredPlan {
 		if _, ok := planKeys[k]; !ok {
@@ -204,7 +180,7 @@ func Decode(data []byte, name string) (*record.Record, error) {
 	}
 	var cands []map[string]json.RawMessage
 	if err := json.Unmarshal(top["candidates"], &cands); err != nil {
-		return nil, &InputError{File: name, Line: lineOf(data, []any{"candidates"}), Field: "candidates", Msg: "is not a list of objects"}
+		return nil, &inputerr.Error{Err: ErrNotRecord, File: name, Line: lineOf(data, []any{"candidates"}), Field: "candidates", Msg: "not a list of objects"}
 	}
 	for i, c := range cands {
 		for _, k := range requiredCandidate {
@@ -226,19 +202,19 @@ func Decode(data []byte, name string) (*record.Record, error) {
 // check validates the values a trend relies on.
 func check(r *record.Record, name string, data []byte) error {
 	bad := func(field string, path []any, format string, args ...any) error {
-		return &InputError{File: name, Line: lineOf(data, path), Field: field, Msg: fmt.Sprintf(format, args...)}
+		return &inputerr.Error{Err: ErrNotRecord, File: name, Line: lineOf(data, path), Field: field, Msg: fmt.Sprintf(format, args...)}
 	}
 	if r.Format < 1 || r.Format > record.Format {
 		return bad("format", []any{"format"}, "%d is not a record format this probity reads (1 to %d)", r.Format, record.Format)
 	}
 	if r.RecordID == "" {
-		return bad("record_id", []any{"record_id"}, "is empty")
+		return bad("record_id", []any{"record_id"}, "empty")
 	}
 	if _, err := time.Parse("2006-01-02", r.Date); err != nil {
 		return bad("date", []any{"date"}, "%q is not a date written YYYY-MM-DD", r.Date)
 	}
 	if err := checkPeriod(r.Period); err != nil {
-		return &InputError{File: name, Line: lineOf(data, []any{"period"}), Field: "period", Msg: err.Error(),
+		return &inputerr.Error{Err: errors.Join(ErrNotRecord, err), File: name, Line: lineOf(data, []any{"period"}), Field: "period", Msg: err.Error(),
 			Hint: periodHint(r.Period)}
 	}
 	if !(r.Plan.Ceiling > 0 && r.Plan.Ceiling < 1) {
@@ -247,20 +223,20 @@ func check(r *record.Record, name string, data []byte) error {
 	if !(r.Plan.Confidence > 0 && r.Plan.Confidence < 1) {
 		return bad("plan.confidence", []any{"plan", "confidence"}, "%v is outside (0, 1)", r.Plan.Confidence)
 	}
-	for _, f := range []struct{ key, v string }{{"model", r.Plan.Model}, {"method", r.Plan.Method}, {"design", r.Plan.Design}} {
+	for _, f := range []struct{ key, v string }{{"model", r.Plan.Model.String()}, {"method", r.Plan.Method.String()}, {"design", r.Plan.Design.String()}} {
 		if f.v == "" {
-			return bad("plan."+f.key, []any{"plan", f.key}, "is empty")
+			return bad("plan."+f.key, []any{"plan", f.key}, "empty")
 		}
 	}
 	if len(r.Candidates) == 0 {
-		return bad("candidates", []any{"candidates"}, "is empty")
+		return bad("candidates", []any{"candidates"}, "empty")
 	}
 	names := map[string]int{}
 	for i, c := range r.Candidates {
 		at := []any{"candidates", i}
 		field := func(k string) string { return fmt.Sprintf("candidates[%d].%s", i, k) }
 		if c.Name == "" {
-			return bad(field("name"), at, "is empty")
+			return bad(field("name"), at, "empty")
 		}
 		if j, dup := names[c.Name]; dup {
 			return bad(field("name"), at, "%q repeats candidates[%d]", c.Name, j)
@@ -288,25 +264,37 @@ func check(r *record.Record, name string, data []byte) error {
 	return nil
 }
 
-// decodeError turns an encoding/json error into an InputError with a line.
+// decodeError turns an encoding/json error into an input error with a line.
 func decodeError(name string, data []byte, err error) error {
 	var se *json.SyntaxError
 	var te *json.UnmarshalTypeError
+	var ie *inputerr.Error
 	switch {
 	case len(bytes.TrimSpace(data)) == 0:
-		return &InputError{File: name, Msg: "is empty", Hint: "trend reads the record.json files written by 'probity record'"}
+		return &inputerr.Error{Err: ErrNotRecord, File: name, Msg: "is empty", Hint: "trend reads the record.json files written by 'probity record'"}
 	case errors.As(err, &se):
-		return &InputError{File: name, Line: lineAt(data, se.Offset), Msg: "is not valid JSON: " + se.Error(),
+		return &inputerr.Error{Err: ErrNotRecord, File: name, Line: lineAt(data, se.Offset), Msg: "is not valid JSON: " + se.Error(),
 			Hint: "trend reads the record.json files written by 'probity record'"}
 	case errors.As(err, &te):
 		field := te.Field
 		if field == "" {
-			return &InputError{File: name, Line: lineAt(data, te.Offset), Msg: "is not a record: the top level is a JSON " + te.Value + ", not an object"}
+			return &inputerr.Error{Err: ErrNotRecord, File: name, Line: lineAt(data, te.Offset), Msg: "is not a record: the top level is a JSON " + te.Value + ", not an object"}
 		}
-		return &InputError{File: name, Line: lineAt(data, te.Offset), Field: field,
-			Msg: fmt.Sprintf("is a JSON %s where a %s belongs", te.Value, jsonKind(te.Type.Kind().String()))}
+		kind := te.Type.Kind().String()
+		if reflect.PointerTo(te.Type).Implements(reflect.TypeFor[encoding.TextUnmarshaler]()) {
+			kind = "string" // a setting, written by its name
+		}
+		return &inputerr.Error{Err: ErrNotRecord, File: name, Line: lineAt(data, te.Offset), Field: field,
+			Msg: fmt.Sprintf("a JSON %s where a %s belongs", te.Value, jsonKind(kind))}
+	case errors.As(err, &ie):
+		// a setting whose name is not one of its values
+		path := []any{"plan", ie.Field}
+		if ie.Field == "bound" {
+			path = []any{"method", "bound"}
+		}
+		return &inputerr.Error{Err: ErrNotRecord, File: name, Line: lineOf(data, path), Field: fmt.Sprintf("%s.%s", path...), Msg: ie.Msg}
 	}
-	return &InputError{File: name, Msg: "is not valid JSON: " + err.Error()}
+	return &inputerr.Error{Err: ErrNotRecord, File: name, Msg: "is not valid JSON: " + err.Error()}
 }
 
 func jsonKind(goKind string) string {

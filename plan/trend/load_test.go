@@ -5,6 +5,7 @@ import (
 	"errors"
 	"os"
 	"path/filepath"
+	"probity/plan/inputerr"
 	"strings"
 	"testing"
 )
@@ -60,11 +61,11 @@ func TestLoadRefusesBadRecords(t *testing.T) {
 		{name: "not json", raw: "{\n  \"format\": 1,\n  oops\n}", line: 3, msgPart: "not valid JSON"},
 		{name: "empty file", raw: " \n", msgPart: "is empty"},
 		{name: "a list", raw: "[1, 2]", msgPart: "not a record"},
-		{name: "missing period", edit: func(m map[string]any) { delete(m, "period") }, field: "period", msgPart: "is missing"},
-		{name: "missing ceiling", edit: func(m map[string]any) { delete(m["plan"].(map[string]any), "ceiling") }, field: "plan.ceiling", msgPart: "is missing"},
+		{name: "missing period", edit: func(m map[string]any) { delete(m, "period") }, field: "period", msgPart: "missing"},
+		{name: "missing ceiling", edit: func(m map[string]any) { delete(m["plan"].(map[string]any), "ceiling") }, field: "plan.ceiling", msgPart: "missing"},
 		{name: "missing errors", edit: func(m map[string]any) {
 			delete(m["candidates"].([]any)[1].(map[string]any), "errors")
-		}, field: "candidates[1].errors", msgPart: "is missing"},
+		}, field: "candidates[1].errors", msgPart: "missing"},
 		{name: "errors as text", edit: func(m map[string]any) {
 			m["candidates"].([]any)[2].(map[string]any)["errors"] = "three"
 		}, field: "candidates.errors", msgPart: "where a number belongs"},
@@ -74,16 +75,22 @@ func TestLoadRefusesBadRecords(t *testing.T) {
 		{name: "bad verdict", edit: func(m map[string]any) {
 			m["candidates"].([]any)[0].(map[string]any)["verdict"] = "PASS"
 		}, field: "candidates[0].verdict", msgPart: "neither ACCEPT nor REJECT"},
-		{name: "empty period", edit: func(m map[string]any) { m["period"] = "" }, field: "period", msgPart: "--period"},
+		{name: "empty period", edit: func(m map[string]any) { m["period"] = "" }, field: "period", msgPart: "drawn for a period"},
 		{name: "period with space", edit: func(m map[string]any) { m["period"] = "2026 11" }, field: "period", msgPart: "character"},
 		{name: "bad date", edit: func(m map[string]any) { m["date"] = "28/12/2026" }, field: "date", msgPart: "YYYY-MM-DD"},
 		{name: "future format", edit: func(m map[string]any) { m["format"] = 9 }, field: "format", msgPart: "not a record format"},
 		{name: "ceiling out of range", edit: func(m map[string]any) { m["plan"].(map[string]any)["ceiling"] = 2 }, field: "plan.ceiling", msgPart: "outside (0, 1)"},
-		{name: "no candidates", edit: func(m map[string]any) { m["candidates"] = []any{} }, field: "candidates", msgPart: "is empty"},
+		{name: "no candidates", edit: func(m map[string]any) { m["candidates"] = []any{} }, field: "candidates", msgPart: "empty"},
 		{name: "duplicate candidate", edit: func(m map[string]any) {
 			m["candidates"].([]any)[2].(map[string]any)["name"] = "router-a"
 		}, field: "candidates[2].name", msgPart: "repeats candidates[0]"},
 		{name: "bad overall verdict", edit: func(m map[string]any) { m["overall_verdict"] = "" }, field: "overall_verdict", msgPart: "neither"},
+		{name: "unknown multiplicity", edit: func(m map[string]any) { m["plan"].(map[string]any)["multiplicity"] = "sidak" },
+			field: "plan.multiplicity", msgPart: `"sidak": must be one of bonferroni, holm, fixed-sequence`},
+		{name: "unknown bound", edit: func(m map[string]any) { m["method"].(map[string]any)["bound"] = "wilson" },
+			field: "method.bound", msgPart: `"wilson": must be one of clopper-pearson,`},
+		{name: "multiplicity as a number", edit: func(m map[string]any) { m["plan"].(map[string]any)["multiplicity"] = 2 },
+			field: "plan.multiplicity", msgPart: "a JSON number where a string belongs"},
 	}
 	base, err := json.MarshalIndent(yearRecords()[0], "", "  ")
 	if err != nil {
@@ -105,9 +112,9 @@ func TestLoadRefusesBadRecords(t *testing.T) {
 				t.Fatal(err)
 			}
 			_, err := Load([]string{path})
-			var ie *InputError
+			var ie *inputerr.Error
 			if !errors.As(err, &ie) || !errors.Is(err, ErrNotRecord) {
-				t.Fatalf("err = %v, want an InputError", err)
+				t.Fatalf("err = %v, want an input error", err)
 			}
 			if ie.File != path || !strings.HasPrefix(err.Error(), path) {
 				t.Errorf("error %q does not name the file %s", err, path)
@@ -118,7 +125,7 @@ func TestLoadRefusesBadRecords(t *testing.T) {
 			if c.line != 0 && ie.Line != c.line {
 				t.Errorf("line = %d, want %d (%v)", ie.Line, c.line, err)
 			}
-			if c.field != "" && ie.Line == 0 && c.msgPart != "is missing" {
+			if c.field != "" && ie.Line == 0 && c.msgPart != "missing" {
 				t.Errorf("no line for field %s: %v", c.field, err)
 			}
 			if !strings.Contains(err.Error(), c.msgPart) {
@@ -156,7 +163,7 @@ func TestLoadMissingAndEmpty(t *testing.T) {
 		t.Fatal(err)
 	}
 	_, err = Load([]string{dir})
-	var ie *InputError
+	var ie *inputerr.Error
 	if !errors.As(err, &ie) || !strings.Contains(err.Error(), "holds no record.json") || ie.Hint == "" {
 		t.Errorf("folder without records: %v", err)
 	}
@@ -170,7 +177,7 @@ func TestLoadMissingAndEmpty(t *testing.T) {
 	}
 }
 
-// FuzzDecode: Decode never panics and every refusal is an InputError naming
+// FuzzDecode: Decode never panics and every refusal is an input error naming
 // the file.
 func FuzzDecode(f *testing.F) {
 	good, _ := json.Marshal(yearRecords()[3])
@@ -181,9 +188,9 @@ func FuzzDecode(f *testing.F) {
 	f.Fuzz(func(t *testing.T, data []byte) {
 		r, err := Decode(data, "f.json")
 		if err != nil {
-			var ie *InputError
+			var ie *inputerr.Error
 			if !errors.As(err, &ie) || ie.File != "f.json" {
-				t.Fatalf("error %v is not an InputError naming the file", err)
+				t.Fatalf("error %v is not an input error naming the file", err)
 			}
 			return
 		}

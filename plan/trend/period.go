@@ -19,7 +19,7 @@ const maxPeriodLen = 32
 // the separators '-', '_' and '.', starting with a letter or digit.
 func checkPeriod(p string) error {
 	if p == "" {
-		return errors.New("is empty: a trend needs records of audits drawn with --period")
+		return ErrNoPeriod
 	}
 	if len(p) > maxPeriodLen {
 		return fmt.Errorf("%q is longer than %d characters", p, maxPeriodLen)
@@ -35,10 +35,14 @@ func checkPeriod(p string) error {
 	return nil
 }
 
+// ErrNoPeriod is the cause of the error about a record without a period:
+// its audit was not drawn for a period, so it has no place in a trend.
+var ErrNoPeriod = errors.New("empty: a trend needs records of audits drawn for a period")
+
 // periodHint suggests the fix for an invalid period.
 func periodHint(p string) string {
 	if p == "" {
-		return "draw each month's sample with 'probity draw --period LABEL' (e.g. 2026-11) and record it again"
+		return "draw each period's sample for its period label (e.g. 2026-11) and record it again"
 	}
 	return "period labels look like 2026-11, 2026-Q3 or 2026-W07"
 }

@@ -10,6 +10,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"probity/plan"
 	"probity/plan/record"
 )
 
@@ -27,14 +28,14 @@ func testPlan() record.PlanInfo {
 	p0, pr := 0.005, 0.0901
 	return record.PlanInfo{
 		Fingerprint:      fingerprint("plan of the ticket router audit"),
-		Method:           "exact",
-		Model:            "binomial",
-		Design:           "fixed",
-		Multiplicity:     "bonferroni",
-		Require:          "all",
+		Method:           plan.MethodExact,
+		Model:            plan.ModelBinomial,
+		Design:           plan.DesignFixed,
+		Multiplicity:     plan.Bonferroni,
+		Require:          plan.RequireAll,
 		Ceiling:          0.02,
 		Confidence:       0.95,
-		Candidates:       3,
+		CandidateCount:   3,
 		Anticipated:      &p0,
 		SampleSize:       613,
 		AcceptanceNumber: 5,
@@ -54,8 +55,8 @@ func fingerprint(s string) string {
 // makeRecord builds a record of period judged under plan with the plan's
 // acceptance number: estimate e/n, Clopper–Pearson upper bound at
 // 1 − δ/M, p-value P(X ≤ e | n, ceiling).
-func makeRecord(period string, plan record.PlanInfo, cs ...cand) record.Record {
-	conf := 1 - plan.PerCandidateRisk
+func makeRecord(period string, info record.PlanInfo, cs ...cand) record.Record {
+	conf := 1 - info.PerCandidateRisk
 	r := record.Record{
 		Format:        record.Format,
 		ToolVersion:   "0.1.0",
@@ -64,23 +65,23 @@ func makeRecord(period string, plan record.PlanInfo, cs ...cand) record.Record {
 		System:        "ticket-router",
 		SystemVersion: "4.2",
 		Use:           "general",
-		Plan:          plan,
+		Plan:          info,
 		Strata:        []record.StratumCount{},
 		OC:            []record.OCPoint{},
 		Deviations:    record.Deviations{SparesUsed: []string{}, Unlabeled: []string{}, Unsure: []string{}, Notes: []string{}},
-		Method:        record.MethodInfo{Bound: "clopper-pearson", Statement: "exact binomial", Assumptions: []string{}},
+		Method:        record.MethodInfo{Bound: plan.BoundClopperPearson, Statement: "exact binomial", Assumptions: []string{}},
 		Signoff:       []record.Signoff{},
-		Fingerprints: record.Fingerprints{Plan: plan.Fingerprint, Log: fingerprint("log " + period),
+		Fingerprints: record.Fingerprints{Plan: info.Fingerprint, Log: fingerprint("log " + period),
 			Manifest: fingerprint("manifest " + period), Ledger: fingerprint("ledger " + period),
 			Worksheet: fingerprint("worksheet " + period), Labels: fingerprint("labels " + period)},
 		OverallVerdict: record.Accept,
 	}
 	for _, c := range cs {
 		v := record.Accept
-		reason := fmt.Sprintf("%d errors ≤ c = %d", c.error, plan.AcceptanceNumber)
-		if c.error > plan.AcceptanceNumber {
+		reason := fmt.Sprintf("%d errors ≤ c = %d", c.error, info.AcceptanceNumber)
+		if c.error > info.AcceptanceNumber {
 			v = record.Reject
-			reason = fmt.Sprintf("%d errors > c = %d", c.error, plan.AcceptanceNumber)
+			reason = fmt.Sprintf("%d errors > c = %d", c.error, info.AcceptanceNumber)
 			r.OverallVerdict = record.Reject
 		}
 		r.Candidates = append(r.Candidates, record.Candidate{
@@ -88,7 +89,7 @@ func makeRecord(period string, plan record.PlanInfo, cs ...cand) record.Record {
 			Estimate:        float64(c.error) / float64(c.labeled),
 			UpperBound:      clopperPearsonUpper(c.error, c.labeled, conf),
 			BoundConfidence: conf,
-			PValue:          distuv.Binomial{N: float64(c.labeled), P: plan.Ceiling}.CDF(float64(c.error)),
+			PValue:          distuv.Binomial{N: float64(c.labeled), P: info.Ceiling}.CDF(float64(c.error)),
 			Verdict:         v,
 			Reason:          reason,
 			Confusion:       record.Confusion{Classes: []string{}, Counts: [][]int{}},

@@ -7,6 +7,8 @@ import (
 	"sort"
 	"strings"
 
+	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 )
 
@@ -125,7 +127,7 @@ func (e *PeriodShapeError) Hint() string {
 	return "write every period the same way, zero-padded and year first (2026-09, not 2026-9)"
 }
 
-// BaselineError reports a --baseline that is not one of the periods.
+// BaselineError reports a baseline period that is not one of the periods.
 type BaselineError struct {
 	Label     string
 	Available []string
@@ -139,6 +141,15 @@ func (e *BaselineError) Error() string {
 // Hint lists the periods.
 func (e *BaselineError) Hint() string {
 	return "the periods are " + strings.Join(e.Available, ", ")
+}
+
+// asInput returns a refusal of Build as the input error callers map to
+// exit code 2: the message and hint of e, with e as the cause.
+func asInput(e interface {
+	error
+	Hint() string
+}) error {
+	return &inputerr.Error{Msg: e.Error(), Hint: e.Hint(), Err: e}
 }
 
 // ErrOptions is wrapped by errors about Options.
@@ -159,29 +170,29 @@ var ErrOptions = errors.New("invalid trend options")
 // samples as fixed ones, which a warning calls approximate.
 func Build(entries []Entry, opts Options) (*Trend, error) {
 	if !(opts.Alpha > 0 && opts.Alpha < 1) {
-		return nil, fmt.Errorf("%w: alpha %v is outside (0, 1)", ErrOptions, opts.Alpha)
+		return nil, inputerr.Errorf("%w: alpha %v is outside (0, 1)", ErrOptions, opts.Alpha)
 	}
 	if len(entries) == 0 {
-		return nil, fmt.Errorf("%w: no records", ErrOptions)
+		return nil, inputerr.Errorf("%w: no records", ErrOptions)
 	}
 	es := append([]Entry(nil), entries...)
 	sort.SliceStable(es, func(i, j int) bool { return es[i].Record.Period < es[j].Record.Period })
 	for i := 1; i < len(es); i++ {
 		a, b := &es[i-1], &es[i]
 		if a.Record.Period == b.Record.Period {
-			return nil, &RepeatedPeriodError{Period: a.Record.Period, First: a.Path, Second: b.Path,
-				SameRecord: a.Record.RecordID == b.Record.RecordID}
+			return nil, asInput(&RepeatedPeriodError{Period: a.Record.Period, First: a.Path, Second: b.Path,
+				SameRecord: a.Record.RecordID == b.Record.RecordID})
 		}
 	}
 	first := &es[0]
 	for i := 1; i < len(es); i++ {
 		e := &es[i]
 		if Shape(e.Record.Period) != Shape(first.Record.Period) {
-			return nil, &PeriodShapeError{First: first.Record.Period, Second: e.Record.Period, FirstFile: first.Path, SecondFile: e.Path}
+			return nil, asInput(&PeriodShapeError{First: first.Record.Period, Second: e.Record.Period, FirstFile: first.Path, SecondFile: e.Path})
 		}
 		if f, va, vb, ok := ClassOf(&first.Record).differ(ClassOf(&e.Record)); ok {
-			return nil, &MixedClassError{Field: f, First: va, Second: vb, FirstFile: first.Path, SecondFile: e.Path,
-				FirstPeriod: first.Record.Period, SecondPeriod: e.Record.Period}
+			return nil, asInput(&MixedClassError{Field: f, First: va, Second: vb, FirstFile: first.Path, SecondFile: e.Path,
+				FirstPeriod: first.Record.Period, SecondPeriod: e.Record.Period})
 		}
 	}
 
@@ -212,7 +223,7 @@ func Build(entries []Entry, opts Options) (*Trend, error) {
 	if opts.Baseline != "" {
 		base = sort.SearchStrings(labels, opts.Baseline)
 		if base == len(labels) || labels[base] != opts.Baseline {
-			return nil, &BaselineError{Label: opts.Baseline, Available: labels}
+			return nil, asInput(&BaselineError{Label: opts.Baseline, Available: labels})
 		}
 	}
 	t.Baseline = labels[base]
@@ -228,7 +239,7 @@ func Build(entries []Entry, opts Options) (*Trend, error) {
 	t.Warnings = append(t.Warnings, planWarnings(t.Periods)...)
 	t.Warnings = append(t.Warnings, candidateWarnings(t, labels)...)
 	t.Warnings = append(t.Warnings, weightWarnings(es)...)
-	if t.Class.Design == "sequential" && len(es) > 1 {
+	if t.Class.Design == plan.DesignSequential && len(es) > 1 {
 		t.Warnings = append(t.Warnings, "the design is sequential: how many items were labeled depends on where the boundaries stopped, "+
 			"and the test treats each period's count as a fixed sample, so its p-values are approximate")
 	}

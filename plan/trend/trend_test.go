@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"probity/plan"
 	"probity/plan/record"
 )
 
@@ -81,7 +82,7 @@ func TestBuildYear(t *testing.T) {
 	if len(tr.Warnings) != 0 {
 		t.Errorf("warnings on a consistent year: %v", tr.Warnings)
 	}
-	if tr.Class != (Class{Model: "binomial", Method: "exact", Design: "fixed", Ceiling: 0.02, Confidence: 0.95}) {
+	if tr.Class != (Class{Model: plan.ModelBinomial, Method: plan.MethodExact, Design: plan.DesignFixed, Ceiling: 0.02, Confidence: 0.95}) {
 		t.Errorf("class %+v", tr.Class)
 	}
 }
@@ -145,9 +146,9 @@ func TestBuildRefusesMixedClasses(t *testing.T) {
 		field string
 		edit  func(p *record.PlanInfo)
 	}{
-		{"plan.model", func(p *record.PlanInfo) { p.Model = "hypergeometric"; p.Population = 40000 }},
-		{"plan.method", func(p *record.PlanInfo) { p.Method = "hoeffding" }},
-		{"plan.design", func(p *record.PlanInfo) { p.Design = "sequential" }},
+		{"plan.model", func(p *record.PlanInfo) { p.Model = plan.ModelHypergeometric; p.Population = 40000 }},
+		{"plan.method", func(p *record.PlanInfo) { p.Method = plan.MethodHoeffding }},
+		{"plan.design", func(p *record.PlanInfo) { p.Design = plan.DesignSequential }},
 		{"plan.ceiling", func(p *record.PlanInfo) { p.Ceiling = 0.03 }},
 		{"plan.confidence", func(p *record.PlanInfo) { p.Confidence = 0.99 }},
 	}
@@ -253,7 +254,7 @@ func TestBuildSingleRecordAndSequential(t *testing.T) {
 	}
 	rs = yearRecords()[:2]
 	for i := range rs {
-		rs[i].Plan.Design = "sequential"
+		rs[i].Plan.Design = plan.DesignSequential
 	}
 	tr, err = Build(entries(rs), Options{Alpha: 0.05})
 	if err != nil {

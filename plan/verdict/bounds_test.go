@@ -2,36 +2,9 @@ package verdict
 
 import (
 	"math"
+	"probity/plan"
 	"testing"
 )
-
-// TestHypergeometricUpperAgainstScipy: D_U found by a full scan over D with
-// scipy.stats.hypergeom.cdf.
-func TestHypergeometricUpperAgainstScipy(t *testing.T) {
-	type hc struct {
-		x, n int
-		N    int64
-		conf float64
-	}
-	cases := []hc{{0, 50, 1000, 0.95}, {3, 120, 500, 0.95}, {10, 200, 5000, 0.99}, {5, 5, 40, 0.9}, {0, 1, 10, 0.95}}
-	var want []float64
-	python(t, `
-import json, numpy as np
-from scipy.stats import hypergeom
-out=[]
-for x,n,N,conf in [(0,50,1000,0.95),(3,120,500,0.95),(10,200,5000,0.99),(5,5,40,0.9),(0,1,10,0.95)]:
-    D=np.arange(x, N-(n-x)+1)
-    ok=D[hypergeom.cdf(x, N, D, n) > 1-conf]
-    out.append(float(ok.max())/N)
-print(json.dumps(out))`, &want)
-	for i, c := range cases {
-		// scipy.stats.hypergeom.cdf scan; exact (both give D/N for the
-		// same integer D).
-		if got := HypergeometricUpper(c.x, c.n, c.N, c.conf); got != want[i] {
-			t.Errorf("%+v: %v, scipy scan %v", c, got, want[i])
-		}
-	}
-}
 
 // TestHoeffdingAndChernoffBounds checks the closed forms and their
 // defining equations.
@@ -52,7 +25,7 @@ func TestHoeffdingAndChernoffBounds(t *testing.T) {
 	for _, c := range []struct{ x, n int }{{0, 100}, {5, 1000}, {40, 200}} {
 		u := ChernoffUpper(c.x, c.n, 0.95)
 		p := float64(c.x) / float64(c.n)
-		if got := float64(c.n) * klBernoulli(p, u); !close(got, math.Log(20), 1e-9) {
+		if got := float64(c.n) * plan.BernoulliKL(p, u); !close(got, math.Log(20), 1e-9) {
 			t.Errorf("%+v: n·KL at the bound %v, want ln 20", c, got)
 		}
 		h := WeightedHoeffdingUpper(Estimate{Rate: p, SumW2n: 1 / float64(c.n)}, 0.95)

@@ -5,8 +5,9 @@
 // (Bonferroni, Holm step-down, fixed-sequence), per-stratum rates with
 // exact intervals, and confusion matrices.
 //
-// The bounds are the published ones: Clopper–Pearson (exact binomial) for
-// a self-weighting sample, the hypergeometric analogue for a finite lot,
+// The bounds are the published ones (named by plan.Bound): Clopper–Pearson
+// (exact binomial) and its hypergeometric analogue for a finite lot (both
+// in package plan) for a self-weighting sample,
 // Korn–Graubard (Clopper–Pearson with the effective sample size;
 // approximate) or the weighted Hoeffding bound (rigorous) for unequal
 // weights, and the Hoeffding and Chernoff relative-entropy bounds for plans

@@ -9,16 +9,16 @@ import (
 )
 
 // testPlan builds a plan with one or more label-column candidates.
-func testPlan(n, c int, ceiling, confidence float64, m int, multiplicity string) *plan.File {
+func testPlan(n, c int, ceiling, confidence float64, m int, multiplicity plan.Multiplicity) *plan.File {
 	f := &plan.File{
 		Format: plan.FileFormat, Seed: "00112233445566778899aabbccddeeff",
-		Inputs: plan.Inputs{Ceiling: ceiling, Confidence: confidence, Candidates: m, Method: "exact",
-			Multiplicity: multiplicity, Design: "fixed", Require: "all"},
-		Rule:    plan.Rule{Model: "binomial", SampleSize: n, AcceptanceNumber: c},
+		Inputs: plan.Inputs{Ceiling: ceiling, Confidence: confidence, CandidateCount: m, Method: plan.MethodExact,
+			Multiplicity: multiplicity, Design: plan.DesignFixed, Require: plan.RequireAll},
+		Rule:    plan.Rule{Model: plan.ModelBinomial, SampleSize: n, AcceptanceNumber: c},
 		Classes: []string{"ok", "defect"},
 	}
 	switch multiplicity {
-	case "fixed-sequence":
+	case plan.FixedSequence:
 		f.Rule.PerCandidateRisk = 1 - confidence
 	default:
 		f.Rule.PerCandidateRisk = (1 - confidence) / float64(m)

@@ -1,6 +1,10 @@
 package verdict
 
-import "math"
+import (
+	"math"
+
+	"probity/plan"
+)
 
 // WeightedHoeffdingUpper is a rigorous one-sided upper bound for the
 // stratified estimate: p̂ = Σ_i c_i Z_i with Z_i ∈ {0, 1} and c_i = W_h/n_h,
@@ -30,27 +34,14 @@ func WeightedHoeffdingPValue(e Estimate, ceiling float64) float64 {
 	return math.Exp(-2 * d * d / e.SumW2n)
 }
 
-// klBernoulli is the relative entropy KL(p ‖ q) of Bernoulli(p) from
-// Bernoulli(q), in nats, for 0 ≤ p ≤ 1 and 0 < q < 1.
-func klBernoulli(p, q float64) float64 {
-	var s float64
-	if p > 0 {
-		s += p * math.Log(p/q)
-	}
-	if p < 1 {
-		s += (1 - p) * math.Log((1-p)/(1-q))
-	}
-	return s
-}
-
 // ChernoffUpper is the Chernoff relative-entropy (KL) upper bound for x
 // errors in n (Chernoff, Ann. Math. Statist. 23, 1952; the form
 // P(p̂ ≤ p − t) ≤ exp(−n KL(p̂ ‖ p)) for p̂ < p): the largest q ≥ p̂ with
 //
 //	n · KL(p̂ ‖ q) ≤ ln(1/α),   α = 1 − confidence,
 //
-// found by bisection (KL(p̂ ‖ q) rises in q on [p̂, 1)). NaN outside
-// 0 ≤ x ≤ n, n ≥ 1, 0 < confidence < 1.
+// with KL = plan.BernoulliKL, found by bisection (KL(p̂ ‖ q) rises in q
+// on [p̂, 1)). NaN outside 0 ≤ x ≤ n, n ≥ 1, 0 < confidence < 1.
 func ChernoffUpper(x, n int, confidence float64) float64 {
 	if n < 1 || x < 0 || x > n || !(confidence > 0 && confidence < 1) {
 		return math.NaN()
@@ -63,7 +54,7 @@ func ChernoffUpper(x, n int, confidence float64) float64 {
 	lo, hi := p, 1.0
 	for i := 0; i < 200 && hi-lo > 1e-16; i++ {
 		mid := lo + (hi-lo)/2
-		if klBernoulli(p, mid) <= target {
+		if plan.BernoulliKL(p, mid) <= target {
 			lo = mid
 		} else {
 			hi = mid
@@ -78,5 +69,5 @@ func ChernoffPValue(x, n int, ceiling float64) float64 {
 	if p >= ceiling {
 		return 1
 	}
-	return math.Exp(-float64(n) * klBernoulli(p, ceiling))
+	return math.Exp(-float64(n) * plan.BernoulliKL(p, ceiling))
 }

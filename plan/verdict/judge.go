@@ -7,26 +7,8 @@ import (
 	"strconv"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/record"
-)
-
-// Bounds for samples with unequal inclusion weights.
-const (
-	// KornGraubard is the default: Clopper–Pearson with the effective
-	// sample size (approximate).
-	KornGraubard = "korn-graubard"
-	// WeightedHoeffding is rigorous but wider.
-	WeightedHoeffding = "weighted-hoeffding"
-)
-
-// Names of the bounds written into record.json's method.bound.
-const (
-	BoundClopperPearson = "clopper-pearson"
-	BoundHypergeometric = "exact-hypergeometric"
-	BoundHoeffding      = "hoeffding"
-	BoundChernoff       = "kl"
-	BoundKornGraubard   = "korn-graubard (approximate)"
-	BoundWeightedHoeff  = "weighted-hoeffding"
 )
 
 // ErrSequential is returned for a plan with a sequential design, which
@@ -56,9 +38,9 @@ type Input struct {
 	// Design's n_h must equal the number of Items in each stratum.
 	Design Design
 	Items  []Item
-	// UnequalBound is KornGraubard ("" means KornGraubard) or
-	// WeightedHoeffding; used only when the weights are unequal.
-	UnequalBound string
+	// UnequalBound is the bound used when the weights are unequal
+	// (KornGraubard unless set).
+	UnequalBound UnequalBound
 }
 
 // Result is the judgement of every candidate.
@@ -78,8 +60,7 @@ type Result struct {
 
 // judgeMethod is the bound and test chosen for a plan and sample.
 type judgeMethod struct {
-	bound       string
-	approximate bool
+	bound plan.Bound
 	// ruleApplies: the plan's (n, c) rule decides at the plan's level.
 	ruleApplies bool
 }
@@ -88,9 +69,9 @@ type judgeMethod struct {
 func Judge(in Input) (*Result, error) {
 	p := in.Plan
 	if p == nil || p.IsSizingOnly() {
-		return nil, fmt.Errorf("%w: the plan declares no candidates", ErrInput)
+		return nil, inputerr.Errorf("%w: the plan declares no candidates", ErrInput)
 	}
-	if p.Sequential != nil || p.Inputs.Design == "sequential" {
+	if p.Sequential != nil || p.Inputs.Design == plan.DesignSequential {
 		return nil, ErrSequential
 	}
 	if err := in.Design.validate(); err != nil {
@@ -99,24 +80,21 @@ func Judge(in Input) (*Result, error) {
 	counts := make([]int, len(in.Design.Strata))
 	for i, it := range in.Items {
 		if it.Stratum < 0 || it.Stratum >= len(counts) {
-			return nil, fmt.Errorf("%w: item %d (%s) has no stratum", ErrInput, i+1, it.RecordID)
+			return nil, inputerr.Errorf("%w: item %d (%s) has no stratum", ErrInput, i+1, it.RecordID)
 		}
 		if len(it.Predictions) != len(p.Candidates) {
-			return nil, fmt.Errorf("%w: item %d (%s) has %d predictions for %d candidates", ErrInput, i+1, it.RecordID, len(it.Predictions), len(p.Candidates))
+			return nil, inputerr.Errorf("%w: item %d (%s) has %d predictions for %d candidates", ErrInput, i+1, it.RecordID, len(it.Predictions), len(p.Candidates))
 		}
 		counts[it.Stratum]++
 	}
 	for h, s := range in.Design.Strata {
 		if counts[h] != s.Sample {
-			return nil, fmt.Errorf("%w: stratum %q has %d items but n_h = %d", ErrInput, s.Label, counts[h], s.Sample)
+			return nil, inputerr.Errorf("%w: stratum %q has %d items but n_h = %d", ErrInput, s.Label, counts[h], s.Sample)
 		}
 	}
 	unequal := in.UnequalBound
-	if unequal == "" {
-		unequal = KornGraubard
-	}
 	if unequal != KornGraubard && unequal != WeightedHoeffding {
-		return nil, fmt.Errorf("%w: bound %q is not %s or %s", ErrInput, unequal, KornGraubard, WeightedHoeffding)
+		return nil, inputerr.Errorf("%w: bound %q is not %s or %s", ErrInput, unequal, KornGraubard, WeightedHoeffding)
 	}
 
 	res := &Result{SelfWeighting: in.Design.SelfWeighting()}
@@ -134,7 +112,7 @@ func Judge(in Input) (*Result, error) {
 	}
 	level := p.Rule.PerCandidateRisk
 	if !(level > 0 && level < 1) {
-		return nil, fmt.Errorf("%w: rule.per_candidate_risk %v is outside (0, 1)", ErrInput, level)
+		return nil, inputerr.Errorf("%w: rule.per_candidate_risk %v is outside (0, 1)", ErrInput, level)
 	}
 	if !m.ruleApplies && res.SelfWeighting && n != p.Rule.SampleSize {
 		res.Notes = append(res.Notes, fmt.Sprintf("%d items were judged where the plan asks for n = %d; the verdict follows the p-value, not the plan's c", n, p.Rule.SampleSize))
@@ -152,7 +130,7 @@ func Judge(in Input) (*Result, error) {
 	delta := 1 - p.Inputs.Confidence
 	decisions, err := Decide(p.Inputs.Multiplicity, tests, delta)
 	if err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrInput, err)
+		return nil, inputerr.Errorf("%w: %v", ErrInput, err)
 	}
 	firstFail := ""
 	for ci := range res.Candidates {
@@ -160,12 +138,9 @@ func Judge(in Input) (*Result, error) {
 		adj := d.Adjusted
 		rc.AdjustedPValue = &adj
 		switch {
-		case d.NotReached && p.Inputs.Multiplicity == "fixed-sequence":
-			rc.Verdict = record.Reject
-			rc.Reason = fmt.Sprintf("not reached: %s was rejected earlier in the fixed sequence", firstFail)
 		case d.NotReached:
 			rc.Verdict = record.Reject
-			rc.Reason = fmt.Sprintf("not reached: Holm's step-down stopped at %s", firstFail)
+			rc.Reason = p.Inputs.Multiplicity.NotReachedReason(firstFail)
 		case d.Accepted:
 			rc.Verdict = record.Accept
 		default:
@@ -173,12 +148,12 @@ func Judge(in Input) (*Result, error) {
 		}
 		if !d.NotReached {
 			rc.Reason = reason(rc, m, p, n, level, d)
-			if !d.Accepted && firstFail == "" && p.Inputs.Multiplicity == "fixed-sequence" {
+			if !d.Accepted && firstFail == "" && p.Inputs.Multiplicity == plan.FixedSequence {
 				firstFail = rc.Name
 			}
 		}
 	}
-	if p.Inputs.Multiplicity == "holm" {
+	if p.Inputs.Multiplicity == plan.Holm {
 		// The Holm stop point is the not-accepted candidate with the
 		// smallest step; fill the not-reached reasons with it.
 		best := 0
@@ -189,7 +164,7 @@ func Judge(in Input) (*Result, error) {
 		}
 		for ci, d := range decisions {
 			if d.NotReached {
-				res.Candidates[ci].Reason = fmt.Sprintf("not reached: Holm's step-down stopped at %s", firstFail)
+				res.Candidates[ci].Reason = plan.Holm.NotReachedReason(firstFail)
 			}
 		}
 	}
@@ -199,25 +174,22 @@ func Judge(in Input) (*Result, error) {
 }
 
 // chooseMethod picks the bound and whether the plan's (n, c) rule decides.
-func chooseMethod(p *plan.File, selfWeighting bool, n int, lot int64, unequal string) (judgeMethod, error) {
+func chooseMethod(p *plan.File, selfWeighting bool, n int, lot int64, unequal UnequalBound) (judgeMethod, error) {
 	sameN := n == p.Rule.SampleSize
 	if !selfWeighting {
-		if unequal == WeightedHoeffding {
-			return judgeMethod{bound: BoundWeightedHoeff}, nil
-		}
-		return judgeMethod{bound: BoundKornGraubard, approximate: true}, nil
+		return judgeMethod{bound: unequal.Bound()}, nil
 	}
 	switch p.Rule.Model {
-	case "binomial", "":
-		return judgeMethod{bound: BoundClopperPearson, ruleApplies: sameN}, nil
-	case "hypergeometric":
-		return judgeMethod{bound: BoundHypergeometric, ruleApplies: sameN && lot == p.Inputs.Population}, nil
-	case "hoeffding":
-		return judgeMethod{bound: BoundHoeffding, ruleApplies: sameN}, nil
-	case "kl":
-		return judgeMethod{bound: BoundChernoff, ruleApplies: sameN}, nil
+	case plan.ModelBinomial, plan.ModelUnset:
+		return judgeMethod{bound: plan.BoundClopperPearson, ruleApplies: sameN}, nil
+	case plan.ModelHypergeometric:
+		return judgeMethod{bound: plan.BoundExactHypergeometric, ruleApplies: sameN && lot == p.Inputs.Population}, nil
+	case plan.ModelHoeffding:
+		return judgeMethod{bound: plan.BoundHoeffding, ruleApplies: sameN}, nil
+	case plan.ModelKL:
+		return judgeMethod{bound: plan.BoundChernoff, ruleApplies: sameN}, nil
 	}
-	return judgeMethod{}, fmt.Errorf("%w: rule.model %q is not binomial, hypergeometric, hoeffding or kl", ErrInput, p.Rule.Model)
+	return judgeMethod{}, inputerr.Errorf("%w: rule.model %q is not binomial, hypergeometric, hoeffding or kl", ErrInput, p.Rule.Model)
 }
 
 // judgeCandidate counts one candidate's errors and computes its estimate,
@@ -263,28 +235,28 @@ func judgeCandidate(in Input, ci int, m judgeMethod, level float64, lot int64) (
 	var t Test
 	var upperAt func(conf float64) float64
 	switch m.bound {
-	case BoundClopperPearson:
+	case plan.BoundClopperPearson:
 		rc.Estimate = float64(x) / float64(n)
 		t.PValue = plan.BinomialPValueAtLeast(x, n, ceiling)
 		upperAt = func(cf float64) float64 { return plan.ClopperPearsonUpper(x, n, cf) }
-	case BoundHypergeometric:
+	case plan.BoundExactHypergeometric:
 		rc.Estimate = float64(x) / float64(n)
 		t.PValue = plan.HypergeometricPValueAtLeast(x, n, lot, ceiling)
-		upperAt = func(cf float64) float64 { return HypergeometricUpper(x, n, lot, cf) }
-	case BoundHoeffding:
+		upperAt = func(cf float64) float64 { return plan.HypergeometricUpper(x, n, lot, cf) }
+	case plan.BoundHoeffding:
 		rc.Estimate = float64(x) / float64(n)
 		e := Estimate{Rate: rc.Estimate, SumW2n: 1 / float64(n)}
 		t.PValue = WeightedHoeffdingPValue(e, ceiling)
 		upperAt = func(cf float64) float64 { return WeightedHoeffdingUpper(e, cf) }
-	case BoundChernoff:
+	case plan.BoundChernoff:
 		rc.Estimate = float64(x) / float64(n)
 		t.PValue = ChernoffPValue(x, n, ceiling)
 		upperAt = func(cf float64) float64 { return ChernoffUpper(x, n, cf) }
-	case BoundWeightedHoeff:
+	case plan.BoundWeightedHoeffding:
 		rc.Estimate = est.Rate
 		t.PValue = WeightedHoeffdingPValue(est, ceiling)
 		upperAt = func(cf float64) float64 { return WeightedHoeffdingUpper(est, cf) }
-	case BoundKornGraubard:
+	case plan.BoundKornGraubard:
 		rc.Estimate = est.Rate
 		upperAt = func(cf float64) float64 { return KornGraubardUpper(est, n, cf) }
 		t.PValue = boundPValue(upperAt, ceiling)
@@ -292,9 +264,9 @@ func judgeCandidate(in Input, ci int, m judgeMethod, level float64, lot int64) (
 	rc.UpperBound = upperAt(conf)
 	rc.PValue = t.PValue
 	if math.IsNaN(rc.UpperBound) || math.IsNaN(t.PValue) {
-		return rc, Test{}, fmt.Errorf("%w: the %s bound is undefined for %d errors in %d", ErrInput, m.bound, x, n)
+		return rc, Test{}, inputerr.Errorf("%w: the %s bound is undefined for %d errors in %d", ErrInput, m.bound, x, n)
 	}
-	exact := m.bound == BoundClopperPearson || m.bound == BoundHypergeometric
+	exact := m.bound.Exact()
 	accept := p.Rule.AcceptanceNumber
 	t.Accept = func(lv float64) bool {
 		byRule := m.ruleApplies && x <= accept
@@ -346,7 +318,7 @@ func reason(rc *record.Candidate, m judgeMethod, p *plan.File, n int, level floa
 			cmp = "≥"
 		}
 		s = fmt.Sprintf("upper bound %s %s ceiling %s at confidence %s", short(rc.UpperBound), cmp, short(p.Inputs.Ceiling), short(1-d.Level))
-		if m.bound == BoundClopperPearson || m.bound == BoundHypergeometric {
+		if m.bound.Exact() {
 			cmp = "≤"
 			if !d.Accepted {
 				cmp = ">"
@@ -354,7 +326,7 @@ func reason(rc *record.Candidate, m judgeMethod, p *plan.File, n int, level floa
 			s = fmt.Sprintf("p-value %s %s level %s", short(rc.PValue), cmp, short(d.Level))
 		}
 	}
-	if p.Inputs.Multiplicity == "holm" && d.Step > 1 {
+	if p.Inputs.Multiplicity == plan.Holm && d.Step > 1 {
 		s += fmt.Sprintf(" (Holm step %d, level %s)", d.Step, short(d.Level))
 	}
 	return s
@@ -370,23 +342,69 @@ func errorsText(k int) string {
 
 func short(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }
 
-func overall(require string, cands []record.Candidate) string {
-	any, all := false, true
+// overall is the audit's verdict under the plan's requirement.
+func overall(require plan.Require, cands []record.Candidate) string {
+	accepted := 0
 	for _, c := range cands {
 		if c.Verdict == record.Accept {
-			any = true
-		} else {
-			all = false
+			accepted++
 		}
 	}
-	if require == "any" {
-		if any {
-			return record.Accept
-		}
-		return record.Reject
-	}
-	if all {
+	if require.Met(accepted, len(cands)) {
 		return record.Accept
 	}
 	return record.Reject
+}
+
+// UnequalBound is the bound Judge uses when the strata's inclusion weights
+// differ. Its names are those of the record command's option.
+type UnequalBound int
+
+// Bounds for samples with unequal inclusion weights.
+const (
+	// KornGraubard is the default (the zero value): Clopper–Pearson with
+	// the effective sample size (approximate).
+	KornGraubard UnequalBound = iota
+	// WeightedHoeffding is rigorous but wider.
+	WeightedHoeffding
+)
+
+// ParseUnequalBound returns the bound named s ("korn-graubard" or
+// "weighted-hoeffding").
+func ParseUnequalBound(s string) (UnequalBound, error) {
+	for _, u := range []UnequalBound{KornGraubard, WeightedHoeffding} {
+		if s == u.String() {
+			return u, nil
+		}
+	}
+	return 0, fmt.Errorf("%w: bound %q is not %s or %s", ErrInput, s, KornGraubard, WeightedHoeffding)
+}
+
+// String is the option's name.
+func (u UnequalBound) String() string {
+	switch u {
+	case KornGraubard:
+		return "korn-graubard"
+	case WeightedHoeffding:
+		return "weighted-hoeffding"
+	}
+	return fmt.Sprintf("UnequalBound(%d)", int(u))
+}
+
+// Bound is the record's name of the bound the option selects.
+func (u UnequalBound) Bound() plan.Bound {
+	if u == WeightedHoeffding {
+		return plan.BoundWeightedHoeffding
+	}
+	return plan.BoundKornGraubard
+}
+
+// UnequalBoundOf is the option under which a judgement with bound b was
+// made (KornGraubard unless b is the weighted Hoeffding bound), so that a
+// record can be judged again the same way.
+func UnequalBoundOf(b plan.Bound) UnequalBound {
+	if b == plan.BoundWeightedHoeffding {
+		return WeightedHoeffding
+	}
+	return KornGraubard
 }

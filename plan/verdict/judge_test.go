@@ -30,18 +30,18 @@ func TestVerdictAgreesWithPlanC(t *testing.T) {
 		ceiling      float64
 		confidence   float64
 		m            int
-		multiplicity string
+		multiplicity plan.Multiplicity
 	}{
-		{1271, 0.02, 0.95, 1, "bonferroni"}, // the issue's example plan (c = 17)
-		{150, 0.02, 0.95, 1, "bonferroni"},
-		{59, 0.05, 0.95, 1, "bonferroni"}, // zero-failure plan (c = 0)
-		{300, 0.05, 0.99, 3, "bonferroni"},
-		{200, 0.10, 0.90, 2, "fixed-sequence"},
-		{400, 0.03, 0.95, 4, "holm"},
+		{1271, 0.02, 0.95, 1, plan.Bonferroni}, // the issue's example plan (c = 17)
+		{150, 0.02, 0.95, 1, plan.Bonferroni},
+		{59, 0.05, 0.95, 1, plan.Bonferroni}, // zero-failure plan (c = 0)
+		{300, 0.05, 0.99, 3, plan.Bonferroni},
+		{200, 0.10, 0.90, 2, plan.FixedSequence},
+		{400, 0.03, 0.95, 4, plan.Holm},
 	}
 	for _, tc := range cases {
 		level := (1 - tc.confidence) / float64(tc.m)
-		if tc.multiplicity == "fixed-sequence" {
+		if tc.multiplicity == plan.FixedSequence {
 			level = 1 - tc.confidence
 		}
 		c := largestC(tc.n, tc.ceiling, level)
@@ -73,7 +73,7 @@ func TestVerdictAgreesWithPlanC(t *testing.T) {
 			if (cand.PValue <= level) != (x <= c) {
 				t.Fatalf("n=%d c=%d x=%d: p-value %v vs level %v disagrees with the rule", tc.n, c, x, cand.PValue, level)
 			}
-			if r.Method.Bound != BoundClopperPearson || !r.SelfWeighting {
+			if r.Method.Bound != plan.BoundClopperPearson || !r.SelfWeighting {
 				t.Fatalf("bound %s, self-weighting %v", r.Method.Bound, r.SelfWeighting)
 			}
 		}
@@ -104,8 +104,8 @@ func TestHypergeometricVerdictAgreesWithPlanC(t *testing.T) {
 				c = x
 			}
 		}
-		p := testPlan(tc.n, c, tc.ceiling, 0.95, 1, "bonferroni")
-		p.Rule.Model, p.Inputs.Population = "hypergeometric", tc.N
+		p := testPlan(tc.n, c, tc.ceiling, 0.95, 1, plan.Bonferroni)
+		p.Rule.Model, p.Inputs.Population = plan.ModelHypergeometric, tc.N
 		d := Design{Strata: []Stratum{{Label: "lot", Population: tc.N, Sample: tc.n}}}
 		for x := 0; x <= tc.n; x++ {
 			r := judge(t, Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{x}})})
@@ -113,7 +113,7 @@ func TestHypergeometricVerdictAgreesWithPlanC(t *testing.T) {
 			if (cand.Verdict == record.Accept) != (x <= c) || (cand.UpperBound < tc.ceiling) != (x <= c) {
 				t.Fatalf("N=%d n=%d c=%d x=%d: %s, bound %v (%s)", tc.N, tc.n, c, x, cand.Verdict, cand.UpperBound, cand.Reason)
 			}
-			if r.Method.Bound != BoundHypergeometric {
+			if r.Method.Bound != plan.BoundExactHypergeometric {
 				t.Fatalf("bound %s", r.Method.Bound)
 			}
 		}
@@ -149,7 +149,7 @@ func TestEdgeCasesAgainstScipy(t *testing.T) {
 	python(t, script.String(), &want)
 	const tol = 1e-9 // relative; the bound is solved to full double precision
 	for i, e := range edges {
-		p := testPlan(e.n, 0, e.ceiling, e.confidence, 1, "bonferroni")
+		p := testPlan(e.n, 0, e.ceiling, e.confidence, 1, plan.Bonferroni)
 		d := oneStratum(e.n)
 		r := judge(t, Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{e.x}})})
 		c := r.Candidates[0]
@@ -209,7 +209,7 @@ print(json.dumps(dict(Est=est,Var=var,Lo=lo,Hi=hi)))`, &want)
 	if d.SelfWeighting() {
 		t.Fatalf("unequal weights judged self-weighting")
 	}
-	p := testPlan(180, 3, 0.08, 0.95, 1, "bonferroni")
+	p := testPlan(180, 3, 0.08, 0.95, 1, plan.Bonferroni)
 	items := itemsWithErrors(d, [][]int{x})
 	r := judge(t, Input{Plan: p, Design: d, Items: items})
 	c := r.Candidates[0]
@@ -224,7 +224,7 @@ print(json.dumps(dict(Est=est,Var=var,Lo=lo,Hi=hi)))`, &want)
 	if c.Strata[2].Errors != 0 || c.Strata[2].Lower != 0 {
 		t.Errorf("stratum with no errors: %+v", c.Strata[2])
 	}
-	if r.Method.Bound != BoundKornGraubard || !r.Method.Approximate {
+	if r.Method.Bound != plan.BoundKornGraubard || !r.Method.Approximate {
 		t.Errorf("unequal weights judged with %s (approximate %v)", r.Method.Bound, r.Method.Approximate)
 	}
 }
@@ -239,11 +239,32 @@ func close(got, want, rel float64) bool {
 }
 
 func TestSequentialPlanRefused(t *testing.T) {
-	p := testPlan(10, 0, 0.1, 0.9, 1, "bonferroni")
+	p := testPlan(10, 0, 0.1, 0.9, 1, plan.Bonferroni)
 	p.Sequential = &plan.SequentialRule{MaxSampleSize: 10}
 	d := oneStratum(10)
 	_, err := Judge(Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{0}})})
 	if !errors.Is(err, ErrSequential) {
 		t.Errorf("got %v, want ErrSequential", err)
+	}
+}
+
+// TestUnequalBound: the option's names are those of the record command,
+// each selects its bound, and a record's bound gives back its option.
+func TestUnequalBound(t *testing.T) {
+	for _, tc := range []struct {
+		name  string
+		u     UnequalBound
+		bound plan.Bound
+	}{{"korn-graubard", KornGraubard, plan.BoundKornGraubard}, {"weighted-hoeffding", WeightedHoeffding, plan.BoundWeightedHoeffding}} {
+		u, err := ParseUnequalBound(tc.name)
+		if err != nil || u != tc.u || u.String() != tc.name || u.Bound() != tc.bound || UnequalBoundOf(tc.bound) != tc.u {
+			t.Errorf("%s: parsed %v, %v; bound %q", tc.name, u, err, u.Bound())
+		}
+	}
+	if _, err := ParseUnequalBound("korn-graubard (approximate)"); !errors.Is(err, ErrInput) {
+		t.Errorf("record spelling accepted as the option: %v", err)
+	}
+	if UnequalBoundOf(plan.BoundClopperPearson) != KornGraubard {
+		t.Error("a self-weighting record's option is not the default")
 	}
 }

@@ -9,13 +9,13 @@ import (
 )
 
 // boundWords names each bound in a sentence.
-var boundWords = map[string]string{
-	BoundClopperPearson: "the exact Clopper–Pearson bound (binomial)",
-	BoundHypergeometric: "the exact hypergeometric bound for a lot of N decisions",
-	BoundHoeffding:      "Hoeffding's bound",
-	BoundChernoff:       "the Chernoff relative-entropy bound",
-	BoundKornGraubard:   "the Korn–Graubard bound (Clopper–Pearson with the effective sample size; approximate) on the stratified estimate",
-	BoundWeightedHoeff:  "the weighted Hoeffding bound (rigorous) on the stratified estimate",
+var boundWords = map[plan.Bound]string{
+	plan.BoundClopperPearson:      "the exact Clopper–Pearson bound (binomial)",
+	plan.BoundExactHypergeometric: "the exact hypergeometric bound for a lot of N decisions",
+	plan.BoundHoeffding:           "Hoeffding's bound",
+	plan.BoundChernoff:            "the Chernoff relative-entropy bound",
+	plan.BoundKornGraubard:        "the Korn–Graubard bound (Clopper–Pearson with the effective sample size; approximate) on the stratified estimate",
+	plan.BoundWeightedHoeffding:   "the weighted Hoeffding bound (rigorous) on the stratified estimate",
 }
 
 // methodInfo writes the method statement: the bound, its confidence, the
@@ -24,11 +24,11 @@ func methodInfo(p *plan.File, m judgeMethod, n int, level float64, res *Result) 
 	var b strings.Builder
 	fmt.Fprintf(&b, "One-sided upper %s confidence bounds by %s", pct(1-level), boundWords[m.bound])
 	switch p.Inputs.Multiplicity {
-	case "bonferroni":
-		fmt.Fprintf(&b, ", Bonferroni-adjusted for %d candidates so they hold simultaneously at %s", p.Inputs.Candidates, pct(p.Inputs.Confidence))
-	case "holm":
-		fmt.Fprintf(&b, " (simultaneous at %s over %d candidates); candidates are accepted by Holm's step-down procedure at family-wise risk %s", pct(p.Inputs.Confidence), p.Inputs.Candidates, pct(1-p.Inputs.Confidence))
-	case "fixed-sequence":
+	case plan.Bonferroni:
+		fmt.Fprintf(&b, ", Bonferroni-adjusted for %d candidates so they hold simultaneously at %s", p.Inputs.CandidateCount, pct(p.Inputs.Confidence))
+	case plan.Holm:
+		fmt.Fprintf(&b, " (simultaneous at %s over %d candidates); candidates are accepted by Holm's step-down procedure at family-wise risk %s", pct(p.Inputs.Confidence), p.Inputs.CandidateCount, pct(1-p.Inputs.Confidence))
+	case plan.FixedSequence:
 		fmt.Fprintf(&b, "; candidates are tested in their declared order at %s and testing stops at the first rejection", pct(1-p.Inputs.Confidence))
 	}
 	b.WriteString(". ")
@@ -37,12 +37,12 @@ func methodInfo(p *plan.File, m judgeMethod, n int, level float64, res *Result) 
 	} else {
 		fmt.Fprintf(&b, "A candidate passes when its upper bound lies below the ceiling of %s (%d decisions judged).", pct(p.Inputs.Ceiling), n)
 	}
-	if res.SelfWeighting && m.bound != BoundKornGraubard && m.bound != BoundWeightedHoeff {
+	if res.SelfWeighting && !m.bound.Weighted() {
 		b.WriteString(" The sample is self-weighting (proportional allocation), so errors are counted directly.")
 	} else {
 		b.WriteString(" Inclusion weights differ between strata, so the error is estimated by weighting each stratum by its share N_h/N.")
 	}
-	return record.MethodInfo{Bound: m.bound, Approximate: m.approximate, Statement: b.String()}
+	return record.MethodInfo{Bound: m.bound, Approximate: m.bound.Approximate(), Statement: b.String()}
 }
 
 // pct formats a probability as a percentage with up to four significant

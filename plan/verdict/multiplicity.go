@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"probity/plan"
 )
 
 // Test is one candidate's test of H0: error ≥ ceiling. Accept reports
@@ -97,15 +99,15 @@ func FixedSequence(tests []Test, delta float64) []Decision {
 	return out
 }
 
-// Decide applies the named multiplicity rule: "bonferroni", "holm" or
-// "fixed-sequence".
-func Decide(rule string, tests []Test, delta float64) ([]Decision, error) {
+// Decide applies the plan's multiplicity rule (Bonferroni, Holm or
+// FixedSequence); an unset rule is an error.
+func Decide(rule plan.Multiplicity, tests []Test, delta float64) ([]Decision, error) {
 	switch rule {
-	case "bonferroni":
+	case plan.Bonferroni:
 		return Bonferroni(tests, delta), nil
-	case "holm":
+	case plan.Holm:
 		return Holm(tests, delta), nil
-	case "fixed-sequence":
+	case plan.FixedSequence:
 		return FixedSequence(tests, delta), nil
 	}
 	return nil, fmt.Errorf("multiplicity rule %q is not one of bonferroni, holm, fixed-sequence", rule)

@@ -3,6 +3,7 @@ package verdict
 import (
 	"testing"
 
+	"probity/plan"
 	"probity/plan/record"
 )
 
@@ -65,7 +66,7 @@ func TestJudgeMultiplicityReasons(t *testing.T) {
 	// Fixed-sequence at δ = 0.05: m1 passes, m2 fails, m3 (perfect) is
 	// not reached.
 	c := largestC(n, 0.03, 0.05)
-	p := testPlan(n, c, 0.03, 0.95, 3, "fixed-sequence")
+	p := testPlan(n, c, 0.03, 0.95, 3, plan.FixedSequence)
 	r := judge(t, Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{c}, {c + 1}, {0}})})
 	want := []string{record.Accept, record.Reject, record.Reject}
 	for i, cand := range r.Candidates {
@@ -79,7 +80,7 @@ func TestJudgeMultiplicityReasons(t *testing.T) {
 	if r.Overall != record.Reject {
 		t.Errorf("overall %s with require all", r.Overall)
 	}
-	p.Inputs.Require = "any"
+	p.Inputs.Require = plan.RequireAny
 	if r := judge(t, Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{c}, {c + 1}, {0}})}); r.Overall != record.Accept {
 		t.Errorf("overall %s with require any", r.Overall)
 	}
@@ -92,7 +93,7 @@ func TestJudgeMultiplicityReasons(t *testing.T) {
 	if c1 <= c2 {
 		t.Fatalf("test needs c(0.05) > c(0.025): %d %d", c1, c2)
 	}
-	p = testPlan(n, c2, 0.03, 0.95, 2, "holm")
+	p = testPlan(n, c2, 0.03, 0.95, 2, plan.Holm)
 	r = judge(t, Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{0}, {c1}})})
 	if r.Candidates[0].Verdict != record.Accept || r.Candidates[1].Verdict != record.Accept {
 		t.Errorf("holm: %+v", r.Candidates)
@@ -101,7 +102,7 @@ func TestJudgeMultiplicityReasons(t *testing.T) {
 		t.Errorf("holm reason %q", r.Candidates[1].Reason)
 	}
 	// Bonferroni with the same data rejects the second.
-	p.Inputs.Multiplicity = "bonferroni"
+	p.Inputs.Multiplicity = plan.Bonferroni
 	r = judge(t, Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{0}, {c1}})})
 	if r.Candidates[1].Verdict != record.Reject {
 		t.Errorf("bonferroni accepted %d errors > c = %d", c1, c2)

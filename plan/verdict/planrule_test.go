@@ -14,16 +14,16 @@ func TestVerdictAgreesWithBuiltPlans(t *testing.T) {
 	p0 := 0.01
 	p05 := 0.005
 	inputs := []plan.Inputs{
-		{Ceiling: 0.02, Confidence: 0.95, Candidates: 1, Anticipated: &p0, ProducerRisk: 0.10, Method: "exact", Multiplicity: "bonferroni", Design: "fixed", Require: "all"},
-		{Ceiling: 0.05, Confidence: 0.95, Candidates: 1, ProducerRisk: 0.10, Method: "exact", Multiplicity: "bonferroni", Design: "fixed", Require: "all"},
-		{Ceiling: 0.03, Confidence: 0.99, Candidates: 3, Anticipated: &p05, ProducerRisk: 0.2, Method: "exact", Multiplicity: "holm", Design: "fixed", Require: "all"},
-		{Ceiling: 0.05, Confidence: 0.95, Candidates: 1, Anticipated: &p0, ProducerRisk: 0.10, Population: 3000, Method: "exact", Multiplicity: "bonferroni", Design: "fixed", Require: "all"},
-		{Ceiling: 0.05, Confidence: 0.95, Candidates: 1, Anticipated: &p0, ProducerRisk: 0.10, Method: "hoeffding", Multiplicity: "bonferroni", Design: "fixed", Require: "all"},
-		{Ceiling: 0.05, Confidence: 0.95, Candidates: 1, Anticipated: &p0, ProducerRisk: 0.10, Method: "kl", Multiplicity: "fixed-sequence", Design: "fixed", Require: "all"},
+		{Ceiling: 0.02, Confidence: 0.95, CandidateCount: 1, Anticipated: &p0, ProducerRisk: 0.10, Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
+		{Ceiling: 0.05, Confidence: 0.95, CandidateCount: 1, ProducerRisk: 0.10, Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
+		{Ceiling: 0.03, Confidence: 0.99, CandidateCount: 3, Anticipated: &p05, ProducerRisk: 0.2, Method: plan.MethodExact, Multiplicity: plan.Holm, Design: plan.DesignFixed, Require: plan.RequireAll},
+		{Ceiling: 0.05, Confidence: 0.95, CandidateCount: 1, Anticipated: &p0, ProducerRisk: 0.10, Population: 3000, Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
+		{Ceiling: 0.05, Confidence: 0.95, CandidateCount: 1, Anticipated: &p0, ProducerRisk: 0.10, Method: plan.MethodHoeffding, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
+		{Ceiling: 0.05, Confidence: 0.95, CandidateCount: 1, Anticipated: &p0, ProducerRisk: 0.10, Method: plan.MethodKL, Multiplicity: plan.FixedSequence, Design: plan.DesignFixed, Require: plan.RequireAll},
 	}
 	for _, in := range inputs {
 		meta := plan.Meta{Seed: "00112233445566778899aabbccddeeff", Classes: []string{"ok", "defect"}}
-		for i := 0; i < in.Candidates; i++ {
+		for i := 0; i < in.CandidateCount; i++ {
 			meta.Candidates = append(meta.Candidates, plan.Candidate{Name: string(rune('a' + i)), Column: "p"})
 		}
 		f, err := plan.Build(in, meta)
@@ -48,7 +48,7 @@ func TestVerdictAgreesWithBuiltPlans(t *testing.T) {
 			xs = append(xs, n)
 		}
 		for _, x := range xs {
-			errs := make([][]int, in.Candidates)
+			errs := make([][]int, in.CandidateCount)
 			for k := range errs {
 				errs[k] = []int{x}
 			}

@@ -5,19 +5,10 @@ import (
 	"fmt"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/sequential"
 )
-
-// BoundSequential names the judgement of a sequential plan of an unbounded
-// stream in record.json's method.bound: the bound and p-value are exact
-// for the stopping rule (stage-wise ordering).
-const BoundSequential = "sequential boundaries (stage-wise exact bound)"
-
-// BoundSequentialLot names the judgement of a sequential plan of a finite
-// lot: the bound is the Clopper–Pearson value at the stopping point,
-// descriptive only.
-const BoundSequentialLot = "sequential boundaries (bound descriptive)"
 
 // ErrUndecided is wrapped when the labeled items do not reach a decision
 // of a sequential plan's boundaries for some candidate.
@@ -40,11 +31,11 @@ var ErrUndecided = errors.New("the sequential plan has not decided")
 func JudgeSequential(in Input) (*Result, error) {
 	p := in.Plan
 	if p == nil || p.IsSizingOnly() || p.Sequential == nil {
-		return nil, fmt.Errorf("%w: not a sequential plan with candidates", ErrInput)
+		return nil, inputerr.Errorf("%w: not a sequential plan with candidates", ErrInput)
 	}
 	rule, err := sequential.NewRule(p.Sequential)
 	if err != nil {
-		return nil, fmt.Errorf("%w: plan sequential rule: %v", ErrInput, err)
+		return nil, inputerr.Errorf("%w: plan sequential rule: %v", ErrInput, err)
 	}
 	if err := in.Design.validate(); err != nil {
 		return nil, err
@@ -59,11 +50,12 @@ func JudgeSequential(in Input) (*Result, error) {
 		}
 		d, at := rule.Judge(errs)
 		if d == sequential.Continue {
-			return nil, fmt.Errorf("%w: candidate %s has %s in the %d items labeled from the top, inside the boundaries; label further down the worksheet (up to %d items)",
-				ErrUndecided, c.Name, errorsText(count(errs[:at])), at, rule.MaxSampleSize())
+			return nil, inputerr.Errorf("%w: candidate %s has %s in the %d items labeled from the top, inside the boundaries; label further down the worksheet (up to %d items)",
+				ErrUndecided, c.Name, errorsText(count(errs[:at])), at, rule.MaxSampleSize()).
+				WithHint("'probity progress' says how many more labels each candidate can need")
 		}
 		sub := Input{Plan: p, Design: redesign(in.Design, in.Items[:at]), Items: in.Items[:at]}
-		rc, _, err := judgeCandidate(sub, ci, judgeMethod{bound: BoundClopperPearson}, level, 0)
+		rc, _, err := judgeCandidate(sub, ci, judgeMethod{bound: plan.BoundClopperPearson}, level, 0)
 		if err != nil {
 			return nil, fmt.Errorf("candidate %s: %w", c.Name, err)
 		}
@@ -78,9 +70,9 @@ func JudgeSequential(in Input) (*Result, error) {
 			}
 		}
 		switch {
-		case firstFail != "" && p.Inputs.Multiplicity == "fixed-sequence":
+		case firstFail != "" && p.Inputs.Multiplicity == plan.FixedSequence:
 			rc.Verdict = record.Reject
-			rc.Reason = fmt.Sprintf("not reached: %s was rejected earlier in the fixed sequence", firstFail)
+			rc.Reason = plan.FixedSequence.NotReachedReason(firstFail)
 		case d == sequential.Accept:
 			rc.Verdict = record.Accept
 			rc.Reason = fmt.Sprintf("%s in the first %d labels: at or below the acceptance boundary %d", errorsText(rc.Errors), at, p.Sequential.AcceptIfErrorsAtMost[at-1])
@@ -95,11 +87,12 @@ func JudgeSequential(in Input) (*Result, error) {
 	}
 	res.Overall = overall(p.Inputs.Require, res.Candidates)
 	boundText := "The upper bounds and p-values are exact for the stopping rule: they order the possible stopping points stage-wise (an earlier acceptance is more favourable than a later one, a later rejection more favourable than an earlier one) and are computed by the same dynamic programme as the plan's risks."
-	res.Method = record.MethodInfo{Bound: BoundSequential}
+	bound := plan.BoundSequential
 	if p.Inputs.Population > 0 {
 		boundText = "The upper bounds and p-values are Clopper–Pearson values at the stopping point, shown for description only: they ignore the stopping rule."
-		res.Method = record.MethodInfo{Bound: BoundSequentialLot, Approximate: true}
+		bound = plan.BoundSequentialLot
 	}
+	res.Method = record.MethodInfo{Bound: bound, Approximate: bound.Approximate()}
 	res.Method.Statement = fmt.Sprintf(
 		"Each candidate is judged by the plan's sequential boundaries, labeling from the top of the worksheet until its errors reach the acceptance or the rejection boundary (at most %d labels); the boundaries keep the false-accept risk at or below %s per candidate. %s",
 		rule.MaxSampleSize(), pct(level), boundText)

@@ -2,8 +2,8 @@ package verdict
 
 import (
 	"errors"
-	"fmt"
 	"math"
+	"probity/plan/inputerr"
 )
 
 // Stratum is one stratum of the draw: its size N_h in the audited
@@ -25,17 +25,17 @@ var ErrDesign = errors.New("invalid sample design")
 // validate checks N_h ≥ n_h ≥ 0, N_h ≥ 1 and at least one judged item.
 func (d Design) validate() error {
 	if len(d.Strata) == 0 {
-		return fmt.Errorf("%w: no strata", ErrDesign)
+		return inputerr.Errorf("%w: no strata", ErrDesign)
 	}
 	n := 0
 	for _, s := range d.Strata {
 		if s.Population < 1 || s.Sample < 0 || int64(s.Sample) > s.Population {
-			return fmt.Errorf("%w: stratum %q has N_h = %d and n_h = %d (need N_h ≥ 1 and 0 ≤ n_h ≤ N_h)", ErrDesign, s.Label, s.Population, s.Sample)
+			return inputerr.Errorf("%w: stratum %q has N_h = %d and n_h = %d (need N_h ≥ 1 and 0 ≤ n_h ≤ N_h)", ErrDesign, s.Label, s.Population, s.Sample)
 		}
 		n += s.Sample
 	}
 	if n == 0 {
-		return fmt.Errorf("%w: no item was judged", ErrDesign)
+		return inputerr.Errorf("%w: no item was judged", ErrDesign)
 	}
 	return nil
 }
@@ -125,14 +125,14 @@ func (d Design) Stratified(errors []int) (Estimate, error) {
 		return Estimate{}, err
 	}
 	if len(errors) != len(d.Strata) {
-		return Estimate{}, fmt.Errorf("%w: %d error counts for %d strata", ErrDesign, len(errors), len(d.Strata))
+		return Estimate{}, inputerr.Errorf("%w: %d error counts for %d strata", ErrDesign, len(errors), len(d.Strata))
 	}
 	N := d.covered()
 	var e Estimate
 	for h, s := range d.Strata {
 		x := errors[h]
 		if x < 0 || x > s.Sample {
-			return Estimate{}, fmt.Errorf("%w: stratum %q has %d errors in %d items", ErrDesign, s.Label, x, s.Sample)
+			return Estimate{}, inputerr.Errorf("%w: stratum %q has %d errors in %d items", ErrDesign, s.Label, x, s.Sample)
 		}
 		if s.Sample == 0 {
 			continue

@@ -1,7 +1,6 @@
 package sqlquery
 
 import (
-	"fmt"
 	"strconv"
 	"strings"
 )
@@ -43,10 +42,10 @@ func allocationCTEs(s *Spec) (string, error) {
 	case ruleEqual:
 		w = "1"
 	default:
-		return "", fmt.Errorf("%w: allocation %q cannot be computed in SQL (only proportional and equal can)", ErrSpec, s.Allocation)
+		return "", specError("allocation", "%q cannot be computed in SQL (only proportional and equal can)", s.Allocation)
 	}
 	if s.SampleSize < 1 || s.MinPerStratum < 0 || s.Spare < 0 {
-		return "", fmt.Errorf("%w: sample size %d, minimum %d, spares %d", ErrSpec, s.SampleSize, s.MinPerStratum, s.Spare)
+		return "", specError("", "sample size %d, minimum %d, spares %d", s.SampleSize, s.MinPerStratum, s.Spare)
 	}
 	num := d.exactInt()
 	n := "CAST(" + strconv.Itoa(s.SampleSize) + " AS " + num + ")"

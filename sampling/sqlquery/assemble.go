@@ -4,6 +4,7 @@ import (
 	"slices"
 	"sort"
 
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -49,7 +50,7 @@ func (res *Result) Folder(toolVersion string) (*sampling.Folder, error) {
 			vi := slices.Index(values, c.Columns()[0])
 			v, err := c.Predict(it.Values[vi])
 			if err != nil {
-				return nil, &sampling.InputError{File: res.Path, Line: it.Line, Column: ResultHeader(vi + 1)[fixedColumns+vi],
+				return nil, &inputerr.Error{File: res.Path, Line: it.Line, Field: ResultHeader(vi + 1)[fixedColumns+vi],
 					Msg: "candidate " + c.Name + ": " + err.Error()}
 			}
 			rows[i].Predictions[ci] = v

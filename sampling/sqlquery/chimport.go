@@ -6,6 +6,7 @@ import (
 	"io"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -37,7 +38,7 @@ type Counts struct {
 
 // ReadCounts reads and checks the result of a ClickHouse counts query.
 // p and fingerprint are the plan it must have been made for; stdin is read
-// when path is "-". Every problem is a *sampling.InputError naming the
+// when path is "-". Every problem is a *inputerr.Error naming the
 // file, line and column.
 func ReadCounts(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Counts, error) {
 	data, err := readFile(path, stdin)
@@ -60,7 +61,7 @@ func ReadCounts(path string, stdin io.Reader, p *plan.File, fingerprint string) 
 	}
 	c := &Counts{Path: path, SHA256: sampling.SHA256Hex(data), Bytes: int64(len(data)), Spec: spec}
 	if c.Query, err = CountsQuery(spec); err != nil {
-		return nil, &sampling.InputError{File: path, Line: t.lines[0], Column: "detail", Msg: err.Error(), Err: err}
+		return nil, &inputerr.Error{File: path, Line: t.lines[0], Field: "detail", Msg: err.Error(), Err: err}
 	}
 	c.QuerySHA256 = sampling.SHA256Hex([]byte(c.Query))
 	if c.TableRows, err = t.int64At(0, colStratumSize); err != nil {
@@ -121,8 +122,8 @@ func ImportSelection(path string, stdin io.Reader, p *plan.File, fingerprint str
 		return nil, err
 	}
 	if countsSHA != counts.SHA256 {
-		return nil, withHint(t.rowError(0, colDetail, "the result was made from the counts file with SHA-256 %s, not from %s (%s)", short(countsSHA), counts.Path, short(counts.SHA256)),
-			"import it with the counts file its selection query was printed from")
+		return nil, t.rowError(0, colDetail, "the result was made from the counts file with SHA-256 %s, not from %s (%s)", short(countsSHA), counts.Path, short(counts.SHA256)).
+			WithHint("import it with the counts file its selection query was printed from")
 	}
 	got, err := spec.MarshalDetail()
 	if err != nil {
@@ -138,7 +139,7 @@ func ImportSelection(path string, stdin io.Reader, p *plan.File, fingerprint str
 	res := &Result{Path: path, SHA256: sampling.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{},
 		Spec: counts.Spec, TableRows: counts.TableRows, InScope: counts.InScope, Strata: counts.Strata, Counts: counts}
 	if res.Query, err = SelectionQuery(counts); err != nil {
-		return nil, &sampling.InputError{File: path, Line: t.lines[0], Column: "detail", Msg: err.Error(), Err: err}
+		return nil, &inputerr.Error{File: path, Line: t.lines[0], Field: "detail", Msg: err.Error(), Err: err}
 	}
 	res.QuerySHA256 = sampling.SHA256Hex([]byte(res.Query))
 	if err := checkValueColumns(t, res.Spec); err != nil {
@@ -157,14 +158,14 @@ func ImportSelection(path string, stdin io.Reader, p *plan.File, fingerprint str
 		return nil, err
 	}
 	if rows != counts.TableRows {
-		return nil, withHint(t.rowError(0, colStratumSize, "the selection query read %d rows of %s, but the counts query read %d", rows, res.Spec.Table, counts.TableRows), changed)
+		return nil, t.rowError(0, colStratumSize, "the selection query read %d rows of %s, but the counts query read %d", rows, res.Spec.Table, counts.TableRows).WithHint(changed)
 	}
 	recount, rowIdx, err := stratumCounts(t)
 	if err != nil {
 		return nil, err
 	}
 	if err := sameCounts(t, recount, rowIdx, counts); err != nil {
-		return nil, withHint(err, changed)
+		return nil, err.WithHint(changed)
 	}
 	if err := checkClaims(t, counts.Strata, rowIdx); err != nil {
 		return nil, err
@@ -177,10 +178,10 @@ func ImportSelection(path string, stdin io.Reader, p *plan.File, fingerprint str
 
 // sameCounts compares the strata the selection query counted with those
 // of the counts file.
-func sameCounts(t *resultTable, recount []sampling.StratumCount, rows []int, counts *Counts) *sampling.InputError {
+func sameCounts(t *resultTable, recount []sampling.StratumCount, rows []int, counts *Counts) *inputerr.Error {
 	for i, a := range counts.Strata {
 		if i >= len(recount) {
-			return &sampling.InputError{File: t.name, Column: "stratum", Msg: fmt.Sprintf("stratum %q (%d rows when counted) has no rows in the selection result", a.Label, a.Population)}
+			return &inputerr.Error{File: t.name, Field: "stratum", Msg: fmt.Sprintf("stratum %q (%d rows when counted) has no rows in the selection result", a.Label, a.Population)}
 		}
 		r := recount[i]
 		switch {

@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -254,7 +255,7 @@ func FuzzImportSelection(f *testing.F) {
 			return
 		}
 		if _, err := res.Folder("test"); err != nil {
-			var ie *sampling.InputError
+			var ie *inputerr.Error
 			if !asInputError(err, &ie) {
 				t.Fatalf("accepted result gave a non-input error: %v", err)
 			}

@@ -68,7 +68,7 @@ func (c *chQuery) lit(s string) string {
 // done returns the query text, or the first quoting error.
 func (c *chQuery) done(b *strings.Builder) (string, error) {
 	if c.err != nil {
-		return "", fmt.Errorf("%w: %v", ErrSpec, c.err)
+		return "", specError("", "%w", c.err)
 	}
 	return b.String(), nil
 }
@@ -87,7 +87,7 @@ func (c *chQuery) alias(base string) string {
 // newCHQuery validates s and prepares the row expressions.
 func newCHQuery(s *Spec) (*chQuery, error) {
 	if s.Dialect != ClickHouse {
-		return nil, fmt.Errorf("%w: the %s dialect draws with one query", ErrSpec, s.Dialect)
+		return nil, specError("dialect", "%s draws with one query", s.Dialect)
 	}
 	q, err := newQuoter(s)
 	if err != nil {
@@ -100,14 +100,14 @@ func newCHQuery(s *Spec) (*chQuery, error) {
 	c.taken[s.IDColumn] = true
 	seedColon, err := ClickHouse.QuoteLiteral(s.SelectionSeed + ":")
 	if err != nil {
-		return nil, fmt.Errorf("%w: seed: %v", ErrSpec, err)
+		return nil, specError("selection_seed", "%w", err)
 	}
 	detail, err := s.MarshalDetail()
 	if err != nil {
 		return nil, err
 	}
 	if c.detail, err = ClickHouse.QuoteLiteral(string(detail)); err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrSpec, err)
+		return nil, specError("", "%w", err)
 	}
 	null := c.lit(NullText)
 	text := func(col string) string { return "ifNull(toString(t." + q.cols[col] + "), " + null + ")" }
@@ -189,7 +189,7 @@ func newCHQuery(s *Spec) (*chQuery, error) {
 	c.count = c.alias("n")
 	c.first = c.alias("first_id")
 	if c.err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrSpec, c.err)
+		return nil, specError("", "%w", c.err)
 	}
 	return c, nil
 }
@@ -386,7 +386,7 @@ func SelectionQuery(counts *Counts) (string, error) {
 		return "", err
 	}
 	if c.detail, err = ClickHouse.QuoteLiteral(string(detail)); err != nil {
-		return "", fmt.Errorf("%w: %v", ErrSpec, err)
+		return "", specError("", "%w", err)
 	}
 	var labels, pops, samples, spares, takes []string
 	var sumSample, sumSpare int

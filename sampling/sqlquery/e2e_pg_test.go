@@ -23,7 +23,7 @@ func e2ePlan(n int) *plan.File {
 	th := 0.7
 	return &plan.File{
 		Format: plan.FileFormat, Seed: `e2e 'seed' \ ok`,
-		Inputs:  plan.Inputs{Ceiling: 0.05, Confidence: 0.95, Candidates: 2},
+		Inputs:  plan.Inputs{Ceiling: 0.05, Confidence: 0.95, CandidateCount: 2},
 		Rule:    plan.Rule{SampleSize: n, AcceptanceNumber: 2},
 		Classes: []string{"fraud", "ok"},
 		Candidates: []plan.Candidate{

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -56,7 +57,7 @@ type Item struct {
 
 // Import reads and checks a query result. p and fingerprint are the plan
 // the result must have been made for; stdin is read when path is "-".
-// Every problem is a *sampling.InputError naming the file, line and
+// Every problem is a *inputerr.Error naming the file, line and
 // column. A ClickHouse result is imported with ImportSelection instead.
 func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Result, error) {
 	data, err := readFile(path, stdin)
@@ -76,12 +77,12 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 		return nil, err
 	}
 	if spec.Dialect.TwoStep() || countsSHA != "" {
-		return nil, withHint(t.rowError(0, colDetail, "a %s selection is checked against the counts it was made from", spec.Dialect),
-			"import it together with the counts file: --counts COUNTS.csv --selected RESULT.csv")
+		return nil, t.rowError(0, colDetail, "a %s selection is checked against the counts it was made from", spec.Dialect).
+			WithHint("import it together with the counts file its selection query was printed from")
 	}
 	res.Spec = spec
 	if res.Query, err = Query(res.Spec); err != nil {
-		return nil, &sampling.InputError{File: path, Line: t.lines[0], Column: "detail", Msg: err.Error(), Err: err}
+		return nil, &inputerr.Error{File: path, Line: t.lines[0], Field: "detail", Msg: err.Error(), Err: err}
 	}
 	res.QuerySHA256 = sampling.SHA256Hex([]byte(res.Query))
 	if res.TableRows, err = t.int64At(0, colStratumSize); err != nil {
@@ -112,15 +113,15 @@ func firstRowKind(t *resultTable, kind string) error {
 	if len(t.rows) > 0 && t.rows[0][colKind] == kind {
 		return nil
 	}
-	e := &sampling.InputError{File: t.name, Line: 2, Column: "kind", Msg: "the first row must be the " + kind + " row (kind " + kind + ")",
+	e := &inputerr.Error{File: t.name, Line: 2, Field: "kind", Msg: "the first row must be the " + kind + " row (kind " + kind + ")",
 		Hint: "save the whole result of the query, in the order it returns"}
 	switch {
 	case len(t.rows) > 0 && kind == KindDraw && t.rows[0][colKind] == KindCounts:
 		e.Msg = "this is the result of the counts query (step 1 of 2), not of the selection query"
-		e.Hint = "print the selection query with --counts " + t.name + ", run it, and import its result"
+		e.Hint = "print the selection query from this counts file, run it, and import its result"
 	case len(t.rows) > 0 && kind == KindCounts && t.rows[0][colKind] == KindDraw:
 		e.Msg = "this is the result of a selection query, not of the counts query (step 1 of 2)"
-		e.Hint = "give the counts query's result with --counts and the selection query's with --selected"
+		e.Hint = "give the counts query's result as the counts and the selection query's as the selection"
 	}
 	return e
 }
@@ -129,7 +130,7 @@ func firstRowKind(t *resultTable, kind string) error {
 // the draw row lists.
 func checkValueColumns(t *resultTable, s *Spec) error {
 	if n := len(s.valueColumns()); len(t.header)-fixedColumns != n {
-		return &sampling.InputError{File: t.name, Line: 1, Msg: fmt.Sprintf("%d value columns, but the draw row lists %d", len(t.header)-fixedColumns, n)}
+		return &inputerr.Error{File: t.name, Line: 1, Msg: fmt.Sprintf("%d value columns, but the draw row lists %d", len(t.header)-fixedColumns, n)}
 	}
 	return nil
 }
@@ -138,8 +139,7 @@ func checkValueColumns(t *resultTable, s *Spec) error {
 // judges.
 func checkLot(t *resultTable, p *plan.File, s *Spec, inScope int64) error {
 	if pop := p.Inputs.Population; pop > 0 && s.Period == "" && inScope != pop {
-		return withHint(&sampling.InputError{File: t.name, Msg: fmt.Sprintf("%d rows of %s are in scope but the plan is for a lot of %d (inputs.population)", inScope, s.Table, pop)},
-			fmt.Sprintf("a finite-lot plan judges exactly one lot: plan again with --population %d, or draw with --period LABEL to take this table as the period's lot", inScope))
+		return (&inputerr.Error{File: t.name, Msg: fmt.Sprintf("%d rows of %s are in scope but the plan is for a lot of %d (inputs.population)", inScope, s.Table, pop)}).WithHint(fmt.Sprintf("a finite-lot plan judges exactly one lot: plan again for a lot of %d, or draw for a period to take this table as the period's lot", inScope))
 	}
 	return nil
 }
@@ -154,16 +154,13 @@ func checkDrawRow(t *resultTable, p *plan.File, fingerprint string) (*Spec, stri
 		return nil, "", t.rowError(0, colDetail, "%v", err)
 	}
 	if d.Format != QueryFormat {
-		return nil, "", withHint(t.rowError(0, colDetail, "the result was made by a query of format %d; this probity reads format %d", d.Format, QueryFormat),
-			"print the query again with this probity's draw --sql and run it")
+		return nil, "", t.rowError(0, colDetail, "the result was made by a query of format %d; this probity reads format %d", d.Format, QueryFormat).WithHint("print the query again with this probity and run it")
 	}
 	if d.PlanFingerprint != fingerprint {
-		return nil, "", withHint(t.rowError(0, colDetail, "the result was made for another plan (fingerprint %s), not this one (%s)", short(d.PlanFingerprint), short(fingerprint)),
-			"import it with the plan the query was printed from, or print and run the query for this plan")
+		return nil, "", t.rowError(0, colDetail, "the result was made for another plan (fingerprint %s), not this one (%s)", short(d.PlanFingerprint), short(fingerprint)).WithHint("import it with the plan the query was printed from, or print and run the query for this plan")
 	}
 	if d.Seed != p.Seed {
-		return nil, "", withHint(t.rowError(0, colDetail, "the result was made with seed %q, but the plan's seed is %q", d.Seed, p.Seed),
-			"print and run the query for this plan")
+		return nil, "", t.rowError(0, colDetail, "the result was made with seed %q, but the plan's seed is %q", d.Seed, p.Seed).WithHint("print and run the query for this plan")
 	}
 	want := p.Seed
 	if d.Period != "" {
@@ -178,7 +175,7 @@ func checkDrawRow(t *resultTable, p *plan.File, fingerprint string) (*Spec, stri
 	s := d.Spec
 	s.Candidates = p.Candidates
 	if got := s.valueColumns(); !slices.Equal(got, d.Values) {
-		return nil, "", t.rowError(0, colDetail, "the value columns %q are not those the plan's candidates and --show need (%q)", d.Values, got)
+		return nil, "", t.rowError(0, colDetail, "the value columns %q are not those the plan's candidates and the shown columns need (%q)", d.Values, got)
 	}
 	return &s, d.CountsSHA256, nil
 }
@@ -214,24 +211,22 @@ func checkIDRows(t *resultTable, d Dialect) (int64, error) {
 	}
 	for _, k := range required {
 		if _, ok := counts[k]; !ok {
-			return 0, &sampling.InputError{File: t.name, Msg: "the " + k + " row is missing", Hint: "save the whole result of the query"}
+			return 0, &inputerr.Error{File: t.name, Msg: "the " + k + " row is missing", Hint: "save the whole result of the query"}
 		}
 	}
 	if n := counts[KindEmptyIDs]; n > 0 {
-		return 0, withHint(&sampling.InputError{File: t.name, Column: "record_id", Msg: fmt.Sprintf("the table has %d %s whose id is NULL or empty", n, plural(n, "row", "rows"))},
-			"every row needs an id; fill them in or leave those rows out of the table or view")
+		return 0, (&inputerr.Error{File: t.name, Field: "record_id", Msg: fmt.Sprintf("the table has %d %s whose id is NULL or empty", n, plural(n, "row", "rows"))}).WithHint("every row needs an id; fill them in or leave those rows out of the table or view")
 	}
 	if n := counts[KindDuplicateIDs]; n > 0 || len(dupExamples) > 0 {
 		line := 0
 		if len(dupLines) > 0 {
 			line = dupLines[0]
 		}
-		return 0, withHint(&sampling.InputError{File: t.name, Line: line, Column: "record_id", Msg: fmt.Sprintf("%d %s more than once in the table, e.g. %s", n, plural(n, "id occurs", "ids occur"), joinList(dupExamples))},
-			"ids must be unique; a draw inside the engine cannot keep a first copy (draw from an export with --dedupe first)")
+		return 0, (&inputerr.Error{File: t.name, Line: line, Field: "record_id", Msg: fmt.Sprintf("%d %s more than once in the table, e.g. %s", n, plural(n, "id occurs", "ids occur"), joinList(dupExamples))}).WithHint("ids must be unique; a draw inside the engine cannot keep a first copy (draw from an export of the table, keeping the first row of each id)")
 	}
 	if n := counts[KindRepeatedRows]; n > 0 {
-		return 0, withHint(&sampling.InputError{File: t.name, Column: "record_id", Msg: fmt.Sprintf("%d %s in scope %s the id of another row", n, plural(n, "row", "rows"), plural(n, "repeats", "repeat"))},
-			"ids must be unique; list the repeated ones with SELECT id, count() FROM table GROUP BY id HAVING count() > 1, or draw from an export with --dedupe first")
+		return 0, (&inputerr.Error{File: t.name, Field: "record_id", Msg: fmt.Sprintf("%d %s in scope %s the id of another row", n, plural(n, "row", "rows"), plural(n, "repeats", "repeat"))}).
+			WithHint("ids must be unique; list the repeated ones with SELECT id, count() FROM table GROUP BY id HAVING count() > 1, or draw from an export of the table, keeping the first row of each id")
 	}
 	return counts[KindInScope], nil
 }
@@ -246,14 +241,14 @@ func badValueError(t *resultTable, i int) error {
 	if n == "1" {
 		rows = "row in scope has"
 	}
-	e := &sampling.InputError{File: t.name, Line: t.lines[i], Column: "detail"}
+	e := &inputerr.Error{File: t.name, Line: t.lines[i], Field: "detail"}
 	switch what {
 	case "strata":
 		e.Msg = fmt.Sprintf("column %s: %s %s a value holding a |, which separates stratum values in labels (first id %q)", col, n, rows, row[colRecordID])
 		e.Hint = "stratify by a column whose values hold no |"
 	case "band":
 		e.Msg = fmt.Sprintf("band column %s: %s %s a value that is not a number in [0, 1] (first id %q; NULL reads as %s)", col, n, rows, row[colRecordID], NullText)
-		e.Hint = "a band splits a score in [0, 1]; leave the other rows out with --where or a view"
+		e.Hint = "a band splits a score in [0, 1]; leave the other rows out with a filter or a view"
 	default:
 		e.Msg = fmt.Sprintf("unknown problem %q", row[colDetail])
 	}
@@ -266,12 +261,6 @@ func plural(n int64, one, many string) string {
 		return one
 	}
 	return many
-}
-
-// withHint sets an error's hint.
-func withHint(e *sampling.InputError, hint string) *sampling.InputError {
-	e.Hint = hint
-	return e
 }
 
 // short abbreviates a fingerprint for a message.

@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -111,7 +112,7 @@ func TestImportRefusesBadTables(t *testing.T) {
 			path := filepath.Join(dir, "result-"+strconv.Itoa(i)+".csv")
 			runQuery(t, pg, &s, path)
 			_, err := Import(path, nil, &pl, "fp")
-			var ie *sampling.InputError
+			var ie *inputerr.Error
 			if !errors.As(err, &ie) || !strings.Contains(err.Error(), c.want) {
 				t.Fatalf("Import: %v\nwant an InputError containing %q", err, c.want)
 			}
@@ -137,9 +138,9 @@ func TestQueryRefusesBadSpecs(t *testing.T) {
 	}{
 		{func(s *Spec) { s.Candidates = nil }, "a sizing-only plan cannot be drawn"},
 		{func(s *Spec) { s.Allocation = "neyman" }, "neyman allocation cannot run inside the engine"},
-		{func(s *Spec) { s.Show = []string{"score"} }, "--show score: the column holds candidate t's prediction or score"},
-		{func(s *Spec) { s.Show = []string{"id"} }, "--show id: the column is the id column"},
-		{func(s *Spec) { s.Double = 6 }, "--double 6 is outside 0…5"},
+		{func(s *Spec) { s.Show = []string{"score"} }, "show score: the column holds candidate t's prediction or score"},
+		{func(s *Spec) { s.Show = []string{"id"} }, "show id: the column is the id column"},
+		{func(s *Spec) { s.Double = 6 }, "double 6: must be between 0 and the sample size 5"},
 		{func(s *Spec) { s.Table = `"unclosed` }, "unclosed double quote"},
 		{func(s *Spec) { s.Strata = []string{"a\x00b"} }, "contains a NUL byte"},
 		{func(s *Spec) { s.Seed = "s\x00"; s.SelectionSeed = s.Seed }, "contains a NUL byte"},

@@ -42,7 +42,7 @@ func ResultHeader(values int) []string {
 // function of s.
 func Query(s *Spec) (string, error) {
 	if s.Dialect.TwoStep() {
-		return "", fmt.Errorf("%w: %s draws in two steps, a counts query and a selection query", ErrSpec, s.Dialect)
+		return "", specError("dialect", "%s draws in two steps, a counts query and a selection query", s.Dialect)
 	}
 	q, err := newQuoter(s)
 	if err != nil {
@@ -55,11 +55,11 @@ func Query(s *Spec) (string, error) {
 	}
 	detailLit, err := d.QuoteLiteral(string(detail))
 	if err != nil {
-		return "", fmt.Errorf("%w: %v", ErrSpec, err)
+		return "", specError("", "%w", err)
 	}
 	seedLit, err := d.QuoteLiteral(s.SelectionSeed + ":")
 	if err != nil {
-		return "", fmt.Errorf("%w: seed: %v", ErrSpec, err)
+		return "", specError("selection_seed", "%w", err)
 	}
 	label, err := q.labelExpr()
 	if err != nil {
@@ -210,7 +210,7 @@ func (q *quoter) rawColumns() []string {
 // newQuoter validates s and quotes every name it uses.
 func newQuoter(s *Spec) (*quoter, error) {
 	if _, err := ParseDialect(string(s.Dialect)); err != nil {
-		return nil, fmt.Errorf("%w: %v", ErrSpec, err)
+		return nil, specError("dialect", "%w", err)
 	}
 	if err := s.validate(); err != nil {
 		return nil, err
@@ -218,22 +218,22 @@ func newQuoter(s *Spec) (*quoter, error) {
 	q := &quoter{s: s, cols: map[string]string{}}
 	var err error
 	if q.table, err = s.Dialect.QuoteTable(s.Table); err != nil {
-		return nil, fmt.Errorf("%w: --table: %v", ErrSpec, err)
+		return nil, specError("table", "%s: %w", s.Table, err)
 	}
 	if q.id, err = s.Dialect.QuoteIdent(s.IDColumn); err != nil {
-		return nil, fmt.Errorf("%w: --id: %v", ErrSpec, err)
+		return nil, specError("id_column", "%s: %w", s.IDColumn, err)
 	}
 	for _, t := range s.Bands {
 		b, err := sampling.ParseBand(t)
 		if err != nil {
-			return nil, fmt.Errorf("%w: --band: %v", ErrSpec, err)
+			return nil, specError("bands", "%w", err)
 		}
 		q.bands = append(q.bands, b)
 	}
 	for _, t := range s.Where {
 		f, err := sampling.ParseFilter(t)
 		if err != nil {
-			return nil, fmt.Errorf("%w: --where: %v", ErrSpec, err)
+			return nil, specError("where", "%w", err)
 		}
 		q.filters = append(q.filters, f)
 	}
@@ -252,7 +252,7 @@ func newQuoter(s *Spec) (*quoter, error) {
 	for _, n := range names {
 		qn, err := s.Dialect.QuoteIdent(n)
 		if err != nil {
-			return nil, fmt.Errorf("%w: column: %v", ErrSpec, err)
+			return nil, specError("", "column: %w", err)
 		}
 		q.cols[n] = qn
 	}

@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -41,12 +42,12 @@ const (
 // are accepted).
 func readResult(path string, data []byte) (*resultTable, error) {
 	if len(bytes.TrimSpace(bytes.TrimPrefix(data, []byte("\xef\xbb\xbf")))) == 0 {
-		return nil, &sampling.InputError{File: path, Msg: "the file is empty",
+		return nil, &inputerr.Error{File: path, Msg: "the file is empty",
 			Hint: "save the query's result with its header, e.g. psql --csv -f draw.sql > result.csv"}
 	}
 	ct, err := sampling.ParseCSVTable(data, path)
 	if err != nil {
-		var ie *sampling.InputError
+		var ie *inputerr.Error
 		if errors.As(err, &ie) && ie.Line > 0 && ie.Err != nil {
 			c := *ie
 			c.Msg = "not a CSV result: " + c.Msg
@@ -57,16 +58,16 @@ func readResult(path string, data []byte) (*resultTable, error) {
 	t := &resultTable{name: path, header: ct.Header, rows: ct.Rows, lines: ct.Lines}
 	want := ResultHeader(len(t.header) - fixedColumns)
 	if len(t.header) < fixedColumns || strings.Join(t.header, ",") != strings.Join(want, ",") {
-		return nil, &sampling.InputError{File: path, Line: 1,
+		return nil, &inputerr.Error{File: path, Line: 1,
 			Msg:  fmt.Sprintf("the header is not that of a probity draw query (expected %s)", strings.Join(ResultHeader(0), ",")+",value_1,…"),
-			Hint: "save the result of the query printed by probity draw --sql, with its header"}
+			Hint: "save the result of the drawing query probity printed, with its header"}
 	}
 	return t, nil
 }
 
 // rowError is an error about one field of one result row.
-func (t *resultTable) rowError(i, col int, format string, args ...any) *sampling.InputError {
-	return &sampling.InputError{File: t.name, Line: t.lines[i], Column: t.header[col], Msg: fmt.Sprintf(format, args...)}
+func (t *resultTable) rowError(i, col int, format string, args ...any) *inputerr.Error {
+	return &inputerr.Error{File: t.name, Line: t.lines[i], Field: t.header[col], Msg: fmt.Sprintf(format, args...)}
 }
 
 // int64At parses an integer field (≥ 0).
@@ -84,5 +85,6 @@ func readFile(path string, stdin io.Reader) ([]byte, error) {
 	if path == "-" {
 		return io.ReadAll(stdin)
 	}
-	return os.ReadFile(path)
+	data, err := os.ReadFile(path)
+	return data, inputerr.FromPath(err)
 }

@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -143,7 +144,7 @@ func FuzzImport(f *testing.F) {
 			return
 		}
 		if _, err := res.Folder("test"); err != nil {
-			var ie *sampling.InputError
+			var ie *inputerr.Error
 			if !asInputError(err, &ie) {
 				t.Fatalf("accepted result gave a non-input error: %v", err)
 			}
@@ -173,7 +174,7 @@ func FuzzParseTableName(f *testing.F) {
 	})
 }
 
-func asInputError(err error, target **sampling.InputError) bool {
+func asInputError(err error, target **inputerr.Error) bool {
 	return errors.As(err, target)
 }
 

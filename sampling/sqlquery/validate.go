@@ -1,26 +1,41 @@
 package sqlquery
 
 import (
+	"errors"
 	"fmt"
 	"slices"
 
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
+
+// specError is the input error about a Spec that cannot be turned into a
+// query: field is the Spec's JSON key at fault ("" when the message says
+// what it is about), the message begins with the value when there is one,
+// and the cause is ErrSpec (and what a %w verb wrapped).
+func specError(field, format string, args ...any) *inputerr.Error {
+	e := inputerr.Errorf(format, args...)
+	e.Field, e.Err = field, errors.Join(ErrSpec, e.Err)
+	return e
+}
 
 // validate checks what the draw from a file checks before reading a log,
 // so that a query is never printed for a draw the file draw would refuse.
 func (s *Spec) validate() error {
 	if len(s.Candidates) == 0 {
-		return fmt.Errorf("%w: %w: it declares no candidates (models or thresholds) to judge", ErrSpec, sampling.ErrNotDrawable)
+		return specError("", "%w: it declares no candidates (models or thresholds) to judge", sampling.ErrNotDrawable)
 	}
 	if s.SampleSize < 1 {
-		return fmt.Errorf("%w: sample size %d is below 1", ErrSpec, s.SampleSize)
+		return specError("sample_size", "%d is below 1", s.SampleSize)
 	}
 	if s.Double < 0 || s.Double > s.SampleSize {
-		return fmt.Errorf("%w: --double %d is outside 0…%d, the sample size", ErrSpec, s.Double, s.SampleSize)
+		return specError("double", "%d: must be between 0 and the sample size %d", s.Double, s.SampleSize)
 	}
-	if s.MinPerStratum < 0 || s.Spare < 0 {
-		return fmt.Errorf("%w: --min-per-stratum and --spare cannot be negative", ErrSpec)
+	if s.MinPerStratum < 0 {
+		return specError("min_per_stratum", "%d is negative", s.MinPerStratum)
+	}
+	if s.Spare < 0 {
+		return specError("spare", "%d is negative", s.Spare)
 	}
 	switch s.Allocation {
 	case ruleProportional, ruleEqual:
@@ -28,21 +43,21 @@ func (s *Spec) validate() error {
 		if s.Dialect.TwoStep() {
 			// The allocation runs in Go between the two queries, but the
 			// draw description carries no anticipated errors yet.
-			return fmt.Errorf("%w: neyman allocation is not available for a %s draw; use proportional or equal, or draw from an export with --log", ErrSpec, s.Dialect)
+			return specError("", "neyman allocation is not available for a %s draw; use proportional or equal, or draw from an export of the table", s.Dialect)
 		}
-		return fmt.Errorf("%w: neyman allocation cannot run inside the engine: its weights N_h·√(p_h(1−p_h)) are divided in exact rational arithmetic that SQL cannot reproduce bit for bit; use proportional or equal, or draw from an export with --log", ErrSpec)
+		return specError("", "neyman allocation cannot run inside the engine: its weights N_h·√(p_h(1−p_h)) are divided in exact rational arithmetic that SQL cannot reproduce bit for bit; use proportional or equal, or draw from an export of the table")
 	default:
-		return fmt.Errorf("%w: unknown allocation rule %q (proportional or equal inside the engine)", ErrSpec, s.Allocation)
+		return specError("", "unknown allocation rule %q (proportional or equal inside the engine)", s.Allocation)
 	}
 	want := s.Seed
 	if s.Period != "" {
 		want = sampling.PeriodSeed(s.Seed, s.Period)
 	}
 	if s.SelectionSeed != want {
-		return fmt.Errorf("%w: the selection seed does not follow from the seed and period", ErrSpec)
+		return specError("", "the selection seed does not follow from the seed and period")
 	}
 	if s.IDColumn == "" {
-		return fmt.Errorf("%w: the id column is empty", ErrSpec)
+		return specError("id_column", "is empty")
 	}
 	return s.checkShow()
 }
@@ -72,7 +87,7 @@ func (s *Spec) checkShow() error {
 			}
 		}
 		if why != "" {
-			return fmt.Errorf("%w: --show %s: the column %s", ErrSpec, c, why)
+			return specError("show", "%s: the column %s", c, why)
 		}
 		seen[c] = true
 	}

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -40,24 +41,24 @@ func stratumCounts(t *resultTable) (counts []sampling.StratumCount, rows []int, 
 // allocates the sample among them as the draw from a file does.
 func allocateCounts(t *resultTable, s *Spec, counts []sampling.StratumCount, inScope, tableRows int64) ([]sampling.StratumAllocation, error) {
 	if len(counts) == 0 {
-		return nil, &sampling.InputError{File: t.name, Msg: "the table " + s.Table + " has no rows in scope", Hint: "check the table name and the --where filter"}
+		return nil, &inputerr.Error{File: t.name, Msg: "the table " + s.Table + " has no rows in scope", Hint: "check the table name and the filter"}
 	}
 	var total int64
 	for _, c := range counts {
 		total += c.Population
 	}
 	if total != inScope {
-		return nil, &sampling.InputError{File: t.name, Column: "stratum_size", Msg: fmt.Sprintf("%d rows are in scope but the strata add up to %d", inScope, total)}
+		return nil, &inputerr.Error{File: t.name, Field: "stratum_size", Msg: fmt.Sprintf("%d rows are in scope but the strata add up to %d", inScope, total)}
 	}
 	if inScope > tableRows {
 		return nil, t.rowError(0, colStratumSize, "the table has %d rows but %d are in scope", tableRows, inScope)
 	}
 	alloc, err := sampling.Allocate(counts, s.SampleSize, sampling.AllocOptions{Rule: s.Allocation, MinPerStratum: s.MinPerStratum, Spare: s.Spare})
 	if err != nil {
-		e := &sampling.InputError{File: t.name, Msg: err.Error(), Err: err}
+		e := &inputerr.Error{File: t.name, Msg: err.Error(), Err: err}
 		if errors.Is(err, sampling.ErrSampleTooLarge) {
 			e.Msg = fmt.Sprintf("the plan needs a sample of %d but only %d rows are in scope", s.SampleSize, inScope)
-			e.Hint = "check the table and the --where filters"
+			e.Hint = "check the table and the filters"
 		}
 		return nil, e
 	}
@@ -150,8 +151,7 @@ func (res *Result) checkItems(t *resultTable) error {
 			return t.rowError(i, colStratum, "record %q is in stratum %q, which has no stratum row", id, label)
 		}
 		if want := sampling.Key(res.Spec.SelectionSeed, id); key != want {
-			return withHint(t.rowError(i, colKey, "the key of record %q is not SHA-256(\"<selection seed>:%s\") (expected %s)", id, id, want),
-				"the result was edited, or made by another query; run the printed query again")
+			return t.rowError(i, colKey, "the key of record %q is not SHA-256(\"<selection seed>:%s\") (expected %s)", id, id, want).WithHint("the result was edited, or made by another query; run the printed query again")
 		}
 		for _, f := range []struct {
 			col  int
@@ -190,7 +190,7 @@ func (res *Result) checkItems(t *resultTable) error {
 	}
 	for _, a := range res.Strata {
 		if got := len(res.Items[a.Label]); got != a.Sample+a.Spare {
-			return &sampling.InputError{File: t.name, Column: "stratum", Msg: fmt.Sprintf("stratum %q has %d rows in the result, but its %d items and %d spares need %d", a.Label, got, a.Sample, a.Spare, a.Sample+a.Spare),
+			return &inputerr.Error{File: t.name, Field: "stratum", Msg: fmt.Sprintf("stratum %q has %d rows in the result, but its %d items and %d spares need %d", a.Label, got, a.Sample, a.Spare, a.Sample+a.Spare),
 				Hint: "save the whole result of the query"}
 		}
 	}

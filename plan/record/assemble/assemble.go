@@ -16,6 +16,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/intake"
 	"probity/plan/verdict"
@@ -33,9 +34,9 @@ type Input struct {
 	Labels *intake.Labels
 	// AllowIncomplete counts unlabeled and unsure items as errors.
 	AllowIncomplete bool
-	// Bound is the bound for unequal weights: verdict.KornGraubard ("")
-	// or verdict.WeightedHoeffding.
-	Bound string
+	// Bound is the bound for unequal weights (verdict.KornGraubard unless
+	// set).
+	Bound verdict.UnequalBound
 	// Use is the declared use (templates.Uses()).
 	Use string
 	// Date is the record's date, YYYY-MM-DD.
@@ -61,17 +62,17 @@ type Input struct {
 var ErrInput = errors.New("invalid record input")
 
 // Assemble checks the inputs and builds the record. Errors from the intake
-// checks are *sampling.InputError values naming the file and line.
+// checks are *inputerr.Error values naming the file and line.
 func Assemble(in Input) (*record.Record, error) {
 	if err := checkUse(in.Use); err != nil {
 		return nil, err
 	}
 	if _, err := time.Parse("2006-01-02", in.Date); err != nil {
-		return nil, fmt.Errorf("%w: date %q is not a date in the form YYYY-MM-DD", ErrInput, in.Date)
+		return nil, inputerr.Errorf("%w: date %q is not a date in the form YYYY-MM-DD", ErrInput, in.Date)
 	}
 	p := in.Plan
 	if p.IsSizingOnly() {
-		return nil, fmt.Errorf("%w: the plan declares no candidates, so there is nothing to judge", ErrInput)
+		return nil, inputerr.Errorf("%w: the plan declares no candidates, so there is nothing to judge", ErrInput)
 	}
 	seq := p.Sequential != nil
 	checked, err := intake.Check(p, in.PlanFP, in.Folder, in.Labels, intake.Options{AllowIncomplete: in.AllowIncomplete, Prefix: seq})
@@ -100,7 +101,7 @@ func Assemble(in Input) (*record.Record, error) {
 	rec.OverallVerdict = res.Overall
 	rec.Method = res.Method
 	rec.Method.Assumptions = append(rec.Method.Assumptions, res.Notes...)
-	if res.SelfWeighting && !strings.Contains(rec.Method.Bound, "korn") && !strings.Contains(rec.Method.Bound, "weighted") {
+	if res.SelfWeighting && !rec.Method.Bound.Weighted() {
 		if s := checked.Design.MaxWeightSpread(); s > 1e-12 {
 			rec.Method.Assumptions = append(rec.Method.Assumptions, fmt.Sprintf(
 				"The strata's inclusion weights N_h/n_h differ by at most %s %% through the rounding of the proportional allocation; the sample is judged as a simple random sample.",
@@ -117,7 +118,7 @@ func Assemble(in Input) (*record.Record, error) {
 	}
 	if seq {
 		if rec.OC, err = verdict.SequentialOC(p, OCPoints, ocTop(p)); err != nil {
-			return nil, fmt.Errorf("%w: %v", ErrInput, err)
+			return nil, inputerr.Errorf("%w: %v", ErrInput, err)
 		}
 	} else {
 		for _, pt := range p.OC(OCPoints) {
@@ -137,11 +138,11 @@ func checkUse(use string) error {
 			return nil
 		}
 	}
-	return fmt.Errorf("%w: use %q is not one of %s", ErrInput, use, strings.Join(templates.Uses(), ", "))
+	return inputerr.Errorf("%w: use %q is not one of %s", ErrInput, use, strings.Join(templates.Uses(), ", "))
 }
 
 // judge runs the verdict package on the checked items.
-func judge(p *plan.File, c *intake.Result, bound string) (*verdict.Result, error) {
+func judge(p *plan.File, c *intake.Result, bound verdict.UnequalBound) (*verdict.Result, error) {
 	in := verdict.Input{Plan: p, Design: c.Design, Items: c.Items, UnequalBound: bound}
 	if p.Sequential != nil {
 		return verdict.JudgeSequential(in)
@@ -161,7 +162,7 @@ func planInfo(p *plan.File, fp string, f *intake.Folder) record.PlanInfo {
 	return record.PlanInfo{
 		Fingerprint: fp, Method: in.Method, Model: p.Rule.Model, Design: in.Design,
 		Multiplicity: in.Multiplicity, Require: in.Require, Ceiling: in.Ceiling, Confidence: in.Confidence,
-		Candidates: in.Candidates, Anticipated: in.Anticipated, Population: in.Population,
+		CandidateCount: in.CandidateCount, Anticipated: in.Anticipated, Population: in.Population,
 		SampleSize: p.Rule.SampleSize, AcceptanceNumber: p.Rule.AcceptanceNumber,
 		PerCandidateRisk: p.Rule.PerCandidateRisk, ConsumerRisk: p.Rule.ConsumerRisk, ProducerRisk: p.Rule.ProducerRisk,
 		Seed: p.Seed, SelectionSeed: f.Manifest.SelectionSeed,

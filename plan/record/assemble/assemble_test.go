@@ -13,7 +13,7 @@ import (
 // The whole of Assemble runs in the record and verify command tests on
 // draws made with the sampling package; these cover what it checks first.
 func TestAssembleRefusesBadInputsFirst(t *testing.T) {
-	p := &plan.File{Inputs: plan.Inputs{Ceiling: 0.1, Confidence: 0.9, Candidates: 1}}
+	p := &plan.File{Inputs: plan.Inputs{Ceiling: 0.1, Confidence: 0.9, CandidateCount: 1}}
 	cases := []struct {
 		in   Input
 		want string

@@ -1,12 +1,14 @@
 package intake
 
 import (
+	"errors"
 	"fmt"
 	"path/filepath"
 	"sort"
 	"strings"
 
 	"probity/plan"
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/verdict"
 	"probity/sampling"
@@ -14,6 +16,12 @@ import (
 
 // Unsure is the label a labeler gives when they cannot decide.
 const Unsure = "unsure"
+
+// ErrIncomplete is the cause of the refusal of a worksheet whose items are
+// left unlabeled or unsure without a spare to replace them, when
+// Options.AllowIncomplete is not set; a caller can name its own way of
+// setting it in the hint.
+var ErrIncomplete = errors.New("labeling is incomplete")
 
 // Options change how incomplete labeling is treated.
 type Options struct {
@@ -87,7 +95,7 @@ func Check(p *plan.File, planFP string, f *Folder, l *Labels, opts Options) (*Re
 // checkPlan checks the manifest's plan_fingerprint.
 func checkPlan(m *sampling.Manifest, mpath, planFP string) error {
 	if m.PlanFingerprint != planFP {
-		return &sampling.InputError{File: mpath, Column: "plan_fingerprint",
+		return &inputerr.Error{File: mpath, Field: "plan_fingerprint",
 			Msg:  fmt.Sprintf("the draw was made from the plan with SHA-256 %s…, not from this plan (%s…)", short(m.PlanFingerprint), short(planFP)),
 			Hint: "pass the plan file the draw was made with"}
 	}
@@ -108,16 +116,16 @@ func designFromManifest(m *sampling.Manifest, mpath string) ([]verdict.Stratum, 
 	var strata []verdict.Stratum
 	for i, s := range m.Strata {
 		if _, dup := index[s.Label]; dup {
-			return nil, nil, &sampling.InputError{File: mpath, Column: fmt.Sprintf("strata[%d].label", i), Msg: fmt.Sprintf("stratum %q is listed twice", s.Label)}
+			return nil, nil, &inputerr.Error{File: mpath, Field: fmt.Sprintf("strata[%d].label", i), Msg: fmt.Sprintf("stratum %q is listed twice", s.Label)}
 		}
 		if s.Population < 1 || s.Sample < 0 || int64(s.Sample) > s.Population {
-			return nil, nil, &sampling.InputError{File: mpath, Column: fmt.Sprintf("strata[%d]", i), Msg: fmt.Sprintf("stratum %q has population %d and sample %d", s.Label, s.Population, s.Sample)}
+			return nil, nil, &inputerr.Error{File: mpath, Field: fmt.Sprintf("strata[%d]", i), Msg: fmt.Sprintf("stratum %q has population %d and sample %d", s.Label, s.Population, s.Sample)}
 		}
 		index[s.Label] = i
 		strata = append(strata, verdict.Stratum{Label: s.Label, Population: s.Population})
 	}
 	if len(strata) == 0 {
-		return nil, nil, &sampling.InputError{File: mpath, Column: "strata", Msg: "the manifest lists no strata"}
+		return nil, nil, &inputerr.Error{File: mpath, Field: "strata", Msg: "the manifest lists no strata"}
 	}
 	return strata, index, nil
 }
@@ -130,11 +138,11 @@ func checkLedger(rows []sampling.LedgerRow, m *sampling.Manifest, index map[stri
 	for _, r := range rows {
 		h, ok := index[r.Stratum]
 		if !ok {
-			return &sampling.InputError{File: lpath, Column: "stratum", Msg: fmt.Sprintf("item %d: stratum %q is not in the manifest", r.Item, r.Stratum)}
+			return &inputerr.Error{File: lpath, Field: "stratum", Msg: fmt.Sprintf("item %d: stratum %q is not in the manifest", r.Item, r.Stratum)}
 		}
 		s := m.Strata[h]
 		if r.StratumSize != s.Population || r.StratumSample != s.Sample {
-			return &sampling.InputError{File: lpath, Column: "stratum_size", Msg: fmt.Sprintf("item %d: stratum %q has N_h = %d, n_h = %d where the manifest has %d, %d", r.Item, r.Stratum, r.StratumSize, r.StratumSample, s.Population, s.Sample)}
+			return &inputerr.Error{File: lpath, Field: "stratum_size", Msg: fmt.Sprintf("item %d: stratum %q has N_h = %d, n_h = %d where the manifest has %d, %d", r.Item, r.Stratum, r.StratumSize, r.StratumSample, s.Population, s.Sample)}
 		}
 		if !r.Spare {
 			counts[h]++
@@ -142,7 +150,7 @@ func checkLedger(rows []sampling.LedgerRow, m *sampling.Manifest, index map[stri
 	}
 	for h, s := range m.Strata {
 		if counts[h] != s.Sample {
-			return &sampling.InputError{File: lpath, Msg: fmt.Sprintf("stratum %q has %d sample rows where the manifest has n_h = %d", s.Label, counts[h], s.Sample)}
+			return &inputerr.Error{File: lpath, Msg: fmt.Sprintf("stratum %q has %d sample rows where the manifest has n_h = %d", s.Label, counts[h], s.Sample)}
 		}
 	}
 	return nil
@@ -154,7 +162,7 @@ func checkLedger(rows []sampling.LedgerRow, m *sampling.Manifest, index map[stri
 func compareRows(f *Folder, l *Labels) error {
 	wshow, lshow := showColumns(f.WorksheetHeader), showColumns(l.Header)
 	if strings.Join(wshow, "\x00") != strings.Join(lshow, "\x00") {
-		return &sampling.InputError{File: l.Path, Line: 1,
+		return &inputerr.Error{File: l.Path, Line: 1,
 			Msg:  fmt.Sprintf("the shown columns are %s, but the draw's worksheet has %s", list(lshow), list(wshow)),
 			Hint: "label a copy of the worksheet.csv written by probity draw without adding, removing or renaming columns"}
 	}
@@ -189,7 +197,7 @@ func compareRows(f *Folder, l *Labels) error {
 	}
 	if len(added)+len(missing)+len(altered) == 0 {
 		if len(f.Worksheet) != len(f.Ledger) {
-			return &sampling.InputError{File: filepath.Join(f.Dir, sampling.WorksheetFile), Msg: fmt.Sprintf("%d rows where the ledger has %d", len(f.Worksheet), len(f.Ledger))}
+			return &inputerr.Error{File: filepath.Join(f.Dir, sampling.WorksheetFile), Msg: fmt.Sprintf("%d rows where the ledger has %d", len(f.Worksheet), len(f.Ledger))}
 		}
 		return nil
 	}
@@ -203,7 +211,7 @@ func compareRows(f *Folder, l *Labels) error {
 	if len(altered) > 0 {
 		parts = append(parts, fmt.Sprintf("%d altered: %s", len(altered), first(altered)))
 	}
-	return &sampling.InputError{File: l.Path,
+	return &inputerr.Error{File: l.Path,
 		Msg:  "rows differ from the ledger — " + strings.Join(parts, "; "),
 		Hint: "label every row of the draw's worksheet.csv in place, without adding, removing, sorting or editing rows"}
 }
@@ -262,7 +270,7 @@ func (res *Result) judgeable(p *plan.File, f *Folder, l *Labels, strata []verdic
 		case strings.EqualFold(lab, Unsure):
 			st = unsure
 		case !classes[lab]:
-			return &sampling.InputError{File: l.Path, Line: wr.Line, Column: "label",
+			return &inputerr.Error{File: l.Path, Line: wr.Line, Field: "label",
 				Msg:  fmt.Sprintf("label %q (item %d) is not one of the plan's classes (%s), blank or %q", wr.Label, wr.Item, strings.Join(p.Classes, ", "), Unsure),
 				Hint: fmt.Sprintf("use exactly one of: %s; leave the label blank or write %q when the item cannot be labeled", strings.Join(p.Classes, ", "), Unsure)}
 		}
@@ -312,12 +320,12 @@ func (res *Result) judgeable(p *plan.File, f *Folder, l *Labels, strata []verdic
 			}
 			if firstBlank >= 0 {
 				prev := rows[firstBlank]
-				return &sampling.InputError{File: l.Path, Line: r.wr.Line, Column: "label",
+				return &inputerr.Error{File: l.Path, Line: r.wr.Line, Field: "label",
 					Msg:  fmt.Sprintf("spare item %d of stratum %q is labeled, but the spare before it (item %d) is not: spares must be used in order", r.wr.Item, strata[h].Label, prev.wr.Item),
 					Hint: fmt.Sprintf("label spare item %d first, or clear the label of item %d", prev.wr.Item, r.wr.Item)}
 			}
 			if need == 0 {
-				return &sampling.InputError{File: l.Path, Line: r.wr.Line, Column: "label",
+				return &inputerr.Error{File: l.Path, Line: r.wr.Line, Field: "label",
 					Msg:  fmt.Sprintf("spare item %d of stratum %q is labeled, but no unlabeled or unsure item of that stratum is left for it to replace", r.wr.Item, strata[h].Label),
 					Hint: "spares only replace items that cannot be labeled; clear the spare's label"}
 			}
@@ -339,13 +347,13 @@ func (res *Result) judgeable(p *plan.File, f *Folder, l *Labels, strata []verdic
 		}
 	}
 	if len(unresolved) > 0 && !opts.AllowIncomplete {
-		return &sampling.InputError{File: l.Path, Column: "label",
+		return &inputerr.Error{File: l.Path, Field: "label", Err: ErrIncomplete,
 			Msg:  fmt.Sprintf("%s unlabeled or unsure and no spare replaces %s (%s %s)", itemsAre(len(unresolved)), pron(len(unresolved)), itemWord(len(unresolved)), first(unresolved)),
-			Hint: "label them, label the stratum's spares in order, or pass --allow-incomplete to count each as an error for every candidate"}
+			Hint: "label them, or label the stratum's spares in order"}
 	}
 	if res.Counted > 0 {
 		dev.AllowIncomplete = true
-		dev.Notes = append(dev.Notes, fmt.Sprintf("%d unlabeled or unsure items were counted as errors for every candidate (--allow-incomplete)", res.Counted))
+		dev.Notes = append(dev.Notes, fmt.Sprintf("%d unlabeled or unsure items were counted as errors for every candidate (incomplete labeling allowed)", res.Counted))
 	}
 	// Judge the items in ledger order (the order they were drawn in).
 	perm := make([]int, len(res.Items))
@@ -366,7 +374,7 @@ func (res *Result) judgeable(p *plan.File, f *Folder, l *Labels, strata []verdic
 	}
 	for h, s := range strata {
 		if s.Sample != f.Manifest.Strata[h].Sample {
-			return &sampling.InputError{File: l.Path, Msg: fmt.Sprintf("stratum %q has %d judged items where the draw has n_h = %d", s.Label, s.Sample, f.Manifest.Strata[h].Sample)}
+			return &inputerr.Error{File: l.Path, Msg: fmt.Sprintf("stratum %q has %d judged items where the draw has n_h = %d", s.Label, s.Sample, f.Manifest.Strata[h].Sample)}
 		}
 	}
 	return nil
@@ -393,7 +401,7 @@ func (res *Result) prefix(p *plan.File, f *Folder, l *Labels, strata []verdict.S
 		lab := strings.TrimSpace(wr.Label)
 		if lr.Spare {
 			if lab != "" {
-				return &sampling.InputError{File: l.Path, Line: wr.Line, Column: "label",
+				return &inputerr.Error{File: l.Path, Line: wr.Line, Field: "label",
 					Msg:  fmt.Sprintf("spare item %d is labeled, but a sequential plan uses no spares", wr.Item),
 					Hint: "label the sample items from the top and leave the spares blank; mark an item that cannot be labeled unsure"}
 			}
@@ -406,7 +414,7 @@ func (res *Result) prefix(p *plan.File, f *Folder, l *Labels, strata []verdict.S
 			}
 			continue
 		case firstBlank != 0:
-			return &sampling.InputError{File: l.Path, Line: wr.Line, Column: "label",
+			return &inputerr.Error{File: l.Path, Line: wr.Line, Field: "label",
 				Msg:  fmt.Sprintf("item %d is labeled after the unlabeled item %d: a sequential plan is labeled from the top without gaps", wr.Item, firstBlank),
 				Hint: fmt.Sprintf("label item %d (and any other gap) or clear the labels after it", firstBlank)}
 		case strings.EqualFold(lab, Unsure):
@@ -418,23 +426,23 @@ func (res *Result) prefix(p *plan.File, f *Folder, l *Labels, strata []verdict.S
 			}
 			continue
 		case !classes[lab]:
-			return &sampling.InputError{File: l.Path, Line: wr.Line, Column: "label",
+			return &inputerr.Error{File: l.Path, Line: wr.Line, Field: "label",
 				Msg:  fmt.Sprintf("label %q (item %d) is not one of the plan's classes (%s), blank or %q", wr.Label, wr.Item, strings.Join(p.Classes, ", "), Unsure),
 				Hint: fmt.Sprintf("use exactly one of: %s; write %q when the item cannot be labeled", strings.Join(p.Classes, ", "), Unsure)}
 		}
 		res.add(i, lr, lab, index[lr.Stratum], false)
 	}
 	if len(unsure) > 0 && !opts.AllowIncomplete {
-		return &sampling.InputError{File: l.Path, Column: "label",
+		return &inputerr.Error{File: l.Path, Field: "label", Err: ErrIncomplete,
 			Msg:  fmt.Sprintf("%d %s labeled from the top marked unsure (%s %s); a sequential plan cannot skip %s", len(unsure), map[bool]string{true: "item is", false: "items are"}[len(unsure) == 1], itemWord(len(unsure)), first(unsure), pron(len(unsure))),
-			Hint: "label them, or pass --allow-incomplete to count each as an error for every candidate"}
+			Hint: "label them"}
 	}
 	if len(res.Items) == 0 {
-		return &sampling.InputError{File: l.Path, Column: "label", Msg: "no item is labeled", Hint: "label the worksheet from the top"}
+		return &inputerr.Error{File: l.Path, Field: "label", Msg: "no item is labeled", Hint: "label the worksheet from the top"}
 	}
 	if res.Counted > 0 {
 		dev.AllowIncomplete = true
-		dev.Notes = append(dev.Notes, fmt.Sprintf("%d unsure items were counted as errors for every candidate (--allow-incomplete)", res.Counted))
+		dev.Notes = append(dev.Notes, fmt.Sprintf("%d unsure items were counted as errors for every candidate (incomplete labeling allowed)", res.Counted))
 	}
 	dev.Notes = append(dev.Notes, fmt.Sprintf("labeled from the top: %d of the %d sample items", len(res.Items), len(f.Ledger)-f.Manifest.Spares))
 	for i := range strata {

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"probity/plan/inputerr"
 	"probity/sampling"
 )
 
@@ -45,14 +46,14 @@ func TestSparesReplaceInOrder(t *testing.T) {
 	rows[fx.mainIndex("a", 5)].Label = "unsure"
 	rows[fx.spareIndex("a", 0)].Label = "unsure" // the first spare could not be labeled either
 	rows[fx.spareIndex("a", 1)].Label = "ok"
-	// One item is still missing: refused without --allow-incomplete.
+	// One item is still missing: refused without AllowIncomplete.
 	_, err := fx.check(t, rows, Options{})
 	if err == nil || !strings.Contains(err.Error(), "1 item is unlabeled or unsure and no spare replaces it (item ") {
 		t.Fatalf("got %v", err)
 	}
-	var ie *sampling.InputError
-	if !errors.As(err, &ie) || !strings.Contains(ie.Hint, "--allow-incomplete") {
-		t.Errorf("no hint naming --allow-incomplete: %#v", err)
+	var ie *inputerr.Error
+	if !errors.As(err, &ie) || !errors.Is(err, ErrIncomplete) || ie.Hint == "" || strings.Contains(ie.Hint, "--") {
+		t.Errorf("not ErrIncomplete with a hint in the package's own words: %#v", err)
 	}
 	res, err := fx.check(t, rows, Options{AllowIncomplete: true})
 	if err != nil {
@@ -137,10 +138,10 @@ func TestFingerprintMismatchesAreRefused(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := Check(fx.plan, strings.Repeat("0", 64), f, l, Options{}); err == nil || !strings.Contains(err.Error(), "manifest.json column plan_fingerprint") {
+	if _, err := Check(fx.plan, strings.Repeat("0", 64), f, l, Options{}); err == nil || !strings.Contains(err.Error(), "manifest.json, field plan_fingerprint") {
 		t.Errorf("other plan: %v", err)
 	}
-	if _, err := ReadFolder(fx.drawDir(), strings.Repeat("0", 64), []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "manifest.json column plan_fingerprint") {
+	if _, err := ReadFolder(fx.drawDir(), strings.Repeat("0", 64), []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "manifest.json, field plan_fingerprint") {
 		t.Errorf("other plan: %v", err)
 	}
 	// An edited ledger.

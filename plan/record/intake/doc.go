@@ -5,6 +5,6 @@
 // the use of spare items. It turns the checked rows into the items the
 // verdict package judges, and lists the deviations from the plan.
 //
-// Errors are *sampling.InputError values naming the file, the line and the
+// Errors are *inputerr.Error values naming the file, the line and the
 // field; the package never prints.
 package intake

@@ -9,6 +9,7 @@ import (
 
 	"probity/plan"
 	"probity/sampling"
+	"probity/sampling/safewrite"
 )
 
 // drawFixture is a small draw folder made in code: a plan with two label
@@ -27,8 +28,8 @@ func newDrawFixture(t *testing.T) *drawFixture {
 	t.Helper()
 	p := &plan.File{
 		Format: plan.FileFormat, Seed: "00112233445566778899aabbccddeeff",
-		Inputs:     plan.Inputs{Ceiling: 0.1, Confidence: 0.9, Candidates: 2, Method: "exact", Multiplicity: "bonferroni", Design: "fixed", Require: "all"},
-		Rule:       plan.Rule{Model: "binomial", SampleSize: 29, AcceptanceNumber: 0, PerCandidateRisk: 0.05},
+		Inputs:     plan.Inputs{Ceiling: 0.1, Confidence: 0.9, CandidateCount: 2, Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll},
+		Rule:       plan.Rule{Model: plan.ModelBinomial, SampleSize: 29, AcceptanceNumber: 0, PerCandidateRisk: 0.05},
 		Classes:    []string{"ok", "defect"},
 		Candidates: []plan.Candidate{{Name: "m1", Column: "pred_a"}, {Name: "m2", Column: "pred_b"}},
 	}
@@ -74,7 +75,7 @@ func newDrawFixture(t *testing.T) *drawFixture {
 			Allocation: sampling.AllocationInfo{Rule: "proportional", Spare: 2}, Strata: strata, SampleSize: 29, Spares: 4},
 		Candidates: []string{"m1", "m2"}, Show: []string{"text"}, Ledger: ledger, Worksheet: ws,
 	}
-	if err := sampling.WriteFolder(filepath.Join(fx.dir, "draw"), fx.folder, false); err != nil {
+	if err := sampling.WriteFolder(filepath.Join(fx.dir, "draw"), fx.folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	return fx

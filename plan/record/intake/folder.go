@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/sampling"
 )
@@ -55,7 +56,7 @@ func ReadFolder(dir, planFP string, candidates []string) (*Folder, error) {
 	}
 	lpath := filepath.Join(dir, sampling.LedgerFile)
 	if f.LedgerBytes, err = os.ReadFile(lpath); err != nil {
-		return nil, err
+		return nil, inputerr.FromPath(err)
 	}
 	if err := matchManifest(f.Manifest, mpath, lpath, sampling.LedgerFile, f.LedgerBytes); err != nil {
 		return nil, err
@@ -65,7 +66,7 @@ func ReadFolder(dir, planFP string, candidates []string) (*Folder, error) {
 	}
 	wpath := filepath.Join(dir, sampling.WorksheetFile)
 	if f.WorksheetBytes, err = os.ReadFile(wpath); err != nil {
-		return nil, err
+		return nil, inputerr.FromPath(err)
 	}
 	if f.WorksheetHeader, f.Worksheet, err = sampling.ReadWorksheet(wpath); err != nil {
 		return nil, err
@@ -86,13 +87,13 @@ func ReadFolder(dir, planFP string, candidates []string) (*Folder, error) {
 func matchManifest(m *sampling.Manifest, mpath, path, name string, data []byte) error {
 	want, ok := m.Files[name]
 	if !ok {
-		return &sampling.InputError{File: mpath, Column: "files." + name, Msg: fmt.Sprintf("the manifest records no SHA-256 for %s", name),
+		return &inputerr.Error{File: mpath, Field: "files." + name, Msg: fmt.Sprintf("the manifest records no SHA-256 for %s", name),
 			Hint: "use the manifest.json written by probity draw"}
 	}
 	if got := record.SHA256(data); got != want {
-		return &sampling.InputError{File: path, Column: "sha256",
+		return &inputerr.Error{File: path, Field: "sha256",
 			Msg:  fmt.Sprintf("SHA-256 %s… differs from the %s… that %s records: the file was changed after the draw", got[:12], want[:12], mpath),
-			Hint: fmt.Sprintf("restore the %s written by probity draw (label a copy of the worksheet and pass it with --labels)", name)}
+			Hint: fmt.Sprintf("restore the %s written by probity draw (label a copy of the worksheet and give that copy as the labels)", name)}
 	}
 	return nil
 }
@@ -119,7 +120,7 @@ func blankWorksheet(header []string, rows []sampling.WorksheetRow) ([]byte, erro
 func ReadLabels(path string) (*Labels, error) {
 	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, err
+		return nil, inputerr.FromPath(err)
 	}
 	h, rows, err := sampling.ReadWorksheet(path)
 	if err != nil {

@@ -9,6 +9,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"probity/plan/inputerr"
 )
 
 // ErrKey is wrapped by every error about the content of a key file.
@@ -58,11 +59,11 @@ func ParsePrivate(data []byte, name string) (ed25519.PrivateKey, error) {
 	}
 	k, err := x509.ParsePKCS8PrivateKey(der)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrKey, err)
+		return nil, inputerr.At(name, 0, "", "%w: %v", ErrKey, err)
 	}
 	priv, ok := k.(ed25519.PrivateKey)
 	if !ok {
-		return nil, fmt.Errorf("%s: %w: the private key is not an Ed25519 key", name, ErrKey)
+		return nil, inputerr.At(name, 0, "", "%w: the private key is not an Ed25519 key", ErrKey)
 	}
 	return priv, nil
 }
@@ -75,11 +76,11 @@ func ParsePublic(data []byte, name string) (ed25519.PublicKey, error) {
 	}
 	k, err := x509.ParsePKIXPublicKey(der)
 	if err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrKey, err)
+		return nil, inputerr.At(name, 0, "", "%w: %v", ErrKey, err)
 	}
 	pub, ok := k.(ed25519.PublicKey)
 	if !ok {
-		return nil, fmt.Errorf("%s: %w: the public key is not an Ed25519 key", name, ErrKey)
+		return nil, inputerr.At(name, 0, "", "%w: the public key is not an Ed25519 key", ErrKey)
 	}
 	return pub, nil
 }
@@ -87,13 +88,13 @@ func ParsePublic(data []byte, name string) (ed25519.PublicKey, error) {
 func pemBlock(data []byte, name, want string) ([]byte, error) {
 	b, rest := pem.Decode(data)
 	if b == nil {
-		return nil, fmt.Errorf("%s: %w: no PEM %q block found", name, ErrKey, want)
+		return nil, inputerr.At(name, 0, "", "%w: no PEM %q block found", ErrKey, want)
 	}
 	if b.Type != want {
-		return nil, fmt.Errorf("%s: %w: found a PEM %q block where a %q block was expected", name, ErrKey, b.Type, want)
+		return nil, inputerr.At(name, 0, "", "%w: found a PEM %q block where a %q block was expected", ErrKey, b.Type, want)
 	}
 	if len(pemTrim(rest)) != 0 {
-		return nil, fmt.Errorf("%s: %w: unexpected data after the %q block", name, ErrKey, want)
+		return nil, inputerr.At(name, 0, "", "%w: unexpected data after the %q block", ErrKey, want)
 	}
 	return b.Bytes, nil
 }

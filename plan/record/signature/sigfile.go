@@ -9,6 +9,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"probity/plan/inputerr"
 	"sort"
 	"strings"
 )
@@ -96,7 +97,7 @@ func (s *Sig) Marshal() []byte {
 // line.
 func Parse(data []byte, name string) (*Sig, error) {
 	bad := func(line int, format string, args ...any) error {
-		return fmt.Errorf("%s line %d: %w: %s", name, line, ErrSigFile, fmt.Sprintf(format, args...))
+		return inputerr.At(name, line, "", "%w: %s", ErrSigFile, fmt.Sprintf(format, args...))
 	}
 	sc := bufio.NewScanner(bytes.NewReader(data))
 	var lines []string
@@ -104,7 +105,7 @@ func Parse(data []byte, name string) (*Sig, error) {
 		lines = append(lines, sc.Text())
 	}
 	if err := sc.Err(); err != nil {
-		return nil, fmt.Errorf("%s: %w: %v", name, ErrSigFile, err)
+		return nil, inputerr.At(name, 0, "", "%w: %v", ErrSigFile, err)
 	}
 	if len(lines) == 0 || lines[0] != Header {
 		return nil, bad(1, "the first line must be %q", Header)
@@ -182,7 +183,7 @@ func (s *Sig) Names() []string {
 }
 
 // Verify checks the signature of one signed file against its contents. It
-// returns an error wrapping ErrMismatch that says what differs: the file is
+// returns an error matching ErrMismatch that says what differs: the file is
 // not signed, its SHA-256 differs from the one signed, or the signature is
 // not valid for the key.
 func (s *Sig) Verify(name string, data []byte) error {
@@ -192,12 +193,24 @@ func (s *Sig) Verify(name string, data []byte) error {
 		}
 		sum := sha256.Sum256(data)
 		if got := hex.EncodeToString(sum[:]); got != f.SHA256 {
-			return fmt.Errorf("%w: %s has SHA-256 %s, but %s signed %s: the file was changed after signing", ErrMismatch, name, got[:16]+"…", FileName, f.SHA256[:16]+"…")
+			return mismatchf("%s has SHA-256 %s, but %s signed %s: the file was changed after signing", name, got[:16]+"…", FileName, f.SHA256[:16]+"…")
 		}
 		if !ed25519.Verify(s.PublicKey, Message(name, data), f.Signature) {
-			return fmt.Errorf("%w: the signature of %s in %s is not valid for key %s", ErrMismatch, name, FileName, Fingerprint(s.PublicKey))
+			return mismatchf("the signature of %s in %s is not valid for key %s", name, FileName, Fingerprint(s.PublicKey))
 		}
 		return nil
 	}
-	return fmt.Errorf("%w: %s is not signed in %s", ErrMismatch, name, FileName)
+	return mismatchf("%s is not signed in %s", name, FileName)
+}
+
+// mismatch is a failed signature check: errors.Is(err, ErrMismatch) holds,
+// and the message says what differs without the sentinel's words, so a
+// caller can print it as it is.
+type mismatch struct{ msg string }
+
+func (e *mismatch) Error() string        { return e.msg }
+func (e *mismatch) Is(target error) bool { return target == ErrMismatch }
+
+func mismatchf(format string, args ...any) error {
+	return &mismatch{msg: fmt.Sprintf(format, args...)}
 }
