@@ -59,8 +59,8 @@ import its result with --counts counts.csv --selected selected.csv --out DIR.
 The import checks the selection against the counts (the table counted again
 must give the same strata) and the manifest records the counts file's
 SHA-256. Both queries end with FORMAT CSVWithNames, which writes ids exactly.
-Never set skip_unavailable_shards: a shard that does not answer must fail the
-query, not drop its rows.`
+Never set skip_unavailable_shards (the queries pin it to 0): a shard that does
+not answer must fail the query, not drop its rows.`
 
 // hookDrawSQL adds --sql, --table and --selected to the draw command and
 // routes the command to the SQL paths when they are given; otherwise the

@@ -24,8 +24,10 @@ const ClickHouseMaxQuerySize = 262144
 // profile's limits fail the query instead of silently cutting it short
 // (an overflow mode "break" stops reading, sorting or grouping and returns
 // what it has; "any" groups only the keys seen so far), and no totals or
-// extremes rows are added to the CSV output.
-const chSettings = "extremes = 0, read_overflow_mode = 'throw', group_by_overflow_mode = 'throw', " +
+// extremes rows are added to the CSV output. skip_unavailable_shards is
+// pinned to 0 so that a profile which turns it on cannot make a shard that
+// does not answer silently drop its rows from the counts and the sample.
+const chSettings = "skip_unavailable_shards = 0, extremes = 0, read_overflow_mode = 'throw', group_by_overflow_mode = 'throw', " +
 	"sort_overflow_mode = 'throw', result_overflow_mode = 'throw', timeout_overflow_mode = 'throw', set_overflow_mode = 'throw'"
 
 // chQuery writes the two ClickHouse queries of a draw. Every expression

@@ -192,8 +192,8 @@ func chDraw(t *testing.T, c *chcluster.Cluster, p *plan.File, s *Spec, dir strin
 		t.Fatal(err)
 	}
 	for _, q := range []string{cq, sq} {
-		if strings.Contains(q, "skip_unavailable_shards") {
-			t.Fatal("a query mentions skip_unavailable_shards")
+		if strings.Count(q, "skip_unavailable_shards") == 0 || strings.Count(q, "skip_unavailable_shards") != strings.Count(q, "skip_unavailable_shards = 0,") {
+			t.Fatal("a query does not pin skip_unavailable_shards to 0 wherever it names it")
 		}
 	}
 	start = time.Now()

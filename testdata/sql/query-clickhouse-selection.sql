@@ -73,5 +73,5 @@ FROM (
   ARRAY JOIN probity_rs AS probity_r
 )
 ORDER BY sec, sk, sk2
-SETTINGS distributed_group_by_no_merge = 1, extremes = 0, read_overflow_mode = 'throw', group_by_overflow_mode = 'throw', sort_overflow_mode = 'throw', result_overflow_mode = 'throw', timeout_overflow_mode = 'throw', set_overflow_mode = 'throw'
+SETTINGS distributed_group_by_no_merge = 1, skip_unavailable_shards = 0, extremes = 0, read_overflow_mode = 'throw', group_by_overflow_mode = 'throw', sort_overflow_mode = 'throw', result_overflow_mode = 'throw', timeout_overflow_mode = 'throw', set_overflow_mode = 'throw'
 FORMAT CSVWithNames
