@@ -160,10 +160,10 @@ func (sv *spreadSolver) bisect(pred func(float64) bool) (lo, hi float64) {
 // minimiser, the smallest increments across all strata (a separable convex
 // resource allocation; the greedy choice is optimal because each stratum's
 // increments are nondecreasing — Gross 1956, Fox 1966, "Discrete
-// optimization via marginal analysis"). The multiplier λ at which the
-// needed number of increments is reached is found by bisection on the
-// float64 bit pattern, so the increments at or below λ are taken exactly
-// and the remaining ones all equal the next float above λ.
+// optimization via marginal analysis"). The multiplier λ below which too
+// few increments are taken is found by bisection on the float64 bit
+// pattern; the increments at or below it are taken at once and the few
+// remaining units one at a time, cheapest first.
 func (sv *spreadSolver) minTotal(total int64) (float64, []int64) {
 	if total > sv.room {
 		return math.Inf(1), nil
@@ -175,9 +175,45 @@ func (sv *spreadSolver) minTotal(total int64) (float64, []int64) {
 		}
 		return sv.base, sp
 	}
-	lo, hi := sv.bisect(func(l float64) bool {
+	lo, _ := sv.bisect(func(l float64) bool {
 		_, n := sv.eval(l)
 		return n < total
+	})
+	sp := make([]int64, len(sv.st))
+	var n int64
+	for h := range sv.st {
+		s := &sv.st[h]
+		sp[h] = s.count(lo, s.lo, s.hi)
+		n += sp[h]
+	}
+	// The remaining units (increments just above lo) one at a time, the
+	// cheapest first; this also absorbs increments that rounding left a
+	// hair out of order.
+	nx := newNextIncrements(sv, sp)
+	for ; n < total; n++ {
+		h, inc := nx.pop()
+		if math.IsInf(inc, 1) {
+			return math.Inf(1), nil
+		}
+		sp[h]++
+		nx.push(h)
+	}
+	var sum float64
+	for h := range sv.st {
+		sum += sv.st[h].at(sp[h])
+	}
+	return sum, sp
+}
+
+// maxTotalBelow is the largest total D such that minTotal(D) < t, or −1
+// when even the cheapest spread costs t or more.
+func (sv *spreadSolver) maxTotalBelow(t float64) int64 {
+	if !(sv.base < t) {
+		return -1
+	}
+	lo, _ := sv.bisect(func(l float64) bool {
+		sum, _ := sv.eval(l)
+		return sum < t
 	})
 	sp := make([]int64, len(sv.st))
 	var sum float64
@@ -188,50 +224,86 @@ func (sv *spreadSolver) minTotal(total int64) (float64, []int64) {
 		sum += s.at(sp[h])
 		n += sp[h]
 	}
-	if math.IsInf(hi, 1) {
-		return math.Inf(1), nil
+	// Further units, the cheapest first, while the sum stays below t.
+	nx := newNextIncrements(sv, sp)
+	for nx.Len() > 0 {
+		h, inc := nx.pop()
+		if !(sum+inc < t) {
+			break
+		}
+		sum += inc
+		sp[h]++
+		n++
+		nx.push(h)
 	}
-	// The remaining units each cost hi (the increments in (lo, hi]).
-	rest := total - n
-	for h := range sv.st {
-		s := &sv.st[h]
-		up := s.count(hi, sp[h], s.hi) - sp[h]
-		k := min(up, rest)
-		sp[h] += k
-		rest -= k
-	}
-	return sum + float64(total-n)*hi, sp
+	return n
 }
 
-// maxTotalBelow is the largest total D such that minTotal(D) < t, or −1
-// when even the cheapest spread costs t or more.
-func (sv *spreadSolver) maxTotalBelow(t float64) int64 {
-	if !(sv.base < t) {
-		return -1
+// nextIncrements is a min-heap of each stratum's next increment
+// at(d+1) − at(d) beyond its current allocation.
+type nextIncrements struct {
+	sv   *spreadSolver
+	sp   []int64
+	heap []int // stratum indices
+	inc  []float64
+}
+
+func newNextIncrements(sv *spreadSolver, sp []int64) *nextIncrements {
+	nx := &nextIncrements{sv: sv, sp: sp, inc: make([]float64, len(sp))}
+	for h := range sp {
+		nx.push(h)
 	}
-	lo, hi := sv.bisect(func(l float64) bool {
-		sum, _ := sv.eval(l)
-		return sum < t
-	})
-	var sum float64
-	var n, avail int64
-	for h := range sv.st {
-		s := &sv.st[h]
-		d := s.count(lo, s.lo, s.hi)
-		sum += s.at(d)
-		n += d
-		if !math.IsInf(hi, 1) {
-			avail += s.count(hi, d, s.hi) - d
+	return nx
+}
+
+func (nx *nextIncrements) Len() int { return len(nx.heap) }
+
+// push queues stratum h's next increment, if it has room left.
+func (nx *nextIncrements) push(h int) {
+	s := &nx.sv.st[h]
+	if nx.sp[h] >= s.top {
+		return
+	}
+	nx.inc[h] = s.inc(nx.sp[h] + 1)
+	nx.heap = append(nx.heap, h)
+	for i := len(nx.heap) - 1; i > 0; {
+		p := (i - 1) / 2
+		if !nx.less(i, p) {
+			break
 		}
+		nx.heap[i], nx.heap[p] = nx.heap[p], nx.heap[i]
+		i = p
 	}
-	if math.IsInf(hi, 1) || avail == 0 {
-		return n
+}
+
+func (nx *nextIncrements) less(i, j int) bool {
+	a, b := nx.heap[i], nx.heap[j]
+	return nx.inc[a] < nx.inc[b] || nx.inc[a] == nx.inc[b] && a < b
+}
+
+// pop removes the stratum with the smallest next increment; with nothing
+// left it returns (−1, +∞).
+func (nx *nextIncrements) pop() (int, float64) {
+	if len(nx.heap) == 0 {
+		return -1, math.Inf(1)
 	}
-	// Units at cost hi each while the sum stays below t.
-	k := int64(math.Ceil((t-sum)/hi)) - 1
-	k = max(0, min(k, avail))
-	for k > 0 && !(sum+float64(k)*hi < t) {
-		k--
+	h := nx.heap[0]
+	last := len(nx.heap) - 1
+	nx.heap[0] = nx.heap[last]
+	nx.heap = nx.heap[:last]
+	for i := 0; ; {
+		l, r, m := 2*i+1, 2*i+2, i
+		if l < len(nx.heap) && nx.less(l, m) {
+			m = l
+		}
+		if r < len(nx.heap) && nx.less(r, m) {
+			m = r
+		}
+		if m == i {
+			break
+		}
+		nx.heap[i], nx.heap[m] = nx.heap[m], nx.heap[i]
+		i = m
 	}
-	return n + k
+	return h, nx.inc[h]
 }

@@ -6,14 +6,16 @@ import (
 	"probity/plan"
 )
 
-// fisherCost is w·(−ln p(d)) for one stratum, p(d) = P(X ≤ x | N_h, d, n_h)
+// fisherCost (kept in the tests for the power comparison, see
+// power_test.go) is w·(−ln p(d)) for one stratum, p(d) = P(X ≤ x | N_h, d, n_h)
 // the exact hypergeometric p-value of "the stratum holds d errors" after x
 // errors in n_h. −ln p(d) is convex in d: p(d) is the survival function at
 // d of the position of the (x+1)-th sampled item in a random ordering of
 // the stratum (a negative hypergeometric law), whose probabilities are
-// log-concave in d, and the survival function of a log-concave law is
-// log-concave (An, J. Econ. Theory 80, 1998, for the discrete case). A
-// stratum with no labeled item has p ≡ 1.
+// log-concave in d (a product of two log-concave binomial coefficients),
+// and the survival function of a log-concave law is log-concave (Bagnoli &
+// Bergstrom, Economic Theory 26, 2005, for the discrete case). A stratum
+// with no labeled item has p ≡ 1.
 type fisherCost struct {
 	s Stratum
 	x int
