@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"math/big"
 	"sort"
 
 	"probity/plan"
@@ -57,6 +58,10 @@ type CountRule struct {
 	// Accept is c, the most errors among the counted items that pass; −1
 	// when no count passes (too few counted items for the ceiling).
 	Accept int
+
+	// fill is the order in which the least favourable spread fills the
+	// strata: ascending k_h/N_h, ties in Design order.
+	fill []int
 }
 
 // ErrRule is wrapped by errors about the inputs of a rule.
@@ -89,6 +94,7 @@ func NewCountRule(d Design, counted []int, ceiling, confidence float64) (*CountR
 			return nil, fmt.Errorf("%w: stratum %q counts %d of its %d labeled items", ErrRule, s.Label, counted[h], s.Sample)
 		}
 	}
+	d.Strata = append([]Stratum(nil), d.Strata...)
 	r := &CountRule{
 		Design:     d,
 		Counted:    append([]int(nil), counted...),
@@ -96,6 +102,16 @@ func NewCountRule(d Design, counted []int, ceiling, confidence float64) (*CountR
 		Confidence: confidence,
 		BadLot:     d.BadLotErrors(ceiling),
 	}
+	r.fill = make([]int, len(d.Strata))
+	for h := range r.fill {
+		r.fill[h] = h
+	}
+	sort.SliceStable(r.fill, func(i, j int) bool {
+		// k_i/N_i < k_j/N_j in exact arithmetic
+		a := new(big.Int).Mul(big.NewInt(int64(r.Counted[r.fill[i]])), big.NewInt(d.Strata[r.fill[j]].Population))
+		b := new(big.Int).Mul(big.NewInt(int64(r.Counted[r.fill[j]])), big.NewInt(d.Strata[r.fill[i]].Population))
+		return a.Cmp(b) < 0
+	})
 	r.LeastMean, r.Spread = r.leastMean(r.BadLot)
 	r.Accept = acceptanceNumber(r.CountedSize(), r.LeastMean, 1-confidence)
 	return r, nil
@@ -121,24 +137,27 @@ func (r *CountRule) fraction(h int) float64 {
 // fractional knapsack whose capacities are whole numbers, so the greedy
 // fill is integral). Ties are filled in Design order.
 func (r *CountRule) leastMean(total int64) (float64, []int64) {
-	order := make([]int, len(r.Design.Strata))
-	for h := range order {
-		order[h] = h
-	}
-	sort.SliceStable(order, func(i, j int) bool { return r.fraction(order[i]) < r.fraction(order[j]) })
-	spread := make([]int64, len(order))
+	spread := make([]int64, len(r.fill))
+	return r.fillSpread(total, spread), spread
+}
+
+// fillSpread fills total errors into the strata in the order of r.fill,
+// recording the spread when it is not nil, and returns its mean count.
+func (r *CountRule) fillSpread(total int64, spread []int64) float64 {
 	var mu float64
 	rest := total
-	for _, h := range order {
+	for _, h := range r.fill {
 		if rest <= 0 {
 			break
 		}
 		d := min(rest, r.Design.Strata[h].Population)
-		spread[h] = d
+		if spread != nil {
+			spread[h] = d
+		}
 		mu += float64(r.Counted[h]) * float64(d) / float64(r.Design.Strata[h].Population)
 		rest -= d
 	}
-	return mu, spread
+	return mu
 }
 
 // tailBound is Hoeffding's bound on P(S ≤ s) for m counted items whose
@@ -208,7 +227,7 @@ func (r *CountRule) Judge(errs []int) (Verdict, error) {
 	// p(D) = tailBound(s, m, μ*(D)) does not increase with D; D_U is the
 	// largest D with p(D) > α.
 	N := r.Design.Population()
-	pAt := func(D int64) float64 { mu, _ := r.leastMean(D); return tailBound(s, m, mu) }
+	pAt := func(D int64) float64 { return tailBound(s, m, r.fillSpread(D, nil)) }
 	if pAt(N) > alpha {
 		v.UpperErrors = N
 	} else {
