@@ -46,7 +46,7 @@ func SimpleRandomShortcut(d Design, n, c int, ceiling float64) (bool, string) {
 		if lhs.Cmp(rhs) != 0 {
 			share := new(big.Rat).SetFrac(rhs, bN)
 			f, _ := share.Float64()
-			return false, fmt.Sprintf("stratum %q has %d items where exact proportion needs %.4g (n·N_h/N): the allocation is not self-weighting", s.Label, s.Sample, f)
+			return false, fmt.Sprintf("stratum %q has %d items where exact proportion needs %.6g (n·N_h/N): the allocation is not self-weighting", s.Label, s.Sample, f)
 		}
 	}
 	dstar := d.BadLotErrors(ceiling)
