@@ -38,7 +38,7 @@ import (
 //
 // so for every configuration with Σ d_h ≥ D* the chance of acceptance is
 // at most α (a union–intersection test, Roy 1953, over the spreads of
-// errors, as in Ottoboni, Lindeman, Stark & McBurnett 2018). The rule is
+// errors, as in Ottoboni, Stark, Lindeman & McBurnett 2018). The rule is
 // fixed before any label is seen, and it is the binomial rule of a simple
 // random sample when the allocation is exactly proportional (then μ* =
 // m·D*/N).

@@ -253,8 +253,8 @@ func TestSimpleRandomShortcut(t *testing.T) {
 // TestProportionalCounts thins to the reference stratum's fraction.
 func TestProportionalCounts(t *testing.T) {
 	d := design([]int64{1000, 500, 100, 7}, []int{20, 20, 20, 7})
-	got := ProportionalCounts(d, 0) // f = 0.02
-	want := []int{20, 10, 2, 0}
+	got := ProportionalCounts(d, 0) // f = 0.02: ⌈0.02·N_h⌉
+	want := []int{20, 10, 2, 1}
 	for h := range want {
 		if got[h] != want[h] {
 			t.Fatalf("ProportionalCounts = %v, want %v", got, want)

@@ -334,3 +334,96 @@ func TestPowerTable(t *testing.T) {
 	fmt.Fprintf(&out, "w-hoeff: the weighted Hoeffding bound. SRS: the exact binomial plan of a simple random sample.\n")
 	t.Log("\n" + out.String())
 }
+
+// TestFailurePopulationsLabels gives, for the populations of
+// failure_test.go, the labels needed for 90 % acceptance at p0 =
+// ceiling/2 (ceiling 5 %, plan allows 10 %) under the count rule and the
+// weighted Hoeffding bound, for proportional, equal and Neyman allocation
+// (Neyman with per-stratum rates ×0.5/1/2/3 of p0, normalised), also with
+// a minimum of one item per stratum, and the
+// smallest zero-failure sample (c ≥ 0). Weighted Hoeffding is exact by
+// enumeration for four strata and Monte Carlo (1000 runs) for 100.
+// PROBITY_POWER_TABLE=1 runs it.
+func TestFailurePopulationsLabels(t *testing.T) {
+	if os.Getenv("PROBITY_POWER_TABLE") == "" {
+		t.Skip("set PROBITY_POWER_TABLE=1")
+	}
+	ceiling, conf := failureCeiling, failureConfidence
+	alpha, p0 := 1-conf, failureCeiling/2
+	srs, _ := srsBinomialN(ceiling, alpha, p0)
+	var out strings.Builder
+	fmt.Fprintf(&out, "labels for 90 %% acceptance at p0 = 2.5 %%, ceiling 5 %%, α = 10 %% (simple random sample: %d)\n", srs)
+	fmt.Fprintf(&out, "%-34s %-20s %8s %8s %10s\n", "population", "allocation", "count", "w-hoeff", "zero-fail")
+	pops := []struct {
+		name string
+		N    []int64
+	}{
+		{"four strata 6000/3000/800/200", []int64{6000, 3000, 800, 200}},
+		{"four strata 5360/2340/980/320", []int64{5360, 2340, 980, 320}},
+		{"100 strata, 43 small", manySmallStrata()},
+	}
+	for _, pop := range pops {
+		var w float64
+		for h, N := range pop.N {
+			w += float64(N) * []float64{0.5, 1, 2, 3}[h%4]
+		}
+		var total int64
+		for _, N := range pop.N {
+			total += N
+		}
+		vary := make([]float64, len(pop.N))
+		flat := make([]float64, len(pop.N))
+		for h := range vary {
+			vary[h] = p0 * []float64{0.5, 1, 2, 3}[h%4] * float64(total) / w
+			flat[h] = p0
+		}
+		for _, pd := range []struct {
+			name  string
+			rule  allocRule
+			rates []float64
+		}{{"proportional", proportional, flat}, {"equal", equal, flat}, {"neyman", neyman, vary},
+			{"proportional, min 1", withMin(proportional, 1), flat}, {"neyman, min 1", withMin(neyman, 1), vary}} {
+			setup := func(n int) (Design, []int64) {
+				d := design(pop.N, allocate(pop.N, n, pd.rule, pd.rates))
+				ant := make([]int64, len(pop.N))
+				for h := range ant {
+					ant[h] = int64(math.Round(pd.rates[h] * float64(pop.N[h])))
+				}
+				return d, ant
+			}
+			count := smallestN(func(n int) float64 {
+				d, ant := setup(n)
+				_, r, err := CountedForPower(d, ant, ceiling, conf)
+				if err != nil {
+					panic(err)
+				}
+				p, _ := r.AcceptProbability(ant)
+				return p
+			}, srs, true)
+			hoeff := smallestN(func(n int) float64 {
+				d, ant := setup(n)
+				for _, s := range d.Strata {
+					if s.Sample == 0 {
+						return 0 // the bound needs every stratum sampled
+					}
+				}
+				acc := weightedHoeffdingAccept(d, ceiling, alpha)
+				if len(d.Strata) <= 4 {
+					return staircase(d, ant, acc)
+				}
+				p, _ := MonteCarloAccept(d, ant, 1000, rand.NewPCG(uint64(n), 3), acc)
+				return p
+			}, 4*srs, false)
+			zero := 1
+			for {
+				d, _ := setup(zero)
+				if r := mustRule(t, d, nil, ceiling, conf); r.Accept >= 0 {
+					break
+				}
+				zero++
+			}
+			fmt.Fprintf(&out, "%-34s %-20s %8d %8d %10d\n", pop.name, pd.name, count, hoeff, zero)
+		}
+	}
+	t.Log("\n" + out.String())
+}
