@@ -12,10 +12,13 @@ import (
 
 // CountRule is the acceptance rule "at most c errors among the counted
 // items" for a stratified sample with any allocation. The counted items
-// of stratum h are the first k_h of its n_h labeled items in worksheet
-// order (a uniformly random order within the stratum, so they are a simple
-// random sample of k_h from N_h); k_h = n_h unless the design is thinned
-// to a proportional sub-sample (see CountedForPower).
+// of stratum h are the k_h of its n_h labeled items with the smallest
+// selection keys — the first k_h of the stratum in the worksheet's key
+// order, which is a uniformly random order within the stratum, so they are
+// a simple random sample of k_h of its N_h decisions. k_h = n_h unless the
+// design is thinned to a proportional sub-sample (see CountedForPower);
+// the other labeled items still serve per-stratum rates, but not the
+// verdict.
 //
 // Why it keeps its risk. Let the population hold d_h errors in stratum h.
 // The errors X_h among the k_h counted items are hypergeometric, which is

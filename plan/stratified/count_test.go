@@ -152,7 +152,7 @@ func TestExactlyProportionalIsTheBinomialRule(t *testing.T) {
 		if r.Accept != c {
 			t.Errorf("%v: c = %d, the binomial plan's c = %d", tc.n, r.Accept, c)
 		}
-		if ok, why := SimpleRandomShortcut(d, n, c, tc.ceiling); !ok {
+		if ok, why := SimpleRandomShortcut(d, n, c, tc.ceiling, 0.95); !ok {
 			t.Errorf("%v: shortcut refused: %s", tc.n, why)
 		}
 	}
@@ -228,13 +228,13 @@ func TestSimpleRandomShortcut(t *testing.T) {
 		ok      bool
 		because string
 	}{
-		{"exact proportion", []int{450, 350, 180, 20}, 14, true, "exactly proportional"},
+		{"exact proportion", []int{450, 350, 180, 20}, 12, true, "exactly proportional"},
 		{"rounded share", []int{572, 445, 229, 25}, 17, false, `stratum "s1" has 572 items where exact proportion needs 571.95`},
-		{"empty stratum", []int{459, 357, 184, 0}, 14, false, `stratum "s1" has 459 items where exact proportion needs 450`},
-		{"minimum per stratum", []int{441, 343, 176, 40}, 14, false, `stratum "s1" has 441 items`},
-		{"c at the theorem's limit", []int{450, 350, 180, 20}, 19, true, "exactly proportional"},
+		{"empty stratum", []int{459, 357, 184, 0}, 12, false, `stratum "s1" has 459 items where exact proportion needs 450`},
+		{"minimum per stratum", []int{441, 343, 176, 40}, 12, false, `stratum "s1" has 441 items`},
+		{"c beyond the risk", []int{450, 350, 180, 20}, 13, false, "P(Bin(1000, D*/N) ≤ 13) = 0.06423"}, // scipy.stats.binom.cdf(13, 1000, 0.02) = 0.064226
 		{"c beyond the theorem", []int{450, 350, 180, 20}, 20, false, "allows c = 20 errors but the binomial comparison needs c ≤ n·D*/N − 1 = 19"},
-		{"wrong n", []int{450, 350, 180, 20}, 14, false, "not the plan's n = 999"},
+		{"wrong n", []int{450, 350, 180, 20}, 12, false, "not the plan's n = 999"},
 	} {
 		n := 0
 		for _, v := range tc.n {
@@ -243,7 +243,7 @@ func TestSimpleRandomShortcut(t *testing.T) {
 		if tc.name == "wrong n" {
 			n = 999
 		}
-		ok, why := SimpleRandomShortcut(design(N, tc.n), n, tc.c, 0.02)
+		ok, why := SimpleRandomShortcut(design(N, tc.n), n, tc.c, 0.02, 0.95)
 		if ok != tc.ok || !strings.Contains(why, tc.because) {
 			t.Errorf("%s: got (%v, %q), want (%v, …%q…)", tc.name, ok, why, tc.ok, tc.because)
 		}

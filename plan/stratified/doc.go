@@ -35,13 +35,13 @@
 //
 //	ceiling  allocation              SRS  count  count*  Fisher  martingale  w-Hoeffding
 //	0.02     proportional           1271   1272    1272    2400        3112        17949
-//	0.02     equal                  1271   2429   13080    3717        4648        21320
-//	0.02     Neyman (rates vary)    1271   1822   11219    2239        3040        19010
-//	0.02     proportional, min 60   1271   1365    1365    2412        3112        17949
+//	0.02     equal                  1271   2285   13080    3717        4648        21320
+//	0.02     Neyman (rates vary)    1271   1714   11219    2239        3040        19010
+//	0.02     proportional, min 60   1271   1306    1365    2412        3112        17949
 //	0.05     proportional            506    511     511     955        1136         3232
-//	0.05     equal                   506   1001    9852    1461        1707         4634
-//	0.05     Neyman (rates vary)     506    688    4255     884        1138         3399
-//	0.05     proportional, min 60    506    561     673     978        1181         3232
+//	0.05     equal                   506    909    9852    1461        1707         4634
+//	0.05     Neyman (rates vary)     506    679    4255     884        1138         3399
+//	0.05     proportional, min 60    506    559     673     978        1181         3232
 //
 // SRS is the exact binomial plan of a simple random sample; count is
 // CountRule with the sub-sample of CountedForPower, count* counts every
@@ -74,9 +74,9 @@
 //
 // For 100 strata, 5 000 000 decisions (D* = 100 000 at a 2 % ceiling) and
 // 20 000 labels (bench_test.go): NewCountRule and Judge together take about
-// 0.3 ms, AcceptProbability about 3 ms, CountedForPower about 0.1 s (one
-// convolution per distinct sampling fraction), one look of Sequential
-// about 20 ms.
+// 0.3 ms, AcceptProbability about 3 ms, CountedForPower about 0.3 s (a
+// rule and a convolution per candidate sub-sample, two per distinct
+// sampling fraction), one look of Sequential about 20 ms.
 //
 // # Entry points
 //
