@@ -227,7 +227,7 @@ func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, sel
 	}
 	if in.Dedupe {
 		m.Dedupe = "first"
-		m.DuplicatesDropped = len(res.Duplicates)
+		m.DuplicatesDropped = int(res.Repeats)
 	}
 	for _, a := range alloc {
 		m.Strata = append(m.Strata, StratumInfo{Label: a.Label, Population: a.Population, Sample: a.Sample,

@@ -37,8 +37,13 @@ type ScanSpec struct {
 	// allocation can give (n + spare is always enough).
 	Capacity int
 	// Dedupe keeps the first occurrence of a repeated id instead of
-	// reporting an error.
+	// reporting an error; every stratum then counts distinct ids (the
+	// stratum of an id is that of its first row in scope), which needs an
+	// entry per distinct id (see distinctSet).
 	Dedupe bool
+	// MaxDistinct bounds the distinct ids a scan under Dedupe counts (0:
+	// DefaultMaxDistinct); a log with more is refused.
+	MaxDistinct int64
 	// Workers is the number of parsing and hashing goroutines (0: one per
 	// CPU).
 	Workers int
@@ -87,10 +92,13 @@ type ScanResult struct {
 	Compression string
 	SHA256      string
 	Bytes       int64
-	// Rows counts data rows; InScope those matching the filters (after
-	// dropping detected repeats under Dedupe).
+	// Rows counts data rows; InScope those matching the filters (under
+	// Dedupe: the distinct ids among them).
 	Rows    int64
 	InScope int64
+	// Repeats is, under Dedupe, the number of rows in scope dropped as
+	// later rows of an id already seen.
+	Repeats int64
 	Strata  []StratumScan
 	// Duplicates are the repeated ids detected, by line.
 	Duplicates []Duplicate
@@ -110,10 +118,12 @@ var ErrIDColumn = errors.New("the id column is not in the log")
 //
 // A repeated id has the same key on every row, so every repeat whose key
 // is among the kept rows of its stratum is detected exactly: without
-// Dedupe it is an error naming the first few and their lines; with Dedupe
-// the first occurrence is kept and the stratum count excludes the
-// repeats. (Repeats whose key is larger than every kept key cannot change
-// the sample and are not seen in one bounded pass.)
+// Dedupe it is an error naming the first few and their lines. (Repeats
+// whose key is larger than every kept key cannot change the sample and
+// are not seen in one bounded pass.) With Dedupe the first row of each id
+// is kept and the others dropped; the stratum counts are then exact
+// counts of distinct ids, which costs memory per distinct id (at most
+// MaxDistinct of them).
 func Scan(src io.Reader, spec ScanSpec) (*ScanResult, error) {
 	if spec.Name == "" {
 		spec.Name = "log"
@@ -135,6 +145,10 @@ func Scan(src io.Reader, spec ScanSpec) (*ScanResult, error) {
 		return nil, inputErrorf(spec.Name, 0, "", "cannot read the gzip header: %v", err)
 	}
 	s := &scanner{spec: spec, ol: ol}
+	if spec.Dedupe {
+		s.distinct = newDistinctSet(spec.MaxDistinct)
+		s.spec.MaxStrata = min(s.spec.MaxStrata, maxDistinctStrata)
+	}
 	return s.run()
 }
 
@@ -163,6 +177,39 @@ type scanner struct {
 	errSeq atomic.Int64 // lowest chunk seq that failed
 	mu     sync.Mutex
 	errs   []*inputerr.Error
+
+	// distinct holds every distinct id in scope under Dedupe (else nil);
+	// stratumNums numbers the strata for it, by label.
+	distinct    *distinctSet
+	numMu       sync.Mutex
+	stratumNums map[string]int
+	numLabels   []string
+}
+
+// stratumNumber returns the number of the stratum with this label in the
+// distinct-id table, numbering it when new.
+func (s *scanner) stratumNumber(label string) int {
+	s.numMu.Lock()
+	defer s.numMu.Unlock()
+	if s.stratumNums == nil {
+		s.stratumNums = map[string]int{}
+	}
+	n, ok := s.stratumNums[label]
+	if !ok {
+		n = len(s.numLabels)
+		s.stratumNums[label] = n
+		s.numLabels = append(s.numLabels, label)
+	}
+	return n
+}
+
+// tooManyDistinctError refuses a log with more distinct ids than a scan
+// under Dedupe counts.
+func (s *scanner) tooManyDistinctError() *inputerr.Error {
+	e := inputErrorf(s.spec.Name, 0, "", "more than %d distinct record ids are in scope: removing repeated ids counts every distinct id, and a draw holds at most that many in memory", s.distinct.max)
+	e.Err = ErrTooManyDistinct
+	e.Hint = "remove the repeated rows before drawing (or draw from a smaller scope), and draw without removing repeats"
+	return e
 }
 
 type compiledFilter struct {

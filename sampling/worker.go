@@ -45,7 +45,8 @@ type worker struct {
 	rows       int64
 	dups       []dupEvent
 	seq        int64
-	tooMany    bool
+	// tooMany is set once the distinct ids overflowed (reported once).
+	tooMany bool
 }
 
 type wstratum struct {
@@ -53,6 +54,8 @@ type wstratum struct {
 	label string
 	count int64
 	ret   *retainer
+	// num is the stratum's number in the distinct-id table (Dedupe).
+	num int
 }
 
 type dupEvent struct {
@@ -109,6 +112,9 @@ func (w *worker) finish() {
 // retainer finds become the worker's repeat events.
 func (w *worker) newStratum(label string) *wstratum {
 	st := &wstratum{label: label, ret: newRetainer(w.s.spec.Capacity, &w.merge)}
+	if w.s.distinct != nil {
+		st.num = w.s.stratumNumber(label)
+	}
 	st.ret.onDup = func(k *hkey, id []byte, kept, other int64) {
 		w.dups = append(w.dups, dupEvent{key: k.bytes(), stratum: label, id: string(id), kept: kept, other: other})
 	}
@@ -304,6 +310,11 @@ func (w *worker) classify(line int64, nf int) (*wstratum, *inputerr.Error) {
 // not nil, is the record whose kept columns have not been read yet (quoted
 // tells whether it holds quote characters); otherwise they are in w.vals.
 func (w *worker) consider(st *wstratum, key *hkey, id []byte, line int64, rec []byte, quoted bool) {
+	if d := w.s.distinct; d != nil && !d.add(key, line, st.num) && !w.tooMany {
+		w.tooMany = true
+		w.s.fail(w.seq, w.s.tooManyDistinctError())
+		return
+	}
 	r := st.ret
 	if !r.wants(key[0]) || !r.admit(key, line) {
 		return

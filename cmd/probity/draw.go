@@ -90,10 +90,13 @@ DIR receives, each written to a temporary name and renamed:
                         tool version
 A non-empty DIR is refused unless --force.
 
-Repeated record ids are an error unless --dedupe first (the first row of an
-id is kept). They are detected exactly among the rows that could be drawn
-(those whose keys are among the n + spare smallest of their stratum); a
-repeat that could not be drawn cannot change the sample.
+Repeated record ids are an error unless --dedupe first. They are detected
+exactly among the rows that could be drawn (those whose keys are among the
+n + spare smallest of their stratum); a repeat that could not be drawn cannot
+change the sample. --dedupe first keeps the first row of each id and drops
+the others: every stratum then counts distinct ids (an id belongs to the
+stratum of its first row), which needs memory for each distinct id, so a log
+with more than 10 million distinct ids in scope is refused.
 
 probity draw --check DIR --plan PLAN.yaml --log FILE draws again with the
 options recorded in DIR/manifest.json and reports whether the ledger and
@@ -254,6 +257,8 @@ func drawError(err error) error {
 	switch {
 	case errors.Is(err, sampling.ErrDuplicateIDs):
 		return inputerr.SetHint(err, "each record id must appear once; --dedupe first keeps the first row of each id")
+	case errors.Is(err, sampling.ErrTooManyDistinct):
+		return inputerr.SetHint(err, "remove the repeated rows before drawing (or narrow the scope with --where), then draw without --dedupe")
 	case errors.Is(err, sampling.ErrIDColumn):
 		return inputerr.SetHint(err, "name the id column with --id COLUMN")
 	case errors.Is(err, safewrite.ErrNotEmpty) && inputerr.HintOf(err) == "":
