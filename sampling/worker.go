@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"strconv"
+	"unicode/utf8"
 	"unsafe"
 
 	"probity/plan/inputerr"
@@ -235,6 +236,9 @@ func (w *worker) classify(line int64, nf int) (*wstratum, *inputerr.Error) {
 	if len(id) == 0 {
 		return nil, inputErrorf(name, int(line), s.spec.IDColumn, "the record id is empty")
 	}
+	if !utf8.Valid(id) {
+		return nil, notUTF8(name, line, s.spec.IDColumn, "the record id", id)
+	}
 	for _, f := range s.filters {
 		if _, ok := f.set[string(w.vals[f.slot])]; !ok {
 			return nil, nil
@@ -289,6 +293,8 @@ func (w *worker) classify(line int64, nf int) (*wstratum, *inputerr.Error) {
 			for i, sl := range s.strataSlots {
 				if v := w.vals[sl]; bytes.IndexByte(v, '|') >= 0 {
 					return nil, inputErrorf(name, int(line), s.spec.StrataColumns[i], "the value %q holds a |, which separates stratum values in labels", v)
+				} else if !utf8.Valid(v) {
+					return nil, notUTF8(name, line, s.spec.StrataColumns[i], "the stratum value", v)
 				}
 			}
 			if len(w.strata) >= s.spec.MaxStrata {
@@ -379,6 +385,24 @@ func parseScore(v []byte) (float64, error) {
 		return 0, strconv.ErrSyntax
 	}
 	return strconv.ParseFloat(unsafe.String(&v[0], len(v)), 64)
+}
+
+// notUTF8 refuses a value that is not valid UTF-8: ids and stratum values
+// are taken as bytes in every log format, and these bytes must reach the
+// worksheet, the ledger and the manifest (JSON) exactly, which only UTF-8
+// text can. The message names the first byte that is not.
+func notUTF8(file string, line int64, column, what string, v []byte) *inputerr.Error {
+	at := 0
+	for at < len(v) {
+		r, n := utf8.DecodeRune(v[at:])
+		if r == utf8.RuneError && n <= 1 {
+			break
+		}
+		at += n
+	}
+	e := inputErrorf(file, int(line), column, "%s %q is not valid UTF-8 (byte 0x%02x at byte %d)", what, v, v[at], at+1)
+	e.Hint = "ids and strata values are kept exactly as bytes; convert the log to UTF-8 (e.g. iconv -f latin1 -t utf-8), and take the ids from the converted log everywhere"
+	return e
 }
 
 // fieldName names the column at index i of the header, or "".

@@ -1,0 +1,59 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// refusedDraw runs a draw into a new folder that must be refused: exit 2,
+// stderr exactly want (one line per element), and no output folder or
+// temporary left behind.
+func refusedDraw(t *testing.T, stdin []byte, want []string, args ...string) {
+	t.Helper()
+	parent := t.TempDir()
+	out := filepath.Join(parent, "draw")
+	code, stdout, stderr := runDrawCmd(t, stdin, append(args, "--out", out)...)
+	if code != exitBadInput {
+		t.Fatalf("exit %d, want %d\nstdout: %s\nstderr: %s", code, exitBadInput, stdout, stderr)
+	}
+	if got := strings.Split(strings.TrimSuffix(stderr, "\n"), "\n"); strings.Join(got, "\n") != strings.Join(want, "\n") {
+		t.Fatalf("stderr\n%s\nwant\n%s", stderr, strings.Join(want, "\n"))
+	}
+	if left := tree(t, parent); len(left) > 0 {
+		t.Fatalf("a refused draw left %v behind", left)
+	}
+}
+
+// writeLog writes a log file into a new temp folder.
+func writeLog(t *testing.T, name, content string) string {
+	t.Helper()
+	p := filepath.Join(t.TempDir(), name)
+	if err := os.WriteFile(p, []byte(content), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// TestDrawRefusesIDsNotUTF8 (issue 16, item 5): ids are bytes; one that is
+// not valid UTF-8 is refused with its line in CSV, TSV and JSON Lines
+// alike (JSON Lines used to rewrite it to U+FFFD).
+func TestDrawRefusesIDsNotUTF8(t *testing.T) {
+	logs := map[string]string{
+		"log.csv":   "record_id,model_a,score\nr1,ok,0.1\nr\xe92,ok,0.2\n",
+		"log.tsv":   "record_id\tmodel_a\tscore\nr1\tok\t0.1\nr\xe92\tok\t0.2\n",
+		"log.jsonl": "{\"record_id\":\"r1\",\"model_a\":\"ok\",\"score\":0.1}\n{\"record_id\":\"r\xe92\",\"model_a\":\"ok\",\"score\":0.2}\n",
+	}
+	for name, content := range logs {
+		log := writeLog(t, name, content)
+		line := "3"
+		if name == "log.jsonl" {
+			line = "2"
+		}
+		refusedDraw(t, nil, []string{
+			"probity: " + log + " line " + line + `, field record_id: the record id "r\xe92" is not valid UTF-8 (byte 0xe9 at byte 2)`,
+			"hint: ids and strata values are kept exactly as bytes; convert the log to UTF-8 (e.g. iconv -f latin1 -t utf-8), and take the ids from the converted log everywhere",
+		}, "--plan", drawPlan, "--log", log, "--dedupe", "first")
+	}
+}
