@@ -38,7 +38,9 @@ type DrawInput struct {
 	// Double is k of --double k.
 	Double int
 	// Dedupe keeps the first row of a repeated id.
-	Dedupe      bool
+	Dedupe bool
+	// MaxLine bounds the bytes of a line of the log (0: DefaultMaxLine).
+	MaxLine     int64
 	ToolVersion string
 	Workers     int
 	ChunkSize   int
@@ -69,6 +71,9 @@ func Draw(in DrawInput) (*Folder, error) {
 	n := p.Rule.SampleSize
 	if in.Double < 0 || in.Double > n {
 		return nil, &inputerr.Error{Field: "double", Msg: fmt.Sprintf("%d: must be between 0 and the sample size %d", in.Double, n)}
+	}
+	if err := checkSpare(in.Alloc.Spare, n); err != nil {
+		return nil, err
 	}
 	if err := checkShow(in); err != nil {
 		return nil, err
@@ -102,7 +107,7 @@ func Draw(in DrawInput) (*Folder, error) {
 	res, err := Scan(in.Log, ScanSpec{
 		Name: name, Format: in.Format, Seed: selection, IDColumn: in.IDColumn,
 		StrataColumns: in.StrataColumns, Bands: in.Bands, Where: in.Where, Keep: keep, KeepRoles: roles,
-		Capacity: n + in.Alloc.Spare + capacityMargin, Dedupe: in.Dedupe,
+		Capacity: n + in.Alloc.Spare + capacityMargin, Dedupe: in.Dedupe, MaxLine: in.MaxLine,
 		Workers: in.Workers, ChunkSize: in.ChunkSize, Progress: in.Progress,
 	})
 	if err != nil {

@@ -209,7 +209,7 @@ func mergeRows(a, b []Row, label string, events *[]dupEvent) []Row {
 func (s *scanner) duplicateError(d []Duplicate) *inputerr.Error {
 	first := d[0]
 	var b strings.Builder
-	fmt.Fprintf(&b, "record id %q appears again (first on line %d)", first.ID, first.FirstLine)
+	fmt.Fprintf(&b, "record id %s appears again (first on line %d)", quote(first.ID), first.FirstLine)
 	if len(d) > 1 {
 		fmt.Fprintf(&b, "; %d repeats among the rows that could be drawn: ", len(d))
 		for i, x := range d {
@@ -220,7 +220,7 @@ func (s *scanner) duplicateError(d []Duplicate) *inputerr.Error {
 			if i > 0 {
 				b.WriteString(", ")
 			}
-			fmt.Fprintf(&b, "%q (lines %d and %d)", x.ID, x.FirstLine, x.Line)
+			fmt.Fprintf(&b, "%s (lines %d and %d)", quote(x.ID), x.FirstLine, x.Line)
 		}
 	}
 	e := inputErrorf(s.spec.Name, int(first.Line), s.spec.IDColumn, "%s", b.String())

@@ -52,6 +52,11 @@ type ScanSpec struct {
 	ChunkSize int
 	// MaxStrata bounds the number of strata (0: 10 000).
 	MaxStrata int
+	// MaxLine bounds the bytes of one line of the log, and of one record
+	// (a CSV record may span lines inside quotes), line end excluded (0:
+	// DefaultMaxLine): memory stays bounded by the sample even for a log
+	// without line ends. A longer line is refused (ErrLineTooLong).
+	MaxLine int64
 	// lineByLine sends CSV chunks holding quotes through the general
 	// line-by-line reader instead of the delimiter masks (tests compare
 	// the two).
@@ -107,6 +112,14 @@ type ScanResult struct {
 // ErrDuplicateIDs is wrapped by the error for repeated ids without Dedupe.
 var ErrDuplicateIDs = errors.New("duplicate record ids")
 
+// DefaultMaxLine is the longest line a log may have unless told
+// otherwise.
+const DefaultMaxLine = 16 << 20
+
+// ErrLineTooLong is wrapped by the error about a line of text longer than
+// ScanSpec.MaxLine.
+var ErrLineTooLong = errors.New("a line of the log is longer than the limit")
+
 // ErrIDColumn is the cause of the error about a log without the id column
 // the draw was told to use.
 var ErrIDColumn = errors.New("the id column is not in the log")
@@ -139,6 +152,9 @@ func Scan(src io.Reader, spec ScanSpec) (*ScanResult, error) {
 	}
 	if spec.IDColumn == "" {
 		spec.IDColumn = "record_id"
+	}
+	if spec.MaxLine <= 0 {
+		spec.MaxLine = DefaultMaxLine
 	}
 	ol, err := openLog(src)
 	if err != nil {
@@ -262,10 +278,16 @@ func (s *scanner) run() (*ScanResult, error) {
 		if headerEnd > 0 || rerr != nil {
 			break
 		}
-		first, rerr = readMore(br, first, 2*cap(first))
+		if int64(len(first)) > s.spec.MaxLine {
+			return nil, s.longRecordError(1, first)
+		}
+		first, rerr = readMore(br, first, s.growTo(cap(first)))
 	}
 	if headerEnd <= 0 {
 		headerEnd = len(first)
+	}
+	if err := s.checkLines(1, first[:headerEnd]); err != nil {
+		return nil, err
 	}
 	headRec := trimEOL(first[:headerEnd])
 	var err error
@@ -308,6 +330,11 @@ func (s *scanner) run() (*ScanResult, error) {
 					w.chunk(c)
 				}
 				*c.buf = (*c.buf)[:0]
+				if cap(*c.buf) > 4*s.spec.ChunkSize {
+					// Grown for a long record: let it go, so the
+					// pool does not keep long buffers.
+					*c.buf = make([]byte, 0, s.spec.ChunkSize)
+				}
 				pool <- c.buf
 			}
 			w.finish()
@@ -367,7 +394,7 @@ func (s *scanner) compile() error {
 	seen := map[string]int{}
 	for i, h := range s.header {
 		if _, dup := seen[h]; dup {
-			return inputErrorf(s.spec.Name, 1, h, "the header names column %q twice (column %d)", h, i+1)
+			return inputErrorf(s.spec.Name, 1, cut(h), "the header names column %s twice (column %d)", quote(h), i+1)
 		}
 		seen[h] = i
 	}

@@ -292,7 +292,7 @@ func (w *worker) classify(line int64, nf int) (*wstratum, *inputerr.Error) {
 			// two different value lists could share a label.
 			for i, sl := range s.strataSlots {
 				if v := w.vals[sl]; bytes.IndexByte(v, '|') >= 0 {
-					return nil, inputErrorf(name, int(line), s.spec.StrataColumns[i], "the value %q holds a |, which separates stratum values in labels", v)
+					return nil, inputErrorf(name, int(line), s.spec.StrataColumns[i], "the value %s holds a |, which separates stratum values in labels", quote(v))
 				} else if !utf8.Valid(v) {
 					return nil, notUTF8(name, line, s.spec.StrataColumns[i], "the stratum value", v)
 				}
@@ -370,7 +370,7 @@ func (w *worker) bandIndex(line int64, i, sl int) (int, *inputerr.Error) {
 		if err == nil {
 			what = "is outside [0, 1], the range a band splits"
 		}
-		return 0, inputErrorf(w.s.spec.Name, int(line), b.Column, "the band value %q %s", v, what)
+		return 0, inputErrorf(w.s.spec.Name, int(line), b.Column, "the band value %s %s", quote(v), what)
 	}
 	if e != nil {
 		*e = shortEntry{word: word, id: int32(idx)}
@@ -400,7 +400,7 @@ func notUTF8(file string, line int64, column, what string, v []byte) *inputerr.E
 		}
 		at += n
 	}
-	e := inputErrorf(file, int(line), column, "%s %q is not valid UTF-8 (byte 0x%02x at byte %d)", what, v, v[at], at+1)
+	e := inputErrorf(file, int(line), column, "%s %s is not valid UTF-8 (byte 0x%02x at byte %d)", what, quote(v), v[at], at+1)
 	e.Hint = "ids and strata values are kept exactly as bytes; convert the log to UTF-8 (e.g. iconv -f latin1 -t utf-8), and take the ids from the converted log everywhere"
 	return e
 }

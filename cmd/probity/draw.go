@@ -38,9 +38,11 @@ type drawOptions struct {
 	period      string
 	force       bool
 	quiet       bool
+	maxLine     string
 
-	parsedBands []sampling.Band
-	parsedWhere []sampling.Filter
+	parsedBands   []sampling.Band
+	parsedMaxLine int64
+	parsedWhere   []sampling.Filter
 }
 
 // drawProgressMin is the log size from which a progress bar is shown.
@@ -138,6 +140,7 @@ Labels written into the worksheets since the draw are not differences.
 	fl.StringVar(&opts.period, "period", "", "draw a fresh sample for period `LABEL` (e.g. 2026-11) with the period seed")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty output folder")
 	fl.BoolVarP(&opts.quiet, "quiet", "q", false, "no progress bar")
+	fl.StringVar(&opts.maxLine, "max-line", "", maxLineHelp)
 	hookDrawSQL(d, cmd, opts) // --sql, --table, --selected: draw_sql.go
 	return cmd
 }
@@ -149,6 +152,13 @@ func (o *drawOptions) validate() error {
 	}
 	if o.logPath == "" {
 		return inputerr.Errorf("--log is required").WithHint("give the prediction log, e.g. --log predictions.csv.gz (- reads stdin)")
+	}
+	if o.maxLine != "" {
+		n, err := parseSize("--max-line", o.maxLine)
+		if err != nil {
+			return err
+		}
+		o.parsedMaxLine = n
 	}
 	if o.check != "" {
 		if o.out != "" {
@@ -247,7 +257,7 @@ func openDrawLog(d deps, path string) (io.Reader, func(), int64, error) {
 // drawFlags names the flag of each draw setting the sampling package
 // names by its manifest key.
 var drawFlags = map[string]string{
-	"double": "--double", "show_columns": "--show", "bands": "--band", "where": "--where",
+	"double": "--double", "show_columns": "--show", "bands": "--band", "where": "--where", "spare": "--spare",
 }
 
 // drawError adds the draw command's flags to an error of the sampling
@@ -259,6 +269,8 @@ func drawError(err error) error {
 		return inputerr.SetHint(err, "each record id must appear once; --dedupe first keeps the first row of each id")
 	case errors.Is(err, sampling.ErrTooManyDistinct):
 		return inputerr.SetHint(err, "remove the repeated rows before drawing (or narrow the scope with --where), then draw without --dedupe")
+	case errors.Is(err, sampling.ErrLineTooLong):
+		return inputerr.SetHint(err, "a log holds one record per line; if its lines really are this long, raise the limit with --max-line, e.g. --max-line 256MiB")
 	case errors.Is(err, sampling.ErrIDColumn):
 		return inputerr.SetHint(err, "name the id column with --id COLUMN")
 	case errors.Is(err, safewrite.ErrNotEmpty) && inputerr.HintOf(err) == "":
@@ -281,7 +293,7 @@ func runDraw(d deps, o *drawOptions) error {
 		Plan: p, PlanFingerprint: fp, LogPath: o.logPath, Format: o.format, Period: o.period,
 		IDColumn: o.id, StrataColumns: o.strata, Bands: o.parsedBands, Where: o.parsedWhere, Show: o.show,
 		Alloc:  sampling.AllocOptions{Rule: o.allocation, MinPerStratum: o.minPer, Spare: o.spare},
-		Double: o.double, Dedupe: o.dedupe == "first", ToolVersion: d.version,
+		Double: o.double, Dedupe: o.dedupe == "first", MaxLine: o.parsedMaxLine, ToolVersion: d.version,
 	}
 	if o.allocation == sampling.Neyman {
 		if o.anticipated != "" {
@@ -399,7 +411,7 @@ func runDrawCheck(d deps, o *drawOptions) error {
 	if err != nil {
 		return inFile(err, mpath)
 	}
-	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
+	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion, in.MaxLine = p, fp, o.logPath, d.version, o.parsedMaxLine
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
 		return inFile(err, mpath)

@@ -5,6 +5,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"probity/sampling/loggen"
 )
 
 // refusedDraw runs a draw into a new folder that must be refused: exit 2,
@@ -56,4 +58,30 @@ func TestDrawRefusesIDsNotUTF8(t *testing.T) {
 			"hint: ids and strata values are kept exactly as bytes; convert the log to UTF-8 (e.g. iconv -f latin1 -t utf-8), and take the ids from the converted log everywhere",
 		}, "--plan", drawPlan, "--log", log, "--dedupe", "first")
 	}
+}
+
+// TestDrawBoundsMemory (issue 16, item 6): a log without line ends, a
+// line over the limit and spares beyond the sample are refused before
+// memory grows with them; --max-line raises the limit.
+func TestDrawBoundsMemory(t *testing.T) {
+	long := writeLog(t, "long.csv", "record_id,model_a,score,text\nr1,ok,0.1,"+strings.Repeat("x", 2<<20)+"\n")
+	refusedDraw(t, nil, []string{
+		"probity: " + long + " line 2: the line is longer than 1 MiB",
+		"hint: a log holds one record per line; if its lines really are this long, raise the limit with --max-line, e.g. --max-line 256MiB",
+	}, "--plan", drawPlan, "--log", long, "--max-line", "1MiB")
+	refusedDraw(t, nil, []string{
+		"probity: --max-line \"16 furlongs\" is not a size from 1 byte to 1 TiB",
+		"hint: e.g. --max-line 64MiB",
+	}, "--plan", drawPlan, "--log", long, "--max-line", "16 furlongs")
+	if _, err := os.Stat("/dev/zero"); err == nil {
+		refusedDraw(t, nil, []string{
+			"probity: /dev/zero line 1: the line is longer than 16 MiB and holds NUL bytes: this is not a text log",
+			"hint: give a CSV, TSV or JSON Lines file, optionally gzip-compressed",
+		}, "--plan", drawPlan, "--log", "/dev/zero")
+	}
+	log := writeGenLog(t, t.TempDir(), "log.csv", loggen.Config{Rows: 2000, Seed: 61})
+	refusedDraw(t, nil, []string{
+		"probity: --spare 99999999999: at most the sample size 581 per stratum",
+		"hint: spares replace the few items that cannot be labeled; a handful per stratum is usual",
+	}, "--plan", drawPlan, "--log", log, "--spare", "99999999999")
 }
