@@ -11,6 +11,7 @@ import (
 
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 	"probity/sampling/sqlquery"
 )
@@ -195,7 +196,7 @@ func runDrawSQL(d deps, o *drawOptions, so *drawSQLOptions) error {
 		return err
 	}
 	if !o.quiet {
-		fmt.Fprintf(d.stderr, "probity: query for %s on %s, sha256 %s\n", s.Dialect, s.Table, sampling.SHA256Hex([]byte(q)))
+		fmt.Fprintf(d.stderr, "probity: query for %s on %s, sha256 %s\n", s.Dialect, s.Table, drawfolder.SHA256Hex([]byte(q)))
 		fmt.Fprintf(d.stderr, "probity: run it, save the result as CSV with a header, then: probity draw --plan %s --selected RESULT.csv --out DIR\n", o.planPath)
 	}
 	return nil
@@ -221,7 +222,7 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 	if err != nil {
 		return drawError(err)
 	}
-	if err := sampling.WriteFolder(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: []string{o.planPath, so.selected}}); err != nil {
+	if err := drawfolder.Write(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: []string{o.planPath, so.selected}}); err != nil {
 		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
@@ -278,7 +279,7 @@ func checkSelectedFlags(c *cobra.Command, o *drawOptions, so *drawSQLOptions, s 
 // isEngineDraw reports whether the draw folder dir was made inside a
 // database (its manifest names an engine).
 func isEngineDraw(dir string) bool {
-	m, _, err := sampling.ReadManifest(filepath.Join(dir, sampling.ManifestFile))
+	m, _, err := drawfolder.ReadManifest(filepath.Join(dir, drawfolder.ManifestFile))
 	return err == nil && m.Engine != nil
 }
 
@@ -292,24 +293,24 @@ func runDrawCheckEngine(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
-	mpath := filepath.Join(o.check, sampling.ManifestFile)
-	m, _, err := sampling.ReadManifest(mpath)
+	mpath := filepath.Join(o.check, drawfolder.ManifestFile)
+	m, _, err := drawfolder.ReadManifest(mpath)
 	if err != nil {
 		return err
 	}
 	in, err := sampling.DrawInputFromManifest(m)
 	if err != nil {
-		return inFile(err, mpath)
+		return inputerr.InFile(err, mpath)
 	}
 	in.Format = ""
 	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
-		return inFile(err, mpath)
+		return inputerr.InFile(err, mpath)
 	}
 	exportSHA, exportBytes := f.Manifest.Log.SHA256, f.Manifest.Log.Bytes
 	f.Manifest.Log.SHA256, f.Manifest.Log.Bytes = m.Log.SHA256, m.Log.Bytes
-	rep, err := sampling.CompareFolder(o.check, f)
+	rep, err := drawfolder.Compare(o.check, f)
 	if err != nil {
 		return err
 	}

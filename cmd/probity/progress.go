@@ -4,8 +4,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"os"
-	"path/filepath"
 	"strings"
 	"text/tabwriter"
 
@@ -15,7 +13,7 @@ import (
 	"probity/plan/inputerr"
 	"probity/plan/progress"
 	"probity/plan/sequential"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // progressOptions are the flags of probity progress.
@@ -91,16 +89,29 @@ type progressCandidateJS struct {
 }
 
 func runProgress(d deps, opts *progressOptions) error {
-	in, fingerprint, period, err := loadProgressInput(opts)
+	p, fingerprint, err := plan.LoadForJudging(opts.planPath)
 	if err != nil {
 		return err
 	}
-	res, err := progress.Assess(in)
+	if p.Sequential != nil {
+		if err := sequential.Validate(p.Sequential); err != nil {
+			return inputerr.Errorf("%s: sequential: %v", opts.planPath, err).WithHint("the boundaries were edited by hand; use the plan file probity plan wrote")
+		}
+	}
+	f, err := drawfolder.Open(opts.drawDir, fingerprint, p.CandidateNames())
+	if err != nil {
+		return err
+	}
+	l, err := drawfolder.ReadLabels(opts.labels)
+	if err != nil {
+		return err
+	}
+	res, err := progress.Assess(progress.Input{Plan: p, Ledger: f.Ledger, Worksheet: l.Rows, WorksheetName: l.Path})
 	if err != nil {
 		return err
 	}
 	if opts.json {
-		rep := progressReport{Plan: opts.planPath, PlanFingerprint: fingerprint, Labels: opts.labels, Period: period, Result: res}
+		rep := progressReport{Plan: opts.planPath, PlanFingerprint: fingerprint, Labels: opts.labels, Period: f.Manifest.Period, Result: res}
 		for _, c := range res.Candidates {
 			rep.Candidates = append(rep.Candidates, progressCandidateJS{Candidate: c, Stop: c.Decision != sequential.Continue, Status: progressStatus(c.Decision)})
 		}
@@ -109,62 +120,8 @@ func runProgress(d deps, opts *progressOptions) error {
 		enc.SetIndent("", "  ")
 		return enc.Encode(rep)
 	}
-	writeProgress(d.stdout, in.Plan, res)
+	writeProgress(d.stdout, p, res)
 	return nil
-}
-
-// loadProgressInput reads the plan, the draw folder and the labels, and
-// checks that they belong together.
-func loadProgressInput(opts *progressOptions) (progress.Input, string, string, error) {
-	var in progress.Input
-	p, fingerprint, err := plan.Load(opts.planPath)
-	if err != nil {
-		return in, "", "", err
-	}
-	if p.IsSizingOnly() {
-		return in, "", "", inputerr.Errorf("%s: the plan declares no candidates, so there is nothing to judge", opts.planPath).WithHint("use the plan the sample was drawn from")
-	}
-	if p.Sequential != nil {
-		if err := sequential.Validate(p.Sequential); err != nil {
-			return in, "", "", inputerr.Errorf("%s: sequential: %v", opts.planPath, err).WithHint("the boundaries were edited by hand; use the plan file probity plan wrote")
-		}
-	}
-	manifestPath := filepath.Join(opts.drawDir, sampling.ManifestFile)
-	m, _, err := sampling.ReadManifest(manifestPath)
-	if err != nil {
-		return in, "", "", err
-	}
-	if m.PlanFingerprint != fingerprint {
-		return in, "", "", inputerr.Errorf("%s: plan_fingerprint %s is not the fingerprint of %s (%s)", manifestPath, progressShort(m.PlanFingerprint), opts.planPath, progressShort(fingerprint)).WithHint("use the plan file the sample was drawn from, unedited")
-	}
-	ledgerPath := filepath.Join(opts.drawDir, sampling.LedgerFile)
-	data, err := os.ReadFile(ledgerPath)
-	if err != nil {
-		return in, "", "", err
-	}
-	if want := m.Files[sampling.LedgerFile]; sampling.SHA256Hex(data) != want {
-		return in, "", "", inputerr.Errorf("%s: SHA-256 %s differs from the manifest's %s", ledgerPath, progressShort(sampling.SHA256Hex(data)), progressShort(want)).WithHint("the ledger was changed after the draw; use the original file")
-	}
-	names := make([]string, len(p.Candidates))
-	for i, c := range p.Candidates {
-		names[i] = c.Name
-	}
-	ledger, err := sampling.ReadLedger(ledgerPath, names)
-	if err != nil {
-		return in, "", "", err
-	}
-	_, ws, err := sampling.ReadWorksheet(opts.labels)
-	if err != nil {
-		return in, "", "", err
-	}
-	return progress.Input{Plan: p, Ledger: ledger, Worksheet: ws, WorksheetName: opts.labels}, fingerprint, m.Period, nil
-}
-
-func progressShort(fp string) string {
-	if len(fp) > 12 {
-		return fp[:12]
-	}
-	return fp
 }
 
 // progressStatus is the printed decision.

@@ -11,7 +11,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/pdfreport"
-	"probity/plan"
+	"probity/plan/agreement"
 	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
@@ -135,7 +135,7 @@ func (o *recordOptions) validate() error {
 		return inputerr.Errorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
 	}
 	o.unequal = u
-	return nil
+	return o.quality.validate()
 }
 
 func oneOf(v string, list []string) bool {
@@ -147,43 +147,12 @@ func oneOf(v string, list []string) bool {
 	return false
 }
 
-// recordInputs are the files a record is computed from, read and checked.
-type recordInputs struct {
-	plan   *plan.File
-	planFP string
-	folder *intake.Folder
-	labels *intake.Labels
-}
-
-// loadRecordInputs reads the plan, the draw folder and the labels.
-func loadRecordInputs(planPath, drawDir, labels string) (*recordInputs, error) {
-	p, fp, err := plan.Load(planPath)
-	if err != nil {
-		return nil, err
-	}
-	if p.IsSizingOnly() {
-		return nil, inputerr.Errorf("%s: the plan declares no candidates, so there is nothing to judge", planPath).WithHint("use the plan the sample was drawn from")
-	}
-	names := make([]string, len(p.Candidates))
-	for i, c := range p.Candidates {
-		names[i] = c.Name
-	}
-	f, err := intake.ReadFolder(drawDir, fp, names)
-	if err != nil {
-		return nil, err
-	}
-	l, err := intake.ReadLabels(labels)
-	if err != nil {
-		return nil, err
-	}
-	return &recordInputs{plan: p, planFP: fp, folder: f, labels: l}, nil
-}
-
 func runRecord(d deps, o *recordOptions) error {
 	if err := checkOutWritable(o.out, o.force); err != nil {
 		return err
 	}
-	in, err := loadRecordInputs(o.planPath, o.drawDir, o.labels)
+	in, err := assemble.Read(assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels,
+		Second: o.quality.second, Adjudications: o.quality.adjudicated})
 	if err != nil {
 		return err
 	}
@@ -216,24 +185,16 @@ func runRecord(d deps, o *recordOptions) error {
 	if err != nil {
 		return err
 	}
-	adjust, err := labelQualityAdjust(o.quality, in.plan, in.folder, in.labels)
-	if err != nil {
-		return err
-	}
 	date := o.date
 	if date == "" {
 		date = d.now().UTC().Format("2006-01-02")
 	}
-	rec, err := assemble.Assemble(assemble.Input{
-		Plan: in.plan, PlanFP: in.planFP, Folder: in.folder, Labels: in.labels,
-		AllowIncomplete: o.allowIncomplete, Bound: o.unequal, Use: o.use, Date: date,
-		Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP, Adjust: adjust,
+	rec, err := assemble.Assemble(in, assemble.Options{
+		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
+		Bound: o.unequal, Use: o.use, Date: date, Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
 	})
-	if errors.Is(err, intake.ErrIncomplete) {
-		return inputerr.SetHint(err, inputerr.HintOf(err)+", or pass --allow-incomplete to count each as an error for every candidate")
-	}
 	if err != nil {
-		return err
+		return recordHints(err, o)
 	}
 	files, err := renderRecord(rec, o.paper, set, priv)
 	if err != nil {
@@ -252,6 +213,23 @@ func runRecord(d deps, o *recordOptions) error {
 		return rejected("")
 	}
 	return nil
+}
+
+// recordHints completes the hint of a refusal that a flag can lift:
+// incomplete labeling (--allow-incomplete) and open disagreements of
+// double labeling (--adjudicated, --allow-unadjudicated).
+func recordHints(err error, o *recordOptions) error {
+	switch {
+	case errors.Is(err, intake.ErrIncomplete):
+		return inputerr.SetHint(err, inputerr.HintOf(err)+", or pass --allow-incomplete to count each as an error for every candidate")
+	case errors.Is(err, agreement.ErrUnadjudicated):
+		fix := "or pass --allow-unadjudicated to count them as errors for every candidate"
+		if o.quality.adjudicated == "" {
+			return inputerr.SetHint(err, inputerr.HintOf(err)+" and pass --adjudicated FILE, "+fix)
+		}
+		return inputerr.SetHint(err, inputerr.HintOf(err)+", "+fix)
+	}
+	return err
 }
 
 // renderRecord encodes record.json, lays out record.pdf and, with a key,

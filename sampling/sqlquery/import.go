@@ -9,6 +9,7 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // Result is a query result that passed every check: it was made by the
@@ -65,7 +66,7 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	if err != nil {
 		return nil, err
 	}
-	res := &Result{Path: path, SHA256: sampling.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{}}
+	res := &Result{Path: path, SHA256: drawfolder.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{}}
 	if len(t.rows) == 0 || t.rows[0][colKind] != KindDraw {
 		return nil, &inputerr.Error{File: path, Line: 2, Field: "kind", Msg: "the first row must be the draw row (kind " + KindDraw + ")",
 			Hint: "save the whole result of the query, in the order it returns"}
@@ -76,7 +77,7 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	if res.Query, err = Query(res.Spec); err != nil {
 		return nil, &inputerr.Error{File: path, Line: t.lines[0], Field: "detail", Msg: err.Error(), Err: err}
 	}
-	res.QuerySHA256 = sampling.SHA256Hex([]byte(res.Query))
+	res.QuerySHA256 = drawfolder.SHA256Hex([]byte(res.Query))
 	if res.TableRows, err = t.int64At(0, colStratumSize); err != nil {
 		return nil, err
 	}
