@@ -16,6 +16,13 @@ import (
 	"probity/sampling/drawfolder"
 )
 
+// labelCellHelp says what a label cell may hold, in the help of every
+// command that reads labels (the rule is drawfolder.ParseLabel's).
+const labelCellHelp = `A label cell holds one of the plan's classes, spelled exactly as the plan
+spells it (case counts: "OK" is not the class "ok"), the word "unsure" in any
+case ("Unsure" too) for an item that cannot be decided, or nothing; spaces
+around it are ignored. Anything else is refused, naming the file and line.`
+
 // progressOptions are the flags of probity progress.
 type progressOptions struct {
 	planPath string
@@ -36,7 +43,9 @@ can take at most.
 
 The worksheet lists the sample in random key order, so the labeled items at
 its top are themselves a random sample. Label it from the top without skipping
-items: a gap followed by labels breaks that and is refused.
+items: a gap followed by labels breaks that and is refused. The draw folder is
+checked as record checks it: drawn from this plan, its ledger and worksheet
+the files the draw wrote.
 
 A fixed plan (label n, accept at most c errors) stops by exact curtailment:
 reject as soon as the errors exceed c, accept as soon as even all the
@@ -45,6 +54,8 @@ changes: every stop is the decision the full sample would give. A sequential
 plan (probity plan --design sequential) stops at its own boundaries.
 Items labeled "unsure" count as errors toward acceptance and as correct
 toward rejection. Spare items are ignored.
+
+` + labelCellHelp + `
 
 ` + exitCodesHelp + `
 progress exits 0 whenever it could assess the worksheet, whatever the
@@ -64,7 +75,7 @@ decision.`,
 	}
 	fl := cmd.Flags()
 	fl.StringVar(&opts.planPath, "plan", "", "the plan file the sample was drawn from")
-	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv)")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv, worksheet.csv)")
 	fl.StringVar(&opts.labels, "labels", "", "the worksheet, labeled from the top")
 	fl.BoolVar(&opts.json, "json", false, "print one JSON object instead of the table")
 	return cmd

@@ -61,6 +61,8 @@ replace unlabeled or unsure items of their stratum, in order. Incomplete
 labeling is refused unless --allow-incomplete, which counts every item left
 unlabeled or unsure as an error for every candidate and says so in the record.
 
+` + labelCellHelp + `
+
 A self-weighting sample is judged by the plan's rule (accept when errors ≤ c),
 with the exact Clopper–Pearson bound (or the exact hypergeometric bound for a
 finite lot). When the strata's inclusion weights are unequal the error is
@@ -243,9 +245,9 @@ func renderRecord(rec *record.Record, paper string, set *templates.Set, priv ed2
 	if err != nil {
 		return nil, &internalError{msg: "laying out record.pdf: " + err.Error()}
 	}
-	files := []namedFile{{recordJSON, js}, {recordPDF, pdf}}
+	files := []namedFile{{record.JSONFile, js}, {record.PDFFile, pdf}}
 	if priv != nil {
-		sig := signature.Sign(priv, map[string][]byte{recordJSON: js, recordPDF: pdf})
+		sig := signature.Sign(priv, map[string][]byte{record.JSONFile: js, record.PDFFile: pdf})
 		files = append(files, namedFile{signature.FileName, sig.Marshal()})
 	}
 	return files, nil

@@ -4,6 +4,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"probity/plan/record"
 	"probity/sampling/drawfolder"
 	"regexp"
 	"strings"
@@ -101,7 +102,7 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 			t.Errorf("%s: exit %d\n%s%s", r.name, code, stdout, stderr)
 			continue
 		}
-		js, err := os.ReadFile(filepath.Join(out, recordJSON))
+		js, err := os.ReadFile(filepath.Join(out, record.JSONFile))
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -114,7 +115,7 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 			}
 			continue
 		}
-		txt, err := exec.Command("pdftotext", "-layout", filepath.Join(out, recordPDF), "-").Output()
+		txt, err := exec.Command("pdftotext", "-layout", filepath.Join(out, record.PDFFile), "-").Output()
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -4,16 +4,9 @@ import (
 	"path/filepath"
 
 	"probity/plan/inputerr"
-	"probity/plan/record"
 	"probity/plan/record/signature"
 	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
-)
-
-// Names of the files in a record folder.
-const (
-	recordJSON = record.JSONFile
-	recordPDF  = record.PDFFile
 )
 
 // namedFile is one file of a record folder.
