@@ -153,11 +153,6 @@ func runRecord(d deps, o *recordOptions) error {
 	if err := checkOutWritable(o.out, o.force); err != nil {
 		return err
 	}
-	in, err := assemble.Read(assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels,
-		Second: o.quality.second, Adjudications: o.quality.adjudicated})
-	if err != nil {
-		return err
-	}
 	var signoff []record.Signoff
 	if o.signoff != "" {
 		data, err := os.ReadFile(o.signoff)
@@ -191,24 +186,25 @@ func runRecord(d deps, o *recordOptions) error {
 	if date == "" {
 		date = d.now().UTC().Format("2006-01-02")
 	}
-	rec, err := assemble.Assemble(in, assemble.Options{
+	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated}
+	rec, err := assemble.Record(files, assemble.Options{
 		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
 		Bound: o.unequal, Use: o.use, Date: date, Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
 	})
 	if err != nil {
 		return recordHints(err, o)
 	}
-	files, err := renderRecord(rec, o.paper, set, priv)
+	out, err := renderRecord(rec, o.paper, set, priv)
 	if err != nil {
 		return err
 	}
-	if err := writeRecordFolder(o.out, files, o.force, recordInputFiles(o)); err != nil {
+	if err := writeRecordFolder(o.out, out, o.force, recordInputFiles(o)); err != nil {
 		return err
 	}
 	if o.json {
-		d.stdout.Write(files[0].data)
+		d.stdout.Write(out[0].data)
 	} else {
-		writeRecordSummary(d, o, rec, files)
+		writeRecordSummary(d, o, rec, out)
 	}
 	reportLabelQuality(d, rec.LabelQuality, !o.json)
 	if rec.OverallVerdict != record.Accept {
