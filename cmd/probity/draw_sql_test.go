@@ -250,7 +250,7 @@ func TestDrawSQLFlags(t *testing.T) {
 		want string
 	}{
 		{[]string{"--plan", sqlPlan, "--sql", "postgres"}, "probity: --sql needs --table\nhint: name the table or view"},
-		{[]string{"--plan", sqlPlan, "--sql", "oracle", "--table", "t"}, `--sql: unknown SQL dialect "oracle" (supported: postgres, duckdb)`},
+		{[]string{"--plan", sqlPlan, "--sql", "oracle", "--table", "t"}, `--sql: unknown SQL dialect "oracle" (supported: postgres, duckdb, clickhouse)`},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--log", "x.csv"}, "--log cannot be used with --sql\nhint: the query reads the table, not a log"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--out", "d"}, "--out cannot be used with --sql"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--allocation", "neyman"}, "--allocation neyman cannot run inside the engine"},
@@ -265,6 +265,12 @@ func TestDrawSQLFlags(t *testing.T) {
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--allocation", "best"}, `unknown allocation rule "best"`},
 		{[]string{"--plan", sqlPlan, "--selected", "r.csv", "--sql", "postgres"}, "--sql and --selected cannot be used together"},
 		{[]string{"--plan", sqlPlan, "--log", "x.csv", "--out", "d", "--table", "t"}, "--table is only used with --sql"},
+		{[]string{"--plan", sqlPlan, "--log", "x.csv", "--out", "d", "--counts", "c.csv"}, "--counts is only used with --sql clickhouse or --selected"},
+		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--counts", "c.csv"}, "--counts cannot be used with --sql postgres"},
+		{[]string{"--plan", sqlPlan, "--sql", "clickhouse"}, "probity: --sql needs --table"},
+		{[]string{"--plan", sqlPlan, "--sql", "clickhouse", "--table", "a.b.c"}, `has 3 parts; ClickHouse names a table database.table`},
+		{[]string{"--plan", sqlPlan, "--sql", "clickhouse", "--table", "t", "--allocation", "neyman"}, "--allocation neyman cannot run inside the engine"},
+		{[]string{"--plan", sqlPlan, "--counts", "-", "--selected", "-", "--out", "d"}, "--counts and --selected cannot both read stdin"},
 	}
 	for _, c := range cases {
 		code, stdout, stderr := runDrawCmd(t, nil, c.args...)

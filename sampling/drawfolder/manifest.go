@@ -95,9 +95,14 @@ type StratumInfo struct {
 
 // EngineInfo records a selection run inside a database engine.
 type EngineInfo struct {
-	Dialect     string `json:"dialect"` // postgres or duckdb
+	Dialect     string `json:"dialect"` // postgres, duckdb or clickhouse
 	Table       string `json:"table"`
 	QuerySHA256 string `json:"query_sha256"`
+	// CountsSHA256 and CountsQuerySHA256 are set for a draw made in two
+	// steps (clickhouse): the SHA-256 of the counts query's result file,
+	// from which the allocation was computed, and of the counts query.
+	CountsSHA256      string `json:"counts_sha256,omitempty"`
+	CountsQuerySHA256 string `json:"counts_query_sha256,omitempty"`
 }
 
 // MarshalManifest encodes m as manifest.json: keys in struct order (maps

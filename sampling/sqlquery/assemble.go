@@ -13,9 +13,9 @@ import (
 // as the draw from a file lays it out: the sample in ascending key order,
 // then the spares in key order; the first Spec.Double sample items marked
 // for a second label; each candidate's prediction from its column's value.
-// The manifest records the engine, the table and the query's SHA-256, and
-// describes the result file as the log that was read (with the table's
-// row count).
+// The manifest records the engine, the table and the query's SHA-256 (for
+// a two-step draw also those of the counts file and query), and describes
+// the result file as the log that was read (with the table's row count).
 func (res *Result) Folder(toolVersion string) (*drawfolder.Content, error) {
 	s := res.Spec
 	values := s.valueColumns()
@@ -90,6 +90,9 @@ func (res *Result) manifest(toolVersion string, sample, spares int) *drawfolder.
 		SampleSize:    sample,
 		Spares:        spares,
 		Engine:        &drawfolder.EngineInfo{Dialect: string(s.Dialect), Table: s.Table, QuerySHA256: res.QuerySHA256},
+	}
+	if c := res.Counts; c != nil {
+		m.Engine.CountsSHA256, m.Engine.CountsQuerySHA256 = c.SHA256, c.QuerySHA256
 	}
 	if s.Period != "" {
 		m.Period = s.Period
