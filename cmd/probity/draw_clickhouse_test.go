@@ -11,7 +11,7 @@ import (
 	"strings"
 	"testing"
 
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 	"probity/sampling/sqlquery"
 	"probity/sampling/sqlquery/chcluster"
@@ -65,7 +65,7 @@ func TestDrawClickHouse(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("--sql clickhouse: exit %d: %s", code, stderr)
 	}
-	if !strings.Contains(stderr, "counts query (step 1 of 2) for clickhouse on default.predictions, sha256 "+sampling.SHA256Hex([]byte(countsQuery))) ||
+	if !strings.Contains(stderr, "counts query (step 1 of 2) for clickhouse on default.predictions, sha256 "+drawfolder.SHA256Hex([]byte(countsQuery))) ||
 		!strings.Contains(stderr, "--sql clickhouse --counts COUNTS.csv") {
 		t.Errorf("stderr should give the counts query's SHA-256 and the next step:\n%s", stderr)
 	}
@@ -99,19 +99,19 @@ func TestDrawClickHouse(t *testing.T) {
 		t.Fatalf("--counts --selected: exit %d: %s", code, stderr)
 	}
 	countsData, _ := os.ReadFile(counts)
-	for _, want := range []string{"drew 400 items", "(null)|web", "drawn inside clickhouse from table default.predictions (the log above is the query's result); query sha256 " + sampling.SHA256Hex([]byte(selectionQuery)),
-		"allocated from the counts in " + counts + " (sha256 " + sampling.SHA256Hex(countsData) + ")"} {
+	for _, want := range []string{"drew 400 items", "(null)|web", "drawn inside clickhouse from table default.predictions (the log above is the query's result); query sha256 " + drawfolder.SHA256Hex([]byte(selectionQuery)),
+		"allocated from the counts in " + counts + " (sha256 " + drawfolder.SHA256Hex(countsData) + ")"} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("--selected output lacks %q:\n%s", want, stdout)
 		}
 	}
-	var m sampling.Manifest
-	data, _ := os.ReadFile(filepath.Join(chDir, sampling.ManifestFile))
+	var m drawfolder.Manifest
+	data, _ := os.ReadFile(filepath.Join(chDir, drawfolder.ManifestFile))
 	if err := json.Unmarshal(data, &m); err != nil {
 		t.Fatal(err)
 	}
-	if m.Engine == nil || m.Engine.Dialect != "clickhouse" || m.Engine.CountsSHA256 != sampling.SHA256Hex(countsData) ||
-		m.Engine.CountsQuerySHA256 != sampling.SHA256Hex([]byte(countsQuery)) || m.LotSize != 30000 {
+	if m.Engine == nil || m.Engine.Dialect != "clickhouse" || m.Engine.CountsSHA256 != drawfolder.SHA256Hex(countsData) ||
+		m.Engine.CountsQuerySHA256 != drawfolder.SHA256Hex([]byte(countsQuery)) || m.LotSize != 30000 {
 		t.Errorf("manifest engine %+v, lot %d", m.Engine, m.LotSize)
 	}
 
@@ -124,7 +124,7 @@ func TestDrawClickHouse(t *testing.T) {
 	if code, _, stderr := runDrawCmd(t, nil, append([]string{"--plan", sqlPlan, "--log", export, "--out", logDir}, flags...)...); code != exitOK {
 		t.Fatalf("--log: exit %d: %s", code, stderr)
 	}
-	for _, f := range []string{sampling.WorksheetFile, sampling.WorksheetSecondFile, sampling.LedgerFile} {
+	for _, f := range []string{drawfolder.WorksheetFile, drawfolder.WorksheetSecondFile, drawfolder.LedgerFile} {
 		a, _ := os.ReadFile(filepath.Join(chDir, f))
 		b, _ := os.ReadFile(filepath.Join(logDir, f))
 		if len(a) == 0 || !bytes.Equal(a, b) {

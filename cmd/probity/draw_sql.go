@@ -11,6 +11,7 @@ import (
 
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 	"probity/sampling/sqlquery"
 )
@@ -234,7 +235,7 @@ func runDrawSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOptions) er
 		return err
 	}
 	if !o.quiet {
-		fmt.Fprintf(d.stderr, "probity: query for %s on %s, sha256 %s\n", s.Dialect, s.Table, sampling.SHA256Hex([]byte(q)))
+		fmt.Fprintf(d.stderr, "probity: query for %s on %s, sha256 %s\n", s.Dialect, s.Table, drawfolder.SHA256Hex([]byte(q)))
 		fmt.Fprintf(d.stderr, "probity: run it, save the result as CSV with a header, then: probity draw --plan %s --selected RESULT.csv --out DIR\n", o.planPath)
 	}
 	return nil
@@ -251,7 +252,7 @@ func printCountsQuery(d deps, o *drawOptions, s *sqlquery.Spec) error {
 	}
 	noteQuerySize(d, q)
 	if !o.quiet {
-		fmt.Fprintf(d.stderr, "probity: counts query (step 1 of 2) for %s on %s, sha256 %s\n", s.Dialect, s.Table, sampling.SHA256Hex([]byte(q)))
+		fmt.Fprintf(d.stderr, "probity: counts query (step 1 of 2) for %s on %s, sha256 %s\n", s.Dialect, s.Table, drawfolder.SHA256Hex([]byte(q)))
 		fmt.Fprintf(d.stderr, "probity: run it, save the result as CSV with a header, then: probity draw --plan %s --sql %s --counts COUNTS.csv > selection.sql\n", o.planPath, s.Dialect)
 	}
 	return nil
@@ -294,7 +295,7 @@ func runDrawSelectionSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOp
 			n, spares = n+a.Sample, spares+a.Spare
 		}
 		fmt.Fprintf(d.stderr, "probity: selection query (step 2 of 2) for %s on %s, sha256 %s: %d items and %d spares from %d strata (%d rows in scope)\n",
-			counts.Spec.Dialect, counts.Spec.Table, sampling.SHA256Hex([]byte(q)), n, spares, len(counts.Strata), counts.InScope)
+			counts.Spec.Dialect, counts.Spec.Table, drawfolder.SHA256Hex([]byte(q)), n, spares, len(counts.Strata), counts.InScope)
 		fmt.Fprintf(d.stderr, "probity: run it, save the result as CSV with a header, then: probity draw --plan %s --counts %s --selected RESULT.csv --out DIR\n", o.planPath, so.counts)
 	}
 	return nil
@@ -329,7 +330,7 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 	if err != nil {
 		return drawError(err)
 	}
-	if err := sampling.WriteFolder(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: []string{o.planPath, so.selected, so.counts}}); err != nil {
+	if err := drawfolder.Write(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: []string{o.planPath, so.selected, so.counts}}); err != nil {
 		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
@@ -389,7 +390,7 @@ func checkResultFlags(file string, c *cobra.Command, o *drawOptions, so *drawSQL
 // isEngineDraw reports whether the draw folder dir was made inside a
 // database (its manifest names an engine).
 func isEngineDraw(dir string) bool {
-	m, _, err := sampling.ReadManifest(filepath.Join(dir, sampling.ManifestFile))
+	m, _, err := drawfolder.ReadManifest(filepath.Join(dir, drawfolder.ManifestFile))
 	return err == nil && m.Engine != nil
 }
 
@@ -403,24 +404,24 @@ func runDrawCheckEngine(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
-	mpath := filepath.Join(o.check, sampling.ManifestFile)
-	m, _, err := sampling.ReadManifest(mpath)
+	mpath := filepath.Join(o.check, drawfolder.ManifestFile)
+	m, _, err := drawfolder.ReadManifest(mpath)
 	if err != nil {
 		return err
 	}
 	in, err := sampling.DrawInputFromManifest(m)
 	if err != nil {
-		return inFile(err, mpath)
+		return inputerr.InFile(err, mpath)
 	}
 	in.Format = ""
 	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
-		return inFile(err, mpath)
+		return inputerr.InFile(err, mpath)
 	}
 	exportSHA, exportBytes := f.Manifest.Log.SHA256, f.Manifest.Log.Bytes
 	f.Manifest.Log.SHA256, f.Manifest.Log.Bytes = m.Log.SHA256, m.Log.Bytes
-	rep, err := sampling.CompareFolder(o.check, f)
+	rep, err := drawfolder.Compare(o.check, f)
 	if err != nil {
 		return err
 	}

@@ -11,7 +11,7 @@ import (
 	"strings"
 	"testing"
 
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 )
 
@@ -96,7 +96,7 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("--sql: exit %d: %s", code, stderr)
 	}
-	querySHA := sampling.SHA256Hex([]byte(query))
+	querySHA := drawfolder.SHA256Hex([]byte(query))
 	if !strings.Contains(stderr, "sha256 "+querySHA) || !strings.Contains(stderr, "--selected RESULT.csv") {
 		t.Errorf("stderr should give the query's SHA-256 and the next step:\n%s", stderr)
 	}
@@ -128,15 +128,15 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("--log: exit %d: %s", code, stderr)
 	}
-	for _, f := range []string{sampling.WorksheetFile, sampling.WorksheetSecondFile, sampling.LedgerFile} {
+	for _, f := range []string{drawfolder.WorksheetFile, drawfolder.WorksheetSecondFile, drawfolder.LedgerFile} {
 		a, _ := os.ReadFile(filepath.Join(sqlDir, f))
 		b, _ := os.ReadFile(filepath.Join(logDir, f))
 		if len(a) == 0 || !bytes.Equal(a, b) {
 			t.Errorf("%s differs between the draw in the engine and the draw from the export", f)
 		}
 	}
-	var m sampling.Manifest
-	data, _ := os.ReadFile(filepath.Join(sqlDir, sampling.ManifestFile))
+	var m drawfolder.Manifest
+	data, _ := os.ReadFile(filepath.Join(sqlDir, drawfolder.ManifestFile))
 	if err := json.Unmarshal(data, &m); err != nil {
 		t.Fatal(err)
 	}
@@ -155,7 +155,7 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 
 	// An export that lost a drawn row does not verify it.
 	var ledgerFirst string
-	if l, err := sampling.ReadLedger(filepath.Join(sqlDir, sampling.LedgerFile), []string{"model-a", "score-0.7"}); err == nil && len(l) > 0 {
+	if l, err := drawfolder.ReadLedger(filepath.Join(sqlDir, drawfolder.LedgerFile), []string{"model-a", "score-0.7"}); err == nil && len(l) > 0 {
 		ledgerFirst = l[0].RecordID
 	}
 	exportData, _ := os.ReadFile(export)

@@ -7,6 +7,7 @@ import (
 	"testing"
 
 	"probity/plan/record"
+	"probity/plan/record/verification"
 )
 
 var updateRecordGolden = flag.Bool("update-record", false, "rewrite testdata/record/sorter-record.json")
@@ -37,7 +38,7 @@ func TestRecordGolden(t *testing.T) {
 	if string(got) != string(want) {
 		r := readRecord(t, out)
 		w, _ := decodeRecordBytes(want)
-		diffs, _ := diffRecords(w, r)
+		diffs, _ := verification.Diff(w, r)
 		t.Errorf("record.json differs from %s: %v", golden, diffs)
 	}
 }

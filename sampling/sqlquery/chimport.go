@@ -8,6 +8,7 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // Counts is the result of a ClickHouse counts query that passed every
@@ -59,11 +60,11 @@ func ReadCounts(path string, stdin io.Reader, p *plan.File, fingerprint string) 
 	if !spec.Dialect.TwoStep() || countsSHA != "" {
 		return nil, t.rowError(0, colDetail, "the counts row describes a %s draw, which has no counts query", spec.Dialect)
 	}
-	c := &Counts{Path: path, SHA256: sampling.SHA256Hex(data), Bytes: int64(len(data)), Spec: spec}
+	c := &Counts{Path: path, SHA256: drawfolder.SHA256Hex(data), Bytes: int64(len(data)), Spec: spec}
 	if c.Query, err = CountsQuery(spec); err != nil {
 		return nil, &inputerr.Error{File: path, Line: t.lines[0], Field: "detail", Msg: err.Error(), Err: err}
 	}
-	c.QuerySHA256 = sampling.SHA256Hex([]byte(c.Query))
+	c.QuerySHA256 = drawfolder.SHA256Hex([]byte(c.Query))
 	if c.TableRows, err = t.int64At(0, colStratumSize); err != nil {
 		return nil, err
 	}
@@ -136,12 +137,12 @@ func ImportSelection(path string, stdin io.Reader, p *plan.File, fingerprint str
 	if !bytes.Equal(got, want) {
 		return nil, t.rowError(0, colDetail, "the result describes another draw than its counts file %s", counts.Path)
 	}
-	res := &Result{Path: path, SHA256: sampling.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{},
+	res := &Result{Path: path, SHA256: drawfolder.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{},
 		Spec: counts.Spec, TableRows: counts.TableRows, InScope: counts.InScope, Strata: counts.Strata, Counts: counts}
 	if res.Query, err = SelectionQuery(counts); err != nil {
 		return nil, &inputerr.Error{File: path, Line: t.lines[0], Field: "detail", Msg: err.Error(), Err: err}
 	}
-	res.QuerySHA256 = sampling.SHA256Hex([]byte(res.Query))
+	res.QuerySHA256 = drawfolder.SHA256Hex([]byte(res.Query))
 	if err := checkValueColumns(t, res.Spec); err != nil {
 		return nil, err
 	}

@@ -13,6 +13,7 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // synthCH writes, without a server, the two results a ClickHouse draw of
@@ -99,7 +100,7 @@ func synthCHCase(t *testing.T) (p *plan.File, s *Spec, rows [][4]string, countsP
 	if err := os.WriteFile(countsPath, counts, 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if err := os.WriteFile(selectedPath, selection(sampling.SHA256Hex(counts)), 0o644); err != nil {
+	if err := os.WriteFile(selectedPath, selection(drawfolder.SHA256Hex(counts)), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	return p, s, rows, countsPath, selectedPath
@@ -135,8 +136,8 @@ func TestImportSelectionSynthetic(t *testing.T) {
 	}
 	compareFolders(t, got, want)
 	e := got.Manifest.Engine
-	if e == nil || e.Dialect != "clickhouse" || e.CountsSHA256 != counts.SHA256 || e.CountsQuerySHA256 != sampling.SHA256Hex([]byte(counts.Query)) ||
-		e.QuerySHA256 != sampling.SHA256Hex([]byte(res.Query)) {
+	if e == nil || e.Dialect != "clickhouse" || e.CountsSHA256 != counts.SHA256 || e.CountsQuerySHA256 != drawfolder.SHA256Hex([]byte(counts.Query)) ||
+		e.QuerySHA256 != drawfolder.SHA256Hex([]byte(res.Query)) {
 		t.Errorf("manifest engine %+v", e)
 	}
 	// The one-query import refuses a two-step result and says why.

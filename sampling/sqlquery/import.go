@@ -9,6 +9,7 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // Result is a query result that passed every check: it was made by the
@@ -68,7 +69,7 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	if err != nil {
 		return nil, err
 	}
-	res := &Result{Path: path, SHA256: sampling.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{}}
+	res := &Result{Path: path, SHA256: drawfolder.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{}}
 	if err := firstRowKind(t, KindDraw); err != nil {
 		return nil, err
 	}
@@ -84,7 +85,7 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	if res.Query, err = Query(res.Spec); err != nil {
 		return nil, &inputerr.Error{File: path, Line: t.lines[0], Field: "detail", Msg: err.Error(), Err: err}
 	}
-	res.QuerySHA256 = sampling.SHA256Hex([]byte(res.Query))
+	res.QuerySHA256 = drawfolder.SHA256Hex([]byte(res.Query))
 	if res.TableRows, err = t.int64At(0, colStratumSize); err != nil {
 		return nil, err
 	}

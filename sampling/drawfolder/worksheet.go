@@ -1,9 +1,23 @@
-package sampling
+package drawfolder
 
 import (
 	"io"
 	"strconv"
 )
+
+// WorksheetRow is one row of worksheet.csv, what labelers get: item,
+// record_id, the shown columns, label, note (and, once label quality is
+// tracked, labeler). It never carries a prediction, score or stratum.
+type WorksheetRow struct {
+	Item     int
+	RecordID string
+	Show     []string
+	Label    string
+	Note     string
+	Labeler  string
+	// Line is the 1-based line in the file it was read from (0 if written).
+	Line int
+}
 
 // WorksheetHeader returns a worksheet's header: item, record_id, the show
 // columns, label, note, labeler.
@@ -42,7 +56,7 @@ func ReadWorksheet(path string) (header []string, rows []WorksheetRow, err error
 	if err != nil {
 		return nil, nil, err
 	}
-	return worksheetFromTable(t)
+	return worksheetFromTable(path, t)
 }
 
 // worksheetLayout finds the show columns and whether a labeler column is
@@ -74,17 +88,16 @@ func worksheetLayout(name string, h []string) (nShow int, hasLabeler bool, err e
 	return end - 4, hasLabeler, nil
 }
 
-func worksheetFromTable(t *csvTable) ([]string, []WorksheetRow, error) {
-	name := t.name
-	nShow, hasLabeler, err := worksheetLayout(name, t.header)
+func worksheetFromTable(name string, t *CSVTable) ([]string, []WorksheetRow, error) {
+	nShow, hasLabeler, err := worksheetLayout(name, t.Header)
 	if err != nil {
 		return nil, nil, err
 	}
-	rows := make([]WorksheetRow, 0, len(t.rows))
+	rows := make([]WorksheetRow, 0, len(t.Rows))
 	items := map[int]int{}
 	ids := map[string]int{}
-	for i, rec := range t.rows {
-		line := t.lines[i]
+	for i, rec := range t.Rows {
+		line := t.Lines[i]
 		var r WorksheetRow
 		r.Line = line
 		if r.Item, err = parseItem(name, line, "item", rec[0]); err != nil {
@@ -110,5 +123,19 @@ func worksheetFromTable(t *csvTable) ([]string, []WorksheetRow, error) {
 		}
 		rows = append(rows, r)
 	}
-	return append([]string{}, t.header...), rows, nil
+	return append([]string{}, t.Header...), rows, nil
+}
+
+// ShownColumns returns the shown columns of a worksheet header: the
+// columns between record_id and label (item, record_id, shown…, label,
+// note[, labeler]); none when the header is not a worksheet's.
+func ShownColumns(h []string) []string {
+	end := len(h)
+	if end > 0 && h[end-1] == "labeler" {
+		end--
+	}
+	if end < 4 {
+		return nil
+	}
+	return h[2 : end-2]
 }

@@ -1,13 +1,13 @@
-package sampling
+package drawfolder
 
-// Names of the files in a draw folder.
-const (
-	WorksheetFile = "worksheet.csv"
-	LedgerFile    = "ledger.csv"
-	ManifestFile  = "manifest.json"
-	// WorksheetSecondFile is the second, independent worksheet written
-	// for the items marked by `draw --double k`.
-	WorksheetSecondFile = "worksheet-second.csv"
+import (
+	"bytes"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"probity/plan/inputerr"
 )
 
 // ManifestFormat is the version of the manifest layout written by this code.
@@ -33,7 +33,7 @@ type Manifest struct {
 	Log           LogInfo  `json:"log"`
 	IDColumn      string   `json:"id_column"`
 	StrataColumns []string `json:"strata_columns"`
-	// Bands are the --band definitions, e.g. "score=0.5,0.9".
+	// Bands are the score bands that define strata, e.g. "score=0.5,0.9".
 	Bands       []string       `json:"bands"`
 	ShowColumns []string       `json:"show_columns"`
 	Allocation  AllocationInfo `json:"allocation"`
@@ -47,14 +47,14 @@ type Manifest struct {
 	// Engine is set when the selection ran inside a database (nil for a
 	// draw from a log file).
 	Engine *EngineInfo `json:"engine"`
-	// Where lists the --where filters that define the scope ("COLUMN=V1,V2").
+	// Where lists the filters that define the scope ("COLUMN=V1,V2").
 	Where []string `json:"where"`
 	// Dedupe is "first" when repeated ids were allowed (first row kept),
 	// else "". DuplicatesDropped counts the repeated rows dropped.
 	Dedupe            string `json:"dedupe"`
 	DuplicatesDropped int    `json:"duplicates_dropped"`
-	// Double is k of --double k: the first k items in key order are also in
-	// worksheet-second.csv.
+	// Double is the number of items drawn for a second label: the first
+	// Double items in key order are also in worksheet-second.csv.
 	Double int `json:"double"`
 	// LotSize is the number of rows in scope (after filters and dropped
 	// repeats): the lot a finite-population plan judges. For a periodic
@@ -105,35 +105,101 @@ type EngineInfo struct {
 	CountsQuerySHA256 string `json:"counts_query_sha256,omitempty"`
 }
 
-// LedgerRow is one row of ledger.csv, kept by the audit owner. Columns, in
-// order: item, record_id, stratum, stratum_size, stratum_sample, weight,
-// key, spare, double, then one column per candidate (named as the
-// candidate) with its prediction.
-type LedgerRow struct {
-	Item          int      // 1-based position in the worksheet
-	RecordID      string   // the log's id
-	Stratum       string   // stratum label (values joined with "|")
-	StratumSize   int64    // N_h
-	StratumSample int      // n_h (spares not counted)
-	Weight        float64  // N_h / n_h
-	Key           string   // lowercase hex SHA-256 of "<seed>:<record id>"
-	Spare         bool     // drawn as a spare
-	Predictions   []string // one per plan candidate, in plan order
-	// Double marks an item that also goes to worksheet-second.csv for an
-	// independent second label (`draw --double k`).
-	Double bool
+// MarshalManifest encodes m as manifest.json: keys in struct order (maps
+// sorted by key), two-space indent, no HTML escaping, a trailing newline.
+// Nil lists are written as [] rather than null, so the bytes depend only on
+// the content.
+func MarshalManifest(m *Manifest) ([]byte, error) {
+	c := *m
+	if c.StrataColumns == nil {
+		c.StrataColumns = []string{}
+	}
+	if c.Bands == nil {
+		c.Bands = []string{}
+	}
+	if c.ShowColumns == nil {
+		c.ShowColumns = []string{}
+	}
+	if c.Where == nil {
+		c.Where = []string{}
+	}
+	if c.Strata == nil {
+		c.Strata = []StratumInfo{}
+	}
+	if c.Files == nil {
+		c.Files = map[string]string{}
+	}
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(&c); err != nil {
+		return nil, fmt.Errorf("encoding manifest: %w", err)
+	}
+	return buf.Bytes(), nil
 }
 
-// WorksheetRow is one row of worksheet.csv, what labelers get: item,
-// record_id, the --show columns, label, note (and, once label quality is
-// tracked, labeler). It never carries a prediction, score or stratum.
-type WorksheetRow struct {
-	Item     int
-	RecordID string
-	Show     []string
-	Label    string
-	Note     string
-	Labeler  string
-	// Line is the 1-based line in the file it was read from (0 if written).
-	Line int
+// WriteManifest writes MarshalManifest(m) to w.
+func WriteManifest(w io.Writer, m *Manifest) error {
+	b, err := MarshalManifest(m)
+	if err != nil {
+		return err
+	}
+	_, err = w.Write(b)
+	return err
+}
+
+// ParseManifest decodes manifest.json bytes; name is used in errors.
+// Unknown keys and a format other than ManifestFormat are refused.
+func ParseManifest(data []byte, name string) (*Manifest, error) {
+	dec := json.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	var m Manifest
+	if err := dec.Decode(&m); err != nil {
+		line := 0
+		var se *json.SyntaxError
+		var te *json.UnmarshalTypeError
+		switch {
+		case errors.As(err, &se):
+			line = lineAt(data, se.Offset)
+		case errors.As(err, &te):
+			line = lineAt(data, te.Offset)
+		}
+		return nil, &inputerr.Error{File: name, Line: line, Msg: "not a valid manifest: " + err.Error(), Err: err}
+	}
+	if dec.More() {
+		return nil, inputErrorf(name, 0, "", "not a valid manifest: extra data after the JSON object")
+	}
+	if m.Format != ManifestFormat {
+		return nil, inputErrorf(name, 0, "format", "format %d is not supported (this probity reads format %d)", m.Format, ManifestFormat)
+	}
+	if m.SelectionSeed == "" {
+		return nil, inputErrorf(name, 0, "selection_seed", "selection_seed is empty")
+	}
+	return &m, nil
+}
+
+// ReadManifest reads and decodes a manifest.json. It also returns the raw
+// bytes, which later steps fingerprint.
+func ReadManifest(path string) (*Manifest, []byte, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, nil, inputerr.FromPath(err)
+	}
+	m, err := ParseManifest(data, path)
+	if err != nil {
+		return nil, nil, err
+	}
+	return m, data, nil
+}
+
+// lineAt returns the 1-based line of byte offset off in data.
+func lineAt(data []byte, off int64) int {
+	if off > int64(len(data)) {
+		off = int64(len(data))
+	}
+	if off < 0 {
+		off = 0
+	}
+	return bytes.Count(data[:off], []byte("\n")) + 1
 }

@@ -1,4 +1,4 @@
-package main
+package verification
 
 import (
 	"bytes"
@@ -14,9 +14,11 @@ import (
 // record is compared with a stored one (both are canonical to 15 digits).
 const diffTolerance = 1e-9
 
-// diffRecords compares two records field by field and returns the paths
-// that differ, e.g. `candidates[1].errors: 3 in the record, 4 recomputed`.
-func diffRecords(stored, again *record.Record) ([]string, error) {
+// Diff compares a stored record with one recomputed from its inputs, field
+// by field in record.json's own order, and returns the paths that differ,
+// e.g. `candidates[1].errors: 3 in the record, 4 recomputed`. Numbers
+// within a relative diffTolerance are the same.
+func Diff(stored, again *record.Record) ([]string, error) {
 	a, err := record.Encode(stored)
 	if err != nil {
 		return nil, err

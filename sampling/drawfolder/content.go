@@ -1,4 +1,4 @@
-package sampling
+package drawfolder
 
 import (
 	"bytes"
@@ -7,14 +7,14 @@ import (
 	"probity/sampling/safewrite"
 )
 
-// Folder is the content of a draw folder, ready to be written: the
-// manifest (its Files map is filled in by Render), the ledger and the
-// worksheets. It is built by the draw from a log file and can equally be
-// built from rows selected elsewhere (e.g. inside a database).
-type Folder struct {
+// Content is what a draw writes into its folder: the manifest (its Files
+// map is filled in by Render), the ledger and the worksheets. It is built
+// by the draw from a log file and can equally be built from rows selected
+// elsewhere (e.g. inside a database).
+type Content struct {
 	Manifest   *Manifest
 	Candidates []string // candidate names, plan order (ledger columns)
-	Show       []string // --show columns (worksheet columns)
+	Show       []string // the shown columns (worksheet columns after record_id)
 	Ledger     []LedgerRow
 	Worksheet  []WorksheetRow
 	// Second is worksheet-second.csv; nil when no item is doubled.
@@ -30,7 +30,7 @@ type NamedFile struct {
 // Render encodes the folder's files in the order they are written:
 // worksheet.csv, worksheet-second.csv (if any), ledger.csv, then
 // manifest.json, whose Files map it sets to the SHA-256 of the others.
-func (f *Folder) Render() ([]NamedFile, error) {
+func (f *Content) Render() ([]NamedFile, error) {
 	var files []NamedFile
 	var buf bytes.Buffer
 	if err := WriteWorksheet(&buf, f.Show, f.Worksheet); err != nil {
@@ -66,11 +66,11 @@ func SHA256Hex(data []byte) string {
 	return hex.EncodeToString(s[:])
 }
 
-// WriteFolder renders f and writes it into dir through safewrite: a new
-// dir appears whole; into an existing one (o.Replace, the draw's --force)
-// the files are moved into place together, manifest.json last, and a
+// Write renders f and writes it into dir through safewrite: a new dir
+// appears whole; into an existing one (o.Replace, a forced draw) the files
+// are moved into place together, manifest.json last, and a
 // worksheet-second.csv of an earlier draw is removed when f has none.
-func WriteFolder(dir string, f *Folder, o safewrite.FolderOptions) error {
+func Write(dir string, f *Content, o safewrite.FolderOptions) error {
 	rendered, err := f.Render()
 	if err != nil {
 		return err

@@ -1,4 +1,4 @@
-package sampling
+package drawfolder
 
 import (
 	"bytes"
@@ -11,55 +11,36 @@ import (
 	"strconv"
 )
 
-// csvTable is a small CSV file read whole: the header and the rows, each
-// with the 1-based line it starts on. It is used for the draw folder's own
-// files (ledger, worksheets), which are as large as the sample, not the log.
-type csvTable struct {
-	name   string
-	header []string
-	rows   [][]string
-	lines  []int
-}
-
-// readCSVTable reads a CSV file with a header line. A UTF-8 byte-order mark
-// (added by some spreadsheet programs) is ignored, as are CRLF line ends.
-// Every row must have as many fields as the header.
-func readCSVTable(path string) (*csvTable, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return nil, inputerr.FromPath(err)
-	}
-	return parseCSVTable(data, path)
-}
-
-// CSVTable is a small CSV file with a header line, read whole: what
-// ParseCSVTable returns to callers outside this package (a query result,
-// an adjudication file). Lines[i] is the 1-based line Rows[i] starts on.
+// CSVTable is a small CSV file with a header line, read whole: the draw
+// folder's own files (ledger, worksheets), which are as large as the
+// sample, not the log, and other small tables read the same way (an
+// adjudication file, a query result). Lines[i] is the 1-based line Rows[i]
+// starts on.
 type CSVTable struct {
 	Header []string
 	Rows   [][]string
 	Lines  []int
 }
 
-// ParseCSVTable parses a small CSV file with a header line, as the draw
-// folder's own files are read: a UTF-8 byte-order mark and CRLF line ends
-// are accepted, every row must have as many fields as the header, and an
-// empty file is an error. Errors are *inputerr.Error values naming name and
-// the line.
-func ParseCSVTable(data []byte, name string) (*CSVTable, error) {
-	t, err := parseCSVTable(data, name)
+// readCSVTable reads a CSV file with ParseCSVTable.
+func readCSVTable(path string) (*CSVTable, error) {
+	data, err := os.ReadFile(path)
 	if err != nil {
-		return nil, err
+		return nil, inputerr.FromPath(err)
 	}
-	return &CSVTable{Header: t.header, Rows: t.rows, Lines: t.lines}, nil
+	return ParseCSVTable(data, path)
 }
 
-// parseCSVTable is readCSVTable on bytes already read.
-func parseCSVTable(data []byte, name string) (*csvTable, error) {
+// ParseCSVTable parses a small CSV file with a header line: a UTF-8
+// byte-order mark (added by some spreadsheet programs) and CRLF line ends
+// are accepted, every row must have as many fields as the header, and an
+// empty file is an error. Errors are *inputerr.Error values naming name
+// and the line.
+func ParseCSVTable(data []byte, name string) (*CSVTable, error) {
 	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
 	r := csv.NewReader(bytes.NewReader(data))
 	r.FieldsPerRecord = -1
-	t := &csvTable{name: name}
+	t := &CSVTable{}
 	for {
 		rec, err := r.Read()
 		if err == io.EOF {
@@ -73,24 +54,25 @@ func parseCSVTable(data []byte, name string) (*csvTable, error) {
 			return nil, &inputerr.Error{File: name, Msg: err.Error(), Err: err}
 		}
 		line, _ := r.FieldPos(0)
-		if t.header == nil {
-			t.header = rec
+		if t.Header == nil {
+			t.Header = rec
 			continue
 		}
-		if len(rec) != len(t.header) {
-			return nil, inputErrorf(name, line, "", "%d fields, but the header has %d", len(rec), len(t.header))
+		if len(rec) != len(t.Header) {
+			return nil, inputErrorf(name, line, "", "%d fields, but the header has %d", len(rec), len(t.Header))
 		}
-		t.rows = append(t.rows, rec)
-		t.lines = append(t.lines, line)
+		t.Rows = append(t.Rows, rec)
+		t.Lines = append(t.Lines, line)
 	}
-	if t.header == nil {
+	if t.Header == nil {
 		return nil, inputErrorf(name, 0, "", "the file is empty (no header line)")
 	}
 	return t, nil
 }
 
-// checkHeader compares a header with the expected column names.
-func checkHeader(name string, got, want []string) error {
+// CheckHeader compares a header read from the file name with the expected
+// column names; a difference is an *inputerr.Error naming line 1.
+func CheckHeader(name string, got, want []string) error {
 	if len(got) != len(want) {
 		return inputErrorf(name, 1, "", "header has %d columns, expected %d: %s", len(got), len(want), columnList(want))
 	}

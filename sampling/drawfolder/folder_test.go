@@ -1,4 +1,4 @@
-package sampling
+package drawfolder
 
 import (
 	"bytes"
@@ -12,9 +12,9 @@ import (
 	"testing"
 )
 
-func sampleFolder() *Folder {
+func sampleFolder() *Content {
 	key := strings.Repeat("ab", 32)
-	return &Folder{
+	return &Content{
 		Manifest: &Manifest{
 			Format: ManifestFormat, ToolVersion: "test", PlanFingerprint: "pf",
 			Seed: "s", SelectionSeed: "s", KeyDefinition: "k",
@@ -42,7 +42,7 @@ func sampleFolder() *Folder {
 func TestFolderRoundTrip(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "draw")
 	f := sampleFolder()
-	if err := WriteFolder(dir, f, safewrite.FolderOptions{}); err != nil {
+	if err := Write(dir, f, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	names, _ := filepath.Glob(filepath.Join(dir, "*"))
@@ -88,13 +88,13 @@ func TestFolderRoundTrip(t *testing.T) {
 		t.Fatal("manifest does not re-encode to the same bytes")
 	}
 	// A second write is refused without force, allowed with it.
-	err = WriteFolder(dir, sampleFolder(), safewrite.FolderOptions{})
+	err = Write(dir, sampleFolder(), safewrite.FolderOptions{})
 	if !errors.Is(err, safewrite.ErrNotEmpty) {
 		t.Fatalf("second write: %v, want safewrite.ErrNotEmpty", err)
 	}
 	g := sampleFolder()
 	g.Second = nil
-	if err := WriteFolder(dir, g, safewrite.FolderOptions{Replace: true}); err != nil {
+	if err := Write(dir, g, safewrite.FolderOptions{Replace: true}); err != nil {
 		t.Fatal(err)
 	}
 	if _, err := os.Stat(filepath.Join(dir, WorksheetSecondFile)); !errors.Is(err, os.ErrNotExist) {

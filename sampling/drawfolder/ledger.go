@@ -1,10 +1,29 @@
-package sampling
+package drawfolder
 
 import (
 	"io"
 	"math"
 	"strconv"
 )
+
+// LedgerRow is one row of ledger.csv, kept by the audit owner. Columns, in
+// order: item, record_id, stratum, stratum_size, stratum_sample, weight,
+// key, spare, double, then one column per candidate (named as the
+// candidate) with its prediction.
+type LedgerRow struct {
+	Item          int      // 1-based position in the worksheet
+	RecordID      string   // the log's id
+	Stratum       string   // stratum label (values joined with "|")
+	StratumSize   int64    // N_h
+	StratumSample int      // n_h (spares not counted)
+	Weight        float64  // N_h / n_h
+	Key           string   // lowercase hex SHA-256 of "<seed>:<record id>"
+	Spare         bool     // drawn as a spare
+	Predictions   []string // one per plan candidate, in plan order
+	// Double marks an item that also goes to worksheet-second.csv for an
+	// independent second label.
+	Double bool
+}
 
 // LedgerFixedColumns are the first columns of ledger.csv, before one column
 // per candidate.
@@ -47,28 +66,27 @@ func ReadLedger(path string, candidates []string) ([]LedgerRow, error) {
 	if err != nil {
 		return nil, err
 	}
-	return ledgerFromTable(t, candidates)
+	return ledgerFromTable(path, t, candidates)
 }
 
-func ledgerFromTable(t *csvTable, candidates []string) ([]LedgerRow, error) {
-	name := t.name
+func ledgerFromTable(name string, t *CSVTable, candidates []string) ([]LedgerRow, error) {
 	want := LedgerHeader(candidates)
-	hasDouble := len(t.header) != len(want)-1
+	hasDouble := len(t.Header) != len(want)-1
 	if !hasDouble {
 		want = append(append([]string{}, LedgerFixedColumns[:8]...), candidates...)
 	}
-	if err := checkHeader(name, t.header, want); err != nil {
+	if err := CheckHeader(name, t.Header, want); err != nil {
 		return nil, err
 	}
 	first := 8
 	if hasDouble {
 		first = 9
 	}
-	rows := make([]LedgerRow, 0, len(t.rows))
+	rows := make([]LedgerRow, 0, len(t.Rows))
 	items := map[int]int{}
 	ids := map[string]int{}
-	for i, rec := range t.rows {
-		line := t.lines[i]
+	for i, rec := range t.Rows {
+		line := t.Lines[i]
 		var r LedgerRow
 		var err error
 		if r.Item, err = parseItem(name, line, "item", rec[0]); err != nil {
