@@ -7,6 +7,8 @@ import (
 	"strings"
 	"testing"
 
+	"probity/sampling/drawfolder"
+
 	"probity/sampling/loggen"
 )
 
@@ -57,7 +59,7 @@ func TestDedupeCountsDistinctIDs(t *testing.T) {
 	north := func(f []string) bool { return f[1] == "north" }
 	tripled, added := repeatRows(t, clean, 2, north, nil, 7)
 	strata := []string{"region"}
-	draw := func(log []byte, dedupe bool, chunk int) *Folder {
+	draw := func(log []byte, dedupe bool, chunk int) *drawfolder.Content {
 		t.Helper()
 		f, err := Draw(DrawInput{Plan: testPlan("dedupe", 300), LogPath: "log.csv", Log: bytes.NewReader(log),
 			StrataColumns: strata, Show: []string{"text"}, Alloc: AllocOptions{Spare: 2}, Dedupe: dedupe, ChunkSize: chunk, Workers: 2})
@@ -77,7 +79,7 @@ func TestDedupeCountsDistinctIDs(t *testing.T) {
 			t.Fatalf("chunk %d: %d repeats dropped, lot %d; want %d and %d", chunk, got.Manifest.DuplicatesDropped, got.Manifest.LotSize, added, want.Manifest.LotSize)
 		}
 		files := renderMap(t, got)
-		for _, name := range []string{LedgerFile, WorksheetFile} {
+		for _, name := range []string{drawfolder.LedgerFile, drawfolder.WorksheetFile} {
 			if !bytes.Equal(files[name], wantFiles[name]) {
 				t.Fatalf("chunk %d: %s differs from the draw of the log without repeats", chunk, name)
 			}
@@ -111,7 +113,7 @@ func TestDedupeAcrossStrata(t *testing.T) {
 	if fmt.Sprint(got.Manifest.Strata) != fmt.Sprint(want.Manifest.Strata) {
 		t.Fatalf("strata\n %+v\nwant\n %+v", got.Manifest.Strata, want.Manifest.Strata)
 	}
-	if !bytes.Equal(renderMap(t, got)[LedgerFile], renderMap(t, want)[LedgerFile]) {
+	if !bytes.Equal(renderMap(t, got)[drawfolder.LedgerFile], renderMap(t, want)[drawfolder.LedgerFile]) {
 		t.Fatal("the ledger differs from the draw of the log without repeats")
 	}
 }

@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"strings"
 	"testing"
+
+	"probity/sampling/drawfolder"
 )
 
 // TestIDsAreBytes: a record id that is not valid UTF-8 is refused with
@@ -39,7 +41,7 @@ func TestIDsAreBytes(t *testing.T) {
 func TestJSONStringsKeptExactly(t *testing.T) {
 	csv := "record_id,model_a,score,text\n\xc3\xa9t\xc3\xa9,ok,0.1,caf\xe9\n"
 	jsonl := "{\"record_id\":\"\\u00e9t\\u00e9\",\"model_a\":\"ok\",\"score\":0.1,\"text\":\"caf\xe9\"}\n"
-	draw := func(name, log string) *Folder {
+	draw := func(name, log string) *drawfolder.Content {
 		t.Helper()
 		f, err := Draw(DrawInput{Plan: testPlan("j", 1), LogPath: name, Log: strings.NewReader(log), Show: []string{"text"}})
 		if err != nil {
