@@ -9,6 +9,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record/signature"
 	"probity/sampling/safewrite"
 )
@@ -80,9 +81,12 @@ func runKeygen(d deps, o *keygenOptions) error {
 // loadPrivateKey reads a private key file written by keygen and returns
 // it with its public key's fingerprint.
 func loadPrivateKey(path string) (ed25519.PrivateKey, string, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
+	data, err := inputfile.ReadFile(path, "private key", inputfile.SmallLimit)
+	if errors.Is(err, os.ErrNotExist) {
 		return nil, "", inputerr.Errorf("cannot read --sign-key %s: %v", path, errors.Unwrap(err)).WithHint("make a key pair with 'probity keygen --out NAME'")
+	}
+	if err != nil {
+		return nil, "", err
 	}
 	priv, err := signature.ParsePrivate(data, path)
 	if err != nil {
@@ -93,9 +97,12 @@ func loadPrivateKey(path string) (ed25519.PrivateKey, string, error) {
 
 // loadPublicKey reads a public key file written by keygen.
 func loadPublicKey(path string) (ed25519.PublicKey, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
+	data, err := inputfile.ReadFile(path, "public key", inputfile.SmallLimit)
+	if errors.Is(err, os.ErrNotExist) {
 		return nil, inputerr.Errorf("cannot read --pub %s: %v", path, errors.Unwrap(err)).WithHint("pass the NAME.pub file written by probity keygen")
+	}
+	if err != nil {
+		return nil, err
 	}
 	pub, err := signature.ParsePublic(data, path)
 	if err != nil {

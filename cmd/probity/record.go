@@ -13,6 +13,7 @@ import (
 	"probity/pdfreport"
 	"probity/plan/agreement"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/record/intake"
@@ -155,9 +156,9 @@ func runRecord(d deps, o *recordOptions) error {
 	}
 	var signoff []record.Signoff
 	if o.signoff != "" {
-		data, err := os.ReadFile(o.signoff)
+		data, err := inputfile.ReadFile(o.signoff, "sign-off file", inputfile.SmallLimit)
 		if err != nil {
-			return inputerr.FromPath(err)
+			return err
 		}
 		if signoff, err = record.ParseSignoff(data, o.signoff); err != nil {
 			return inputerr.SetHint(err, "see 'probity record --help' for the sign-off file's keys")

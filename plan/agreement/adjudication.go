@@ -3,12 +3,12 @@ package agreement
 import (
 	"errors"
 	"fmt"
-	"os"
 	"slices"
 	"strconv"
 	"strings"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/sampling/drawfolder"
 )
 
@@ -43,9 +43,9 @@ type Adjudication struct {
 // accepted). Every final_label must be one of classes. Errors are
 // *inputerr.Error naming the file, line and column.
 func ReadAdjudications(path string, classes []string) ([]Adjudication, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "adjudication file", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.FromPath(err)
+		return nil, err
 	}
 	return ParseAdjudications(data, path, classes)
 }

@@ -6,6 +6,8 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+
+	"probity/plan/inputfile"
 )
 
 // Comparison is the outcome of comparing a draw folder with a fresh draw
@@ -57,7 +59,7 @@ func Compare(dir string, want *Content) (*Comparison, error) {
 	}
 	// Files edited since the draw: the ledger must be unchanged; the
 	// worksheets are expected to gain labels.
-	if data, err := os.ReadFile(filepath.Join(dir, LedgerFile)); err == nil && got.Files[LedgerFile] != SHA256Hex(data) {
+	if data, err := inputfile.ReadFile(filepath.Join(dir, LedgerFile), "ledger", inputfile.TableLimit); err == nil && got.Files[LedgerFile] != SHA256Hex(data) {
 		diff("%s was changed after the draw: its SHA-256 is not the one in %s", LedgerFile, ManifestFile)
 	}
 	ledger, err := ReadLedger(filepath.Join(dir, LedgerFile), want.Candidates)

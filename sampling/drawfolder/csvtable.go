@@ -6,8 +6,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"strconv"
 )
 
@@ -22,11 +22,12 @@ type CSVTable struct {
 	Lines  []int
 }
 
-// readCSVTable reads a CSV file with ParseCSVTable.
-func readCSVTable(path string) (*CSVTable, error) {
-	data, err := os.ReadFile(path)
+// readCSVTable reads a CSV file with ParseCSVTable; what names the
+// kind of file in messages.
+func readCSVTable(path, what string) (*CSVTable, error) {
+	data, err := inputfile.ReadFile(path, what, inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.FromPath(err)
+		return nil, err
 	}
 	return ParseCSVTable(data, path)
 }

@@ -62,7 +62,7 @@ func WriteLedger(w io.Writer, candidates []string, rows []LedgerRow) error {
 // from before double labeling, is also read; Double is then false.) Every
 // field is checked; errors are *inputerr.Error naming file, line and column.
 func ReadLedger(path string, candidates []string) ([]LedgerRow, error) {
-	t, err := readCSVTable(path)
+	t, err := readCSVTable(path, "ledger")
 	if err != nil {
 		return nil, err
 	}

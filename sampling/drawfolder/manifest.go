@@ -6,8 +6,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 )
 
 // ManifestFormat is the version of the manifest layout written by this code.
@@ -182,9 +182,9 @@ func ParseManifest(data []byte, name string) (*Manifest, error) {
 // ReadManifest reads and decodes a manifest.json. It also returns the raw
 // bytes, which later steps fingerprint.
 func ReadManifest(path string) (*Manifest, []byte, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "manifest", inputfile.SmallLimit)
 	if err != nil {
-		return nil, nil, inputerr.FromPath(err)
+		return nil, nil, err
 	}
 	m, err := ParseManifest(data, path)
 	if err != nil {

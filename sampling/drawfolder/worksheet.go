@@ -52,7 +52,7 @@ func WriteWorksheet(w io.Writer, show []string, rows []WorksheetRow) error {
 // numbers. Items must be positive whole numbers and record ids non-empty,
 // each appearing once. Errors are *inputerr.Error naming file, line, column.
 func ReadWorksheet(path string) (header []string, rows []WorksheetRow, err error) {
-	t, err := readCSVTable(path)
+	t, err := readCSVTable(path, "worksheet")
 	if err != nil {
 		return nil, nil, err
 	}

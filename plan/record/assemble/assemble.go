@@ -16,13 +16,13 @@ package assemble
 import (
 	"errors"
 	"fmt"
-	"os"
 	"strings"
 	"time"
 
 	"probity/plan"
 	"probity/plan/agreement"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/intake"
 	"probity/plan/verdict"
@@ -129,9 +129,9 @@ func Read(f Files) (*Inputs, error) {
 		return nil, err
 	}
 	if f.Adjudications != "" {
-		data, err := os.ReadFile(f.Adjudications)
+		data, err := inputfile.ReadFile(f.Adjudications, "adjudication file", inputfile.TableLimit)
 		if err != nil {
-			return nil, inputerr.FromPath(err)
+			return nil, err
 		}
 		if in.Adjudications, err = agreement.ParseAdjudications(data, f.Adjudications, p.Classes); err != nil {
 			return nil, err

@@ -2,10 +2,10 @@ package verification
 
 import (
 	"bytes"
-	"os"
 	"path/filepath"
 
 	"probity/pdfreport"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 )
 
@@ -18,7 +18,7 @@ import (
 // record.json).
 func checkRendering(rep *Report, in Input, rec *record.Record) {
 	pdfPath := filepath.Join(in.Dir, record.PDFFile)
-	pdf, err := os.ReadFile(pdfPath)
+	pdf, err := inputfile.ReadFile(pdfPath, "record PDF", inputfile.TableLimit)
 	if err != nil {
 		return // reported with the signatures
 	}

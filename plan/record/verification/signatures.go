@@ -3,9 +3,10 @@ package verification
 import (
 	"errors"
 	"io/fs"
-	"os"
 	"path/filepath"
 
+	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/signature"
 )
@@ -16,11 +17,11 @@ import (
 func checkSignatures(rep *Report, in Input, rec *record.Record, js []byte) {
 	sigPath := filepath.Join(in.Dir, signature.FileName)
 	pdfPath := filepath.Join(in.Dir, record.PDFFile)
-	pdf, pdfErr := os.ReadFile(pdfPath)
+	pdf, pdfErr := inputfile.ReadFile(pdfPath, "record PDF", inputfile.TableLimit)
 	if pdfErr != nil {
-		rep.add(CheckSignature, Failed, "%s is missing or unreadable: %v", pdfPath, errors.Unwrap(pdfErr))
+		rep.add(CheckSignature, Failed, "%s is missing or unreadable: %v", pdfPath, readProblem(pdfErr))
 	}
-	data, err := os.ReadFile(sigPath)
+	data, err := inputfile.ReadFile(sigPath, "signature file", inputfile.SmallLimit)
 	if errors.Is(err, fs.ErrNotExist) {
 		switch {
 		case in.TrustedKey != nil:
@@ -67,4 +68,12 @@ func checkSignatures(rep *Report, in Input, rec *record.Record, js []byte) {
 	default:
 		rep.add(CheckSigningKey, OK, "signed with the trusted key %s (%s)", in.TrustedKeyPath, fp)
 	}
+}
+
+// readProblem is what went wrong reading a file, without its path.
+func readProblem(err error) string {
+	if e, ok := inputerr.As(err); ok {
+		return e.Msg
+	}
+	return err.Error()
 }

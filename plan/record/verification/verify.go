@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/templates"
@@ -144,9 +145,9 @@ func Verify(in Input) (*Report, error) {
 	}
 	rep := &Report{}
 	jsonPath := filepath.Join(in.Dir, record.JSONFile)
-	js, err := os.ReadFile(jsonPath)
+	js, err := inputfile.ReadFile(jsonPath, "record", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.Errorf("cannot read %s: %v", jsonPath, errors.Unwrap(err)).Wrap(errors.Join(ErrNoRecord, err))
+		return nil, inputerr.Errorf("cannot read %s: %s", jsonPath, readProblem(err)).Wrap(errors.Join(ErrNoRecord, err))
 	}
 	rec, err := record.Decode(js)
 	switch {
