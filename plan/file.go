@@ -176,6 +176,9 @@ func (f *File) Marshal() ([]byte, error) {
 // *inputerr.Error wrapping ErrPlanFile. Unknown keys
 // are refused, so a typo in a hand-edited plan is not silently ignored.
 func Parse(data []byte, name string) (*File, error) {
+	if err := checkNotReport(data, name); err != nil {
+		return nil, err
+	}
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	dec.KnownFields(true)
 	var f File

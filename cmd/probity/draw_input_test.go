@@ -85,3 +85,19 @@ func TestDrawBoundsMemory(t *testing.T) {
 		"hint: spares replace the few items that cannot be labeled; a handful per stratum is usual",
 	}, "--plan", drawPlan, "--log", log, "--spare", "99999999999")
 }
+
+// TestPlanJSONIsNotAPlanFile (issue 16, item 12): the JSON report of plan
+// --json given as --plan is refused in one line saying what it is (before:
+// 26 lines of Go type names).
+func TestPlanJSONIsNotAPlanFile(t *testing.T) {
+	code, report, stderr := runProbity(t, "plan", "--ceiling", "0.05", "--confidence", "0.9", "--candidate", "a=model_a", "--classes", "ok,fraud", "--json")
+	if code != exitOK {
+		t.Fatal(stderr)
+	}
+	path := writeLog(t, "plan.json", report)
+	log := writeGenLog(t, t.TempDir(), "log.csv", loggen.Config{Rows: 500, Seed: 12})
+	refusedDraw(t, nil, []string{
+		"probity: " + path + ": this is a plan's JSON report, not the plan file",
+		"hint: pass the YAML plan file probity plan writes (plan.yaml); the JSON it prints describes the plan but is not it",
+	}, "--plan", path, "--log", log)
+}
