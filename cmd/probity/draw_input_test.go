@@ -101,3 +101,19 @@ func TestPlanJSONIsNotAPlanFile(t *testing.T) {
 		"hint: pass the YAML plan file probity plan writes (plan.yaml); the JSON it prints describes the plan but is not it",
 	}, "--plan", path, "--log", log)
 }
+
+// TestOutInAFolderThatTakesNoFiles (issue 16, item 13): --out under /proc,
+// which exists but takes no new folders, says so (it used to say that
+// /proc does not exist, then only "no such file or directory").
+func TestOutInAFolderThatTakesNoFiles(t *testing.T) {
+	if err := os.Mkdir("/proc/probity-test", 0o755); err == nil || !os.IsNotExist(err) {
+		os.Remove("/proc/probity-test")
+		t.Skip("no /proc that refuses new folders here")
+	}
+	log := writeGenLog(t, t.TempDir(), "log.csv", loggen.Config{Rows: 1000, Seed: 13})
+	code, stdout, stderr := runDrawCmd(t, nil, "--plan", drawPlan, "--log", log, "--out", "/proc/probity-test/draw")
+	want := "probity: /proc/probity-test: cannot write: /proc exists but does not take new files or folders\nhint: choose a folder on an ordinary disk\n"
+	if code != exitBadInput || stderr != want || stdout != "" {
+		t.Fatalf("exit %d\n%s%s\nwant\n%s", code, stdout, stderr, want)
+	}
+}
