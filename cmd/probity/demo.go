@@ -45,13 +45,13 @@ DIR/commands.txt holds each command line and what it printed.
 The organisation, the classifier and the data are invented. The demo key is
 published with the source: it signs nothing but demo records.
 
-` + exitCodesHelp,
+` + exitHelp("success: the demo ran and its signed record verified", "the demo's record did not verify", true),
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return runDemo(d, opts)
 		},
 	}
-	cmd.Flags().StringVar(&opts.out, "out", "probity-demo", "the folder to write every artifact into")
+	cmd.Flags().StringVar(&opts.out, "out", "probity-demo", "the folder `DIR` to write every artifact into")
 	cmd.Flags().BoolVar(&opts.force, "force", false, "replace the artifacts of an earlier demo in --out")
 	return cmd
 }

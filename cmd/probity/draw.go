@@ -46,6 +46,10 @@ type drawOptions struct {
 	parsedWhere   []sampling.Filter
 }
 
+// drawExitHelp is the exit-code section of draw's help.
+var drawExitHelp = exitHelp("success: the sample was drawn (with --check: the folder holds exactly what\nthe seed picks from the log)",
+	"with --check: the folder differs from what the seed picks from the log", true)
+
 // drawProgressMin is the log size from which a progress bar is shown.
 const drawProgressMin = 64 << 20
 
@@ -106,7 +110,7 @@ options recorded in DIR/manifest.json and reports whether the ledger and
 worksheets hold exactly what chance picked (exit 0) or what differs (exit 1).
 Labels written into the worksheets since the draw are not differences.
 
-` + exitCodesHelp,
+` + drawExitHelp,
 		Example: `  probity draw --plan plan.yaml --log predictions.csv.gz --out audit-2026-11 \
       --strata region,channel --show text --spare 2 --double 50 --period 2026-11
   probity draw --check audit-2026-11 --plan plan.yaml --log predictions.csv.gz`,

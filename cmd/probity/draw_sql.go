@@ -73,12 +73,13 @@ func hookDrawSQL(d deps, cmd *cobra.Command, o *drawOptions) {
 	fl.StringVar(&so.table, "table", "", "with --sql: the table or view to draw from (`NAME` or schema.name)")
 	fl.StringVar(&so.selected, "selected", "", "import the drawing query's result `FILE` (CSV; - for stdin) into the folder --out")
 	fl.StringVar(&so.counts, "counts", "", "with --sql clickhouse: print the selection query for the counts query's result `FILE`; with --selected: the counts it was made from")
-	cmd.Long = strings.Replace(cmd.Long, "\n\n"+exitCodesHelp, drawSQLHelp+"\n\n"+exitCodesHelp, 1)
+	cmd.Long = strings.Replace(cmd.Long, "\n\n"+drawExitHelp, drawSQLHelp+"\n\n"+drawExitHelp, 1)
 	cmd.Example += `
   probity draw --plan plan.yaml --sql postgres --table analytics.predictions \
       --strata region --show text > draw.sql
   probity draw --plan plan.yaml --selected result.csv --out audit-2026-11
-  probity draw --plan plan.yaml --sql clickhouse --table logs.predictions --strata region > counts.sql
+  probity draw --plan plan.yaml --sql clickhouse --table logs.predictions \
+      --strata region > counts.sql
   probity draw --plan plan.yaml --sql clickhouse --counts counts.csv > selection.sql
   probity draw --plan plan.yaml --counts counts.csv --selected selected.csv --out audit-2026-11`
 	pre, run := cmd.PreRunE, cmd.RunE

@@ -32,7 +32,7 @@ never overwrites an existing file. Give the private key to 'probity record
 'probity verify RECDIR --pub NAME.pub'. The private key is not encrypted:
 keep it where only the signer can read it.
 
-` + exitCodesHelp,
+` + exitHelp("success: the key pair was written", "", true),
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			if opts.out == "" {
@@ -44,7 +44,7 @@ keep it where only the signer can read it.
 			return runKeygen(d, opts)
 		},
 	}
-	cmd.Flags().StringVar(&opts.out, "out", "", "file name of the private key; the public key goes to NAME.pub")
+	cmd.Flags().StringVar(&opts.out, "out", "", "file `NAME` of the private key; the public key goes to NAME.pub")
 	return cmd
 }
 

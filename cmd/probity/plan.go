@@ -77,7 +77,7 @@ from them. --out writes the plan file (YAML): every input, the rule, the
 comparison, the candidates, a 128-bit selection seed (random unless --seed),
 the time and the tool version; its SHA-256 identifies the plan later.
 
-` + exitCodesHelp,
+` + exitHelp("success: the plan, or with --budget the table, was made", "", true),
 		Example: `  probity plan --ceiling 0.02 --confidence 0.95 --anticipated 0.01
   probity plan --ceiling 0.02 --confidence 0.95 --anticipated 0.01 \
       --thresholds score:0.5,0.6,0.7 --positive fraud --negative ok \
@@ -104,7 +104,7 @@ the time and the tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.method, "method", plan.MethodExact.String(), "the decision `RULE`: exact, hoeffding or kl")
 	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni.String(), "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
 	fl.StringVar(&o.design, "design", plan.DesignFixed.String(), "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
-	fl.StringVar(&o.require, "require", plan.RequireAll.String(), "`all` candidates or `any` one must be accepted for the audit to pass")
+	fl.StringVar(&o.require, "require", plan.RequireAll.String(), "`RULE`: all candidates or any one must be accepted for the audit to pass")
 	fl.StringVar(&o.budget, "budget", "", "with `n` labels: the ceiling each number of errors certifies (no plan is made)")
 	fl.StringVar(&o.out, "out", "", "write the plan file (YAML) to `PATH`")
 	fl.BoolVar(&o.force, "force", false, "replace an existing --out file")

@@ -57,9 +57,7 @@ toward rejection. Spare items are ignored.
 
 ` + labelCellHelp + `
 
-` + exitCodesHelp + `
-progress exits 0 whenever it could assess the worksheet, whatever the
-decision.`,
+` + exitHelp("the worksheet was assessed, whatever the decision", "", false),
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			for _, f := range []struct{ name, v string }{{"plan", opts.planPath}, {"draw", opts.drawDir}, {"labels", opts.labels}} {
@@ -74,9 +72,9 @@ decision.`,
 		},
 	}
 	fl := cmd.Flags()
-	fl.StringVar(&opts.planPath, "plan", "", "the plan file the sample was drawn from")
-	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv, worksheet.csv)")
-	fl.StringVar(&opts.labels, "labels", "", "the worksheet, labeled from the top")
+	fl.StringVar(&opts.planPath, "plan", "", "the plan `FILE` the sample was drawn from")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder `DIR` (manifest.json, ledger.csv, worksheet.csv)")
+	fl.StringVar(&opts.labels, "labels", "", "the worksheet `FILE`, labeled from the top")
 	fl.BoolVar(&opts.json, "json", false, "print one JSON object instead of the table")
 	return cmd
 }

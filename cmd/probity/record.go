@@ -82,11 +82,8 @@ key is optional, and a role left out prints blank signature lines:
   approved: {name: Sam Example, title: Head of quality,
              meaning: "I approve the release of version 2.4"}
 
-` + exitCodesHelp + `
-
-record exits 0 when the audit passes (every candidate the plan requires is
-accepted), 1 when it is rejected — the record is written in both cases — and
-2 on bad input, when nothing is written.`,
+` + exitHelp("the audit passes: every candidate the plan requires is accepted (the\nrecord is written)",
+			"the audit is rejected (the record is written)", true),
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			return opts.validate()
@@ -96,18 +93,18 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 		},
 	}
 	fl := cmd.Flags()
-	fl.StringVar(&opts.planPath, "plan", "", "the plan file the sample was drawn from")
-	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv, worksheet.csv)")
-	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet")
-	fl.StringVar(&opts.out, "out", "", "the record folder to write (must not exist or be empty)")
-	fl.StringVar(&opts.signoff, "signoff", "", "sign-off file (YAML: prepared/reviewed/approved with name, title, date, meaning)")
-	fl.StringVar(&opts.use, "use", "general", "declared use: "+strings.Join(templates.Uses(), ", "))
-	fl.StringVar(&opts.signKey, "sign-key", "", "private key from probity keygen; writes record.sig")
+	fl.StringVar(&opts.planPath, "plan", "", "the plan `FILE` the sample was drawn from")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder `DIR` (manifest.json, ledger.csv, worksheet.csv)")
+	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet `FILE`")
+	fl.StringVar(&opts.out, "out", "", "the record folder `DIR` to write (must not exist or be empty)")
+	fl.StringVar(&opts.signoff, "signoff", "", "sign-off `FILE` (YAML: prepared/reviewed/approved with name, title, date, meaning)")
+	fl.StringVar(&opts.use, "use", "general", "declared `USE`: "+strings.Join(templates.Uses(), ", "))
+	fl.StringVar(&opts.signKey, "sign-key", "", "private `KEY` file from probity keygen; writes record.sig")
 	fl.BoolVar(&opts.allowIncomplete, "allow-incomplete", false, "count unlabeled and unsure items as errors for every candidate instead of refusing")
-	fl.StringVar(&opts.date, "date", "", "the record's date, YYYY-MM-DD (default: today, UTC)")
-	fl.StringVar(&opts.paper, "paper", "a4", "paper size of record.pdf: a4 or letter")
-	fl.StringVar(&opts.templatesDir, "templates", "", "folder of wording files overriding the built-in ones")
-	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
+	fl.StringVar(&opts.date, "date", "", "the record's `DATE`, YYYY-MM-DD (default: today, UTC)")
+	fl.StringVar(&opts.paper, "paper", "a4", "`PAPER` size of record.pdf: a4 or letter")
+	fl.StringVar(&opts.templatesDir, "templates", "", "folder `DIR` of wording files overriding the built-in ones")
+	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "`BOUND` for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
 	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
 	addLabelQualityFlags(cmd, &opts.quality)

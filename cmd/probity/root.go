@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"probity/plan/inputerr"
 	"runtime/debug"
+	"strings"
 
 	"github.com/spf13/cobra"
 )
@@ -47,6 +48,7 @@ signed acceptance record.
 	root.SetErr(d.stderr)
 	root.SetIn(d.stdin)
 	root.SetVersionTemplate("probity {{.Version}}\n")
+	root.SetUsageTemplate(wrappedUsage(root.UsageTemplate()))
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return inputerr.Errorf("%w", err).WithHint("see '" + c.CommandPath() + " --help'")
 	})
@@ -72,4 +74,17 @@ func usageArgs(c *cobra.Command) {
 		}
 		return inputerr.Errorf("%w", err).WithHint("see '" + cmd.CommandPath() + " --help'")
 	}
+}
+
+// helpWidth is the widest line of the commands' console output, help
+// included.
+const helpWidth = 100
+
+// wrappedUsage is cobra's usage template with the flag descriptions
+// wrapped to helpWidth columns.
+func wrappedUsage(tpl string) string {
+	return strings.NewReplacer(
+		"{{.LocalFlags.FlagUsages", fmt.Sprintf("{{.LocalFlags.FlagUsagesWrapped %d", helpWidth),
+		"{{.InheritedFlags.FlagUsages", fmt.Sprintf("{{.InheritedFlags.FlagUsagesWrapped %d", helpWidth),
+	).Replace(tpl)
 }

@@ -60,10 +60,8 @@ same way (2026-09, not 2026-9) so that sorting them gives time order.
 estimate and upper bound of every period against the ceiling) and PREFIX.pdf
 (one page: the chart above a table of every period).
 
-` + exitCodesHelp + `
-
-trend exits 1 when the latest period's record rejects (overall verdict
-REJECT) and 0 otherwise, whatever the flags.`,
+` + exitHelp("the latest period's record does not reject, whatever the flags",
+			"the latest period's record rejects (overall verdict REJECT)", true),
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) == 0 {
 				return inputerr.Errorf("trend needs at least one record.json or folder of records").WithHint("e.g. 'probity trend audits/' or 'probity trend audits/2026-*/record.json'")

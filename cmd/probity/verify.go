@@ -32,7 +32,7 @@ type verifyOptions struct {
 func newVerifyCommand(d deps) *cobra.Command {
 	opts := &verifyOptions{}
 	cmd := &cobra.Command{
-		Use:   "verify RECDIR [--pub KEY.pub] [--plan PLAN.yaml] [--draw DIR] [--labels WORKSHEET.csv] [--log FILE]",
+		Use:   "verify RECDIR [--pub FILE] [--plan FILE] [--draw DIR] [--labels FILE] [--log FILE]",
 		Short: "Check a record's signatures and recompute it from its inputs",
 		Long: `verify checks an acceptance record folder and prints each check with its
 outcome:
@@ -51,10 +51,7 @@ outcome:
     and compared with the draw folder, so the items labeled are exactly the
     ones chance picked.
 
-` + exitCodesHelp + `
-
-verify exits 0 when every check it ran passed and 1 when any failed (the
-failing checks say which file and what); 2 on bad usage or unreadable input.`,
+` + exitHelp("every check it ran passed", "a check failed (the failing checks say which file and what)", false),
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) != 1 {
 				return inputerr.Errorf("verify needs exactly one record folder, got %d arguments", len(args)).WithHint("probity verify RECDIR [--pub KEY.pub]")
@@ -76,14 +73,14 @@ failing checks say which file and what); 2 on bad usage or unreadable input.`,
 		},
 	}
 	fl := cmd.Flags()
-	fl.StringVar(&opts.pub, "pub", "", "trusted public key (NAME.pub from probity keygen)")
-	fl.StringVar(&opts.planPath, "plan", "", "the plan file, to check and recompute from")
-	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder, to check and recompute from")
-	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet, to check and recompute from")
-	fl.StringVar(&opts.logPath, "log", "", "the prediction log, to draw the sample again")
-	fl.StringVar(&opts.second, "second", "", "the labeled second worksheet of a record judged on double labels, to check and recompute from")
-	fl.StringVar(&opts.adjudicated, "adjudicated", "", "the adjudication file of such a record, to check and recompute from")
-	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder the record was made with, to re-render record.pdf")
+	fl.StringVar(&opts.pub, "pub", "", "trusted public key `FILE` (NAME.pub from probity keygen)")
+	fl.StringVar(&opts.planPath, "plan", "", "the plan `FILE`, to check and recompute from")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder `DIR`, to check and recompute from")
+	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet `FILE`, to check and recompute from")
+	fl.StringVar(&opts.logPath, "log", "", "the prediction log `FILE`, to draw the sample again")
+	fl.StringVar(&opts.second, "second", "", "the labeled second worksheet `FILE` of a record judged on double labels, to check and recompute from")
+	fl.StringVar(&opts.adjudicated, "adjudicated", "", "the adjudication `FILE` of such a record, to check and recompute from")
+	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder `DIR` the record was made with, to re-render record.pdf")
 	return cmd
 }
 
