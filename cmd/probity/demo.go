@@ -323,6 +323,7 @@ func runDemoStep(d deps, cmdlog *bytes.Buffer, args []string) demoRun {
 	sub.stdout, sub.stderr = &out, &errb
 	sub.now = func() time.Time { return demolog.Clock }
 	sub.stderrIsTerminal, sub.stdoutIsTerminal = false, false
+	sub.width = 0 // the demo reads its steps' output whole
 	code := run(args, sub)
 	fmt.Fprintf(cmdlog, "$ probity %s\n%s", quoteArgs(args), out.String())
 	if errb.Len() > 0 {

@@ -25,6 +25,9 @@ type deps struct {
 	stdoutIsTerminal bool
 	// version is the tool version written into every artifact.
 	version string
+	// width, when above 0, is the number of columns people's output is
+	// fitted into (lines broken at spaces; see fitWriter).
+	width int
 }
 
 // systemDeps returns the dependencies of a real process.
@@ -38,5 +41,6 @@ func systemDeps() deps {
 		stderrIsTerminal: term.IsTerminal(int(os.Stderr.Fd())),
 		stdoutIsTerminal: term.IsTerminal(int(os.Stdout.Fd())),
 		version:          toolVersion(),
+		width:            consoleWidth,
 	}
 }

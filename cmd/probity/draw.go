@@ -357,11 +357,11 @@ func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*drawfolder.Co
 // writeDrawSummary prints what was drawn.
 func writeDrawSummary(w io.Writer, dir string, f *drawfolder.Content) {
 	m := f.Manifest
-	fmt.Fprintf(w, "drew %d items", m.SampleSize)
+	fmt.Fprintf(w, "drew %s", countOf(m.SampleSize, "item", "items"))
 	if m.Spares > 0 {
-		fmt.Fprintf(w, " and %d spares", m.Spares)
+		fmt.Fprintf(w, " and %s", countOf(m.Spares, "spare", "spares"))
 	}
-	fmt.Fprintf(w, " from %d rows in scope (%d read) in %d strata into %s\n", m.LotSize, m.Log.Rows, len(m.Strata), dir)
+	fmt.Fprintf(w, " from %s in scope (%d read) in %s into %s\n", count(m.LotSize, "row", "rows"), m.Log.Rows, countOf(len(m.Strata), "stratum", "strata"), dir)
 	fmt.Fprintf(w, "allocation: %s", m.Allocation.Rule)
 	if m.Allocation.MinPerStratum > 0 {
 		fmt.Fprintf(w, ", at least %d per stratum", m.Allocation.MinPerStratum)
@@ -384,7 +384,7 @@ func writeDrawSummary(w io.Writer, dir string, f *drawfolder.Content) {
 		fmt.Fprintf(w, "doubled: items 1–%d also in %s\n", m.Double, drawfolder.WorksheetSecondFile)
 	}
 	if m.DuplicatesDropped > 0 {
-		fmt.Fprintf(w, "repeated ids: %d later rows dropped (--dedupe first)\n", m.DuplicatesDropped)
+		fmt.Fprintf(w, "repeated ids: %s dropped (--dedupe first)\n", countOf(m.DuplicatesDropped, "later row", "later rows"))
 	}
 	fmt.Fprintf(w, "log sha256: %s (%d bytes)\n", m.Log.SHA256, m.Log.Bytes)
 	fmt.Fprintf(w, "give %s to the labelers; keep %s and %s\n",
@@ -426,15 +426,15 @@ func runDrawCheck(d deps, o *drawOptions) error {
 		return err
 	}
 	if len(rep.Differences) == 0 {
-		fmt.Fprintf(d.stdout, "same: %s holds exactly the %d items and %d spares that the seed picks from %s (%d rows, sha256 %s)\n",
-			o.check, rep.Items, rep.Spares, o.logPath, f.Manifest.Log.Rows, f.Manifest.Log.SHA256)
+		fmt.Fprintf(d.stdout, "same: %s holds exactly the %s and %s that the seed picks from %s (%s, sha256 %s)\n",
+			o.check, countOf(rep.Items, "item", "items"), countOf(rep.Spares, "spare", "spares"), o.logPath, count(f.Manifest.Log.Rows, "row", "rows"), f.Manifest.Log.SHA256)
 		return nil
 	}
 	fmt.Fprintf(d.stdout, "different: %s is not what the seed picks from %s:\n", o.check, o.logPath)
 	for _, s := range rep.Differences {
 		fmt.Fprintf(d.stdout, "  %s\n", s)
 	}
-	return rejected("draw check failed: %d differences", len(rep.Differences))
+	return rejected("draw check failed: %s", countOf(len(rep.Differences), "difference", "differences"))
 }
 
 // drawProgressBar draws a one-line progress bar on stderr: bytes read of

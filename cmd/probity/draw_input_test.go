@@ -117,3 +117,18 @@ func TestOutInAFolderThatTakesNoFiles(t *testing.T) {
 		t.Fatalf("exit %d\n%s%s\nwant\n%s", code, stdout, stderr, want)
 	}
 }
+
+// TestPluralForms (issue 16, item 18): counts of one take the singular
+// ("in 1 strata" and "at most 1 errors" before).
+func TestPluralForms(t *testing.T) {
+	log := writeGenLog(t, t.TempDir(), "log.csv", loggen.Config{Rows: 2000, Seed: 14})
+	out := filepath.Join(t.TempDir(), "draw")
+	code, stdout, stderr := runDrawCmd(t, nil, "--plan", drawPlan, "--log", log, "--out", out, "--spare", "1")
+	if code != exitOK || !strings.Contains(stdout, "drew 581 items and 1 spare from 2000 rows in scope (2000 read) in 1 stratum into") {
+		t.Errorf("draw: exit %d\n%s%s", code, stdout, stderr)
+	}
+	code, stdout, stderr = runProbity(t, "plan", "--budget", "100", "--confidence", "0.9", "--ceiling", "0.05")
+	if code != exitOK || !strings.Contains(stdout, "For the ceiling 5% these labels allow at most 1 error.") {
+		t.Errorf("plan --budget: exit %d\n%s%s", code, stdout, stderr)
+	}
+}

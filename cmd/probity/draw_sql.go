@@ -435,5 +435,5 @@ func runDrawCheckEngine(d deps, o *drawOptions) error {
 	for _, s := range rep.Differences {
 		fmt.Fprintf(d.stdout, "  %s\n", s)
 	}
-	return rejected("draw check failed: %d differences", len(rep.Differences))
+	return rejected("draw check failed: %s", countOf(len(rep.Differences), "difference", "differences"))
 }

@@ -18,7 +18,7 @@ func TestHelpReads(t *testing.T) {
 			t.Fatalf("%s --help: exit %d %s", c, code, stderr)
 		}
 		for i, line := range strings.Split(help, "\n") {
-			if n := len([]rune(line)); n > helpWidth {
+			if n := len([]rune(line)); n > consoleWidth {
 				t.Errorf("%s --help line %d is %d columns: %s", c, i+1, n, line)
 			}
 			if m := bareType.FindString(line); m != "" {

@@ -149,8 +149,8 @@ func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
 	if res.Design == plan.DesignSequential {
 		fmt.Fprintf(w, "Sequential plan: at most %d labels; each candidate stops at its boundaries.\n", res.SampleSize)
 	} else {
-		fmt.Fprintf(w, "Fixed plan: %d labels, accept with at most %d errors; stopping early by exact curtailment (no change to either risk).\n",
-			res.SampleSize, *res.AcceptanceNumber)
+		fmt.Fprintf(w, "Fixed plan: %d labels, accept with at most %s; stopping early by exact curtailment (no change to either risk).\n",
+			res.SampleSize, countOf(*res.AcceptanceNumber, "error", "errors"))
 	}
 	fmt.Fprintf(w, "Labeled from the top: %d of %d.\n\n", res.Labeled, res.SampleSize)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
@@ -178,7 +178,7 @@ func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
 	}
 	switch res.Overall {
 	case sequential.Continue:
-		fmt.Fprintf(w, "Audit (require %s): continue — at most %d more labels.\n", req, res.MaxRemaining)
+		fmt.Fprintf(w, "Audit (require %s): continue — at most %s.\n", req, countOf(res.MaxRemaining, "more label", "more labels"))
 	default:
 		fmt.Fprintf(w, "Audit (require %s): %s; run probity record on the labels to issue the record.\n", req, progressStatus(res.Overall))
 	}

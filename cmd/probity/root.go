@@ -19,7 +19,16 @@ func run(args []string, d deps) (code int) {
 			code = exitInternal
 		}
 	}()
+	var fit *fitWriter
+	if d.width > 0 {
+		fit = &fitWriter{w: d.stdout, width: d.width}
+		d.stdout = fit
+		defer fit.Flush()
+	}
 	root := newRootCommand(d)
+	if fit != nil {
+		root.PersistentPreRun = func(c *cobra.Command, args []string) { fit.raw = machineOutput(c) }
+	}
 	// An unknown command is cobra's to find and the user's to fix.
 	if _, _, err := root.Find(args); err != nil {
 		return reportError(d.stderr, inputerr.Errorf("%w", err).WithHint("see 'probity --help' for the commands"))
@@ -76,15 +85,15 @@ func usageArgs(c *cobra.Command) {
 	}
 }
 
-// helpWidth is the widest line of the commands' console output, help
+// consoleWidth is the widest line of the commands' console output, help
 // included.
-const helpWidth = 100
+const consoleWidth = 100
 
 // wrappedUsage is cobra's usage template with the flag descriptions
-// wrapped to helpWidth columns.
+// wrapped to consoleWidth columns.
 func wrappedUsage(tpl string) string {
 	return strings.NewReplacer(
-		"{{.LocalFlags.FlagUsages", fmt.Sprintf("{{.LocalFlags.FlagUsagesWrapped %d", helpWidth),
-		"{{.InheritedFlags.FlagUsages", fmt.Sprintf("{{.InheritedFlags.FlagUsagesWrapped %d", helpWidth),
+		"{{.LocalFlags.FlagUsages", fmt.Sprintf("{{.LocalFlags.FlagUsagesWrapped %d", consoleWidth),
+		"{{.InheritedFlags.FlagUsages", fmt.Sprintf("{{.InheritedFlags.FlagUsagesWrapped %d", consoleWidth),
 	).Replace(tpl)
 }

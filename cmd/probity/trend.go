@@ -238,7 +238,7 @@ func trendShortList(xs []string, n int) string {
 // candidate and the latest verdict.
 func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
 	c := t.Class
-	head := fmt.Sprintf("Trend of %d records, %s to %s", len(t.Periods), t.Periods[0].Label, t.Latest.Label)
+	head := fmt.Sprintf("Trend of %s, %s to %s", countOf(len(t.Periods), "record", "records"), t.Periods[0].Label, t.Latest.Label)
 	if sys := strings.TrimSpace(t.System + " " + t.SystemVersion); sys != "" {
 		head += " — " + sys
 	}

@@ -119,7 +119,7 @@ func runVerify(d deps, o *verifyOptions) error {
 	if failed := rep.Failed(); len(failed) > 0 {
 		return rejected("verification failed: %d of %d checks (%s)", len(failed), len(rep.Checks), failed[0].Detail)
 	}
-	fmt.Fprintf(d.stdout, "verified: %d checks passed\n", len(rep.Checks))
+	fmt.Fprintf(d.stdout, "verified: %s passed\n", countOf(len(rep.Checks), "check", "checks"))
 	return nil
 }
 
