@@ -132,3 +132,15 @@ func TestPluralForms(t *testing.T) {
 		t.Errorf("plan --budget: exit %d\n%s%s", code, stdout, stderr)
 	}
 }
+
+// TestBudgetRefusesWhatItIgnores (issue 16, item 18): with --budget every
+// flag that only shapes a plan is refused rather than silently ignored.
+func TestBudgetRefusesWhatItIgnores(t *testing.T) {
+	for _, f := range [][]string{{"--producer-risk", "0.2"}, {"--require", "any"}, {"--seed", "abc"}, {"--system", "x"}, {"--classes", "a,b"}} {
+		code, stdout, stderr := runProbity(t, append([]string{"plan", "--budget", "100", "--confidence", "0.9"}, f...)...)
+		want := "probity: " + f[0] + " has no effect with --budget, which makes no plan\nhint: drop --budget to make a plan\n"
+		if code != exitBadInput || stderr != want || stdout != "" {
+			t.Errorf("%s: exit %d\n%s%s", f[0], code, stdout, stderr)
+		}
+	}
+}

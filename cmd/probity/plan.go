@@ -224,7 +224,11 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 	if n < 1 || n > plan.MaxSampleSize {
 		return inputerr.Errorf("--budget %d: must be between 1 and %d", n, plan.MaxSampleSize)
 	}
-	for _, f := range []string{"out", "anticipated", "candidate", "thresholds", "design", "method"} {
+	// Every flag that only shapes a plan, or what is written with one,
+	// is refused: none may be silently ignored. (--ceiling is used: it
+	// says how many errors the budget allows at that ceiling.)
+	for _, f := range []string{"out", "force", "anticipated", "producer-risk", "candidate", "classes", "thresholds",
+		"positive", "negative", "design", "method", "require", "seed", "system", "system-version"} {
 		if changed(f) {
 			return inputerr.Errorf("--%s has no effect with --budget, which makes no plan", f).WithHint("drop --budget to make a plan")
 		}
