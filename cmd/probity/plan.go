@@ -71,9 +71,11 @@ errors, the lowest ceiling that can be certified.
 
 Candidates may be declared now, before any label is seen: --candidate
 NAME=COLUMN (repeatable; the log column holding that model's predicted label,
-with --classes listing the label values) or --thresholds COLUMN:t1,t2,… with
---positive and --negative (predict positive when score ≥ t). M then follows
-from them. --out writes the plan file (YAML): every input, the rule, the
+with --classes listing the label values) and --thresholds COLUMN:t1,t2,… with
+--positive and --negative (predict positive when score ≥ t). Both kinds may
+be declared together: the --candidate ones come first (the order
+fixed-sequence tests in), and --classes must then list the positive and the
+negative label. M then follows from them. --out writes the plan file (YAML): every input, the rule, the
 comparison, the candidates, a 128-bit selection seed (random unless --seed),
 the time and the tool version; its SHA-256 identifies the plan later.
 
@@ -309,11 +311,10 @@ func planInputError(err error) error {
 }
 
 // parseCandidates reads --candidate, --classes, --thresholds, --positive
-// and --negative.
+// and --negative. Label-column and threshold candidates may be declared
+// together: the --candidate ones come first, then the thresholds, and the
+// threshold labels must then be among --classes.
 func (o *planOptions) parseCandidates() error {
-	if len(o.candidate) > 0 && o.thresholds != "" {
-		return inputerr.Errorf("use either --candidate or --thresholds, not both")
-	}
 	seen := map[string]bool{}
 	add := func(c plan.Candidate) error {
 		if seen[c.Name] {
@@ -323,33 +324,16 @@ func (o *planOptions) parseCandidates() error {
 		o.declared = append(o.declared, c)
 		return nil
 	}
+	for _, spec := range o.candidate {
+		name, col, ok := strings.Cut(spec, "=")
+		if !ok || name == "" || col == "" || strings.TrimSpace(name) != name || strings.TrimSpace(col) != col {
+			return inputerr.Errorf("--candidate %q is not NAME=COLUMN", spec).WithHint("e.g. --candidate model-a=pred_a")
+		}
+		if err := add(plan.Candidate{Name: name, Column: col}); err != nil {
+			return err
+		}
+	}
 	switch {
-	case len(o.candidate) > 0:
-		if o.positive != "" || o.negative != "" {
-			return inputerr.Errorf("--positive and --negative go with --thresholds; with --candidate list the labels in --classes")
-		}
-		for _, spec := range o.candidate {
-			name, col, ok := strings.Cut(spec, "=")
-			if !ok || name == "" || col == "" || strings.TrimSpace(name) != name || strings.TrimSpace(col) != col {
-				return inputerr.Errorf("--candidate %q is not NAME=COLUMN", spec).WithHint("e.g. --candidate model-a=pred_a")
-			}
-			if err := add(plan.Candidate{Name: name, Column: col}); err != nil {
-				return err
-			}
-		}
-		if o.classes == "" {
-			return inputerr.Errorf("--classes is required with --candidate: the label values a labeler may give").WithHint("e.g. --classes spam,ham")
-		}
-		for _, c := range strings.Split(o.classes, ",") {
-			c = strings.TrimSpace(c)
-			if c == "" || slices.Contains(o.classesList, c) {
-				return inputerr.Errorf("--classes %q: each label must be non-empty and listed once", o.classes)
-			}
-			o.classesList = append(o.classesList, c)
-		}
-		if len(o.classesList) < 2 {
-			return inputerr.Errorf("--classes %q: list at least two labels", o.classes)
-		}
 	case o.thresholds != "":
 		i := strings.LastIndex(o.thresholds, ":")
 		if i <= 0 || i == len(o.thresholds)-1 {
@@ -358,9 +342,6 @@ func (o *planOptions) parseCandidates() error {
 		col := o.thresholds[:i]
 		if o.positive == "" || o.negative == "" || o.positive == o.negative {
 			return inputerr.Errorf("--thresholds needs --positive and --negative, two different labels").WithHint("e.g. --positive fraud --negative ok")
-		}
-		if o.classes != "" {
-			return inputerr.Errorf("--classes is not used with --thresholds: the labels are --positive and --negative")
 		}
 		for _, ts := range strings.Split(o.thresholds[i+1:], ",") {
 			ts = strings.TrimSpace(ts)
@@ -372,11 +353,35 @@ func (o *planOptions) parseCandidates() error {
 				return err
 			}
 		}
-		o.classesList = []string{o.positive, o.negative}
-	default:
-		if o.classes != "" || o.positive != "" || o.negative != "" {
-			return inputerr.Errorf("--classes, --positive and --negative describe declared candidates; add --candidate or --thresholds")
+	case o.positive != "" || o.negative != "":
+		return inputerr.Errorf("--positive and --negative go with --thresholds; with --candidate list the labels in --classes")
+	}
+	switch {
+	case o.classes != "" && len(o.declared) == 0:
+		return inputerr.Errorf("--classes, --positive and --negative describe declared candidates; add --candidate or --thresholds")
+	case o.classes != "":
+		for _, c := range strings.Split(o.classes, ",") {
+			c = strings.TrimSpace(c)
+			if c == "" || slices.Contains(o.classesList, c) {
+				return inputerr.Errorf("--classes %q: each label must be non-empty and listed once", o.classes)
+			}
+			o.classesList = append(o.classesList, c)
 		}
+		if len(o.classesList) < 2 {
+			return inputerr.Errorf("--classes %q: list at least two labels", o.classes)
+		}
+		if o.thresholds != "" {
+			for _, l := range []string{o.positive, o.negative} {
+				if !slices.Contains(o.classesList, l) {
+					return inputerr.Errorf("--classes %q does not list %q, a label the thresholds predict", o.classes, l).
+						WithHint("list every label a labeler may give, the --positive and --negative ones included")
+				}
+			}
+		}
+	case len(o.candidate) > 0:
+		return inputerr.Errorf("--classes is required with --candidate: the label values a labeler may give").WithHint("e.g. --classes spam,ham")
+	case o.thresholds != "":
+		o.classesList = []string{o.positive, o.negative}
 	}
 	return nil
 }
