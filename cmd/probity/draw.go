@@ -13,6 +13,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/trend"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
@@ -202,8 +203,8 @@ func (o *drawOptions) validate() error {
 	if o.dedupe != "" && o.dedupe != "first" {
 		return inputerr.Errorf("--dedupe %s is not supported", o.dedupe).WithHint("--dedupe first keeps the first row of each repeated id")
 	}
-	if strings.TrimSpace(o.period) != o.period || strings.ContainsAny(o.period, "\n\r") {
-		return inputerr.Errorf("--period %q has leading or trailing spaces", o.period)
+	if err := checkPeriodFlag(o.period); err != nil {
+		return err
 	}
 	for _, b := range o.bands {
 		pb, err := sampling.ParseBand(b)
@@ -223,6 +224,25 @@ func (o *drawOptions) validate() error {
 		if strings.TrimSpace(c) == "" {
 			return inputerr.Errorf("an empty column name was given (check --id, --strata and --show)")
 		}
+	}
+	return nil
+}
+
+// checkPeriodFlag refuses a --period label a trend could not line up,
+// naming what is wrong with it: a line break, surrounding spaces, or a
+// character outside the label rule of plan/trend.
+func checkPeriodFlag(p string) error {
+	hint := "e.g. --period 2026-11"
+	switch {
+	case p == "":
+		return nil
+	case strings.ContainsAny(p, "\n\r"):
+		return inputerr.Errorf("--period %q holds a line break", p).WithHint(hint)
+	case strings.TrimSpace(p) != p:
+		return inputerr.Errorf("--period %q has leading or trailing spaces", p).WithHint(hint)
+	}
+	if err := trend.CheckPeriod(p); err != nil {
+		return inputerr.Errorf("--period %v", err).WithHint(hint)
 	}
 	return nil
 }

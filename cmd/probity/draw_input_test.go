@@ -144,3 +144,16 @@ func TestBudgetRefusesWhatItIgnores(t *testing.T) {
 		}
 	}
 }
+
+// TestPeriodWithALineBreak (issue 16, item 11): a --period holding a line
+// break says so (it said "leading or trailing spaces"), and a label a
+// trend could not line up is refused before drawing.
+func TestPeriodWithALineBreak(t *testing.T) {
+	log := writeGenLog(t, t.TempDir(), "log.csv", loggen.Config{Rows: 1000, Seed: 15})
+	for period, want := range map[string]string{
+		"2026-11\n": `probity: --period "2026-11\n" holds a line break`,
+		"2026 11":   `probity: --period "2026 11" has the character ' '; a period label is letters, digits, '-', '_' and '.'`,
+	} {
+		refusedDraw(t, nil, []string{want, "hint: e.g. --period 2026-11"}, "--plan", drawPlan, "--log", log, "--period", period)
+	}
+}

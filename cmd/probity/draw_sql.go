@@ -129,8 +129,8 @@ func (so *drawSQLOptions) validate(c *cobra.Command, o *drawOptions) error {
 			return inputerr.Errorf("--%s cannot be used with %s", name, mode).WithHint(drawSQLConflictHint(name, mode))
 		}
 	}
-	if strings.TrimSpace(o.period) != o.period || strings.ContainsAny(o.period, "\n\r") {
-		return inputerr.Errorf("--period %q has leading or trailing spaces", o.period)
+	if err := checkPeriodFlag(o.period); err != nil {
+		return err
 	}
 	if so.selected != "" {
 		if o.out == "" {
