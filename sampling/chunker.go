@@ -123,6 +123,8 @@ func (s *scanner) checkLines(first int64, data []byte) *inputerr.Error {
 func (s *scanner) longRecordError(line int64, data []byte) *inputerr.Error {
 	var e *inputerr.Error
 	switch {
+	case bytes.IndexByte(data, '\n') < 0 && bytes.Count(data[:min(len(data), 1<<16)], []byte{'\r'}) > 1:
+		return s.crOnlyError()
 	case bytes.IndexByte(data, '\n') >= 0:
 		e = inputErrorf(s.spec.Name, int(line), "", "the record starting on this line runs past %s without ending: a quoted field that is never closed?", inputfile.Size(s.spec.MaxLine))
 		e.Hint = "a \" opens a quoted field in CSV, which runs to the next \" (line ends included)"

@@ -290,6 +290,9 @@ func (s *scanner) run() (*ScanResult, error) {
 		return nil, err
 	}
 	headRec := trimEOL(first[:headerEnd])
+	if err := s.checkHeaderLine(headRec); err != nil {
+		return nil, err
+	}
 	var err error
 	switch s.format {
 	case FormatJSONL:
@@ -387,6 +390,29 @@ func filterList(fs []Filter) string {
 		b.WriteString(f.String())
 	}
 	return b.String()
+}
+
+// checkHeaderLine refuses two layouts a spreadsheet program may save a log
+// in, which would otherwise read as one odd header: line ends that are
+// carriage returns alone (old Mac files), and CSV fields separated by
+// semicolons.
+func (s *scanner) checkHeaderLine(h []byte) *inputerr.Error {
+	if s.format != FormatJSONL && bytes.IndexByte(h, '\r') >= 0 && bytes.Count(h, []byte{'"'}) == 0 {
+		return s.crOnlyError()
+	}
+	if semis := bytes.Count(h, []byte{';'}); s.format == FormatCSV && semis >= 2 && bytes.Count(h, []byte{','}) < semis {
+		e := inputErrorf(s.spec.Name, 1, "", "its fields are separated by ';', not ','")
+		e.Hint = "a log is CSV with ',' as the separator, TSV or JSON Lines: save or export it again with ',' (or tabs)"
+		return e
+	}
+	return nil
+}
+
+// crOnlyError refuses a log whose line ends are carriage returns alone.
+func (s *scanner) crOnlyError() *inputerr.Error {
+	e := inputErrorf(s.spec.Name, 0, "", "its line ends are carriage returns alone (\\r, as in old Mac files), so it reads as one line")
+	e.Hint = "save it with Unix (LF) or Windows (CRLF) line ends"
+	return e
 }
 
 // compile resolves the spec's columns against the header.

@@ -75,9 +75,11 @@ with --classes listing the label values) and --thresholds COLUMN:t1,t2,… with
 --positive and --negative (predict positive when score ≥ t). Both kinds may
 be declared together: the --candidate ones come first (the order
 fixed-sequence tests in), and --classes must then list the positive and the
-negative label. M then follows from them. --out writes the plan file (YAML): every input, the rule, the
-comparison, the candidates, a 128-bit selection seed (random unless --seed),
-the time and the tool version; its SHA-256 identifies the plan later.
+negative label. M then follows from them.
+
+--out writes the plan file (YAML): every input, the rule, the comparison, the
+candidates, a 128-bit selection seed (random unless --seed), the time and the
+tool version; its SHA-256 identifies the plan later.
 
 ` + exitHelp("success: the plan, or with --budget the table, was made", "", true),
 		Example: `  probity plan --ceiling 0.02 --confidence 0.95 --anticipated 0.01

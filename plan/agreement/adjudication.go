@@ -98,7 +98,7 @@ func parseAdjudication(name string, line int, rec, classes []string) (Adjudicati
 	bad := func(col, format string, args ...any) error {
 		return &inputerr.Error{File: name, Line: line, Field: col, Msg: fmt.Sprintf(format, args...)}
 	}
-	a := Adjudication{Line: line, RecordID: rec[1], FinalLabel: rec[2], DecidedBy: strings.TrimSpace(rec[3]), Note: rec[4]}
+	a := Adjudication{Line: line, RecordID: drawfolder.CellValue(rec[1]), FinalLabel: rec[2], DecidedBy: strings.TrimSpace(rec[3]), Note: rec[4]}
 	n, err := strconv.Atoi(rec[0])
 	if err != nil || n < 1 {
 		return a, bad("item", "%q is not a positive whole number", rec[0])

@@ -67,10 +67,11 @@ func Compare(dir string, want *Content) (*Comparison, error) {
 		return nil, err
 	}
 	rep.Differences = append(rep.Differences, compareLedger(ledger, want.Ledger)...)
-	rep.Differences = append(rep.Differences, compareWorksheet(filepath.Join(dir, WorksheetFile), want.Show, want.Worksheet)...)
+	id := ManifestDrawID(want.Manifest)
+	rep.Differences = append(rep.Differences, compareWorksheet(filepath.Join(dir, WorksheetFile), id, want.Show, want.Worksheet)...)
 	secondPath := filepath.Join(dir, WorksheetSecondFile)
 	if want.Second != nil {
-		rep.Differences = append(rep.Differences, compareWorksheet(secondPath, want.Show, want.Second)...)
+		rep.Differences = append(rep.Differences, compareWorksheet(secondPath, id, want.Show, want.Second)...)
 	} else if _, err := os.Stat(secondPath); err == nil {
 		diff("%s is in the folder but the draw doubles no item", WorksheetSecondFile)
 	}
@@ -149,7 +150,7 @@ func ledgerRowDiff(g, x *LedgerRow) string {
 
 // compareWorksheet checks the drawn columns of a worksheet (item,
 // record_id, shown columns); labels, notes and labelers are ignored.
-func compareWorksheet(path string, show []string, want []WorksheetRow) []string {
+func compareWorksheet(path string, id DrawID, show []string, want []WorksheetRow) []string {
 	name := filepath.Base(path)
 	header, rows, err := ReadWorksheet(path)
 	if err != nil {
@@ -158,7 +159,7 @@ func compareWorksheet(path string, show []string, want []WorksheetRow) []string 
 		}
 		return []string{err.Error()}
 	}
-	wantHeader := WorksheetHeader(show)
+	wantHeader := worksheetHeader(id, show)
 	if strings.Join(header[:min(len(header), len(show)+2)], ",") != strings.Join(wantHeader[:len(show)+2], ",") {
 		return []string{fmt.Sprintf("%s: columns are %s, the draw wrote %s", name, columnList(header), columnList(wantHeader))}
 	}

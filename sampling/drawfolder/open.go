@@ -192,8 +192,10 @@ func blankWorksheet(header []string, rows []WorksheetRow) ([]byte, error) {
 	for i, r := range rows {
 		blank[i] = WorksheetRow{Item: r.Item, RecordID: r.RecordID, Show: r.Show}
 	}
+	nShow := len(ShownColumns(header))
+	h := append(append([]string{}, header[:2+nShow]...), "label", "note", "labeler")
 	var buf bytes.Buffer
-	if err := WriteWorksheet(&buf, ShownColumns(header), blank); err != nil {
+	if err := writeWorksheet(&buf, h, nShow, blank); err != nil {
 		return nil, err
 	}
 	return buf.Bytes(), nil
