@@ -111,4 +111,3 @@ func runKeygen(d deps, o *keygenOptions) error {
 	fmt.Fprintf(d.stdout, "private key: %s (%s)\npublic key:  %s\nfingerprint: %s\n", o.out, stored, pubPath, signature.Fingerprint(pub))
 	return nil
 }
-

@@ -116,7 +116,7 @@ func runVerify(d deps, o *verifyOptions) error {
 		Log:          o.logPath,
 		TemplatesDir: o.templatesDir,
 		ToolVersion:  d.version,
-		Names: verifyNames,
+		Names:        verifyNames,
 	}
 	trust, err := loadTrust(d, o.pub, o.signers)
 	if err != nil {
