@@ -302,9 +302,12 @@ func drawHeader(t *trend.Trend, c draw.Canvas, left vg.Length) {
 	title := fmt.Sprintf("Error per period against the ceiling, %s to %s", first, last)
 	tsty := style(sansBold(11.5), inkCol)
 	c.FillText(tsty, vg.Point{X: left, Y: c.Max.Y - 16}, title)
-	if len(t.Unauthenticated) > 0 {
-		c.FillText(style(sansBold(9.5), rejectCol), vg.Point{X: left + tsty.Width(title) + 16, Y: c.Max.Y - 15},
-			"UNAUTHENTICATED: "+strings.Join(t.Unauthenticated, ", "))
+	if n := len(t.Unauthenticated); n > 0 {
+		note := "UNAUTHENTICATED: " + strings.Join(t.Unauthenticated, ", ")
+		if n > 3 {
+			note = fmt.Sprintf("UNAUTHENTICATED: %d of %d records", n, len(t.Periods))
+		}
+		c.FillText(style(sansBold(9.5), rejectCol), vg.Point{X: left + tsty.Width(title) + 16, Y: c.Max.Y - 15}, note)
 	}
 	y := c.Min.Y + 5
 	x := left

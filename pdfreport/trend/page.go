@@ -182,8 +182,8 @@ func (p *page) header(t *trend.Trend) {
 	p.line(fmt.Sprintf("Latest period %s: %s (record %s)", t.Latest.Label, t.Latest.OverallVerdict, t.Latest.RecordID), 5.5)
 	if len(t.Unauthenticated) > 0 {
 		p.font("B", 9, reject)
-		p.line(fitText(p.pdf, "UNAUTHENTICATED records charted (marked *): "+strings.Join(t.Unauthenticated, ", ")+
-			" — their signatures did not authenticate them, or were not checked", p.w), 4.8)
+		p.line(fitText(p.pdf, fmt.Sprintf("UNAUTHENTICATED records charted (marked *): %d of %d, not authenticated by their signatures or not checked: %s",
+			len(t.Unauthenticated), len(t.Periods), strings.Join(t.Unauthenticated, ", ")), p.w), 4.8)
 	}
 }
 
