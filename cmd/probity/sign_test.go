@@ -49,7 +49,9 @@ func writeKey(t *testing.T, path string, priv ed25519.PrivateKey, pass string) s
 	return path
 }
 
-func fpOf(priv ed25519.PrivateKey) string { return signature.Fingerprint(priv.Public().(ed25519.PublicKey)) }
+func fpOf(priv ed25519.PrivateKey) string {
+	return signature.Fingerprint(priv.Public().(ed25519.PublicKey))
+}
 
 // signedByPeople is a sealed record and the keys and signers file of the
 // three people who sign it.
