@@ -118,12 +118,15 @@ const (
 
 // intendedText is the box's line about the intended signer.
 func intendedText(s record.Signoff) string {
-	name := strings.TrimSpace(s.Name)
+	name, title := strings.TrimSpace(s.Name), strings.TrimSpace(s.Title)
 	if name == "" {
+		if title != "" {
+			return "none named (the role: " + title + ")"
+		}
 		return "none named"
 	}
 	t := name
-	if title := strings.TrimSpace(s.Title); title != "" {
+	if title != "" {
 		t += ", " + title
 	}
 	if s.Date != "" {
