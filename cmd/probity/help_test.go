@@ -12,7 +12,7 @@ import (
 func TestHelpReads(t *testing.T) {
 	bareType := regexp.MustCompile(`--[a-z-]+ (string|int|float64|stringArray|strings|uint)\b`)
 	returnsOne := map[string]bool{"draw": true, "record": true, "verify": true, "trend": true, "demo": true}
-	for _, c := range []string{"plan", "draw", "record", "progress", "verify", "trend", "keygen", "demo"} {
+	for _, c := range []string{"plan", "draw", "record", "sign", "progress", "verify", "trend", "keygen", "demo"} {
 		code, help, stderr := runProbity(t, c, "--help")
 		if code != exitOK || stderr != "" {
 			t.Fatalf("%s --help: exit %d %s", c, code, stderr)

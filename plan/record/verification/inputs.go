@@ -125,6 +125,7 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	o := assemble.Options{
 		AllowIncomplete: rec.Deviations.AllowIncomplete, Bound: verdict.UnequalBoundOf(rec.Method.Bound),
 		Use: rec.Use, Date: rec.Date, Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
+		Revision: rec.Revision, Supersedes: rec.Supersedes, Demonstration: rec.Demonstration, Templates: in.Templates,
 	}
 	if lq := rec.LabelQuality; lq != nil {
 		if files.Second == "" {
@@ -163,4 +164,12 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	}
 	rep.add(CheckJudgement, Failed, "%s differs from the judgement recomputed from the inputs: %s", record.JSONFile, strings.Join(listed, "; "))
 	return nil
+}
+
+// readProblem is what went wrong reading a file, without its path.
+func readProblem(err error) string {
+	if e, ok := inputerr.As(err); ok {
+		return e.Msg
+	}
+	return err.Error()
 }
