@@ -211,7 +211,7 @@ func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, sel
 	m := &drawfolder.Manifest{
 		Format: drawfolder.ManifestFormat, ToolVersion: in.ToolVersion, PlanFingerprint: in.PlanFingerprint,
 		Seed: p.Seed, SelectionSeed: selection, KeyDefinition: KeyDefinition,
-		Log: drawfolder.LogInfo{Path: in.LogPath, SHA256: res.SHA256, Bytes: res.Bytes, Rows: res.Rows,
+		Log: drawfolder.LogInfo{Path: in.LogPath, SHA256: res.SHA256, ContentSHA256: res.ContentSHA256, Bytes: res.Bytes, Rows: res.Rows,
 			Format: res.Format, Compression: res.Compression},
 		IDColumn:      in.IDColumn,
 		StrataColumns: append([]string{}, in.StrataColumns...),

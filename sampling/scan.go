@@ -97,6 +97,10 @@ type ScanResult struct {
 	Compression string
 	SHA256      string
 	Bytes       int64
+	// ContentSHA256 is the SHA-256 of the log's content: its decompressed
+	// bytes (SHA256 itself when the log is not compressed), which
+	// compressing it again does not change.
+	ContentSHA256 string
 	// Rows counts data rows; InScope those matching the filters (under
 	// Dedupe: the distinct ids among them).
 	Rows    int64
@@ -361,7 +365,7 @@ func (s *scanner) run() (*ScanResult, error) {
 	if readErr != nil {
 		return nil, readErr
 	}
-	sum, n, err := s.ol.finish()
+	sum, n, content, err := s.ol.finish()
 	if err != nil {
 		return nil, s.readError(err, lines)
 	}
@@ -370,6 +374,7 @@ func (s *scanner) run() (*ScanResult, error) {
 		return nil, err
 	}
 	res.Header, res.Format, res.Compression, res.SHA256, res.Bytes = s.header, s.format, s.ol.compression, sum, n
+	res.ContentSHA256 = content
 	if res.Rows == 0 {
 		return nil, inputErrorf(s.spec.Name, 0, "", "the log has a header but no rows")
 	}

@@ -354,8 +354,9 @@ func (o *drawOptions) inputs() []string {
 }
 
 // drawFromLog opens the log and draws, with a progress bar when stderr is
-// a terminal and the log is large.
-func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*drawfolder.Content, error) {
+// a terminal and the log is large; with a manifest (draw --check) it draws
+// again as that draw did (sampling.Redraw).
+func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput, m ...*drawfolder.Manifest) (*drawfolder.Content, error) {
 	r, closeLog, size, err := openDrawLog(d, o.logPath)
 	if err != nil {
 		return nil, err
@@ -367,7 +368,12 @@ func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*drawfolder.Co
 		bar = &drawProgressBar{w: d.stderr, now: d.now, total: size, start: d.now(), min: drawProgressMin}
 		in.Progress = bar.update
 	}
-	f, err := sampling.Draw(*in)
+	var f *drawfolder.Content
+	if len(m) > 0 {
+		f, err = sampling.Redraw(m[0], *in)
+	} else {
+		f, err = sampling.Draw(*in)
+	}
 	if bar != nil {
 		bar.finish()
 	}
@@ -437,13 +443,20 @@ func runDrawCheck(d deps, o *drawOptions) error {
 		return inputerr.InFile(err, mpath)
 	}
 	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion, in.MaxLine = p, fp, o.logPath, d.version, o.parsedMaxLine
-	f, err := drawFromLog(d, o, &in)
+	f, err := drawFromLog(d, o, &in, m)
+	if errors.Is(err, sampling.ErrNotTheLog) {
+		fmt.Fprintf(d.stdout, "different: %s was not drawn from %s:\n  %s\n", o.check, o.logPath, messageOf(err))
+		return rejected("draw check failed: %s", messageOf(err))
+	}
 	if err != nil {
 		return inputerr.InFile(err, mpath)
 	}
 	rep, err := drawfolder.Compare(o.check, f)
 	if err != nil {
 		return err
+	}
+	for _, n := range rep.Notes {
+		fmt.Fprintf(d.stdout, "note: %s\n", n)
 	}
 	if len(rep.Differences) == 0 {
 		fmt.Fprintf(d.stdout, "same: %s holds exactly the %s and %s that the seed picks from %s (%s, sha256 %s)\n",

@@ -415,13 +415,14 @@ func runDrawCheckEngine(d deps, o *drawOptions) error {
 		return inputerr.InFile(err, mpath)
 	}
 	in.Format = ""
-	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
+	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion, in.MaxLine = p, fp, o.logPath, d.version, o.parsedMaxLine
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
 		return inputerr.InFile(err, mpath)
 	}
 	exportSHA, exportBytes := f.Manifest.Log.SHA256, f.Manifest.Log.Bytes
 	f.Manifest.Log.SHA256, f.Manifest.Log.Bytes = m.Log.SHA256, m.Log.Bytes
+	f.Manifest.Log.ContentSHA256 = m.Log.ContentSHA256
 	rep, err := drawfolder.Compare(o.check, f)
 	if err != nil {
 		return err

@@ -82,7 +82,7 @@ func (p passphraseSource) get(d deps, what string, confirm bool) ([]byte, error)
 func loadPrivateKey(d deps, path, flag string, pass passphraseSource) (ed25519.PrivateKey, string, error) {
 	data, err := inputfile.ReadFile(path, "private key", inputfile.SmallLimit)
 	if errors.Is(err, os.ErrNotExist) {
-		return nil, "", inputerr.Errorf("cannot read %s %s: %v", flag, path, readProblem(err)).WithHint("make a key pair with 'probity keygen --out NAME'")
+		return nil, "", inputerr.Errorf("cannot read %s %s: %v", flag, path, messageOf(err)).WithHint("make a key pair with 'probity keygen --out NAME'")
 	}
 	if err != nil {
 		return nil, "", err
@@ -113,7 +113,7 @@ func loadPrivateKey(d deps, path, flag string, pass passphraseSource) (ed25519.P
 func loadPublicKey(path string) (ed25519.PublicKey, error) {
 	data, err := inputfile.ReadFile(path, "public key", inputfile.SmallLimit)
 	if errors.Is(err, os.ErrNotExist) {
-		return nil, inputerr.Errorf("cannot read --pub %s: %v", path, readProblem(err)).WithHint("pass the NAME.pub file written by probity keygen")
+		return nil, inputerr.Errorf("cannot read --pub %s: %v", path, messageOf(err)).WithHint("pass the NAME.pub file written by probity keygen")
 	}
 	if err != nil {
 		return nil, err
@@ -154,11 +154,3 @@ answers for the records, not by the signers:
     - name: Audit operations
       roles: [operator]    # may seal records (record --sign-key)
       key: sha256:…`
-
-// readProblem is what went wrong reading a file, without its path.
-func readProblem(err error) string {
-	if e, ok := inputerr.As(err); ok {
-		return e.Msg
-	}
-	return err.Error()
-}

@@ -27,6 +27,9 @@ type verifyOptions struct {
 	adjudicated string
 	// templatesDir is the wording record.pdf was rendered with.
 	templatesDir string
+	// maxLine bounds a line of the log (--max-line), parsedMaxLine read.
+	maxLine       string
+	parsedMaxLine int64
 }
 
 // newVerifyCommand builds `probity verify`.
@@ -85,6 +88,13 @@ authenticates, so verify exits 1 on a demo record whatever is trusted.
 			if opts.logPath != "" && (opts.drawDir == "" || opts.planPath == "") {
 				return inputerr.Errorf("--log needs --plan and --draw").WithHint("the sample is drawn again from the log with the plan's seed and the draw folder's settings")
 			}
+			if opts.maxLine != "" {
+				n, err := parseSize("--max-line", opts.maxLine)
+				if err != nil {
+					return err
+				}
+				opts.parsedMaxLine = n
+			}
 			return nil
 		},
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -99,6 +109,7 @@ authenticates, so verify exits 1 on a demo record whatever is trusted.
 	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder `DIR`, to check and recompute from")
 	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet `FILE`, to check and recompute from")
 	fl.StringVar(&opts.logPath, "log", "", "the prediction log `FILE`, to draw the sample again")
+	fl.StringVar(&opts.maxLine, "max-line", "", "with --log: "+maxLineHelp)
 	fl.StringVar(&opts.second, "second", "", "the labeled second worksheet `FILE` of a record judged on double labels, to check and recompute from")
 	fl.StringVar(&opts.adjudicated, "adjudicated", "", "the adjudication `FILE` of such a record, to check and recompute from")
 	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder `DIR` the record was made with, to re-render record.pdf")
@@ -110,6 +121,7 @@ func runVerify(d deps, o *verifyOptions) error {
 		Dir:          o.dir,
 		Files:        assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.second, Adjudications: o.adjudicated},
 		Log:          o.logPath,
+		MaxLine:      o.parsedMaxLine,
 		TemplatesDir: o.templatesDir,
 		ToolVersion:  d.version,
 		Names:        verifyNames,

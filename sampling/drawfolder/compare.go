@@ -19,6 +19,9 @@ type Comparison struct {
 	Differences []string
 	// Items and Spares count the recomputed sample.
 	Items, Spares int
+	// Notes say what is not a difference but worth knowing: a log
+	// compressed again since the draw.
+	Notes []string
 }
 
 // maxListed bounds the differences listed per file.
@@ -45,10 +48,16 @@ func Compare(dir string, want *Content) (*Comparison, error) {
 			diff("manifest %s: the folder has %v, the log and plan give %v", name, g, x)
 		}
 	}
+	switch same, why := SameLog(got.Log, w.Log); {
+	case !same:
+		// Every other difference would only follow from this one.
+		rep.Differences = []string{why}
+		return rep, nil
+	case why != "":
+		rep.Notes = append(rep.Notes, why)
+	}
 	field("plan_fingerprint", got.PlanFingerprint, w.PlanFingerprint)
 	field("selection_seed", got.SelectionSeed, w.SelectionSeed)
-	field("log.sha256", got.Log.SHA256, w.Log.SHA256)
-	field("log.bytes", got.Log.Bytes, w.Log.Bytes)
 	field("log.rows", got.Log.Rows, w.Log.Rows)
 	field("lot_size", got.LotSize, w.LotSize)
 	field("sample_size", got.SampleSize, w.SampleSize)
@@ -76,6 +85,36 @@ func Compare(dir string, want *Content) (*Comparison, error) {
 		diff("%s is in the folder but the draw doubles no item", WorksheetSecondFile)
 	}
 	return rep, nil
+}
+
+// SameLog reports whether read, a log just read, is the log a draw
+// recorded: the same content (decompressed bytes), whatever its
+// compression. When it is not, why says so with both fingerprints; when it
+// is the same content compressed differently, why notes that. A manifest
+// from before content fingerprints is matched on the file's own SHA-256.
+func SameLog(recorded, read LogInfo) (same bool, why string) {
+	rec, got, what := recorded.ContentSHA256, read.ContentSHA256, "its content's SHA-256"
+	if rec == "" {
+		rec, got, what = recorded.SHA256, read.SHA256, "its SHA-256"
+	}
+	if rec != got {
+		return false, fmt.Sprintf("this is not the log the draw was made from: %s is %s… (%s, %d rows), the draw's log %s had %s… (%s, %d rows)",
+			what, short(got), read.Kind(), read.Rows, recorded.Path, short(rec), recorded.Kind(), recorded.Rows)
+	}
+	if recorded.SHA256 != read.SHA256 {
+		return true, fmt.Sprintf("the log was compressed again since the draw: the same content (SHA-256 %s…) in a file with SHA-256 %s…, where the draw's log had %s…",
+			short(rec), short(read.SHA256), short(recorded.SHA256))
+	}
+	return true, ""
+}
+
+// Kind is a log's format and compression, for messages: "csv",
+// "jsonl, gzip".
+func (l LogInfo) Kind() string {
+	if l.Compression == "" || l.Compression == "none" {
+		return l.Format
+	}
+	return l.Format + ", " + l.Compression
 }
 
 func strataText(s []StratumInfo) string {

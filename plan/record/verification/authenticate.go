@@ -17,7 +17,7 @@ import (
 func Authenticate(jsonPath string, trust Trust, names Names) (*Report, error) {
 	js, err := inputfile.ReadFile(jsonPath, "record", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.Errorf("cannot read %s: %s", jsonPath, readProblem(err)).Wrap(err)
+		return nil, inputerr.Errorf("cannot read %s: %s", jsonPath, messageOf(err)).Wrap(err)
 	}
 	rep := &Report{}
 	rec := checkRecord(rep, jsonPath, js)

@@ -166,8 +166,9 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	return nil
 }
 
-// readProblem is what went wrong reading a file, without its path.
-func readProblem(err error) string {
+// messageOf is an input error's message without its file, line and
+// field, or err's text.
+func messageOf(err error) string {
 	if e, ok := inputerr.As(err); ok {
 		return e.Msg
 	}

@@ -70,7 +70,7 @@ func authenticate(rep *Report, dir string, trust Trust, names Names, rec *record
 			a.people = ms
 		}
 	} else if !errors.Is(peopleErr, fs.ErrNotExist) {
-		a.fail(rep, CheckPeople, "%s cannot be read: %s", peoplePath, readProblem(peopleErr))
+		a.fail(rep, CheckPeople, "%s cannot be read: %s", peoplePath, messageOf(peopleErr))
 	}
 	checkSeal(rep, a, dir, trust, names, rec, js, pdf, hasPeople)
 	checkPeople(rep, a, peoplePath, trust, names, rec, js)
@@ -91,7 +91,7 @@ func checkSeal(rep *Report, a *auth, dir string, trust Trust, names Names, rec *
 		return
 	}
 	if err != nil {
-		a.fail(rep, CheckSignature, "%s cannot be read: %s", sigPath, readProblem(err))
+		a.fail(rep, CheckSignature, "%s cannot be read: %s", sigPath, messageOf(err))
 		return
 	}
 	sig, err := signature.Parse(data, sigPath)
