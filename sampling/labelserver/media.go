@@ -1,0 +1,72 @@
+package labelserver
+
+import (
+	"bytes"
+	"io"
+	"net/http"
+	"net/url"
+	"path"
+	"strings"
+)
+
+// imageTypes are the image files a shown column may name, by extension.
+var imageTypes = map[string]string{
+	".png": "image/png", ".jpg": "image/jpeg", ".jpeg": "image/jpeg", ".gif": "image/gif", ".webp": "image/webp",
+}
+
+// maxMedia is the largest media file served.
+const maxMedia = 64 << 20
+
+// isImageName reports whether a shown value names an image file (by its
+// extension, in any case).
+func isImageName(v string) bool {
+	_, ok := imageTypes[strings.ToLower(path.Ext(v))]
+	return ok && strings.TrimSpace(v) == v && v != ""
+}
+
+// media serves an image of the media folder: only a name an item of the
+// worksheet shows, only through the os.Root of the folder (no "..", no
+// symbolic link out of it), only a regular file.
+func (s *Server) media(w http.ResponseWriter, r *http.Request) {
+	sh := s.sheetOf(r)
+	if sh == nil {
+		denyToken(w)
+		return
+	}
+	name := r.PathValue("name")
+	if s.root == nil || !sh.media[name] {
+		deny(w, http.StatusNotFound, "no such media file")
+		return
+	}
+	f, err := s.root.Open(name)
+	if err != nil {
+		deny(w, http.StatusNotFound, "no such media file")
+		return
+	}
+	defer f.Close()
+	st, err := f.Stat()
+	if err != nil || !st.Mode().IsRegular() || st.Size() > maxMedia {
+		deny(w, http.StatusNotFound, "no such media file")
+		return
+	}
+	data, err := io.ReadAll(io.LimitReader(f, maxMedia))
+	if err != nil {
+		deny(w, http.StatusInternalServerError, "cannot read the media file")
+		return
+	}
+	w.Header().Set("Content-Type", imageTypes[strings.ToLower(path.Ext(name))])
+	http.ServeContent(w, r, "", st.ModTime(), bytes.NewReader(data))
+}
+
+// imageOf is the page's address of a shown value that names an image of
+// the media folder ("" when it is text): relative to the worksheet's path.
+func (s *Server) imageOf(sh *sheet, v string) string {
+	if s.root == nil || !sh.media[v] {
+		return ""
+	}
+	parts := strings.Split(v, "/")
+	for i, p := range parts {
+		parts[i] = url.PathEscape(p)
+	}
+	return "media/" + strings.Join(parts, "/")
+}
