@@ -242,8 +242,7 @@ func (s *Server) labeler(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	name := strings.TrimSpace(body.Name)
-	probe := labeltrail.Label{Labeler: name}
-	if err := checkName(probe.Labeler); err != nil {
+	if err := labeltrail.CheckLabeler(name); err != nil {
 		deny(w, http.StatusBadRequest, err.Error())
 		return
 	}
@@ -348,22 +347,6 @@ func messageOf(err error) string {
 		return e.Msg
 	}
 	return err.Error()
-}
-
-// checkName applies the trail's rule for a labeler's name.
-func checkName(name string) error {
-	if name == "" {
-		return errors.New("give your name")
-	}
-	for _, r := range name {
-		if r < 0x20 || r == 0x7f {
-			return errors.New("the name holds a control character")
-		}
-	}
-	if n := len([]rune(name)); n > labeltrail.MaxName {
-		return fmt.Errorf("the name has %d characters, more than %d", n, labeltrail.MaxName)
-	}
-	return nil
 }
 
 // decodeBody decodes a JSON request body of at most maxBody bytes,

@@ -34,6 +34,10 @@ const (
 
 var t0 = time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC)
 
+// prediction is item's score in the ledger: a value no page shows by
+// chance.
+func prediction(item int) string { return fmt.Sprintf("0.9%02d7313", item) }
+
 func fixtureKey(i int) string { return fmt.Sprintf("%064x", 0xfeed0000+i) }
 
 // writeFixture writes an invented draw folder: per stratum three sample
@@ -85,7 +89,7 @@ func writeFixture(t *testing.T) (string, string) {
 		s := strata[l.stratum]
 		item := i + 1
 		id := fmt.Sprintf("rec-%03d", item)
-		pred := []string{"defect", "sound"}[i%2]
+		pred := prediction(item)
 		c.Ledger = append(c.Ledger, drawfolder.LedgerRow{Item: item, RecordID: id, Stratum: s.Label, StratumSize: s.Population,
 			StratumSample: s.Sample, Weight: s.Weight, Key: fixtureKey(l.key), Spare: l.spare, Double: item <= 2, Predictions: []string{pred}})
 		w := drawfolder.WorksheetRow{Item: item, RecordID: id, Show: shows[i]}

@@ -5,8 +5,12 @@ import (
 	"io"
 	"net/http"
 	"net/url"
+	"os"
 	"path"
+	"path/filepath"
 	"strings"
+
+	"probity/sampling/drawfolder"
 )
 
 // imageTypes are the image files a shown column may name, by extension.
@@ -16,6 +20,28 @@ var imageTypes = map[string]string{
 
 // maxMedia is the largest media file served.
 const maxMedia = 64 << 20
+
+// mediaFiles are the shown values of rows that name an image file the
+// media folder holds as a regular file, reached without leaving the folder
+// (os.Root refuses ".." and symbolic links out of it); any other value is
+// shown as text.
+func mediaFiles(root *os.Root, rows []drawfolder.WorksheetRow) map[string]bool {
+	out := map[string]bool{}
+	if root == nil {
+		return out
+	}
+	for _, r := range rows {
+		for _, v := range r.Show {
+			if out[v] || !isImageName(v) || !filepath.IsLocal(v) {
+				continue
+			}
+			if st, err := root.Stat(v); err == nil && st.Mode().IsRegular() {
+				out[v] = true
+			}
+		}
+	}
+	return out
+}
 
 // isImageName reports whether a shown value names an image file (by its
 // extension, in any case).

@@ -59,7 +59,8 @@ type sheet struct {
 	// spares is the spare rule (nil for the second worksheet, which has
 	// no spares).
 	spares *spareRule
-	// media are the shown values that name an image file.
+	// media are the shown values that name an image file of the media
+	// folder (mediaFiles).
 	media map[string]bool
 }
 
@@ -101,16 +102,12 @@ func New(c Config) (*Server, error) {
 		if err != nil {
 			return nil, err
 		}
-		sh := &sheet{token: tok, rows: map[int]drawfolder.WorksheetRow{}, media: map[string]bool{}}
+		rows := st.Worksheet(name)
+		sh := &sheet{token: tok, rows: map[int]drawfolder.WorksheetRow{}, media: mediaFiles(s.root, rows)}
 		sh.Name, sh.Path = name, "/s/"+tok+"/"
-		for _, r := range st.Worksheet(name) {
+		for _, r := range rows {
 			sh.rows[r.Item] = r
 			sh.order = append(sh.order, r.Item)
-			for _, v := range r.Show {
-				if isImageName(v) {
-					sh.media[v] = true
-				}
-			}
 		}
 		sh.Title, sh.Items = SecondTitle, len(sh.order)
 		if name == drawfolder.WorksheetFile {

@@ -165,8 +165,8 @@ func (s *State) Check(line int, at time.Time, ev Label) error {
 	if r := s.rows[ev.Sheet][ev.Item]; r.RecordID != ev.RecordID {
 		return bad("record_id", "item %d is record %q in %s, not %q", ev.Item, r.RecordID, ev.Sheet, ev.RecordID)
 	}
-	if err := checkText("labeler", ev.Labeler, MaxName, false); err != nil || strings.TrimSpace(ev.Labeler) != ev.Labeler || ev.Labeler == "" {
-		return bad("labeler", "the labeler's name must be given, without surrounding spaces, line breaks or control characters, in at most %d characters", MaxName)
+	if err := CheckLabeler(ev.Labeler); err != nil {
+		return bad("labeler", "%v", err)
 	}
 	if norm, kind := drawfolder.ParseLabel(ev.Label, s.draw.Classes); kind == drawfolder.LabelInvalid || norm != ev.Label {
 		return bad("label", "label %q is not one of the plan's classes (%s), %q or blank", ev.Label, strings.Join(s.draw.Classes, ", "), drawfolder.Unsure)
@@ -225,6 +225,19 @@ func (s *State) apply(line int, at time.Time, ev Label) error {
 		slices.Sort(sum.Labelers)
 	}
 	return nil
+}
+
+// CheckLabeler applies the rule for a labeler's name: given, without
+// surrounding spaces, and within MaxName characters of valid UTF-8 with
+// no line break or other control character.
+func CheckLabeler(name string) error {
+	if name == "" {
+		return errors.New("the labeler's name must be given")
+	}
+	if strings.TrimSpace(name) != name {
+		return errors.New("the labeler's name has surrounding spaces")
+	}
+	return checkText("labeler's name", name, MaxName, false)
 }
 
 // checkText refuses text over max characters, invalid UTF-8, and control
