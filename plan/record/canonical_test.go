@@ -124,4 +124,11 @@ func TestID(t *testing.T) {
 	if ID(f, &other) == ID(f, lq) {
 		t.Errorf("changing the adjudications did not change the id")
 	}
+	// Labels derived from a label trail: the trail's SHA-256 ends the
+	// preimage.
+	tr := f
+	tr.Trail = "t"
+	if got, want := ID(tr, lq), SHA256([]byte("probity-record-id-v1\nplan:a\nlog:b\nmanifest:c\nledger:d\nworksheet:e\nlabels:f\nsecond:s\nadjudications:j\ntrail:t\n"))[:12]; got != want {
+		t.Errorf("ID with a trail = %s, want %s", got, want)
+	}
 }

@@ -22,7 +22,12 @@ const IDLength = 12
 //
 //	"second:<hex>\nadjudications:<hex>\n"
 //
-// (adjudications empty when there was no file). The same inputs always give
+// (adjudications empty when there was no file). A record whose labels were
+// derived from a label trail ends with the trail's SHA-256 as
+//
+//	"trail:<hex>\n"
+//
+// so the id also covers who labeled when. The same inputs always give
 // the same id; a change to any of them changes it.
 func ID(f Fingerprints, lq *LabelQuality) string {
 	var b strings.Builder
@@ -31,6 +36,9 @@ func ID(f Fingerprints, lq *LabelQuality) string {
 		f.Plan, f.Log, f.Manifest, f.Ledger, f.Worksheet, f.Labels)
 	if lq != nil {
 		fmt.Fprintf(&b, "second:%s\nadjudications:%s\n", lq.SecondWorksheet, lq.Adjudications)
+	}
+	if f.Trail != "" {
+		fmt.Fprintf(&b, "trail:%s\n", f.Trail)
 	}
 	sum := sha256.Sum256([]byte(b.String()))
 	return hex.EncodeToString(sum[:])[:IDLength]

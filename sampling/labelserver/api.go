@@ -39,7 +39,7 @@ func deny(w http.ResponseWriter, status int, msg string) {
 
 // denyToken refuses a request without a worksheet's token.
 func denyToken(w http.ResponseWriter) {
-	deny(w, http.StatusForbidden, "forbidden: use the address probity label printed, with its access token")
+	deny(w, http.StatusForbidden, "forbidden: use the labeling address as it was given, with its access token")
 }
 
 func writeJSON(w http.ResponseWriter, v any) {
@@ -49,53 +49,53 @@ func writeJSON(w http.ResponseWriter, v any) {
 	enc.Encode(v)
 }
 
-// stateView is what the page needs to start: the labeler, the worksheet,
+// StateView is what the page needs to start: the labeler, the worksheet,
 // the classes, the sequence of items and the count of labeled ones.
-type stateView struct {
-	Labeler  string      `json:"labeler"`
-	Title    string      `json:"title"`
-	Classes  []string    `json:"classes"`
-	Sequence []entryView `json:"sequence"`
-	Labeled  int         `json:"labeled"`
-	Total    int         `json:"total"`
+type StateView struct {
+	Labeler  string          `json:"labeler"`
+	Title    string          `json:"title"`
+	Classes  []string        `json:"classes"`
+	Sequence []SequenceEntry `json:"sequence"`
+	Labeled  int             `json:"labeled"`
+	Total    int             `json:"total"`
 	// Resume is the position in Sequence of the first item not labeled
 	// (Total when every item is).
 	Resume int `json:"resume"`
 }
 
-// entryView is one item of the sequence; SpareFor is the item a spare
+// SequenceEntry is one item of the sequence; SpareFor is the item a spare
 // stands in for (0 for a sample item).
-type entryView struct {
+type SequenceEntry struct {
 	Item     int `json:"item"`
 	SpareFor int `json:"spare_for,omitempty"`
 }
 
-// itemView is one item as the labeler sees it: the worksheet's row only.
-type itemView struct {
+// ItemView is one item as the labeler sees it: the worksheet's row only.
+type ItemView struct {
 	Item     int         `json:"item"`
 	RecordID string      `json:"record_id"`
-	Fields   []fieldView `json:"fields"`
+	Fields   []FieldView `json:"fields"`
 	Label    string      `json:"label"`
 	Note     string      `json:"note"`
 	Labeler  string      `json:"labeler"`
 	SpareFor int         `json:"spare_for,omitempty"`
 }
 
-// fieldView is a shown column; Image is set when its value names an image
+// FieldView is a shown column; Image is set when its value names an image
 // of the media folder.
-type fieldView struct {
+type FieldView struct {
 	Name  string `json:"name"`
 	Value string `json:"value"`
 	Image string `json:"image,omitempty"`
 }
 
-// labelView answers a label event: the item as it now is, the sequence
+// LabelView answers a label event: the item as it now is, the sequence
 // and count, and the spare offered when the item was marked unsure.
-type labelView struct {
-	Item     itemView    `json:"item"`
-	Sequence []entryView `json:"sequence"`
-	Labeled  int         `json:"labeled"`
-	Total    int         `json:"total"`
+type LabelView struct {
+	Item     ItemView        `json:"item"`
+	Sequence []SequenceEntry `json:"sequence"`
+	Labeled  int             `json:"labeled"`
+	Total    int             `json:"total"`
 	// Offer is the spare that replaces the item (0: none); NoSpare is set
 	// when the item is unsure and its group has no spare left.
 	Offer   int  `json:"offer,omitempty"`
@@ -127,16 +127,16 @@ func (s *Server) page(w http.ResponseWriter, r *http.Request) {
 
 // sequenceLocked is the worksheet's sequence and how many of its items
 // are labeled. The caller holds the lock.
-func (s *Server) sequenceLocked(sh *sheet) (seq []entryView, labeled, resume int) {
+func (s *Server) sequenceLocked(sh *sheet) (seq []SequenceEntry, labeled, resume int) {
 	st := s.cfg.Trail.State()
 	if sh.spares == nil {
 		for _, it := range sh.order {
-			seq = append(seq, entryView{Item: it})
+			seq = append(seq, SequenceEntry{Item: it})
 		}
 	} else {
 		a := sh.spares.assign(cellLabel(st, sh.Name))
 		for _, it := range sh.spares.sequence(a) {
-			seq = append(seq, entryView{Item: it, SpareFor: a.spareFor[it]})
+			seq = append(seq, SequenceEntry{Item: it, SpareFor: a.spareFor[it]})
 		}
 	}
 	resume = len(seq)
@@ -165,21 +165,21 @@ func (s *Server) state(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	seq, labeled, resume := s.sequenceLocked(sh)
-	writeJSON(w, stateView{Labeler: ss.labeler, Title: sh.Title, Classes: s.cfg.Classes, Sequence: seq,
+	writeJSON(w, StateView{Labeler: ss.labeler, Title: sh.Title, Classes: s.cfg.Classes, Sequence: seq,
 		Labeled: labeled, Total: len(seq), Resume: resume})
 }
 
 // itemLocked is an item's view. The caller holds the lock.
-func (s *Server) itemLocked(sh *sheet, item int) itemView {
+func (s *Server) itemLocked(sh *sheet, item int) ItemView {
 	r := sh.rows[item]
 	c := s.cfg.Trail.State().Cell(sh.Name, item)
-	v := itemView{Item: item, RecordID: r.RecordID, Label: c.Label, Note: c.Note, Labeler: c.Labeler, Fields: []fieldView{}}
+	v := ItemView{Item: item, RecordID: r.RecordID, Label: c.Label, Note: c.Note, Labeler: c.Labeler, Fields: []FieldView{}}
 	for i, name := range s.cfg.Folder.Manifest.ShowColumns {
 		val := ""
 		if i < len(r.Show) {
 			val = r.Show[i]
 		}
-		v.Fields = append(v.Fields, fieldView{Name: name, Value: val, Image: s.imageOf(sh, val)})
+		v.Fields = append(v.Fields, FieldView{Name: name, Value: val, Image: s.imageOf(sh, val)})
 	}
 	if sh.spares != nil && sh.spares.isSpare[item] {
 		v.SpareFor = sh.spares.assign(cellLabel(s.cfg.Trail.State(), sh.Name)).spareFor[item]
@@ -254,8 +254,8 @@ func (s *Server) labeler(w http.ResponseWriter, r *http.Request) {
 	writeJSON(w, map[string]string{"labeler": name})
 }
 
-// labelRequest is a label event as the page sends it.
-type labelRequest struct {
+// LabelRequest is a label event as the page sends it.
+type LabelRequest struct {
 	Item          int    `json:"item"`
 	Label         string `json:"label"`
 	Note          string `json:"note"`
@@ -272,7 +272,7 @@ func (s *Server) label(w http.ResponseWriter, r *http.Request) {
 		denyToken(w)
 		return
 	}
-	var req labelRequest
+	var req LabelRequest
 	s.mu.Lock()
 	defer s.mu.Unlock()
 	ss := s.checkPost(w, r, sh)
@@ -323,7 +323,7 @@ func (s *Server) label(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	seq, labeled, _ := s.sequenceLocked(sh)
-	v := labelView{Item: s.itemLocked(sh, req.Item), Sequence: seq, Labeled: labeled, Total: len(seq)}
+	v := LabelView{Item: s.itemLocked(sh, req.Item), Sequence: seq, Labeled: labeled, Total: len(seq)}
 	if req.Label == drawfolder.Unsure && sh.spares != nil {
 		a := sh.spares.assign(cellLabel(st, sh.Name))
 		orig := req.Item

@@ -11,7 +11,6 @@ import (
 	"net/http/httptest"
 	"os"
 	"path/filepath"
-	"regexp"
 	"strings"
 	"sync"
 	"testing"
@@ -165,8 +164,6 @@ type client struct {
 	bodies []string
 }
 
-var csrfMeta = regexp.MustCompile(`<meta name="csrf-token" content="([0-9a-f]+)">`)
-
 // open loads the worksheet's page at path, as a browser does.
 func open(t *testing.T, ts *httptest.Server, path string) *client {
 	t.Helper()
@@ -223,20 +220,20 @@ func (c *client) name(n string) {
 	}
 }
 
-func (c *client) state() stateView {
+func (c *client) state() StateView {
 	c.t.Helper()
 	code, body := c.do("GET", "api/state", nil, nil)
-	var v stateView
+	var v StateView
 	if code != 200 || json.Unmarshal([]byte(body), &v) != nil {
 		c.t.Fatalf("state: %d %s", code, body)
 	}
 	return v
 }
 
-func (c *client) item(item int) itemView {
+func (c *client) item(item int) ItemView {
 	c.t.Helper()
 	code, body := c.do("GET", fmt.Sprintf("api/item/%d", item), nil, nil)
-	var v itemView
+	var v ItemView
 	if code != 200 || json.Unmarshal([]byte(body), &v) != nil {
 		c.t.Fatalf("item %d: %d %s", item, code, body)
 	}
@@ -245,16 +242,16 @@ func (c *client) item(item int) itemView {
 
 // label sends a label event from the item's current values and returns
 // the status and the answer.
-func (c *client) label(item int, label, note, reason string) (int, labelView, string) {
+func (c *client) label(item int, label, note, reason string) (int, LabelView, string) {
 	c.t.Helper()
 	cur := c.item(item)
-	code, body := c.do("POST", "api/label", labelRequest{Item: item, Label: label, Note: note, PreviousLabel: cur.Label, PreviousNote: cur.Note, Reason: reason}, nil)
-	var v labelView
+	code, body := c.do("POST", "api/label", LabelRequest{Item: item, Label: label, Note: note, PreviousLabel: cur.Label, PreviousNote: cur.Note, Reason: reason}, nil)
+	var v LabelView
 	json.Unmarshal([]byte(body), &v)
 	return code, v, body
 }
 
-func (c *client) mustLabel(item int, label, note, reason string) labelView {
+func (c *client) mustLabel(item int, label, note, reason string) LabelView {
 	c.t.Helper()
 	code, v, body := c.label(item, label, note, reason)
 	if code != 200 {

@@ -90,7 +90,7 @@ func TestStateChangesNeedTheSessionsCSRFToken(t *testing.T) {
 	c := open(t, ts, path)
 	c.name("Dana Example")
 	other := open(t, ts, path) // another browser: its own session and token
-	ev := labelRequest{Item: 1, Label: "defect"}
+	ev := LabelRequest{Item: 1, Label: "defect"}
 	before := fileSize(t, trail)
 	cases := []struct {
 		what    string
@@ -201,7 +201,7 @@ func TestAnUnsureItemIsOfferedTheSpareTheDrawAssigns(t *testing.T) {
 	if code, _ := c.do("GET", "api/item/7", nil, nil); code != http.StatusNotFound {
 		t.Errorf("an unassigned spare can be read: %d", code)
 	}
-	if code, _ := c.do("POST", "api/label", labelRequest{Item: 8, Label: "sound"}, nil); code != http.StatusConflict {
+	if code, _ := c.do("POST", "api/label", LabelRequest{Item: 8, Label: "sound"}, nil); code != http.StatusConflict {
 		t.Errorf("an unassigned spare was labeled: %d", code)
 	}
 	// Item 1 is in the first stratum, whose spares are items 8 (key 7)
@@ -213,7 +213,7 @@ func TestAnUnsureItemIsOfferedTheSpareTheDrawAssigns(t *testing.T) {
 	if it := c.item(8); it.SpareFor != 1 {
 		t.Errorf("item 8 spare for %d", it.SpareFor)
 	}
-	if code, _ := c.do("POST", "api/label", labelRequest{Item: 7, Label: "sound"}, nil); code != http.StatusConflict {
+	if code, _ := c.do("POST", "api/label", LabelRequest{Item: 7, Label: "sound"}, nil); code != http.StatusConflict {
 		t.Errorf("the second spare was labeled before the first: %d", code)
 	}
 	// The spare itself unsure: the next spare of the stratum replaces
@@ -255,7 +255,7 @@ func TestAChangedLabelNeedsAReason(t *testing.T) {
 	// A stale previous label (another labeler changed it meanwhile) is a
 	// conflict, and changes nothing.
 	before := fileSize(t, trail)
-	code, body := c.do("POST", "api/label", labelRequest{Item: 2, Label: "defect", PreviousLabel: "defect", Reason: "x"}, nil)
+	code, body := c.do("POST", "api/label", LabelRequest{Item: 2, Label: "defect", PreviousLabel: "defect", Reason: "x"}, nil)
 	if code != http.StatusConflict || fileSize(t, trail) != before {
 		t.Errorf("a stale event: %d %s", code, body)
 	}
@@ -332,7 +332,7 @@ func TestTwoLabelersAtOnceLoseNothing(t *testing.T) {
 	for i, c := range []*client{a, b} {
 		go func() {
 			defer wg.Done()
-			codes[i], _ = c.do("POST", "api/label", labelRequest{Item: 1, Label: "sound", PreviousLabel: "defect", PreviousNote: "round 9", Reason: "second look " + strconv.Itoa(i)}, nil)
+			codes[i], _ = c.do("POST", "api/label", LabelRequest{Item: 1, Label: "sound", PreviousLabel: "defect", PreviousNote: "round 9", Reason: "second look " + strconv.Itoa(i)}, nil)
 		}()
 	}
 	wg.Wait()

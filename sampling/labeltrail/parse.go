@@ -62,7 +62,7 @@ func Parse(data []byte, name string) (*Trail, error) {
 	sum := sha256.Sum256(data)
 	t := &Trail{Path: name, SHA256: hex.EncodeToString(sum[:])}
 	if len(data) == 0 {
-		return nil, inputerr.At(name, 0, "", "the trail is empty").WithHint("a trail begins with the line probity label writes when it starts")
+		return nil, inputerr.At(name, 0, "", "the trail is empty").WithHint("a trail begins with the line the labeling writes when it starts")
 	}
 	rest := data
 	for line := 1; len(rest) > 0; line++ {
@@ -72,7 +72,7 @@ func Parse(data []byte, name string) (*Trail, error) {
 				return nil, inputerr.At(name, line, "", "%w: the first line has no line end", ErrCutShort)
 			}
 			return t, inputerr.At(name, line, "", "%w (%d bytes without a line end): it was being written when the labeling stopped and was never confirmed", ErrCutShort, len(rest)).
-				WithHint("start probity label on the draw again with --drop-incomplete to remove it; every confirmed event is in the lines before it")
+				WithHint("every confirmed event is in the lines before it; the labeling can remove the cut line when it starts again")
 		}
 		text := rest[:i]
 		rest = rest[i+1:]
@@ -104,7 +104,7 @@ func parseLine(name string, line int, text []byte, prev string) (*Entry, error) 
 	}
 	if e.Seq != line {
 		return nil, at("seq", "%w: seq is %d on line %d", ErrBroken, e.Seq, line).
-			WithHint("the trail was edited, or lines were removed or reordered; use the file probity label wrote")
+			WithHint("the trail was edited, or lines were removed or reordered; use the trail as the labeling wrote it")
 	}
 	if e.Prev != prev {
 		what := fmt.Sprintf("the SHA-256 of line %d is %s", line-1, prev)
@@ -112,7 +112,7 @@ func parseLine(name string, line int, text []byte, prev string) (*Entry, error) 
 			what = "the first line's prev must be empty"
 		}
 		return nil, at("prev", "%w: %s, but this entry records %q", ErrBroken, what, e.Prev).
-			WithHint("the trail was edited, or lines were removed or reordered; use the file probity label wrote")
+			WithHint("the trail was edited, or lines were removed or reordered; use the trail as the labeling wrote it")
 	}
 	if _, err := ParseTime(e.Time); err != nil {
 		return nil, at("time", "%q is not a UTC time of the form %s", e.Time, TimeLayout)
@@ -133,7 +133,7 @@ func parseLine(name string, line int, text []byte, prev string) (*Entry, error) 
 	}
 	if !bytes.Equal(again, text) {
 		return nil, at("", "the line is not in the trail's canonical form (keys in order, no spaces): it was edited").
-			WithHint("use the file probity label wrote")
+			WithHint("use the trail as the labeling wrote it")
 	}
 	return &e, nil
 }

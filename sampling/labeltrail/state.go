@@ -268,6 +268,16 @@ func (s *State) Cell(sheet string, item int) *Cell {
 	return &cp
 }
 
+// HasEvents reports whether the trail holds any label event on sheet.
+func (s *State) HasEvents(sheet string) bool {
+	for _, c := range s.cells[sheet] {
+		if c.Line > 0 {
+			return true
+		}
+	}
+	return false
+}
+
 // Summary is the labeling so far.
 func (s *State) Summary() Summary {
 	sum := s.sum
