@@ -25,6 +25,9 @@ type deps struct {
 	stdoutIsTerminal bool
 	// version is the tool version written into every artifact.
 	version string
+	// stop ends a command that serves until stopped (label); nil in a
+	// real process, which a signal ends (exitOnSignal).
+	stop <-chan struct{}
 }
 
 // systemDeps returns the dependencies of a real process.
