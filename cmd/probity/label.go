@@ -18,6 +18,7 @@ import (
 	"probity/sampling/drawfolder"
 	"probity/sampling/labelserver"
 	"probity/sampling/labeltrail"
+	"probity/sampling/safewrite"
 )
 
 // labelOptions are the flags of probity label.
@@ -163,6 +164,9 @@ func openLabeling(s labelSetup) (*labeling, error) {
 		l.trail, l.dropped, err = labeltrail.Open(path, d, s.dropIncomplete)
 		if errors.Is(err, labeltrail.ErrCutShort) {
 			return nil, inputerr.SetHint(err, "run probity label again with --drop-incomplete to remove it; every confirmed label is in the lines before it")
+		}
+		if errors.Is(err, safewrite.ErrLocked) {
+			return nil, inputerr.SetHint(err, "another probity label serves this draw: label at the addresses it printed, or stop it first")
 		}
 		if errors.Is(err, labeltrail.ErrBroken) {
 			return nil, inputerr.SetHint(err, "the trail was edited after labeling; restore the trail as probity label wrote it")

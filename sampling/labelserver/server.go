@@ -79,7 +79,7 @@ type Server struct {
 // Titles of the worksheets.
 const (
 	FirstTitle  = "first labels"
-	SecondTitle = "second labels (independent)"
+	SecondTitle = "second labels, independent"
 )
 
 // New builds the server: one random token per worksheet of the trail's

@@ -36,6 +36,8 @@ func checkInputs(rep *Report, in Input, rec *record.Record) error {
 		rep.add(CheckJudgement, Skipped, "judgement not recomputed: it needs all of %s, %s and %s", n.plan(), n.draw(), labels)
 	case rec.Fingerprints.Trail != "" && f.Trail == "":
 		rep.add(CheckJudgement, Skipped, "judgement not recomputed: the record's labels were derived from a label trail; pass it with %s", n.trail())
+	case rec.Fingerprints.Trail == "" && f.Labels == "":
+		rep.add(CheckJudgement, Skipped, "judgement not recomputed: the record was judged on a labeled worksheet; pass it with %s", n.labels())
 	default:
 		if err := recompute(rep, in, rec); err != nil {
 			return err
