@@ -55,9 +55,15 @@ var bannerAddress = regexp.MustCompile(`\((worksheet[a-z-]*\.csv), \d+ items\): 
 // printed; it fails the test when the command ends first.
 func startLabel(t *testing.T, args ...string) *labelRun {
 	t.Helper()
+	return startLabelAt(t, labelStart, args...)
+}
+
+// startLabelAt is startLabel with a clock that starts at start.
+func startLabelAt(t *testing.T, start time.Time, args ...string) *labelRun {
+	t.Helper()
 	r := &labelRun{out: &syncBuffer{}, err: &syncBuffer{}, stop: make(chan struct{}), done: make(chan int, 1), addr: map[string]string{}}
 	var mu sync.Mutex
-	tick := labelStart
+	tick := start
 	d := deps{stdin: strings.NewReader(""), stdout: r.out, stderr: r.err, version: "0.1.0-test", stop: r.stop,
 		random: bytes.NewReader(bytes.Repeat([]byte{0x3c}, 4096)),
 		now: func() time.Time {
