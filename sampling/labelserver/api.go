@@ -64,10 +64,12 @@ type StateView struct {
 }
 
 // SequenceEntry is one item of the sequence; SpareFor is the item a spare
-// stands in for (0 for a sample item).
+// stands in for (0 for a sample item); Labeled is set once the item holds
+// a label (a class or unsure) on this worksheet.
 type SequenceEntry struct {
-	Item     int `json:"item"`
-	SpareFor int `json:"spare_for,omitempty"`
+	Item     int  `json:"item"`
+	SpareFor int  `json:"spare_for,omitempty"`
+	Labeled  bool `json:"labeled,omitempty"`
 }
 
 // ItemView is one item as the labeler sees it: the worksheet's row only.
@@ -142,6 +144,7 @@ func (s *Server) sequenceLocked(sh *sheet) (seq []SequenceEntry, labeled, resume
 	resume = len(seq)
 	for i, e := range seq {
 		if st.Cell(sh.Name, e.Item).Label != "" {
+			seq[i].Labeled = true
 			labeled++
 		} else if resume == len(seq) {
 			resume = i

@@ -111,7 +111,7 @@
       dl.append(dt, dd);
     }
     $("curlabel").textContent = it.label || "not labeled";
-    $("curlabel").className = it.label ? "set" : "unset";
+    $("curlabel").className = it.label === "unsure" ? "unsure" : (it.label ? "set" : "unset");
     $("curby").textContent = it.labeler ? "by " + it.labeler : "";
     $("curnote").textContent = it.note ? "Note: " + it.note : "";
     show("curnote", !!it.note);
@@ -127,11 +127,26 @@
     count();
   }
 
+  // nextUnlabeled is the position of the first item not labeled after
+  // from, else from the top (-1 when every item is labeled).
+  function nextUnlabeled(from) {
+    for (let i = from + 1; i < st.sequence.length; i++) if (!st.sequence[i].labeled) return i;
+    for (let i = 0; i <= from && i < st.sequence.length; i++) if (!st.sequence[i].labeled) return i;
+    return -1;
+  }
+
+  function showDone() {
+    st.pos = st.total;
+    show("item", false);
+    show("done", true);
+    count();
+  }
+
   async function go(pos) {
     if (st.mode !== "idle") return;
     if (pos < 0) return;
     if (pos >= st.total) {
-      if (st.labeled === st.total) { show("item", false); show("done", true); }
+      if (st.labeled === st.total) showDone();
       return;
     }
     try {
@@ -147,7 +162,7 @@
   function setLabel(label) {
     if (st.mode !== "idle" || !st.item) return;
     const it = st.item;
-    if (it.label === label) { go(st.pos + 1); return; }
+    if (it.label === label) { const next = nextUnlabeled(st.pos); if (next < 0) showDone(); else go(next); return; }
     if (it.label) {
       st.pending = label;
       st.mode = "reason";
@@ -181,8 +196,13 @@
       }
       render();
       if (r.offer) show("offer", true);
-      const advance = label !== "" && label !== "unsure" && note === it.note;
-      if (advance) go(st.pos + 1);
+      // A class label moves on to the next item still to label (after a
+      // spare, back to where the labeler was); unsure stays, to offer the
+      // spare; a note or a cleared label stays too.
+      if (label !== "" && label !== "unsure" && note === it.note) {
+        const next = nextUnlabeled(st.pos);
+        if (next < 0) showDone(); else go(next);
+      }
     } catch (e) {
       message(e.message);
       if (e.status === 409) {
@@ -278,7 +298,7 @@
       $("who").textContent = "Labeler: " + s.labeler;
       buttons();
       keyHints();
-      if (s.resume >= s.total) { show("done", true); st.pos = s.total; return; }
+      if (s.resume >= s.total) { showDone(); return; }
       await go(s.resume);
     } catch (e) {
       message(e.message);
