@@ -40,7 +40,7 @@ func ev(sheet string, item int, prev, label, note, reason string) Label {
 }
 
 // newTrail creates a trail with a few events and returns its path.
-func newTrail(t *testing.T, d Draw) string {
+func newTrail(t testing.TB, d Draw) string {
 	t.Helper()
 	path := filepath.Join(t.TempDir(), FileName)
 	l, err := Create(path, d, t0)
