@@ -36,6 +36,52 @@ type browserFixture struct {
 	media string
 }
 
+// labelSecondInBrowser labels the second worksheet at address with the
+// keyboard in a tab of its own, as the second labeler: every doubled item
+// starts unlabeled (the first labels never show) and gets its true label,
+// but unsure, which stays unsure (an adjudicated class would leave the
+// spare that replaced it with nothing to replace). It returns the typed
+// equivalent of the second worksheet.
+func labelSecondInBrowser(ctx context.Context, t *testing.T, fx *browserFixture, address, unsure, shots string) []drawfolder.WorksheetRow {
+	t.Helper()
+	tab, cancel := chromedp.NewContext(ctx)
+	defer cancel()
+	if err := chromedp.Run(tab, chromedp.EmulateViewport(1280, 800), chromedp.Navigate(address),
+		chromedp.WaitVisible("#name", chromedp.ByID), chromedp.SendKeys("#name", "Sam Example\n", chromedp.ByID)); err != nil {
+		t.Fatal(err)
+	}
+	want := make([]drawfolder.WorksheetRow, len(fx.second))
+	copy(want, fx.second)
+	cur := waitItem(tab, t, "")
+	if l := text(tab, t, "#curlabel"); l != "not labeled" {
+		t.Errorf("the second labeler sees the label %q", l)
+	}
+	checkLayout(tab, t, "second labels")
+	shoot(tab, t, filepath.Join(shots, "label-second.png"))
+	for i := range want {
+		if want[i].RecordID != cur {
+			t.Fatalf("the second worksheet shows %s where %s is due", cur, want[i].RecordID)
+		}
+		if l := text(tab, t, "#curlabel"); l != "not labeled" {
+			t.Errorf("the second labeler sees %s labeled %q", cur, l)
+		}
+		if cur == unsure {
+			press(tab, t, "u")
+			waitFor(tab, t, `document.getElementById("curlabel").textContent === "unsure"`)
+			press(tab, t, kb.ArrowRight)
+			want[i].Label, want[i].Labeler = drawfolder.Unsure, "Sam Example"
+		} else {
+			press(tab, t, map[string]string{"sound": "1", "defect": "2"}[fx.truth[cur]])
+			want[i].Label, want[i].Labeler = fx.truth[cur], "Sam Example"
+		}
+		if i < len(want)-1 {
+			cur = waitItem(tab, t, cur)
+		}
+	}
+	waitFor(tab, t, `!document.getElementById("done").hidden`)
+	return want
+}
+
 // newBrowserFixture plans (ceiling 0.15, confidence 0.90: a sample of a
 // few dozen) and draws with one spare per stratum; every scan is a real
 // PNG in the media folder.
@@ -86,7 +132,7 @@ func newBrowserFixture(t *testing.T) *browserFixture {
 	defer log.Close()
 	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: "log.csv", Log: log,
 		Format: "csv", IDColumn: "record_id", StrataColumns: []string{"yard"}, Show: fx.show,
-		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 1}, ToolVersion: "test"})
+		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 1}, Double: 3, ToolVersion: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -94,7 +140,7 @@ func newBrowserFixture(t *testing.T) *browserFixture {
 	if err := drawfolder.Write(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
-	fx.ledger, fx.worksheet = folder.Ledger, folder.Worksheet
+	fx.ledger, fx.worksheet, fx.second = folder.Ledger, folder.Worksheet, folder.Second
 	for _, r := range fx.worksheet {
 		writeScan(t, filepath.Join(media, r.Show[0]), r.Item)
 	}
@@ -426,6 +472,8 @@ func TestLabelingInABrowser(t *testing.T) {
 	checkLayout(ctx, t, "390×800")
 	shoot(ctx, t, filepath.Join(shots, "label-390x800.png"))
 
+	secondWant := labelSecondInBrowser(ctx, t, fx, r.addr[drawfolder.WorksheetSecondFile], first, shots)
+
 	watch.mu.Lock()
 	origin := address[:strings.Index(address, "/s/")+1]
 	for _, u := range watch.requests {
@@ -457,7 +505,8 @@ func TestLabelingInABrowser(t *testing.T) {
 	if code != exitOK || !strings.Contains(stdout, ", 1 changed") {
 		t.Fatalf("record --trail: %d\n%s%s", code, stdout, stderr)
 	}
-	if code, _, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", writeRows(t, fx.recFixture, "typed.csv", want), "--out", outW); code != exitOK {
+	if code, _, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", writeRows(t, fx.recFixture, "typed.csv", want),
+		"--second", writeRows(t, fx.recFixture, "typed-second.csv", secondWant), "--out", outW); code != exitOK {
 		t.Fatalf("record --labels: %d\n%s", code, stderr)
 	}
 	sameRecordBesidesTrail(t, recordJSON(t, outT), recordJSON(t, outW))

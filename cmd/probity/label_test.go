@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -65,7 +66,7 @@ func startLabelAt(t *testing.T, start time.Time, args ...string) *labelRun {
 	var mu sync.Mutex
 	tick := start
 	d := deps{stdin: strings.NewReader(""), stdout: r.out, stderr: r.err, version: "0.1.0-test", stop: r.stop,
-		random: bytes.NewReader(bytes.Repeat([]byte{0x3c}, 4096)),
+		random: rand.NewChaCha8([32]byte{0x3c}),
 		now: func() time.Time {
 			mu.Lock()
 			defer mu.Unlock()

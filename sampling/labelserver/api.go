@@ -61,6 +61,9 @@ type StateView struct {
 	// Resume is the position in Sequence of the first item not labeled
 	// (Total when every item is).
 	Resume int `json:"resume"`
+	// Spares is set when an unsure item of this worksheet may be
+	// replaced by a spare (the first worksheet; the second has none).
+	Spares bool `json:"spares"`
 }
 
 // SequenceEntry is one item of the sequence; SpareFor is the item a spare
@@ -169,7 +172,7 @@ func (s *Server) state(w http.ResponseWriter, r *http.Request) {
 	}
 	seq, labeled, resume := s.sequenceLocked(sh)
 	writeJSON(w, StateView{Labeler: ss.labeler, Title: sh.Title, Classes: s.cfg.Classes, Sequence: seq,
-		Labeled: labeled, Total: len(seq), Resume: resume})
+		Labeled: labeled, Total: len(seq), Resume: resume, Spares: sh.spares != nil})
 }
 
 // itemLocked is an item's view. The caller holds the lock.

@@ -102,6 +102,9 @@ func New(c Config) (*Server, error) {
 		if err != nil {
 			return nil, err
 		}
+		if s.byTok[tok] != nil {
+			return nil, errors.New("labelserver: the random source gave one access token twice")
+		}
 		rows := st.Worksheet(name)
 		sh := &sheet{token: tok, rows: map[int]drawfolder.WorksheetRow{}, media: mediaFiles(s.root, rows)}
 		sh.Name, sh.Path = name, "/s/"+tok+"/"

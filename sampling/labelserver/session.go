@@ -2,6 +2,7 @@ package labelserver
 
 import (
 	"crypto/subtle"
+	"errors"
 	"net/http"
 	"strings"
 )
@@ -51,6 +52,9 @@ func (s *Server) newSession(w http.ResponseWriter, sh *sheet) (*session, error) 
 	csrf, err := randomHex(s.cfg.Random, 32)
 	if err != nil {
 		return nil, err
+	}
+	if s.sess.byID[id] != nil || id == csrf {
+		return nil, errors.New("labelserver: the random source repeats itself")
 	}
 	if len(s.sess.byID) >= maxSessions {
 		var oldest *session

@@ -54,7 +54,7 @@
     add("n", "note");
     add("←", "previous");
     add("→", "next");
-    add("s", "go to the spare offered");
+    if (st.spares) add("s", "go to the spare offered");
     show("keys", true);
   }
 
@@ -285,6 +285,7 @@
     try {
       const s = await api("GET", "api/state");
       st.classes = s.classes;
+      st.spares = s.spares;
       st.sequence = s.sequence;
       st.labeled = s.labeled;
       st.total = s.total;
