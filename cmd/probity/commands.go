@@ -10,6 +10,7 @@ func commands(d deps) []*cobra.Command {
 		newDrawCommand(d),
 		newLabelCommand(d),
 		newRecordCommand(d),
+		newSignCommand(d),
 		newVerifyCommand(d),
 		newKeygenCommand(d),
 		newTrendCommand(d),

@@ -13,8 +13,8 @@ import (
 )
 
 // demoLabelPace is the time the demo's simulated labelers take per label
-// event.
-const demoLabelPace = 7 * time.Second
+// event: November's labeling ends before its record is signed.
+const demoLabelPace = 3 * time.Second
 
 // demoLabelAddress is the address the demo's simulated labelers use: it
 // never reaches a network (labelserver.InProcess).
