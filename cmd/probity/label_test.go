@@ -238,15 +238,21 @@ func TestRecordOnTheTrailIsTheRecordOfItsWorksheet(t *testing.T) {
 	trail := filepath.Join(fx.draw, labeltrail.FileName)
 	worksheet := writeRows(t, fx, "typed.csv", want)
 
+	// Both records are sealed with one key, so that verify authenticates
+	// them.
+	key := filepath.Join(fx.dir, "seal")
+	if code, _, stderr := runProbity(t, "keygen", "--out", key); code != exitOK {
+		t.Fatalf("keygen: %s", stderr)
+	}
 	outT, outW := filepath.Join(fx.dir, "rec-trail"), filepath.Join(fx.dir, "rec-worksheet")
-	code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--trail", trail, "--out", outT)
+	code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--trail", trail, "--out", outT, "--sign-key", key)
 	if code != exitRejected && code != exitOK {
 		t.Fatalf("record --trail: %d\n%s", code, stderr)
 	}
 	if !strings.Contains(stdout, "labels from the trail: ") || !strings.Contains(stdout, "by Dana Example") || !strings.Contains(stdout, ", 1 changed") {
 		t.Errorf("record's summary lacks the trail:\n%s", stdout)
 	}
-	if code2, _, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", worksheet, "--out", outW); code2 != code {
+	if code2, _, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", worksheet, "--out", outW, "--sign-key", key); code2 != code {
 		t.Fatalf("record --labels: %d, want %d\n%s", code2, code, stderr)
 	}
 	a, b := recordJSON(t, outT), recordJSON(t, outW)
@@ -273,15 +279,15 @@ func TestRecordOnTheTrailIsTheRecordOfItsWorksheet(t *testing.T) {
 	}
 
 	// verify re-derives the worksheet from the trail.
-	code, stdout, stderr = runProbity(t, "verify", outT, "--plan", fx.planPath, "--draw", fx.draw, "--trail", trail)
+	code, stdout, stderr = runProbity(t, "verify", outT, "--pub", key+".pub", "--plan", fx.planPath, "--draw", fx.draw, "--trail", trail)
 	if code != exitOK || !strings.Contains(stdout, "label trail fingerprint") || !strings.Contains(stdout, "judgement recomputed") {
 		t.Errorf("verify --trail: %d\n%s%s", code, stdout, stderr)
 	}
-	code, stdout, _ = runProbity(t, "verify", outT, "--plan", fx.planPath, "--draw", fx.draw, "--labels", worksheet)
+	code, stdout, _ = runProbity(t, "verify", outT, "--pub", key+".pub", "--plan", fx.planPath, "--draw", fx.draw, "--labels", worksheet)
 	if code != exitOK || !strings.Contains(stdout, "pass it with --trail") {
 		t.Errorf("verify --labels of a record from a trail: %d\n%s", code, stdout)
 	}
-	code, stdout, _ = runProbity(t, "verify", outW, "--plan", fx.planPath, "--draw", fx.draw, "--trail", trail)
+	code, stdout, _ = runProbity(t, "verify", outW, "--pub", key+".pub", "--plan", fx.planPath, "--draw", fx.draw, "--trail", trail)
 	if code != exitRejected || !strings.Contains(stdout, "not derived from a label trail") {
 		t.Errorf("verify --trail of a record from a worksheet: %d\n%s", code, stdout)
 	}
@@ -291,7 +297,7 @@ func TestRecordOnTheTrailIsTheRecordOfItsWorksheet(t *testing.T) {
 	lines[3] = strings.Replace(lines[3], `"label":"`+fx.truth[want[0].RecordID], `"label":"x`, 1)
 	editedTrail := filepath.Join(fx.dir, "edited-trail.jsonl")
 	writeFile(t, editedTrail, []byte(strings.Join(lines, "")))
-	code, stdout, _ = runProbity(t, "verify", outT, "--plan", fx.planPath, "--draw", fx.draw, "--trail", editedTrail)
+	code, stdout, _ = runProbity(t, "verify", outT, "--pub", key+".pub", "--plan", fx.planPath, "--draw", fx.draw, "--trail", editedTrail)
 	if code != exitRejected || !strings.Contains(stdout, "FAIL  "+editedTrail+": SHA-256") || !strings.Contains(stdout, "line 5, field prev: the hash chain is broken") {
 		t.Errorf("verify with an edited trail: %d\n%s", code, stdout)
 	}
