@@ -74,8 +74,8 @@ func demoLabelThroughPage(drawDir string, first, second []drawfolder.WorksheetRo
 }
 
 // demoLabelSheet goes through the page's sequence of items from the top,
-// giving each the label and note rows hold for it; the sequence grows by
-// the spare the page offers for each item marked unsure.
+// giving each blank item the label and note rows hold for it; the
+// sequence grows by the spare the page offers for each item marked unsure.
 func demoLabelSheet(c *labelserver.Client, rows []drawfolder.WorksheetRow) error {
 	want := map[int]drawfolder.WorksheetRow{}
 	for _, r := range rows {
@@ -85,24 +85,20 @@ func demoLabelSheet(c *labelserver.Client, rows []drawfolder.WorksheetRow) error
 	if err != nil {
 		return err
 	}
+	// The demo's trail is begun with its draw: every item starts blank.
 	seq := st.Sequence
 	for i := 0; i < len(seq); i++ {
 		r := want[seq[i].Item]
-		if r.Label == "" {
+		if r.Label == "" || seq[i].Labeled {
 			continue
 		}
-		it, err := c.Item(r.Item)
+		v, err := c.Label(labelserver.LabelRequest{Item: r.Item, Label: r.Label, Note: r.Note})
 		if err != nil {
 			return err
 		}
-		if it.Label == r.Label && it.Note == r.Note {
-			continue
+		if v.Sequence != nil {
+			seq = v.Sequence
 		}
-		v, err := c.Label(labelserver.LabelRequest{Item: r.Item, Label: r.Label, Note: r.Note, PreviousLabel: it.Label, PreviousNote: it.Note})
-		if err != nil {
-			return err
-		}
-		seq = v.Sequence
 	}
 	return nil
 }

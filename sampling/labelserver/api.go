@@ -94,11 +94,13 @@ type FieldView struct {
 	Image string `json:"image,omitempty"`
 }
 
-// LabelView answers a label event: the item as it now is, the sequence
-// and count, and the spare offered when the item was marked unsure.
+// LabelView answers a label event: the item as it now is, the count, the
+// sequence when the event changed which items it holds (nil otherwise: a
+// spare assigned or given back; the page marks the item labeled itself),
+// and the spare offered when the item was marked unsure.
 type LabelView struct {
 	Item     ItemView        `json:"item"`
-	Sequence []SequenceEntry `json:"sequence"`
+	Sequence []SequenceEntry `json:"sequence,omitempty"`
 	Labeled  int             `json:"labeled"`
 	Total    int             `json:"total"`
 	// Offer is the spare that replaces the item (0: none); NoSpare is set
@@ -315,6 +317,7 @@ func (s *Server) label(w http.ResponseWriter, r *http.Request) {
 			return
 		}
 	}
+	before, _, _ := s.sequenceLocked(sh)
 	ev := labeltrail.Label{Labeler: ss.labeler, Sheet: sh.Name, Item: req.Item, RecordID: sh.rows[req.Item].RecordID,
 		PreviousLabel: req.PreviousLabel, Label: req.Label, PreviousNote: req.PreviousNote, Note: req.Note, Reason: strings.TrimSpace(req.Reason)}
 	if _, err := s.cfg.Trail.Append(s.cfg.Now(), ev); err != nil {
@@ -329,7 +332,10 @@ func (s *Server) label(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	seq, labeled, _ := s.sequenceLocked(sh)
-	v := LabelView{Item: s.itemLocked(sh, req.Item), Sequence: seq, Labeled: labeled, Total: len(seq)}
+	v := LabelView{Item: s.itemLocked(sh, req.Item), Labeled: labeled, Total: len(seq)}
+	if !sameItems(before, seq) {
+		v.Sequence = seq
+	}
 	if req.Label == drawfolder.Unsure && sh.spares != nil {
 		a := sh.spares.assign(cellLabel(st, sh.Name))
 		orig := req.Item
@@ -344,6 +350,20 @@ func (s *Server) label(w http.ResponseWriter, r *http.Request) {
 		v.NoSpare = v.Offer == 0
 	}
 	writeJSON(w, v)
+}
+
+// sameItems reports whether two sequences hold the same items, each as
+// the same spare.
+func sameItems(a, b []SequenceEntry) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if a[i].Item != b[i].Item || a[i].SpareFor != b[i].SpareFor {
+			return false
+		}
+	}
+	return true
 }
 
 // messageOf is an input error's message without the trail's file and

@@ -207,8 +207,8 @@ func TestAnUnsureItemIsOfferedTheSpareTheDrawAssigns(t *testing.T) {
 	// Item 1 is in the first stratum, whose spares are items 8 (key 7)
 	// and 7 (key 8): key order offers item 8 first.
 	v := c.mustLabel(1, "unsure", "too dark to judge", "")
-	if v.Offer != 8 || v.Total != 7 || v.Labeled != 1 {
-		t.Fatalf("unsure item 1: offer %d, total %d, labeled %d", v.Offer, v.Total, v.Labeled)
+	if v.Offer != 8 || v.Total != 7 || v.Labeled != 1 || len(v.Sequence) != 7 {
+		t.Fatalf("unsure item 1: offer %d, total %d, labeled %d, sequence %v", v.Offer, v.Total, v.Labeled, v.Sequence)
 	}
 	if it := c.item(8); it.SpareFor != 1 {
 		t.Errorf("item 8 spare for %d", it.SpareFor)
@@ -221,7 +221,10 @@ func TestAnUnsureItemIsOfferedTheSpareTheDrawAssigns(t *testing.T) {
 	if v := c.mustLabel(8, "unsure", "", ""); v.Offer != 7 {
 		t.Errorf("unsure spare 8: offer %d, want 7", v.Offer)
 	}
-	c.mustLabel(7, "sound", "", "")
+	// A label that assigns no spare leaves the sequence out of the answer.
+	if v := c.mustLabel(7, "sound", "", ""); v.Sequence != nil {
+		t.Errorf("the answer repeats an unchanged sequence: %v", v.Sequence)
+	}
 	// Item 1 cannot become a class while its spares are labeled: they
 	// would replace nothing.
 	if code, _, body := c.label(1, "defect", "", "seen better on a second look"); code != http.StatusConflict {

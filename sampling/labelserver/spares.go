@@ -17,8 +17,10 @@ type spareRule struct {
 	mains, spares [][]int
 	stratum       map[int]int
 	isSpare       map[int]bool
-	// order is each item's position in the worksheet.
+	// order is each item's position in the worksheet; items are all
+	// items in that order.
 	order map[int]int
+	items []int
 }
 
 func newSpareRule(ledger []drawfolder.LedgerRow, strata map[string]int) *spareRule {
@@ -39,6 +41,10 @@ func newSpareRule(ledger []drawfolder.LedgerRow, strata map[string]int) *spareRu
 		s := r.spares[h]
 		sort.SliceStable(s, func(a, b int) bool { return keys[s[a]] < keys[s[b]] })
 	}
+	for _, lr := range ledger {
+		r.items = append(r.items, lr.Item)
+	}
+	sort.SliceStable(r.items, func(a, b int) bool { return r.order[r.items[a]] < r.order[r.items[b]] })
 	return r
 }
 
@@ -112,14 +118,12 @@ func (r *spareRule) check(label labelOf) (bad, first int, ok bool) {
 // sequence is the items a labeler goes through, in worksheet order: every
 // sample item, then the assigned spares.
 func (r *spareRule) sequence(a assignment) []int {
-	var items []int
-	for h := range r.mains {
-		items = append(items, r.mains[h]...)
+	items := make([]int, 0, len(r.items))
+	for _, it := range r.items {
+		if _, assigned := a.spareFor[it]; !r.isSpare[it] || assigned {
+			items = append(items, it)
+		}
 	}
-	for s := range a.spareFor {
-		items = append(items, s)
-	}
-	sort.Slice(items, func(x, y int) bool { return r.order[items[x]] < r.order[items[y]] })
 	return items
 }
 

@@ -182,7 +182,12 @@
         item: it.item, label: label, note: note, previous_label: it.label, previous_note: it.note, reason: reason,
       });
       st.item = r.item;
-      st.sequence = r.sequence;
+      if (r.sequence) {
+        st.sequence = r.sequence;
+      } else {
+        const e = st.sequence.find((x) => x.item === r.item.item);
+        if (e) e.labeled = r.item.label !== "";
+      }
       st.labeled = r.labeled;
       st.total = r.total;
       st.pos = Math.max(0, st.sequence.findIndex((e) => e.item === r.item.item));
