@@ -29,6 +29,9 @@ type deps struct {
 	// width, when above 0, is the number of columns people's output is
 	// fitted into (lines broken at spaces; see fitWriter).
 	width int
+	// stop ends a command that serves until stopped (label); nil in a
+	// real process, which a signal ends (exitOnSignal).
+	stop <-chan struct{}
 	// getenv reads an environment variable (nil: none is set).
 	getenv func(string) string
 	// readPassword asks for a secret on the terminal without echoing it,

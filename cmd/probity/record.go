@@ -26,6 +26,7 @@ type recordOptions struct {
 	planPath        string
 	drawDir         string
 	labels          string
+	trail           string
 	out             string
 	signoff         string
 	use             string
@@ -51,7 +52,7 @@ type recordOptions struct {
 func newRecordCommand(d deps) *cobra.Command {
 	opts := &recordOptions{}
 	cmd := &cobra.Command{
-		Use:   "record --plan PLAN.yaml --draw DIR --labels WORKSHEET.csv --out RECDIR",
+		Use:   "record --plan PLAN.yaml --draw DIR (--labels WORKSHEET.csv | --trail TRAIL) --out RECDIR",
 		Short: "Judge the candidates from the labels and write the acceptance record",
 		Long: `record checks the labeled worksheet against the plan and the draw folder,
 judges every candidate and writes the acceptance record into RECDIR:
@@ -77,6 +78,14 @@ labeling is refused unless --allow-incomplete, which counts every item left
 unlabeled or unsure as an error for every candidate and says so in the record.
 
 ` + labelCellHelp + `
+
+Labels given on the labeling page (probity label) are in the draw folder's
+audit trail, label-trail.jsonl: pass it with --trail, in place of --labels
+(and of --second when it holds second labels). record checks its hash chain
+and that it belongs to this draw, derives the labeled worksheets from it,
+fingerprints it, and states on the record who labeled, the first and last
+label time and how many labels were changed. A worksheet passed beside the
+trail must be the one the trail gives, byte for byte.
 
 A self-weighting sample is judged by the plan's rule (accept when errors ≤ c),
 with the exact Clopper–Pearson bound (or the exact hypergeometric bound for a
@@ -115,6 +124,7 @@ zero-width or direction-overriding characters.
 	fl.StringVar(&opts.planPath, "plan", "", "the plan `FILE` the sample was drawn from")
 	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder `DIR` (manifest.json, ledger.csv, worksheet.csv)")
 	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet `FILE`")
+	fl.StringVar(&opts.trail, "trail", "", "the label `TRAIL` of probity label (label-trail.jsonl in the draw folder), in place of --labels")
 	fl.StringVar(&opts.out, "out", "", "the record folder `DIR` to write (must not exist or be empty)")
 	fl.StringVar(&opts.signoff, "signoff", "", "sign-off `FILE` (YAML: prepared/reviewed/approved with name, title, date, meaning)")
 	fl.StringVar(&opts.use, "use", "general", "declared `USE`: "+strings.Join(templates.Uses(), ", "))
@@ -135,10 +145,13 @@ zero-width or direction-overriding characters.
 
 // validate checks the flags that need no file.
 func (o *recordOptions) validate() error {
-	for _, f := range []struct{ name, v string }{{"plan", o.planPath}, {"draw", o.drawDir}, {"labels", o.labels}, {"out", o.out}} {
+	for _, f := range []struct{ name, v string }{{"plan", o.planPath}, {"draw", o.drawDir}, {"out", o.out}} {
 		if f.v == "" {
 			return inputerr.Errorf("--%s is required", f.name).WithHint("see 'probity record --help'")
 		}
+	}
+	if o.labels == "" && o.trail == "" {
+		return inputerr.Errorf("--labels or --trail is required").WithHint("pass the labeled worksheet, or the label trail of probity label")
 	}
 	if !oneOf(o.use, templates.Uses()) {
 		return inputerr.Errorf("--use %q is not one of %s", o.use, strings.Join(templates.Uses(), ", ")).WithHint("pick the use the classifier's decisions serve")
@@ -173,7 +186,7 @@ func (o *recordOptions) validate() error {
 		return inputerr.Errorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
 	}
 	o.unequal = u
-	return o.quality.validate()
+	return o.quality.validate(o.trail != "")
 }
 
 func oneOf(v string, list []string) bool {
@@ -219,7 +232,7 @@ func runRecord(d deps, o *recordOptions) error {
 	if date == "" {
 		date = d.now().UTC().Format("2006-01-02")
 	}
-	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated}
+	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated, Trail: o.trail}
 	rec, err := assemble.Record(files, assemble.Options{
 		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
 		Bound: o.unequal, Use: o.use, Date: date, Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
@@ -300,6 +313,9 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 			fmt.Sprintf("%.4f", c.Estimate), fmt.Sprintf("%.4f", c.UpperBound), c.Reason)
 	}
 	fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
+	if t := rec.LabelTrail; t != nil {
+		fmt.Fprintf(w, "labels from the trail: %d events by %s, %s to %s, %d changed\n", t.Events, strings.Join(t.Labelers, ", "), t.FirstLabel, t.LastLabel, t.Changed)
+	}
 	for _, c := range rec.Caveats {
 		fmt.Fprintf(w, "caveat: %s\n", c.Text)
 	}
