@@ -13,13 +13,26 @@ package measure
 // That is what makes the searches built on curves exact although power is
 // a saw-tooth in m.
 type curve struct {
-	scan  *sideScan
-	D     int64
-	alpha float64
+	scan *sideScan
+	// tests are the counts D the side must reject at their levels: the
+	// acceptance number is the largest count that passes all of them
+	// (one test for a side's own test; several for a ratio's denominator
+	// side, whose levels come from the numerator's tails).
+	tests []test
+	// each test's own acceptance number at the last m it was computed
+	// (and −2 before): for a side of one stratum a lower bound on it at
+	// every later m, which spares most tests most evaluations
+	own []int
 
 	bestC int   // the highest acceptance number seen
 	hint  int   // the last acceptance number (a guess for the next m)
 	recs  []rec // increasing m and power
+}
+
+// test is one count D a side's test rejects at level alpha.
+type test struct {
+	D     int64
+	alpha float64
 }
 
 // rec is one record of a curve: at m counted items the acceptance number
@@ -53,15 +66,53 @@ func newSideScan(p Population, sd side, events []int64) *sideScan {
 	return s
 }
 
-// curve adds the curve of the test of D at level α. Curves are added
-// before the scan starts.
-func (s *sideScan) curve(D int64, alpha float64) *curve {
+// curve adds the curve of the tests. Curves are added before the scan
+// starts.
+func (s *sideScan) curve(tests ...test) *curve {
 	if s.scanned >= 0 {
 		panic("measure: curve added to a side already scanned")
 	}
-	cv := &curve{scan: s, D: D, alpha: alpha, bestC: -2, hint: -1}
+	cv := &curve{scan: s, tests: tests, own: make([]int, len(tests)), bestC: -2, hint: -1}
+	for i := range cv.own {
+		cv.own[i] = -2
+	}
 	s.curves = append(s.curves, cv)
 	return cv
+}
+
+// accept is the curve's acceptance number on tally t: the largest count
+// every test passes, the least of the tests' own acceptance numbers. When
+// next is set, t is the tally of the m after the one the last answer was
+// found at and the side is one stratum: a count that passed a test then
+// passes it now (the hypergeometric tail at a fixed count falls as the
+// sample grows), so each test's last answer is a lower bound from which it
+// steps up, and a test is asked again only when the others' answers pass
+// its last one.
+func (cv *curve) accept(t *tally, next bool) int {
+	if !(next && t.rule == nil) {
+		c := t.size
+		for i, ts := range cv.tests {
+			cv.own[i] = t.acceptAt(ts.D, ts.alpha, cv.own[i])
+			c = min(c, cv.own[i])
+		}
+		return c
+	}
+	c := min(max(cv.hint, -1), t.size)
+	for c < t.size {
+		for i, ts := range cv.tests {
+			if cv.own[i] <= c {
+				cv.own[i] = t.acceptAt(ts.D, ts.alpha, max(cv.own[i], c))
+				if cv.own[i] <= c {
+					return c
+				}
+			}
+		}
+		c = t.size
+		for _, o := range cv.own {
+			c = min(c, o)
+		}
+	}
+	return c
 }
 
 // tallyAt is the side's tally with the counted items of m.
@@ -82,11 +133,7 @@ func (s *sideScan) extend(to int) {
 		t := s.tallyAt(m)
 		top := -1
 		for i, cv := range s.curves {
-			if t.rule == nil {
-				cs[i] = t.acceptAbove(cv.D, cv.alpha, cv.hint) // one stratum: c grows with m
-			} else {
-				cs[i] = t.acceptAt(cv.D, cv.alpha, cv.hint)
-			}
+			cs[i] = cv.accept(t, m > 0 && m == cv.scanned()+1)
 			cv.hint = cs[i]
 			if cs[i] > cv.bestC && !cv.done() {
 				top = max(top, cs[i])
@@ -121,9 +168,15 @@ func (s *sideScan) extend(to int) {
 	}
 }
 
-// done reports that the curve has reached power 1: nothing beats it.
+// saturated is the power at which a curve stops: within 1e-12 of 1, where
+// a later record could change a product of powers only in digits no risk
+// is stated to.
+const saturated = 1 - 1e-12
+
+// done reports that the curve has reached saturated power: no later record
+// matters.
 func (cv *curve) done() bool {
-	return len(cv.recs) > 0 && cv.recs[len(cv.recs)-1].power >= 1
+	return len(cv.recs) > 0 && cv.recs[len(cv.recs)-1].power >= saturated
 }
 
 func (s *sideScan) allDone() bool {
@@ -177,10 +230,17 @@ func (cv *curve) record(i, limit int) (rec, bool) {
 	return cv.recs[i], true
 }
 
-// hopeless reports that no sub-sample can pass with power above α: the
-// anticipated events are at least D, so the test's own guarantee caps its
-// power at α.
-func (cv *curve) hopeless() bool { return cv.scan.sum >= cv.D }
+// hopeless reports that no sub-sample can pass with power target: the
+// anticipated events are at least some test's D, so that test's own
+// guarantee caps the power at its level.
+func (cv *curve) hopeless(target float64) bool {
+	for _, ts := range cv.tests {
+		if cv.scan.sum >= ts.D && ts.alpha < target {
+			return true
+		}
+	}
+	return false
+}
 
 // first is the first record with power ≥ target and m ≤ limit; ok is false
 // when there is none. Before scanning it probes m = 2^i·64 for a sub-sample
@@ -188,6 +248,9 @@ func (cv *curve) hopeless() bool { return cv.scan.sum >= cv.D }
 // small (the scan itself is exact: it visits every m up to the answer).
 func (cv *curve) first(target float64, limit int) (rec, bool) {
 	limit = int(min(int64(limit), cv.scan.total))
+	if target > 1 {
+		return rec{}, false
+	}
 	find := func() (rec, bool) {
 		for _, r := range cv.recs {
 			if r.m > limit {
@@ -202,7 +265,7 @@ func (cv *curve) first(target float64, limit int) (rec, bool) {
 	if r, ok := find(); ok {
 		return r, true
 	}
-	if cv.hopeless() && target > cv.alpha {
+	if cv.hopeless(target) {
 		return rec{}, false
 	}
 	to := limit
@@ -226,6 +289,6 @@ func (cv *curve) first(target float64, limit int) (rec, bool) {
 // probe is the power at m alone, whatever the records say.
 func (cv *curve) probe(m int) float64 {
 	t := cv.scan.tallyAt(m)
-	c := t.acceptAt(cv.D, cv.alpha, cv.hint)
+	c := cv.accept(t, false)
 	return t.cdfs(cv.scan.events, c)(c)
 }

@@ -60,17 +60,33 @@ type Verdict struct {
 // stratified count rule for several (see tally). Upper is D_U/N_G, the
 // test inverted.
 //
-// A ratio R = A/(A + B) (fnr, fpr) is the intersection–union test of
-// Berger (Technometrics 24, 1982) with the floor b₀ fixed in the design:
-// "R ≥ ceiling" implies "B < b₀" or "A ≥ a*", a* the least A with
-// A/(A + b₀) ≥ ceiling, so the claim is accepted when both are rejected,
-// each by its exact test at the full level α — the b side shows B ≥ b₀
-// through its complement events, the a side shows A < a*. A population at
-// or above the ceiling lies in one of the two hypotheses, whose test
-// rejects with probability at most α; no split of α is needed. Its
-// p-value is the larger of the two. Inverting the tests over the ceiling
-// (b₀ fixed) gives Upper = A_U/(A_U + b₀) when B ≥ b₀ is shown (A_U the
-// a side's upper bound at 1 − α), else 1.
+// A ratio R = A/(A + B) (fnr, fpr) has its sides in disjoint strata: A's
+// events S_a (false negatives for fnr, false positives for fpr) and the
+// complement events S_b of B's strata (false positives for fnr, false
+// negatives for fpr; B = N_b minus them). It is accepted when S_b ≤ c_B,
+// fixed in the design, and S_a ≤ c_A, the largest count whose size
+//
+//	size(c_A) = max( p_a(c_A, a*(b₀)), max_j p_a(c_A, a*(L_{j+1}))·p_b(c_B, N_b − L_j + 1) )
+//
+// is at most α, where p_a, p_b are the sides' exact tails (p(s, D): the
+// chance of at most s counted events when the side holds D, exact for one
+// stratum and a bound valid for every spread for several), a*(B) the
+// least A with A/(A + B) ≥ ceiling, b₀ the design's floor and
+// [L_{j+1}, L_j − 1] the intervals of floorLattice below it. Why it keeps
+// its risk: the sides are sampled independently, so a population with
+// parts (A, B) is accepted with probability at most p_a(c_A, A)·p_b(c_B,
+// N_b − B). At or above the ceiling A ≥ a*(B); when B ≥ b₀ that is at most
+// p_a(c_A, a*(b₀)), and when B lies in interval j at most p_a(c_A,
+// a*(L_{j+1}))·p_b(c_B, N_b − L_j + 1) — the first factor is largest at
+// the interval's smallest B, the second at its largest. It is a
+// union–intersection test over the nuisance B with exact tails, the
+// product taking the place of a split of the risk between the sides;
+// with c_B at level α it reduces to the intersection–union test of
+// Berger (Technometrics 24, 1982) with floor b₀, which it never does
+// worse than. Its p-value is size(S_a) (1 when S_b > c_B). Inverting it
+// over the ceiling gives Upper: the largest A/(A + L) over the A whose
+// tail keeps p_a(S_a, A)·w above α (w = 1 with L = b₀, w = p_b(c_B,
+// N_b − L_j + 1) with L = L_{j+1}), 1 when S_b > c_B.
 func (cd ClaimDesign) Judge(p Population, s Sample, alpha float64) (Verdict, error) {
 	if err := p.Validate(); err != nil {
 		return Verdict{}, err
@@ -105,17 +121,37 @@ func (cd ClaimDesign) Judge(p Population, s Sample, alpha float64) (Verdict, err
 		v.Upper = float64(r.ta.upper(v.EventsA, alpha)) / float64(r.ta.total)
 	} else {
 		v.CountedB, v.EventsB = countEvents(p, s, r.b, cd.Counted)
-		pa, pb := r.ta.pValue(v.EventsA, r.aStar), r.tb.pValue(v.EventsB, r.cStar)
-		v.PValue = math.Max(pa, pb)
-		v.Upper = 1
-		if pb <= alpha {
-			au := r.ta.upper(v.EventsA, alpha)
-			v.Upper = float64(au) / float64(au+cd.Floor)
+		v.PValue, v.Upper = 1, 1
+		if !r.unacceptable && v.EventsB <= cd.BAccept {
+			v.PValue = r.size(v.EventsA)
+			v.Upper = r.upperRatio(v.EventsA, alpha)
 		}
 	}
 	v.Accepted = v.PValue <= alpha
 	v.Estimate, v.Estimated = estimate(p, s, r.a, r.b, cd.Measure.Ratio())
 	return v, nil
+}
+
+// upperRatio is the ratio's upper confidence bound after s numerator
+// events (the b side having passed): the largest A/(A + L) over the terms
+// of size, A the largest count with w·p_a(s, A) > α.
+func (r *claimRule) upperRatio(s int, alpha float64) float64 {
+	u := ratioOf(r.ta.upper(s, alpha), r.Floor)
+	for j, w := range r.w {
+		if w > alpha {
+			u = math.Max(u, ratioOf(r.ta.upperScaled(s, alpha, w), r.lat[j+1]))
+		}
+	}
+	return u
+}
+
+// ratioOf is a/(a + b), and 1 when both are 0 (no denominator: at or
+// above every ceiling).
+func ratioOf(a, b int64) float64 {
+	if a+b == 0 {
+		return 1
+	}
+	return float64(a) / float64(a+b)
 }
 
 // countEvents counts the side's events among the first counted[h] items

@@ -9,7 +9,8 @@ import (
 )
 
 // ClaimDesign is how one claim will be judged, fixed before any label: the
-// labeled items it counts and, for a ratio, its planned floor.
+// labeled items it counts and, for a ratio, its floor and the acceptance
+// number of its denominator's side.
 type ClaimDesign struct {
 	Claim
 	// Counted[h] is the number of labeled items of stratum h the claim
@@ -18,10 +19,14 @@ type ClaimDesign struct {
 	// Within each side of the claim the counted items are proportional to
 	// the strata sizes (ProportionalCounts), as the count rule wants them.
 	Counted []int
-	// Floor is b₀ for a ratio (fnr, fpr): the fewest decisions of the
-	// ratio's other part (true positives for fnr, true negatives for fpr)
-	// the judgement must show; 0 for a proportion.
+	// Floor is b₀ for a ratio (fnr, fpr): the denominator's other part B
+	// (true positives for fnr, true negatives for fpr) at or above which
+	// the numerator's test alone keeps the risk; 0 for a proportion.
 	Floor int64
+	// BAccept is c_B for a ratio: the most complement events (false
+	// positives for fnr, false negatives for fpr) among the counted items
+	// of the denominator's side that still pass; 0 for a proportion.
+	BAccept int
 }
 
 // claimRule is a ClaimDesign made ready to judge: its sides' tallies and
@@ -31,11 +36,19 @@ type claimRule struct {
 	a, b   side
 	ta, tb *tally // tb is nil for a proportion
 	// aStar is the count of the a side's test: D* = ⌈ceiling·N_a⌉ for a
-	// proportion, the least A with A/(A + b₀) ≥ ceiling for a ratio.
+	// proportion, a*(b₀) — the least A with A/(A + b₀) ≥ ceiling — for a
+	// ratio.
 	aStar int64
-	// cStar is the count of the b side's test (ratios): N_b − b₀ + 1, so
-	// that rejecting "C ≥ c*" shows B = N_b − C ≥ b₀.
-	cStar int64
+	// Ratios: the denominator parts below the floor in intervals
+	// [lat[j+1], lat[j] − 1] (see floorLattice); on interval j the
+	// numerator is at least aLat[j] = a*(lat[j+1]) and the complement
+	// events at least cLat[j] = N_b − lat[j] + 1, which the b side passes
+	// with probability at most w[j].
+	lat          []int64
+	aLat, cLat   []int64
+	w            []float64
+	nb           int64 // N_b
+	unacceptable bool  // BAccept < 0: no sample passes
 }
 
 // rule builds the claim's tests on the population.
@@ -63,16 +76,78 @@ func (cd ClaimDesign) rule(p Population) (*claimRule, error) {
 	if len(r.b.strata) == 0 {
 		return nil, fmt.Errorf("%w: %s has no strata for its denominator (the candidate predicts one side only)", ErrPopulation, cd.name(p))
 	}
-	Nb := r.b.population(p)
-	if cd.Floor < 1 || cd.Floor > Nb {
-		return nil, fmt.Errorf("%w: %s has floor %d outside 1 … %d", ErrPopulation, cd.name(p), cd.Floor, Nb)
+	r.nb = r.b.population(p)
+	if cd.Floor < 1 || cd.Floor > r.nb {
+		return nil, fmt.Errorf("%w: %s has floor %d outside 1 … %d", ErrPopulation, cd.name(p), cd.Floor, r.nb)
 	}
 	if r.tb, err = sideTally(p, r.b, cd.Counted); err != nil {
 		return nil, err
 	}
+	if cd.BAccept > r.tb.size {
+		return nil, fmt.Errorf("%w: %s accepts %d complement events among %d counted items", ErrPopulation, cd.name(p), cd.BAccept, r.tb.size)
+	}
+	r.unacceptable = cd.BAccept < 0
 	r.aStar = ratioBadCount(cd.Floor, cd.Ceiling)
-	r.cStar = Nb - cd.Floor + 1
+	r.lat = floorLattice(cd.Floor)
+	r.aLat, r.cLat = r.latticeCounts()
+	r.w = make([]float64, len(r.aLat))
+	for j := range r.w {
+		r.w[j] = r.tb.pValue(cd.BAccept, r.cLat[j])
+	}
 	return r, nil
+}
+
+// latticeCounts are aLat and cLat for the rule's lattice.
+func (r *claimRule) latticeCounts() (aLat, cLat []int64) {
+	n := len(r.lat) - 1
+	aLat, cLat = make([]int64, n), make([]int64, n)
+	for j := 0; j < n; j++ {
+		aLat[j] = ratioBadCount(r.lat[j+1], r.Ceiling)
+		cLat[j] = r.nb - r.lat[j] + 1
+	}
+	return aLat, cLat
+}
+
+// floorLattice cuts the denominator parts below the floor, 0 … b₀ − 1,
+// into intervals [L_{j+1}, L_j − 1] with L_0 = b₀ > L_1 > … > L_J = 0:
+// single values for the six nearest the floor, then widths growing by a
+// fifth, so that a few dozen intervals cover any b₀ (46 for b₀ = 10⁴, 96
+// for 10⁸). The lattice depends on b₀ alone and is fixed with it before
+// labeling.
+func floorLattice(b0 int64) []int64 {
+	L := []int64{b0}
+	for d := int64(1); b0-d > 0; d = max(d+1, int64(math.Ceil(1.2*float64(d)))) {
+		L = append(L, b0-d)
+	}
+	return append(L, 0)
+}
+
+// size is the most the ratio's acceptance region with numerator
+// acceptance number c can accept a population at or above the ceiling
+// (see ClaimDesign.Judge): max(p_a(c, a*(b₀)), max_j p_a(c, aLat[j])·w[j]).
+func (r *claimRule) size(c int) float64 {
+	s := r.ta.pValue(c, r.aStar)
+	for j, a := range r.aLat {
+		if r.w[j] > 0 {
+			s = math.Max(s, r.ta.pValue(c, a)*r.w[j])
+		}
+	}
+	return s
+}
+
+// acceptA is the ratio's numerator acceptance number at level α: the
+// largest c with size(c) ≤ α, −1 when none (size grows with c).
+func (r *claimRule) acceptA(alpha float64) int {
+	lo, hi := -1, r.ta.size+1 // size(lo) ≤ α (or −1); size(hi) > α (virtual)
+	for hi-lo > 1 {
+		mid := lo + (hi-lo)/2
+		if r.size(mid) <= alpha {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return lo
 }
 
 // sideTally is the tally of a side at the counted items of its strata.
@@ -86,7 +161,8 @@ func sideTally(p Population, sd side, counted []int) (*tally, error) {
 }
 
 // ratioBadCount is a* = min{a ≥ 0 : a/(a + b) ≥ θ} = ⌈θ·b/(1 − θ)⌉ for
-// b ≥ 1, the fewest events A that put the ratio A/(A + b) at or above the
+// b ≥ 1 (0 for b = 0, where every A counts as at or above the ceiling),
+// the fewest events A that put the ratio A/(A + b) at or above the
 // ceiling θ. A product within 1e-9 of an integer is taken as that integer
 // (as plan.BadLotErrors does), so that a ceiling typed as 0.2 means 1/5.
 func ratioBadCount(b int64, theta float64) int64 {
@@ -101,11 +177,13 @@ func ratioBadCount(b int64, theta float64) int64 {
 // when its counted events are at most ca, the b side (ratios) when its
 // counted complement events are at most cb.
 func (r *claimRule) accepts(alpha float64) (ca, cb int) {
-	ca = r.ta.acceptAt(r.aStar, alpha, 0)
-	if r.tb != nil {
-		cb = r.tb.acceptAt(r.cStar, alpha, 0)
+	if r.tb == nil {
+		return r.ta.acceptAt(r.aStar, alpha, 0), 0
 	}
-	return ca, cb
+	if r.unacceptable {
+		return -1, -1
+	}
+	return r.acceptA(alpha), r.BAccept
 }
 
 // acceptProbability is the exact chance that the claim is accepted at

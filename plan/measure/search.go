@@ -74,7 +74,7 @@ var ErrInfeasible = errors.New("no design meets the claim")
 // floorMargins are the planned floors of a ratio as shares below the
 // anticipated denominator part: b₀ = ⌊(1 − q)·B₀⌋. The search takes the
 // best of them for each design.
-var floorMargins = []float64{0.005, 0.01, 0.02, 0.035, 0.05, 0.075, 0.1, 0.15, 0.2, 0.3, 0.5}
+var floorMargins = []float64{0.005, 0.01, 0.02, 0.05, 0.1, 0.2, 0.4}
 
 // Validate checks the problem's inputs.
 func (pr Problem) Validate() error {
@@ -115,20 +115,25 @@ func (pr Problem) Level() float64 {
 type claimPlan struct {
 	Claim
 	a, b side
-	// proportion: one curve; ratio: one pair per floor
+	// proportion: one curve; ratio: per floor, the numerator's curve
+	// and, per record of it, the denominator side's calibrated curve
 	curve  *curve
 	floors []int64
-	ca, cb []*curve
+	ca     []*curve
+	cb     []map[int]*curve
+	alpha  float64
+	eb     []int64 // anticipated complement events of the b side
 	// points are the frontier: counted vectors (over all strata) that meet
 	// the producer's risk, none dominated by another given the base.
 	points []point
 }
 
 // point is one way of meeting a claim: its counted items per stratum and
-// (ratios) its floor.
+// (ratios) its floor and denominator acceptance number.
 type point struct {
 	counted []int
 	floor   int64
+	bAccept int
 	power   float64
 }
 
@@ -182,17 +187,21 @@ func Search(pr Problem) (*Plan, error) {
 			ratios = append(ratios, cp)
 		}
 	}
-	// An incumbent: each ratio at its cheapest balanced point (both sides
-	// at √(1 − β)), given the base. Its total bounds every sub-sample an
-	// optimal design can count.
+	// An incumbent: each ratio with its numerator at power √(1 − β) and
+	// the denominator side's first record completing it, given the base.
+	// Its total bounds every sub-sample an optimal design can count.
 	cur := append([]int(nil), base...)
 	half := math.Sqrt(target)
 	for _, cp := range ratios {
 		best, bestCost := point{}, math.MaxInt
 		for f := range cp.floors {
 			ra, okA := cp.ca[f].first(half, int(cp.ca[f].scan.total))
-			rb, okB := cp.cb[f].first(half, int(cp.cb[f].scan.total))
-			if !okA || !okB {
+			if !okA {
+				continue
+			}
+			cb := cp.bCurve(pr.Population, f, ra)
+			rb, okB := cb.first(target/ra.power, int(cb.scan.total))
+			if !okB {
 				continue
 			}
 			pt := cp.point(pr.Population, f, ra, rb)
@@ -242,7 +251,7 @@ func newClaimPlan(pr Problem, c Claim, alpha float64) (*claimPlan, error) {
 		if A >= D {
 			return nil, fmt.Errorf("%w: %s is anticipated at %.4g, not below its ceiling %v", ErrInfeasible, c.name(pr.Population), float64(A)/float64(Na), c.Ceiling)
 		}
-		cp.curve = newSideScan(pr.Population, cp.a, ea).curve(D, alpha)
+		cp.curve = newSideScan(pr.Population, cp.a, ea).curve(test{D, alpha})
 		return cp, nil
 	}
 	ec := cp.b.counts(pr.Population, pr.Anticipated)
@@ -258,7 +267,8 @@ func newClaimPlan(pr Problem, c Claim, alpha float64) (*claimPlan, error) {
 		}
 		return nil, fmt.Errorf("%w: %s is anticipated at %.4g, not below its ceiling %v", ErrInfeasible, c.name(pr.Population), v, c.Ceiling)
 	}
-	sa, sb := newSideScan(pr.Population, cp.a, ea), newSideScan(pr.Population, cp.b, ec)
+	cp.alpha, cp.eb = alpha, ec
+	sa := newSideScan(pr.Population, cp.a, ea)
 	seen := map[int64]bool{}
 	for _, q := range floorMargins {
 		b0 := int64(math.Floor((1 - q) * float64(B)))
@@ -267,13 +277,10 @@ func newClaimPlan(pr Problem, c Claim, alpha float64) (*claimPlan, error) {
 		}
 		seen[b0] = true
 		cp.floors = append(cp.floors, b0)
-		cp.ca = append(cp.ca, sa.curve(ratioBadCount(b0, c.Ceiling), alpha))
-		cp.cb = append(cp.cb, sb.curve(Nb-b0+1, alpha))
+		cp.ca = append(cp.ca, sa.curve(test{ratioBadCount(b0, c.Ceiling), alpha}))
+		cp.cb = append(cp.cb, map[int]*curve{})
 		if len(cp.a.strata) == 1 {
 			sa = newSideScan(pr.Population, cp.a, ea)
-		}
-		if len(cp.b.strata) == 1 {
-			sb = newSideScan(pr.Population, cp.b, ec)
 		}
 	}
 	if len(cp.floors) == 0 {
@@ -286,45 +293,75 @@ func (cp *claimPlan) infeasible(pr Problem, why string) error {
 	return fmt.Errorf("%w: %s cannot reach a producer's risk of %v %s", ErrInfeasible, cp.name(pr.Population), pr.ProducerRisk, why)
 }
 
-// point is the frontier point of floor f with records ra (a side) and rb.
+// point is the frontier point of floor f with records ra (numerator
+// side) and rb (the denominator side's calibrated curve for ra).
 func (cp *claimPlan) point(p Population, f int, ra, rb rec) point {
 	k := make([]int, len(p.Strata))
 	proportional(p, cp.a.strata, ra.m, k)
 	proportional(p, cp.b.strata, rb.m, k)
-	return point{counted: k, floor: cp.floors[f], power: ra.power * rb.power}
+	return point{counted: k, floor: cp.floors[f], bAccept: rb.c, power: ra.power * rb.power}
+}
+
+// bCurve is the denominator side's curve for the numerator record ra at
+// floor f: its acceptance number c_B at each sub-sample size is the
+// largest that keeps the ratio's size within α with ra's acceptance
+// number c_A — for every interval j of the floor's lattice, p_b(c_B,
+// N_b − L_j + 1) ≤ α/p_a(c_A, a*(L_{j+1})) (see ClaimDesign.Judge; the
+// intervals whose numerator tail is at most α constrain nothing). Curves
+// are kept per record.
+func (cp *claimPlan) bCurve(p Population, f int, ra rec) *curve {
+	if cv, ok := cp.cb[f][ra.m]; ok {
+		return cv
+	}
+	r := &claimRule{ClaimDesign: ClaimDesign{Claim: cp.Claim, Floor: cp.floors[f]}, nb: cp.b.population(p)}
+	r.lat = floorLattice(r.Floor)
+	aLat, cLat := r.latticeCounts()
+	ta := cp.ca[f].scan.tallyAt(ra.m)
+	var tests []test
+	for j := range aLat {
+		if pa := ta.pValue(ra.c, aLat[j]); pa > cp.alpha {
+			tests = append(tests, test{cLat[j], cp.alpha / pa})
+		}
+	}
+	cv := newSideScan(p, cp.b, cp.eb).curve(tests...)
+	cp.cb[f][ra.m] = cv
+	return cv
 }
 
 // frontier lists the ratio's minimal ways to meet the producer's risk
-// within a total of limit labels: for each floor and each record of the b
-// side reaching the target, the first record of the a side whose power
-// makes the product reach it. The walk along the b side stops at the
-// first record that pairs with the a side's smallest possible sub-sample
-// (the first to reach the target alone): a larger b side cannot lower it.
-// Points dominated given the base (every stratum at least as large once
-// the base is applied) are dropped.
+// within a total of limit labels: for each floor and each record of the
+// numerator's curve, the first record of the denominator side's
+// calibrated curve whose power makes the product reach the target. The
+// numerator's records of every floor are taken by increasing size, and
+// each denominator curve is scanned only below the smallest denominator
+// sub-sample found so far: a point needing as much on both sides as an
+// earlier one is dominated. Points dominated given the base (every stratum
+// at least as large once the base is applied) are dropped as well.
 func (cp *claimPlan) frontier(p Population, target float64, limit int, base []int) {
+	type cand struct {
+		f  int
+		ra rec
+	}
+	var cands []cand
+	for f, ca := range cp.ca {
+		ca.extend(limit)
+		for _, ra := range ca.recs {
+			if ra.m <= limit && ra.power >= target {
+				cands = append(cands, cand{f, ra})
+			}
+		}
+	}
+	sort.SliceStable(cands, func(i, j int) bool { return cands[i].ra.m < cands[j].ra.m })
 	var pts []point
-	for f := range cp.floors {
-		cb, ca := cp.cb[f], cp.ca[f]
-		ra0, okA := ca.first(target, limit)
-		rb0, okB := cb.first(target, limit)
-		if !okA || !okB {
+	bestB := limit + 1 // the smallest denominator sub-sample so far
+	for _, c := range cands {
+		top := min(bestB-1, limit-c.ra.m)
+		if top < 0 {
 			continue
 		}
-		for i := 0; ; i++ {
-			rb, ok := cb.record(i, limit)
-			if !ok {
-				break
-			}
-			if rb.m < rb0.m {
-				continue
-			}
-			if ra, ok := ca.first(target/rb.power, limit-rb.m); ok {
-				pts = append(pts, cp.point(p, f, ra, rb))
-			}
-			if rb.power*ra0.power >= target {
-				break
-			}
+		if rb, ok := cp.bCurve(p, c.f, c.ra).first(target/c.ra.power, top); ok {
+			pts = append(pts, cp.point(p, c.f, c.ra, rb))
+			bestB = rb.m
 		}
 	}
 	cp.points = pareto(pts, base)
@@ -474,31 +511,25 @@ func maxProportional(p Population, strata []int, n []int) int {
 	return int(m)
 }
 
-// design fixes how each claim is judged on the labeled sample: the largest
-// sub-samples that fit (the best record of each curve; for a ratio, the
-// floor whose powers multiply highest), so that labels bought for one
-// claim serve the others.
+// design fixes how each claim is judged on the labeled sample: the most
+// powerful sub-samples that fit among those the search has scanned (the
+// best record of each curve; for a ratio, the best product over floors and
+// records), so that labels bought for one claim serve the others.
 func (pr Problem) design(plans []*claimPlan, sample []int, alpha, target float64) Design {
 	d := Design{Sample: sample, Total: sum(sample), Level: alpha}
 	for _, cp := range plans {
 		pc := PlannedClaim{ClaimDesign: ClaimDesign{Claim: cp.Claim}}
 		if cp.curve != nil {
-			r := cp.curve.best(maxProportional(pr.Population, cp.a.strata, sample))
+			// the best sub-sample that fits, among those already scanned
+			r := cp.curve.best(min(maxProportional(pr.Population, cp.a.strata, sample), cp.curve.scanned()))
 			pc.Counted = ProportionalCounts(pr.Population, cp.a.strata, r.m)
 			pc.ProducerRisk = 1 - r.power
 		} else {
-			ma := maxProportional(pr.Population, cp.a.strata, sample)
-			mb := maxProportional(pr.Population, cp.b.strata, sample)
-			bestF, bestP := -1, -1.0
-			var bestA, bestB rec
-			for f := range cp.floors {
-				ra, rb := cp.ca[f].best(ma), cp.cb[f].best(mb)
-				if pw := ra.power * rb.power; pw > bestP {
-					bestF, bestP, bestA, bestB = f, pw, ra, rb
-				}
+			pt, ok := cp.bestWithin(pr.Population, sample, 2)
+			if !ok || pt.power < target {
+				pt, _ = cp.bestWithin(pr.Population, sample, target)
 			}
-			pt := cp.point(pr.Population, bestF, bestA, bestB)
-			pc.Counted, pc.Floor, pc.ProducerRisk = pt.counted, pt.floor, 1-bestP
+			pc.Counted, pc.Floor, pc.BAccept, pc.ProducerRisk = pt.counted, pt.floor, pt.bAccept, 1-pt.power
 		}
 		d.Claims = append(d.Claims, pc)
 	}
@@ -508,31 +539,84 @@ func (pr Problem) design(plans []*claimPlan, sample []int, alpha, target float64
 // meets reports whether every claim reaches the target power with the
 // sub-samples that fit in the sample.
 func (pr Problem) meets(plans []*claimPlan, sample []int, target float64) bool {
+	// proportions first: they cost a lookup
 	for _, cp := range plans {
-		if cp.curve != nil {
-			if cp.curve.best(maxProportional(pr.Population, cp.a.strata, sample)).power < target {
-				return false
-			}
+		if cp.curve != nil && cp.curve.best(maxProportional(pr.Population, cp.a.strata, sample)).power < target {
+			return false
+		}
+	}
+	for _, cp := range plans {
+		if cp.curve != nil || cp.fits(sample) {
 			continue
 		}
-		ma := maxProportional(pr.Population, cp.a.strata, sample)
-		mb := maxProportional(pr.Population, cp.b.strata, sample)
-		ok := false
-		for f := range cp.floors {
-			rb := cp.cb[f].best(mb)
-			if rb.power < target {
-				continue
-			}
-			if ra := cp.ca[f].best(ma); ra.power*rb.power >= target {
-				ok = true
-				break
-			}
-		}
-		if !ok {
+		if pt, ok := cp.bestWithin(pr.Population, sample, target); !ok || pt.power < target {
 			return false
 		}
 	}
 	return true
+}
+
+// fits reports whether one of the ratio's frontier points fits in the
+// sample (a frontier point meets the target).
+func (cp *claimPlan) fits(sample []int) bool {
+	for _, pt := range cp.points {
+		if leq(pt.counted, sample) {
+			return true
+		}
+	}
+	return false
+}
+
+// bestWithin is the ratio's most powerful design whose counted items fit
+// in the sample, over the floors and the numerator's records that fit and
+// the denominator side's records that fit. With enough ≤ 1 it answers
+// whether some design reaches enough, and stops at the first that does
+// (scanning a denominator curve only as far as that needs); otherwise it
+// looks only at what the curves have already scanned, so that fixing the
+// counted items of a design costs no new scan. The numerator's records are
+// tried from the most powerful down, and one whose own power does not beat
+// the best product so far ends the floor (the product cannot exceed it).
+func (cp *claimPlan) bestWithin(p Population, sample []int, enough float64) (point, bool) {
+	ma := maxProportional(p, cp.a.strata, sample)
+	mb := maxProportional(p, cp.b.strata, sample)
+	search := enough <= 1
+	best, found := point{power: -1}, false
+	for f := range cp.floors {
+		ca := cp.ca[f]
+		if search {
+			ca.extend(ma)
+		}
+		for i := len(ca.recs) - 1; i >= 0; i-- {
+			ra := ca.recs[i]
+			if ra.m > ma {
+				continue
+			}
+			if ra.power <= best.power || search && ra.power < enough {
+				break // every earlier record is less powerful still
+			}
+			var rb rec
+			if search {
+				r, ok := cp.bCurve(p, f, ra).first(enough/ra.power, mb)
+				if !ok {
+					continue
+				}
+				rb = r
+			} else {
+				cv, ok := cp.cb[f][ra.m]
+				if !ok {
+					continue
+				}
+				rb = cv.best(min(mb, cv.scanned()))
+			}
+			if pw := ra.power * rb.power; pw > best.power {
+				best, found = cp.point(p, f, ra, rb), true
+				if search && best.power >= enough {
+					return best, true
+				}
+			}
+		}
+	}
+	return best, found
 }
 
 // uniform is the smallest proportional allocation n_h = ⌈n·N_h/N⌉ (and the

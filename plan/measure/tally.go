@@ -109,30 +109,6 @@ func (t *tally) acceptAt(D int64, alpha float64, hint int) int {
 	return c
 }
 
-// acceptAbove is acceptAt for a count c0 known to pass (p(c0, D) ≤ α, or
-// c0 = −1): it only steps up. For one stratum a count that passes with k
-// items passes with more (the hypergeometric tail at a fixed count falls
-// as the sample grows), so a scan over growing sub-samples can hand each
-// answer to the next.
-func (t *tally) acceptAbove(D int64, alpha float64, c0 int) int {
-	if D > t.total {
-		return t.size
-	}
-	c := min(max(c0, -1), t.size)
-	step := 1
-	for c < t.size {
-		next := min(c+step, t.size)
-		if t.pValue(next, D) > alpha {
-			if step == 1 {
-				return c
-			}
-			return t.bisect(D, alpha, c, next)
-		}
-		c, step = next, step*2
-	}
-	return c
-}
-
 // bisect is the largest s in [lo, hi) with p(s, D) ≤ α, given p(lo) ≤ α
 // (or lo = −1) and p(hi) > α.
 func (t *tally) bisect(D int64, alpha float64, lo, hi int) int {
@@ -151,18 +127,24 @@ func (t *tally) bisect(D int64, alpha float64, lo, hi int) int {
 // test at level α does not reject after s counted events: the one-sided
 // upper confidence bound (test inversion; P(D > D_U) ≤ α for every true
 // D). It is the group's size when nothing is rejected.
-func (t *tally) upper(s int, alpha float64) int64 {
-	lo, hi := int64(0), t.total // p(lo) > α always (p(s, 0) = 1)
+func (t *tally) upper(s int, alpha float64) int64 { return t.upperScaled(s, alpha, 1) }
+
+// upperScaled is the largest D with w·p(s, D) > α (p(s, D) does not
+// increase in D, and w·p(s, 0) = w > α is required), the upper bound at
+// level α/w computed with the same arithmetic as the product w·p that a
+// ratio's acceptance compares with α.
+func (t *tally) upperScaled(s int, alpha, w float64) int64 {
+	lo, hi := int64(0), t.total // w·p(lo) > α
 	if t.rule == nil {
 		lo = int64(s) // the stratum holds at least the s events seen
 		hi = t.total - int64(t.k[0]-s)
 	}
-	if t.pValue(s, hi) > alpha {
+	if t.pValue(s, hi)*w > alpha {
 		return hi
 	}
 	for hi-lo > 1 {
 		mid := lo + (hi-lo)/2
-		if t.pValue(s, mid) > alpha {
+		if t.pValue(s, mid)*w > alpha {
 			lo = mid
 		} else {
 			hi = mid

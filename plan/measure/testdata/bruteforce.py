@@ -20,8 +20,13 @@ The rules restated:
     hypergeom.pmf);
   - a proportion (error, for, fdr) is met when its power is >= 1 - beta;
   - a ratio (fnr, fpr) with floor b0 (from the margins below the anticipated
-    B0) is met when power_a(a*) * power_b(c*) >= 1 - beta, a* the least A
-    with A/(A + b0) >= ceiling, c* = N_b - b0 + 1.
+    B0): the numerator side counts a record size of its curve at level
+    alpha against a*(b0), the least A with A/(A + b0) >= ceiling (a record:
+    its acceptance number and its power exceed those of every smaller size),
+    with acceptance number c_A; the denominator side counts any size, and
+    its acceptance number is the largest c with
+    p_a(c_A, a*(L[j+1])) * p_b(c, N_b - L[j] + 1) <= alpha for every interval
+    j of the floor's lattice L; it is met when power_a * power_b >= 1 - beta.
 """
 import json
 import math
@@ -29,6 +34,7 @@ import sys
 from fractions import Fraction
 from itertools import product
 
+import numpy as np
 from scipy.stats import binom, hypergeom
 
 
@@ -47,13 +53,7 @@ def max_prop(Ns, ns):
     return min([NG] + [n * NG // N for n, N in zip(ns, Ns)])
 
 
-def pvalue(Ns, ks, s, D):
-    if D <= 0:
-        return 1.0
-    if D > sum(Ns):
-        return 0.0
-    if len(Ns) == 1:
-        return float(hypergeom.cdf(s, Ns[0], D, ks[0]))
+def least_mean(Ns, ks, D):
     order = sorted(range(len(Ns)), key=lambda h: Fraction(ks[h], Ns[h]))
     rest, mu = D, 0.0
     for h in order:
@@ -62,24 +62,44 @@ def pvalue(Ns, ks, s, D):
         rest -= d
         if rest == 0:
             break
+    return mu
+
+
+def pvalues(Ns, ks, D):
+    """p(s, D) for s = 0 .. sum(ks), as an array."""
     M = sum(ks)
-    if M == 0 or s > mu - 1:
-        return 1.0
-    return float(binom.cdf(s, M, min(mu / M, 1.0)))
+    s = np.arange(M + 1)
+    if D <= 0:
+        return np.ones(M + 1)
+    if D > sum(Ns):
+        return np.zeros(M + 1)
+    if len(Ns) == 1:
+        return hypergeom.cdf(s, Ns[0], D, ks[0])
+    mu = least_mean(Ns, ks, D)
+    if M == 0:
+        return np.ones(1)
+    p = binom.cdf(s, M, min(mu / M, 1.0))
+    return np.where(s <= mu - 1, p, 1.0)
+
+
+def pvalue(Ns, ks, s, D):
+    return float(pvalues(Ns, ks, D)[s]) if 0 <= s <= sum(ks) else (0.0 if s < 0 else 1.0)
 
 
 def accept_at(Ns, ks, D, alpha):
     size = sum(ks)
     if D > sum(Ns):
         return size
-    lo, hi = -1, size + 1  # p(lo) <= alpha (or lo = -1), p(hi) > alpha (virtual)
-    while hi - lo > 1:
-        mid = (lo + hi) // 2
-        if pvalue(Ns, ks, mid, D) <= alpha:
-            lo = mid
-        else:
-            hi = mid
-    return lo
+    ok = np.nonzero(pvalues(Ns, ks, D) <= alpha)[0]
+    return int(ok.max()) if len(ok) else -1
+
+
+def lattice(b0):
+    L, d = [b0], 1
+    while b0 - d > 0:
+        L.append(b0 - d)
+        d = max(d + 1, math.ceil(1.2 * d))
+    return L + [0]
 
 
 def cdf(Ns, ks, events, c):
@@ -148,20 +168,48 @@ def main():
         else:
             a, b = side(P, "neg", j), side(Q, "pos", j)
         A, B = sum(a["events"]), sum(b["Ns"]) - sum(b["events"])
-        curves, seen = [], set()
+        Nb = sum(b["Ns"])
+        options, seen = [], set()  # (m_a, power_a, best power of b up to each m_b)
         for q in pr["margins"]:
             b0 = math.floor((1 - q) * B)
             if b0 < 1 or b0 in seen or A >= snap_ceil(theta * b0 / (1 - theta)):
                 continue
             seen.add(b0)
             astar = snap_ceil(theta * b0 / (1 - theta))
-            cstar = sum(b["Ns"]) - b0 + 1
-            curves.append((best_curve(a["Ns"], a["events"], astar, alpha), best_curve(b["Ns"], b["events"], cstar, alpha)))
+            L = lattice(b0)
+            alat = [snap_ceil(theta * L[j + 1] / (1 - theta)) for j in range(len(L) - 1)]
+            clat = [Nb - L[j] + 1 for j in range(len(L) - 1)]
+            best_c, best_p = -2, -1.0
+            for ma in range(sum(a["Ns"]) + 1):
+                ks = prop_counts(a["Ns"], ma)
+                ca = accept_at(a["Ns"], ks, astar, alpha)
+                if ca <= best_c:
+                    continue
+                best_c = ca
+                pa = cdf(a["Ns"], ks, a["events"], ca)
+                if pa <= best_p:
+                    continue
+                best_p = pa
+                # a record: calibrate the denominator side to it
+                tests = []
+                for j in range(len(alat)):
+                    pj = pvalue(a["Ns"], ks, ca, alat[j])
+                    if pj > alpha:
+                        tests.append((clat[j], alpha / pj))
+                bcurve, run = [], 0.0
+                for mb in range(Nb + 1):
+                    kb = prop_counts(b["Ns"], mb)
+                    cb = min([sum(kb)] + [accept_at(b["Ns"], kb, D, lvl) for D, lvl in tests])
+                    run = max(run, cdf(b["Ns"], kb, b["events"], cb))
+                    bcurve.append(run)
+                options.append((ma, pa, bcurve))
+                if pa >= 1 - 1e-12:
+                    break  # the search stops a curve here too
 
-        def met(n, tol, a=a, b=b, curves=curves):
+        def met(n, tol, a=a, b=b, options=options):
             ma = max_prop(a["Ns"], [n[h] for h in a["strata"]])
             mb = max_prop(b["Ns"], [n[h] for h in b["strata"]])
-            return any(ca[ma] * cb[mb] >= target - tol for ca, cb in curves)
+            return any(m <= ma and pa * bc[mb] >= target - tol for m, pa, bc in options)
 
         checks.append(met)
 
