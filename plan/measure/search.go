@@ -76,6 +76,12 @@ var ErrInfeasible = errors.New("no design meets the claim")
 // best of them for each design.
 var floorMargins = []float64{0.005, 0.01, 0.02, 0.05, 0.1, 0.2, 0.4}
 
+// intersectionUnion restricts the ratios' denominator side to the plain
+// intersection–union test at the floor (acceptance number at level α, not
+// calibrated to the numerator): a hook for the tests that measure what
+// the calibration buys.
+var intersectionUnion = false
+
 // Validate checks the problem's inputs.
 func (pr Problem) Validate() error {
 	if err := pr.Population.Validate(); err != nil {
@@ -322,6 +328,9 @@ func (cp *claimPlan) bCurve(p Population, f int, ra rec) *curve {
 		if pa := ta.pValue(ra.c, aLat[j]); pa > cp.alpha {
 			tests = append(tests, test{cLat[j], cp.alpha / pa})
 		}
+	}
+	if intersectionUnion {
+		tests = []test{{r.nb - r.Floor + 1, cp.alpha}}
 	}
 	cv := newSideScan(p, cp.b, cp.eb).curve(tests...)
 	cp.cb[f][ra.m] = cv
