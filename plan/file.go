@@ -51,6 +51,10 @@ type File struct {
 	// Sequential holds the boundaries of a sequential design (nil for a
 	// fixed (n, c) plan).
 	Sequential *SequentialRule `yaml:"sequential,omitempty"`
+	// Measures, when set, certifies error measures with their own
+	// denominators (fnr, fpr, for, fdr, error) instead of the overall
+	// error alone: the candidates are judged by them.
+	Measures *Measures `yaml:"measures,omitempty"`
 }
 
 // Inputs are the requirements a plan is made from.
@@ -293,6 +297,14 @@ func (f *File) validate() error {
 	}
 	if len(f.Candidates) > 0 && len(f.Classes) < 2 {
 		return errors.New("classes must list at least two labels when candidates are declared")
+	}
+	if f.Measures != nil {
+		if len(f.Candidates) == 0 {
+			return errors.New("measures need declared candidates")
+		}
+		if err := f.Measures.validate(f); err != nil {
+			return fmt.Errorf("%w: %v", ErrMeasures, err)
+		}
 	}
 	return nil
 }

@@ -58,6 +58,7 @@ type planJSON struct {
 	PlanFile               *string             `json:"plan_file"`
 	Fingerprint            *string             `json:"fingerprint"`
 	Sequential             *planSequentialJSON `json:"sequential"`
+	Measures               *plan.Measures      `json:"measures,omitempty"`
 }
 
 // planOC is the plan's OC curve: 21 points, exact; for a sequential design
@@ -90,7 +91,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
 		Ceiling: in.Ceiling, Confidence: in.Confidence, Candidates: in.CandidateCount,
 		Anticipated: in.Anticipated, ProducerRiskAllowed: in.ProducerRisk,
 		Comparison: map[string]*int64{}, Seed: f.Seed, CandidateNames: []string{},
-		Sequential: sequentialPlanJSON(f),
+		Sequential: sequentialPlanJSON(f), Measures: f.Measures,
 	}
 	if in.Population > 0 {
 		pop, d1 := in.Population, r.BadLotErrors
