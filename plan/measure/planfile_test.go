@@ -57,8 +57,8 @@ func TestBuildPlanThresholds(t *testing.T) {
 	}
 	spec := Spec{Candidates: cands, Positive: "d", Prevalence: 0.03, Decisions: 100000,
 		Anticipated: []string{"fnr:0.02,0.15", "error:0.03,0.018"},
-		Claims: []plan.MeasureClaim{{Candidate: "s>=0.35", Measure: "fnr", Ceiling: 0.3}, {Candidate: "s>=0.65", Measure: "fnr", Ceiling: 0.3}},
-		Confidence: 0.95, ProducerRisk: 0.1, Multiplicity: plan.Bonferroni}
+		Claims:      []plan.MeasureClaim{{Candidate: "s>=0.35", Measure: "fnr", Ceiling: 0.3}, {Candidate: "s>=0.65", Measure: "fnr", Ceiling: 0.3}},
+		Confidence:  0.95, ProducerRisk: 0.1, Multiplicity: plan.Bonferroni}
 	m, err := BuildPlan(spec)
 	if err != nil {
 		t.Fatal(err)
