@@ -253,6 +253,9 @@ func loadDrawPlan(path string) (*plan.File, string, error) {
 	if err != nil {
 		return nil, "", err
 	}
+	if err := checkMeasuresPlan(path, p); err != nil {
+		return nil, "", err
+	}
 	if p.IsSizingOnly() {
 		return nil, "", inputerr.Errorf("%s is a sizing-only plan: it declares no candidates, so it cannot be drawn", path).WithHint("declare the models or thresholds to judge: probity plan … --candidate NAME=COLUMN, or --thresholds COLUMN:t1,t2 --positive LABEL --negative LABEL")
 	}
@@ -319,6 +322,9 @@ func runDraw(d deps, o *drawOptions) error {
 		IDColumn: o.id, StrataColumns: o.strata, Bands: o.parsedBands, Where: o.parsedWhere, Show: o.show,
 		Alloc:  sampling.AllocOptions{Rule: o.allocation, MinPerStratum: o.minPer, Spare: o.spare},
 		Double: o.double, Dedupe: o.dedupe == "first", MaxLine: o.parsedMaxLine, ToolVersion: d.version,
+	}
+	if err := addDrawMeasures(o, &in); err != nil {
+		return err
 	}
 	if o.allocation == sampling.Neyman {
 		if o.anticipated != "" {

@@ -181,6 +181,9 @@ func drawSpec(d deps, o *drawOptions, so *drawSQLOptions, planPath string) (*sql
 	if err != nil {
 		return nil, err
 	}
+	if err := refuseSQLMeasures(p); err != nil {
+		return nil, err
+	}
 	s := &sqlquery.Spec{
 		Format: sqlquery.QueryFormat, ToolVersion: d.version, Dialect: sqlquery.Dialect(so.dialect),
 		PlanFingerprint: fp, Seed: p.Seed, Period: o.period, SelectionSeed: p.Seed,

@@ -523,3 +523,52 @@ func diffMeasures(a, b *plan.Measures) string {
 	}
 	return ""
 }
+
+// PeriodProblem is the plan's problem on a period's actual strata: the
+// draw's strata (the user's crossed with the candidates' predictions),
+// flagged[h][j] whether candidate j predicts the positive class in
+// stratum h, the anticipated share of positives of each stratum's cell
+// (as the plan assumed it), the plan's claims and risks. Search on it
+// gives the draw's allocation and every claim's design; record and verify
+// rebuild it from the manifest's strata, so it is a function of the plan
+// and the log alone.
+func PeriodProblem(f *plan.File, strata []Stratum, flagged [][]bool) (Problem, error) {
+	if f.Measures == nil {
+		return Problem{}, fmt.Errorf("%w: the plan has no measures", ErrPopulation)
+	}
+	s := SpecOf(f)
+	cl, err := PlanCells(f.Candidates)
+	if err != nil {
+		return Problem{}, err
+	}
+	if len(cl.Labels) != len(f.Measures.Cells) {
+		return Problem{}, fmt.Errorf("%w: the plan lists %d cells, its candidates cut %d", plan.ErrMeasures, len(f.Measures.Cells), len(cl.Labels))
+	}
+	if len(flagged) != len(strata) {
+		return Problem{}, fmt.Errorf("%w: flags for %d of %d strata", ErrPopulation, len(flagged), len(strata))
+	}
+	pr := Problem{Population: Population{Strata: strata}}
+	pos := make([]int64, len(strata))
+	for h, st := range strata {
+		i := cl.Cell(flagged[h])
+		if i < 0 {
+			return Problem{}, fmt.Errorf("%w: stratum %q is predicted in a way no cell of the plan is", ErrPopulation, st.Label)
+		}
+		c := f.Measures.Cells[i]
+		pos[h] = min(st.Population, int64(math.Round(float64(c.Positives)/float64(c.Decisions)*float64(st.Population))))
+	}
+	for j, c := range f.Candidates {
+		cand := Candidate{Name: c.Name, Positive: make([]bool, len(strata))}
+		for h := range strata {
+			cand.Positive[h] = flagged[h][j]
+		}
+		pr.Candidates = append(pr.Candidates, cand)
+	}
+	if pr.Claims, err = s.claims(); err != nil {
+		return Problem{}, err
+	}
+	pr.Anticipated = Composition{Positives: pos}
+	pr.Confidence, pr.ProducerRisk, pr.Multiplicity = s.Confidence, s.ProducerRisk, s.Multiplicity
+	pr.MinPerStratum = 1
+	return pr, nil
+}

@@ -60,6 +60,9 @@ type Manifest struct {
 	// repeats): the lot a finite-population plan judges. For a periodic
 	// draw of a --population plan it is the period's lot size.
 	LotSize int64 `json:"lot_size"`
+	// Measures is set for a plan with measures (allocation rule
+	// "measures"): each claim's design on these strata.
+	Measures *MeasuresInfo `json:"measures,omitempty"`
 }
 
 // LogInfo describes the prediction log a draw read.

@@ -1,0 +1,34 @@
+package drawfolder
+
+// MeasuresInfo is, for a plan with measures, how each claim is judged on
+// the draw's strata, fixed before any label: the manifest's record of the
+// design the draw sized on the log (plan/measure.NewPeriodDesign).
+type MeasuresInfo struct {
+	// Positive is the plan's positive (critical) class.
+	Positive string `json:"positive"`
+	// Flagged[h] lists, per stratum in manifest order, whether each
+	// candidate (in plan order) predicts the positive class there.
+	Flagged [][]bool `json:"flagged"`
+	// Claims are the claims' designs in the plan's order.
+	Claims []MeasureClaimInfo `json:"claims"`
+	// Uniform is the labels a proportional sample would need for the
+	// claims the design is sized for.
+	Uniform int `json:"uniform"`
+}
+
+// MeasureClaimInfo is one claim's design.
+type MeasureClaimInfo struct {
+	Candidate string  `json:"candidate"`
+	Measure   string  `json:"measure"`
+	Ceiling   float64 `json:"ceiling"`
+	// Counted[h] is the labeled items of stratum h the claim counts (the
+	// first in key order).
+	Counted []int `json:"counted"`
+	// Floor and BAccept are a ratio's b₀ and c_B (0 for a proportion).
+	Floor   int64 `json:"floor"`
+	BAccept int   `json:"b_accept"`
+	// Planned is false when the period's anticipated composition puts the
+	// claim at or above its ceiling, or no design meets it alone: the
+	// design is not sized for its producer's risk.
+	Planned bool `json:"planned"`
+}
