@@ -82,6 +82,16 @@ type Record struct {
 	// LabelTrail is what the labeling's audit trail says (nil, and absent
 	// from record.json, when the labels came from worksheets alone).
 	LabelTrail *LabelTrail `json:"label_trail,omitempty"`
+	// Measures are the claims of a plan with measures, judged by
+	// plan/measure (the candidates' verdicts follow from them), with each
+	// candidate's estimated confusion matrix.
+	Measures           []MeasureVerdict     `json:"measures,omitempty"`
+	EstimatedConfusion []EstimatedConfusion `json:"estimated_confusion,omitempty"`
+	// ReleaseRule is the plan's release rule (a candidate, or
+	// best:MEASURE); Released the candidate it picks, null when none
+	// qualifies (the record then rejects).
+	ReleaseRule string    `json:"release_rule,omitempty"`
+	Released    *Released `json:"released,omitempty"`
 }
 
 // LabelTrail summarises the audit trail the labels were derived from

@@ -299,6 +299,9 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 	rec.OverallVerdict = res.Overall
 	rec.Method = res.Method
 	rec.Method.Assumptions = append(rec.Method.Assumptions, res.Notes...)
+	if err := judgeMeasures(rec, p, in.Folder.Manifest, checked); err != nil {
+		return nil, err
+	}
 	if res.SelfWeighting && !rec.Method.Bound.Weighted() {
 		if s := checked.Design.MaxWeightSpread(); s > 1e-12 {
 			rec.Method.Assumptions = append(rec.Method.Assumptions, fmt.Sprintf(
