@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 
 	"probity/plan"
@@ -132,11 +133,18 @@ func allocateMeasures(in DrawInput, counts []StratumCount) ([]StratumAllocation,
 		}
 		out[i] = a
 	}
-	info := &drawfolder.MeasuresInfo{Positive: in.Plan.Measures.Positive, Flagged: flagged, Uniform: pd.Uniform}
+	info := &drawfolder.MeasuresInfo{Positive: in.Plan.Measures.Positive, Flagged: flagged, Uniform: pd.Uniform, Level: roundRisk(pd.Level)}
 	for i, cd := range pd.Claims {
 		info.Claims = append(info.Claims, drawfolder.MeasureClaimInfo{Candidate: in.Plan.Candidates[cd.Candidate].Name,
 			Measure: cd.Measure.String(), Ceiling: cd.Ceiling, Counted: cd.Counted, Floor: cd.Floor, BAccept: cd.BAccept,
-			Planned: !slices.Contains(pd.Unplanned, i)})
+			ProducerRisk: roundRisk(pd.ProducerRisk[i]), Planned: !slices.Contains(pd.Unplanned, i)})
 	}
 	return out, info, nil
+}
+
+// roundRisk keeps six significant digits of a risk, so the manifest reads
+// well and the same draw gives the same bytes.
+func roundRisk(v float64) float64 {
+	r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'g', 6, 64), 64)
+	return r
 }

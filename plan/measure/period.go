@@ -2,6 +2,7 @@ package measure
 
 import (
 	"errors"
+	"slices"
 	"sort"
 
 	"probity/plan"
@@ -25,9 +26,15 @@ type PeriodDesign struct {
 	// its consumer's risk kept by construction.
 	Unplanned []int
 	// Uniform is the labels a proportional sample would need for the
-	// planned claims; UniformSample its allocation.
+	// planned claims (searched on the cells, split as the design is);
+	// UniformSample its allocation.
 	Uniform       int
 	UniformSample []int
+	// Level is α, each claim's share of the family's risk.
+	Level float64
+	// ProducerRisk[i] is claim i's exact chance of rejection at the
+	// anticipated composition, with the counted items of Claims[i].
+	ProducerRisk []float64
 }
 
 // Value is a claim's value at a composition of binary labels (Wrong nil).
@@ -71,103 +78,246 @@ func (c countsMatrix) value(m Measure) float64 {
 }
 
 // NewPeriodDesign sizes the plan's design on a period's strata (see
-// PeriodProblem). Claims the period's anticipated composition puts at or
-// above their ceiling are left out of the search and judged on what the
-// design labels (Unplanned).
+// PeriodProblem): the design is searched on the prediction cells — the
+// strata merged where every candidate predicts alike (Coarsen) — and each
+// cell's labels are split over its strata in proportion to their sizes,
+// rounding up (ProportionalCounts); each claim counts on each side the
+// sub-sample it counted on the cells, spread the same way.
+//
+// Why that keeps every claim's risk: a claim's test keeps its consumer's
+// risk for any counted items fixed before labeling (the count rule of
+// plan/stratified and the ratio's product bound hold for every
+// allocation), so only its power changes. That is computed again,
+// exactly, on the period's strata (ClaimDesign.AcceptProbability at the
+// anticipated composition); a claim that misses the producer's risk
+// counts more of its numerator's side — first the labels the others
+// already drew, then the fewest more — until it meets it.
+//
+// Claims the period's anticipated composition puts at or above their
+// ceiling, or that no design meets alone, are left out of the search and
+// judged on what the design labels (Unplanned).
 func NewPeriodDesign(f *plan.File, strata []Stratum, flagged [][]bool) (*PeriodDesign, error) {
 	pr, err := PeriodProblem(f, strata, flagged)
 	if err != nil {
 		return nil, err
 	}
-	all := pr.Claims
-	pd := &PeriodDesign{Problem: pr}
-	var planned []Claim
-	var idx []int
-	for i, c := range all {
-		if c.Value(pr.Population, pr.Anticipated) >= c.Ceiling {
-			pd.Unplanned = append(pd.Unplanned, i)
+	cellPop, cellComp, cellOf, err := Coarsen(pr.Population, pr.Anticipated)
+	if err != nil {
+		return nil, err
+	}
+	cells := pr
+	cells.Population, cells.Anticipated = cellPop, cellComp
+	cells.cache = map[cacheKey]*claimPlan{}
+	cd, err := designOnCells(cells)
+	if err != nil {
+		return nil, err
+	}
+	pd := &PeriodDesign{Problem: pr, Unplanned: cd.unplanned, Level: cells.Level()}
+	members := make([][]int, len(cellPop.Strata))
+	for h, c := range cellOf {
+		members[c] = append(members[c], h)
+	}
+	pd.Sample = splitCells(pr.Population, members, cd.sample, pr.MinPerStratum)
+	pd.UniformSample = splitCells(pr.Population, members, cd.uniform, pr.MinPerStratum)
+	if cd.uniform != nil {
+		pd.Uniform = sum(pd.UniformSample)
+	}
+	pd.Claims = make([]ClaimDesign, len(pr.Claims))
+	pd.ProducerRisk = make([]float64, len(pr.Claims))
+	target := 1 - pr.ProducerRisk
+	for i, c := range pr.Claims {
+		if slices.Contains(pd.Unplanned, i) {
 			continue
 		}
-		planned = append(planned, c)
-		idx = append(idx, i)
-	}
-	pd.Claims = make([]ClaimDesign, len(all))
-	pd.Sample = make([]int, len(strata))
-	for h, s := range strata {
-		pd.Sample[h] = int(min(int64(pr.MinPerStratum), s.Population))
-	}
-	if len(planned) > 0 {
-		sub := pr
-		sub.Claims = planned
-		// the level stays the family's: the unplanned claims are judged too
-		res, err := searchAtFamily(sub, len(all))
-		if errors.Is(err, ErrInfeasible) {
-			// find the claims no design meets by themselves and judge
-			// them on what the others' design labels
-			var keep []Claim
-			var keepIdx []int
-			for k, c := range planned {
-				if feasibleAlone(pr, c, len(all)) {
-					keep, keepIdx = append(keep, c), append(keepIdx, idx[k])
-				} else {
-					pd.Unplanned = append(pd.Unplanned, idx[k])
-				}
-			}
-			sort.Ints(pd.Unplanned)
-			planned, idx = keep, keepIdx
-			sub.Claims = planned
-			if len(planned) == 0 {
-				goto fallback
-			}
-			res, err = searchAtFamily(sub, len(all))
+		d := cd.claims[i]
+		ac, bc := c.sides(cellPop)
+		ma := maxProportional(cellPop, ac.strata, d.Counted)
+		mb := 0
+		if c.Measure.Ratio() {
+			mb = maxProportional(cellPop, bc.strata, d.Counted)
 		}
+		cdf, power, err := pr.meetOnStrata(d, ma, mb, pd.Sample, pd.Level, target)
 		if err != nil {
 			return nil, err
 		}
-		pd.Sample = res.Design.Sample
-		for k, i := range idx {
-			pd.Claims[i] = res.Design.Claims[k].ClaimDesign
-		}
-		pd.Uniform, pd.UniformSample = res.Uniform.Total, res.Uniform.Sample
+		raise(pd.Sample, cdf.Counted)
+		pd.Claims[i], pd.ProducerRisk[i] = cdf, 1-power
 	}
-fallback:
 	for _, i := range pd.Unplanned {
-		pd.Claims[i] = fallbackDesign(pr, all[i], pd.Sample)
+		pd.Claims[i] = fallbackDesign(pr, pr.Claims[i], pd.Sample)
+		power, err := pd.Claims[i].AcceptProbability(pr.Population, pr.Anticipated, pd.Level)
+		if err != nil {
+			return nil, err
+		}
+		pd.ProducerRisk[i] = 1 - power
 	}
 	return pd, nil
 }
 
-// feasibleAlone reports whether some design meets the claim by itself at
-// its share of the family's risk (a claim no design can meet on these
-// strata is judged on what the others' design labels).
-func feasibleAlone(pr Problem, c Claim, family int) bool {
-	one := pr
-	one.Claims = []Claim{c}
-	_, err := searchAtFamily(one, family)
-	return !errors.Is(err, ErrInfeasible)
+// cellDesign is a design searched on the prediction cells.
+type cellDesign struct {
+	sample    []int
+	claims    []ClaimDesign // nil entries for the unplanned
+	unplanned []int
+	uniform   []int // nil when no claim is planned
 }
 
-// searchAtFamily is Search with each claim's level that of a family of
-// the given size (the unplanned claims share δ too).
-func searchAtFamily(pr Problem, family int) (*Plan, error) {
-	if family == len(pr.Claims) {
-		return Search(pr)
+// designOnCells searches the cells' design for the claims the anticipated
+// composition puts below their ceiling; when no design meets them all,
+// the claims no design meets alone are judged on what the others' design
+// labels. The level stays the family's: the unplanned claims share δ.
+// Each claim's curves are built once (the problem's cache), however many
+// searches ask for them.
+func designOnCells(cells Problem) (cellDesign, error) {
+	all := cells.Claims
+	cd := cellDesign{claims: make([]ClaimDesign, len(all)), sample: make([]int, len(cells.Strata))}
+	for h, s := range cells.Strata {
+		cd.sample[h] = int(min(int64(cells.MinPerStratum), s.Population))
 	}
-	// pad the family with copies of the first claim, which cost nothing
-	// more (a stratum's labels are the most any claim counts there), then
-	// drop them
-	padded := pr
-	padded.Claims = append(append([]Claim(nil), pr.Claims...), make([]Claim, family-len(pr.Claims))...)
-	for i := len(pr.Claims); i < family; i++ {
-		padded.Claims[i] = pr.Claims[0]
+	var planned []int
+	for i, c := range all {
+		if c.Value(cells.Population, cells.Anticipated) >= c.Ceiling {
+			cd.unplanned = append(cd.unplanned, i)
+		} else {
+			planned = append(planned, i)
+		}
 	}
-	res, err := Search(padded)
+	search := func(idx []int) (*Plan, error) {
+		sub := cells
+		sub.family = len(all)
+		sub.Claims = nil
+		for _, i := range idx {
+			sub.Claims = append(sub.Claims, all[i])
+		}
+		return Search(sub)
+	}
+	if len(planned) == 0 {
+		return cd, nil
+	}
+	res, err := search(planned)
+	if errors.Is(err, ErrInfeasible) {
+		var keep []int
+		for _, i := range planned {
+			if _, err := search([]int{i}); errors.Is(err, ErrInfeasible) {
+				cd.unplanned = append(cd.unplanned, i)
+			} else {
+				keep = append(keep, i)
+			}
+		}
+		sort.Ints(cd.unplanned)
+		if planned = keep; len(planned) == 0 {
+			return cd, nil
+		}
+		res, err = search(planned)
+	}
 	if err != nil {
-		return nil, err
+		return cellDesign{}, err
 	}
-	res.Design.Claims = res.Design.Claims[:len(pr.Claims)]
-	res.Uniform.Claims = res.Uniform.Claims[:len(pr.Claims)]
-	return res, nil
+	cd.sample, cd.uniform = res.Design.Sample, res.Uniform.Sample
+	for k, i := range planned {
+		cd.claims[i] = res.Design.Claims[k].ClaimDesign
+	}
+	return cd, nil
+}
+
+// splitCells spreads each cell's labels over its strata in proportion to
+// their sizes, rounding up (⌈n_c·N_h/N_c⌉, never above N_h), with at
+// least min(minimum, N_h) in each; nil for nil.
+func splitCells(p Population, members [][]int, cellSample []int, minimum int) []int {
+	if cellSample == nil {
+		return nil
+	}
+	out := make([]int, len(p.Strata))
+	for c, hs := range members {
+		proportional(p, hs, cellSample[c], out)
+	}
+	for h, s := range p.Strata {
+		out[h] = max(out[h], int(min(int64(minimum), s.Population)))
+	}
+	return out
+}
+
+// meetOnStrata is the claim designed on the cells, d, carried to the
+// period's strata: each side counts its cells' sub-sample of ma (and mb)
+// items spread proportionally over the side's strata, with d's floor and
+// c_B. Its exact power at the anticipated composition is computed. When
+// it is below the target the claim counts more: the first larger
+// sub-sample of the numerator's side that reaches the target or, for a
+// ratio, of the denominator's side with the c_B nearest the current one
+// that is most powerful there — whichever adds fewer labels to the sample
+// (sub-samples within it cost none). Each side looks as far as twice its
+// cells' sub-sample (and 100 more); when neither reaches the target the
+// most powerful design found is kept. It returns the design and its power.
+func (pr Problem) meetOnStrata(d ClaimDesign, ma, mb int, sample []int, alpha, target float64) (ClaimDesign, float64, error) {
+	a, b := d.sides(pr.Population)
+	at := func(ma, mb, cb int) ClaimDesign {
+		out := ClaimDesign{Claim: d.Claim, Counted: ProportionalCounts(pr.Population, a.strata, ma), Floor: d.Floor, BAccept: cb}
+		if d.Measure.Ratio() {
+			proportional(pr.Population, b.strata, mb, out.Counted)
+		}
+		return out
+	}
+	var failed error
+	power := func(cd ClaimDesign) float64 {
+		p, err := cd.AcceptProbability(pr.Population, pr.Anticipated, alpha)
+		if err != nil && failed == nil {
+			failed = err
+		}
+		return p
+	}
+	start := at(ma, mb, d.BAccept)
+	if pw := power(start); failed != nil || pw >= target {
+		return start, pw, failed
+	}
+	type found struct {
+		cd    ClaimDesign
+		power float64
+	}
+	// numerator's side
+	best := found{start, power(start)}
+	var viaA, viaB *found
+	for m, top := ma+1, min(int(a.population(pr.Population)), 2*ma+100); m <= top && failed == nil; m++ {
+		cd := at(m, mb, d.BAccept)
+		if p := power(cd); p >= target {
+			viaA = &found{cd, p}
+			break
+		} else if p > best.power {
+			best = found{cd, p}
+		}
+	}
+	// denominator's side, with c_B climbed from the last one
+	cb := d.BAccept
+	for m, top := mb, min(int(b.population(pr.Population)), 2*mb+100); d.Measure.Ratio() && m <= top && failed == nil; m++ {
+		cur := found{at(ma, m, cb), 0}
+		cur.power = power(cur.cd)
+		for _, step := range []int{1, -1} {
+			for c := cb + step; c >= 0 && c <= m; c += step {
+				cd := at(ma, m, c)
+				p := power(cd)
+				if p <= cur.power {
+					break
+				}
+				cur, cb = found{cd, p}, c
+			}
+		}
+		if cur.power >= target {
+			viaB = &cur
+			break
+		}
+		if cur.power > best.power {
+			best = cur
+		}
+	}
+	if failed != nil {
+		return ClaimDesign{}, 0, failed
+	}
+	switch {
+	case viaA != nil && (viaB == nil || marginal(sample, viaA.cd.Counted) <= marginal(sample, viaB.cd.Counted)):
+		return viaA.cd, viaA.power, nil
+	case viaB != nil:
+		return viaB.cd, viaB.power, nil
+	}
+	return best.cd, best.power, nil
 }
 
 // fallbackDesign counts, on each side of the claim, the largest

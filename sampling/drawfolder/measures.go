@@ -14,6 +14,8 @@ type MeasuresInfo struct {
 	// Uniform is the labels a proportional sample would need for the
 	// claims the design is sized for.
 	Uniform int `json:"uniform"`
+	// Level is α, each claim's share of the family's risk δ.
+	Level float64 `json:"level"`
 }
 
 // MeasureClaimInfo is one claim's design.
@@ -27,6 +29,10 @@ type MeasureClaimInfo struct {
 	// Floor and BAccept are a ratio's b₀ and c_B (0 for a proportion).
 	Floor   int64 `json:"floor"`
 	BAccept int   `json:"b_accept"`
+	// ProducerRisk is the claim's exact chance of rejection at the
+	// composition the plan anticipates, on these strata with these counted
+	// items.
+	ProducerRisk float64 `json:"producer_risk"`
 	// Planned is false when the period's anticipated composition puts the
 	// claim at or above its ceiling, or no design meets it alone: the
 	// design is not sized for its producer's risk.
