@@ -15,8 +15,8 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/planfile"
 	"probity/sampling/demolog"
 	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
@@ -357,7 +357,7 @@ func demoLabel(sc demolog.Scenario, drawDir, path string, prefix int) (demolog.L
 // openDemoDraw opens a draw folder of the demo against the demo's plan,
 // as record and progress open it.
 func openDemoDraw(drawDir string) (*drawfolder.Folder, error) {
-	p, fp, err := plan.LoadForJudging(demoPlan)
+	p, fp, err := planfile.LoadForJudging(demoPlan)
 	if err != nil {
 		return nil, err
 	}

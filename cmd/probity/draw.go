@@ -13,6 +13,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/planfile"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
@@ -212,7 +213,7 @@ func (o *drawOptions) validate() error {
 
 // loadDrawPlan loads the plan and refuses a sizing-only one.
 func loadDrawPlan(path string) (*plan.File, string, error) {
-	p, fp, err := plan.Load(path)
+	p, fp, err := planfile.Load(path)
 	if err != nil {
 		return nil, "", err
 	}

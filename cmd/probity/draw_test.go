@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/planfile"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
@@ -235,11 +236,15 @@ func TestDrawBadInput(t *testing.T) {
 
 func TestDrawPopulationPlan(t *testing.T) {
 	dir := t.TempDir()
-	p, _, err := plan.Load(drawPlan)
+	p, _, err := planfile.Load(drawPlan)
 	if err != nil {
 		t.Fatal(err)
 	}
+	// a lot plan for the same inputs, sized as probity plan --population would
 	p.Inputs.Population = 5000
+	if p.Rule, p.Comparison, err = plan.Size(p.Inputs); err != nil {
+		t.Fatal(err)
+	}
 	b, _ := p.Marshal()
 	pp := filepath.Join(dir, "lot.yaml")
 	os.WriteFile(pp, b, 0o644)

@@ -296,6 +296,7 @@ func TestTrendBadInput(t *testing.T) {
 		{"lot plan mixed with stream plan", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
 			r.Plan.Model, r.Plan.Population = plan.ModelHypergeometric, 41250
+			trendRisks(r)
 			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
 		}, []string{"april.json: plan.model is hypergeometric here but binomial in " + trendMonth("2026-03") + " (period 2026-03): records of different classes of plan cannot share a trend",
 			"hint: a trend compares audits of one model, method, design, ceiling and confidence"}},
@@ -307,8 +308,15 @@ func TestTrendBadInput(t *testing.T) {
 		{"different ceilings", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
 			r.Plan.Ceiling = 0.03
+			trendRisks(r)
 			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
 		}, []string{"plan.ceiling is 0.03 here but 0.02"}},
+		{"edited rule", func(t *testing.T, dir string) []string {
+			r := trendLoadMonth(t, "2026-04")
+			r.Plan.SampleSize = 60
+			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
+		}, []string{"april.json line 25, field plan.consumer_risk: states 0.01648, but accepting at most 5 errors in 60 gives 0.9987",
+			"hint: the record's rule does not follow from its own inputs"}},
 		{"period shapes", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
 			r.Period = "2026-4"
@@ -526,4 +534,21 @@ func trendLabel(t *testing.T, worksheet string, truth map[string]string) []byte 
 	w := csv.NewWriter(&buf)
 	w.WriteAll(rows)
 	return buf.Bytes()
+}
+
+// trendRisks sets the consumer's and producer's risks of a record's fixed
+// plan to those of its (n, c) under its model, as a record of such a
+// plan would state them.
+func trendRisks(r *record.Record) {
+	p := &r.Plan
+	n, c := p.SampleSize, p.AcceptanceNumber
+	if N := p.Population; N > 0 {
+		p.ConsumerRisk = plan.HypergeometricCDF(c, N, plan.BadLotErrors(N, p.Ceiling), n)
+		pr := plan.HypergeometricSF(c, N, plan.GoodLotErrors(N, *p.Anticipated), n)
+		p.ProducerRisk = &pr
+		return
+	}
+	p.ConsumerRisk = plan.BinomialCDF(c, n, p.Ceiling)
+	pr := plan.BinomialSF(c, n, *p.Anticipated)
+	p.ProducerRisk = &pr
 }

@@ -23,6 +23,7 @@ import (
 	"probity/plan"
 	"probity/plan/agreement"
 	"probity/plan/inputerr"
+	"probity/plan/planfile"
 	"probity/plan/record"
 	"probity/plan/record/intake"
 	"probity/plan/verdict"
@@ -105,7 +106,7 @@ func Record(files Files, o Options) (*record.Record, error) {
 // worksheet (against the draw's, drawfolder.Folder.CheckSecond) and the
 // adjudications. Errors are *inputerr.Error values naming the file.
 func Read(f Files) (*Inputs, error) {
-	p, fp, err := plan.LoadForJudging(f.Plan)
+	p, fp, err := planfile.LoadForJudging(f.Plan)
 	if err != nil {
 		return nil, err
 	}

@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"probity/plan/inputerr"
+	"probity/plan/planfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/verdict"
@@ -52,7 +53,9 @@ func checkFingerprints(rep *Report, in Input, rec *record.Record) error {
 		}
 	}
 	if f.Plan != "" {
-		h, err := fileHash(f.Plan)
+		// the one loader: an edited plan is bad input, refused before
+		// anything is compared
+		_, h, err := planfile.Load(f.Plan)
 		if err != nil {
 			return err
 		}
