@@ -34,6 +34,7 @@ func (d *doc) provenanceSection(c *content) {
 		kvMono("Labels", digest(fp.Labels)),
 	}
 	d.drawTable(&table{title: "Data fingerprints", cols: []column{{w: 22}, {w: 78}}, rows: rows, keyFill: true, size: bodySize - 0.5})
+	d.chronology(c)
 
 	wording := "embedded set"
 	if o := c.tpl.Overridden(); len(o) > 0 {
@@ -77,4 +78,24 @@ func definition(c record.Candidate) string {
 		return "predicted label in log column " + c.Column
 	}
 	return "not recorded"
+}
+
+// chronology prints when the plan was made, the sample drawn and the
+// record issued, each with where its time came from; a time the operator
+// supplied is said to be one.
+func (d *doc) chronology(c *content) {
+	t := c.rec.Chronology
+	d.subheading("Chronology", 20)
+	if t == nil {
+		d.note("This record states no chronology: it was made before probity recorded when each step happened.")
+		return
+	}
+	d.note("When each step happened, in UTC, and where the time came from. The plan was made before the sample was " +
+		"drawn, and the sample drawn before this record was issued; probity checked this order when it issued the record.")
+	rows := [][]cell{
+		kv("Plan made", stampText(t.PlanCreated)),
+		kv("Sample drawn", stampText(t.Drawn)),
+		kv("Record issued", stampText(t.Issued)),
+	}
+	d.drawTable(&table{title: "Chronology", cols: []column{{w: 22}, {w: 78}}, rows: rows, keyFill: true, size: bodySize - 0.5})
 }

@@ -2,9 +2,11 @@ package plan
 
 import (
 	"fmt"
-	"probity/plan/inputerr"
 	"strconv"
 	"time"
+
+	"probity/plan/chrono"
+	"probity/plan/inputerr"
 )
 
 // Meta is what a plan file records besides its sizing: the tool, the time,
@@ -14,7 +16,9 @@ type Meta struct {
 	// ToolVersion is the probity version writing the plan.
 	ToolVersion string
 	// Created is when the plan was made; it is stored in UTC to the second.
-	Created time.Time
+	// CreatedFrom says where it came from (the clock, or the operator).
+	Created     time.Time
+	CreatedFrom chrono.Source
 	// Seed is the selection seed, used exactly as written (non-empty).
 	Seed string
 	// System and SystemVersion name the classifier (optional).
@@ -39,7 +43,8 @@ func Build(in Inputs, m Meta) (*File, error) {
 	f := &File{
 		Format:        FileFormat,
 		ToolVersion:   m.ToolVersion,
-		Created:       m.Created.UTC().Truncate(time.Second),
+		Created:       chrono.Second(m.Created),
+		CreatedFrom:   m.CreatedFrom,
 		System:        m.System,
 		SystemVersion: m.SystemVersion,
 		Seed:          m.Seed,

@@ -15,6 +15,7 @@ import (
 
 	"gopkg.in/yaml.v3"
 
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 )
 
@@ -30,8 +31,12 @@ type File struct {
 	Format int `yaml:"format"`
 	// ToolVersion is the probity version that wrote the plan.
 	ToolVersion string `yaml:"tool_version"`
-	// Created is when the plan was made (UTC).
-	Created time.Time `yaml:"created"`
+	// Created is when the plan was made (UTC, to the second), and
+	// CreatedFrom where that time came from: the system clock, or the
+	// operator who supplied it (unset in plans made before times had
+	// sources).
+	Created     time.Time     `yaml:"created"`
+	CreatedFrom chrono.Source `yaml:"created_from,omitempty"`
 	// System and SystemVersion name the classifier under audit (optional).
 	System        string `yaml:"system,omitempty"`
 	SystemVersion string `yaml:"system_version,omitempty"`
@@ -267,8 +272,11 @@ func syntaxError(src *Source, err error) error {
 func decodeError(src *Source, err error) error {
 	if ie, ok := inputerr.As(err); ok && ie.Field != "" {
 		field := "inputs." + ie.Field
-		if ie.Field == modelSpelling.field {
+		switch ie.Field {
+		case modelSpelling.field:
 			field = "rule." + ie.Field
+		case "source":
+			field = "created_from"
 		}
 		return src.Errorf(field, "%s", ie.Msg)
 	}

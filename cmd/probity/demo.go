@@ -124,7 +124,7 @@ func runDemo(d deps, o *demoOptions) error {
 	planRun, err := step("plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--producer-risk", "0.10",
 		"--thresholds", "defect_score:0.35,0.50,0.65", "--positive", demolog.Defect, "--negative", demolog.Sound,
 		"--require", "any", "--system", sc.System, "--system-version", sc.SystemVersion,
-		"--seed", demolog.PlanSeed, "--out", planPath)
+		"--seed", demolog.PlanSeed, "--date", demoTime(demolog.PlanCreated), "--out", planPath)
 	if err != nil {
 		return err
 	}
@@ -216,7 +216,7 @@ func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmd
 	if err := writeDemoFile(res.logPath, m.WriteLogGzip); err != nil {
 		return res, err
 	}
-	drawArgs := []string{"draw", "--plan", "plan.yaml", "--log", res.logPath, "--out", res.drawDir, "--period", m.Month,
+	drawArgs := []string{"draw", "--plan", "plan.yaml", "--log", res.logPath, "--out", res.drawDir, "--period", m.Month, "--date", demoTime(m.Drawn()),
 		"--strata", "section", "--spare", "2", "--show", "scan_ref,inspected_on,weld_type", "--quiet"}
 	if latest {
 		drawArgs = append(drawArgs, "--double", strconv.Itoa(demoDouble))
@@ -247,18 +247,18 @@ func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmd
 			return res, err
 		}
 	}
-	date := demolog.Clock.Format("2006-01-02")
-	if !latest {
-		date = demolog.Clock.AddDate(0, -1, 0).Format("2006-01-02")
-	}
 	recordArgs := []string{"record", "--plan", "plan.yaml", "--draw", res.drawDir, "--labels", res.labelsPath, "--out", res.recDir,
-		"--use", "safety", "--signoff", "signoff.yaml", "--sign-key", keyPath, "--date", date}
+		"--use", "safety", "--signoff", "signoff.yaml", "--sign-key", keyPath, "--date", demoTime(m.Issued())}
 	if res.secondPath != "" {
 		recordArgs = append(recordArgs, "--second", res.secondPath, "--adjudicated", res.adjudicatedPath)
 	}
 	res.record, err = step(recordArgs...)
 	return res, err
 }
+
+// demoTime writes a scenario time as the demo passes it to --date, so the
+// artifacts are the same on every run (and say the time was supplied).
+func demoTime(t time.Time) string { return t.UTC().Format(time.RFC3339) }
 
 // demoSecondLabels labels the draw's worksheet-second.csv as the second
 // labeler would and writes the adjudication of every disagreement.

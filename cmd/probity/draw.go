@@ -12,6 +12,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/plan"
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/plan/planfile"
 	"probity/sampling"
@@ -38,6 +39,7 @@ type drawOptions struct {
 	dedupe      string
 	double      int
 	period      string
+	date        string
 	force       bool
 	quiet       bool
 
@@ -135,6 +137,7 @@ Labels written into the worksheets since the draw are not differences.
 	fl.StringVar(&opts.dedupe, "dedupe", "", "with `first`: keep the first row of a repeated record id instead of refusing")
 	fl.IntVar(&opts.double, "double", 0, "the first `k` items get a second, independent label (worksheet-second.csv)")
 	fl.StringVar(&opts.period, "period", "", "draw a fresh sample for period `LABEL` (e.g. 2026-11) with the period seed")
+	fl.StringVar(&opts.date, "date", "", dateFlagUsage("the sample is drawn"))
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty output folder")
 	fl.BoolVarP(&opts.quiet, "quiet", "q", false, "no progress bar")
 	hookDrawSQL(d, cmd, opts) // --sql, --table, --selected: draw_sql.go
@@ -148,6 +151,9 @@ func (o *drawOptions) validate() error {
 	}
 	if o.logPath == "" {
 		return inputerr.Errorf("--log is required").WithHint("give the prediction log, e.g. --log predictions.csv.gz (- reads stdin)")
+	}
+	if err := parseDateFlag(o.date); err != nil {
+		return err
 	}
 	if o.check != "" {
 		if o.out != "" {
@@ -293,15 +299,36 @@ func runDraw(d deps, o *drawOptions) error {
 			in.NeymanSource = "band " + o.parsedBands[0].String() + " (p_h = min(m, 1 − m) at the interval midpoint m)"
 		}
 	}
+	drawn, err := drawTime(d, o, p)
+	if err != nil {
+		return err
+	}
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
 		return drawError(err)
 	}
+	f.Manifest.Drawn = &drawn
 	if err := drawfolder.Write(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: o.inputs()}); err != nil {
 		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
 	return nil
+}
+
+// drawTime is the time of the draw (the clock's, or --date's), refused
+// when it is before the plan was made: a sample is drawn from a plan
+// fixed before it.
+func drawTime(d deps, o *drawOptions, p *plan.File) (chrono.Stamp, error) {
+	drawn := stepTime(d, o.date)
+	created := chrono.Stamp{Time: chrono.Second(p.Created), Source: p.CreatedFrom}
+	if !drawn.Time.Before(created.Time) {
+		return drawn, nil
+	}
+	e := inputerr.Errorf("the chronology is broken: the sample would be drawn at %s, before its plan was made (%s, in %s)", drawn, created, o.planPath)
+	if o.date != "" {
+		return drawn, e.WithHint("give the true time of the draw with --date, or leave it out to take the time from the clock")
+	}
+	return drawn, e.WithHint("the plan states a creation time after this machine's clock: check the clock, and that the plan is the one made for this audit")
 }
 
 // inputs are the files the draw reads, which its output never replaces.
@@ -367,6 +394,9 @@ func writeDrawSummary(w io.Writer, dir string, f *drawfolder.Content) {
 		fmt.Fprintf(w, "repeated ids: %d later rows dropped (--dedupe first)\n", m.DuplicatesDropped)
 	}
 	fmt.Fprintf(w, "log sha256: %s (%d bytes)\n", m.Log.SHA256, m.Log.Bytes)
+	if m.Drawn != nil {
+		fmt.Fprintf(w, "drawn at %s\n", m.Drawn)
+	}
 	fmt.Fprintf(w, "give %s to the labelers; keep %s and %s\n",
 		filepath.Join(dir, drawfolder.WorksheetFile), filepath.Join(dir, drawfolder.LedgerFile), filepath.Join(dir, drawfolder.ManifestFile))
 }

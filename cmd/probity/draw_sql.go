@@ -326,10 +326,15 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 	if err := checkResultFlags(so.selected, c, o, so, res.Spec); err != nil {
 		return err
 	}
+	drawn, err := drawTime(d, o, p)
+	if err != nil {
+		return err
+	}
 	f, err := res.Folder(d.version)
 	if err != nil {
 		return drawError(err)
 	}
+	f.Manifest.Drawn = &drawn
 	if err := drawfolder.Write(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: []string{o.planPath, so.selected, so.counts}}); err != nil {
 		return drawError(err)
 	}

@@ -6,8 +6,10 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"probity/plan"
+	"probity/plan/chrono"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
@@ -96,6 +98,8 @@ func drawUnchecked(t *testing.T, fx *recFixture, planPath, name string) string {
 	if err != nil {
 		t.Fatal(err)
 	}
+	drawn := chrono.FromClock(time.Date(2026, 11, 30, 15, 0, 0, 0, time.UTC))
+	folder.Manifest.Drawn = &drawn
 	out := filepath.Join(fx.dir, name)
 	if err := drawfolder.Write(out, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)

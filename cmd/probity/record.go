@@ -6,12 +6,12 @@ import (
 	"fmt"
 	"os"
 	"strings"
-	"time"
 
 	"github.com/spf13/cobra"
 
 	"probity/pdfreport"
 	"probity/plan/agreement"
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
@@ -103,7 +103,7 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 	fl.StringVar(&opts.use, "use", "general", "declared use: "+strings.Join(templates.Uses(), ", "))
 	fl.StringVar(&opts.signKey, "sign-key", "", "private key from probity keygen; writes record.sig")
 	fl.BoolVar(&opts.allowIncomplete, "allow-incomplete", false, "count unlabeled and unsure items as errors for every candidate instead of refusing")
-	fl.StringVar(&opts.date, "date", "", "the record's date, YYYY-MM-DD (default: today, UTC)")
+	fl.StringVar(&opts.date, "date", "", dateFlagUsage("the record is issued"))
 	fl.StringVar(&opts.paper, "paper", "a4", "paper size of record.pdf: a4 or letter")
 	fl.StringVar(&opts.templatesDir, "templates", "", "folder of wording files overriding the built-in ones")
 	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
@@ -127,10 +127,8 @@ func (o *recordOptions) validate() error {
 	if !oneOf(o.paper, []string{"a4", "letter"}) {
 		return inputerr.Errorf("--paper %q is not a4 or letter", o.paper)
 	}
-	if o.date != "" {
-		if _, err := time.Parse("2006-01-02", o.date); err != nil {
-			return inputerr.Errorf("--date %q is not a date in the form YYYY-MM-DD", o.date).WithHint("for example --date 2026-03-31")
-		}
+	if err := parseDateFlag(o.date); err != nil {
+		return err
 	}
 	u, err := verdict.ParseUnequalBound(o.bound)
 	if err != nil {
@@ -182,14 +180,10 @@ func runRecord(d deps, o *recordOptions) error {
 	if err != nil {
 		return err
 	}
-	date := o.date
-	if date == "" {
-		date = d.now().UTC().Format("2006-01-02")
-	}
 	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated}
 	rec, err := assemble.Record(files, assemble.Options{
 		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
-		Bound: o.unequal, Use: o.use, Date: date, Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
+		Bound: o.unequal, Use: o.use, Issued: stepTime(d, o.date), Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
 	})
 	if err != nil {
 		return recordHints(err, o)
@@ -226,8 +220,17 @@ func recordHints(err error, o *recordOptions) error {
 			return inputerr.SetHint(err, inputerr.HintOf(err)+" and pass --adjudicated FILE, "+fix)
 		}
 		return inputerr.SetHint(err, inputerr.HintOf(err)+", "+fix)
+	case errors.Is(err, assemble.ErrChronology) && o.date != "" && issuedTooEarly(err):
+		return inputerr.SetHint(err, "--date "+o.date+" is not a time this record can be issued at: a record is issued after its sample was drawn; leave --date out to take the time from the clock")
 	}
 	return err
+}
+
+// issuedTooEarly reports whether a broken chronology is the record's issue
+// time (not the draw's).
+func issuedTooEarly(err error) bool {
+	var oe *chrono.OrderError
+	return errors.As(err, &oe) && oe.Step == "issued"
 }
 
 // renderRecord encodes record.json, lays out record.pdf and, with a key,

@@ -431,7 +431,7 @@ func TestTrendOfRealRecords(t *testing.T) {
 	planPath := at("plan.yaml")
 	if _, e, code := trendRun(t, "plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.005",
 		"--candidate", "router-a=pred_a", "--candidate", "router-b=pred_b", "--classes", "billing,tech,account",
-		"--system", "ticket-router", "--system-version", "4.2", "--seed", "5be1a2c0f77e4c1d9a0b3e6f28d4c7aa", "--out", planPath); code != exitOK {
+		"--system", "ticket-router", "--system-version", "4.2", "--seed", "5be1a2c0f77e4c1d9a0b3e6f28d4c7aa", "--date", "2025-12-15", "--out", planPath); code != exitOK {
 		t.Fatalf("plan: exit %d: %s", code, e)
 	}
 	classes := []string{"billing", "tech", "account"}
@@ -456,7 +456,7 @@ func TestTrendOfRealRecords(t *testing.T) {
 			t.Fatal(err)
 		}
 		drawDir := at("audits", m, "draw")
-		if _, e, code := trendRun(t, "draw", "--plan", planPath, "--log", logPath, "--period", m, "--out", drawDir); code != exitOK {
+		if _, e, code := trendRun(t, "draw", "--plan", planPath, "--log", logPath, "--period", m, "--date", fmt.Sprintf("2026-%02d-01T07:00:00Z", mi+2), "--out", drawDir); code != exitOK {
 			t.Fatalf("draw %s: exit %d: %s", m, code, e)
 		}
 		labels := trendLabel(t, filepath.Join(drawDir, "worksheet.csv"), truth)

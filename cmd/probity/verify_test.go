@@ -42,7 +42,7 @@ func TestVerifyAllGood(t *testing.T) {
 		"record.json is a canonical record", "record.json: signature valid", "record.pdf: signature valid",
 		"signed with the trusted key", "SHA-256 matches the record's plan fingerprint", "labels fingerprint",
 		"judgement recomputed from the inputs: every field of record.json agrees",
-		"sample drawn again from " + fx.logPath, "record.pdf is exactly the rendering of record.json (a4)", "verified: 12 checks passed",
+		"sample drawn again from " + fx.logPath, "record.pdf is exactly the rendering of record.json (a4)", "chronology in order: plan created 2026-11-30T09:00:00Z (system clock), sample drawn 2026-11-30T15:00:00Z (system clock), record issued 2026-12-01T00:00:00Z (supplied by the operator)", "verified: 13 checks passed",
 	} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("stdout lacks %q:\n%s", want, stdout)
@@ -82,7 +82,7 @@ func TestTamperingIsDetected(t *testing.T) {
 	swapped := copyDir("swapped")
 	other := newRecFixture(t, true, 0)
 	otherRec := filepath.Join(other.dir, "rec")
-	runProbity(t, "record", "--plan", other.planPath, "--draw", other.draw, "--labels", other.labels(t, "l.csv", nil), "--out", otherRec, "--date", "2026-11-02")
+	runProbity(t, "record", "--plan", other.planPath, "--draw", other.draw, "--labels", other.labels(t, "l.csv", nil), "--out", otherRec, "--date", "2026-12-02")
 	writeFile(t, filepath.Join(swapped, "record.pdf"), mustRead(t, filepath.Join(otherRec, "record.pdf")))
 
 	unsignedSwap := filepath.Join(fx.dir, "unsigned-swap")

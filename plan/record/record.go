@@ -5,7 +5,10 @@
 // new.
 package record
 
-import "probity/plan"
+import (
+	"probity/plan"
+	"probity/plan/chrono"
+)
 
 // Format is the version of the record.json layout written by this code.
 const Format = 1
@@ -30,8 +33,13 @@ type Record struct {
 	// RecordID is the short fingerprint (first 12 hex digits of the
 	// SHA-256 of the judged inputs) printed on every PDF page.
 	RecordID string `json:"record_id"`
-	// Date is the record's date, YYYY-MM-DD (from --date or the clock).
+	// Date is the record's date, YYYY-MM-DD: the day it was issued (UTC).
 	Date string `json:"date"`
+	// Chronology states when the plan was made, the sample drawn and the
+	// record issued, each with where its time came from (the system
+	// clock, or the operator who supplied it); they are in that order.
+	// Nil in records made before records were timed.
+	Chronology *chrono.Chronology `json:"chronology,omitempty"`
 	// Period is the audited period label ("" when none).
 	Period        string `json:"period"`
 	System        string `json:"system"`

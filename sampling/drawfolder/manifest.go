@@ -7,6 +7,8 @@ import (
 	"fmt"
 	"io"
 	"os"
+
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 )
 
@@ -19,6 +21,9 @@ const ManifestFormat = 1
 type Manifest struct {
 	Format      int    `json:"format"`
 	ToolVersion string `json:"tool_version"`
+	// Drawn is when the sample was drawn (UTC, to the second) and where
+	// that time came from; nil in a folder drawn before draws were timed.
+	Drawn *chrono.Stamp `json:"drawn"`
 	// PlanFingerprint is the SHA-256 of the plan file's bytes.
 	PlanFingerprint string `json:"plan_fingerprint"`
 	// Seed is the plan's seed; Period and PeriodSeed are set for a

@@ -7,7 +7,9 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"time"
 
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/plan/planfile"
 	"probity/plan/record"
@@ -127,7 +129,7 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	files := in.Files
 	o := assemble.Options{
 		AllowIncomplete: rec.Deviations.AllowIncomplete, Bound: verdict.UnequalBoundOf(rec.Method.Bound),
-		Use: rec.Use, Date: rec.Date, Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
+		Use: rec.Use, Issued: issued(rec), Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
 	}
 	if lq := rec.LabelQuality; lq != nil {
 		if files.Second == "" {
@@ -166,4 +168,15 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	}
 	rep.add(CheckJudgement, Failed, "%s differs from the judgement recomputed from the inputs: %s", record.JSONFile, strings.Join(listed, "; "))
 	return nil
+}
+
+// issued is the issue time a record states: its chronology's, or, for a
+// record made before records were timed, the start of its date (UTC) with
+// no source.
+func issued(rec *record.Record) chrono.Stamp {
+	if rec.Chronology != nil {
+		return rec.Chronology.Issued
+	}
+	t, _ := time.Parse(time.DateOnly, rec.Date)
+	return chrono.Stamp{Time: t}
 }
