@@ -4,6 +4,7 @@ import (
 	"strconv"
 	"strings"
 
+	"probity/plan/chrono"
 	"probity/plan/record"
 )
 
@@ -34,6 +35,7 @@ func (d *doc) provenanceSection(c *content) {
 		kvMono("Labels", digest(fp.Labels)),
 	}
 	d.drawTable(&table{title: "Data fingerprints", cols: []column{{w: 22}, {w: 78}}, rows: rows, keyFill: true, size: bodySize - 0.5})
+	d.completeness(c)
 	d.chronology(c)
 
 	wording := "embedded set"
@@ -98,4 +100,33 @@ func (d *doc) chronology(c *content) {
 		kv("Record issued", stampText(t.Issued)),
 	}
 	d.drawTable(&table{title: "Chronology", cols: []column{{w: 22}, {w: 78}}, rows: rows, keyFill: true, size: bodySize - 0.5})
+}
+
+// completeness prints what the log's time column said about the period:
+// the first and last time in scope, the days checked and those without a
+// row (also a caveat on page 1), the rows dated outside them. Nothing
+// when the draw read no time column.
+func (d *doc) completeness(c *content) {
+	k := c.rec.Completeness
+	if k == nil {
+		return
+	}
+	d.subheading("Data completeness", 24)
+	d.note("Read from the log's time column when the sample was drawn, over every row in scope. Times without an offset are " +
+		"read as UTC; days are UTC calendar days.")
+	of := map[string]string{chrono.RangePeriod: "the period", chrono.RangeDeclared: "declared with the draw", chrono.RangeRows: "first to last row"}[k.RangeOf]
+	empty := "none"
+	if k.EmptyDayCount > 0 {
+		empty = itoa(k.EmptyDayCount) + ": " + strings.Join(k.EmptyDays, ", ")
+	}
+	rows := [][]cell{
+		kv("Time column", k.TimeColumn),
+		kv("Rows read", strconv.FormatInt(k.Rows, 10)),
+		kv("First time", k.First.UTC().Format("2006-01-02 15:04:05")+" UTC"),
+		kv("Last time", k.Last.UTC().Format("2006-01-02 15:04:05")+" UTC"),
+		kv("Days checked", k.From+" to "+k.To+" ("+itoa(k.Days)+" days, "+of+")"),
+		kv("Days without rows", empty),
+		kv("Rows outside", strconv.FormatInt(k.RowsBefore, 10)+" before, "+strconv.FormatInt(k.RowsAfter, 10)+" after"),
+	}
+	d.drawTable(&table{title: "Data completeness", cols: []column{{w: 22}, {w: 78}}, rows: rows, keyFill: true, size: bodySize - 0.5})
 }

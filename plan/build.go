@@ -28,6 +28,8 @@ type Meta struct {
 	// Candidates are declared in testing order; when present their number
 	// is M and must agree with Inputs.CandidateCount.
 	Candidates []Candidate
+	// TimeColumn is the log's time column, when declared (File.TimeColumn).
+	TimeColumn string
 }
 
 // Build sizes the plan for the inputs (see Size) and assembles the plan
@@ -53,6 +55,7 @@ func Build(in Inputs, m Meta) (*File, error) {
 		Comparison:    cmp,
 		Classes:       m.Classes,
 		Candidates:    m.Candidates,
+		TimeColumn:    m.TimeColumn,
 	}
 	if err := f.validate(); err != nil {
 		return nil, inputerr.Errorf("%w", err)

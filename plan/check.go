@@ -279,6 +279,9 @@ func (f *File) validate() error {
 	if err := f.validateClasses(); err != nil {
 		return err
 	}
+	if strings.TrimSpace(f.TimeColumn) != f.TimeColumn {
+		return fieldErr("time_column", "%q has leading or trailing spaces", f.TimeColumn)
+	}
 	return f.validateCandidates()
 }
 

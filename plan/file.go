@@ -58,6 +58,10 @@ type File struct {
 	// declared (the testing order under fixed-sequence). Empty for a
 	// sizing-only plan.
 	Candidates []Candidate `yaml:"candidates,omitempty"`
+	// TimeColumn is the log column that dates each decision, declared so
+	// that every draw reads it and records the log's completeness (days
+	// of the period without a row); "" when not declared.
+	TimeColumn string `yaml:"time_column,omitempty"`
 	// Sequential holds the boundaries of a sequential design (nil for a
 	// fixed (n, c) plan).
 	Sequential *SequentialRule `yaml:"sequential,omitempty"`

@@ -142,7 +142,7 @@ func runDemo(d deps, o *demoOptions) error {
 	planRun, err := step("plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--producer-risk", "0.10",
 		"--thresholds", "defect_score:0.35,0.50,0.65", "--positive", demolog.Defect, "--negative", demolog.Sound,
 		"--require", "any", "--system", sc.System, "--system-version", sc.SystemVersion,
-		"--seed", demolog.PlanSeed, "--date", demoTime(demolog.PlanCreated), "--out", planPath)
+		"--seed", demolog.PlanSeed, "--time-column", demolog.TimeColumn, "--date", demoTime(demolog.PlanCreated), "--out", planPath)
 	if err != nil {
 		return err
 	}

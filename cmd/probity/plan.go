@@ -29,6 +29,7 @@ type planOptions struct {
 	positive, negative                    string
 	system, systemVersion                 string
 	date                                  string
+	timeColumn                            string
 
 	// set by validate
 	in          plan.Inputs
@@ -119,6 +120,7 @@ the time and the tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.system, "system", "", "the `NAME` of the classifier under audit")
 	fl.StringVar(&o.systemVersion, "system-version", "", "the `VERSION` of the classifier under audit")
 	fl.StringVar(&o.date, "date", "", dateFlagUsage("the plan was made"))
+	fl.StringVar(&o.timeColumn, "time-column", "", "the log `COLUMN` that dates each decision: every draw reads it and records the days of the period without rows")
 	return cmd
 }
 
@@ -147,6 +149,9 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	}
 	if err := parseDateFlag(o.date); err != nil {
 		return err
+	}
+	if strings.TrimSpace(o.timeColumn) != o.timeColumn {
+		return inputerr.Errorf("--time-column %q has leading or trailing spaces", o.timeColumn)
 	}
 	if o.ceiling == "" {
 		return inputerr.Errorf("--ceiling is required: the error rate that must not be exceeded").WithHint("e.g. --ceiling 0.02 for 2%")
@@ -396,7 +401,7 @@ func runPlan(d deps, o *planOptions) error {
 	f, err := plan.Build(o.in, plan.Meta{
 		ToolVersion: d.version, Created: created.Time, CreatedFrom: created.Source, Seed: seed,
 		System: o.system, SystemVersion: o.systemVersion,
-		Classes: o.classesList, Candidates: o.declared,
+		Classes: o.classesList, Candidates: o.declared, TimeColumn: o.timeColumn,
 	})
 	if err != nil {
 		return planInputError(err)

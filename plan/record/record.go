@@ -61,9 +61,14 @@ type Record struct {
 	Use  string   `json:"use"`
 	Plan PlanInfo `json:"plan"`
 	// Fingerprints are SHA-256 digests of the inputs.
-	Fingerprints Fingerprints   `json:"fingerprints"`
-	Candidates   []Candidate    `json:"candidates"`
-	Strata       []StratumCount `json:"strata"`
+	Fingerprints Fingerprints `json:"fingerprints"`
+	// Completeness is what the log's time column said about the period
+	// when the sample was drawn (the manifest's): the first and last time
+	// and the days without a row. Nil, and absent, when the draw read no
+	// time column.
+	Completeness *chrono.Completeness `json:"completeness,omitempty"`
+	Candidates   []Candidate          `json:"candidates"`
+	Strata       []StratumCount       `json:"strata"`
 	// OC is the plan's operating-characteristic curve, as plotted.
 	OC         []OCPoint  `json:"oc"`
 	Deviations Deviations `json:"deviations"`
@@ -108,6 +113,9 @@ const (
 	// judged without a measure of label error (no double labeling, or no
 	// doubled item labeled by both).
 	CaveatLabelErrorUnmeasured = "label-error-not-measured"
+	// CaveatIncompletePeriod: the log's time column shows days of the
+	// period without a row, or rows dated outside it (see Completeness).
+	CaveatIncompletePeriod = "incomplete-period"
 )
 
 // Caveat is a finding that changes what a verdict means.

@@ -246,6 +246,11 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 		return nil, err
 	}
 	rec.Caveats = caveats(rec)
+	if rec.Completeness = in.Folder.Manifest.Completeness; rec.Completeness != nil {
+		if cv, ok := completenessCaveat(rec.Completeness); ok {
+			rec.Caveats = append(rec.Caveats, cv)
+		}
+	}
 	rec.Normalize()
 	if rec.RecordID, err = record.ID(rec); err != nil {
 		return nil, err
