@@ -34,6 +34,9 @@ func (d *doc) provenanceSection(c *content) {
 		kvMono("Worksheet", digest(fp.Worksheet)),
 		kvMono("Labels", digest(fp.Labels)),
 	}
+	if fp.Trail != "" {
+		rows = append(rows, kvMono("Label trail", fp.Trail))
+	}
 	d.drawTable(&table{title: "Data fingerprints", cols: []column{{w: 22}, {w: 78}}, rows: rows, keyFill: true, size: bodySize - 0.5})
 	d.completeness(c)
 	d.chronology(c)
@@ -97,8 +100,11 @@ func (d *doc) chronology(c *content) {
 	rows := [][]cell{
 		kv("Plan made", stampText(t.PlanCreated)),
 		kv("Sample drawn", stampText(t.Drawn)),
-		kv("Record issued", stampText(t.Issued)),
 	}
+	if l := t.Labeled; l != nil {
+		rows = append(rows, kv("Labeled", l.First.UTC().Format("2006-01-02 15:04:05")+" to "+l.Last.UTC().Format("2006-01-02 15:04:05")+" UTC (label trail)"))
+	}
+	rows = append(rows, kv("Record issued", stampText(t.Issued)))
 	d.drawTable(&table{title: "Chronology", cols: []column{{w: 22}, {w: 78}}, rows: rows, keyFill: true, size: bodySize - 0.5})
 }
 

@@ -26,6 +26,9 @@ type deps struct {
 	stdoutIsTerminal bool
 	// version is the tool version written into every artifact.
 	version string
+	// stop ends a command that serves until stopped (label); nil in a
+	// real process, which a signal ends (exitOnSignal).
+	stop <-chan struct{}
 	// getenv reads an environment variable (nil: none is set).
 	getenv func(string) string
 	// readPassword asks for a secret on the terminal without echoing it,

@@ -26,6 +26,7 @@ type recordOptions struct {
 	planPath        string
 	drawDir         string
 	labels          string
+	trail           string
 	out             string
 	signoff         string
 	use             string
@@ -51,7 +52,7 @@ type recordOptions struct {
 func newRecordCommand(d deps) *cobra.Command {
 	opts := &recordOptions{}
 	cmd := &cobra.Command{
-		Use:   "record --plan PLAN.yaml --draw DIR --labels WORKSHEET.csv --out RECDIR",
+		Use:   "record --plan PLAN.yaml --draw DIR (--labels WORKSHEET.csv | --trail TRAIL) --out RECDIR",
 		Short: "Judge the candidates from the labels and write the acceptance record",
 		Long: `record checks the labeled worksheet against the plan and the draw folder,
 judges every candidate and writes the acceptance record into RECDIR:
@@ -77,6 +78,14 @@ labeling is refused unless --allow-incomplete, which counts every item left
 unlabeled or unsure as an error for every candidate and says so in the record.
 
 ` + labelCellHelp + `
+
+Labels given on the labeling page (probity label) are in the draw folder's
+audit trail, label-trail.jsonl: pass it with --trail, in place of --labels
+(and of --second when it holds second labels). record checks its hash chain
+and that it belongs to this draw, derives the labeled worksheets from it,
+fingerprints it, and states on the record who labeled, the first and last
+label time and how many labels were changed. A worksheet passed beside the
+trail must be the one the trail gives, byte for byte.
 
 A self-weighting sample is judged by the plan's rule (accept when errors ≤ c),
 with the exact Clopper–Pearson bound (or the exact hypergeometric bound for a
@@ -118,6 +127,7 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 	fl.StringVar(&opts.planPath, "plan", "", "the plan file the sample was drawn from")
 	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv, worksheet.csv)")
 	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet")
+	fl.StringVar(&opts.trail, "trail", "", "the label trail of probity label (label-trail.jsonl in the draw folder), in place of --labels")
 	fl.StringVar(&opts.out, "out", "", "the record folder to write (must not exist or be empty)")
 	fl.StringVar(&opts.signoff, "signoff", "", "sign-off file (YAML: prepared/reviewed/approved with name, title, date, meaning)")
 	fl.StringVar(&opts.use, "use", "general", "declared use: "+strings.Join(templates.Uses(), ", "))
@@ -138,10 +148,13 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 
 // validate checks the flags that need no file.
 func (o *recordOptions) validate() error {
-	for _, f := range []struct{ name, v string }{{"plan", o.planPath}, {"draw", o.drawDir}, {"labels", o.labels}, {"out", o.out}} {
+	for _, f := range []struct{ name, v string }{{"plan", o.planPath}, {"draw", o.drawDir}, {"out", o.out}} {
 		if f.v == "" {
 			return inputerr.Errorf("--%s is required", f.name).WithHint("see 'probity record --help'")
 		}
+	}
+	if o.labels == "" && o.trail == "" {
+		return inputerr.Errorf("--labels or --trail is required").WithHint("pass the labeled worksheet, or the label trail of probity label")
 	}
 	if !oneOf(o.use, templates.Uses()) {
 		return inputerr.Errorf("--use %q is not one of %s", o.use, strings.Join(templates.Uses(), ", ")).WithHint("pick the use the classifier's decisions serve")
@@ -174,7 +187,7 @@ func (o *recordOptions) validate() error {
 		return inputerr.Errorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
 	}
 	o.unequal = u
-	return o.quality.validate()
+	return o.quality.validate(o.trail != "")
 }
 
 func oneOf(v string, list []string) bool {
@@ -216,7 +229,7 @@ func runRecord(d deps, o *recordOptions) error {
 	if err != nil {
 		return err
 	}
-	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated}
+	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated, Trail: o.trail}
 	rec, err := assemble.Record(files, assemble.Options{
 		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
 		Bound: o.unequal, Use: o.use, Issued: stepTime(d, o.date), Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
@@ -258,7 +271,7 @@ func recordHints(err error, o *recordOptions) error {
 		}
 		return inputerr.SetHint(err, inputerr.HintOf(err)+", "+fix)
 	case errors.Is(err, assemble.ErrChronology) && o.date != "" && issuedTooEarly(err):
-		return inputerr.SetHint(err, "--date "+o.date+" is not a time this record can be issued at: a record is issued after its sample was drawn; leave --date out to take the time from the clock")
+		return inputerr.SetHint(err, "--date "+o.date+" is not a time this record can be issued at: a record is issued after its sample was drawn and labeled; leave --date out to take the time from the clock")
 	}
 	return err
 }
@@ -267,7 +280,7 @@ func recordHints(err error, o *recordOptions) error {
 // time (not the draw's).
 func issuedTooEarly(err error) bool {
 	var oe *chrono.OrderError
-	return errors.As(err, &oe) && oe.Step == "issued"
+	return errors.As(err, &oe) && (oe.Step == "issued" || oe.Step == "labeled last")
 }
 
 // renderRecord encodes record.json, lays out record.pdf and, with a key,
@@ -306,6 +319,9 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 			fmt.Sprintf("%.4f", c.Estimate), fmt.Sprintf("%.4f", c.UpperBound), c.Reason)
 	}
 	fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
+	if t := rec.LabelTrail; t != nil {
+		fmt.Fprintf(w, "labels from the trail: %d events by %s, %s to %s, %d changed\n", t.Events, strings.Join(t.Labelers, ", "), t.FirstLabel, t.LastLabel, t.Changed)
+	}
 	for _, c := range rec.Caveats {
 		fmt.Fprintf(w, "caveat: %s\n", c.Text)
 	}

@@ -51,9 +51,10 @@ the judgement uses that label. Without a row the record is refused, unless
 every candidate. The same person giving both labels of an item is a warning,
 an error with --strict.`
 
-// validate checks the flags that only make sense with --second.
-func (o labelQualityOptions) validate() error {
-	if o.second != "" {
+// validate checks the flags that only make sense with --second (or a
+// label trail, which may hold the second labels).
+func (o labelQualityOptions) validate(trail bool) error {
+	if o.second != "" || trail {
 		return nil
 	}
 	var given []string

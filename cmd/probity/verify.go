@@ -25,6 +25,8 @@ type verifyOptions struct {
 	// adjudication file of a record judged on double labels.
 	second      string
 	adjudicated string
+	// trail is the label trail a record's labels were derived from.
+	trail string
 	// templatesDir is the wording record.pdf was rendered with.
 	templatesDir string
 }
@@ -33,7 +35,7 @@ type verifyOptions struct {
 func newVerifyCommand(d deps) *cobra.Command {
 	opts := &verifyOptions{}
 	cmd := &cobra.Command{
-		Use:   "verify RECDIR [--pub KEY.pub] [--signers FILE] [--plan PLAN.yaml] [--draw DIR] [--labels WORKSHEET.csv] [--log FILE]",
+		Use:   "verify RECDIR [--pub KEY.pub] [--signers FILE] [--plan PLAN.yaml] [--draw DIR] [--labels WORKSHEET.csv | --trail TRAIL] [--log FILE]",
 		Short: "Authenticate a record's signatures and recompute it from its inputs",
 		Long: `verify checks an acceptance record folder and prints each check with its
 outcome. It says "verified" (exit 0) only when the record is authenticated
@@ -60,6 +62,9 @@ and every check it ran passed:
     record holds; given all three, the judgement is recomputed and compared
     with record.json field by field (a record judged on double labels also
     needs --second and, if it had one, --adjudicated);
+  - with --trail (a record made from a label trail): the trail's SHA-256
+    is the record's, its hash chain holds, it belongs to the draw, and the
+    labeled worksheets derived from it again give the same judgement;
   - with --log (and --plan, --draw): the sample is drawn again from the log
     and compared with the draw folder, so the items labeled are exactly the
     ones chance picked.
@@ -83,8 +88,8 @@ input.`,
 			return nil
 		},
 		PreRunE: func(cmd *cobra.Command, args []string) error {
-			if opts.adjudicated != "" && opts.second == "" {
-				return inputerr.Errorf("--adjudicated needs --second").WithHint("pass the labeled worksheet-second.csv the record was made with")
+			if opts.adjudicated != "" && opts.second == "" && opts.trail == "" {
+				return inputerr.Errorf("--adjudicated needs --second or --trail").WithHint("pass the labeled worksheet-second.csv or the label trail the record was made with")
 			}
 			if opts.logPath != "" && (opts.drawDir == "" || opts.planPath == "") {
 				return inputerr.Errorf("--log needs --plan and --draw").WithHint("the sample is drawn again from the log with the plan's seed and the draw folder's settings")
@@ -105,6 +110,7 @@ input.`,
 	fl.StringVar(&opts.logPath, "log", "", "the prediction log, to draw the sample again")
 	fl.StringVar(&opts.second, "second", "", "the labeled second worksheet of a record judged on double labels, to check and recompute from")
 	fl.StringVar(&opts.adjudicated, "adjudicated", "", "the adjudication file of such a record, to check and recompute from")
+	fl.StringVar(&opts.trail, "trail", "", "the label trail (label-trail.jsonl in the draw folder) the record's labels were derived from, to check and recompute from")
 	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder the record was made with, to re-render record.pdf")
 	return cmd
 }
@@ -112,7 +118,7 @@ input.`,
 func runVerify(d deps, o *verifyOptions) error {
 	in := verification.Input{
 		Dir:          o.dir,
-		Files:        assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.second, Adjudications: o.adjudicated},
+		Files:        assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.second, Adjudications: o.adjudicated, Trail: o.trail},
 		Log:          o.logPath,
 		TemplatesDir: o.templatesDir,
 		ToolVersion:  d.version,
@@ -151,7 +157,7 @@ func runVerify(d deps, o *verifyOptions) error {
 
 // verifyNames are the flags verify and trend take each input from.
 var verifyNames = verification.Names{TrustedKey: "--pub", Signers: "--signers", Templates: "--templates", Plan: "--plan", Draw: "--draw",
-	Labels: "--labels", Log: "--log", Second: "--second", Adjudications: "--adjudicated"}
+	Labels: "--labels", Log: "--log", Second: "--second", Adjudications: "--adjudicated", Trail: "--trail"}
 
 // loadTrust reads the trusted keys and the signers file, with the clock.
 func loadTrust(d deps, pubs []string, signers string) (verification.Trust, error) {

@@ -133,11 +133,30 @@ func ParseSupplied(s string) (time.Time, error) {
 }
 
 // Chronology is the time line a record states: when the plan was made,
-// when the sample was drawn, and when the record was issued.
+// when the sample was drawn, when it was labeled (when a label trail
+// says), and when the record was issued.
 type Chronology struct {
 	PlanCreated Stamp `json:"plan_created"`
 	Drawn       Stamp `json:"drawn"`
-	Issued      Stamp `json:"issued"`
+	// Labeled is the span of the label trail's label events (nil without
+	// a trail, or with no event).
+	Labeled *Span `json:"labeled,omitempty"`
+	Issued  Stamp `json:"issued"`
+}
+
+// Span is when a step that takes time began and ended, UTC to the second
+// (read from the clock of the machine that recorded it).
+type Span struct {
+	First time.Time `json:"first"`
+	Last  time.Time `json:"last"`
+}
+
+// String is "2026-12-01T09:30:03Z to 2026-12-01T11:02:41Z".
+func (s *Span) String() string {
+	if s == nil {
+		return "not stated"
+	}
+	return Format(s.First) + " to " + Format(s.Last)
 }
 
 // OrderError is a chronology out of order, or missing a time: it names all
@@ -164,22 +183,37 @@ func (e *OrderError) Error() string {
 		}
 	case "plan created":
 		what = "the plan's creation time is not stated"
+	case "labeled":
+		what = "labeling began before the sample was drawn"
+	case "labeled last":
+		what = "the record is issued before labeling ended"
 	}
-	return fmt.Sprintf("the chronology is broken: %s (plan created %s, sample drawn %s, record issued %s)",
-		what, e.C.PlanCreated, e.C.Drawn, e.C.Issued)
+	labeled := ""
+	if e.C.Labeled != nil {
+		labeled = ", labeled " + e.C.Labeled.String()
+	}
+	return fmt.Sprintf("the chronology is broken: %s (plan created %s, sample drawn %s%s, record issued %s)",
+		what, e.C.PlanCreated, e.C.Drawn, labeled, e.C.Issued)
 }
 
 // Check reports whether the plan was created no later than the sample was
-// drawn, and the sample drawn no later than the record was issued, every
-// time stated: nil, or an *OrderError.
+// drawn, the sample drawn no later than the first label (with a labeling
+// span), the last label no later than the record was issued and the
+// sample drawn no later than that, every time stated: nil, or an
+// *OrderError whose Step is "plan created", "drawn", "labeled", "labeled
+// last" or "issued".
 func (c Chronology) Check() error {
 	switch {
 	case c.PlanCreated.IsZero():
 		return &OrderError{Step: "plan created", C: c}
 	case c.Drawn.IsZero() || c.Drawn.Time.Before(c.PlanCreated.Time):
 		return &OrderError{Step: "drawn", C: c}
+	case c.Labeled != nil && c.Labeled.First.Before(c.Drawn.Time):
+		return &OrderError{Step: "labeled", C: c}
 	case c.Issued.IsZero() || c.Issued.Time.Before(c.Drawn.Time):
 		return &OrderError{Step: "issued", C: c}
+	case c.Labeled != nil && c.Issued.Time.Before(c.Labeled.Last):
+		return &OrderError{Step: "labeled last", C: c}
 	}
 	return nil
 }

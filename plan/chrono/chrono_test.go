@@ -30,7 +30,12 @@ func TestParseSupplied(t *testing.T) {
 
 func TestCheckOrder(t *testing.T) {
 	day := func(d int) Stamp { return FromClock(time.Date(2026, 11, d, 9, 0, 0, 0, time.UTC)) }
-	ok := []Chronology{{day(1), day(2), day(3)}, {day(1), day(1), day(1)}}
+	span := func(a, b int) *Span { return &Span{First: day(a).Time, Last: day(b).Time} }
+	ok := []Chronology{
+		{PlanCreated: day(1), Drawn: day(2), Issued: day(3)},
+		{PlanCreated: day(1), Drawn: day(1), Issued: day(1)},
+		{PlanCreated: day(1), Drawn: day(2), Labeled: span(2, 3), Issued: day(3)},
+	}
 	for _, c := range ok {
 		if err := c.Check(); err != nil {
 			t.Errorf("%+v: %v", c, err)
@@ -41,10 +46,12 @@ func TestCheckOrder(t *testing.T) {
 		step string
 	}{
 		{Chronology{Drawn: day(2), Issued: day(3)}, "plan created"},
-		{Chronology{day(2), day(1), day(3)}, "drawn"},
-		{Chronology{day(1), Stamp{}, day(3)}, "drawn"},
-		{Chronology{day(1), day(3), day(2)}, "issued"},
-		{Chronology{day(1), day(2), Stamp{}}, "issued"},
+		{Chronology{PlanCreated: day(2), Drawn: day(1), Issued: day(3)}, "drawn"},
+		{Chronology{PlanCreated: day(1), Issued: day(3)}, "drawn"},
+		{Chronology{PlanCreated: day(1), Drawn: day(3), Issued: day(2)}, "issued"},
+		{Chronology{PlanCreated: day(1), Drawn: day(2)}, "issued"},
+		{Chronology{PlanCreated: day(1), Drawn: day(3), Labeled: span(2, 4), Issued: day(5)}, "labeled"},
+		{Chronology{PlanCreated: day(1), Drawn: day(2), Labeled: span(3, 5), Issued: day(4)}, "labeled last"},
 	} {
 		var oe *OrderError
 		if err := tc.c.Check(); !errors.As(err, &oe) || oe.Step != tc.step || !strings.Contains(err.Error(), "plan created ") {

@@ -108,6 +108,7 @@ type Names struct {
 	Templates               string
 	Plan, Draw, Labels, Log string
 	Second, Adjudications   string
+	Trail                   string
 }
 
 // or returns name, or words when name is empty.
@@ -127,6 +128,7 @@ func (n Names) labels() string        { return or(n.Labels, "the labels") }
 func (n Names) log() string           { return or(n.Log, "the log") }
 func (n Names) second() string        { return or(n.Second, "the second worksheet") }
 func (n Names) adjudications() string { return or(n.Adjudications, "the adjudications") }
+func (n Names) trail() string         { return or(n.Trail, "the label trail") }
 
 // Input is the record folder and whatever inputs are given.
 type Input struct {
