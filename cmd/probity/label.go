@@ -13,8 +13,8 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"probity/plan/planfile"
 	"probity/plan/inputerr"
+	"probity/plan/planfile"
 	"probity/sampling/drawfolder"
 	"probity/sampling/labelserver"
 	"probity/sampling/labeltrail"
