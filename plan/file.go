@@ -188,8 +188,8 @@ func (f *File) Marshal() ([]byte, error) {
 
 // Decode reads a plan file's one YAML document into a File and indexes it
 // as a Source (the line of every key, the text of every value). It
-// refuses what cannot be a plan before anything looks at its content: an
-// empty file, a second document, anchors and aliases, a key the plan has
+// refuses what cannot be a plan before anything looks at its content: a
+// plan's JSON report (ErrJSONReport), an empty file, a second document, anchors and aliases, a key the plan has
 // no field for (a typo in a hand-edited plan is not silently ignored), a
 // value of the wrong type and a setting that is not one of its names —
 // each an input error naming the file, the line and the field, wrapping
@@ -199,6 +199,9 @@ func (f *File) Marshal() ([]byte, error) {
 // every command uses, runs Decode, then File.Check and the check of the
 // sequential section.
 func Decode(data []byte, name string) (*File, *Source, error) {
+	if err := checkNotReport(data, name); err != nil {
+		return nil, nil, err
+	}
 	src := &Source{Name: name}
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	var doc yaml.Node

@@ -53,8 +53,10 @@ func TestKillNineLosesNothing(t *testing.T) {
 	done := make(chan error, 1)
 	address := ""
 	sc := bufio.NewScanner(stdout)
+	banner := ""
 	for sc.Scan() {
-		if m := bannerAddress.FindStringSubmatch(sc.Text()); m != nil && m[1] == drawfolder.WorksheetFile {
+		banner += sc.Text() + "\n"
+		if m := bannerAddress.FindStringSubmatch(banner); m != nil && m[1] == drawfolder.WorksheetFile {
 			address = m[2]
 			break
 		}

@@ -50,7 +50,7 @@ type labelRun struct {
 var labelStart = time.Date(2026, 12, 1, 10, 0, 0, 0, time.UTC)
 
 // bannerAddress finds a worksheet's address in label's output.
-var bannerAddress = regexp.MustCompile(`\((worksheet[a-z-]*\.csv), \d+ items\): (http://\S+)`)
+var bannerAddress = regexp.MustCompile(`\((worksheet[a-z-]*\.csv), \d+ items\):\s+(http://\S+)`)
 
 // startLabel runs probity label with args until its addresses are
 // printed; it fails the test when the command ends first.

@@ -16,10 +16,9 @@
 package planfile
 
 import (
-	"os"
-
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/sequential"
 )
 
@@ -42,9 +41,9 @@ func Parse(data []byte, name string) (*plan.File, error) {
 // Load reads, decodes and checks a plan file and returns it with its
 // fingerprint (plan.Fingerprint of its bytes).
 func Load(path string) (*plan.File, string, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "plan file", inputfile.SmallLimit)
 	if err != nil {
-		return nil, "", inputerr.FromPath(err)
+		return nil, "", err
 	}
 	f, err := Parse(data, path)
 	if err != nil {

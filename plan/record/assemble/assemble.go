@@ -17,7 +17,6 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"os"
 	"strings"
 	"time"
 
@@ -25,6 +24,7 @@ import (
 	"probity/plan/agreement"
 	"probity/plan/chrono"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/planfile"
 	"probity/plan/record"
 	"probity/plan/record/intake"
@@ -173,9 +173,9 @@ func Read(f Files) (*Inputs, error) {
 
 // readAdjudications reads the adjudication file into in.
 func readAdjudications(in *Inputs, path string) error {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "adjudication file", inputfile.TableLimit)
 	if err != nil {
-		return inputerr.FromPath(err)
+		return err
 	}
 	if in.Adjudications, err = agreement.ParseAdjudications(data, path, in.Plan.Classes); err != nil {
 		return err

@@ -4,13 +4,13 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
-	"os"
 	"path/filepath"
 	"strings"
 	"time"
 
 	"probity/plan/chrono"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/planfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
@@ -133,9 +133,9 @@ func checkFingerprints(rep *Report, in Input, rec *record.Record) error {
 
 // fileHash is the SHA-256 of a file's bytes.
 func fileHash(path string) (string, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "file", inputfile.TableLimit)
 	if err != nil {
-		return "", inputerr.Errorf("cannot read %s: %v", path, errors.Unwrap(err)).WithHint("check the path").Wrap(err)
+		return "", err
 	}
 	return record.SHA256(data), nil
 }
@@ -204,4 +204,13 @@ func issued(rec *record.Record) chrono.Stamp {
 	}
 	t, _ := time.Parse(time.DateOnly, rec.Date)
 	return chrono.Stamp{Time: t}
+}
+
+// messageOf is an input error's message without its file, line and
+// field, or err's text.
+func messageOf(err error) string {
+	if e, ok := inputerr.As(err); ok {
+		return e.Msg
+	}
+	return err.Error()
 }
