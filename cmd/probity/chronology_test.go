@@ -9,6 +9,8 @@ import (
 
 	"probity/plan/record"
 	"probity/sampling/drawfolder"
+	"probity/sampling/labelserver"
+	"probity/sampling/labeltrail"
 	"probity/sampling/loggen"
 )
 
@@ -145,5 +147,61 @@ func TestVerifyChecksTheChronology(t *testing.T) {
 	code, stdout, _ = runProbity(t, "verify", rec, "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels)
 	if code != exitRejected || !strings.Contains(stdout, "chronology in order") || !strings.Contains(stdout, "chronology.drawn.time") {
 		t.Errorf("edited draw time: exit %d\n%s", code, stdout)
+	}
+}
+
+// A label cannot precede its sample: the label trail takes the draw time
+// from the manifest (here 2026-11-30 15:00), so a labeling page whose
+// clock reads an hour before it refuses the label, and a record issued
+// before the last label on its trail fails the chronology, naming the
+// labeling span.
+func TestLabelsOutsideTheChronologyRefused(t *testing.T) {
+	fx := newRecFixture(t, true, 0)
+	early := startLabelAt(t, time.Date(2026, 11, 30, 14, 0, 0, 0, time.UTC), fx.draw, "--plan", fx.planPath)
+	c, err := labelserver.Open(nil, early.addr[drawfolder.WorksheetFile])
+	if err == nil {
+		err = c.Name("Dana Example")
+	}
+	if err == nil {
+		var st labelserver.StateView
+		if st, err = c.State(); err == nil {
+			item := st.Sequence[0].Item
+			_, err = c.Label(labelserver.LabelRequest{Item: item, Label: "ok"})
+		}
+	}
+	if code := early.close(); err == nil || !strings.Contains(err.Error()+early.err.String(), "before the draw") && !strings.Contains(err.Error()+early.err.String(), "earlier than the draw") {
+		t.Errorf("a label an hour before the draw: exit %d, %v\n%s", code, err, early.err.String())
+	}
+}
+
+// A record on a label trail is issued after the trail's last label: with
+// --date before it, the chronology names the labeling span; from the clock
+// (after it) the record states the span and the PDF prints it.
+func TestRecordBeforeItsLabelsRefused(t *testing.T) {
+	fx := newRecFixture(t, true, 0)
+	r := startLabel(t, fx.draw, "--plan", fx.planPath)
+	trailSession(t, fx, r.addr[drawfolder.WorksheetFile])
+	if code := r.close(); code != exitOK {
+		t.Fatalf("label exit %d\n%s", code, r.err.String())
+	}
+	trail := filepath.Join(fx.draw, labeltrail.FileName)
+	rec := filepath.Join(fx.dir, "rec")
+	code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--trail", trail, "--out", rec, "--date", "2026-12-01T10:00:05Z")
+	want := "probity: the chronology is broken: the record is issued before labeling ended (plan created 2026-11-30T09:00:00Z (system clock), sample drawn 2026-11-30T15:00:00Z (system clock), labeled 2026-12-01T10:00:"
+	if code != exitBadInput || !strings.HasPrefix(stderr, want) || !strings.Contains(stderr, "record issued 2026-12-01T10:00:05Z (supplied by the operator))\nhint: --date ") || stdout != "" {
+		t.Errorf("exit %d\n%s\nwant %s", code, stderr, want)
+	}
+	if _, err := os.Stat(rec); !os.IsNotExist(err) {
+		t.Error("a refused record left its folder")
+	}
+	if code, _, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--trail", trail, "--out", rec); code != exitOK && code != exitRejected {
+		t.Fatalf("record from the clock: %d\n%s", code, stderr)
+	}
+	got, err := record.Decode(mustRead(t, filepath.Join(rec, record.JSONFile)))
+	if err != nil || got.Chronology == nil || got.Chronology.Labeled == nil || got.Chronology.Labeled.First.Before(got.Chronology.Drawn.Time) {
+		t.Fatalf("record %v: %+v", err, got.Chronology)
+	}
+	if text := pdfText(t, filepath.Join(rec, record.PDFFile)); !strings.Contains(text, "(label trail)") {
+		t.Error("record.pdf does not print the labeling span")
 	}
 }
