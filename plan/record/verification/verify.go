@@ -281,5 +281,9 @@ func checkChronology(rep *Report, jsonPath string, rec *record.Record) {
 		rep.add(CheckChronology, Failed, "%s: the date %s is not the day the record was issued (%s)", jsonPath, rec.Date, c.Issued)
 		return
 	}
-	rep.add(CheckChronology, OK, "chronology in order: plan created %s, sample drawn %s, record issued %s", c.PlanCreated, c.Drawn, c.Issued)
+	labeled := ""
+	if c.Labeled != nil {
+		labeled = ", labeled " + c.Labeled.String() + " (label trail)"
+	}
+	rep.add(CheckChronology, OK, "chronology in order: plan created %s, sample drawn %s%s, record issued %s", c.PlanCreated, c.Drawn, labeled, c.Issued)
 }
