@@ -95,8 +95,12 @@ func (d *doc) chronology(c *content) {
 		d.note("This record states no chronology: it was made before probity recorded when each step happened.")
 		return
 	}
-	d.note("When each step happened, in UTC, and where the time came from. The plan was made before the sample was " +
-		"drawn, and the sample drawn before this record was issued; probity checked this order when it issued the record.")
+	order := "The plan was made before the sample was drawn, and the sample drawn before this record was issued"
+	if t.Labeled != nil {
+		order = "The plan was made before the sample was drawn, the sample drawn before its first label, and the last " +
+			"label given before this record was issued"
+	}
+	d.note("When each step happened, in UTC, and where the time came from. " + order + "; probity checked this order when it issued the record.")
 	rows := [][]cell{
 		kv("Plan made", stampText(t.PlanCreated)),
 		kv("Sample drawn", stampText(t.Drawn)),
