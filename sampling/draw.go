@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/sampling/drawfolder"
 )
@@ -40,6 +41,13 @@ type DrawInput struct {
 	Double int
 	// Dedupe keeps the first row of a repeated id.
 	Dedupe bool
+	// TimeColumn, if set, is the log's time column: every row in scope
+	// must hold a time there, and the manifest records the log's
+	// completeness over Days — a declared range, or (zero) the period's
+	// days when the period is written YYYY-MM or YYYY-MM-DD, or else the
+	// days from the first row to the last.
+	TimeColumn string
+	Days       chrono.DayRange
 	// MaxLine bounds the bytes of a line of the log (0: DefaultMaxLine).
 	MaxLine     int64
 	ToolVersion string
@@ -72,11 +80,11 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	n := p.Rule.SampleSize
 	capacity := n + in.Alloc.Spare + capacityMargin
 	if p.Measures != nil {
-		// the design is sized again on the log's strata: room for three
+		// the design is sized again on the log's strata: room for eight
 		// times the planned labels in any stratum (allocateMeasures says
 		// when that is not enough)
 		n = p.Measures.Design.Total
-		capacity = 3*n + in.Alloc.Spare + capacityMargin
+		capacity = 8*n + in.Alloc.Spare + capacityMargin
 	}
 	if in.Double < 0 || in.Double > n {
 		return nil, &inputerr.Error{Field: "double", Msg: fmt.Sprintf("%d: must be between 0 and the sample size %d", in.Double, n)}
@@ -116,7 +124,7 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	res, err := Scan(in.Log, ScanSpec{
 		Name: name, Format: in.Format, Seed: selection, IDColumn: in.IDColumn,
 		StrataColumns: in.StrataColumns, Bands: in.Bands, Where: in.Where, Keep: keep, KeepRoles: roles,
-		Capacity: capacity, Dedupe: in.Dedupe, MaxLine: in.MaxLine,
+		Capacity: capacity, Dedupe: in.Dedupe, TimeColumn: in.TimeColumn, MaxLine: in.MaxLine,
 		Workers: in.Workers, ChunkSize: in.ChunkSize, Progress: in.Progress,
 	})
 	if err != nil {
@@ -221,7 +229,23 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	f.Manifest.Measures = measuresInfo
 	f.Manifest.SampleSize = len(sample)
 	f.Manifest.Spares = len(spares)
+	if res.Times != nil {
+		f.Manifest.Completeness = res.Times.Completeness(in.TimeColumn, CompletenessDays(in.Period, in.Days))
+	}
 	return f, nil
+}
+
+// CompletenessDays is the range of days a draw's completeness is checked
+// over: the declared range when set, else the period's days when its label
+// is a month or a day (chrono.PeriodDays), else none (the rows' own days).
+func CompletenessDays(period string, declared chrono.DayRange) chrono.DayRange {
+	if !declared.From.IsZero() {
+		return declared
+	}
+	if r, ok := chrono.PeriodDays(period); ok {
+		return r
+	}
+	return chrono.DayRange{}
 }
 
 func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, selection string) *drawfolder.Manifest {

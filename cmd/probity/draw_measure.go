@@ -3,18 +3,8 @@ package main
 import (
 	"probity/plan"
 	"probity/plan/inputerr"
-	"probity/plan/measure"
 	"probity/sampling"
 )
-
-// checkMeasuresPlan rechecks a plan's measures against their inputs (the
-// design and risks planned again must be the file's).
-func checkMeasuresPlan(path string, p *plan.File) error {
-	if err := measure.Recheck(p); err != nil {
-		return inputerr.At(path, 0, "", "%v", err).WithHint("use the plan file written by probity plan, unedited")
-	}
-	return nil
-}
 
 // addDrawMeasures stratifies a draw for a plan with measures by the
 // candidates' predictions (after the user's strata) and allocates by the

@@ -29,6 +29,8 @@ type planOptions struct {
 	classes, thresholds                   string
 	positive, negative                    string
 	system, systemVersion                 string
+	date                                  string
+	timeColumn                            string
 
 	// set by validate
 	in          plan.Inputs
@@ -125,6 +127,8 @@ tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.system, "system", "", "the `NAME` of the classifier under audit")
 	fl.StringVar(&o.systemVersion, "system-version", "", "the `VERSION` of the classifier under audit")
 	addMeasureFlags(fl, &o.measures) // plan_measure.go
+	fl.StringVar(&o.date, "date", "", dateFlagUsage("the plan was made"))
+	fl.StringVar(&o.timeColumn, "time-column", "", "the log `COLUMN` that dates each decision: every draw reads it and records the days of the period without rows")
 	return cmd
 }
 
@@ -153,6 +157,12 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	}
 	if err := o.measures.validate(o, changed); err != nil {
 		return err
+	}
+	if err := parseDateFlag(o.date); err != nil {
+		return err
+	}
+	if strings.TrimSpace(o.timeColumn) != o.timeColumn {
+		return inputerr.Errorf("--time-column %q has leading or trailing spaces", o.timeColumn)
 	}
 	if o.ceiling == "" {
 		return inputerr.Errorf("--ceiling is required: the error rate that must not be exceeded").WithHint("e.g. --ceiling 0.02 for 2%")
@@ -409,10 +419,11 @@ func runPlan(d deps, o *planOptions) error {
 		}
 		seed = hex.EncodeToString(b[:])
 	}
+	created := stepTime(d, o.date)
 	f, err := plan.Build(o.in, plan.Meta{
-		ToolVersion: d.version, Created: d.now(), Seed: seed,
+		ToolVersion: d.version, Created: created.Time, CreatedFrom: created.Source, Seed: seed,
 		System: o.system, SystemVersion: o.systemVersion,
-		Classes: o.classesList, Candidates: o.declared,
+		Classes: o.classesList, Candidates: o.declared, TimeColumn: o.timeColumn,
 	})
 	if err != nil {
 		return planInputError(err)
