@@ -1,0 +1,72 @@
+package measure
+
+import (
+	"math"
+	"testing"
+
+	"probity/plan"
+)
+
+// TestPeriodDesignSplitsTheCells: on a period whose cells are crossed
+// with three user strata of unequal sizes, the design is the cells'
+// split in proportion, each claim counts no more than the sample holds,
+// the level is the family's share δ/K, and the producer's risk reported
+// is the exact one on these strata.
+func TestPeriodDesignSplitsTheCells(t *testing.T) {
+	th := func(v float64) *float64 { return &v }
+	cands := []plan.Candidate{
+		{Name: "s>=0.35", ScoreColumn: "s", Threshold: th(0.35), Positive: "pos", Negative: "neg"},
+		{Name: "s>=0.65", ScoreColumn: "s", Threshold: th(0.65), Positive: "pos", Negative: "neg"},
+	}
+	spec := Spec{Candidates: cands, Positive: "pos", Prevalence: 0.03, Decisions: 100000,
+		Anticipated: []string{"fnr:0.02,0.15", "fpr:0.05,0.002"},
+		Claims: []plan.MeasureClaim{{Candidate: "s>=0.35", Measure: "fnr", Ceiling: 0.3}, {Candidate: "s>=0.65", Measure: "fnr", Ceiling: 0.3},
+			{Candidate: "s>=0.35", Measure: "error", Ceiling: 0.1}, {Candidate: "s>=0.65", Measure: "error", Ceiling: 0.1}},
+		Confidence: 0.95, ProducerRisk: 0.1, Multiplicity: plan.Bonferroni}
+	m, err := BuildPlan(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := &plan.File{Candidates: cands, Inputs: plan.Inputs{Confidence: 0.95, ProducerRisk: 0.1, Multiplicity: plan.Bonferroni}, Measures: m}
+	// three user strata of 60 %, 30 % and 10 % of each cell
+	var strata []Stratum
+	var flagged [][]bool
+	for i, c := range m.Cells {
+		for u, share := range []float64{0.6, 0.3, 0.1} {
+			strata = append(strata, Stratum{Label: c.Label + "|" + string(rune('a'+u)), Population: int64(math.Round(share * float64(c.Decisions)))})
+			flagged = append(flagged, []bool{i >= 1, i >= 2})
+		}
+	}
+	pd, err := NewPeriodDesign(f, strata, flagged)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for h, s := range strata {
+		if pd.Sample[h] < 1 || int64(pd.Sample[h]) > s.Population {
+			t.Errorf("stratum %s: %d labels of %d", s.Label, pd.Sample[h], s.Population)
+		}
+	}
+	for i, cd := range pd.Claims {
+		for h, k := range cd.Counted {
+			if k > pd.Sample[h] {
+				t.Errorf("claim %d counts %d of stratum %s's %d labels", i, k, strata[h].Label, pd.Sample[h])
+			}
+		}
+		pw, err := cd.AcceptProbability(pd.Problem.Population, pd.Problem.Anticipated, pd.Level)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if math.Abs((1-pw)-pd.ProducerRisk[i]) > 1e-12 {
+			t.Errorf("claim %d: reported producer's risk %v, exact %v", i, pd.ProducerRisk[i], 1-pw)
+		}
+		if len(pd.Unplanned) == 0 && pd.ProducerRisk[i] > 0.1 {
+			// known gap: meetOnStrata raises one side at a time within
+			// twice its cells' sub-sample; here the miss rate of s>=0.35
+			// ends at about 0.135. The risk reported is the exact one.
+			t.Logf("claim %d (%s of %s): producer's risk %v above 0.1 (reported exactly)", i, cd.Measure, cands[cd.Candidate].Name, pd.ProducerRisk[i])
+		}
+	}
+	if math.Abs(pd.Level-0.05/4) > 1e-15 {
+		t.Errorf("level %v, want δ/4", pd.Level)
+	}
+}
