@@ -197,6 +197,9 @@ func oneOf(v string, list []string) bool {
 }
 
 func runRecord(d deps, o *recordOptions) error {
+	if err := refuseMeasuresRecord(o.planPath); err != nil {
+		return err
+	}
 	if err := checkOutWritable(o.out, o.force); err != nil {
 		return err
 	}
