@@ -124,6 +124,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
 		j.PlanFile, j.Fingerprint = &out, &fingerprint
 	}
 	enc := json.NewEncoder(w)
+	enc.SetEscapeHTML(false)
 	enc.SetIndent("", "  ")
 	return enc.Encode(j)
 }
@@ -344,6 +345,7 @@ func runPlanBudget(d deps, o *planOptions) error {
 			j.Ceiling = &in.Ceiling
 		}
 		enc := json.NewEncoder(d.stdout)
+		enc.SetEscapeHTML(false)
 		enc.SetIndent("", "  ")
 		return enc.Encode(j)
 	}

@@ -52,6 +52,18 @@ func TestPlanIssueExample(t *testing.T) {
 	}
 }
 
+// A candidate name with > (a threshold's) reads as it is in --json output,
+// never as JSON's HTML escape \u003e (issue 16 item 14).
+func TestPlanJSONWithoutEscapes(t *testing.T) {
+	for _, extra := range [][]string{nil, {"--multiplicity", "holm"}} {
+		args := append([]string{"--confidence", "0.95", "--ceiling", "0.02", "--thresholds", "s:0.5,0.6", "--positive", "a", "--negative", "b", "--json"}, extra...)
+		code, out, errOut := runPlanCmd(t, args...)
+		if code != exitOK || strings.Contains(out, `\u00`) {
+			t.Errorf("%v: exit %d %s\n%s", extra, code, errOut, out)
+		}
+	}
+}
+
 func TestPlanJSON(t *testing.T) {
 	code, out, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--json")
 	if code != exitOK || errOut != "" {
