@@ -131,7 +131,7 @@ func (d *doc) deviationsSection(c *content) {
 	d.heading("Deviations from the plan")
 	dev := c.rec.Deviations
 	if len(dev.SparesUsed) == 0 && len(dev.Unlabeled) == 0 && len(dev.Unsure) == 0 &&
-		!dev.AllowIncomplete && len(dev.Notes) == 0 {
+		!dev.AllowIncomplete && len(dev.Notes) == 0 && dev.DoubleNotLabeled == 0 {
 		d.wordingBlocks(d.text(c, templates.DeviationsNone))
 		return
 	}
@@ -148,6 +148,9 @@ func (d *doc) deviationsSection(c *content) {
 	list("Spare items used", dev.SparesUsed)
 	list("Items left unlabeled", dev.Unlabeled)
 	list("Labels marked unsure", dev.Unsure)
+	if s := dev.DoubleNotLabeledText(); s != "" {
+		d.bullet(s)
+	}
 	for _, n := range dev.Notes {
 		if strings.TrimSpace(n) != "" {
 			d.bullet(n)

@@ -322,6 +322,9 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 	for _, c := range rec.Caveats {
 		fmt.Fprintf(w, "caveat: %s\n", c.Text)
 	}
+	if s := rec.Deviations.DoubleNotLabeledText(); s != "" {
+		fmt.Fprintf(w, "deviation: %s\n", s)
+	}
 	if rec.Deviations.AllowIncomplete {
 		fmt.Fprintf(w, "note: unlabeled or unsure items were counted as errors for every candidate (--allow-incomplete)\n")
 	}

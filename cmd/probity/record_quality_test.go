@@ -392,3 +392,36 @@ func TestRecordFullAgreementChangesNothing(t *testing.T) {
 		t.Errorf("record.json without label_quality differs from the single-label record:\n%s\n---\n%s", ja, jb)
 	}
 }
+
+// TestRecordNamesAPlannedSecondLabelingThatDidNotHappen: a draw made with
+// --double 6 recorded without the second worksheet is a deviation from
+// the plan, in record.json, on the console and in the PDF (issue 16 item
+// 4); recorded with it, there is none.
+func TestRecordNamesAPlannedSecondLabelingThatDidNotHappen(t *testing.T) {
+	fx := newLQFixture(t)
+	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", nil)
+	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
+	dir := filepath.Join(fx.dir, "without")
+	code, stdout, stderr := lqRun(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--out", dir, "--date", "2026-12-01")
+	if code != exitOK {
+		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
+	}
+	rec := lqRecord(t, dir)
+	if rec.Deviations.DoubleNotLabeled != 6 {
+		t.Errorf("double_not_labeled %d, want 6", rec.Deviations.DoubleNotLabeled)
+	}
+	const said = "6 items were drawn for a second, independent label, but the record was made without second labels: label error was not measured"
+	if !strings.Contains(stdout, "deviation: "+said) {
+		t.Errorf("stdout does not say %q:\n%s", said, stdout)
+	}
+	flat := strings.Join(strings.Fields(pdfText(t, filepath.Join(dir, record.PDFFile))), " ")
+	if !strings.Contains(flat, said) || strings.Contains(flat, "Deviations from the plan None.") {
+		t.Errorf("record.pdf does not list the deviation:\n%s", flat)
+	}
+	dir = filepath.Join(fx.dir, "with")
+	if code, stdout, stderr := lqRun(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--second", second, "--out", dir, "--date", "2026-12-01"); code != exitOK {
+		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
+	} else if strings.Contains(stdout, "deviation:") || lqRecord(t, dir).Deviations.DoubleNotLabeled != 0 {
+		t.Errorf("with the second labels, a deviation is named:\n%s", stdout)
+	}
+}

@@ -5,7 +5,11 @@
 // new.
 package record
 
-import "probity/plan"
+import (
+	"fmt"
+
+	"probity/plan"
+)
 
 // Format is the version of the record.json layout written by this code.
 // Format 2 added the content-covering record id, the revision, the
@@ -242,6 +246,24 @@ type Deviations struct {
 	Unsure          []string `json:"unsure"`           // record ids
 	AllowIncomplete bool     `json:"allow_incomplete"` // missing/unsure counted as errors
 	Notes           []string `json:"notes"`
+	// DoubleNotLabeled is the number of items the draw set aside for a
+	// second, independent label (the manifest's double) when the record
+	// was made without second labels: the planned measure of label error
+	// was not taken. 0, and absent, otherwise.
+	DoubleNotLabeled int `json:"double_not_labeled,omitempty"`
+}
+
+// DoubleNotLabeledText says in a sentence that the planned second
+// labeling did not happen ("" when it did, or none was planned); the
+// console and the PDF print it among the deviations.
+func (d Deviations) DoubleNotLabeledText() string {
+	switch k := d.DoubleNotLabeled; {
+	case k == 1:
+		return "1 item was drawn for a second, independent label, but the record was made without second labels: label error was not measured."
+	case k > 1:
+		return fmt.Sprintf("%d items were drawn for a second, independent label, but the record was made without second labels: label error was not measured.", k)
+	}
+	return ""
 }
 
 // MethodInfo states the method and its assumptions.

@@ -307,6 +307,9 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 		}
 	}
 	rec.Deviations = checked.Deviations
+	if in.Second == nil {
+		rec.Deviations.DoubleNotLabeled = in.Folder.Manifest.Double
+	}
 	for _, s := range checked.Design.Strata {
 		w := 0.0
 		if s.Sample > 0 {
