@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 	"probity/templates"
 )
@@ -99,13 +100,13 @@ func TestTextHasVerdictsBoundsAndCautions(t *testing.T) {
 				// The summary row: name, bound, verdict and reason on one line.
 				row := false
 				for _, l := range layout {
-					if strings.Contains(l, c.Name) && strings.Contains(l, pctUp(c.UpperBound)) &&
+					if strings.Contains(l, c.Name) && strings.Contains(l, numfmt.RateUp(c.UpperBound)) &&
 						strings.Contains(l, c.Verdict) && strings.Contains(l, c.Reason) {
 						row = true
 					}
 				}
 				if !row {
-					t.Errorf("no summary line holds %s, %s, %s and %q", c.Name, pctUp(c.UpperBound), c.Verdict, c.Reason)
+					t.Errorf("no summary line holds %s, %s, %s and %q", c.Name, numfmt.RateUp(c.UpperBound), c.Verdict, c.Reason)
 				}
 			}
 			// The bounds as printed, rounded up (scipy.stats.beta.ppf values

@@ -3,6 +3,7 @@ package pdfreport
 import (
 	"strings"
 
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
 
@@ -147,15 +148,15 @@ func (d *doc) summary(c *content) {
 			row = append(row, cell{text: after})
 		}
 		row = append(row, []cell{
-			{text: pct(cand.Estimate)},
+			{text: numfmt.Rate(cand.Estimate)},
 			{text: boundText(cand, mixed), bold: true},
 			{text: c.fields.Ceiling},
-			{text: prob(cand.PValue)},
+			{text: numfmt.PValue(cand.PValue)},
 		}...)
 		if holm {
 			adj := "–"
 			if cand.AdjustedPValue != nil {
-				adj = prob(*cand.AdjustedPValue)
+				adj = numfmt.PValue(*cand.AdjustedPValue)
 			}
 			row = append(row, cell{text: adj})
 		}
@@ -258,7 +259,7 @@ func joinNonEmpty(sep string, parts ...string) string {
 // candidates' confidences differ.
 func boundText(cand record.Candidate, withConfidence bool) string {
 	if withConfidence {
-		return pctUp(cand.UpperBound) + " (" + confidence(cand.BoundConfidence) + ")"
+		return numfmt.RateUp(cand.UpperBound) + " (" + numfmt.Confidence(cand.BoundConfidence) + ")"
 	}
-	return pctUp(cand.UpperBound)
+	return numfmt.RateUp(cand.UpperBound)
 }

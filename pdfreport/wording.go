@@ -3,6 +3,7 @@ package pdfreport
 import (
 	"strings"
 
+	"probity/plan/numfmt"
 	"probity/templates"
 )
 
@@ -40,7 +41,7 @@ func (d *doc) conformity(c *content) {
 			finding = "has no verdict"
 		}
 		d.bullet(cand.Name + " " + finding + " (" + cand.Verdict + "): upper bound " +
-			pctUp(cand.UpperBound) + " against the ceiling " + c.fields.Ceiling + "; " +
+			numfmt.RateUp(cand.UpperBound) + " against the ceiling " + c.fields.Ceiling + "; " +
 			plural(cand.Errors, "error", "errors") + " among " + itoa(cand.Labeled) + " labeled decisions.")
 	}
 	d.space(1)

@@ -93,7 +93,7 @@ func TestTrendYearRejectsLatest(t *testing.T) {
 	trendGolden(t, "year.txt", strings.ReplaceAll(out, dir, "OUT"))
 	for _, want := range []string{
 		"router-b   flagged: 2026-10, 2026-11, 2026-12",
-		"  2026-10      613      5   0.816%   1.997%      2%  ACCEPT  0.0310 ↑ higher",
+		"  2026-10      613      5   0.816 %   1.998 %     2 %  ACCEPT  0.03100 ↑ higher",
 		"latest period 2026-12 (record 39e27c33410cc91b03d93d025b013db3): REJECT",
 	} {
 		if !strings.Contains(out, want) {
@@ -148,7 +148,7 @@ func trendPDFText(t *testing.T, path string) {
 		t.Fatalf("pdftotext: %v", err)
 	}
 	s := string(txt)
-	for _, want := range []string{"Trend of acceptance records — ticket-router 4.2", "Latest period 2026-12: REJECT (record 39e27c33410cc91b03d93d025b013db3)", "0.031 ↑", "page 1 of 1"} {
+	for _, want := range []string{"Trend of acceptance records — ticket-router 4.2", "Latest period 2026-12: REJECT (record 39e27c33410cc91b03d93d025b013db3)", "0.03100 ↑", "page 1 of 1"} {
 		if !strings.Contains(s, want) {
 			t.Errorf("PDF text lacks %q", want)
 		}
@@ -212,7 +212,7 @@ func TestTrendBaselineAndAlpha(t *testing.T) {
 	if code != exitRejected {
 		t.Fatalf("exit %d", code)
 	}
-	for _, want := range []string{"p ≤ 0.01 per comparison", "p vs 2026-06", "  2026-06      613      3   0.489%   1.516%      2%  ACCEPT  (baseline)"} {
+	for _, want := range []string{"p ≤ 0.01 per comparison", "p vs 2026-06", "  2026-06      613      3   0.489 %   1.516 %     2 %  ACCEPT  (baseline)"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("stdout lacks %q", want)
 		}
