@@ -52,13 +52,13 @@ fixed bytes published with the source: verify recognises them and never
 trusts them, so the demo's verify step ends with exit 1, as it must, and
 its trend charts the records as unauthenticated.
 
-` + exitCodesHelp,
+` + exitHelp("success: the demo ran and its signed record verified", "the demo's record did not verify", true),
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return runDemo(d, opts)
 		},
 	}
-	cmd.Flags().StringVar(&opts.out, "out", "probity-demo", "the folder to write every artifact into")
+	cmd.Flags().StringVar(&opts.out, "out", "probity-demo", "the folder `DIR` to write every artifact into")
 	cmd.Flags().BoolVar(&opts.force, "force", false, "replace the artifacts of an earlier demo in --out")
 	return cmd
 }
@@ -427,6 +427,7 @@ func runDemoStep(d deps, cmdlog *bytes.Buffer, now time.Time, args []string) dem
 	sub.now = func() time.Time { return now }
 	sub.getenv, sub.readPassword = nil, nil
 	sub.stderrIsTerminal, sub.stdoutIsTerminal = false, false
+	sub.width = 0 // the demo reads its steps' output whole
 	code := run(args, sub)
 	fmt.Fprintf(cmdlog, "$ probity %s\n%s", quoteArgs(args), out.String())
 	if errb.Len() > 0 {

@@ -4,7 +4,6 @@ import (
 	"crypto/ed25519"
 	"errors"
 	"fmt"
-	"os"
 	"strings"
 	"time"
 
@@ -13,6 +12,7 @@ import (
 	"probity/pdfreport"
 	"probity/plan/agreement"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/record/intake"
@@ -110,11 +110,8 @@ zero-width or direction-overriding characters.
 
 ` + passphraseHelp + `
 
-` + exitCodesHelp + `
-
-record exits 0 when the audit passes (every candidate the plan requires is
-accepted), 1 when it is rejected — the record is written in both cases — and
-2 on bad input, when nothing is written.`,
+` + exitHelp("the audit passes: every candidate the plan requires is accepted (the\nrecord is written)",
+			"the audit is rejected (the record is written)", true),
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			return opts.validate()
@@ -124,19 +121,19 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 		},
 	}
 	fl := cmd.Flags()
-	fl.StringVar(&opts.planPath, "plan", "", "the plan file the sample was drawn from")
-	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv, worksheet.csv)")
-	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet")
-	fl.StringVar(&opts.trail, "trail", "", "the label trail of probity label (label-trail.jsonl in the draw folder), in place of --labels")
-	fl.StringVar(&opts.out, "out", "", "the record folder to write (must not exist or be empty)")
-	fl.StringVar(&opts.signoff, "signoff", "", "sign-off file (YAML: prepared/reviewed/approved with name, title, date, meaning)")
-	fl.StringVar(&opts.use, "use", "general", "declared use: "+strings.Join(templates.Uses(), ", "))
+	fl.StringVar(&opts.planPath, "plan", "", "the plan `FILE` the sample was drawn from")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder `DIR` (manifest.json, ledger.csv, worksheet.csv)")
+	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet `FILE`")
+	fl.StringVar(&opts.trail, "trail", "", "the label `TRAIL` of probity label (label-trail.jsonl in the draw folder), in place of --labels")
+	fl.StringVar(&opts.out, "out", "", "the record folder `DIR` to write (must not exist or be empty)")
+	fl.StringVar(&opts.signoff, "signoff", "", "sign-off `FILE` (YAML: prepared/reviewed/approved with name, title, date, meaning)")
+	fl.StringVar(&opts.use, "use", "general", "declared `USE`: "+strings.Join(templates.Uses(), ", "))
 	fl.StringVar(&opts.signKey, "sign-key", "", "the operator's private `KEY` from probity keygen; writes record.sig, the operator's seal")
 	fl.BoolVar(&opts.allowIncomplete, "allow-incomplete", false, "count unlabeled and unsure items as errors for every candidate instead of refusing")
-	fl.StringVar(&opts.date, "date", "", "the record's date, YYYY-MM-DD (default: today, UTC)")
-	fl.StringVar(&opts.paper, "paper", "a4", "paper size of record.pdf: a4 or letter")
-	fl.StringVar(&opts.templatesDir, "templates", "", "folder of wording files overriding the built-in ones")
-	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
+	fl.StringVar(&opts.date, "date", "", "the record's `DATE`, YYYY-MM-DD (default: today, UTC)")
+	fl.StringVar(&opts.paper, "paper", "a4", "`PAPER` size of record.pdf: a4 or letter")
+	fl.StringVar(&opts.templatesDir, "templates", "", "folder `DIR` of wording files overriding the built-in ones")
+	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "`BOUND` for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
 	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
 	fl.StringVar(&opts.supersedes, "supersedes", "", "the `RECORD_ID` of the record this one replaces (a revision)")
@@ -207,9 +204,9 @@ func runRecord(d deps, o *recordOptions) error {
 	}
 	var signoff []record.Signoff
 	if o.signoff != "" {
-		data, err := os.ReadFile(o.signoff)
+		data, err := inputfile.ReadFile(o.signoff, "sign-off file", inputfile.SmallLimit)
 		if err != nil {
-			return inputerr.FromPath(err)
+			return err
 		}
 		if signoff, err = record.ParseSignoff(data, o.signoff); err != nil {
 			return inputerr.SetHint(err, "see 'probity record --help' for the sign-off file's keys")

@@ -29,13 +29,16 @@ type verifyOptions struct {
 	trail string
 	// templatesDir is the wording record.pdf was rendered with.
 	templatesDir string
+	// maxLine bounds a line of the log (--max-line), parsedMaxLine read.
+	maxLine       string
+	parsedMaxLine int64
 }
 
 // newVerifyCommand builds `probity verify`.
 func newVerifyCommand(d deps) *cobra.Command {
 	opts := &verifyOptions{}
 	cmd := &cobra.Command{
-		Use:   "verify RECDIR [--pub KEY.pub] [--signers FILE] [--plan PLAN.yaml] [--draw DIR] [--labels WORKSHEET.csv | --trail TRAIL] [--log FILE]",
+		Use:   "verify RECDIR [--pub KEY.pub] [--plan FILE] [--draw DIR] [--labels FILE | --trail TRAIL]",
 		Short: "Authenticate a record's signatures and recompute it from its inputs",
 		Long: `verify checks an acceptance record folder and prints each check with its
 outcome. It says "verified" (exit 0) only when the record is authenticated
@@ -75,12 +78,8 @@ authenticates, so verify exits 1 on a demo record whatever is trusted.
 
 ` + signersHelp + `
 
-` + exitCodesHelp + `
-
-verify exits 0 when the record is authenticated and every check it ran
-passed, and 1 when anything could not be authenticated or any check failed
-(the failing checks say which file and what); 2 on bad usage or unreadable
-input.`,
+` + exitHelp("the record is authenticated and every check it ran passed",
+			"anything could not be authenticated, or a check failed (the failing checks say\nwhich file and what)", false),
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) != 1 {
 				return inputerr.Errorf("verify needs exactly one record folder, got %d arguments", len(args)).WithHint("probity verify RECDIR [--pub KEY.pub]")
@@ -94,6 +93,13 @@ input.`,
 			if opts.logPath != "" && (opts.drawDir == "" || opts.planPath == "") {
 				return inputerr.Errorf("--log needs --plan and --draw").WithHint("the sample is drawn again from the log with the plan's seed and the draw folder's settings")
 			}
+			if opts.maxLine != "" {
+				n, err := parseSize("--max-line", opts.maxLine)
+				if err != nil {
+					return err
+				}
+				opts.parsedMaxLine = n
+			}
 			return nil
 		},
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -104,14 +110,15 @@ input.`,
 	fl := cmd.Flags()
 	fl.StringArrayVar(&opts.pub, "pub", nil, "a public `KEY.pub` (from probity keygen) trusted to seal records; repeatable")
 	fl.StringVar(&opts.signers, "signers", "", "the signers `FILE`: whose key signs in which role")
-	fl.StringVar(&opts.planPath, "plan", "", "the plan file, to check and recompute from")
-	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder, to check and recompute from")
-	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet, to check and recompute from")
-	fl.StringVar(&opts.logPath, "log", "", "the prediction log, to draw the sample again")
-	fl.StringVar(&opts.second, "second", "", "the labeled second worksheet of a record judged on double labels, to check and recompute from")
-	fl.StringVar(&opts.adjudicated, "adjudicated", "", "the adjudication file of such a record, to check and recompute from")
-	fl.StringVar(&opts.trail, "trail", "", "the label trail (label-trail.jsonl in the draw folder) the record's labels were derived from, to check and recompute from")
-	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder the record was made with, to re-render record.pdf")
+	fl.StringVar(&opts.planPath, "plan", "", "the plan `FILE`, to check and recompute from")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder `DIR`, to check and recompute from")
+	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet `FILE`, to check and recompute from")
+	fl.StringVar(&opts.logPath, "log", "", "the prediction log `FILE`, to draw the sample again")
+	fl.StringVar(&opts.maxLine, "max-line", "", "with --log: "+maxLineHelp)
+	fl.StringVar(&opts.second, "second", "", "the labeled second worksheet `FILE` of a record judged on double labels, to check and recompute from")
+	fl.StringVar(&opts.adjudicated, "adjudicated", "", "the adjudication `FILE` of such a record, to check and recompute from")
+	fl.StringVar(&opts.trail, "trail", "", "the label `TRAIL` (label-trail.jsonl in the draw folder) the record's labels were derived from, to check and recompute from")
+	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder `DIR` the record was made with, to re-render record.pdf")
 	return cmd
 }
 
@@ -120,6 +127,7 @@ func runVerify(d deps, o *verifyOptions) error {
 		Dir:          o.dir,
 		Files:        assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.second, Adjudications: o.adjudicated, Trail: o.trail},
 		Log:          o.logPath,
+		MaxLine:      o.parsedMaxLine,
 		TemplatesDir: o.templatesDir,
 		ToolVersion:  d.version,
 		Names:        verifyNames,
@@ -147,7 +155,7 @@ func runVerify(d deps, o *verifyOptions) error {
 	if failed := rep.Failed(); len(failed) > 0 {
 		return rejected("verification failed: %d of %d checks (%s)", len(failed), len(rep.Checks), failed[0].Detail)
 	}
-	passed := fmt.Sprintf("%d checks passed", rep.Count(verification.OK))
+	passed := countOf(rep.Count(verification.OK), "check", "checks") + " passed"
 	if n := rep.Count(verification.Limited); n > 0 {
 		passed += fmt.Sprintf(", %d with a stated limitation", n)
 	}

@@ -7,10 +7,10 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
-	"os"
 	"time"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 )
 
 // ErrCutShort is the cause of the refusal of a trail whose last line has
@@ -43,9 +43,9 @@ func (t *Trail) Begin() *Begin { return t.Entries[0].Begin }
 
 // Read reads and parses the trail at path (Parse).
 func Read(path string) (*Trail, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "label trail", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.FromPath(err)
+		return nil, err
 	}
 	return Parse(data, path)
 }

@@ -17,13 +17,13 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"os"
 	"strings"
 	"time"
 
 	"probity/plan"
 	"probity/plan/agreement"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/intake"
 	"probity/plan/verdict"
@@ -169,9 +169,9 @@ func Read(f Files) (*Inputs, error) {
 
 // readAdjudications reads the adjudication file into in.
 func readAdjudications(in *Inputs, path string) error {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "adjudication file", inputfile.TableLimit)
 	if err != nil {
-		return inputerr.FromPath(err)
+		return err
 	}
 	if in.Adjudications, err = agreement.ParseAdjudications(data, path, in.Plan.Classes); err != nil {
 		return err

@@ -4,11 +4,11 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
-	"os"
 	"path/filepath"
 	"strings"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/verdict"
@@ -128,9 +128,9 @@ func checkFingerprints(rep *Report, in Input, rec *record.Record) error {
 
 // fileHash is the SHA-256 of a file's bytes.
 func fileHash(path string) (string, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "file", inputfile.TableLimit)
 	if err != nil {
-		return "", inputerr.Errorf("cannot read %s: %v", path, errors.Unwrap(err)).WithHint("check the path").Wrap(err)
+		return "", err
 	}
 	return record.SHA256(data), nil
 }
@@ -188,4 +188,13 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	}
 	rep.add(CheckJudgement, Failed, "%s differs from the judgement recomputed from the inputs: %s", record.JSONFile, strings.Join(listed, "; "))
 	return nil
+}
+
+// messageOf is an input error's message without its file, line and
+// field, or err's text.
+func messageOf(err error) string {
+	if e, ok := inputerr.As(err); ok {
+		return e.Msg
+	}
+	return err.Error()
 }

@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/record/signature"
@@ -145,6 +146,8 @@ type Input struct {
 	// needs Files.Plan and Files.Draw.
 	Files assemble.Files
 	Log   string
+	// MaxLine bounds a line of the log (0: the log reader's default).
+	MaxLine int64
 	// ToolVersion is this probity's version: a record.pdf made by another
 	// version may lay the record out differently, so when it is not the
 	// rendering of record.json it is authenticated by the signature over
@@ -195,15 +198,15 @@ func Verify(in Input) (*Report, error) {
 	}
 	rep := &Report{}
 	jsonPath := filepath.Join(in.Dir, record.JSONFile)
-	js, err := os.ReadFile(jsonPath)
+	js, err := inputfile.ReadFile(jsonPath, "record", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.Errorf("cannot read %s: %v", jsonPath, errors.Unwrap(err)).Wrap(errors.Join(ErrNoRecord, err))
+		return nil, inputerr.Errorf("cannot read %s: %s", jsonPath, messageOf(err)).Wrap(errors.Join(ErrNoRecord, err))
 	}
 	rec := checkRecord(rep, jsonPath, js)
 	pdfPath := filepath.Join(in.Dir, record.PDFFile)
-	pdf, pdfErr := os.ReadFile(pdfPath)
+	pdf, pdfErr := inputfile.ReadFile(pdfPath, "record PDF", inputfile.TableLimit)
 	if pdfErr != nil {
-		rep.add(CheckRendering, Failed, "%s is missing or unreadable: %v", pdfPath, errors.Unwrap(pdfErr))
+		rep.add(CheckRendering, Failed, "%s is missing or unreadable: %s", pdfPath, messageOf(pdfErr))
 		pdf = nil
 	}
 	a := authenticate(rep, in.Dir, in.Trust, in.Names, rec, js, pdf)
