@@ -53,10 +53,13 @@ func TestKillNineLosesNothing(t *testing.T) {
 	done := make(chan error, 1)
 	address := ""
 	sc := bufio.NewScanner(stdout)
-	for sc.Scan() {
-		if m := bannerAddress.FindStringSubmatch(sc.Text()); m != nil && m[1] == drawfolder.WorksheetFile {
-			address = m[2]
-			break
+	var banner strings.Builder
+	for address == "" && sc.Scan() {
+		banner.WriteString(sc.Text() + "\n")
+		for _, m := range bannerAddress.FindAllStringSubmatch(banner.String(), -1) {
+			if m[1] == drawfolder.WorksheetFile {
+				address = m[2]
+			}
 		}
 	}
 	go func() {

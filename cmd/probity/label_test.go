@@ -49,8 +49,9 @@ type labelRun struct {
 // reading of the clock advances it by a second.
 var labelStart = time.Date(2026, 12, 1, 10, 0, 0, 0, time.UTC)
 
-// bannerAddress finds a worksheet's address in label's output.
-var bannerAddress = regexp.MustCompile(`\((worksheet[a-z-]*\.csv), \d+ items\): (http://\S+)`)
+// bannerAddress finds a worksheet's address in label's output (the
+// console's 100 columns may put the address on the next line).
+var bannerAddress = regexp.MustCompile(`\((worksheet[a-z-]*\.csv), \d+ items\):\s+(http://\S+)`)
 
 // startLabel runs probity label with args until its addresses are
 // printed; it fails the test when the command ends first.

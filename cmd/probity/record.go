@@ -52,7 +52,7 @@ type recordOptions struct {
 func newRecordCommand(d deps) *cobra.Command {
 	opts := &recordOptions{}
 	cmd := &cobra.Command{
-		Use:   "record --plan PLAN.yaml --draw DIR (--labels WORKSHEET.csv | --trail TRAIL) --out RECDIR",
+		Use:   "record --plan PLAN.yaml --draw DIR (--labels CSV | --trail TRAIL) --out RECDIR",
 		Short: "Judge the candidates from the labels and write the acceptance record",
 		Long: `record checks the labeled worksheet against the plan and the draw folder,
 judges every candidate and writes the acceptance record into RECDIR:

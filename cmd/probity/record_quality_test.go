@@ -357,8 +357,9 @@ func lqList(dir string) []string {
 
 // TestRecordFullAgreementChangesNothing: when the two labelers agree on
 // every doubled item the judgement is the one made from the first labels
-// alone, and record.json differs only by label_quality and by the record
-// id (which also fingerprints the second worksheet).
+// alone, and record.json differs only by label_quality, by the record
+// id (which also fingerprints the second worksheet) and by the deviation
+// the single-label record states (the planned second labeling missing).
 func TestRecordFullAgreementChangesNothing(t *testing.T) {
 	fx := newLQFixture(t)
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []drawfolder.WorksheetRow) {
@@ -379,7 +380,10 @@ func TestRecordFullAgreementChangesNothing(t *testing.T) {
 	if a.RecordID == b.RecordID {
 		t.Errorf("the record with a second worksheet has the single-label record's id %s", a.RecordID)
 	}
-	b.LabelQuality, b.RecordID = nil, a.RecordID
+	if a.Deviations.DoubleNotLabeled == 0 || b.Deviations.DoubleNotLabeled != 0 {
+		t.Errorf("double_not_labeled %d and %d, want the draw's doubled items and 0", a.Deviations.DoubleNotLabeled, b.Deviations.DoubleNotLabeled)
+	}
+	b.LabelQuality, b.RecordID, a.Deviations.DoubleNotLabeled = nil, a.RecordID, 0
 	ja, err := record.Encode(a)
 	if err != nil {
 		t.Fatal(err)
