@@ -149,7 +149,7 @@ type PlanInfo struct {
 	Confidence       float64           `json:"confidence"`
 	CandidateCount   int               `json:"candidates"` // M; Record.Candidates lists them
 	Anticipated      *float64          `json:"anticipated"`
-	Population       int64             `json:"population"`
+	Population       LotSize           `json:"population"` // null: an unbounded stream
 	SampleSize       int               `json:"sample_size"`
 	AcceptanceNumber int               `json:"acceptance_number"`
 	PerCandidateRisk float64           `json:"per_candidate_risk"`
