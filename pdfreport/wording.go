@@ -131,7 +131,7 @@ func (d *doc) methodSection(c *content) {
 func (d *doc) deviationsSection(c *content) {
 	d.heading("Deviations from the plan")
 	dev := c.rec.Deviations
-	if len(dev.SparesUsed) == 0 && len(dev.Unlabeled) == 0 && len(dev.Unsure) == 0 &&
+	if len(dev.SparesUsed) == 0 && len(dev.Unlabeled) == 0 && len(dev.Unsure) == 0 && len(dev.SparesUnused) == 0 &&
 		!dev.AllowIncomplete && len(dev.Notes) == 0 && dev.DoubleNotLabeled == 0 {
 		d.wordingBlocks(d.text(c, templates.DeviationsNone))
 		return
@@ -149,6 +149,17 @@ func (d *doc) deviationsSection(c *content) {
 	list("Spare items used", dev.SparesUsed)
 	list("Items left unlabeled", dev.Unlabeled)
 	list("Labels marked unsure", dev.Unsure)
+	if len(dev.Replacements) > 0 {
+		pairs := make([]string, len(dev.Replacements))
+		for i, r := range dev.Replacements {
+			pairs[i] = r.Item + " by spare " + r.Spare + " (" + r.Reason + ")"
+		}
+		d.bullet("Items replaced by the draw's fixed rule (within a stratum, the items marked unsure, in worksheet order, take the spares in the order they were drawn): " +
+			strings.Join(pairs, "; ") + ".")
+	}
+	if len(dev.SparesUnused) > 0 {
+		d.bullet("Labeled spares that replaced nothing, unused (" + itoa(len(dev.SparesUnused)) + "): " + strings.Join(dev.SparesUnused, ", ") + ".")
+	}
 	if s := dev.DoubleNotLabeledText(); s != "" {
 		d.bullet(s)
 	}

@@ -320,6 +320,12 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 	for _, c := range rec.Caveats {
 		fmt.Fprintf(w, "caveat: %s\n", c.Text)
 	}
+	for _, r := range rec.Deviations.Replacements {
+		fmt.Fprintf(w, "spare: %s replaces %s (%s)\n", r.Spare, r.Item, r.Reason)
+	}
+	if u := rec.Deviations.SparesUnused; len(u) > 0 {
+		fmt.Fprintf(w, "spares labeled but unused (they replaced nothing): %s\n", strings.Join(u, ", "))
+	}
 	if s := rec.Deviations.DoubleNotLabeledText(); s != "" {
 		fmt.Fprintf(w, "deviation: %s\n", s)
 	}

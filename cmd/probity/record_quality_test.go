@@ -7,6 +7,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -31,7 +32,10 @@ type lqFixture struct {
 	truth               map[string]string
 }
 
-func newLQFixture(t *testing.T) *lqFixture {
+func newLQFixture(t *testing.T) *lqFixture { t.Helper(); return newLQFixtureSpares(t, 0) }
+
+// newLQFixtureSpares is newLQFixture with this many spares drawn.
+func newLQFixtureSpares(t *testing.T, spares int) *lqFixture {
 	t.Helper()
 	fx := &lqFixture{dir: t.TempDir(), truth: map[string]string{}}
 	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.9, CandidateCount: 1, ProducerRisk: 0.1,
@@ -73,7 +77,7 @@ func newLQFixture(t *testing.T) *lqFixture {
 	defer log.Close()
 	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: logPath, Log: log,
 		Format: "csv", IDColumn: "record_id", Show: []string{"scan"}, Double: 6,
-		Alloc: sampling.AllocOptions{Rule: sampling.Proportional}, ToolVersion: "test"})
+		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: spares}, ToolVersion: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -394,6 +398,43 @@ func TestRecordFullAgreementChangesNothing(t *testing.T) {
 	}
 	if !bytes.Equal(ja, jb) {
 		t.Errorf("record.json without label_quality differs from the single-label record:\n%s\n---\n%s", ja, jb)
+	}
+}
+
+// TestAdjudicatedUnsureItemLeavesItsSpareUnused (issue 16 item 3): the
+// first labeler marks a doubled item unsure, its spare is labeled (it
+// would replace it), the second labeler gives it a class and the
+// adjudication settles it. The adjudicated label stands, the spare
+// replaces nothing and is listed as unused; nothing is refused.
+func TestAdjudicatedUnsureItemLeavesItsSpareUnused(t *testing.T) {
+	fx := newLQFixtureSpares(t, 1)
+	item1 := fx.ledger[0]
+	var spare drawfolder.LedgerRow
+	for _, r := range fx.ledger {
+		if r.Spare {
+			spare = r
+		}
+	}
+	if !item1.Double || spare.RecordID == "" {
+		t.Fatal("the fixture needs item 1 doubled and a spare")
+	}
+	truth := fx.truth[item1.RecordID]
+	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []drawfolder.WorksheetRow) {
+		rows[0].Label, rows[0].Note = "unsure", "scan too dark"
+	})
+	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
+	out := filepath.Join(fx.dir, "rec")
+	code, _, stderr := lqRun(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--second", second,
+		"--adjudicated", fx.adjudication(t, "adj.csv", [2]string{"1", truth}), "--date", "2026-12-01", "--out", out)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	rec := lqRecord(t, out)
+	if d := rec.Deviations; len(d.Replacements) != 0 || !slices.Equal(d.SparesUnused, []string{spare.RecordID}) || len(d.SparesUsed) != 0 {
+		t.Errorf("deviations %+v: want spare %s unused and no replacement", d, spare.RecordID)
+	}
+	if rec.Candidates[0].Labeled != 22 {
+		t.Errorf("labeled %d, want the 22 sample items (item 1 by its adjudicated label)", rec.Candidates[0].Labeled)
 	}
 }
 

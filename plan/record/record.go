@@ -246,11 +246,27 @@ type Deviations struct {
 	Unsure          []string `json:"unsure"`           // record ids
 	AllowIncomplete bool     `json:"allow_incomplete"` // missing/unsure counted as errors
 	Notes           []string `json:"notes"`
+	// Replacements pairs each sample item marked unsure with the spare
+	// that replaced it by the draw's fixed rule, with the reason (absent
+	// when none was replaced).
+	Replacements []SpareReplacement `json:"replacements,omitempty"`
+	// SparesUnused are the labeled spares the rule gave no item to
+	// replace (record ids): harmless, listed so nothing is unaccounted
+	// for (absent when none).
+	SparesUnused []string `json:"spares_unused,omitempty"`
 	// DoubleNotLabeled is the number of items the draw set aside for a
 	// second, independent label (the manifest's double) when the record
 	// was made without second labels: the planned measure of label error
 	// was not taken. 0, and absent, otherwise.
 	DoubleNotLabeled int `json:"double_not_labeled,omitempty"`
+}
+
+// SpareReplacement is a sample item marked unsure and the spare judged in
+// its place (record ids), with the reason.
+type SpareReplacement struct {
+	Item   string `json:"item"`
+	Spare  string `json:"spare"`
+	Reason string `json:"reason"`
 }
 
 // DoubleNotLabeledText says in a sentence that the planned second
