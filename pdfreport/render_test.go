@@ -545,3 +545,20 @@ func TestEveryPageCarriesRevisionAndDemonstration(t *testing.T) {
 		t.Errorf("page 1 does not name the superseded record:\n%s", pages[0])
 	}
 }
+
+// TestPValuesAreDefined (issue 16 item 16): the decision summary says what
+// its p-value and, under Holm, its adjusted p are.
+func TestPValuesAreDefined(t *testing.T) {
+	for _, name := range []string{"medical-a4.txt", "general-letter.txt"} {
+		data, err := os.ReadFile(filepath.Join(goldenDir, name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if txt := flat(string(data)); !strings.Contains(txt, "p-value: the probability of observing at most the candidate's errors if its true error rate were exactly the ceiling") {
+			t.Errorf("%s does not define the p-value", name)
+		}
+	}
+	if !strings.Contains(pValueNote(true), "Adjusted p: the p-value adjusted by Holm's step-down procedure") || strings.Contains(pValueNote(false), "Adjusted p") {
+		t.Error("the adjusted p is defined exactly when its column is shown")
+	}
+}

@@ -166,6 +166,7 @@ func (d *doc) summary(c *content) {
 	}
 	d.drawTable(&table{title: "Decision summary", cols: cols, rows: rows, header: true})
 	d.note(precisionNote)
+	d.note(pValueNote(holm))
 }
 
 // verdictCell is a table cell that shows a verdict as a word on a colour.
