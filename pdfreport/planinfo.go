@@ -4,6 +4,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 )
 
 // kv is one key/value row.
@@ -55,15 +56,15 @@ func (d *doc) planInfo(c *content) {
 	if p.Population > 0 {
 		atCeiling = "P(accept | lot error at the ceiling) = "
 	}
-	rows = append(rows, kv("Consumer's risk", atCeiling+prob(p.ConsumerRisk)))
+	rows = append(rows, kv("Consumer's risk", atCeiling+numfmt.Chance(p.ConsumerRisk)))
 	if p.Anticipated != nil {
 		rows = append(rows, kv("Anticipated error p0", f.Anticipated))
 	}
 	if p.ProducerRisk != nil {
-		rows = append(rows, kv("Producer's risk", "P(reject | error = p0) = "+prob(*p.ProducerRisk)))
+		rows = append(rows, kv("Producer's risk", "P(reject | error = p0) = "+numfmt.Chance(*p.ProducerRisk)))
 	}
 	if p.Population > 0 {
-		rows = append(rows, kv("Population N", count(p.Population)+" decisions (finite lot)"))
+		rows = append(rows, kv("Population N", numfmt.Count(p.Population)+" decisions (finite lot)"))
 	} else {
 		rows = append(rows, kv("Population", "unbounded stream of decisions"))
 	}

@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
 
@@ -22,20 +23,20 @@ var boundWords = map[plan.Bound]string{
 // rule and the multiplicity correction, in one or two factual sentences.
 func methodInfo(p *plan.File, m judgeMethod, n int, level float64, res *Result) record.MethodInfo {
 	var b strings.Builder
-	fmt.Fprintf(&b, "One-sided upper %s confidence bounds by %s", pct(1-level), boundWords[m.bound])
+	fmt.Fprintf(&b, "One-sided upper %s confidence bounds by %s", numfmt.Confidence(1-level), boundWords[m.bound])
 	switch p.Inputs.Multiplicity {
 	case plan.Bonferroni:
-		fmt.Fprintf(&b, ", Bonferroni-adjusted for %d candidates so they hold simultaneously at %s", p.Inputs.CandidateCount, pct(p.Inputs.Confidence))
+		fmt.Fprintf(&b, ", Bonferroni-adjusted for %d candidates so they hold simultaneously at %s", p.Inputs.CandidateCount, numfmt.Confidence(p.Inputs.Confidence))
 	case plan.Holm:
-		fmt.Fprintf(&b, " (simultaneous at %s over %d candidates); candidates are accepted by Holm's step-down procedure at family-wise risk %s", pct(p.Inputs.Confidence), p.Inputs.CandidateCount, pct(1-p.Inputs.Confidence))
+		fmt.Fprintf(&b, " (simultaneous at %s over %d candidates); candidates are accepted by Holm's step-down procedure at family-wise risk %s", numfmt.Confidence(p.Inputs.Confidence), p.Inputs.CandidateCount, numfmt.Chance(1-p.Inputs.Confidence))
 	case plan.FixedSequence:
-		fmt.Fprintf(&b, "; candidates are tested in their declared order at %s and testing stops at the first rejection", pct(1-p.Inputs.Confidence))
+		fmt.Fprintf(&b, "; candidates are tested in their declared order at %s and testing stops at the first rejection", numfmt.Chance(1-p.Inputs.Confidence))
 	}
 	b.WriteString(". ")
 	if m.ruleApplies {
-		fmt.Fprintf(&b, "A candidate passes when it makes at most c = %d errors in the n = %d labeled decisions, which is the same as its bound lying below the ceiling of %s.", p.Rule.AcceptanceNumber, n, pct(p.Inputs.Ceiling))
+		fmt.Fprintf(&b, "A candidate passes when it makes at most c = %d errors in the n = %d labeled decisions, which is the same as its bound lying below the ceiling of %s.", p.Rule.AcceptanceNumber, n, numfmt.Setting(p.Inputs.Ceiling))
 	} else {
-		fmt.Fprintf(&b, "A candidate passes when its upper bound lies below the ceiling of %s (%d decisions judged).", pct(p.Inputs.Ceiling), n)
+		fmt.Fprintf(&b, "A candidate passes when its upper bound lies below the ceiling of %s (%d decisions judged).", numfmt.Setting(p.Inputs.Ceiling), n)
 	}
 	if res.SelfWeighting && !m.bound.Weighted() {
 		b.WriteString(" The sample is self-weighting (proportional allocation), so errors are counted directly.")
@@ -43,10 +44,4 @@ func methodInfo(p *plan.File, m judgeMethod, n int, level float64, res *Result) 
 		b.WriteString(" Inclusion weights differ between strata, so the error is estimated by weighting each stratum by its share N_h/N.")
 	}
 	return record.MethodInfo{Bound: m.bound, Approximate: m.bound.Approximate(), Statement: b.String()}
-}
-
-// pct formats a probability as a percentage with up to four significant
-// digits ("95 %", "0.1 %", "99.99 %").
-func pct(x float64) string {
-	return short(100*x) + " %"
 }
