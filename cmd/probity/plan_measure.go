@@ -12,6 +12,7 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/plan/measure"
+	"probity/plan/numfmt"
 )
 
 // measureOptions are plan's flags for error measures with their own
@@ -197,9 +198,9 @@ func writeMeasuresReport(w io.Writer, f *plan.File, out, fingerprint string) err
 	m := f.Measures
 	fmt.Fprintf(w, "Label %s, stratified by the candidates' predictions; a uniform sample would need %s (%.1f× as many).\n",
 		decisions(m.Design.Total), decisions(m.Design.Uniform), m.Design.Saving)
-	fmt.Fprintf(w, "\nClaims (positive class %q, prevalence %s, %s decisions a period assumed):\n", m.Positive, pct(m.Prevalence), strconv.FormatInt(m.Decisions, 10))
-	fmt.Fprintf(w, "  a candidate whose measure is at or above its ceiling is accepted with probability at most %s\n", pct(m.Design.Level))
-	fmt.Fprintf(w, "  (%s over the family of %d (measure, candidate) claims: δ = %s)\n", f.Inputs.Multiplicity.Title(), m.Design.Family, pct(1-f.Inputs.Confidence))
+	fmt.Fprintf(w, "\nClaims (positive class %q, prevalence %s, %s decisions a period assumed):\n", m.Positive, numfmt.Rate(m.Prevalence), strconv.FormatInt(m.Decisions, 10))
+	fmt.Fprintf(w, "  a candidate whose measure is at or above its ceiling is accepted with probability at most %s\n", numfmt.Chance(m.Design.Level))
+	fmt.Fprintf(w, "  (%s over the family of %d (measure, candidate) claims: δ = %s)\n", f.Inputs.Multiplicity.Title(), m.Design.Family, numfmt.Chance(1-f.Inputs.Confidence))
 	wn := len("candidate")
 	for _, c := range m.Claims {
 		wn = max(wn, len([]rune(c.Candidate)))
@@ -207,7 +208,7 @@ func writeMeasuresReport(w io.Writer, f *plan.File, out, fingerprint string) err
 	fmt.Fprintf(w, "  %-*s  %-7s  %8s  %11s  %14s\n", wn, "candidate", "measure", "ceiling", "anticipated", "producer risk")
 	for _, c := range m.Claims {
 		fmt.Fprintf(w, "  %-*s  %-7s  %8s  %11s  %14s\n", wn, c.Candidate, c.Measure, strconv.FormatFloat(c.Ceiling, 'g', -1, 64),
-			strconv.FormatFloat(c.Anticipated, 'g', 4, 64), pct(c.ProducerRisk))
+			strconv.FormatFloat(c.Anticipated, 'g', 4, 64), numfmt.Chance(c.ProducerRisk))
 	}
 	fmt.Fprintf(w, "\nDesign across the strata every candidate predicts alike (anticipated):\n")
 	wl := len("stratum")
