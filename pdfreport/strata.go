@@ -24,13 +24,14 @@ func (d *doc) strataSection(c *content) {
 			{text: "All strata", bold: true}, {text: numfmt.Count(popTotal), bold: true},
 			{text: itoa(sampleTotal), bold: true}, {text: ""},
 		})
-		d.subheading("Strata of the draw", 12)
-		d.drawTable(&table{
+		t := &table{
 			title: "Strata of the draw",
 			cols: []column{{head: "Stratum", w: 40}, {head: "Population N_h", w: 20, align: "R"},
 				{head: "Sample n_h", w: 20, align: "R"}, {head: "Inclusion weight N_h/n_h", w: 20, align: "R"}},
 			rows: rows, header: true, compact: len(rows) > 10,
-		})
+		}
+		d.subheading("Strata of the draw", d.leadHeight(t))
+		d.drawTable(t)
 	}
 	any := false
 	for _, cand := range rec.Candidates {
@@ -55,13 +56,14 @@ func (d *doc) strataSection(c *content) {
 			})
 		}
 		title := "Errors per stratum: " + cand.Name
-		d.subheading(title, 14)
-		d.drawTable(&table{
+		t := &table{
 			title: title,
 			cols: []column{{head: "Stratum", w: 36}, {head: "Labeled", w: 13, align: "R"},
 				{head: "Errors", w: 13, align: "R"}, {head: "Rate", w: 14, align: "R"},
 				{head: "95 % lower limit", w: 15, align: "R"}, {head: "95 % upper limit", w: 15, align: "R"}},
 			rows: rows, header: true, compact: len(rows) > 10,
-		})
+		}
+		d.subheading(title, d.leadHeight(t))
+		d.drawTable(t)
 	}
 }
