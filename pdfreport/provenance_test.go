@@ -59,3 +59,26 @@ func TestSelectionFormulaIsPrinted(t *testing.T) {
 		t.Error("a draw without a period does not say that the plan seed is the selection seed")
 	}
 }
+
+// TestStratumIntervalsAreDescriptive: the per-stratum intervals are said
+// to be descriptive, two-sided 95 % and not the verdict's level, and a
+// stratum with fewer than 30 labeled items is marked small, with the
+// threshold named a rule of thumb.
+func TestStratumIntervalsAreDescriptive(t *testing.T) {
+	rec := manyRecord() // strata of 20 to 39 labeled items
+	text := flat(pdfText(t, render(t, rec, Options{})))
+	for _, want := range []string{
+		"Descriptive only", "two-sided exact (Clopper–Pearson) 95 % interval",
+		"That is not the verdict's level (a one-sided 99.5833 % upper bound",
+		"fewer than 30 labeled items is marked small", "30 is a common rule of thumb, no source",
+		"Errors per stratum (descriptive): seam-net-00-threshold-0.30",
+		"line 01 / shift A (small) 20", "line 05 / shift B (small) 29",
+	} {
+		if !strings.Contains(text, want) {
+			t.Errorf("text lacks %q", want)
+		}
+	}
+	if strings.Contains(text, "line 06 / shift A (small)") {
+		t.Error("a stratum of 30 labeled items is marked small")
+	}
+}
