@@ -126,8 +126,3 @@ func (e *expSum) Quantile(alpha float64) float64 {
 	}
 	return hi
 }
-
-func lgamma(x float64) float64 {
-	v, _ := math.Lgamma(x)
-	return v
-}

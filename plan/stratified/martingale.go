@@ -38,6 +38,12 @@ func (c mixtureCost) at(d int64) float64 {
 	return mix - math.Log(plan.HypergeometricPMF(x, c.s.Population, d, n))
 }
 
+// lgamma is ln Γ(x) for x > 0.
+func lgamma(x float64) float64 {
+	v, _ := math.Lgamma(x)
+	return v
+}
+
 func lbeta(a, b float64) float64 { return lgamma(a) + lgamma(b) - lgamma(a+b) }
 
 func lchoose(n, k int) float64 {
