@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -101,7 +102,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
 		}
 	}
 	if in.Anticipated == nil && f.Sequential == nil {
-		v := 1 - f.AcceptProbability(in.Ceiling/2)
+		v := 1 - f.HalfCeilingPoint().AcceptProbability
 		j.RejectAtHalfCeiling = &v
 	}
 	for _, row := range f.Comparison {
@@ -200,13 +201,18 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 		}
 		fmt.Fprintf(w, "  producer's risk: %s fails with probability %s (allowed %s).\n", good, pct(*r.ProducerRisk), pct(in.ProducerRisk))
 	} else if f.Sequential == nil {
-		half := 1 - f.AcceptProbability(in.Ceiling/2)
+		half := f.HalfCeilingPoint()
 		if r.AcceptanceNumber == 0 {
 			fmt.Fprintf(w, "  No anticipated error was given, so this is the zero-failure plan: a single error rejects.\n")
 		} else {
 			fmt.Fprintf(w, "  No anticipated error was given: this is the smallest plan any count can pass.\n")
 		}
-		fmt.Fprintf(w, "  A model whose true error is half the ceiling (%s) would be rejected %s of the time;\n", pct(in.Ceiling/2), pct(half))
+		if N := in.Population; N > 0 {
+			d := int64(math.Round(half.Error * float64(N)))
+			fmt.Fprintf(w, "  A batch with %d errors (%s, half the ceiling rounded down to a whole error) would be rejected %s of the time;\n", d, pct(half.Error), pct(1-half.AcceptProbability))
+		} else {
+			fmt.Fprintf(w, "  A model whose true error is half the ceiling (%s) would be rejected %s of the time;\n", pct(half.Error), pct(1-half.AcceptProbability))
+		}
 		fmt.Fprintf(w, "  give --anticipated to size a plan that passes a good model more reliably.\n")
 	}
 
@@ -261,11 +267,15 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 			a = seq[i]
 		}
 		mark := ""
+		p0, hasP0 := f.AnticipatedPoint()
 		switch {
-		case p.Error == in.Ceiling:
+		case p.Error == f.CeilingPoint():
 			mark = "  ceiling"
-		case in.Anticipated != nil && p.Error == *in.Anticipated:
+		case hasP0 && p.Error == p0:
 			mark = "  anticipated"
+		}
+		if N := in.Population; N > 0 && mark != "" {
+			mark += fmt.Sprintf(" (%s in the batch)", errorCount(int64(math.Round(p.Error*float64(N)))))
 		}
 		fmt.Fprintf(w, "  %-12s %s%s\n", pct(p.Error), pct(a), mark)
 	}
@@ -396,4 +406,12 @@ func decisions(n int) string {
 		return "1 decision"
 	}
 	return strconv.Itoa(n) + " decisions"
+}
+
+// errorCount is "1 error" or "k errors".
+func errorCount(k int64) string {
+	if k == 1 {
+		return "1 error"
+	}
+	return strconv.FormatInt(k, 10) + " errors"
 }
