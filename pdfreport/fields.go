@@ -59,6 +59,23 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 	if p.Population > 0 {
 		f.Population = count(p.Population)
 	}
+	if r := rec.Method.Rule; r != nil && r.Name == record.RuleStratifiedCount {
+		f.CountRule, f.CountedSize, f.CountAcceptance, f.Thinned = true, r.CountedSize, r.AcceptanceNumber, r.Thinned
+		for _, s := range r.Strata {
+			if s.Unknown {
+				f.UnknownStrata++
+			}
+		}
+		f.ConsumerRisk, f.CountRiskBound = "", riskPct(r.ConsumerRiskBound)
+		if r.ProducerRisk != nil {
+			f.ProducerRisk, f.AnticipatedFrom = riskPct(*r.ProducerRisk), r.AnticipatedFrom
+		}
+	}
+	for _, c := range rec.Candidates {
+		if c.BoundConfidence > 0 && c.BoundConfidence != boundConfidence(rec) {
+			f.StepLevels = true
+		}
+	}
 	return f
 }
 

@@ -17,7 +17,6 @@ import (
 	"probity/plan/record/assemble"
 	"probity/plan/record/intake"
 	"probity/plan/record/signature"
-	"probity/plan/verdict"
 	"probity/templates"
 )
 
@@ -35,7 +34,6 @@ type recordOptions struct {
 	paper           string
 	templatesDir    string
 	bound           string
-	unequal         verdict.UnequalBound
 	force           bool
 	json            bool
 	// quality holds the double-labeling flags (record_quality.go).
@@ -65,10 +63,15 @@ unlabeled or unsure as an error for every candidate and says so in the record.
 
 A self-weighting sample is judged by the plan's rule (accept when errors ≤ c),
 with the exact Clopper–Pearson bound (or the exact hypergeometric bound for a
-finite lot). When the strata's inclusion weights are unequal the error is
-estimated stratum by stratum (weighted by N_h/N) and bounded by Korn–Graubard
-(default; approximate) or, with --bound weighted-hoeffding, by the weighted
-Hoeffding bound (rigorous, wider). A sequential plan is labeled from the top
+finite lot). A stratified sample is judged by the plan's rule only when its
+allocation is exactly proportional; any other allocation (rounded shares,
+equal, Neyman, a minimum per stratum, strata left without an item) is judged
+by the stratified count rule, which keeps the stated risk wherever the errors
+sit: at most c errors among the counted items, c set at the least favourable
+spread of errors over the strata (Hoeffding 1956), a stratum without items
+counting as unknown. The record names the rule applied and why; the error is
+estimated stratum by stratum (weighted by N_h/N), with the Korn–Graubard bound
+as a descriptive figure. A sequential plan is labeled from the top
 of the worksheet without gaps and each candidate is judged by the plan's
 boundaries where they decide (probity progress says when to stop); items
 below that point may stay blank.
@@ -106,7 +109,8 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 	fl.StringVar(&opts.date, "date", "", "the record's date, YYYY-MM-DD (default: today, UTC)")
 	fl.StringVar(&opts.paper, "paper", "a4", "paper size of record.pdf: a4 or letter")
 	fl.StringVar(&opts.templatesDir, "templates", "", "folder of wording files overriding the built-in ones")
-	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
+	fl.StringVar(&opts.bound, "bound", "", "no longer used: stratified samples are judged by the stratified count rule")
+	fl.MarkHidden("bound")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
 	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
 	addLabelQualityFlags(cmd, &opts.quality)
@@ -132,11 +136,10 @@ func (o *recordOptions) validate() error {
 			return inputerr.Errorf("--date %q is not a date in the form YYYY-MM-DD", o.date).WithHint("for example --date 2026-03-31")
 		}
 	}
-	u, err := verdict.ParseUnequalBound(o.bound)
-	if err != nil {
-		return inputerr.Errorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
+	if o.bound != "" {
+		return inputerr.Errorf("--bound is no longer an option: a stratified sample is judged by the stratified count rule, which keeps the stated risk under any allocation (the Korn–Graubard bound is reported beside it as a descriptive figure)").
+			WithHint("drop --bound")
 	}
-	o.unequal = u
 	return o.quality.validate()
 }
 
@@ -189,7 +192,7 @@ func runRecord(d deps, o *recordOptions) error {
 	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated}
 	rec, err := assemble.Record(files, assemble.Options{
 		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
-		Bound: o.unequal, Use: o.use, Date: date, Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
+		Use: o.use, Date: date, Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
 	})
 	if err != nil {
 		return recordHints(err, o)

@@ -11,7 +11,6 @@ import (
 	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
-	"probity/plan/verdict"
 	"probity/sampling/drawfolder"
 )
 
@@ -116,14 +115,14 @@ func fileHash(path string) (string, error) {
 }
 
 // recompute builds the record again from its inputs with the stored
-// record's own options (date, use, bound, sign-off, signing key, the
+// record's own options (date, use, sign-off, signing key, the
 // treatment of incomplete labeling and of double labeling), through
 // assemble.Record as the record command does, and compares it with the
 // stored record field by field.
 func recompute(rep *Report, in Input, rec *record.Record) error {
 	files := in.Files
 	o := assemble.Options{
-		AllowIncomplete: rec.Deviations.AllowIncomplete, Bound: verdict.UnequalBoundOf(rec.Method.Bound),
+		AllowIncomplete: rec.Deviations.AllowIncomplete,
 		Use: rec.Use, Date: rec.Date, Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
 	}
 	if lq := rec.LabelQuality; lq != nil {
