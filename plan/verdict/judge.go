@@ -438,4 +438,3 @@ func overall(require plan.Require, cands []record.Candidate) string {
 	}
 	return record.Reject
 }
-

@@ -123,7 +123,7 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	files := in.Files
 	o := assemble.Options{
 		AllowIncomplete: rec.Deviations.AllowIncomplete,
-		Use: rec.Use, Date: rec.Date, Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
+		Use:             rec.Use, Date: rec.Date, Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
 	}
 	if lq := rec.LabelQuality; lq != nil {
 		if files.Second == "" {
