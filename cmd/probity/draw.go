@@ -32,6 +32,8 @@ type drawOptions struct {
 	where       []string
 	allocation  string
 	minPer      int
+	minPerSet   bool
+	rounding    string
 	anticipated string
 	spare       int
 	dedupe      string
@@ -69,13 +71,27 @@ the values of the --strata columns joined with | in the order given, then the
 [0,0.5), [0.5,0.9) and [0.9,1].
 
 The plan's n is allocated across strata --allocation proportional (the
-default; largest remainder, ties by stratum label in byte order), neyman
-(n_h ∝ N_h·√(p_h(1−p_h)), p_h from --anticipated FILE, a CSV with columns
-stratum,anticipated_error or a YAML mapping, or derived from the first band as
-min(m, 1−m) at the interval midpoint m) or equal. A stratum smaller than its
-share is taken whole and the rest shared again. --min-per-stratum k raises
-small strata to k; the inclusion weights N_h/n_h are then unequal and
-recorded.
+default), neyman (n_h ∝ N_h·√(p_h(1−p_h)), p_h from --anticipated FILE, a CSV
+with columns stratum,anticipated_error or a YAML mapping, or derived from the
+first band as min(m, 1−m) at the interval midpoint m) or equal. Proportional
+shares are rounded up (--rounding up, the default): every stratum gets
+⌈n·N_h/N⌉ items, so none is sampled below its share and every stratum gets an
+item, at the cost of at most one label per stratum beyond n;
+--rounding largest-remainder keeps exactly n (ties by stratum label in byte
+order). Neyman and equal shares are rounded by largest remainder, and a
+stratum smaller than its share is taken whole and the rest shared again.
+Every stratum gets at least --min-per-stratum k items (default 1 when the
+sample has room for one per stratum; --min-per-stratum 0 lets a stratum get
+none). A stratum with no item counts as unknown in the verdict: all of its
+decisions may be errors.
+
+Unless the allocation is exactly proportional, the verdict rests on the
+stratified count rule (see probity record --help), which keeps the plan's
+consumer's risk under any allocation; draw prints that rule — its acceptance
+number, the items it counts, and the producer's risk it gives at the
+anticipated error — before any label is given. A sequential plan needs a
+draw without strata: its boundaries count errors down the worksheet, and
+only an unstratified worksheet has every prefix a simple random sample.
 
 DIR receives, each written to a temporary name and renamed:
   worksheet.csv         for the labelers: item, record_id, the --show columns,
@@ -107,6 +123,10 @@ Labels written into the worksheets since the draw are not differences.
   probity draw --check audit-2026-11 --plan plan.yaml --log predictions.csv.gz`,
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
+			opts.minPerSet = cmd.Flags().Changed("min-per-stratum")
+			if cmd.Flags().Changed("rounding") && opts.allocation != sampling.Proportional {
+				return inputerr.Errorf("--rounding applies to --allocation proportional only").WithHint("drop --rounding")
+			}
 			return opts.validate()
 		},
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -128,7 +148,8 @@ Labels written into the worksheets since the draw are not differences.
 	fl.StringSliceVar(&opts.show, "show", nil, "columns the labelers see in the worksheet (`COL,...`)")
 	fl.StringArrayVar(&opts.where, "where", nil, "draw only from rows whose COLUMN holds one of the values: `COLUMN=V1,V2` (repeatable)")
 	fl.StringVar(&opts.allocation, "allocation", sampling.Proportional, "how n is divided among strata: `RULE` is proportional, neyman or equal")
-	fl.IntVar(&opts.minPer, "min-per-stratum", 0, "at least `k` items from every stratum (weights become unequal)")
+	fl.IntVar(&opts.minPer, "min-per-stratum", 1, "at least `k` items from every stratum (default 1 when the sample has room; 0 leaves strata that get no share empty, counted as unknown)")
+	fl.StringVar(&opts.rounding, "rounding", sampling.RoundUp, "proportional shares rounded `up` (no stratum below its share; up to one item per stratum beyond n) or largest-remainder (exactly n)")
 	fl.StringVar(&opts.anticipated, "anticipated", "", "anticipated error per stratum for neyman: CSV (stratum,anticipated_error) or YAML `FILE`")
 	fl.IntVar(&opts.spare, "spare", 0, "`k` spare items per stratum, next in key order, to replace items that cannot be labeled")
 	fl.StringVar(&opts.dedupe, "dedupe", "", "with `first`: keep the first row of a repeated record id instead of refusing")
@@ -181,6 +202,9 @@ func (o *drawOptions) validate() error {
 		if v.n < 0 {
 			return inputerr.Errorf("%s %d is negative", v.name, v.n)
 		}
+	}
+	if o.rounding != sampling.RoundUp && o.rounding != sampling.RoundLargestRemainder {
+		return inputerr.Errorf("--rounding %s is not %s or %s", o.rounding, sampling.RoundUp, sampling.RoundLargestRemainder).WithHint("the default, up, keeps every stratum at or above its proportional share")
 	}
 	if o.dedupe != "" && o.dedupe != "first" {
 		return inputerr.Errorf("--dedupe %s is not supported", o.dedupe).WithHint("--dedupe first keeps the first row of each repeated id")
@@ -270,13 +294,16 @@ func runDraw(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
+	if err := refuseStratifiedSequential(p, o); err != nil {
+		return err
+	}
 	if err := safewrite.CheckFolder(o.out, o.force); err != nil {
 		return drawError(err)
 	}
 	in := sampling.DrawInput{
 		Plan: p, PlanFingerprint: fp, LogPath: o.logPath, Format: o.format, Period: o.period,
 		IDColumn: o.id, StrataColumns: o.strata, Bands: o.parsedBands, Where: o.parsedWhere, Show: o.show,
-		Alloc:  sampling.AllocOptions{Rule: o.allocation, MinPerStratum: o.minPer, Spare: o.spare},
+		Alloc:  o.allocOptions(),
 		Double: o.double, Dedupe: o.dedupe == "first", ToolVersion: d.version,
 	}
 	if o.allocation == sampling.Neyman {
@@ -300,7 +327,29 @@ func runDraw(d deps, o *drawOptions) error {
 		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
-	return nil
+	return writeDrawRule(d.stdout, p, f.Manifest)
+}
+
+// allocOptions are the allocation flags: the default minimum of one per
+// stratum applies only when the sample has room for it; an explicit
+// --min-per-stratum always does.
+func (o *drawOptions) allocOptions() sampling.AllocOptions {
+	a := sampling.AllocOptions{Rule: o.allocation, MinPerStratum: o.minPer, MinIfRoom: !o.minPerSet, Spare: o.spare}
+	if o.allocation == sampling.Proportional {
+		a.Rounding = o.rounding
+	}
+	return a
+}
+
+// refuseStratifiedSequential refuses to draw a sequential plan with strata:
+// its boundaries count errors down the worksheet, and a prefix of a
+// stratified worksheet is not a simple random sample of the population.
+func refuseStratifiedSequential(p *plan.File, o *drawOptions) error {
+	if p.Sequential == nil || len(o.strata)+len(o.bands) == 0 {
+		return nil
+	}
+	return inputerr.Errorf("the plan is sequential, and a sequential plan cannot be drawn with --strata or --band: its boundaries count errors down the worksheet, and only an unstratified worksheet has every prefix a simple random sample").
+		WithHint("drop --strata and --band, or make a fixed plan (probity plan --design fixed) for a stratified draw")
 }
 
 // inputs are the files the draw reads, which its output never replaces.

@@ -111,7 +111,7 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 	}
 	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: "log.csv", Log: log,
 		Format: "csv", IDColumn: "record_id", StrataColumns: strata, Show: fx.show,
-		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 2, MinPerStratum: minPer}, ToolVersion: "test"})
+		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 2, MinPerStratum: minPer, Rounding: sampling.RoundUp}, ToolVersion: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}

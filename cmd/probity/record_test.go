@@ -229,7 +229,7 @@ func TestRecordUnequalWeights(t *testing.T) {
 	r := readRecord(t, out)
 	rule := r.Method.Rule
 	if r.Method.Bound != plan.BoundStratifiedCount || r.Method.Approximate || rule == nil || rule.Name != record.RuleStratifiedCount ||
-		!strings.Contains(r.Method.Statement, "N_h/N") || !strings.Contains(rule.Reason, "not self-weighting") || len(rule.Sources) != 3 {
+		!strings.Contains(r.Method.Statement, "N_h/N") || !strings.Contains(rule.Reason, "keeps the risk whatever the allocation") || len(rule.Sources) != 3 {
 		t.Fatalf("method %+v, rule %+v", r.Method, rule)
 	}
 	counted := 0

@@ -150,9 +150,13 @@ func (a *Applied) RuleAt(confidence float64) (*stratified.CountRule, error) {
 	return stratified.NewCountRule(a.Count.Design, a.Count.Counted, a.Count.Ceiling, confidence)
 }
 
-// anticipatedErrors is ⌊rate_h·N_h⌋ per stratum (plan.GoodLotErrors), with
-// the rates given, else the plan's p0 in every stratum, else half the
-// ceiling; from says which.
+// anticipatedErrors spreads the anticipated errors over the strata: with
+// rates r_h (given, else the plan's p0 in every stratum, else half the
+// ceiling), stratum h holds ⌊r_h·N_h⌋ errors and the units the floors
+// lost, ⌊Σ r_h·N_h⌋ − Σ⌊r_h·N_h⌋, go to the largest remainders (ties to
+// the earlier stratum), so the total is the population's anticipated
+// count and small strata are not rounded to no error at all. from says
+// where the rates came from.
 func anticipatedErrors(p *plan.File, d Design, rates []float64) ([]int64, string, error) {
 	from := "the per-stratum anticipated errors of the draw"
 	if rates == nil {
@@ -171,11 +175,32 @@ func anticipatedErrors(p *plan.File, d Design, rates []float64) ([]int64, string
 		return nil, "", inputerr.Errorf("%w: %d anticipated rates for %d strata", ErrInput, len(rates), len(d.Strata))
 	}
 	out := make([]int64, len(rates))
+	rem := make([]float64, len(rates))
+	var want float64
+	var got int64
 	for h, r := range rates {
 		if !(r >= 0 && r <= 1) || math.IsNaN(r) {
 			return nil, "", inputerr.Errorf("%w: anticipated error %v of stratum %q is outside [0, 1]", ErrInput, r, d.Strata[h].Label)
 		}
+		t := r * float64(d.Strata[h].Population)
 		out[h] = plan.GoodLotErrors(d.Strata[h].Population, r)
+		rem[h] = t - float64(out[h])
+		want += t
+		got += out[h]
+	}
+	total := int64(math.Floor(want + 1e-9))
+	for ; got < total; got++ {
+		best := -1
+		for h := range rem {
+			if out[h] < d.Strata[h].Population && (best < 0 || rem[h] > rem[best]) {
+				best = h
+			}
+		}
+		if best < 0 {
+			break
+		}
+		out[best]++
+		rem[best] = -1
 	}
 	return out, from, nil
 }
