@@ -78,7 +78,7 @@ type AllocationInfo struct {
 	// MinPerStratum is the minimum per stratum applied (0 when none was,
 	// including a default minimum the sample had no room for).
 	MinPerStratum int `json:"min_per_stratum"`
-	Spare         int    `json:"spare"`
+	Spare         int `json:"spare"`
 	// NeymanSource names the anticipated-error file or band for neyman.
 	NeymanSource string `json:"neyman_source,omitempty"`
 	// Rounding is how proportional shares were rounded: "up" (every
