@@ -6,7 +6,6 @@ import (
 	"strings"
 
 	"probity/plan"
-	"probity/plan/record/assemble"
 	"probity/plan/verdict"
 	"probity/sampling/drawfolder"
 )
@@ -18,7 +17,7 @@ func drawRule(p *plan.File, m *drawfolder.Manifest) (*verdict.Applied, error) {
 	for _, s := range m.Strata {
 		d.Strata = append(d.Strata, verdict.Stratum{Label: s.Label, Population: s.Population, Sample: s.Sample})
 	}
-	return verdict.Choose(p, d, assemble.ManifestRates(m))
+	return verdict.Choose(p, d, m.AnticipatedRates())
 }
 
 // writeDrawRule prints, before any label is given, which rule will judge

@@ -170,7 +170,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 		case plan.Bonferroni:
 			fmt.Fprintf(w, "Bonferroni: each candidate is held to risk %s = (1 − %s)/%d.\n", pct(r.PerCandidateRisk), pct(in.Confidence), m)
 		case plan.Holm:
-			fmt.Fprintf(w, "Holm: sized as Bonferroni (risk %s per candidate at the first step); judging steps down and accepts more often.\n", pct(r.PerCandidateRisk))
+			fmt.Fprintf(w, "Holm: sized as Bonferroni (its first step tests each candidate at %s); later steps test at larger risks, up to %s.\n", pct(r.PerCandidateRisk), pct(1-in.Confidence))
 		case plan.FixedSequence:
 			fmt.Fprintf(w, "Fixed sequence: candidates are tested in the declared order at the full risk %s, stopping at the first rejected.\n", pct(r.PerCandidateRisk))
 		}
@@ -193,7 +193,13 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if in.Multiplicity.EffectiveCandidates(m) > 1 {
 		allowed = fmt.Sprintf("allowed %s per candidate, so %s confidence for all %d together", pct(r.PerCandidateRisk), pct(in.Confidence), m)
 	}
-	fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (%s).\n", bad, pct(r.ConsumerRisk), allowed)
+	if in.Multiplicity == plan.Holm && m > 1 {
+		fmt.Fprintf(w, "  consumer's risk: Holm's step-down keeps the chance that any candidate at or above the ceiling passes at most %s (%s confidence for all %d together).\n", pct(1-in.Confidence), pct(in.Confidence), m)
+		fmt.Fprintf(w, "    Its first step tests each candidate at %s (this rule's exact risk there: %s); later steps test at up to %s,\n", pct(r.PerCandidateRisk), pct(r.ConsumerRisk), pct(1-in.Confidence))
+		fmt.Fprintf(w, "    so one candidate on its own may pass with probability up to %s when the others pass.\n", pct(1-in.Confidence))
+	} else {
+		fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (%s).\n", bad, pct(r.ConsumerRisk), allowed)
+	}
 	if in.Anticipated != nil {
 		good := fmt.Sprintf("a model whose true error is the anticipated %s", pct(*in.Anticipated))
 		if in.Population > 0 {

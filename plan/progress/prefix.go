@@ -57,7 +57,7 @@ func prefix(in Input) ([]item, int, error) {
 			return nil, 0, &inputerr.Error{File: name, Line: w.Line,
 				Msg: fmt.Sprintf("the ledger holds %d predictions for item %d but the plan has %d candidates", len(l.Predictions), w.Item, len(in.Plan.Candidates))}
 		}
-		items = append(items, item{label: label, preds: l.Predictions})
+		items = append(items, item{label: label, preds: l.Predictions, stratum: l.Stratum})
 	}
 	return items, spares, nil
 }

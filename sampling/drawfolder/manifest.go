@@ -213,3 +213,17 @@ func lineAt(data []byte, off int64) int {
 	}
 	return bytes.Count(data[:off], []byte("\n")) + 1
 }
+
+// AnticipatedRates are the anticipated error rates per stratum the draw
+// recorded (its Neyman allocation's), in the order of Strata, or nil when
+// it recorded none (a judgement then takes the plan's).
+func (m *Manifest) AnticipatedRates() []float64 {
+	var out []float64
+	for _, s := range m.Strata {
+		if s.Anticipated <= 0 {
+			return nil
+		}
+		out = append(out, s.Anticipated)
+	}
+	return out
+}

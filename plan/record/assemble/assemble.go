@@ -253,25 +253,11 @@ func checkUse(use string) error {
 // judge runs the verdict package on the checked items, with the
 // anticipated errors per stratum the draw recorded (Neyman allocation).
 func judge(p *plan.File, c *intake.Result, m *drawfolder.Manifest) (*verdict.Result, error) {
-	in := verdict.Input{Plan: p, Design: c.Design, Items: c.Items, Rates: ManifestRates(m)}
+	in := verdict.Input{Plan: p, Design: c.Design, Items: c.Items, Rates: m.AnticipatedRates()}
 	if p.Sequential != nil {
 		return verdict.JudgeSequential(in)
 	}
 	return verdict.Judge(in)
-}
-
-// ManifestRates are the anticipated error rates per stratum a draw
-// recorded (its Neyman allocation's), in the manifest's stratum order, or
-// nil when it recorded none: the count rule then takes the plan's.
-func ManifestRates(m *drawfolder.Manifest) []float64 {
-	var out []float64
-	for _, s := range m.Strata {
-		if s.Anticipated <= 0 {
-			return nil
-		}
-		out = append(out, s.Anticipated)
-	}
-	return out
 }
 
 // weightsNote says what the allocation did to the inclusion weights

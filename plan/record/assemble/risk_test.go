@@ -1,0 +1,279 @@
+package assemble_test
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"sort"
+	"strings"
+	"testing"
+
+	"probity/plan"
+	"probity/plan/verdict"
+	"probity/sampling"
+	"probity/sampling/drawfolder"
+)
+
+// The promise of every record — a candidate whose true error is at or
+// above the ceiling is accepted with probability at most δ — checked by
+// running the whole audit many times on invented populations holding
+// exactly D* = ⌈ceiling·N⌉ errors, spread over the strata the ways most
+// likely to break it. A run accepts too often when the number of
+// acceptances is improbably high for a rate of δ: P(Bin(R, δ) ≥ accepted)
+// < 0.001 (a one-sided binomial test at level 0.001; common practice, no
+// source). Repetitions: PROBITY_DEEP_MC=1 for a deeper run (ten times as
+// many), -short for a smoke run.
+
+// spread places D errors over strata of sizes N. A new adversarial spread
+// is one line in spreads.
+type spread struct {
+	name string
+	// order ranks the strata: the errors fill them whole, lowest rank
+	// first; nil spreads them in proportion to N_h.
+	order func(N []int64, h int) float64
+}
+
+var spreads = []spread{
+	{"evenly", nil},
+	{"smallest stratum first", func(N []int64, h int) float64 { return float64(N[h]) }},
+	{"largest stratum first", func(N []int64, h int) float64 { return -float64(N[h]) }},
+}
+
+// place puts D errors into strata of sizes N.
+func (sp spread) place(N []int64, D int64) []int64 {
+	out := make([]int64, len(N))
+	if sp.order == nil {
+		var total, got int64
+		for _, v := range N {
+			total += v
+		}
+		for h := range N {
+			out[h] = D * N[h] / total
+			got += out[h]
+		}
+		for h := 0; got < D; h = (h + 1) % len(N) {
+			if out[h] < N[h] {
+				out[h]++
+				got++
+			}
+		}
+		return out
+	}
+	idx := make([]int, len(N))
+	for h := range idx {
+		idx[h] = h
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return sp.order(N, idx[a]) < sp.order(N, idx[b]) })
+	rest := D
+	for _, h := range idx {
+		out[h] = min(rest, N[h])
+		rest -= out[h]
+	}
+	return out
+}
+
+// The invented populations (ceiling 5 %, confidence 90 %: every plan
+// allows 10 %).
+func fourStrata() []int64   { return []int64{6000, 3000, 800, 200} }
+func fourRounding() []int64 { return []int64{5360, 2340, 980, 320} } // shares 26.8/11.7/4.9/1.6 of 45
+func manySmallStrata() []int64 { // 57 strata of 150–542 decisions and 43 of 6–10
+	N := make([]int64, 100)
+	for h := range N {
+		if h < 57 {
+			N[h] = 150 + int64(h)*7
+		} else {
+			N[h] = 6 + int64(h%5)
+		}
+	}
+	return N
+}
+
+const riskCeiling, riskConfidence = 0.05, 0.90
+
+// riskInputs is a plan for one candidate at the ceiling and confidence
+// above: with anticipated error p0 sized for 90 % acceptance at p0, or
+// the zero-failure plan.
+func riskInputs(p0 *float64) plan.Inputs {
+	return plan.Inputs{Ceiling: riskCeiling, Confidence: riskConfidence, CandidateCount: 1, Anticipated: p0, ProducerRisk: 0.1,
+		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
+}
+
+// reps is the number of repetitions for a base of r.
+func reps(r int) int {
+	switch {
+	case os.Getenv("PROBITY_DEEP_MC") != "":
+		return 10 * r
+	case testing.Short():
+		return max(r/10, 20)
+	}
+	return r
+}
+
+// acceptRate runs the pipeline R times on fresh periods and tests the
+// acceptance rate against the plan's risk δ; it returns the count.
+func acceptRate(t *testing.T, p *pipeline, R int, tag string) int {
+	t.Helper()
+	p.assembleAgrees(t, tag+"-check")
+	hits := 0
+	for i := 0; i < R; i++ {
+		if p.run(t, fmt.Sprintf("%s-%d", tag, i)) {
+			hits++
+		}
+	}
+	delta := 1 - p.plan.Inputs.Confidence
+	if pv := plan.BinomialSF(hits-1, R, delta); pv < 0.001 {
+		t.Errorf("%s: accepted %d of %d at the ceiling; P(Bin(%d, %.3g) ≥ %d) = %.3g < 0.001", p.name, hits, R, R, delta, hits, pv)
+	}
+	return hits
+}
+
+// TestPipelineRiskIssueDesigns runs the designs that broke the promise
+// before the stratified count rule (issue 13's table) on populations of
+// our own making, errors placed where they did the damage, with the
+// draw's defaults and with the opt-outs that leave strata short
+// (largest-remainder rounding, no minimum per stratum). 300 repetitions
+// per design detect at level 0.001 an acceptance rate of 17 % or more
+// with probability above 0.8 (22 %: above 0.999).
+func TestPipelineRiskIssueDesigns(t *testing.T) {
+	R := reps(300)
+	p0 := 0.025
+	small := spreads[1]
+	designs := []struct {
+		name  string
+		N     []int64
+		p0    *float64
+		alloc sampling.AllocOptions
+		sp    spread
+	}{
+		{"equal allocation, errors in the smallest stratum", fourStrata(), &p0, sampling.AllocOptions{Rule: sampling.Equal, MinPerStratum: 1, MinIfRoom: true}, small},
+		{"proportional, minimum 60 per stratum, errors in the smallest", fourStrata(), &p0, sampling.AllocOptions{Rule: sampling.Proportional, MinPerStratum: 60, Rounding: sampling.RoundLargestRemainder}, small},
+		{"zero-failure plan, equal allocation", fourStrata(), nil, sampling.AllocOptions{Rule: sampling.Equal}, small},
+		{"zero-failure plan, proportional, 1.6-item share rounded down", fourRounding(), nil, sampling.AllocOptions{Rule: sampling.Proportional, Rounding: sampling.RoundLargestRemainder}, small},
+		{"zero-failure plan, proportional, shares rounded up (default)", fourRounding(), nil, sampling.AllocOptions{Rule: sampling.Proportional, Rounding: sampling.RoundUp, MinPerStratum: 1, MinIfRoom: true}, small},
+		{"proportional, 43 small strata left empty, errors there", manySmallStrata(), &p0, sampling.AllocOptions{Rule: sampling.Proportional, Rounding: sampling.RoundLargestRemainder}, small},
+	}
+	var table strings.Builder
+	for i, d := range designs {
+		in := riskInputs(d.p0)
+		var N int64
+		for _, v := range d.N {
+			N += v
+		}
+		errs := d.sp.place(d.N, plan.BadLotErrors(N, riskCeiling))
+		p := newPipeline(t, d.name, in, false, d.N, errs, d.alloc)
+		hits := acceptRate(t, p, R, fmt.Sprint("issue-", i))
+		fmt.Fprintf(&table, "%-64s n = %4d  errors %v  accepted %4d of %d (%.1f %%)\n", d.name, p.plan.Rule.SampleSize, shortList(errs), hits, R, 100*float64(hits)/float64(R))
+	}
+	t.Logf("acceptance at the ceiling (plan allows 10 %%), whole pipeline:\n%s", table.String())
+}
+
+// TestPipelineRiskAllocations runs every allocation (proportional with
+// each rounding, equal, Neyman, a minimum per stratum) against every spread
+// of D* errors on two populations. Each cell is also computed exactly —
+// the acceptance probability of the rule the judgement applied
+// (verdict.Applied, the count rule's convolution) — which must be at most
+// δ and agree with the simulated rate (two-sided binomial test at level
+// 0.001). The sequential design, which the record refuses on a stratified
+// draw, runs on the one-stratum draw of each population.
+func TestPipelineRiskAllocations(t *testing.T) {
+	R := reps(40)
+	p0 := 0.025
+	allocs := []struct {
+		name string
+		a    sampling.AllocOptions
+	}{
+		{"proportional (rounded up)", sampling.AllocOptions{Rule: sampling.Proportional, Rounding: sampling.RoundUp, MinPerStratum: 1, MinIfRoom: true}},
+		{"proportional (largest remainder)", sampling.AllocOptions{Rule: sampling.Proportional, Rounding: sampling.RoundLargestRemainder}},
+		{"equal", sampling.AllocOptions{Rule: sampling.Equal, MinPerStratum: 1, MinIfRoom: true}},
+		{"neyman", sampling.AllocOptions{Rule: sampling.Neyman, Anticipated: map[string]float64{"s000": 0.0125, "s001": 0.025, "s002": 0.05, "s003": 0.075}, MinPerStratum: 1, MinIfRoom: true}},
+		{"proportional, minimum 40", sampling.AllocOptions{Rule: sampling.Proportional, Rounding: sampling.RoundUp, MinPerStratum: 40}},
+	}
+	delta := 1 - riskConfidence
+	var table strings.Builder
+	for _, N := range [][]int64{fourStrata(), fourRounding()} {
+		var total int64
+		for _, v := range N {
+			total += v
+		}
+		for _, sp := range spreads {
+			errs := sp.place(N, plan.BadLotErrors(total, riskCeiling))
+			for ai, al := range allocs {
+				p := newPipeline(t, fmt.Sprintf("N %v, %s, %s", N, al.name, sp.name), riskInputs(&p0), false, N, errs, al.a)
+				hits := acceptRate(t, p, R, fmt.Sprint("alloc-", ai))
+				exact := p.exactAccept(t, errs)
+				if exact > delta+1e-12 {
+					t.Errorf("%s: exact acceptance %.5g exceeds δ = %v", p.name, exact, delta)
+				}
+				if lo, hi := plan.BinomialCDF(hits, R, exact), plan.BinomialSF(hits-1, R, exact); math.Min(lo, hi) < 0.0005 {
+					t.Errorf("%s: %d of %d accepted, exact %.5g: the pipeline disagrees with the rule's convolution", p.name, hits, R, exact)
+				}
+				fmt.Fprintf(&table, "%-26s %-34s %-24s %4d of %d   exact %.4f\n", fmt.Sprint(N), al.name, sp.name, hits, R, exact)
+			}
+		}
+		// sequential: refused on a stratified draw, judged on one stratum
+		D := plan.BadLotErrors(total, riskCeiling)
+		seq := newPipeline(t, fmt.Sprintf("N %v, sequential", N), riskInputs(&p0), true, N, spreads[0].place(N, D), allocs[2].a)
+		c, err := seq.draw("refused")
+		if err != nil {
+			t.Fatal(err)
+		}
+		f, err := drawfolder.OpenContent(c, seq.fp, []string{"model"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := seq.judge(f, labeled(t, c, nil), false); !errors.Is(err, verdict.ErrStratifiedSequential) {
+			t.Errorf("a sequential plan on a stratified draw: %v, want refusal", err)
+		}
+		one := newPipeline(t, fmt.Sprintf("N %d in one stratum, sequential", total), riskInputs(&p0), true, []int64{total}, []int64{D}, sampling.AllocOptions{})
+		Rs := reps(100)
+		hits := acceptRate(t, one, Rs, "seq")
+		fmt.Fprintf(&table, "%-26d %-34s %-24s %4d of %d   sequential\n", total, "one stratum", "-", hits, Rs)
+	}
+	t.Logf("acceptance at the ceiling (plan allows 10 %%):\n%s", table.String())
+}
+
+// exactAccept is the exact chance that the judgement accepts when stratum
+// h holds errs[h] errors: under the count rule its convolution
+// (CountRule.AcceptProbability) for the rule the judgement applies to this
+// design, under the plan's rule P(Bin(n, D/N) ≤ c)'s exact analogue (the
+// hypergeometric for one stratum).
+func (p *pipeline) exactAccept(t *testing.T, errs []int64) float64 {
+	t.Helper()
+	c, err := p.draw("exact")
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := verdict.Design{}
+	for _, s := range c.Manifest.Strata {
+		d.Strata = append(d.Strata, verdict.Stratum{Label: s.Label, Population: s.Population, Sample: s.Sample})
+	}
+	a, err := verdict.Choose(p.plan, d, c.Manifest.AnticipatedRates())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a.Kind != verdict.CountRule {
+		t.Fatalf("%s: judged by the plan's rule", p.name)
+	}
+	v, err := a.Count.AcceptProbability(errs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return v
+}
+
+// shortList prints a long list of counts by its non-zero entries.
+func shortList(v []int64) string {
+	if len(v) <= 6 {
+		return fmt.Sprint(v)
+	}
+	nz := 0
+	var sum int64
+	for _, x := range v {
+		if x > 0 {
+			nz++
+			sum += x
+		}
+	}
+	return fmt.Sprintf("%d in %d of %d strata", sum, nz, len(v))
+}
