@@ -76,6 +76,9 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 			f.StepLevels = true
 		}
 	}
+	if f.StepLevels {
+		f.BoundConfidence = confidence(1 - p.PerCandidateRisk) // the first step's
+	}
 	return f
 }
 

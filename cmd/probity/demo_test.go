@@ -52,7 +52,9 @@ func TestDemoEndToEnd(t *testing.T) {
 		if code != exitOK {
 			t.Fatalf("demo exit %d\nstdout:\n%s\nstderr:\n%s", code, out.String(), errb.String())
 		}
-		for _, want := range []string{"invented", "record-2026-11/record.pdf (overall ACCEPT, exit 0)", "all checks passed", "trend.png"} {
+		for _, want := range []string{"invented", "record-2026-11/record.pdf (overall ACCEPT, exit 0)",
+			"signed  prepared by Maren Tøllefsen, 2026-12-01 11:30 UTC", "signed  reviewed by Dr. Ilse Brandvold-Achebe, 2026-12-01 14:30 UTC",
+			"every check passed but authentication, as it must: the demo's keys are published (exit 1)", "trend.png", "charted as unauthenticated"} {
 			if !strings.Contains(out.String(), want) {
 				t.Errorf("demo output lacks %q:\n%s", want, out.String())
 			}
@@ -61,8 +63,9 @@ func TestDemoEndToEnd(t *testing.T) {
 	a := filepath.Join(t.TempDir(), "demo-a")
 	runOnce(a)
 
-	files := []string{"plan.yaml", "signoff.yaml", "commands.txt", "trend.png", "trend.pdf",
-		"keys/demo-signing-key", "keys/demo-signing-key.pub", "labels-2026-11/worksheet-first-400.csv",
+	files := []string{"plan.yaml", "signoff.yaml", "signers.yaml", "commands.txt", "trend.png", "trend.pdf",
+		"keys/demo-signing-key", "keys/demo-signing-key.pub", "keys/demo-preparer", "keys/demo-reviewer.pub",
+		"record-2026-11/signatures.txt", "labels-2026-11/worksheet-first-400.csv",
 		"draw-2026-11/worksheet-second.csv", "labels-2026-11/worksheet-second-labeled.csv", "labels-2026-11/adjudication.csv"}
 	for _, m := range []string{"2026-10", "2026-11"} {
 		files = append(files, "prediction-log-"+m+".csv.gz",
@@ -133,14 +136,22 @@ func TestDemoEndToEnd(t *testing.T) {
 		t.Errorf("deviations: unsure %v, spares used %v", rec.Deviations.Unsure, rec.Deviations.SparesUsed)
 	}
 
-	// An independent verify run on the artifacts.
+	if !rec.Demonstration || len(rec.Caveats) != 2 {
+		t.Errorf("the November record: demonstration %v, caveats %+v (want the two accepted thresholds qualified by label error)", rec.Demonstration, rec.Caveats)
+	}
+
+	// An independent verify run on the artifacts: every check passes but
+	// the authentication, which fails on the published keys alone, even
+	// with the demo's key passed as trusted.
 	var out, errb bytes.Buffer
 	rd := filepath.Join(a, "record-2026-11")
-	if code := run([]string{"verify", rd, "--pub", filepath.Join(a, "keys", "demo-signing-key.pub"),
+	code := run([]string{"verify", rd, "--pub", filepath.Join(a, "keys", "demo-signing-key.pub"), "--signers", filepath.Join(a, "signers.yaml"),
 		"--plan", filepath.Join(a, "plan.yaml"), "--draw", filepath.Join(a, "draw-2026-11"),
 		"--labels", filepath.Join(a, "labels-2026-11", "worksheet-labeled.csv"),
 		"--second", filepath.Join(a, "labels-2026-11", "worksheet-second-labeled.csv"),
-		"--adjudicated", filepath.Join(a, "labels-2026-11", "adjudication.csv")}, demoDeps(&out, &errb)); code != exitOK || !strings.Contains(out.String(), "judgement recomputed") {
+		"--adjudicated", filepath.Join(a, "labels-2026-11", "adjudication.csv")}, demoDeps(&out, &errb))
+	if code != exitRejected || !strings.Contains(out.String(), "judgement recomputed") || !strings.Contains(out.String(), "and its 2 signatures") ||
+		len(demoOtherFailures(out.String())) != 0 || strings.Count(out.String(), "published demonstration key") != 3 {
 		t.Fatalf("verify exit %d:\n%s\n%s", code, out.String(), errb.String())
 	}
 
@@ -160,7 +171,8 @@ func TestDemoEndToEnd(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		for _, want := range []string{"ACCEPT", "REJECT", "safety case", "licensed", "Label quality", "Gwet's AC1"} {
+		for _, want := range []string{"ACCEPT", "REJECT", "safety case", "licensed", "Label quality", "Gwet's AC1",
+			"Signed electronically by Maren Tøllefsen on 2026-12-01 11:30:00 UTC", "NOT SIGNED", "DEMONSTRATION — the scenario"} {
 			if !bytes.Contains(txt, []byte(want)) {
 				t.Errorf("record.pdf text lacks %q", want)
 			}

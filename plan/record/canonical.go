@@ -92,6 +92,12 @@ func (r *Record) Normalize() {
 		}
 		r.Method.Rule = &c
 	}
+	if r.Wording.Replaced == nil {
+		r.Wording.Replaced = []string{}
+	}
+	if r.Caveats == nil {
+		r.Caveats = []Caveat{}
+	}
 	cands := make([]Candidate, len(r.Candidates))
 	copy(cands, r.Candidates)
 	for i := range cands {

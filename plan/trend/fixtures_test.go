@@ -2,12 +2,14 @@ package trend
 
 import (
 	"bytes"
+	"crypto/ed25519"
 	"flag"
 	"os"
 	"path/filepath"
 	"testing"
 
 	"probity/plan/record"
+	"probity/plan/record/signature"
 )
 
 var update = flag.Bool("update", false, "rewrite testdata/trend/monthly from the scenario in records_test.go")
@@ -17,16 +19,30 @@ var update = flag.Bool("update", false, "rewrite testdata/trend/monthly from the
 // `probity record` writes them.
 const monthlyDir = "../../testdata/trend/monthly"
 
+// fixtureSealPub is the public key the monthly records are sealed with.
+const fixtureSealPub = "../../testdata/trend/fixture-seal.pub"
+
 // TestMonthlyFixtures keeps testdata/trend/monthly in the canonical
 // record.json encoding (record.Encode) and it equal to the scenario
 // (run with -update to rewrite it) and checks it loads as a trend.
 func TestMonthlyFixtures(t *testing.T) {
+	pub, err := signature.MarshalPublic(fixtureSealKey().Public().(ed25519.PublicKey))
+	if err != nil {
+		t.Fatal(err)
+	}
+	files := map[string][]byte{fixtureSealPub: pub}
 	for _, r := range yearRecords() {
 		data, err := record.Encode(&r)
 		if err != nil {
 			t.Fatal(err)
 		}
 		path := filepath.Join(monthlyDir, r.Period, "record.json")
+		files[path] = data
+		// The operator's seal over record.json (the fixtures have no PDF).
+		seal := signature.Sign(fixtureSealKey(), map[string][]byte{record.JSONFile: data})
+		files[filepath.Join(monthlyDir, r.Period, signature.FileName)] = seal.Marshal()
+	}
+	for path, data := range files {
 		if *update {
 			if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
 				t.Fatal(err)
