@@ -51,6 +51,9 @@ type File struct {
 	// Sequential holds the boundaries of a sequential design (nil for a
 	// fixed (n, c) plan).
 	Sequential *SequentialRule `yaml:"sequential,omitempty"`
+	// Stratification is the stratified design the plan was sized for (nil:
+	// sized for a simple random sample).
+	Stratification *Stratification `yaml:"stratification,omitempty"`
 }
 
 // Inputs are the requirements a plan is made from.
@@ -290,6 +293,12 @@ func (f *File) validate() error {
 	}
 	if len(f.Candidates) > 0 && len(f.Classes) < 2 {
 		return errors.New("classes must list at least two labels when candidates are declared")
+	}
+	if s := f.Stratification; s != nil {
+		if f.Sequential != nil {
+			return errors.New("a sequential plan cannot have a stratification")
+		}
+		return s.validate(f.Rule.SampleSize)
 	}
 	return nil
 }

@@ -34,6 +34,9 @@ type drawOptions struct {
 	minPer      int
 	minPerSet   bool
 	rounding    string
+	// allocationSet and roundingSet record whether the flags were given
+	// (a plan sized for a stratified design supplies the defaults).
+	allocationSet, roundingSet bool
 	anticipated string
 	spare       int
 	dedupe      string
@@ -124,6 +127,7 @@ Labels written into the worksheets since the draw are not differences.
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			opts.minPerSet = cmd.Flags().Changed("min-per-stratum")
+			opts.allocationSet, opts.roundingSet = cmd.Flags().Changed("allocation"), cmd.Flags().Changed("rounding")
 			if cmd.Flags().Changed("rounding") && opts.allocation != sampling.Proportional {
 				return inputerr.Errorf("--rounding applies to --allocation proportional only").WithHint("drop --rounding")
 			}
@@ -189,9 +193,6 @@ func (o *drawOptions) validate() error {
 			return inputerr.Errorf("--anticipated is only used by --allocation neyman").WithHint("add --allocation neyman, or drop --anticipated")
 		}
 	case sampling.Neyman:
-		if o.anticipated == "" && len(o.bands) == 0 {
-			return inputerr.Errorf("--allocation neyman needs the anticipated error of each stratum").WithHint("give --anticipated FILE (CSV stratum,anticipated_error or YAML), or stratify by a score band (--band score=0.5,0.9) to derive it")
-		}
 	default:
 		return inputerr.Errorf("--allocation %s is not proportional, neyman or equal", o.allocation).WithHint("the default is proportional")
 	}
@@ -297,6 +298,9 @@ func runDraw(d deps, o *drawOptions) error {
 	if err := refuseStratifiedSequential(p, o); err != nil {
 		return err
 	}
+	if err := o.planDesign(p); err != nil {
+		return err
+	}
 	if err := safewrite.CheckFolder(o.out, o.force); err != nil {
 		return drawError(err)
 	}
@@ -307,7 +311,10 @@ func runDraw(d deps, o *drawOptions) error {
 		Double: o.double, Dedupe: o.dedupe == "first", ToolVersion: d.version,
 	}
 	if o.allocation == sampling.Neyman {
-		if o.anticipated != "" {
+		if st := p.Stratification; st != nil && o.anticipated == "" && len(o.bands) == 0 {
+			in.Alloc.Anticipated = st.Rates()
+			in.NeymanSource = "the plan's stratification"
+		} else if o.anticipated != "" {
 			a, err := sampling.ReadAnticipated(o.anticipated)
 			if err != nil {
 				return drawError(err)
@@ -339,6 +346,35 @@ func (o *drawOptions) allocOptions() sampling.AllocOptions {
 		a.Rounding = o.rounding
 	}
 	return a
+}
+
+// planDesign takes the allocation from a plan sized for a stratified
+// design when the flags do not give it, and refuses a different one: the
+// plan's n and risks hold for its own allocation.
+func (o *drawOptions) planDesign(p *plan.File) error {
+	st := p.Stratification
+	if st == nil {
+		if o.allocation == sampling.Neyman && o.anticipated == "" && len(o.bands) == 0 {
+			return inputerr.Errorf("--allocation neyman needs the anticipated error of each stratum").WithHint("give --anticipated FILE (CSV stratum,anticipated_error or YAML), or stratify by a score band (--band score=0.5,0.9) to derive it")
+		}
+		return nil
+	}
+	if o.allocationSet && o.allocation != st.Allocation {
+		return inputerr.Errorf("--allocation %s differs from the plan's %s allocation, for which its sample size and risks were computed", o.allocation, st.Allocation).
+			WithHint("drop --allocation, or plan again with --allocation " + o.allocation)
+	}
+	o.allocation = st.Allocation
+	if !o.minPerSet {
+		o.minPer = st.MinPerStratum
+	}
+	if !o.roundingSet && st.Rounding != "" {
+		o.rounding = st.Rounding
+	}
+	if len(o.strata)+len(o.bands) == 0 {
+		return inputerr.Errorf("the plan was sized for a stratified draw (%d strata), but no --strata or --band is given", len(st.Strata)).
+			WithHint("stratify the draw as planned, e.g. --strata COLUMN")
+	}
+	return nil
 }
 
 // refuseStratifiedSequential refuses to draw a sequential plan with strata:

@@ -84,6 +84,7 @@ func hookDrawSQL(d deps, cmd *cobra.Command, o *drawOptions) {
 	pre, run := cmd.PreRunE, cmd.RunE
 	cmd.PreRunE = func(c *cobra.Command, args []string) error {
 		o.minPerSet = c.Flags().Changed("min-per-stratum")
+		o.allocationSet, o.roundingSet = c.Flags().Changed("allocation"), c.Flags().Changed("rounding")
 		if so.dialect == "" && so.selected == "" {
 			if so.table != "" {
 				return inputerr.Errorf("--table is only used with --sql").WithHint("add --sql postgres, duckdb or clickhouse to print the drawing query")
@@ -182,6 +183,9 @@ func drawSpec(d deps, o *drawOptions, so *drawSQLOptions, planPath string) (*sql
 		return nil, err
 	}
 	if err := refuseStratifiedSequential(p, o); err != nil {
+		return nil, err
+	}
+	if err := o.planDesign(p); err != nil {
 		return nil, err
 	}
 	// Inside the engine the minimum is what --min-per-stratum says: the

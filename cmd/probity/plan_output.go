@@ -59,15 +59,25 @@ type planJSON struct {
 	PlanFile               *string             `json:"plan_file"`
 	Fingerprint            *string             `json:"fingerprint"`
 	Sequential             *planSequentialJSON `json:"sequential"`
+	Stratification         *plan.Stratification `json:"stratification,omitempty"`
 }
 
 // planOC is the plan's OC curve: 21 points, exact; for a sequential design
 // the sequential rule's acceptance probabilities at the same errors.
-func planOC(f *plan.File) ([]plan.OCPoint, error) {
+func planOC(f *plan.File, so *planStrataOptions) ([]plan.OCPoint, error) {
 	oc := f.OC(21)
 	errs := make([]float64, len(oc))
 	for i, p := range oc {
 		errs[i] = p.Error
+	}
+	if st, ok, err := strataOC(so, errs); ok {
+		if err != nil {
+			return nil, err
+		}
+		for i := range oc {
+			oc[i].AcceptProbability = st[i]
+		}
+		return oc, nil
 	}
 	seq, ok, err := sequentialOC(f, errs)
 	if err != nil {
@@ -81,7 +91,7 @@ func planOC(f *plan.File) ([]plan.OCPoint, error) {
 	return oc, nil
 }
 
-func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
+func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string, so *planStrataOptions) error {
 	r, in := f.Rule, f.Inputs
 	j := planJSON{
 		SampleSize: r.SampleSize, AcceptanceNumber: r.AcceptanceNumber,
@@ -91,7 +101,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
 		Ceiling: in.Ceiling, Confidence: in.Confidence, Candidates: in.CandidateCount,
 		Anticipated: in.Anticipated, ProducerRiskAllowed: in.ProducerRisk,
 		Comparison: map[string]*int64{}, Seed: f.Seed, CandidateNames: []string{},
-		Sequential: sequentialPlanJSON(f),
+		Sequential: sequentialPlanJSON(f), Stratification: f.Stratification,
 	}
 	if in.Population > 0 {
 		pop, d1 := in.Population, r.BadLotErrors
@@ -113,7 +123,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
 			j.Comparison[row.Rule] = nil
 		}
 	}
-	oc, err := planOC(f)
+	oc, err := planOC(f, so)
 	if err != nil {
 		return err
 	}
@@ -138,7 +148,7 @@ var ruleTitles = map[string]string{
 	plan.RuleChebyshev:           "Chebyshev (for comparison only)",
 }
 
-func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
+func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string, so *planStrataOptions) error {
 	r, in := f.Rule, f.Inputs
 	m := in.CandidateCount
 	who := "the model"
@@ -149,7 +159,13 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if in.Population > 0 {
 		from = fmt.Sprintf("drawn at random from the batch of %d", in.Population)
 	}
-	if f.Sequential != nil {
+	if st := f.Stratification; st != nil {
+		counted := 0
+		for _, k := range st.Counted {
+			counted += k
+		}
+		fmt.Fprintf(w, "Label %d decisions drawn at random from the strata below; accept %s if at most %d of the %d counted items are errors.\n", r.SampleSize, who, r.AcceptanceNumber, counted)
+	} else if f.Sequential != nil {
 		fmt.Fprintf(w, "Label decisions %s one at a time, at most %d; stop at the first boundary reached (below).\n", from, r.SampleSize)
 	} else if r.AcceptanceNumber == 0 {
 		fmt.Fprintf(w, "Label %s %s; accept %s if none of them is an error.\n", decisions(r.SampleSize), from, who)
@@ -160,6 +176,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 		fmt.Fprintln(w)
 		writeSequentialSummary(w, f)
 	}
+	writeStrataReport(w, f, so)
 	if m > 1 {
 		req := "every candidate must be accepted for the audit to pass"
 		if in.Require == plan.RequireAny {
@@ -228,6 +245,9 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if f.Sequential != nil {
 		base = int64(f.Sequential.FixedSampleSize)
 	}
+	if st := f.Stratification; st != nil {
+		base = int64(st.SimpleRandomSampleSize)
+	}
 	mine := in.Method.ComparisonRule(in.Population)
 	for _, row := range f.Comparison {
 		title := ruleTitles[row.Rule]
@@ -240,6 +260,9 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 			note, ref := "", "this plan"
 			if f.Sequential != nil {
 				ref = "the fixed plan"
+			}
+			if f.Stratification != nil {
+				ref = "a simple random sample"
 			}
 			if row.Rule == mine {
 				note = "  (" + ref + ")"
@@ -265,6 +288,12 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	seq, isSeq, err := sequentialOC(f, errs)
 	if err != nil {
 		return err
+	}
+	if st, ok, err := strataOC(so, errs); ok {
+		if err != nil {
+			return err
+		}
+		seq, isSeq = st, true
 	}
 	fmt.Fprintf(w, "  %-12s %s\n", "true error", "passes")
 	for i, p := range kp {

@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/sampling/loggen"
 )
 
 // planCmdDeps is a fresh environment: buffers, a fixed clock and a fixed
@@ -248,5 +249,53 @@ func TestPlanPopulationAndMethods(t *testing.T) {
 		if j.Model != m || int64(j.N) != j.Comparison[m] || j.N <= 1271 {
 			t.Errorf("--method %s: n %d, model %s, comparison %v", m, j.N, j.Model, j.Comparison)
 		}
+	}
+}
+
+// Issue 13: a plan can be sized for the stratified design the draw will
+// make — the strata, the allocation, the minimum per stratum — with the
+// producer's risk of the stratified count rule; the plan file records the
+// design and the draw follows its allocation (and refuses another).
+func TestPlanStratifiedDesign(t *testing.T) {
+	dir := t.TempDir()
+	planPath := filepath.Join(dir, "plan.yaml")
+	code, out, errOut := runPlanCmd(t, "--ceiling", "0.05", "--confidence", "0.9", "--anticipated", "0.02",
+		"--stratum-sizes", "north=3000,south=2000,east=600,west=400", "--allocation", "equal",
+		"--candidate", "a=model_a", "--classes", "fraud,ok", "--out", planPath)
+	if code != exitOK || errOut != "" {
+		t.Fatalf("exit %d\n%s%s", code, out, errOut)
+	}
+	for _, want := range []string{"Stratified design (equal, at least 1 per stratum), judged by the stratified count rule",
+		"counted items", "a simple random sample would need"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+	p, _, err := plan.Load(planPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st := p.Stratification
+	if st == nil || st.Allocation != "equal" || len(st.Strata) != 4 || st.Strata[0].Label != "east" || p.Rule.ProducerRisk == nil || *p.Rule.ProducerRisk > 0.1 ||
+		p.Rule.SampleSize <= st.SimpleRandomSampleSize {
+		t.Fatalf("plan %+v, stratification %+v", p.Rule, st)
+	}
+	// the draw takes the plan's allocation, and refuses another
+	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 6000, Seed: 4})
+	drawDir := filepath.Join(dir, "draw")
+	code, stdout, stderr := runDrawCmd(t, nil, "--plan", planPath, "--log", log, "--out", drawDir, "--strata", "region")
+	if code != exitOK || !strings.Contains(stdout, "allocation: equal") || !strings.Contains(stdout, "verdict: the stratified count rule") {
+		t.Fatalf("draw: exit %d\n%s%s", code, stdout, stderr)
+	}
+	code, _, stderr = runDrawCmd(t, nil, "--plan", planPath, "--log", log, "--out", filepath.Join(dir, "other"), "--strata", "region", "--allocation", "proportional")
+	if code != exitBadInput || !strings.Contains(stderr, "differs from the plan's equal allocation") {
+		t.Errorf("another allocation: exit %d: %s", code, stderr)
+	}
+	// design flags without strata, and strata with a sequential design, are refused
+	if code, _, stderr := runPlanCmd(t, "--ceiling", "0.05", "--confidence", "0.9", "--allocation", "equal"); code != exitBadInput || !strings.Contains(stderr, "--stratum-sizes") {
+		t.Errorf("--allocation alone: exit %d: %s", code, stderr)
+	}
+	if code, _, stderr := runPlanCmd(t, "--ceiling", "0.05", "--confidence", "0.9", "--anticipated", "0.02", "--design", "sequential", "--stratum-sizes", "a=10,b=20"); code != exitBadInput || !strings.Contains(stderr, "sequential") {
+		t.Errorf("sequential with strata: exit %d: %s", code, stderr)
 	}
 }

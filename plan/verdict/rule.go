@@ -108,25 +108,9 @@ func Choose(p *plan.File, d Design, rates []float64) (*Applied, error) {
 		a.Reason = why
 		return a, nil
 	}
-	var err error
-	if a.Anticipated, a.AnticipatedFrom, err = anticipatedErrors(p, d, rates); err != nil {
+	if err := a.count(p, d, rates, level); err != nil {
 		return nil, err
 	}
-	counted, rule, err := stratified.CountedForPower(sd, a.Anticipated, p.Inputs.Ceiling, 1-level)
-	if err != nil {
-		return nil, inputerr.Errorf("%w: %v", ErrInput, err)
-	}
-	a.Kind, a.Count = CountRule, rule
-	for h, s := range d.Strata {
-		if counted[h] < s.Sample {
-			a.Thinned = true
-		}
-	}
-	acc, err := rule.AcceptProbability(a.Anticipated)
-	if err != nil {
-		return nil, inputerr.Errorf("%w: %v", ErrInput, err)
-	}
-	a.ProducerRisk = 1 - acc
 	a.Reason = "the plan's acceptance number holds only for a simple random sample or an exactly proportional allocation, and here " + why +
 		"; the stratified count rule keeps the risk whatever the allocation and wherever the errors sit"
 	if len(a.Unknown) > 0 {
@@ -136,6 +120,31 @@ func Choose(p *plan.File, d Design, rates []float64) (*Applied, error) {
 		a.Reason += "; strata sampled above proportion count only the first of their items, a sub-sample fixed before labeling that keeps the errors from hiding where few items per decision were drawn"
 	}
 	return a, nil
+}
+
+// count makes a the stratified count rule for design d at risk level, with
+// the counted sub-sample chosen for power at the anticipated errors.
+func (a *Applied) count(p *plan.File, d Design, rates []float64, level float64) error {
+	var err error
+	if a.Anticipated, a.AnticipatedFrom, err = anticipatedErrors(p, d, rates); err != nil {
+		return err
+	}
+	counted, rule, err := stratified.CountedForPower(a.Design, a.Anticipated, p.Inputs.Ceiling, 1-level)
+	if err != nil {
+		return inputerr.Errorf("%w: %v", ErrInput, err)
+	}
+	a.Kind, a.Count = CountRule, rule
+	for h, s := range d.Strata {
+		if counted[h] < s.Sample {
+			a.Thinned = true
+		}
+	}
+	acc, err := rule.AcceptProbability(a.Anticipated)
+	if err != nil {
+		return inputerr.Errorf("%w: %v", ErrInput, err)
+	}
+	a.ProducerRisk = 1 - acc
+	return nil
 }
 
 // RuleAt is the count rule at another confidence, with the same counted
