@@ -20,30 +20,30 @@ import (
 
 // drawOptions are the flags of probity draw.
 type drawOptions struct {
-	planPath    string
-	logPath     string
-	out         string
-	check       string
-	format      string
-	id          string
-	strata      []string
-	bands       []string
-	show        []string
-	where       []string
-	allocation  string
-	minPer      int
-	minPerSet   bool
-	rounding    string
+	planPath   string
+	logPath    string
+	out        string
+	check      string
+	format     string
+	id         string
+	strata     []string
+	bands      []string
+	show       []string
+	where      []string
+	allocation string
+	minPer     int
+	minPerSet  bool
+	rounding   string
 	// allocationSet and roundingSet record whether the flags were given
 	// (a plan sized for a stratified design supplies the defaults).
 	allocationSet, roundingSet bool
-	anticipated string
-	spare       int
-	dedupe      string
-	double      int
-	period      string
-	force       bool
-	quiet       bool
+	anticipated                string
+	spare                      int
+	dedupe                     string
+	double                     int
+	period                     string
+	force                      bool
+	quiet                      bool
 
 	parsedBands []sampling.Band
 	parsedWhere []sampling.Filter

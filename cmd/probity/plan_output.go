@@ -32,33 +32,33 @@ func writePlanFile(path string, data []byte, force bool) error {
 // planJSON is the object `probity plan --json` prints; field order is the
 // key order.
 type planJSON struct {
-	SampleSize             int                 `json:"sample_size"`
-	AcceptanceNumber       int                 `json:"acceptance_number"`
-	ConsumerRisk           float64             `json:"consumer_risk"`
-	ProducerRisk           *float64            `json:"producer_risk"`
-	PerCandidateRisk       float64             `json:"per_candidate_risk"`
-	PerCandidateConfidence float64             `json:"per_candidate_confidence"`
-	Method                 plan.Method         `json:"method"`
-	Model                  plan.Model          `json:"model"`
-	Multiplicity           plan.Multiplicity   `json:"multiplicity"`
-	Design                 plan.Design         `json:"design"`
-	Require                plan.Require        `json:"require"`
-	Ceiling                float64             `json:"ceiling"`
-	Confidence             float64             `json:"confidence"`
-	Candidates             int                 `json:"candidates"`
-	Anticipated            *float64            `json:"anticipated"`
-	ProducerRiskAllowed    float64             `json:"producer_risk_allowed"`
-	Population             *int64              `json:"population"`
-	BadLotErrors           *int64              `json:"bad_lot_errors"`
-	GoodLotErrors          *int64              `json:"good_lot_errors"`
-	RejectAtHalfCeiling    *float64            `json:"reject_at_half_ceiling"`
-	Comparison             map[string]*int64   `json:"comparison"`
-	OC                     []plan.OCPoint      `json:"oc"`
-	CandidateNames         []string            `json:"candidate_names"`
-	Seed                   string              `json:"seed"`
-	PlanFile               *string             `json:"plan_file"`
-	Fingerprint            *string             `json:"fingerprint"`
-	Sequential             *planSequentialJSON `json:"sequential"`
+	SampleSize             int                  `json:"sample_size"`
+	AcceptanceNumber       int                  `json:"acceptance_number"`
+	ConsumerRisk           float64              `json:"consumer_risk"`
+	ProducerRisk           *float64             `json:"producer_risk"`
+	PerCandidateRisk       float64              `json:"per_candidate_risk"`
+	PerCandidateConfidence float64              `json:"per_candidate_confidence"`
+	Method                 plan.Method          `json:"method"`
+	Model                  plan.Model           `json:"model"`
+	Multiplicity           plan.Multiplicity    `json:"multiplicity"`
+	Design                 plan.Design          `json:"design"`
+	Require                plan.Require         `json:"require"`
+	Ceiling                float64              `json:"ceiling"`
+	Confidence             float64              `json:"confidence"`
+	Candidates             int                  `json:"candidates"`
+	Anticipated            *float64             `json:"anticipated"`
+	ProducerRiskAllowed    float64              `json:"producer_risk_allowed"`
+	Population             *int64               `json:"population"`
+	BadLotErrors           *int64               `json:"bad_lot_errors"`
+	GoodLotErrors          *int64               `json:"good_lot_errors"`
+	RejectAtHalfCeiling    *float64             `json:"reject_at_half_ceiling"`
+	Comparison             map[string]*int64    `json:"comparison"`
+	OC                     []plan.OCPoint       `json:"oc"`
+	CandidateNames         []string             `json:"candidate_names"`
+	Seed                   string               `json:"seed"`
+	PlanFile               *string              `json:"plan_file"`
+	Fingerprint            *string              `json:"fingerprint"`
+	Sequential             *planSequentialJSON  `json:"sequential"`
 	Stratification         *plan.Stratification `json:"stratification,omitempty"`
 }
 
