@@ -61,6 +61,12 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 	}
 	if r := rec.Method.Rule; r != nil && r.Name == record.RuleStratifiedCount {
 		f.CountRule, f.CountedSize, f.CountAcceptance, f.Thinned = true, r.CountedSize, r.AcceptanceNumber, r.Thinned
+		// the decisions judged (rounded-up shares can exceed the plan's n)
+		judged := 0
+		for _, s := range r.Strata {
+			judged += s.Judged
+		}
+		f.SampleSize = judged
 		for _, s := range r.Strata {
 			if s.Unknown {
 				f.UnknownStrata++

@@ -103,7 +103,7 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 	case rec.Plan.Design == plan.DesignSequential:
 		leg.Add(fmt.Sprintf("OC curve, sequential, n ≤ %d", rec.Plan.SampleSize), curve)
 	case r != nil && r.Name == record.RuleStratifiedCount:
-		leg.Add(fmt.Sprintf("OC curve, count rule, c = %d of %d", r.AcceptanceNumber, r.CountedSize), curve)
+		leg.Add(fmt.Sprintf("OC curve, count rule, c = %d", r.AcceptanceNumber), curve)
 		consumer, consumerWord, producer = r.ConsumerRiskBound, "consumer's risk ≤ ", r.ProducerRisk
 	default:
 		leg.Add(fmt.Sprintf("OC curve, n = %d, c = %d", rec.Plan.SampleSize, rec.Plan.AcceptanceNumber), curve)

@@ -34,6 +34,10 @@ func (d *doc) ruleApplied(c *content) {
 	if r.Name != record.RuleStratifiedCount {
 		return
 	}
+	notes := false
+	for _, s := range r.Strata {
+		notes = notes || s.Unknown || s.Counted < s.Judged
+	}
 	rows := [][]cell{}
 	for _, s := range r.Strata {
 		last := "–"
@@ -47,12 +51,18 @@ func (d *doc) ruleApplied(c *content) {
 		case s.Counted < s.Judged:
 			note = "thinned"
 		}
-		rows = append(rows, []cell{{text: s.Label}, {text: itoa(s.Judged)}, {text: itoa(s.Counted)}, {text: last}, {text: note}})
+		row := []cell{{text: s.Label}, {text: itoa(s.Judged)}, {text: itoa(s.Counted)}, {text: last}}
+		if notes {
+			row = append(row, cell{text: note})
+		}
+		rows = append(rows, row)
 	}
-	d.drawTable(&table{title: "Counted items", header: true, rows: rows, cols: []column{
-		{head: "Stratum", w: 1}, {head: "Judged", fit: true, align: "R"}, {head: "Counted", fit: true, align: "R"},
-		{head: "Last counted", fit: true, align: "R"}, {head: "", fit: true},
-	}})
+	cols := []column{{head: "Stratum", w: 1}, {head: "Judged", fit: true, align: "R"}, {head: "Counted", fit: true, align: "R"},
+		{head: "Last counted", fit: true, align: "R"}}
+	if notes {
+		cols = append(cols, column{head: "Note", fit: true})
+	}
+	d.drawTable(&table{title: "Counted items", header: true, rows: rows, cols: cols})
 	d.note("In each stratum the counted items are its first judged items in worksheet order (the sample's items in key order, then the spares that replaced some of them), up to the last counted item.")
 	var kg []string
 	for _, cand := range c.rec.Candidates {
