@@ -272,7 +272,11 @@ func AllocationNote(alloc []StratumAllocation, n, minPer int, rounding string) s
 				raised++
 			}
 		}
-		parts = append(parts, fmt.Sprintf("at least %d per stratum (%d at that minimum)", minPer, raised))
+		part := fmt.Sprintf("at least %d per stratum", minPer)
+		if raised > 0 {
+			part += fmt.Sprintf(" (%d at that minimum)", raised)
+		}
+		parts = append(parts, part)
 	}
 	if empty > 0 {
 		parts = append(parts, fmt.Sprintf("%d strata with no item, which the verdict counts as unknown (all their decisions may be errors)", empty))
