@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 )
 
 // Folder is a draw folder opened by Open: its files as read, with their
@@ -53,7 +54,7 @@ func (f *Folder) Path(name string) string { return filepath.Join(f.Dir, name) }
 // the demo) opens it here. Errors are *inputerr.Error values naming the
 // file, and the line and field where there is one.
 func Open(dir, planFP string, candidates []string) (*Folder, error) {
-	return open(dir, planFP, candidates, os.ReadFile)
+	return open(dir, planFP, candidates, inputfile.ReadFile)
 }
 
 // OpenContent is Open on a draw that was made but not written: its files
@@ -69,7 +70,7 @@ func OpenContent(c *Content, planFP string, candidates []string) (*Folder, error
 	for _, f := range files {
 		byName[f.Name] = f.Data
 	}
-	return open("", planFP, candidates, func(name string) ([]byte, error) {
+	return open("", planFP, candidates, func(name, _ string, _ int64) ([]byte, error) {
 		data, ok := byName[filepath.Base(name)]
 		if !ok {
 			return nil, inputerr.FromPath(&os.PathError{Op: "open", Path: name, Err: os.ErrNotExist})
@@ -78,13 +79,14 @@ func OpenContent(c *Content, planFP string, candidates []string) (*Folder, error
 	})
 }
 
-// open is Open reading the folder's files with read.
-func open(dir, planFP string, candidates []string, read func(string) ([]byte, error)) (*Folder, error) {
+// open is Open reading the folder's files with read (inputfile.ReadFile's
+// signature: the file's path, what it is, and its size bound).
+func open(dir, planFP string, candidates []string, read func(path, what string, limit int64) ([]byte, error)) (*Folder, error) {
 	f := &Folder{Dir: dir}
 	var err error
 	mpath := f.Path(ManifestFile)
-	if f.ManifestBytes, err = read(mpath); err != nil {
-		return nil, inputerr.FromPath(err)
+	if f.ManifestBytes, err = read(mpath, "manifest", inputfile.SmallLimit); err != nil {
+		return nil, err
 	}
 	if f.Manifest, err = ParseManifest(f.ManifestBytes, mpath); err != nil {
 		return nil, err
@@ -96,8 +98,8 @@ func open(dir, planFP string, candidates []string, read func(string) ([]byte, er
 		return nil, err
 	}
 	lpath := f.Path(LedgerFile)
-	if f.LedgerBytes, err = read(lpath); err != nil {
-		return nil, inputerr.FromPath(err)
+	if f.LedgerBytes, err = read(lpath, "ledger", inputfile.TableLimit); err != nil {
+		return nil, err
 	}
 	if err := f.matchManifest(lpath, LedgerFile, f.LedgerBytes); err != nil {
 		return nil, err
@@ -113,8 +115,8 @@ func open(dir, planFP string, candidates []string, read func(string) ([]byte, er
 		return nil, err
 	}
 	wpath := f.Path(WorksheetFile)
-	if f.WorksheetBytes, err = read(wpath); err != nil {
-		return nil, inputerr.FromPath(err)
+	if f.WorksheetBytes, err = read(wpath, "worksheet", inputfile.TableLimit); err != nil {
+		return nil, err
 	}
 	if t, err = ParseCSVTable(f.WorksheetBytes, wpath); err != nil {
 		return nil, err
@@ -222,8 +224,10 @@ func blankWorksheet(header []string, rows []WorksheetRow) ([]byte, error) {
 	for i, r := range rows {
 		blank[i] = WorksheetRow{Item: r.Item, RecordID: r.RecordID, Show: r.Show}
 	}
+	nShow := len(ShownColumns(header))
+	h := append(append([]string{}, header[:2+nShow]...), "label", "note", "labeler")
 	var buf bytes.Buffer
-	if err := WriteWorksheet(&buf, ShownColumns(header), blank); err != nil {
+	if err := writeWorksheet(&buf, h, nShow, blank); err != nil {
 		return nil, err
 	}
 	return buf.Bytes(), nil
