@@ -3,6 +3,8 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -297,5 +299,58 @@ func TestPlanStratifiedDesign(t *testing.T) {
 	}
 	if code, _, stderr := runPlanCmd(t, "--ceiling", "0.05", "--confidence", "0.9", "--anticipated", "0.02", "--design", "sequential", "--stratum-sizes", "a=10,b=20"); code != exitBadInput || !strings.Contains(stderr, "sequential") {
 		t.Errorf("sequential with strata: exit %d: %s", code, stderr)
+	}
+}
+
+// Issue 13 item 8: a sequential plan on a batch prints its OC curve from
+// the hypergeometric model its stated risks use, so the ceiling row is the
+// stated consumer's risk (never above the allowed risk) and 1 − the
+// anticipated row is the stated producer's risk — also where ceiling·N is
+// not a whole number (40 033: ⌈800.66⌉ = 801 errors, ⌊400.33⌋ = 400).
+func TestPlanSequentialBatchOC(t *testing.T) {
+	for _, N := range []string{"40000", "40033"} {
+		code, stdout, stderr := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01",
+			"--design", "sequential", "--population", N, "--json")
+		if code != exitOK {
+			t.Fatalf("population %s: exit %d: %s", N, code, stderr)
+		}
+		var out struct {
+			ConsumerRisk     float64 `json:"consumer_risk"`
+			ProducerRisk     float64 `json:"producer_risk"`
+			PerCandidateRisk float64 `json:"per_candidate_risk"`
+			Population       int64   `json:"population"`
+			BadLotErrors     int64   `json:"bad_lot_errors"`
+			GoodLotErrors    int64   `json:"good_lot_errors"`
+			OC               []struct {
+				Error  float64 `json:"error"`
+				Accept float64 `json:"accept_probability"`
+			} `json:"oc"`
+		}
+		if err := json.Unmarshal([]byte(stdout), &out); err != nil {
+			t.Fatal(err)
+		}
+		at := func(d int64) (float64, bool) {
+			for _, r := range out.OC {
+				if r.Error == float64(d)/float64(out.Population) {
+					return r.Accept, true
+				}
+			}
+			return 0, false
+		}
+		bad, ok1 := at(out.BadLotErrors)
+		good, ok0 := at(out.GoodLotErrors)
+		if !ok1 || !ok0 {
+			t.Fatalf("population %s: no OC row at %d or %d errors: %+v", N, out.BadLotErrors, out.GoodLotErrors, out.OC)
+		}
+		if bad > out.PerCandidateRisk || math.Abs(bad-out.ConsumerRisk) > 1e-12 {
+			t.Errorf("population %s: OC at the ceiling (%d errors) %v; stated consumer's risk %v, allowed %v", N, out.BadLotErrors, bad, out.ConsumerRisk, out.PerCandidateRisk)
+		}
+		if math.Abs(1-good-out.ProducerRisk) > 1e-12 {
+			t.Errorf("population %s: 1 − OC at %d errors %v; stated producer's risk %v", N, out.GoodLotErrors, 1-good, out.ProducerRisk)
+		}
+		_, human, _ := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--design", "sequential", "--population", N)
+		if want := fmt.Sprintf("ceiling (%d errors in the batch)", out.BadLotErrors); !strings.Contains(human, want) {
+			t.Errorf("population %s: the OC table lacks %q:\n%s", N, want, human)
+		}
 	}
 }
