@@ -39,41 +39,42 @@ type PlannedStratum struct {
 	Anticipated float64 `yaml:"anticipated"`
 }
 
-// validate checks the section's structure.
+// validate checks the section's structure (errors name the field, for
+// File.Check to locate).
 func (s *Stratification) validate(n int) error {
 	if len(s.Strata) < 2 {
-		return fmt.Errorf("stratification.strata lists %d strata (at least 2)", len(s.Strata))
+		return fieldErr("stratification.strata", "lists %d strata (at least 2)", len(s.Strata))
 	}
 	switch s.Allocation {
 	case "proportional", "equal", "neyman":
 	default:
-		return fmt.Errorf("stratification.allocation %q is not proportional, equal or neyman", s.Allocation)
+		return fieldErr("stratification.allocation", "%q is not proportional, equal or neyman", s.Allocation)
 	}
 	if s.MinPerStratum < 0 {
-		return fmt.Errorf("stratification.min_per_stratum %d is negative", s.MinPerStratum)
+		return fieldErr("stratification.min_per_stratum", "%d is negative", s.MinPerStratum)
 	}
 	seen := map[string]bool{}
 	for i, st := range s.Strata {
 		if st.Label == "" || seen[st.Label] {
-			return fmt.Errorf("stratification.strata[%d]: the label %q is empty or repeated", i, st.Label)
+			return fieldErr(fmt.Sprintf("stratification.strata[%d].label", i), "%q is empty or repeated", st.Label)
 		}
 		seen[st.Label] = true
 		if st.Population < 1 || !(st.Anticipated >= 0 && st.Anticipated < 1) || math.IsNaN(st.Anticipated) {
-			return fmt.Errorf("stratification.strata[%d] (%s): population %d must be at least 1 and anticipated %v in [0, 1)", i, st.Label, st.Population, st.Anticipated)
+			return fieldErr(fmt.Sprintf("stratification.strata[%d]", i), "(%s): population %d must be at least 1 and anticipated %v in [0, 1)", st.Label, st.Population, st.Anticipated)
 		}
 	}
 	if len(s.Sample) != len(s.Strata) || len(s.Counted) != len(s.Strata) {
-		return fmt.Errorf("stratification: %d sample and %d counted sizes for %d strata", len(s.Sample), len(s.Counted), len(s.Strata))
+		return fieldErr("stratification.sample", "%d sample and %d counted sizes for %d strata", len(s.Sample), len(s.Counted), len(s.Strata))
 	}
 	total := 0
 	for i := range s.Sample {
 		if s.Sample[i] < 0 || int64(s.Sample[i]) > s.Strata[i].Population || s.Counted[i] < 0 || s.Counted[i] > s.Sample[i] {
-			return fmt.Errorf("stratification.strata[%d] (%s): %d sampled, %d counted of %d", i, s.Strata[i].Label, s.Sample[i], s.Counted[i], s.Strata[i].Population)
+			return fieldErr("stratification.sample", "stratum %d (%s): %d sampled, %d counted of %d", i+1, s.Strata[i].Label, s.Sample[i], s.Counted[i], s.Strata[i].Population)
 		}
 		total += s.Sample[i]
 	}
 	if total < n {
-		return fmt.Errorf("stratification: the strata hold %d items, fewer than rule.sample_size %d", total, n)
+		return fieldErr("stratification.sample", "the strata hold %d items, fewer than rule.sample_size %d", total, n)
 	}
 	return nil
 }

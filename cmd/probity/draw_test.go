@@ -12,6 +12,8 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/planfile"
+	"probity/plan/sequential"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
@@ -22,7 +24,7 @@ const drawPlan = "../../testdata/draw/plan.yaml"
 func runDrawCmd(t *testing.T, stdin []byte, args ...string) (int, string, string) {
 	t.Helper()
 	var out, errb bytes.Buffer
-	d := deps{stdin: bytes.NewReader(stdin), stdout: &out, stderr: &errb, now: func() time.Time { return time.Unix(0, 0) },
+	d := deps{stdin: bytes.NewReader(stdin), stdout: &out, stderr: &errb, now: func() time.Time { return time.Date(2026, 12, 1, 7, 15, 0, 0, time.UTC) },
 		random: strings.NewReader(strings.Repeat("x", 64)), version: "test"}
 	code := run(append([]string{"draw"}, args...), d)
 	return code, out.String(), errb.String()
@@ -237,11 +239,15 @@ func TestDrawBadInput(t *testing.T) {
 
 func TestDrawPopulationPlan(t *testing.T) {
 	dir := t.TempDir()
-	p, _, err := plan.Load(drawPlan)
+	p, _, err := planfile.Load(drawPlan)
 	if err != nil {
 		t.Fatal(err)
 	}
+	// a lot plan for the same inputs, sized as probity plan --population would
 	p.Inputs.Population = 5000
+	if p.Rule, p.Comparison, err = plan.Size(p.Inputs); err != nil {
+		t.Fatal(err)
+	}
 	b, _ := p.Marshal()
 	pp := filepath.Join(dir, "lot.yaml")
 	os.WriteFile(pp, b, 0o644)
@@ -273,7 +279,7 @@ func TestDrawProgressBarOnlyOnTerminal(t *testing.T) {
 	loggen.Write(zw, loggen.Config{Rows: 2000, Seed: 3})
 	zw.Close()
 	var errb, outb bytes.Buffer
-	tick := time.Unix(0, 0)
+	tick := time.Date(2026, 12, 1, 7, 0, 0, 0, time.UTC)
 	d := deps{stdin: bytes.NewReader(gzb.Bytes()), stdout: &outb, stderr: &errb, version: "test", stderrIsTerminal: true,
 		now: func() time.Time { tick = tick.Add(time.Second); return tick }}
 	// stdin has no known size: the bar appears once 64 MB are read, so
@@ -357,13 +363,21 @@ func TestDrawStatesTheRuleBeforeLabeling(t *testing.T) {
 	}
 
 	// a sequential plan with strata is refused, before the log is read
-	p, _, err := plan.Load(drawPlan)
+	p, _, err := planfile.Load(drawPlan)
 	if err != nil {
 		t.Fatal(err)
 	}
-	p.Sequential = &plan.SequentialRule{MaxSampleSize: p.Rule.SampleSize}
-	p.Inputs.Design = plan.DesignSequential
-	data, err := p.Marshal()
+	in := p.Inputs
+	in.Design = plan.DesignSequential
+	seq, err := plan.Build(in, plan.Meta{ToolVersion: p.ToolVersion, Created: p.Created, CreatedFrom: p.CreatedFrom, Seed: p.Seed,
+		Classes: p.Classes, Candidates: p.Candidates})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := sequential.Apply(seq, 0); err != nil {
+		t.Fatal(err)
+	}
+	data, err := seq.Marshal()
 	if err != nil {
 		t.Fatal(err)
 	}

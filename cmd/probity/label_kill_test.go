@@ -53,8 +53,10 @@ func TestKillNineLosesNothing(t *testing.T) {
 	done := make(chan error, 1)
 	address := ""
 	sc := bufio.NewScanner(stdout)
+	banner := ""
 	for sc.Scan() {
-		if m := bannerAddress.FindStringSubmatch(sc.Text()); m != nil && m[1] == drawfolder.WorksheetFile {
+		banner += sc.Text() + "\n"
+		if m := bannerAddress.FindStringSubmatch(banner); m != nil && m[1] == drawfolder.WorksheetFile {
 			address = m[2]
 			break
 		}
@@ -147,7 +149,9 @@ func TestKillNineLosesNothing(t *testing.T) {
 	if code := r.close(); code != exitOK {
 		t.Fatalf("label exit %d", code)
 	}
-	code, out, stderr2 := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--trail", trail, "--out", filepath.Join(fx.dir, "rec"))
+	// labeled on this machine's clock: issued after it
+	issued := time.Now().UTC().Add(time.Hour).Format(time.RFC3339)
+	code, out, stderr2 := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--trail", trail, "--out", filepath.Join(fx.dir, "rec"), "--date", issued)
 	if code != exitOK && code != exitRejected || !strings.Contains(out, "Dana Example, Jo Example") {
 		t.Errorf("record after the restart: %d\n%s%s", code, out, stderr2)
 	}

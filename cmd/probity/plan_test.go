@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/planfile"
 	"probity/sampling/loggen"
 )
 
@@ -103,7 +104,7 @@ func TestPlanOutFile(t *testing.T) {
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
 	}
-	f, fp, err := plan.Load(path)
+	f, fp, err := planfile.Load(path)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -134,7 +135,7 @@ func TestPlanOutFile(t *testing.T) {
 		t.Errorf("overwrite without --force: exit %d, stderr %q", code, errOut)
 	}
 	code, _, _ = runPlanCmd(t, "--ceiling", "0.03", "--confidence", "0.95", "--out", path, "--force")
-	if g, _, err := plan.Load(path); code != exitOK || err != nil || g.Inputs.Ceiling != 0.03 {
+	if g, _, err := planfile.Load(path); code != exitOK || err != nil || g.Inputs.Ceiling != 0.03 {
 		t.Errorf("--force: exit %d, %v", code, err)
 	}
 	// --seed is used exactly as written
@@ -142,7 +143,7 @@ func TestPlanOutFile(t *testing.T) {
 	if code, _, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--seed", "audit-2026-11", "--out", seeded); code != exitOK {
 		t.Fatalf("--seed: exit %d %s", code, errOut)
 	}
-	if g, _, _ := plan.Load(seeded); g.Seed != "audit-2026-11" {
+	if g, _, _ := planfile.Load(seeded); g.Seed != "audit-2026-11" {
 		t.Errorf("seed %q", g.Seed)
 	}
 	if entries, _ := os.ReadDir(dir); len(entries) != 2 {
@@ -273,7 +274,7 @@ func TestPlanStratifiedDesign(t *testing.T) {
 			t.Errorf("output lacks %q:\n%s", want, out)
 		}
 	}
-	p, _, err := plan.Load(planPath)
+	p, _, err := planfile.Load(planPath)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -281,6 +282,36 @@ func TestPlanStratifiedDesign(t *testing.T) {
 	if st == nil || st.Allocation != "equal" || len(st.Strata) != 4 || st.Strata[0].Label != "east" || p.Rule.ProducerRisk == nil || *p.Rule.ProducerRisk > 0.1 ||
 		p.Rule.SampleSize <= st.SimpleRandomSampleSize {
 		t.Fatalf("plan %+v, stratification %+v", p.Rule, st)
+	}
+	// an edited design is refused on load (verdict.CheckStratification)
+	data, err := os.ReadFile(planPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range []struct{ from, to, field string }{
+		{fmt.Sprintf("acceptance_number: %d\n", p.Rule.AcceptanceNumber), fmt.Sprintf("acceptance_number: %d\n", p.Rule.AcceptanceNumber+1), "rule.acceptance_number"},
+		{fmt.Sprintf("counted: [%d,", st.Counted[0]), fmt.Sprintf("counted: [%d,", st.Counted[0]-1), "stratification.counted"},
+		{fmt.Sprintf("simple_random_sample_size: %d", st.SimpleRandomSampleSize), fmt.Sprintf("simple_random_sample_size: %d", st.SimpleRandomSampleSize+1), "stratification.simple_random_sample_size"},
+		{"allocation: equal", "allocation: random", "stratification.allocation"},
+	} {
+		edited := strings.Replace(string(data), e.from, e.to, 1)
+		if edited == string(data) {
+			t.Fatalf("%q is not in the plan file:\n%s", e.from, data)
+		}
+		path := filepath.Join(dir, "edited.yaml")
+		writeFile(t, path, []byte(edited))
+		if _, _, err := planfile.Load(path); err == nil || !strings.Contains(err.Error(), "field "+e.field) {
+			t.Errorf("%s edited: %v", e.field, err)
+		}
+	}
+	// a zero-failure plan for strata loads as written
+	zf := filepath.Join(dir, "zf.yaml")
+	if code, out, errOut := runPlanCmd(t, "--ceiling", "0.05", "--confidence", "0.9", "--stratum-sizes", "north=3000,south=2000,east=600,west=400",
+		"--allocation", "equal", "--candidate", "a=model_a", "--classes", "fraud,ok", "--out", zf); code != exitOK {
+		t.Fatalf("zero-failure: exit %d\n%s%s", code, out, errOut)
+	}
+	if _, _, err := planfile.Load(zf); err != nil {
+		t.Errorf("zero-failure plan for strata: %v", err)
 	}
 	// the draw takes the plan's allocation, and refuses another
 	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 6000, Seed: 4})

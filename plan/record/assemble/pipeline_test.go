@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/chrono"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/record/intake"
@@ -74,11 +75,18 @@ func newPipeline(t testing.TB, name string, in plan.Inputs, seq bool, N, errs []
 	return p
 }
 
-// draw draws the sample of one period.
+// draw draws the sample of one period (drawn, as the command stamps it,
+// between the plan's creation and the record's issue).
 func (p *pipeline) draw(period string) (*drawfolder.Content, error) {
-	return sampling.Draw(sampling.DrawInput{Plan: p.plan, PlanFingerprint: p.fp, LogPath: "log.csv", Log: bytes.NewReader(p.log),
+	c, err := sampling.Draw(sampling.DrawInput{Plan: p.plan, PlanFingerprint: p.fp, LogPath: "log.csv", Log: bytes.NewReader(p.log),
 		Format: sampling.FormatCSV, Period: period, IDColumn: "record_id", StrataColumns: p.strata, Alloc: p.alloc,
 		ToolVersion: "test", Workers: 1, ChunkSize: 1 << 16})
+	if err != nil {
+		return nil, err
+	}
+	drawn := chrono.FromClock(time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC))
+	c.Manifest.Drawn = &drawn
+	return c, nil
 }
 
 // labeled is the worksheet labeled with the truth (every sample item "ok";
@@ -151,7 +159,7 @@ func (p *pipeline) assembleAgrees(t testing.TB, period string) {
 		t.Fatal(err)
 	}
 	l := labeled(t, c, nil)
-	rec, err := assemble.Assemble(&assemble.Inputs{Plan: p.plan, PlanFP: p.fp, Folder: f, Labels: l}, assemble.Options{Use: "general", Date: "2026-01-01"})
+	rec, err := assemble.Assemble(&assemble.Inputs{Plan: p.plan, PlanFP: p.fp, Folder: f, Labels: l}, assemble.Options{Use: "general", Issued: chrono.FromClock(time.Date(2026, 6, 1, 0, 0, 0, 0, time.UTC))})
 	if err != nil {
 		t.Fatal(err)
 	}
