@@ -4,6 +4,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 	"probity/templates"
 )
@@ -19,11 +20,11 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		Date:             rec.Date,
 		RecordID:         rec.RecordID,
 		Use:              use,
-		Ceiling:          pctExact(p.Ceiling),
-		Confidence:       confidence(p.Confidence),
-		FamilyRisk:       riskPct(1 - p.Confidence),
-		BoundConfidence:  confidence(boundConfidence(rec)),
-		PerCandidateRisk: riskPct(p.PerCandidateRisk),
+		Ceiling:          numfmt.Setting(p.Ceiling),
+		Confidence:       numfmt.Confidence(p.Confidence),
+		FamilyRisk:       numfmt.Chance(1 - p.Confidence),
+		BoundConfidence:  numfmt.Confidence(boundConfidence(rec)),
+		PerCandidateRisk: numfmt.Chance(p.PerCandidateRisk),
 		Candidates:       p.CandidateCount,
 		Require:          p.Require.String(),
 		MultiplicityRule: p.Multiplicity.String(),
@@ -45,19 +46,19 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		f.Bound = "stated"
 	}
 	if p.ConsumerRisk > 0 {
-		f.ConsumerRisk = riskPct(p.ConsumerRisk)
+		f.ConsumerRisk = numfmt.Chance(p.ConsumerRisk)
 	}
 	if p.Anticipated != nil {
-		f.Anticipated = pctExact(*p.Anticipated)
+		f.Anticipated = numfmt.Setting(*p.Anticipated)
 	}
 	if p.ProducerRisk != nil {
-		f.ProducerRisk = riskPct(*p.ProducerRisk)
+		f.ProducerRisk = numfmt.Chance(*p.ProducerRisk)
 	}
 	if p.CandidateCount > 1 {
 		f.Multiplicity = p.Multiplicity.Title()
 	}
 	if p.Population > 0 {
-		f.Population = count(p.Population)
+		f.Population = numfmt.Count(p.Population)
 	}
 	if r := rec.Method.Rule; r != nil && r.Name == record.RuleStratifiedCount {
 		f.CountRule, f.CountedSize, f.CountAcceptance, f.Thinned = true, r.CountedSize, r.AcceptanceNumber, r.Thinned
@@ -72,9 +73,9 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 				f.UnknownStrata++
 			}
 		}
-		f.ConsumerRisk, f.CountRiskBound = "", riskPct(r.ConsumerRiskBound)
+		f.ConsumerRisk, f.CountRiskBound = "", numfmt.Chance(r.ConsumerRiskBound)
 		if r.ProducerRisk != nil {
-			f.ProducerRisk, f.AnticipatedFrom = riskPct(*r.ProducerRisk), r.AnticipatedFrom
+			f.ProducerRisk, f.AnticipatedFrom = numfmt.Chance(*r.ProducerRisk), r.AnticipatedFrom
 		}
 	}
 	for _, c := range rec.Candidates {
@@ -83,7 +84,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 		}
 	}
 	if f.StepLevels {
-		f.BoundConfidence = confidence(1 - p.PerCandidateRisk) // the first step's
+		f.BoundConfidence = numfmt.Confidence(1 - p.PerCandidateRisk) // the first step's
 	}
 	return f
 }

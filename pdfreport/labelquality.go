@@ -2,28 +2,11 @@ package pdfreport
 
 import (
 	"math"
-	"strconv"
 	"strings"
 
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
-
-// coef formats an agreement coefficient with three decimals.
-func coef(x float64) string {
-	if bad(x) {
-		return "–"
-	}
-	s := strconv.FormatFloat(x, 'f', 3, 64)
-	if s == "-0.000" {
-		s = "0.000"
-	}
-	return s
-}
-
-// coefDown and coefUp format interval ends rounded outward, so a printed
-// interval is never narrower than the computed one.
-func coefDown(x float64) string { return coef(math.Floor(x*1000+1e-9) / 1000) }
-func coefUp(x float64) string   { return coef(math.Ceil(x*1000-1e-9) / 1000) }
 
 // agreementText prints a coefficient with its interval and chance
 // agreement, or why it is undefined.
@@ -34,8 +17,8 @@ func agreementText(a record.Agreement) string {
 		}
 		return "undefined"
 	}
-	s := coef(a.Value) + "   (" + confidence(a.Confidence) + " interval " + coefDown(a.Lower) + " to " + coefUp(a.Upper) +
-		"; standard error " + coef(a.StdErr) + "; chance agreement " + coef(a.ChanceAgreement) + ")"
+	s := numfmt.Coefficient(a.Value) + "   (" + numfmt.Confidence(a.Confidence) + " interval " + numfmt.CoefficientDown(a.Lower) + " to " + numfmt.CoefficientUp(a.Upper) +
+		"; standard error " + numfmt.Coefficient(a.StdErr) + "; chance agreement " + numfmt.Coefficient(a.ChanceAgreement) + ")"
 	if a.Note != "" {
 		s += "; " + a.Note
 	}
@@ -113,14 +96,14 @@ func pctOrDash(n int, x float64) string {
 	if n == 0 {
 		return "–"
 	}
-	return pct(x)
+	return numfmt.Rate(x)
 }
 
 func disagreementText(q *record.LabelQuality) string {
 	s := itoa(len(q.Disagreements)) + " listed below"
 	if q.Compared > 0 {
 		s += "; two different classes on " + itoa(q.Disagreed) + " of " + itoa(q.Compared) + " compared items (" +
-			pct(q.DisagreementRate) + "; one-sided " + confidence(q.Kappa.Confidence) + " upper bound " + pctUp(q.DisagreementUpper) + ")"
+			numfmt.Rate(q.DisagreementRate) + "; one-sided " + numfmt.Confidence(q.Kappa.Confidence) + " upper bound " + numfmt.RateUp(q.DisagreementUpper) + ")"
 	}
 	return s
 }

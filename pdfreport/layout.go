@@ -5,6 +5,8 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"probity/plan/numfmt"
+
 	"github.com/jung-kurt/gofpdf"
 )
 
@@ -244,7 +246,7 @@ func (d *doc) bullet(text string) {
 	d.space(0.8)
 }
 
-func itoa(n int) string { return count(int64(n)) }
+func itoa(n int) string { return numfmt.Count(int64(n)) }
 
 // glueUnits keeps short formulas on one line: a lone "%" (or "%)", "%,"
 // …) stays with the number before it ("2.000 %"), and a relation sign

@@ -14,6 +14,7 @@ import (
 	"gonum.org/v1/plot/vg/vgimg"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
 
@@ -114,7 +115,7 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 		return nil, err
 	}
 	p.Add(ceilLine)
-	leg.Add("ceiling "+pctExact(rec.Plan.Ceiling), ceilLine)
+	leg.Add("ceiling "+numfmt.Setting(rec.Plan.Ceiling), ceilLine)
 
 	if consumer > 0 {
 		risk, err := plotter.NewScatter(plotter.XYs{{X: ceil, Y: consumer}})
@@ -123,7 +124,7 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 		}
 		risk.GlyphStyle = draw.GlyphStyle{Color: plotCeiling, Radius: vg.Points(3.5), Shape: draw.CircleGlyph{}}
 		p.Add(risk)
-		leg.Add(consumerWord+prob(consumer), risk)
+		leg.Add(consumerWord+numfmt.Chance(consumer), risk)
 	}
 	if a := rec.Plan.Anticipated; a != nil {
 		line, err := vline(100**a, plotAnticip, []vg.Length{vg.Points(2), vg.Points(2)})
@@ -131,7 +132,7 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 			return nil, err
 		}
 		p.Add(line)
-		leg.Add("anticipated error "+pctExact(*a), line)
+		leg.Add("anticipated error "+numfmt.Setting(*a), line)
 		if pr := producer; pr != nil {
 			// The curve's height at p0 is 1 − producer's risk.
 			pt, err := plotter.NewScatter(plotter.XYs{{X: 100 * *a, Y: 1 - *pr}})
@@ -140,7 +141,7 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 			}
 			pt.GlyphStyle = draw.GlyphStyle{Color: plotAnticip, Radius: vg.Points(3.5), Shape: draw.CircleGlyph{}}
 			p.Add(pt)
-			leg.Add("producer's risk "+prob(*pr), pt)
+			leg.Add("producer's risk "+numfmt.Chance(*pr), pt)
 		}
 	}
 	var acc, rej plotter.XYs

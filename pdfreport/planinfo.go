@@ -4,6 +4,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
 
@@ -57,24 +58,24 @@ func (d *doc) planInfo(c *content) {
 	if r := c.rec.Method.Rule; r != nil && r.Name == record.RuleStratifiedCount {
 		rows = append(rows,
 			kv("Rule applied to this draw", "stratified count rule: accept when at most "+itoa(r.AcceptanceNumber)+" of the "+itoa(r.CountedSize)+" counted items are errors"),
-			kv("Its consumer's risk", "at most "+prob(r.ConsumerRiskBound)+" for a candidate at the ceiling, wherever its errors sit"))
+			kv("Its consumer's risk", "at most "+numfmt.Chance(r.ConsumerRiskBound)+" for a candidate at the ceiling, wherever its errors sit"))
 		if r.ProducerRisk != nil {
-			rows = append(rows, kv("Its producer's risk", prob(*r.ProducerRisk)+" at "+r.AnticipatedFrom))
+			rows = append(rows, kv("Its producer's risk", numfmt.Chance(*r.ProducerRisk)+" at "+r.AnticipatedFrom))
 		}
 	}
 	atCeiling := "P(accept | error = ceiling) = "
 	if p.Population > 0 {
 		atCeiling = "P(accept | lot error at the ceiling) = "
 	}
-	rows = append(rows, kv("Consumer's risk", atCeiling+prob(p.ConsumerRisk)))
+	rows = append(rows, kv("Consumer's risk", atCeiling+numfmt.Chance(p.ConsumerRisk)))
 	if p.Anticipated != nil {
 		rows = append(rows, kv("Anticipated error p0", f.Anticipated))
 	}
 	if p.ProducerRisk != nil {
-		rows = append(rows, kv("Producer's risk", "P(reject | error = p0) = "+prob(*p.ProducerRisk)))
+		rows = append(rows, kv("Producer's risk", "P(reject | error = p0) = "+numfmt.Chance(*p.ProducerRisk)))
 	}
 	if p.Population > 0 {
-		rows = append(rows, kv("Population N", count(p.Population)+" decisions (finite lot)"))
+		rows = append(rows, kv("Population N", numfmt.Count(p.Population)+" decisions (finite lot)"))
 	} else {
 		rows = append(rows, kv("Population", "unbounded stream of decisions"))
 	}

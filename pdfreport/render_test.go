@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 	"probity/templates"
 )
@@ -99,13 +100,13 @@ func TestTextHasVerdictsBoundsAndCautions(t *testing.T) {
 				// The summary row: name, bound, verdict and reason on one line.
 				row := false
 				for _, l := range layout {
-					if strings.Contains(l, c.Name) && strings.Contains(l, pctUp(c.UpperBound)) &&
+					if strings.Contains(l, c.Name) && strings.Contains(l, numfmt.RateUp(c.UpperBound)) &&
 						strings.Contains(l, c.Verdict) && strings.Contains(l, c.Reason) {
 						row = true
 					}
 				}
 				if !row {
-					t.Errorf("no summary line holds %s, %s, %s and %q", c.Name, pctUp(c.UpperBound), c.Verdict, c.Reason)
+					t.Errorf("no summary line holds %s, %s, %s and %q", c.Name, numfmt.RateUp(c.UpperBound), c.Verdict, c.Reason)
 				}
 			}
 			// The bounds as printed, rounded up (scipy.stats.beta.ppf values
@@ -542,5 +543,22 @@ func TestEveryPageCarriesRevisionAndDemonstration(t *testing.T) {
 	}
 	if !strings.Contains(flat(pages[0]), "Revision 2, supersedes record "+rec.Supersedes) {
 		t.Errorf("page 1 does not name the superseded record:\n%s", pages[0])
+	}
+}
+
+// TestPValuesAreDefined (issue 16 item 16): the decision summary says what
+// its p-value and, under Holm, its adjusted p are.
+func TestPValuesAreDefined(t *testing.T) {
+	for _, name := range []string{"medical-a4.txt", "general-letter.txt"} {
+		data, err := os.ReadFile(filepath.Join(goldenDir, name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if txt := flat(string(data)); !strings.Contains(txt, "p-value: the probability of observing at most the candidate's errors if its true error rate were exactly the ceiling") {
+			t.Errorf("%s does not define the p-value", name)
+		}
+	}
+	if !strings.Contains(pValueNote(true), "Adjusted p: the p-value adjusted by Holm's step-down procedure") || strings.Contains(pValueNote(false), "Adjusted p") {
+		t.Error("the adjusted p is defined exactly when its column is shown")
 	}
 }

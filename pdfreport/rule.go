@@ -1,6 +1,7 @@
 package pdfreport
 
 import (
+	"probity/plan/numfmt"
 	"strings"
 
 	"probity/plan/record"
@@ -67,7 +68,7 @@ func (d *doc) ruleApplied(c *content) {
 	var kg []string
 	for _, cand := range c.rec.Candidates {
 		if cand.KornGraubardUpper != nil {
-			kg = append(kg, cand.Name+" "+pctUp(*cand.KornGraubardUpper))
+			kg = append(kg, cand.Name+" "+numfmt.RateUp(*cand.KornGraubardUpper))
 		}
 	}
 	if len(kg) > 0 {

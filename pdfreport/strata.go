@@ -1,5 +1,7 @@
 package pdfreport
 
+import "probity/plan/numfmt"
+
 // strataSection prints the strata of the draw and each candidate's errors
 // per stratum.
 func (d *doc) strataSection(c *content) {
@@ -13,13 +15,13 @@ func (d *doc) strataSection(c *content) {
 		sampleTotal := 0
 		for _, s := range rec.Strata {
 			rows = append(rows, []cell{
-				{text: s.Label}, {text: count(s.Population)}, {text: itoa(s.Sample)}, {text: prob(s.Weight)},
+				{text: s.Label}, {text: numfmt.Count(s.Population)}, {text: itoa(s.Sample)}, {text: numfmt.Weight(s.Weight)},
 			})
 			popTotal += s.Population
 			sampleTotal += s.Sample
 		}
 		rows = append(rows, []cell{
-			{text: "All strata", bold: true}, {text: count(popTotal), bold: true},
+			{text: "All strata", bold: true}, {text: numfmt.Count(popTotal), bold: true},
 			{text: itoa(sampleTotal), bold: true}, {text: ""},
 		})
 		d.subheading("Strata of the draw", 12)
@@ -48,8 +50,8 @@ func (d *doc) strataSection(c *content) {
 		var rows [][]cell
 		for _, s := range cand.Strata {
 			rows = append(rows, []cell{
-				{text: s.Label}, {text: itoa(s.Labeled)}, {text: itoa(s.Errors)}, {text: pct(s.Rate)},
-				{text: pctDown(s.Lower)}, {text: pctUp(s.Upper)},
+				{text: s.Label}, {text: itoa(s.Labeled)}, {text: itoa(s.Errors)}, {text: numfmt.Rate(s.Rate)},
+				{text: numfmt.RateDown(s.Lower)}, {text: numfmt.RateUp(s.Upper)},
 			})
 		}
 		title := "Errors per stratum: " + cand.Name

@@ -4,6 +4,7 @@ import (
 	"strings"
 
 	"probity/plan/chrono"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
 
@@ -148,15 +149,15 @@ func (d *doc) summary(c *content) {
 			row = append(row, cell{text: after})
 		}
 		row = append(row, []cell{
-			{text: pct(cand.Estimate)},
+			{text: numfmt.Rate(cand.Estimate)},
 			{text: boundText(cand, mixed), bold: true},
 			{text: c.fields.Ceiling},
-			{text: prob(cand.PValue)},
+			{text: numfmt.PValue(cand.PValue)},
 		}...)
 		if holm {
 			adj := "–"
 			if cand.AdjustedPValue != nil {
-				adj = prob(*cand.AdjustedPValue)
+				adj = numfmt.PValue(*cand.AdjustedPValue)
 			}
 			row = append(row, cell{text: adj})
 		}
@@ -165,6 +166,7 @@ func (d *doc) summary(c *content) {
 	}
 	d.drawTable(&table{title: "Decision summary", cols: cols, rows: rows, header: true})
 	d.note(precisionNote)
+	d.note(pValueNote(holm))
 }
 
 // verdictCell is a table cell that shows a verdict as a word on a colour.
@@ -259,9 +261,9 @@ func joinNonEmpty(sep string, parts ...string) string {
 // candidates' confidences differ.
 func boundText(cand record.Candidate, withConfidence bool) string {
 	if withConfidence {
-		return pctUp(cand.UpperBound) + " (" + confidence(cand.BoundConfidence) + ")"
+		return numfmt.RateUp(cand.UpperBound) + " (" + numfmt.Confidence(cand.BoundConfidence) + ")"
 	}
-	return pctUp(cand.UpperBound)
+	return numfmt.RateUp(cand.UpperBound)
 }
 
 // issuedText is when the record was issued, for the title block: "2026-12-01

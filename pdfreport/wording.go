@@ -3,6 +3,7 @@ package pdfreport
 import (
 	"strings"
 
+	"probity/plan/numfmt"
 	"probity/templates"
 )
 
@@ -40,7 +41,7 @@ func (d *doc) conformity(c *content) {
 			finding = "has no verdict"
 		}
 		d.bullet(cand.Name + " " + finding + " (" + cand.Verdict + "): upper bound " +
-			pctUp(cand.UpperBound) + " against the ceiling " + c.fields.Ceiling + "; " +
+			numfmt.RateUp(cand.UpperBound) + " against the ceiling " + c.fields.Ceiling + "; " +
 			plural(cand.Errors, "error", "errors") + " among " + itoa(cand.Labeled) + " labeled decisions.")
 	}
 	d.space(1)
@@ -131,8 +132,8 @@ func (d *doc) methodSection(c *content) {
 func (d *doc) deviationsSection(c *content) {
 	d.heading("Deviations from the plan")
 	dev := c.rec.Deviations
-	if len(dev.SparesUsed) == 0 && len(dev.Unlabeled) == 0 && len(dev.Unsure) == 0 &&
-		!dev.AllowIncomplete && len(dev.Notes) == 0 {
+	if len(dev.SparesUsed) == 0 && len(dev.Unlabeled) == 0 && len(dev.Unsure) == 0 && len(dev.SparesUnused) == 0 &&
+		!dev.AllowIncomplete && len(dev.Notes) == 0 && dev.DoubleNotLabeled == 0 {
 		d.wordingBlocks(d.text(c, templates.DeviationsNone))
 		return
 	}
@@ -149,6 +150,20 @@ func (d *doc) deviationsSection(c *content) {
 	list("Spare items used", dev.SparesUsed)
 	list("Items left unlabeled", dev.Unlabeled)
 	list("Labels marked unsure", dev.Unsure)
+	if len(dev.Replacements) > 0 {
+		pairs := make([]string, len(dev.Replacements))
+		for i, r := range dev.Replacements {
+			pairs[i] = r.Item + " by spare " + r.Spare + " (" + r.Reason + ")"
+		}
+		d.bullet("Items replaced by the draw's fixed rule (within a stratum, the items marked unsure, in worksheet order, take the spares in the order they were drawn): " +
+			strings.Join(pairs, "; ") + ".")
+	}
+	if len(dev.SparesUnused) > 0 {
+		d.bullet("Labeled spares that replaced nothing, unused (" + itoa(len(dev.SparesUnused)) + "): " + strings.Join(dev.SparesUnused, ", ") + ".")
+	}
+	if s := dev.DoubleNotLabeledText(); s != "" {
+		d.bullet(s)
+	}
 	for _, n := range dev.Notes {
 		if strings.TrimSpace(n) != "" {
 			d.bullet(n)

@@ -52,7 +52,7 @@ func TestStatedRuleKeepsTheGuarantee(t *testing.T) {
 	r := Rule{Model: ModelBinomial, SampleSize: 60, AcceptanceNumber: 5, PerCandidateRisk: in.PerCandidateRisk()}
 	r.ConsumerRisk = BinomialCDF(5, 60, 0.02)
 	err := CheckStatedRule(in, r, nil)
-	if err == nil || err.Error() != "sample_size accepting at most 5 errors in 60 does not keep the consumer's risk 0.050000000000000044 (exact test)" {
+	if err == nil || err.Error() != "sample_size accepting at most 5 errors in 60 does not keep the consumer's risk 0.05 (exact test)" {
 		t.Errorf("%v", err)
 	}
 }

@@ -1,6 +1,10 @@
 package plan
 
-import "fmt"
+import (
+	"fmt"
+	"math"
+	"strconv"
+)
 
 // Multiplicity is how the family-wise risk δ is shared among M candidates
 // judged on one sample. It is written in plan.yaml and record.json by its
@@ -67,9 +71,24 @@ func (m Multiplicity) EffectiveCandidates(candidates int) int {
 
 // PerCandidateRisk is α = δ/M': the largest probability that any one of
 // the candidates at or above the ceiling is accepted, for the family-wise
-// risk δ = 1 − confidence shared among M candidates.
+// risk δ = 1 − confidence shared among M candidates. A quotient within
+// binary noise of a 12-figure decimal is that decimal, so 1 − 0.95 =
+// 0.050000000000000044 does not reach the plan file as
+// 0.025000000000000022: every caller (the search, the plan file, a loader
+// recomputing it) gets the same value. A quotient with more digits (0.05/3)
+// is left as it is, never rounded up above δ/M'.
 func (m Multiplicity) PerCandidateRisk(delta float64, candidates int) float64 {
-	return delta / float64(m.EffectiveCandidates(candidates))
+	return withoutNoise(delta / float64(m.EffectiveCandidates(candidates)))
+}
+
+// withoutNoise returns the decimal of 12 significant figures that x is
+// within 1e-14 (relative) of, or x.
+func withoutNoise(x float64) float64 {
+	v, err := strconv.ParseFloat(strconv.FormatFloat(x, 'g', 12, 64), 64)
+	if err != nil || math.Abs(v-x) > 1e-14*math.Abs(x) {
+		return x
+	}
+	return v
 }
 
 // NotReachedReason says why a candidate was not tested: the procedure

@@ -202,7 +202,7 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 			}
 			rows[i].Predictions[ci] = v
 		}
-		w := drawfolder.WorksheetRow{Item: i + 1, RecordID: r.ID, Show: append([]string{}, r.Values[:len(in.Show)]...)}
+		w := drawfolder.WorksheetRow{Item: i + 1, RecordID: r.ID, Spare: rows[i].Spare, Show: append([]string{}, r.Values[:len(in.Show)]...)}
 		f.Worksheet = append(f.Worksheet, w)
 		if rows[i].Double {
 			f.Second = append(f.Second, w)

@@ -67,8 +67,18 @@ its trend charts the records as unauthenticated.
 const demoPlan = "plan.yaml"
 
 // demoUnsureAt are the main items (1-based, among main items) the simulated
-// labeler marks unsure.
-var demoUnsureAt = []int{112, 407, 1333}
+// labeler marks unsure in a month: other positions each month, as real
+// unsure items fall (a fixed table, so every run makes the same record).
+func demoUnsureAt(month string) []int {
+	if month == "2026-10" {
+		return []int{112, 407, 1333}
+	}
+	return []int{158, 861, 1590}
+}
+
+// demoUnsureCount is how many items the simulated labeler marks unsure in
+// every month.
+const demoUnsureCount = 3
 
 // demoSignoff is the sign-off file of the demo: invented people.
 const demoSignoff = `prepared:
@@ -351,7 +361,7 @@ func demoLabelMonth(m demolog.Scenario, res *demoMonth, latest bool, start time.
 	if err != nil {
 		return err
 	}
-	first, sum, err := m.Label(f.Worksheet, f.Ledger, demoUnsureAt)
+	first, sum, err := m.Label(f.Worksheet, f.Ledger, demoUnsureAt(m.Month))
 	if err != nil {
 		return err
 	}

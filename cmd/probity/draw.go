@@ -14,6 +14,7 @@ import (
 	"probity/plan"
 	"probity/plan/chrono"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/planfile"
 	"probity/plan/trend"
 	"probity/sampling"
@@ -549,7 +550,7 @@ func writeDrawSummary(w io.Writer, dir string, f *drawfolder.Content) {
 	}
 	fmt.Fprintf(w, "  %-*s  %10s  %6s  %6s  %9s\n", wl, "stratum", "N_h", "n_h", "spares", "weight")
 	for _, s := range m.Strata {
-		fmt.Fprintf(w, "  %-*s  %10d  %6d  %6d  %9s\n", wl, s.Label, s.Population, s.Sample, s.Spare, formatWeight(s.Weight))
+		fmt.Fprintf(w, "  %-*s  %10s  %6s  %6s  %9s\n", wl, s.Label, numfmt.Count(s.Population), numfmt.Count(s.Sample), numfmt.Count(s.Spare), formatWeight(s.Weight))
 	}
 	if m.Period != "" {
 		fmt.Fprintf(w, "period %s: selection seed %s = sha256hex(\"<plan seed>:period:%s\")\n", m.Period, m.SelectionSeed, m.Period)
@@ -587,7 +588,7 @@ func formatWeight(w float64) string {
 	if w == 0 {
 		return "-"
 	}
-	return fmt.Sprintf("%.2f", w)
+	return numfmt.Weight(w)
 }
 
 func runDrawCheck(d deps, o *drawOptions) error {

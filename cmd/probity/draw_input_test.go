@@ -128,7 +128,7 @@ func TestPluralForms(t *testing.T) {
 		t.Errorf("draw: exit %d\n%s%s", code, stdout, stderr)
 	}
 	code, stdout, stderr = runProbity(t, "plan", "--budget", "100", "--confidence", "0.9", "--ceiling", "0.05")
-	if code != exitOK || !strings.Contains(stdout, "For the ceiling 5% these labels allow at most 1 error.") {
+	if code != exitOK || !strings.Contains(stdout, "For the ceiling 5 % these labels allow at most 1 error.") {
 		t.Errorf("plan --budget: exit %d\n%s%s", code, stdout, stderr)
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 	"probity/plan/verdict"
 	"probity/sampling/drawfolder"
 )
@@ -52,12 +53,12 @@ func writeDrawRule(w io.Writer, p *plan.File, m *drawfolder.Manifest) error {
 			c.Accept, c.CountedSize(), p.Rule.AcceptanceNumber, p.Rule.SampleSize)
 	}
 	fmt.Fprintf(w, "  consumer's risk: at most %s for a candidate at the ceiling, wherever its errors sit (allowed %s)\n",
-		pct(c.ConsumerRiskBound()), pct(p.Rule.PerCandidateRisk))
+		numfmt.Chance(c.ConsumerRiskBound()), numfmt.Chance(p.Rule.PerCandidateRisk))
 	planPR := ""
 	if pr := p.Rule.ProducerRisk; pr != nil {
-		planPR = fmt.Sprintf("; the plan states %s for a simple random sample", pct(*pr))
+		planPR = fmt.Sprintf("; the plan states %s for a simple random sample", numfmt.Chance(*pr))
 	}
-	fmt.Fprintf(w, "  producer's risk: %s at %s%s\n", pct(a.ProducerRisk), a.AnticipatedFrom, planPR)
+	fmt.Fprintf(w, "  producer's risk: %s at %s%s\n", numfmt.Chance(a.ProducerRisk), a.AnticipatedFrom, planPR)
 	if a.Thinned {
 		var parts []string
 		for h, s := range m.Strata {

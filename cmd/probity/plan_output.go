@@ -8,10 +8,10 @@ import (
 	"math"
 	"path/filepath"
 	"strconv"
-	"strings"
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/sampling/safewrite"
 )
 
@@ -135,6 +135,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string, so *planS
 		j.PlanFile, j.Fingerprint = &out, &fingerprint
 	}
 	enc := json.NewEncoder(w)
+	enc.SetEscapeHTML(false)
 	enc.SetIndent("", "  ")
 	return enc.Encode(j)
 }
@@ -157,7 +158,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string, so *pla
 	}
 	from := "drawn at random from the prediction log"
 	if in.Population > 0 {
-		from = fmt.Sprintf("drawn at random from the batch of %d", in.Population)
+		from = fmt.Sprintf("drawn at random from the batch of %s", numfmt.Count(in.Population))
 	}
 	if st := f.Stratification; st != nil {
 		counted := 0
@@ -170,7 +171,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string, so *pla
 	} else if r.AcceptanceNumber == 0 {
 		fmt.Fprintf(w, "Label %s %s; accept %s if none of them is an error.\n", decisions(r.SampleSize), from, who)
 	} else {
-		fmt.Fprintf(w, "Label %d decisions %s; accept %s if at most %d of them are errors.\n", r.SampleSize, from, who, r.AcceptanceNumber)
+		fmt.Fprintf(w, "Label %s decisions %s; accept %s if at most %d of them are errors.\n", numfmt.Count(r.SampleSize), from, who, r.AcceptanceNumber)
 	}
 	if f.Sequential != nil {
 		fmt.Fprintln(w)
@@ -185,44 +186,44 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string, so *pla
 		fmt.Fprintf(w, "All %d candidates are judged on the same labels; %s.\n", m, req)
 		switch in.Multiplicity {
 		case plan.Bonferroni:
-			fmt.Fprintf(w, "Bonferroni: each candidate is held to risk %s = (1 − %s)/%d.\n", pct(r.PerCandidateRisk), pct(in.Confidence), m)
+			fmt.Fprintf(w, "Bonferroni: each candidate is held to risk %s = (1 − %s)/%d.\n", numfmt.Chance(r.PerCandidateRisk), numfmt.Confidence(in.Confidence), m)
 		case plan.Holm:
-			fmt.Fprintf(w, "Holm: sized as Bonferroni (its first step tests each candidate at %s); later steps test at larger risks, up to %s.\n", pct(r.PerCandidateRisk), pct(1-in.Confidence))
+			fmt.Fprintf(w, "Holm: sized as Bonferroni (its first step tests each candidate at %s); later steps test at larger risks, up to %s.\n", numfmt.Chance(r.PerCandidateRisk), numfmt.Chance(1-in.Confidence))
 		case plan.FixedSequence:
-			fmt.Fprintf(w, "Fixed sequence: candidates are tested in the declared order at the full risk %s, stopping at the first rejected.\n", pct(r.PerCandidateRisk))
+			fmt.Fprintf(w, "Fixed sequence: candidates are tested in the declared order at the full risk %s, stopping at the first rejected.\n", numfmt.Chance(r.PerCandidateRisk))
 		}
 	}
 	for _, c := range f.Candidates {
 		if c.Column != "" {
 			fmt.Fprintf(w, "  candidate %s: predicted label in column %s\n", c.Name, c.Column)
 		} else {
-			fmt.Fprintf(w, "  candidate %s: %s when %s ≥ %s, else %s\n", c.Name, c.Positive, c.ScoreColumn, strconv.FormatFloat(*c.Threshold, 'g', -1, 64), c.Negative)
+			fmt.Fprintf(w, "  candidate %s: %s when %s ≥ %s, else %s\n", c.Name, c.Positive, c.ScoreColumn, numfmt.Number(*c.Threshold), c.Negative)
 		}
 	}
 
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, "What the plan guarantees")
-	bad := fmt.Sprintf("a model whose true error is %s or more", pct(in.Ceiling))
+	bad := fmt.Sprintf("a model whose true error is %s or more", numfmt.Setting(in.Ceiling))
 	if in.Population > 0 {
-		bad = fmt.Sprintf("a batch with %d or more errors (%s of %d)", r.BadLotErrors, pct(in.Ceiling), in.Population)
+		bad = fmt.Sprintf("a batch with %s or more errors (%s of %s)", numfmt.Count(r.BadLotErrors), numfmt.Setting(in.Ceiling), numfmt.Count(in.Population))
 	}
-	allowed := fmt.Sprintf("allowed %s: %s confidence", pct(r.PerCandidateRisk), pct(in.Confidence))
+	allowed := fmt.Sprintf("allowed %s: %s confidence", numfmt.Chance(r.PerCandidateRisk), numfmt.Confidence(in.Confidence))
 	if in.Multiplicity.EffectiveCandidates(m) > 1 {
-		allowed = fmt.Sprintf("allowed %s per candidate, so %s confidence for all %d together", pct(r.PerCandidateRisk), pct(in.Confidence), m)
+		allowed = fmt.Sprintf("allowed %s per candidate, so %s confidence for all %d together", numfmt.Chance(r.PerCandidateRisk), numfmt.Confidence(in.Confidence), m)
 	}
 	if in.Multiplicity == plan.Holm && m > 1 {
-		fmt.Fprintf(w, "  consumer's risk: Holm's step-down keeps the chance that any candidate at or above the ceiling passes at most %s (%s confidence for all %d together).\n", pct(1-in.Confidence), pct(in.Confidence), m)
-		fmt.Fprintf(w, "    Its first step tests each candidate at %s (this rule's exact risk there: %s); later steps test at up to %s,\n", pct(r.PerCandidateRisk), pct(r.ConsumerRisk), pct(1-in.Confidence))
-		fmt.Fprintf(w, "    so one candidate on its own may pass with probability up to %s when the others pass.\n", pct(1-in.Confidence))
+		fmt.Fprintf(w, "  consumer's risk: Holm's step-down keeps the chance that any candidate at or above the ceiling passes at most %s (%s confidence for all %d together).\n", numfmt.Chance(1-in.Confidence), numfmt.Confidence(in.Confidence), m)
+		fmt.Fprintf(w, "    Its first step tests each candidate at %s (this rule's exact risk there: %s); later steps test at up to %s,\n", numfmt.Chance(r.PerCandidateRisk), numfmt.Chance(r.ConsumerRisk), numfmt.Chance(1-in.Confidence))
+		fmt.Fprintf(w, "    so one candidate on its own may pass with probability up to %s when the others pass.\n", numfmt.Chance(1-in.Confidence))
 	} else {
-		fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (%s).\n", bad, pct(r.ConsumerRisk), allowed)
+		fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (%s).\n", bad, numfmt.Chance(r.ConsumerRisk), allowed)
 	}
 	if in.Anticipated != nil {
-		good := fmt.Sprintf("a model whose true error is the anticipated %s", pct(*in.Anticipated))
+		good := fmt.Sprintf("a model whose true error is the anticipated %s", numfmt.Setting(*in.Anticipated))
 		if in.Population > 0 {
-			good = fmt.Sprintf("a batch with %d errors (the anticipated %s)", r.GoodLotErrors, pct(*in.Anticipated))
+			good = fmt.Sprintf("a batch with %s errors (the anticipated %s)", numfmt.Count(r.GoodLotErrors), numfmt.Setting(*in.Anticipated))
 		}
-		fmt.Fprintf(w, "  producer's risk: %s fails with probability %s (allowed %s).\n", good, pct(*r.ProducerRisk), pct(in.ProducerRisk))
+		fmt.Fprintf(w, "  producer's risk: %s fails with probability %s (allowed %s).\n", good, numfmt.Chance(*r.ProducerRisk), numfmt.Chance(in.ProducerRisk))
 	} else if f.Sequential == nil {
 		half := f.HalfCeilingPoint()
 		if r.AcceptanceNumber == 0 {
@@ -232,9 +233,9 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string, so *pla
 		}
 		if N := in.Population; N > 0 {
 			d := int64(math.Round(half.Error * float64(N)))
-			fmt.Fprintf(w, "  A batch with %d errors (%s, half the ceiling rounded down to a whole error) would be rejected %s of the time;\n", d, pct(half.Error), pct(1-half.AcceptProbability))
+			fmt.Fprintf(w, "  A batch with %s errors (%s, half the ceiling rounded down to a whole error) would be rejected %s of the time;\n", numfmt.Count(d), numfmt.Rate(half.Error), numfmt.Chance(1-half.AcceptProbability))
 		} else {
-			fmt.Fprintf(w, "  A model whose true error is half the ceiling (%s) would be rejected %s of the time;\n", pct(half.Error), pct(1-half.AcceptProbability))
+			fmt.Fprintf(w, "  A model whose true error is half the ceiling (%s) would be rejected %s of the time;\n", numfmt.Setting(half.Error), numfmt.Chance(1-half.AcceptProbability))
 		}
 		fmt.Fprintf(w, "  give --anticipated to size a plan that passes a good model more reliably.\n")
 	}
@@ -271,7 +272,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string, so *pla
 			} else if base > 0 {
 				note = "  " + ratio(float64(row.SampleSize)/float64(base)) + " " + ref
 			}
-			fmt.Fprintf(w, "  %-36s %10d%s\n", title, row.SampleSize, note)
+			fmt.Fprintf(w, "  %-36s %10s%s\n", title, numfmt.Count(row.SampleSize), note)
 		}
 	}
 	if in.Anticipated != nil {
@@ -309,50 +310,21 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string, so *pla
 		case hasP0 && p.Error == p0:
 			mark = "  anticipated"
 		}
-		if N := in.Population; N > 0 && mark != "" {
-			mark += fmt.Sprintf(" (%s in the batch)", errorCount(int64(math.Round(p.Error*float64(N)))))
+		rate := numfmt.Setting(p.Error)
+		if N := in.Population; N > 0 {
+			// a batch's rows are at whole error counts D/N
+			rate = numfmt.Rate(p.Error)
+			if mark != "" {
+				mark += fmt.Sprintf(" (%s in the batch)", errorCount(int64(math.Round(p.Error*float64(N)))))
+			}
 		}
-		fmt.Fprintf(w, "  %-12s %s%s\n", pct(p.Error), pct(a), mark)
+		fmt.Fprintf(w, "  %-12s %s%s\n", rate, numfmt.Chance(a), mark)
 	}
 	if out != "" {
 		fmt.Fprintln(w)
 		fmt.Fprintf(w, "Plan written to %s (seed %s, fingerprint sha256:%s).\n", out, f.Seed, fingerprint)
 	}
 	return nil
-}
-
-// pct formats a probability as a percentage with up to four significant
-// digits ("2%", "4.988%", "0.001%").
-func pct(p float64) string {
-	v := 100 * p
-	switch {
-	case v == 0:
-		return "0%"
-	case v >= 99.99 && v < 100:
-		return "over 99.99%"
-	case v < 0.0001:
-		return strconv.FormatFloat(v, 'g', 2, 64) + "%"
-	}
-	s := strconv.FormatFloat(v, 'f', -1, 64)
-	if d := decimalsFor(v); d >= 0 {
-		s = strconv.FormatFloat(v, 'f', d, 64)
-		if strings.Contains(s, ".") {
-			s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
-		}
-	}
-	return s + "%"
-}
-
-// decimalsFor gives four significant digits for v.
-func decimalsFor(v float64) int {
-	d := 3
-	for x := v; x >= 10 && d > 0; x /= 10 {
-		d--
-	}
-	for x := v; x < 1 && d < 8; x *= 10 {
-		d++
-	}
-	return d
 }
 
 // runPlanBudget answers --budget: the ceiling each error count certifies.
@@ -389,25 +361,26 @@ func runPlanBudget(d deps, o *planOptions) error {
 			j.Ceiling = &in.Ceiling
 		}
 		enc := json.NewEncoder(d.stdout)
+		enc.SetEscapeHTML(false)
 		enc.SetIndent("", "  ")
 		return enc.Encode(j)
 	}
 	w := d.stdout
 	src := "one-sided Clopper–Pearson upper bound"
 	if in.Population > 0 {
-		src = fmt.Sprintf("exact hypergeometric bound for the batch of %d", in.Population)
+		src = fmt.Sprintf("exact hypergeometric bound for the batch of %s", numfmt.Count(in.Population))
 	}
-	fmt.Fprintf(w, "With %d labels, at confidence %s per candidate (%s):\n", o.budgetN, pct(1-alpha), src)
+	fmt.Fprintf(w, "With %s labels, at confidence %s per candidate (%s):\n", numfmt.Count(o.budgetN), numfmt.Confidence(1-alpha), src)
 	fmt.Fprintf(w, "  %-8s %s\n", "errors", "certifies error below")
 	for _, row := range rows {
-		fmt.Fprintf(w, "  %-8d %s\n", row.Errors, pct(row.Ceiling))
+		fmt.Fprintf(w, "  %-8d %s\n", row.Errors, numfmt.RateUp(row.Ceiling))
 	}
 	if c != nil {
 		if *c < 0 {
-			fmt.Fprintf(w, "%d labels cannot certify the ceiling %s even with no errors: at least %s would be needed with none.\n",
-				o.budgetN, pct(in.Ceiling), strconv.Itoa(zeroFailureN(in.Ceiling, alpha)))
+			fmt.Fprintf(w, "%s labels cannot certify the ceiling %s even with no errors: at least %s would be needed with none.\n",
+				numfmt.Count(o.budgetN), numfmt.Setting(in.Ceiling), numfmt.Count(zeroFailureN(in.Ceiling, alpha)))
 		} else {
-			fmt.Fprintf(w, "For the ceiling %s these labels allow at most %s.\n", pct(in.Ceiling), countOf(*c, "error", "errors"))
+			fmt.Fprintf(w, "For the ceiling %s these labels allow at most %s.\n", numfmt.Setting(in.Ceiling), countOf(*c, "error", "errors"))
 		}
 	}
 	return nil

@@ -4,10 +4,10 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"strings"
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/sequential"
 )
 
@@ -94,7 +94,7 @@ func writeSequentialSummary(w io.Writer, f *plan.File) {
 	fmt.Fprintf(w, "Sequential design: label one item at a time, from the top of the worksheet, and stop at the boundaries;\n")
 	fmt.Fprintf(w, "at most %d labels (the draw selects that many). 'probity progress' says when to stop.\n", s.MaxSampleSize)
 	fmt.Fprintf(w, "Average labels needed (exact ASN): %.0f at the anticipated error %s, %.0f at the ceiling %s;\n",
-		s.ASNAtAnticipated, planSeqPercent(p0), s.ASNAtCeiling, planSeqPercent(f.Inputs.Ceiling))
+		s.ASNAtAnticipated, numfmt.Setting(p0), s.ASNAtCeiling, numfmt.Setting(f.Inputs.Ceiling))
 	fmt.Fprintf(w, "the fixed plan needs %d labels with at most %s (%.0f %% and %.0f %% of it).\n",
 		s.FixedSampleSize, countOf(s.FixedAcceptanceNumber, "error", "errors"), 100*s.ASNAtAnticipated/n, 100*s.ASNAtCeiling/n)
 	pr := "n/a"
@@ -155,9 +155,4 @@ func planSeqTableRows(s *plan.SequentialRule) []int {
 		}
 	}
 	return rows
-}
-
-func planSeqPercent(p float64) string {
-	s := fmt.Sprintf("%.4g", 100*p)
-	return strings.TrimSuffix(s, ".") + " %"
 }

@@ -13,6 +13,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/verdict"
 	"probity/sampling"
 )
@@ -269,12 +270,12 @@ func writeStrataReport(w io.Writer, f *plan.File, o *planStrataOptions) {
 	}
 	fmt.Fprintf(w, "  %-16s %10s %7s %8s  %s\n", "stratum", "N_h", "n_h", "counted", "anticipated")
 	for h, s := range st.Strata {
-		fmt.Fprintf(w, "  %-16s %10d %7d %8d  %s\n", s.Label, s.Population, st.Sample[h], st.Counted[h], pct(s.Anticipated))
+		fmt.Fprintf(w, "  %-16s %10d %7d %8d  %s\n", s.Label, s.Population, st.Sample[h], st.Counted[h], numfmt.Setting(s.Anticipated))
 	}
-	fmt.Fprintf(w, "  accept a candidate with at most %d errors among the %d counted items; the consumer's risk is at most %s\n", a.Count.Accept, a.Count.CountedSize(), pct(a.Count.ConsumerRiskBound()))
+	fmt.Fprintf(w, "  accept a candidate with at most %d errors among the %d counted items; the consumer's risk is at most %s\n", a.Count.Accept, a.Count.CountedSize(), numfmt.Chance(a.Count.ConsumerRiskBound()))
 	fmt.Fprintf(w, "  wherever the errors sit (Hoeffding 1956 at the least favourable spread), and a stratum left without an item counts as unknown.\n")
 	if f.Rule.ProducerRisk != nil {
-		fmt.Fprintf(w, "  producer's risk %s at the anticipated errors (allowed %s); a simple random sample would need %d labels.\n", pct(*f.Rule.ProducerRisk), pct(f.Inputs.ProducerRisk), st.SimpleRandomSampleSize)
+		fmt.Fprintf(w, "  producer's risk %s at the anticipated errors (allowed %s); a simple random sample would need %d labels.\n", numfmt.Chance(*f.Rule.ProducerRisk), numfmt.Chance(f.Inputs.ProducerRisk), st.SimpleRandomSampleSize)
 	} else {
 		fmt.Fprintf(w, "  the smallest sample any count can pass; a simple random sample would need %d labels.\n", st.SimpleRandomSampleSize)
 	}

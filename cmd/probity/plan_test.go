@@ -44,14 +44,26 @@ func TestPlanIssueExample(t *testing.T) {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
 	}
 	for _, want := range []string{
-		"Label 1271 decisions drawn at random from the prediction log; accept the model if at most 17 of them are errors.",
-		"exact binomial                             1271  (this plan)",
-		"Hoeffding                                 18208",
-		"producer's risk: a model whose true error is the anticipated 1% fails with probability 9.323% (allowed 10%).",
-		"2%           4.988%  ceiling",
+		"Label 1,271 decisions drawn at random from the prediction log; accept the model if at most 17 of them are errors.",
+		"exact binomial                            1,271  (this plan)",
+		"Hoeffding                                18,208",
+		"producer's risk: a model whose true error is the anticipated 1 % fails with probability 9.323 % (allowed 10 %).",
+		"2 %          4.988 %  ceiling",
 	} {
 		if !strings.Contains(out, want) {
 			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+}
+
+// A candidate name with > (a threshold's) reads as it is in --json output,
+// never as JSON's HTML escape \u003e (issue 16 item 14).
+func TestPlanJSONWithoutEscapes(t *testing.T) {
+	for _, extra := range [][]string{nil, {"--multiplicity", "holm"}} {
+		args := append([]string{"--confidence", "0.95", "--ceiling", "0.02", "--thresholds", "s:0.5,0.6", "--positive", "a", "--negative", "b", "--json"}, extra...)
+		code, out, errOut := runPlanCmd(t, args...)
+		if code != exitOK || strings.Contains(out, `\u00`) {
+			t.Errorf("%v: exit %d %s\n%s", extra, code, errOut, out)
 		}
 	}
 }
@@ -212,7 +224,7 @@ func TestPlanBudget(t *testing.T) {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
 	}
 	// 1 − 0.05^(1/500) = 0.5974% (closed form of the zero-error bound)
-	for _, want := range []string{"0        0.5974%", "For the ceiling 2% these labels allow at most 4 errors."} {
+	for _, want := range []string{"0        0.598 %", "For the ceiling 2 % these labels allow at most 4 errors."} {
 		if !strings.Contains(out, want) {
 			t.Errorf("budget output lacks %q:\n%s", want, out)
 		}
@@ -232,7 +244,7 @@ func TestPlanBudget(t *testing.T) {
 
 func TestPlanPopulationAndMethods(t *testing.T) {
 	code, out, _ := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--population", "20000")
-	if code != exitOK || !strings.Contains(out, "Label 1199 decisions drawn at random from the batch of 20000; accept the model if at most 16") ||
+	if code != exitOK || !strings.Contains(out, "Label 1,199 decisions drawn at random from the batch of 20,000; accept the model if at most 16") ||
 		!strings.Contains(out, "a batch with 400 or more errors") {
 		t.Errorf("population plan:\n%s", out)
 	}

@@ -13,6 +13,7 @@ import (
 	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/plan/inputfile"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/record/intake"
@@ -309,14 +310,14 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 	if rec.Supersedes != "" {
 		fmt.Fprintf(w, "revision %d, superseding record %s\n", rec.Revision, rec.Supersedes)
 	}
-	fmt.Fprintf(w, "ceiling %s, confidence %s, %s\n", record.FormatFloat(rec.Plan.Ceiling), record.FormatFloat(rec.Plan.Confidence), rec.Method.Bound)
+	fmt.Fprintf(w, "ceiling %s, confidence %s, %s\n", numfmt.Setting(rec.Plan.Ceiling), numfmt.Confidence(rec.Plan.Confidence), rec.Method.Bound)
 	width := 4
 	for _, c := range rec.Candidates {
 		width = max(width, len([]rune(c.Name)))
 	}
 	for _, c := range rec.Candidates {
-		fmt.Fprintf(w, "  %-*s  %s  %d/%d errors, estimate %s, upper bound %s — %s\n", width, c.Name, c.Verdict, c.Errors, c.Labeled,
-			fmt.Sprintf("%.4f", c.Estimate), fmt.Sprintf("%.4f", c.UpperBound), c.Reason)
+		fmt.Fprintf(w, "  %-*s  %s  %s/%s errors, estimate %s, upper bound %s — %s\n", width, c.Name, c.Verdict, numfmt.Count(c.Errors), numfmt.Count(c.Labeled),
+			numfmt.Rate(c.Estimate), numfmt.RateUp(c.UpperBound), c.Reason)
 	}
 	fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
 	if t := rec.LabelTrail; t != nil {
@@ -324,6 +325,15 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 	}
 	for _, c := range rec.Caveats {
 		fmt.Fprintf(w, "caveat: %s\n", c.Text)
+	}
+	for _, r := range rec.Deviations.Replacements {
+		fmt.Fprintf(w, "spare: %s replaces %s (%s)\n", r.Spare, r.Item, r.Reason)
+	}
+	if u := rec.Deviations.SparesUnused; len(u) > 0 {
+		fmt.Fprintf(w, "spares labeled but unused (they replaced nothing): %s\n", strings.Join(u, ", "))
+	}
+	if s := rec.Deviations.DoubleNotLabeledText(); s != "" {
+		fmt.Fprintf(w, "deviation: %s\n", s)
 	}
 	if rec.Deviations.AllowIncomplete {
 		fmt.Fprintf(w, "note: unlabeled or unsure items were counted as errors for every candidate (--allow-incomplete)\n")

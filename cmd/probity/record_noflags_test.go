@@ -21,7 +21,7 @@ var flagSpelling = regexp.MustCompile(`(^|[^-\w])--[a-z][a-z-]*`)
 // unsure items counted as errors, a sequential prefix with an unsure item,
 // unequal weights under the stratified count rule, adjudicated and unadjudicated
 // disagreements, unsure double labels, the same labeler twice (a warning)
-// and enforced labeler independence. The flags belong to the command line;
+// and enforced labeler independence, a planned second labeling not done. The flags belong to the command line;
 // the signed artifacts speak of what was decided.
 func TestRecordArtifactsNameNoFlag(t *testing.T) {
 	type run struct {
@@ -87,6 +87,7 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 		run{"unsure second label", with("--second", unsure, "--allow-unadjudicated", "--allow-incomplete"), accepted},
 		run{"same labeler warned", with("--second", same), accepted},
 		run{"independence enforced", with("--second", agree, "--strict"), accepted},
+		run{"second labeling planned, not done", with(), accepted},
 	)
 
 	_, pdfErr := exec.LookPath("pdftotext")

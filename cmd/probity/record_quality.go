@@ -8,6 +8,7 @@ import (
 
 	"probity/plan/agreement"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
 
@@ -90,8 +91,8 @@ func reportLabelQuality(d deps, q *record.LabelQuality, summary bool) {
 		if !a.Defined {
 			return "undefined"
 		}
-		return fmt.Sprintf("%.3f [%.3f, %.3f]", a.Value, a.Lower, a.Upper)
+		return numfmt.Coefficient(a.Value) + " [" + numfmt.CoefficientDown(a.Lower) + ", " + numfmt.CoefficientUp(a.Upper) + "]"
 	}
-	fmt.Fprintf(d.stdout, "label quality: %d doubled, %d compared, agreement %.4f, kappa %s, AC1 %s; %d disagreements (%d adjudicated, %d counted as errors)\n",
-		q.Doubled, q.Compared, q.ObservedAgreement, coef(q.Kappa), coef(q.AC1), len(q.Disagreements), q.Adjudicated, q.Unadjudicated)
+	fmt.Fprintf(d.stdout, "label quality: %d doubled, %d compared, agreement %s, kappa %s, AC1 %s; %d disagreements (%d adjudicated, %d counted as errors)\n",
+		q.Doubled, q.Compared, numfmt.Rate(q.ObservedAgreement), coef(q.Kappa), coef(q.AC1), len(q.Disagreements), q.Adjudicated, q.Unadjudicated)
 }

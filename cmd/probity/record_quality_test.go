@@ -7,6 +7,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -32,7 +33,10 @@ type lqFixture struct {
 	truth               map[string]string
 }
 
-func newLQFixture(t *testing.T) *lqFixture {
+func newLQFixture(t *testing.T) *lqFixture { t.Helper(); return newLQFixtureSpares(t, 0) }
+
+// newLQFixtureSpares is newLQFixture with this many spares drawn.
+func newLQFixtureSpares(t *testing.T, spares int) *lqFixture {
 	t.Helper()
 	fx := &lqFixture{dir: t.TempDir(), truth: map[string]string{}}
 	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.9, CandidateCount: 1, ProducerRisk: 0.1,
@@ -74,7 +78,7 @@ func newLQFixture(t *testing.T) *lqFixture {
 	defer log.Close()
 	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: logPath, Log: log,
 		Format: "csv", IDColumn: "record_id", Show: []string{"scan"}, Double: 6,
-		Alloc: sampling.AllocOptions{Rule: sampling.Proportional}, ToolVersion: "test"})
+		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: spares}, ToolVersion: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -360,8 +364,9 @@ func lqList(dir string) []string {
 
 // TestRecordFullAgreementChangesNothing: when the two labelers agree on
 // every doubled item the judgement is the one made from the first labels
-// alone, and record.json differs only by label_quality and by the record
-// id (which also fingerprints the second worksheet).
+// alone, and record.json differs only by label_quality, by the record
+// id (which also fingerprints the second worksheet) and by the deviation
+// the single-label record states (the planned second labeling missing).
 func TestRecordFullAgreementChangesNothing(t *testing.T) {
 	fx := newLQFixture(t)
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []drawfolder.WorksheetRow) {
@@ -382,7 +387,10 @@ func TestRecordFullAgreementChangesNothing(t *testing.T) {
 	if a.RecordID == b.RecordID {
 		t.Errorf("the record with a second worksheet has the single-label record's id %s", a.RecordID)
 	}
-	b.LabelQuality, b.RecordID = nil, a.RecordID
+	if a.Deviations.DoubleNotLabeled == 0 || b.Deviations.DoubleNotLabeled != 0 {
+		t.Errorf("double_not_labeled %d and %d, want the draw's doubled items and 0", a.Deviations.DoubleNotLabeled, b.Deviations.DoubleNotLabeled)
+	}
+	b.LabelQuality, b.RecordID, a.Deviations.DoubleNotLabeled = nil, a.RecordID, 0
 	ja, err := record.Encode(a)
 	if err != nil {
 		t.Fatal(err)
@@ -393,5 +401,75 @@ func TestRecordFullAgreementChangesNothing(t *testing.T) {
 	}
 	if !bytes.Equal(ja, jb) {
 		t.Errorf("record.json without label_quality differs from the single-label record:\n%s\n---\n%s", ja, jb)
+	}
+}
+
+// TestAdjudicatedUnsureItemLeavesItsSpareUnused (issue 16 item 3): the
+// first labeler marks a doubled item unsure, its spare is labeled (it
+// would replace it), the second labeler gives it a class and the
+// adjudication settles it. The adjudicated label stands, the spare
+// replaces nothing and is listed as unused; nothing is refused.
+func TestAdjudicatedUnsureItemLeavesItsSpareUnused(t *testing.T) {
+	fx := newLQFixtureSpares(t, 1)
+	item1 := fx.ledger[0]
+	var spare drawfolder.LedgerRow
+	for _, r := range fx.ledger {
+		if r.Spare {
+			spare = r
+		}
+	}
+	if !item1.Double || spare.RecordID == "" {
+		t.Fatal("the fixture needs item 1 doubled and a spare")
+	}
+	truth := fx.truth[item1.RecordID]
+	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []drawfolder.WorksheetRow) {
+		rows[0].Label, rows[0].Note = "unsure", "scan too dark"
+	})
+	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
+	out := filepath.Join(fx.dir, "rec")
+	code, _, stderr := lqRun(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--second", second,
+		"--adjudicated", fx.adjudication(t, "adj.csv", [2]string{"1", truth}), "--date", "2026-12-01", "--out", out)
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	rec := lqRecord(t, out)
+	if d := rec.Deviations; len(d.Replacements) != 0 || !slices.Equal(d.SparesUnused, []string{spare.RecordID}) || len(d.SparesUsed) != 0 {
+		t.Errorf("deviations %+v: want spare %s unused and no replacement", d, spare.RecordID)
+	}
+	if rec.Candidates[0].Labeled != 22 {
+		t.Errorf("labeled %d, want the 22 sample items (item 1 by its adjudicated label)", rec.Candidates[0].Labeled)
+	}
+}
+
+// TestRecordNamesAPlannedSecondLabelingThatDidNotHappen: a draw made with
+// --double 6 recorded without the second worksheet is a deviation from
+// the plan, in record.json, on the console and in the PDF (issue 16 item
+// 4); recorded with it, there is none.
+func TestRecordNamesAPlannedSecondLabelingThatDidNotHappen(t *testing.T) {
+	fx := newLQFixture(t)
+	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", nil)
+	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
+	dir := filepath.Join(fx.dir, "without")
+	code, stdout, stderr := lqRun(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--out", dir, "--date", "2026-12-01")
+	if code != exitOK {
+		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
+	}
+	rec := lqRecord(t, dir)
+	if rec.Deviations.DoubleNotLabeled != 6 {
+		t.Errorf("double_not_labeled %d, want 6", rec.Deviations.DoubleNotLabeled)
+	}
+	const said = "6 items were drawn for a second, independent label, but the record was made without second labels: label error was not measured"
+	if !strings.Contains(stdout, "deviation: "+said) {
+		t.Errorf("stdout does not say %q:\n%s", said, stdout)
+	}
+	flat := strings.Join(strings.Fields(pdfText(t, filepath.Join(dir, record.PDFFile))), " ")
+	if !strings.Contains(flat, said) || strings.Contains(flat, "Deviations from the plan None.") {
+		t.Errorf("record.pdf does not list the deviation:\n%s", flat)
+	}
+	dir = filepath.Join(fx.dir, "with")
+	if code, stdout, stderr := lqRun(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--second", second, "--out", dir, "--date", "2026-12-01"); code != exitOK {
+		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
+	} else if strings.Contains(stdout, "deviation:") || lqRecord(t, dir).Deviations.DoubleNotLabeled != 0 {
+		t.Errorf("with the second labels, a deviation is named:\n%s", stdout)
 	}
 }

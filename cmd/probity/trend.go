@@ -7,7 +7,6 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"strconv"
 	"strings"
 	"time"
 
@@ -15,6 +14,7 @@ import (
 
 	chart "probity/pdfreport/trend"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 	"probity/plan/record/signature"
 	"probity/plan/record/verification"
@@ -307,9 +307,9 @@ func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
 		fmt.Fprintf(w, "UNAUTHENTICATED records charted: %s (their signatures did not authenticate them, or were not checked)\n", strings.Join(t.Unauthenticated, ", "))
 	}
 	fmt.Fprintf(w, "plan: %s model, %s method, %s design; ceiling %s, confidence %s\n",
-		c.Model, c.Method, c.Design, trendTrimPercent(c.Ceiling), trendTrimPercent(c.Confidence))
+		c.Model, c.Method, c.Design, numfmt.Setting(c.Ceiling), numfmt.Confidence(c.Confidence))
 	fmt.Fprintf(w, "flag ↑: one-sided Fisher's exact test against %s, p ≤ %s per comparison\n",
-		t.Baseline, strconv.FormatFloat(t.Alpha, 'g', -1, 64))
+		t.Baseline, numfmt.Number(t.Alpha))
 	pw := len("period")
 	for _, p := range t.Periods {
 		pw = max(pw, len(p.Label))
@@ -324,19 +324,19 @@ func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
 		default:
 			fmt.Fprintln(w, s.Name)
 		}
-		fmt.Fprintf(w, "  %-*s  %7s %6s %8s %8s %7s  %-7s %s\n", pw, "period", "labeled", "errors", "estimate", "upper", "ceiling", "verdict", "p vs "+t.Baseline)
+		fmt.Fprintf(w, "  %-*s  %7s %6s %9s %9s %7s  %-7s %s\n", pw, "period", "labeled", "errors", "estimate", "upper", "ceiling", "verdict", "p vs "+t.Baseline)
 		for _, r := range s.Rows {
 			p := "(baseline)"
 			if r.PValue != nil {
-				p = trendP(*r.PValue)
+				p = numfmt.PValue(*r.PValue)
 				if r.Flagged {
 					p += " ↑ higher"
 				}
 			} else if r.Period != t.Baseline {
 				p = "—"
 			}
-			fmt.Fprintf(w, "  %-*s  %7d %6d %8s %8s %7s  %-7s %s\n", pw, r.Period, r.Labeled, r.Errors,
-				trendFixedPercent(r.Estimate), trendFixedPercent(r.UpperBound), trendTrimPercent(r.Ceiling), r.Verdict, p)
+			fmt.Fprintf(w, "  %-*s  %7s %6s %9s %9s %7s  %-7s %s\n", pw, r.Period, numfmt.Count(r.Labeled), numfmt.Count(r.Errors),
+				numfmt.Rate(r.Estimate), numfmt.RateUp(r.UpperBound), numfmt.Setting(r.Ceiling), r.Verdict, p)
 		}
 	}
 	fmt.Fprintln(w)
@@ -344,22 +344,4 @@ func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
 	if files != nil {
 		fmt.Fprintf(w, "chart: %s, %s\n", files.PNG, files.PDF)
 	}
-}
-
-// trendFixedPercent formats a proportion as a percentage with 3 decimals.
-func trendFixedPercent(x float64) string { return strconv.FormatFloat(100*x, 'f', 3, 64) + "%" }
-
-// trendTrimPercent formats a proportion as a percentage without trailing zeros.
-func trendTrimPercent(x float64) string {
-	s := strings.TrimRight(strings.TrimRight(strconv.FormatFloat(100*x, 'f', 3, 64), "0"), ".")
-	return s + "%"
-}
-
-// trendP formats a p-value: 4 decimals down to 0.001, then 2 significant
-// digits in exponent form.
-func trendP(p float64) string {
-	if p >= 0.001 {
-		return strconv.FormatFloat(p, 'f', 4, 64)
-	}
-	return strconv.FormatFloat(p, 'e', 1, 64)
 }

@@ -87,14 +87,14 @@ func TestTrendYearRejectsLatest(t *testing.T) {
 	if code != exitRejected {
 		t.Fatalf("exit %d, want %d (the 2026-12 record rejects)\n%s", code, exitRejected, errOut)
 	}
-	if want := "probity: latest period 2026-12 was rejected (record 39e27c33410cc91b03d93d025b013db3, " + trendMonth("2026-12") + ")\n"; errOut != want {
+	if want := "probity: latest period 2026-12 was rejected (record 943118d309a14f4973d4268a080b0444, " + trendMonth("2026-12") + ")\n"; errOut != want {
 		t.Errorf("stderr = %q, want %q", errOut, want)
 	}
 	trendGolden(t, "year.txt", strings.ReplaceAll(out, dir, "OUT"))
 	for _, want := range []string{
 		"router-b   flagged: 2026-10, 2026-11, 2026-12",
-		"  2026-10      613      5   0.816%   1.997%      2%  ACCEPT  0.0310 ↑ higher",
-		"latest period 2026-12 (record 39e27c33410cc91b03d93d025b013db3): REJECT",
+		"  2026-10      613      5   0.816 %   1.998 %     2 %  ACCEPT  0.03100 ↑ higher",
+		"latest period 2026-12 (record 943118d309a14f4973d4268a080b0444): REJECT",
 	} {
 		if !strings.Contains(out, want) {
 			t.Errorf("stdout lacks %q", want)
@@ -148,7 +148,7 @@ func trendPDFText(t *testing.T, path string) {
 		t.Fatalf("pdftotext: %v", err)
 	}
 	s := string(txt)
-	for _, want := range []string{"Trend of acceptance records — ticket-router 4.2", "Latest period 2026-12: REJECT (record 39e27c33410cc91b03d93d025b013db3)", "0.031 ↑", "page 1 of 1"} {
+	for _, want := range []string{"Trend of acceptance records — ticket-router 4.2", "Latest period 2026-12: REJECT (record 943118d309a14f4973d4268a080b0444)", "0.03100 ↑", "page 1 of 1"} {
 		if !strings.Contains(s, want) {
 			t.Errorf("PDF text lacks %q", want)
 		}
@@ -212,7 +212,7 @@ func TestTrendBaselineAndAlpha(t *testing.T) {
 	if code != exitRejected {
 		t.Fatalf("exit %d", code)
 	}
-	for _, want := range []string{"p ≤ 0.01 per comparison", "p vs 2026-06", "  2026-06      613      3   0.489%   1.516%      2%  ACCEPT  (baseline)"} {
+	for _, want := range []string{"p ≤ 0.01 per comparison", "p vs 2026-06", "  2026-06      613      3   0.489 %   1.516 %     2 %  ACCEPT  (baseline)"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("stdout lacks %q", want)
 		}
@@ -626,7 +626,7 @@ func TestTrendAuthenticatesEveryRecord(t *testing.T) {
 func trendRisks(r *record.Record) {
 	p := &r.Plan
 	n, c := p.SampleSize, p.AcceptanceNumber
-	if N := p.Population; N > 0 {
+	if N := int64(p.Population); N > 0 {
 		p.ConsumerRisk = plan.HypergeometricCDF(c, N, plan.BadLotErrors(N, p.Ceiling), n)
 		pr := plan.HypergeometricSF(c, N, plan.GoodLotErrors(N, *p.Anticipated), n)
 		p.ProducerRisk = &pr

@@ -131,9 +131,13 @@ func TestFormulasInTheLog(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	if got := strings.Join(recs[0][1:4], ","); got != "record_id,spare,text" {
+		t.Fatalf("worksheet columns %s, want record_id, the spare mark and text", got)
+	}
+	const text = 3 // item, record_id, spare, text
 	drawn := map[string]bool{}
 	for _, r := range recs[1:] {
-		drawn[drawfolder.CellValue(r[2])] = true
+		drawn[drawfolder.CellValue(r[text])] = true
 	}
 	for _, x := range texts {
 		if !drawn[x] {
@@ -141,7 +145,7 @@ func TestFormulasInTheLog(t *testing.T) {
 		}
 	}
 	for _, r := range recs[1:] {
-		for _, cell := range r[1:3] {
+		for _, cell := range []string{r[1], r[text]} {
 			if cell != "" && strings.ContainsRune("=@+\t\r", rune(cell[0])) || strings.HasPrefix(cell, "-") && cell != "-5" {
 				t.Errorf("worksheet cell %q would run in a spreadsheet", cell)
 			}
@@ -150,7 +154,7 @@ func TestFormulasInTheLog(t *testing.T) {
 	kept := a.label(t, draw, "kept.csv", nil)
 	stripped := a.label(t, draw, "stripped.csv", func(recs [][]string) [][]string {
 		for _, r := range recs[1:] {
-			for j := 1; j < 3; j++ {
+			for _, j := range []int{1, text} {
 				r[j] = strings.TrimPrefix(r[j], "'")
 			}
 		}

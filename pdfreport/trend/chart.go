@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"image/color"
 	"math"
-	"strconv"
 	"strings"
 
 	xfont "golang.org/x/image/font"
@@ -19,6 +18,7 @@ import (
 	"gonum.org/v1/plot/vg/vgimg"
 
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 	"probity/plan/trend"
 )
@@ -219,7 +219,7 @@ func panel(t *trend.Trend, s trend.Series, ymax float64, bottom bool) (*plot.Plo
 		if r.Flagged {
 			flagged = append(flagged, plotter.XY{X: x, Y: r.Estimate})
 			labels.XYs = append(labels.XYs, plotter.XY{X: x, Y: r.UpperBound})
-			labels.Labels = append(labels.Labels, "p="+pValue(*r.PValue))
+			labels.Labels = append(labels.Labels, "p = "+numfmt.PValue(*r.PValue))
 		}
 	}
 	// Caps are a fixed number of points wide, whatever the number of
@@ -288,7 +288,7 @@ func panelTitle(c draw.Canvas, left vg.Length, s trend.Series, alpha float64) {
 	case !s.Tested:
 		note = "not in the baseline period: not tested"
 	case len(s.Flagged) > 0:
-		note = fmt.Sprintf("higher than baseline (p ≤ %s): %s", strconv.FormatFloat(alpha, 'g', -1, 64), strings.Join(s.Flagged, ", "))
+		note = fmt.Sprintf("higher than baseline (p ≤ %s): %s", numfmt.Number(alpha), strings.Join(s.Flagged, ", "))
 		col = flagCol
 	default:
 		note = "no period significantly higher than the baseline"
@@ -321,7 +321,7 @@ func drawHeader(t *trend.Trend, c draw.Canvas, left vg.Length) {
 	est := &plotter.Scatter{GlyphStyle: draw.GlyphStyle{Shape: draw.CircleGlyph{}, Color: estimateCol, Radius: 2.6}}
 	entry(est, "estimate")
 	entry(&plotter.Line{LineStyle: draw.LineStyle{Color: boundCol, Width: 2}}, "upper bound ("+boundLabel(t)+")")
-	entry(&plotter.Line{LineStyle: draw.LineStyle{Color: ceilingCol, Width: 1.4, Dashes: []vg.Length{6, 3}}}, "ceiling "+percent(t.Class.Ceiling))
+	entry(&plotter.Line{LineStyle: draw.LineStyle{Color: ceilingCol, Width: 1.4, Dashes: []vg.Length{6, 3}}}, "ceiling "+numfmt.Setting(t.Class.Ceiling))
 	entry(&plotter.Scatter{GlyphStyle: draw.GlyphStyle{Shape: thickRing{width: 1.4}, Color: flagCol, Radius: 4}},
 		"higher than "+t.Baseline+" (Fisher, one-sided)")
 	entry(&plotter.Line{LineStyle: draw.LineStyle{Color: rejectCol, Width: 2}}, "rejected")
@@ -342,7 +342,7 @@ func boundLabel(t *trend.Trend) string {
 	if conf == 0 {
 		return "one-sided"
 	}
-	return "one-sided " + percent(conf)
+	return "one-sided " + numfmt.Confidence(conf)
 }
 
 // percentTicks label the y axis in percent: the smallest step of 1, 2 or
@@ -354,7 +354,7 @@ type percentTicks struct{}
 func (percentTicks) Ticks(min, max float64) []plot.Tick {
 	span := max - min
 	if !(span > 0) {
-		return []plot.Tick{{Value: min, Label: percent(min)}}
+		return []plot.Tick{{Value: min, Label: tickLabel(min)}}
 	}
 	step := math.Pow(10, math.Floor(math.Log10(span/5)))
 	for _, m := range []float64{1, 2, 5, 10} {
@@ -369,7 +369,7 @@ func (percentTicks) Ticks(min, max float64) []plot.Tick {
 		if v > max+step*1e-9 {
 			break
 		}
-		ts = append(ts, plot.Tick{Value: v, Label: percent(v)})
+		ts = append(ts, plot.Tick{Value: v, Label: tickLabel(v)})
 		if mid := v + step/2; mid <= max {
 			ts = append(ts, plot.Tick{Value: mid})
 		}
@@ -377,24 +377,10 @@ func (percentTicks) Ticks(min, max float64) []plot.Tick {
 	return ts
 }
 
-// percent formats a proportion as a percentage with at most 3 decimals.
-func percent(x float64) string {
-	s := strconv.FormatFloat(100*x, 'f', 3, 64)
-	s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
-	return s + "%"
-}
-
-// pValue formats a p-value with 2 significant digits (3 decimals at most
-// above 0.001).
-func pValue(p float64) string {
-	switch {
-	case p >= 0.001:
-		return strconv.FormatFloat(p, 'f', 3, 64)
-	case p >= 1e-4:
-		return strconv.FormatFloat(p, 'f', 4, 64)
-	}
-	return strconv.FormatFloat(p, 'e', 1, 64)
-}
+// tickLabel labels a tick of the percent axis: the value as a stated
+// percentage (numfmt.Setting, the digits it has: "0.5 %", "1 %"); the
+// tick values are round, so this is exact.
+func tickLabel(x float64) string { return numfmt.Setting(x) }
 
 // thickRing is a circle outline of a given line width (draw.RingGlyph's
 // line is fixed at half a point, too thin to see on a busy panel).

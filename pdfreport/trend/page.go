@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"fmt"
 	"math"
-	"strconv"
 	"strings"
 	"time"
 
@@ -15,6 +14,7 @@ import (
 
 	"probity/pdfreport"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 	"probity/plan/trend"
 )
@@ -168,9 +168,9 @@ func (p *page) header(t *trend.Trend) {
 	p.font("", 8.5, muted)
 	c := t.Class
 	p.line(fmt.Sprintf("%d periods, %s to %s · %s model, %s method, %s design · ceiling %s at %s confidence",
-		len(t.Periods), t.Periods[0].Label, t.Latest.Label, c.Model, c.Method, c.Design, percent(c.Ceiling), percent(c.Confidence)), 4.4)
+		len(t.Periods), t.Periods[0].Label, t.Latest.Label, c.Model, c.Method, c.Design, numfmt.Setting(c.Ceiling), numfmt.Confidence(c.Confidence)), 4.4)
 	p.line(fmt.Sprintf("Baseline %s · a period is flagged ↑ when Fisher's exact test (one-sided: error higher than the baseline's) gives p ≤ %s;",
-		t.Baseline, strconv.FormatFloat(t.Alpha, 'g', -1, 64)), 4.4)
+		t.Baseline, numfmt.Number(t.Alpha)), 4.4)
 	p.line(fmt.Sprintf("each of the %d comparisons per candidate is at that level (not adjusted for their number), whether or not the period passed.",
 		len(t.Periods)-1), 4.4)
 	p.pdf.Ln(1)
@@ -259,15 +259,15 @@ func (p *page) table(t *trend.Trend, candW, size, rowH float64) {
 				pdf.CellFormat(sub[1]+sub[2], rowH, "not in this record", "", 0, "C", zebra, 0, "")
 				continue
 			}
-			pdf.CellFormat(sub[0], rowH, fmt.Sprintf("%d/%d", r.Errors, r.Labeled), "L", 0, "R", zebra, 0, "")
+			pdf.CellFormat(sub[0], rowH, numfmt.Count(r.Errors)+"/"+numfmt.Count(r.Labeled), "L", 0, "R", zebra, 0, "")
 			if r.Verdict == record.Reject {
 				p.font("B", size, reject)
 			}
-			pdf.CellFormat(sub[1], rowH, percent(r.UpperBound), "", 0, "R", zebra, 0, "")
+			pdf.CellFormat(sub[1], rowH, numfmt.RateUp(r.UpperBound), "", 0, "R", zebra, 0, "")
 			pv := "base"
 			p.font("", size, muted)
 			if r.PValue != nil {
-				pv = pValue(*r.PValue)
+				pv = numfmt.PValue(*r.PValue)
 				p.font("", size, ink)
 				if r.Flagged {
 					pv += " ↑"
@@ -285,7 +285,7 @@ func (p *page) table(t *trend.Trend, candW, size, rowH float64) {
 	pdf.Line(p.x, y, p.x+p.w, y)
 	p.font("", 7, muted)
 	pdf.Ln(0.8)
-	p.line(fmt.Sprintf("upper: one-sided upper confidence bound of the record; red bold: that candidate was rejected (its errors exceeded the plan's acceptance number). Ceiling %s.", percent(t.Class.Ceiling)), 3.6)
+	p.line(fmt.Sprintf("upper: one-sided upper confidence bound of the record; red bold: that candidate was rejected (its errors exceeded the plan's acceptance number). Ceiling %s.", numfmt.Setting(t.Class.Ceiling)), 3.6)
 }
 
 // warningsHeight is the space the warnings take.

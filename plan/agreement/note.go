@@ -2,11 +2,10 @@ package agreement
 
 import (
 	"fmt"
-	"math"
-	"strconv"
 	"strings"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
 
@@ -20,14 +19,6 @@ func fillDisagreement(q *record.LabelQuality, tb *Table, conf, ceiling float64) 
 		q.DisagreementUpper = plan.ClopperPearsonUpper(q.Disagreed, n, conf)
 	}
 	q.Note = labelErrorNote(q, conf, ceiling)
-}
-
-// pct formats a share as a percentage with one decimal.
-func pct(x float64) string { return fmt.Sprintf("%.1f %%", 100*x) }
-
-// confPct formats a confidence level as the shortest percentage, "95 %".
-func confPct(c float64) string {
-	return strconv.FormatFloat(math.Round(c*1e6)/1e4, 'f', -1, 64) + " %"
 }
 
 // labelErrorNote explains, with the record's numbers, what wrong reference
@@ -45,11 +36,11 @@ func labelErrorNote(q *record.LabelQuality, conf, ceiling float64) string {
 		return b.String()
 	}
 	fmt.Fprintf(&b, "On the %d doubled items both labelers put in a class they disagreed on %d (%s; one-sided %s upper bound %s). ",
-		q.Compared, q.Disagreed, pct(q.DisagreementRate), confPct(conf), pct(q.DisagreementUpper))
+		q.Compared, q.Disagreed, numfmt.Rate(q.DisagreementRate), numfmt.Confidence(conf), numfmt.RateUp(q.DisagreementUpper))
 	if q.Disagreed > 0 {
-		fmt.Fprintf(&b, "At least one of two differing labels is wrong, so a single labeler was wrong on at least %s of items on average", pct(q.DisagreementRate/2))
+		fmt.Fprintf(&b, "At least one of two differing labels is wrong, so a single labeler was wrong on at least %s of items on average", numfmt.RateDown(q.DisagreementRate/2))
 		if ceiling > 0 {
-			fmt.Fprintf(&b, ", against an error ceiling of %s", confPct(ceiling))
+			fmt.Fprintf(&b, ", against an error ceiling of %s", numfmt.Setting(ceiling))
 			if q.DisagreementRate/2 >= ceiling/4 {
 				b.WriteString(": label error of this size is not small beside the ceiling")
 			}

@@ -20,8 +20,8 @@ func TestDisagreementRateAndNote(t *testing.T) {
 	}
 	for _, want := range []string{
 		"can differ from the measured one by up to ε",
-		"On the 3 doubled items both labelers put in a class they disagreed on 1 (33.3 %; one-sided 95 % upper bound 86.5 %)",
-		"wrong on at least 16.7 % of items on average",
+		"On the 3 doubled items both labelers put in a class they disagreed on 1 (33.333 %; one-sided 95 % upper bound 86.465 %)",
+		"wrong on at least 16.666 % of items on average",
 		"settled by adjudication",
 	} {
 		if !strings.Contains(q.Note, want) {
@@ -137,9 +137,9 @@ func TestNoteComparesLabelErrorWithTheCeiling(t *testing.T) {
 		want    string
 		notWant string
 	}{
-		{0.9, "wrong on at least 16.7 % of items on average, against an error ceiling of 90 %; ", "not small"},
+		{0.9, "wrong on at least 16.666 % of items on average, against an error ceiling of 90 %; ", "not small"},
 		{0.2, "against an error ceiling of 20 %: label error of this size is not small beside the ceiling; ", ""},
-		{0, "wrong on at least 16.7 % of items on average; ", "ceiling of"},
+		{0, "wrong on at least 16.666 % of items on average; ", "ceiling of"},
 	} {
 		f := newFixture()
 		f.in.Ceiling = c.ceiling

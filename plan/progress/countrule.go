@@ -127,6 +127,14 @@ func (cs *countStops) judge(name string, ci int, items []item) Candidate {
 		switch {
 		case it.label == drawfolder.Unsure:
 			c.Unsure++
+		case it.replaced:
+			// the record judges the spare after the stratum's sample items,
+			// so it may or may not be among the counted ones: it counts
+			// neither way here (the items after it only move up, so a
+			// counted position stays counted)
+			if it.preds[ci] != it.label {
+				c.Errors++
+			}
 		case it.preds[ci] != it.label:
 			c.Errors++
 			if isCounted {
@@ -141,10 +149,10 @@ func (cs *countStops) judge(name string, ci int, items []item) Candidate {
 		switch {
 		case upper <= cs.acc:
 			c.Decision, c.StoppedAt = sequential.Accept, t+1
-			c.Reason = fmt.Sprintf("%d error(s) in the first %d labels%s: at most %d of the %d counted items can be errors, ≤ c = %d, however the rest turns out", c.Errors, t+1, unsureNote(c.Unsure), upper, cs.total, cs.acc)
+			c.Reason = fmt.Sprintf("%s in the first %d labels%s: at most %d of the %d counted items can be errors, ≤ c = %d, however the rest turns out", countOf(c.Errors, "error", "errors"), t+1, unsureNote(c.Unsure), upper, cs.total, cs.acc)
 		case lower > cs.rej:
 			c.Decision, c.StoppedAt = sequential.Reject, t+1
-			c.Reason = fmt.Sprintf("%d error(s) among the counted items in the first %d labels: more than %d, so the stratified count rule must reject", lower, t+1, cs.rej)
+			c.Reason = fmt.Sprintf("%s among the counted items in the first %d labels: more than %d, so the stratified count rule must reject", countOf(lower, "error", "errors"), t+1, cs.rej)
 		}
 		if c.Decision != sequential.Continue {
 			break
@@ -161,7 +169,7 @@ func (cs *countStops) judge(name string, ci int, items []item) Candidate {
 		c.AcceptAfter = cs.after(t, cs.total-correct-cs.acc)
 	}
 	c.RejectAfter = cs.after(t, cs.rej+1-lower)
-	c.Reason = fmt.Sprintf("%d error(s) in %d labels%s: not decided yet (%d of the %d counted items labeled)", c.Errors, t, unsureNote(c.Unsure), countedSoFar(seen, cs.counted), cs.total)
+	c.Reason = fmt.Sprintf("%s in %d labels%s: not decided yet (%d of the %d counted items labeled)", countOf(c.Errors, "error", "errors"), t, unsureNote(c.Unsure), countedSoFar(seen, cs.counted), cs.total)
 	return c
 }
 

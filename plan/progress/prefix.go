@@ -57,7 +57,57 @@ func prefix(in Input) ([]item, int, error) {
 			return nil, 0, &inputerr.Error{File: name, Line: w.Line,
 				Msg: fmt.Sprintf("the ledger holds %d predictions for item %d but the plan has %d candidates", len(l.Predictions), w.Item, len(in.Plan.Candidates))}
 		}
-		items = append(items, item{label: label, preds: l.Predictions, stratum: l.Stratum})
+		items = append(items, item{label: label, preds: l.Predictions, stratum: l.Stratum, itemNo: l.Item})
 	}
 	return items, spares, nil
+}
+
+// replaceBySpares applies the draw's spare rule (drawfolder.SpareRule, as
+// the record does): an unsure item of the prefix whose spare is labeled
+// with a class takes the spare's label and predictions. It returns how
+// many items were replaced and how many labeled spares the rule gave no
+// item (unused).
+func replaceBySpares(in Input, items []item) (replaced, unused int, err error) {
+	labels := map[int]string{}
+	for i, w := range in.Worksheet {
+		label, _, lerr := drawfolder.RowLabel(in.WorksheetName, w, in.Plan.Classes)
+		if lerr != nil {
+			return 0, 0, lerr
+		}
+		labels[in.Ledger[i].Item] = label
+	}
+	inPrefix := map[int]int{}
+	for i, it := range items {
+		inPrefix[it.itemNo] = i
+	}
+	use := drawfolder.NewSpareRule(in.Ledger).Assign(func(no int) drawfolder.LabelKind {
+		l := labels[no]
+		if _, ok := inPrefix[no]; !ok && !isSpare(in.Ledger, no) {
+			l = "" // a sample item below the prefix is not judged yet
+		}
+		switch l {
+		case "":
+			return drawfolder.LabelBlank
+		case drawfolder.Unsure:
+			return drawfolder.LabelUnsure
+		}
+		return drawfolder.LabelClass
+	})
+	preds := map[int][]string{}
+	for _, l := range in.Ledger {
+		preds[l.Item] = l.Predictions
+	}
+	for _, st := range use.Steps {
+		if st.Label != drawfolder.LabelClass {
+			continue
+		}
+		i := inPrefix[st.Item]
+		items[i].label, items[i].preds, items[i].replaced = labels[st.Spare], preds[st.Spare], true
+		replaced++
+	}
+	return replaced, len(use.Unused), nil
+}
+
+func isSpare(ledger []drawfolder.LedgerRow, no int) bool {
+	return no >= 1 && no <= len(ledger) && ledger[no-1].Item == no && ledger[no-1].Spare
 }

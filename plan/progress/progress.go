@@ -106,8 +106,26 @@ func Assess(in Input) (*Result, error) {
 	}
 	res.Labeled = len(items)
 	res.SparesLabeled = spares
-	if spares > 0 {
-		res.Notes = append(res.Notes, fmt.Sprintf("%d labeled spare item(s) ignored: spares only replace unusable items, which record handles", spares))
+	// An unsure item means what it means to the record: in a fixed plan
+	// the spare the draw's rule gives it is judged in its place, so until
+	// that spare is labeled the item may still turn out either way; a
+	// sequential plan uses no spares, and the record counts an unsure item
+	// as an error (with incomplete labeling allowed; it refuses it
+	// otherwise).
+	seq := res.Design == plan.DesignSequential
+	if !seq {
+		replaced, unused, err := replaceBySpares(in, items)
+		if err != nil {
+			return nil, err
+		}
+		if replaced > 0 {
+			res.Notes = append(res.Notes, fmt.Sprintf("%s replaced by %s, by the draw's rule, as the record does", countOf(replaced, "unsure item", "unsure items"), map[bool]string{true: "its spare", false: "their spares"}[replaced == 1]))
+		}
+		if unused > 0 {
+			res.Notes = append(res.Notes, fmt.Sprintf("%s replaced nothing (unused; harmless)", countOf(unused, "labeled spare", "labeled spares")))
+		}
+	} else if spares > 0 {
+		res.Notes = append(res.Notes, fmt.Sprintf("%s ignored: a sequential plan uses no spares, and the record refuses them", countOf(spares, "labeled spare is", "labeled spares are")))
 	}
 	unsure := 0
 	for _, it := range items {
@@ -115,8 +133,11 @@ func Assess(in Input) (*Result, error) {
 			unsure++
 		}
 	}
-	if unsure > 0 {
-		res.Notes = append(res.Notes, fmt.Sprintf("%d item(s) labeled unsure count as errors toward acceptance and as correct toward rejection", unsure))
+	switch {
+	case unsure > 0 && seq:
+		res.Notes = append(res.Notes, fmt.Sprintf("%s unsure: the record refuses an unsure item of a sequential plan, or counts it as an error for every candidate when incomplete labeling is allowed; progress stops only when the decision holds whether it is relabeled as an error, as correct or left unsure", countOf(unsure, "item is", "items are")))
+	case unsure > 0:
+		res.Notes = append(res.Notes, fmt.Sprintf("%s unsure and not replaced yet: the record judges the spare the draw's rule gives %s, so until it is labeled %s as an error toward acceptance and as correct toward rejection", countOf(unsure, "item is", "items are"), map[bool]string{true: "it", false: "each"}[unsure == 1], map[bool]string{true: "it counts", false: "each counts"}[unsure == 1]))
 	}
 	for ci, c := range p.Candidates {
 		if count != nil {
@@ -140,6 +161,11 @@ type item struct {
 	label   string
 	preds   []string
 	stratum string
+	itemNo  int
+	// replaced is set when label and preds are those of the spare that
+	// replaces this unsure item (the record judges the spare after the
+	// stratum's sample items, not in this item's place).
+	replaced bool
 }
 
 // judge walks one candidate's prefix through its rules. The record decides
@@ -150,6 +176,9 @@ type item struct {
 // through both boundaries, reach the same decision (then every path between
 // them does: a path below the pessimistic one cannot cross the rejection
 // boundary before it, nor stay above the acceptance boundary after it).
+// An unsure item of a sequential plan, which the record counts as an error
+// (or refuses) while it stays unsure, may still be relabeled either way, so
+// it is walked both ways too: the pessimistic path is the record's count.
 func judge(name string, ci int, items []item, r candRules) Candidate {
 	c := Candidate{Name: name, Decision: sequential.Continue}
 	lo, hi := 0, 0
@@ -188,14 +217,19 @@ func judge(name string, ci int, items []item, r candRules) Candidate {
 	c.Labeled = min(len(items), T)
 	switch c.Decision {
 	case sequential.Accept:
-		c.Reason = fmt.Sprintf("%d error(s) in the first %d labels%s: %s", hi, c.StoppedAt, unsureNote(c.Unsure), r.acceptWhy(c.StoppedAt, hi))
+		c.Reason = fmt.Sprintf("%s in the first %d labels%s: %s", countOf(c.Errors, "error", "errors"), c.StoppedAt, unsureNote(c.Unsure), r.acceptWhy(c.StoppedAt, hi))
 	case sequential.Reject:
-		c.Reason = fmt.Sprintf("%d error(s) in the first %d labels: %s", lo, c.StoppedAt, r.rejectWhy(c.StoppedAt, lo))
+		c.Reason = fmt.Sprintf("%s in the first %d labels%s: %s", countOf(c.Errors, "error", "errors"), c.StoppedAt, unsureNote(c.Unsure), r.rejectWhy(c.StoppedAt, lo))
 	default:
 		t := c.Labeled
+		if t == T && c.Unsure > 0 {
+			// the unsure items wait for their spares
+			c.Reason = fmt.Sprintf("%s in all %d labels%s: decided once the spares that replace the unsure items are labeled", countOf(c.Errors, "error", "errors"), t, unsureNote(c.Unsure))
+			break
+		}
 		if t == T {
 			// only Holm's step-down leaves a count undecided at n
-			c.Reason = fmt.Sprintf("%d error(s) in all %d labels%s: decided by Holm's step-down across the candidates; run probity record", lo, t, unsureNote(c.Unsure))
+			c.Reason = fmt.Sprintf("%s in all %d labels%s: decided by Holm's step-down across the candidates; run probity record", countOf(c.Errors, "error", "errors"), t, unsureNote(c.Unsure))
 			break
 		}
 		mr1, _ := r.accept.MaxRemaining(t, hi)
@@ -203,7 +237,7 @@ func judge(name string, ci int, items []item, r candRules) Candidate {
 		c.MaxRemaining = min(max(mr1, mr2), T-t)
 		c.AcceptAfter = r.accept.ToAcceptWithoutErrors(t, hi)
 		c.RejectAfter = r.reject.ToRejectWithErrors(t, lo)
-		c.Reason = fmt.Sprintf("%d error(s) in %d labels%s: not decided yet", lo, t, unsureNote(c.Unsure))
+		c.Reason = fmt.Sprintf("%s in %d labels%s: not decided yet", countOf(c.Errors, "error", "errors"), t, unsureNote(c.Unsure))
 	}
 	return c
 }
@@ -222,11 +256,20 @@ func firstBoundary(r candRules, t, e int) sequential.Decision {
 	return sequential.Continue
 }
 
+// unsureNote is the unsure items beside the errors (never among them).
 func unsureNote(n int) string {
 	if n == 0 {
 		return ""
 	}
-	return fmt.Sprintf(" (plus %d unsure)", n)
+	return fmt.Sprintf(" and %d unsure", n)
+}
+
+// countOf is "1 error" or "k errors".
+func countOf(k int, one, many string) string {
+	if k == 1 {
+		return "1 " + one
+	}
+	return fmt.Sprintf("%d %s", k, many)
 }
 
 // chainFixedSequence applies the declared order: a candidate can be

@@ -273,3 +273,37 @@ func TestSequentialPlanMatchesJudge(t *testing.T) {
 		t.Errorf("the cases do not cover every decision: %v", seen)
 	}
 }
+
+// TestUnsureMeansWhatTheRecordSays (issue 16 item 17): in a fixed plan an
+// unsure item is judged by the spare the draw's rule gives it, as the
+// record does — labeled, the spare's label counts and the item is no
+// longer unsure; a labeled spare with nothing to replace is unused. The
+// reason names errors and unsure items once each (it said "3 error(s) …
+// (plus 1 unsure)" for two errors and one unsure item).
+func TestUnsureMeansWhatTheRecordSays(t *testing.T) {
+	// n 5, c 2, two spares (one stratum, keys empty: ledger order).
+	res, err := Assess(fixture(5, 2, 2, []string{"A"}, labelsOf("xx?oo")))
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := res.Candidates[0]
+	if c.Errors != 2 || c.Unsure != 1 || c.Decision != sequential.Continue {
+		t.Fatalf("candidate %+v", c)
+	}
+	if c.Reason != "2 errors in all 5 labels and 1 unsure: decided once the spares that replace the unsure items are labeled" {
+		t.Errorf("reason %q counts the unsure item twice or not at all", c.Reason)
+	}
+	// The spare labeled ok: it replaces the unsure item; 2 errors ≤ c.
+	res, err = Assess(fixture(5, 2, 2, []string{"A"}, labelsOf("xx?oooo")))
+	if err != nil {
+		t.Fatal(err)
+	}
+	c = res.Candidates[0]
+	if c.Errors != 2 || c.Unsure != 0 || c.Decision != sequential.Accept || !strings.HasPrefix(c.Reason, "2 errors in the first 5 labels: ") {
+		t.Errorf("with the spare labeled: %+v", c)
+	}
+	notes := strings.Join(res.Notes, "\n")
+	if !strings.Contains(notes, "1 unsure item replaced by its spare, by the draw's rule") || !strings.Contains(notes, "1 labeled spare replaced nothing") {
+		t.Errorf("notes %q", notes)
+	}
+}

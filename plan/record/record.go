@@ -6,6 +6,8 @@
 package record
 
 import (
+	"fmt"
+
 	"probity/plan"
 	"probity/plan/chrono"
 )
@@ -161,7 +163,7 @@ type PlanInfo struct {
 	Confidence       float64           `json:"confidence"`
 	CandidateCount   int               `json:"candidates"` // M; Record.Candidates lists them
 	Anticipated      *float64          `json:"anticipated"`
-	Population       int64             `json:"population"`
+	Population       LotSize           `json:"population"` // null: an unbounded stream
 	SampleSize       int               `json:"sample_size"`
 	AcceptanceNumber int               `json:"acceptance_number"`
 	PerCandidateRisk float64           `json:"per_candidate_risk"`
@@ -267,6 +269,40 @@ type Deviations struct {
 	Unsure          []string `json:"unsure"`           // record ids
 	AllowIncomplete bool     `json:"allow_incomplete"` // missing/unsure counted as errors
 	Notes           []string `json:"notes"`
+	// Replacements pairs each sample item marked unsure with the spare
+	// that replaced it by the draw's fixed rule, with the reason (absent
+	// when none was replaced).
+	Replacements []SpareReplacement `json:"replacements,omitempty"`
+	// SparesUnused are the labeled spares the rule gave no item to
+	// replace (record ids): harmless, listed so nothing is unaccounted
+	// for (absent when none).
+	SparesUnused []string `json:"spares_unused,omitempty"`
+	// DoubleNotLabeled is the number of items the draw set aside for a
+	// second, independent label (the manifest's double) when the record
+	// was made without second labels: the planned measure of label error
+	// was not taken. 0, and absent, otherwise.
+	DoubleNotLabeled int `json:"double_not_labeled,omitempty"`
+}
+
+// SpareReplacement is a sample item marked unsure and the spare judged in
+// its place (record ids), with the reason.
+type SpareReplacement struct {
+	Item   string `json:"item"`
+	Spare  string `json:"spare"`
+	Reason string `json:"reason"`
+}
+
+// DoubleNotLabeledText says in a sentence that the planned second
+// labeling did not happen ("" when it did, or none was planned); the
+// console and the PDF print it among the deviations.
+func (d Deviations) DoubleNotLabeledText() string {
+	switch k := d.DoubleNotLabeled; {
+	case k == 1:
+		return "1 item was drawn for a second, independent label, but the record was made without second labels: label error was not measured."
+	case k > 1:
+		return fmt.Sprintf("%d items were drawn for a second, independent label, but the record was made without second labels: label error was not measured.", k)
+	}
+	return ""
 }
 
 // MethodInfo states the method and its assumptions.

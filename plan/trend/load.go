@@ -279,7 +279,7 @@ func check(r *record.Record, name string, data []byte) error {
 // number or risks were edited is not charted.
 func checkPlanRule(p record.PlanInfo, text func(string) string) error {
 	in := plan.Inputs{Ceiling: p.Ceiling, Confidence: p.Confidence, CandidateCount: p.CandidateCount, Anticipated: p.Anticipated,
-		Population: p.Population, Method: p.Method, Multiplicity: p.Multiplicity, Design: p.Design, Require: p.Require}
+		Population: int64(p.Population), Method: p.Method, Multiplicity: p.Multiplicity, Design: p.Design, Require: p.Require}
 	r := plan.Rule{Model: p.Model, SampleSize: p.SampleSize, AcceptanceNumber: p.AcceptanceNumber, PerCandidateRisk: p.PerCandidateRisk,
 		ConsumerRisk: p.ConsumerRisk, ProducerRisk: p.ProducerRisk}
 	return plan.CheckStatedRule(in, r, text)

@@ -9,6 +9,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
 
@@ -384,7 +385,7 @@ func candidateWarnings(t *Trend, labels []string) []string {
 		for _, r := range s.Rows {
 			if !seen[r.BoundConfidence] {
 				seen[r.BoundConfidence] = true
-				confs = append(confs, fmt.Sprintf("%s from %s", percent(r.BoundConfidence), r.Period))
+				confs = append(confs, fmt.Sprintf("%s from %s", numfmt.Confidence(r.BoundConfidence), r.Period))
 			}
 		}
 		if len(confs) > 1 {
@@ -410,11 +411,4 @@ func weightWarnings(es []Entry) []string {
 		return nil
 	}
 	return []string{fmt.Sprintf("estimates in %s are stratified with unequal weights; the test compares raw error counts, not the weighted rates", listPeriods(ls))}
-}
-
-// percent formats a proportion as a percentage with up to 3 decimals.
-func percent(x float64) string {
-	s := fmt.Sprintf("%.3f", 100*x)
-	s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
-	return s + "%"
 }

@@ -202,7 +202,7 @@ func TestBuildWarnings(t *testing.T) {
 		"candidate sets differ: router-c is not in 2026-01, 2026-02, 2026-03, 2026-04",
 		"candidate sets differ: router-a is not in 2026-08",
 		"router-c is not in the baseline period 2026-01, so none of its periods is tested",
-		"router-b's upper bounds are at different confidences (98.333% from 2026-01, 98.75% from 2026-05)",
+		"router-b's upper bounds are at different confidences (98.333 % from 2026-01, 98.75 % from 2026-05)",
 		"estimates in 2026-02 are stratified with unequal weights",
 	} {
 		if !strings.Contains(all, want) {

@@ -8,6 +8,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
 
@@ -390,7 +391,7 @@ func reason(rc *record.Candidate, m judgeMethod, p *plan.File, n int, level floa
 		if !d.Accepted {
 			cmp = ">"
 		}
-		s = fmt.Sprintf("%s among the %d counted items, p-value %s %s level %s (stratified count rule)", errorsText(*rc.CountedErrors), m.count.Count.CountedSize(), short(rc.PValue), cmp, short(d.Level))
+		s = fmt.Sprintf("%s among the %d counted items, p-value %s %s level %s (stratified count rule)", errorsText(*rc.CountedErrors), m.count.Count.CountedSize(), numfmt.PValue(rc.PValue), cmp, numfmt.PValue(d.Level))
 	case m.ruleApplies && rc.Errors <= p.Rule.AcceptanceNumber:
 		s = fmt.Sprintf("%s ≤ c = %d in n = %d", errorsText(rc.Errors), p.Rule.AcceptanceNumber, n)
 	case m.ruleApplies && atPlan:
@@ -400,17 +401,17 @@ func reason(rc *record.Candidate, m judgeMethod, p *plan.File, n int, level floa
 		if !d.Accepted {
 			cmp = "≥"
 		}
-		s = fmt.Sprintf("upper bound %s %s ceiling %s at confidence %s", short(rc.UpperBound), cmp, short(p.Inputs.Ceiling), short(1-d.Level))
+		s = fmt.Sprintf("upper bound %s %s ceiling %s at confidence %s", numfmt.RateUp(rc.UpperBound), cmp, numfmt.Setting(p.Inputs.Ceiling), numfmt.Confidence(1-d.Level))
 		if m.bound.Exact() {
 			cmp = "≤"
 			if !d.Accepted {
 				cmp = ">"
 			}
-			s = fmt.Sprintf("p-value %s %s level %s", short(rc.PValue), cmp, short(d.Level))
+			s = fmt.Sprintf("p-value %s %s level %s", numfmt.PValue(rc.PValue), cmp, numfmt.PValue(d.Level))
 		}
 	}
 	if p.Inputs.Multiplicity == plan.Holm && d.Step > 1 {
-		s += fmt.Sprintf(" (Holm step %d, level %s)", d.Step, short(d.Level))
+		s += fmt.Sprintf(" (Holm step %d, level %s)", d.Step, numfmt.PValue(d.Level))
 	}
 	return s
 }
@@ -422,8 +423,6 @@ func errorsText(k int) string {
 	}
 	return strconv.Itoa(k) + " errors"
 }
-
-func short(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }
 
 // overall is the audit's verdict under the plan's requirement.
 func overall(require plan.Require, cands []record.Candidate) string {

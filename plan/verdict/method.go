@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
 
@@ -25,12 +26,12 @@ func methodInfo(p *plan.File, m judgeMethod, n int, level float64, res *Result) 
 	if m.count != nil {
 		countStatement(&b, p, m.count)
 	} else {
-		fmt.Fprintf(&b, "One-sided upper confidence bounds by %s", boundWords[m.bound])
+		fmt.Fprintf(&b, "One-sided upper %s confidence bounds by %s", numfmt.Confidence(1-level), boundWords[m.bound])
 		b.WriteString(". ")
 		if m.ruleApplies {
-			fmt.Fprintf(&b, "A candidate passes when it makes at most c = %d errors in the n = %d labeled decisions, which is the same as its bound lying below the ceiling of %s.", p.Rule.AcceptanceNumber, n, pct(p.Inputs.Ceiling))
+			fmt.Fprintf(&b, "A candidate passes when it makes at most c = %d errors in the n = %d labeled decisions, which is the same as its bound lying below the ceiling of %s.", p.Rule.AcceptanceNumber, n, numfmt.Setting(p.Inputs.Ceiling))
 		} else {
-			fmt.Fprintf(&b, "A candidate passes when its upper bound lies below the ceiling of %s (%d decisions judged).", pct(p.Inputs.Ceiling), n)
+			fmt.Fprintf(&b, "A candidate passes when its upper bound lies below the ceiling of %s (%d decisions judged).", numfmt.Setting(p.Inputs.Ceiling), n)
 		}
 		if len(res.Applied.Design.Strata) > 1 {
 			b.WriteString(" The allocation is exactly proportional, so the total count of errors is judged by the plan's rule: it is bounded by the binomial of a simple random sample (Hoeffding 1956, Theorem 4; Vatutin & Mikhailov 1982).")
@@ -54,7 +55,7 @@ func countStatement(b *strings.Builder, p *plan.File, a *Applied) {
 		b.WriteString("; the counted items are, in each stratum, the first of its items in worksheet order, a sub-sample closer to proportional fixed before labeling (the other items still give the per-stratum rates)")
 	}
 	fmt.Fprintf(b, ". c is the largest count whose chance, when the population holds %d or more errors (the ceiling of %s of %d decisions) placed where they are least likely to be found, is at most %s by Hoeffding's comparison of a sum of independent trials with the binomial (Hoeffding 1956, Theorem 4; each stratum's hypergeometric count is such a sum, Vatutin & Mikhailov 1982): a union–intersection test over every spread of the errors, as in SUITE (Ottoboni, Stark, Lindeman & McBurnett 2018).",
-		r.BadLot, pct(p.Inputs.Ceiling), r.Design.Population(), pct(1-r.Confidence))
+		r.BadLot, numfmt.Setting(p.Inputs.Ceiling), r.Design.Population(), numfmt.Chance(1-r.Confidence))
 	if len(a.Unknown) > 0 {
 		b.WriteString(" A stratum with no item counts as unknown: all of its decisions may be errors.")
 	}
@@ -68,19 +69,13 @@ func multiplicityStatement(p *plan.File, level float64) string {
 	delta := 1 - p.Inputs.Confidence
 	switch {
 	case M <= 1:
-		return fmt.Sprintf("The candidate is tested at risk %s (confidence %s).", pct(level), pct(1-level))
+		return fmt.Sprintf("The candidate is tested at risk %s (confidence %s).", numfmt.Chance(level), numfmt.Confidence(1-level))
 	case p.Inputs.Multiplicity == plan.Bonferroni:
-		return fmt.Sprintf("Each candidate is tested at risk %s (Bonferroni for %d candidates), so the chance that any candidate whose error is at or above the ceiling is accepted is at most %s, and the bounds hold simultaneously at %s.", pct(level), M, pct(delta), pct(p.Inputs.Confidence))
+		return fmt.Sprintf("Each candidate is tested at risk %s (Bonferroni for %d candidates), so the chance that any candidate whose error is at or above the ceiling is accepted is at most %s, and the bounds hold simultaneously at %s.", numfmt.Chance(level), M, numfmt.Chance(delta), numfmt.Confidence(p.Inputs.Confidence))
 	case p.Inputs.Multiplicity == plan.Holm:
-		return fmt.Sprintf("Candidates are accepted by Holm's step-down procedure: the candidate with the smallest p-value is tested at risk %s, each later one at a larger risk (δ/(M − k + 1) at step k, up to %s), stopping at the first not accepted. It keeps the chance that any candidate whose error is at or above the ceiling is accepted at most %s (family-wise); a single candidate tested at a later step is held to that step's risk, not to %s. Each candidate's bound is at the confidence of the step that tested it.", pct(level), pct(delta), pct(delta), pct(level))
+		return fmt.Sprintf("Candidates are accepted by Holm's step-down procedure: the candidate with the smallest p-value is tested at risk %s, each later one at a larger risk (δ/(M − k + 1) at step k, up to %s), stopping at the first not accepted. It keeps the chance that any candidate whose error is at or above the ceiling is accepted at most %s (family-wise); a single candidate tested at a later step is held to that step's risk, not to %s. Each candidate's bound is at the confidence of the step that tested it.", numfmt.Chance(level), numfmt.Chance(delta), numfmt.Chance(delta), numfmt.Chance(level))
 	case p.Inputs.Multiplicity == plan.FixedSequence:
-		return fmt.Sprintf("Candidates are tested in their declared order at risk %s and testing stops at the first rejection, so the chance that any candidate whose error is at or above the ceiling is accepted is at most %s.", pct(delta), pct(delta))
+		return fmt.Sprintf("Candidates are tested in their declared order at risk %s and testing stops at the first rejection, so the chance that any candidate whose error is at or above the ceiling is accepted is at most %s.", numfmt.Chance(delta), numfmt.Chance(delta))
 	}
 	return ""
-}
-
-// pct formats a probability as a percentage with up to four significant
-// digits ("95 %", "0.1 %", "99.99 %").
-func pct(x float64) string {
-	return short(100*x) + " %"
 }

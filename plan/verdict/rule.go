@@ -7,6 +7,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 	"probity/plan/stratified"
 )
@@ -173,7 +174,7 @@ func anticipatedErrors(p *plan.File, d Design, rates []float64) ([]int64, string
 		from = "half the ceiling in every stratum (the plan has no anticipated error)"
 		if p0 := p.Inputs.Anticipated; p0 != nil {
 			r = *p0
-			from = fmt.Sprintf("the plan's anticipated error %s in every stratum", short(100*r)+" %")
+			from = fmt.Sprintf("the plan's anticipated error %s in every stratum", numfmt.Setting(r))
 		}
 		rates = make([]float64, len(d.Strata))
 		for h := range rates {

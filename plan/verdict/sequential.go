@@ -6,6 +6,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 	"probity/plan/sequential"
 )
@@ -102,7 +103,7 @@ func JudgeSequential(in Input) (*Result, error) {
 	}}
 	res.Method.Statement = fmt.Sprintf(
 		"Each candidate is judged by the plan's sequential boundaries, labeling from the top of the worksheet until its errors reach the acceptance or the rejection boundary (at most %d labels); the boundaries keep the false-accept risk at or below %s per candidate. %s",
-		rule.MaxSampleSize(), pct(level), boundText)
+		rule.MaxSampleSize(), numfmt.Chance(level), boundText)
 	return res, nil
 }
 

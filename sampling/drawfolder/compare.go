@@ -212,8 +212,15 @@ func compareWorksheet(path string, id DrawID, show []string, want []WorksheetRow
 		}
 		return []string{err.Error()}
 	}
-	wantHeader := worksheetHeader(id, show)
-	if strings.Join(header[:min(len(header), len(show)+2)], ",") != strings.Join(wantHeader[:len(show)+2], ",") {
+	// A worksheet written before spares were marked has no spare column;
+	// one that has it must mark the spares the draw drew.
+	spares := HasSpareColumn(header)
+	wantHeader := worksheetHeader(id, show, spares && hasSpares(want))
+	drawn := len(show) + 2
+	if spares {
+		drawn++
+	}
+	if strings.Join(header[:min(len(header), drawn)], ",") != strings.Join(wantHeader[:min(len(wantHeader), drawn)], ",") {
 		return []string{fmt.Sprintf("%s: columns are %s, the draw wrote %s", name, columnList(header), columnList(wantHeader))}
 	}
 	var out []string
@@ -223,7 +230,7 @@ func compareWorksheet(path string, id DrawID, show []string, want []WorksheetRow
 	}
 	for i := 0; i < min(len(rows), len(want)); i++ {
 		g, x := rows[i], want[i]
-		if g.Item != x.Item || g.RecordID != x.RecordID || strings.Join(g.Show, "\x00") != strings.Join(x.Show, "\x00") {
+		if g.Item != x.Item || g.RecordID != x.RecordID || (spares && g.Spare != x.Spare) || strings.Join(g.Show, "\x00") != strings.Join(x.Show, "\x00") {
 			listed++
 			if listed <= maxListed {
 				out = append(out, fmt.Sprintf("%s line %d: item %d record_id %q, the recomputed draw has item %d record_id %q", name, g.Line, g.Item, g.RecordID, x.Item, x.RecordID))

@@ -57,6 +57,8 @@ func (f *Folder) CheckLabels(l *Labels) error {
 		if li < len(f.Worksheet) {
 			if d := shownDiff(wshow, f.Worksheet[li].Show, r.Show); d != "" {
 				changed = append(changed, fmt.Sprintf("line %d: item %d's %s", r.Line, r.Item, d))
+			} else if HasSpareColumn(l.Header) && r.Spare != lr.Spare {
+				changed = append(changed, fmt.Sprintf("line %d: item %d's %s mark was changed (the draw %s)", r.Line, r.Item, SpareColumn, map[bool]string{true: "drew it as a spare", false: "drew it for the sample"}[lr.Spare]))
 			}
 		}
 	}

@@ -222,10 +222,14 @@ func (f *Folder) checkLedgerStrata(lpath string) error {
 func blankWorksheet(header []string, rows []WorksheetRow) ([]byte, error) {
 	blank := make([]WorksheetRow, len(rows))
 	for i, r := range rows {
-		blank[i] = WorksheetRow{Item: r.Item, RecordID: r.RecordID, Show: r.Show}
+		blank[i] = WorksheetRow{Item: r.Item, RecordID: r.RecordID, Spare: r.Spare, Show: r.Show}
 	}
 	nShow := len(ShownColumns(header))
-	h := append(append([]string{}, header[:2+nShow]...), "label", "note", "labeler")
+	first := 2
+	if HasSpareColumn(header) {
+		first = 3
+	}
+	h := append(append([]string{}, header[:first+nShow]...), "label", "note", "labeler")
 	var buf bytes.Buffer
 	if err := writeWorksheet(&buf, h, nShow, blank); err != nil {
 		return nil, err

@@ -10,33 +10,62 @@ import (
 )
 
 // WorksheetRow is one row of worksheet.csv, what labelers get: item,
-// record_id, the shown columns, label, note (and, once label quality is
-// tracked, labeler). It never carries a prediction, score or stratum.
+// record_id, the spare mark (in a draw with spares), the shown columns,
+// label, note (and, once label quality is tracked, labeler). It never
+// carries a prediction, score or stratum.
 type WorksheetRow struct {
 	Item     int
 	RecordID string
-	Show     []string
-	Label    string
-	Note     string
-	Labeler  string
+	// Spare marks a spare item (the spare column holds SpareMark): one
+	// that stands in for a sample item marked unsure, by the draw's fixed
+	// rule (AssignSpares). The mark says nothing else: not the stratum,
+	// not the item it may replace.
+	Spare   bool
+	Show    []string
+	Label   string
+	Note    string
+	Labeler string
 	// Line is the 1-based line in the file it was read from (0 if written).
 	Line int
 }
 
-// WorksheetHeader returns a worksheet's header: item, record_id, the show
-// columns (as ShownHeader names them), label, note, labeler.
-func WorksheetHeader(show []string) []string { return worksheetHeader(DrawID{}, show) }
+// WorksheetHeader returns the header of a worksheet of these rows: item,
+// record_id, spare (when a row is a spare), the show columns (as
+// ShownHeader names them), label, note, labeler.
+func WorksheetHeader(show []string, rows []WorksheetRow) []string {
+	return worksheetHeader(DrawID{}, show, hasSpares(rows))
+}
 
 // worksheetHeader is WorksheetHeader with the first cell naming the draw
 // (DrawID.itemCell).
-func worksheetHeader(id DrawID, show []string) []string {
+func worksheetHeader(id DrawID, show []string, spares bool) []string {
 	h := []string{id.itemCell(), "record_id"}
+	if spares {
+		h = append(h, SpareColumn)
+	}
 	h = append(h, ShownHeader(show)...)
 	return append(h, "label", "note", "labeler")
 }
 
+// SpareColumn is the worksheet column that marks spares, written after
+// record_id by a draw with spares; a spare's cell holds SpareMark, a
+// sample item's is empty.
+const SpareColumn = "spare"
+
+// SpareMark is the spare column's cell of a spare item.
+const SpareMark = "spare"
+
+func hasSpares(rows []WorksheetRow) bool {
+	for _, r := range rows {
+		if r.Spare {
+			return true
+		}
+	}
+	return false
+}
+
 // worksheetColumns are the names of a worksheet's own columns.
-var worksheetColumns = []string{"item", "record_id", "label", "note", "labeler"}
+var worksheetColumns = []string{"item", "record_id", SpareColumn, "label", "note", "labeler"}
 
 // shownPrefix marks a shown column whose log name is one of the
 // worksheet's own column names.
@@ -44,7 +73,7 @@ const shownPrefix = "log:"
 
 // ShownHeader is how the worksheet names the log's shown columns: as the
 // log does, except that a name of the worksheet's own (item, record_id,
-// label, note, labeler) — or one already starting with "log:" — is written
+// spare, label, note, labeler) — or one already starting with "log:" — is written
 // "log:NAME", so a log column called note can be shown without two note
 // columns in the header. The mapping is one-to-one.
 func ShownHeader(show []string) []string {
@@ -59,29 +88,41 @@ func ShownHeader(show []string) []string {
 }
 
 // WriteWorksheet writes a worksheet (worksheet.csv or worksheet-second.csv)
-// with the header of WorksheetHeader(show) and one line per row. The
+// with the header of WorksheetHeader(show, rows) and one line per row. The
 // labeler column is always written (empty unless set).
 func WriteWorksheet(w io.Writer, show []string, rows []WorksheetRow) error {
-	return writeWorksheet(w, WorksheetHeader(show), len(show), rows)
+	return writeWorksheet(w, WorksheetHeader(show, rows), len(show), rows)
 }
 
 // WriteDrawWorksheet is WriteWorksheet for the worksheet of the draw id:
 // its first header cell names the draw (as a draw writes it).
 func WriteDrawWorksheet(w io.Writer, id DrawID, show []string, rows []WorksheetRow) error {
-	return writeWorksheet(w, worksheetHeader(id, show), len(show), rows)
+	return writeWorksheet(w, worksheetHeader(id, show, hasSpares(rows)), len(show), rows)
 }
 
 // writeWorksheet writes a worksheet with this header, which names nShow
-// shown columns.
+// shown columns (and the spare column when its third cell is spare).
 func writeWorksheet(w io.Writer, header []string, nShow int, rows []WorksheetRow) error {
-	show := header[2 : 2+nShow]
+	first := 2
+	spares := len(header) > 2 && header[2] == SpareColumn
+	if spares {
+		first = 3
+	}
+	show := header[first : first+nShow]
 	out := make([][]string, 0, len(rows)+1)
 	out = append(out, header)
 	for _, r := range rows {
-		rec := make([]string, 0, len(show)+5)
+		rec := make([]string, 0, len(show)+6)
 		rec = append(rec, strconv.Itoa(r.Item), CellText(r.RecordID))
+		if spares {
+			mark := ""
+			if r.Spare {
+				mark = SpareMark
+			}
+			rec = append(rec, mark)
+		}
 		rec = append(rec, cellTexts(r.Show)...)
-		for len(rec) < 2+len(show) {
+		for len(rec) < first+len(show) {
 			rec = append(rec, "")
 		}
 		rec = append(rec, r.Label, r.Note, r.Labeler)
@@ -91,8 +132,8 @@ func writeWorksheet(w io.Writer, header []string, nShow int, rows []WorksheetRow
 }
 
 // ReadWorksheet reads a labeled worksheet. Its columns must be item,
-// record_id, any show columns, label, note and optionally labeler (in that
-// order). It returns the header as found and the rows with their line
+// record_id, spare (in a draw with spares), any show columns, label, note
+// and optionally labeler (in that order). It returns the header as found and the rows with their line
 // numbers. Items must be positive whole numbers and record ids non-empty,
 // each appearing once. Errors are *inputerr.Error naming file, line, column.
 func ReadWorksheet(path string) (header []string, rows []WorksheetRow, err error) {
@@ -103,39 +144,47 @@ func ReadWorksheet(path string) (header []string, rows []WorksheetRow, err error
 	return worksheetFromTable(path, t)
 }
 
-// worksheetLayout finds the show columns and whether a labeler column is
-// present in a worksheet header.
-func worksheetLayout(name string, h []string) (nShow int, hasLabeler bool, err error) {
+// worksheetLayout finds the show columns and whether a spare and a
+// labeler column are present in a worksheet header.
+func worksheetLayout(name string, h []string) (nShow int, hasSpare, hasLabeler bool, err error) {
 	bad := func() error {
-		e := inputErrorf(name, 1, "", "header is %s; a worksheet's columns are item, record_id, the shown columns, label, note and optionally labeler", columnList(h))
+		e := inputErrorf(name, 1, "", "header is %s; a worksheet's columns are item, record_id, spare (with spares), the shown columns, label, note and optionally labeler", columnList(h))
 		e.Hint = "use the worksheet.csv written by probity draw; keep its header line as it is"
 		return e
 	}
 	if _, _, ok := parseItemCell(h[0]); len(h) < 4 || !ok || h[1] != "record_id" {
-		return 0, false, bad()
+		return 0, false, false, bad()
+	}
+	first := 2
+	if h[2] == SpareColumn {
+		hasSpare, first = true, 3
 	}
 	end := len(h)
 	if h[end-1] == "labeler" {
 		hasLabeler = true
 		end--
 	}
-	if end < 4 || h[end-2] != "label" || h[end-1] != "note" {
-		return 0, false, bad()
+	if end < first+2 || h[end-2] != "label" || h[end-1] != "note" {
+		return 0, false, false, bad()
 	}
 	seen := map[string]bool{}
 	for i, c := range h {
 		if seen[c] {
-			return 0, false, inputErrorf(name, 1, c, "header names column %q twice (column %d)", c, i+1)
+			return 0, false, false, inputErrorf(name, 1, c, "header names column %q twice (column %d)", c, i+1)
 		}
 		seen[c] = true
 	}
-	return end - 4, hasLabeler, nil
+	return end - first - 2, hasSpare, hasLabeler, nil
 }
 
 func worksheetFromTable(name string, t *CSVTable) ([]string, []WorksheetRow, error) {
-	nShow, hasLabeler, err := worksheetLayout(name, t.Header)
+	nShow, hasSpare, hasLabeler, err := worksheetLayout(name, t.Header)
 	if err != nil {
 		return nil, nil, err
+	}
+	first := 2
+	if hasSpare {
+		first = 3
 	}
 	rows := make([]WorksheetRow, 0, len(t.Rows))
 	items := map[int]int{}
@@ -159,11 +208,21 @@ func worksheetFromTable(name string, t *CSVTable) ([]string, []WorksheetRow, err
 			return nil, nil, inputErrorf(name, line, "record_id", "record_id %q appears twice (lines %d and %d)", r.RecordID, prev, line)
 		}
 		ids[r.RecordID] = line
-		r.Show = cellValues(rec[2 : 2+nShow])
-		r.Label = rec[2+nShow]
-		r.Note = rec[3+nShow]
+		if hasSpare {
+			switch strings.ToLower(strings.TrimSpace(rec[2])) {
+			case SpareMark:
+				r.Spare = true
+			case "":
+			default:
+				return nil, nil, inputErrorf(name, line, SpareColumn, "the spare column of item %d holds %q; it is %q for a spare and empty otherwise", r.Item, rec[2], SpareMark).
+					WithHint("the draw fills this column; leave it as it is")
+			}
+		}
+		r.Show = cellValues(rec[first : first+nShow])
+		r.Label = rec[first+nShow]
+		r.Note = rec[first+1+nShow]
 		if hasLabeler {
-			if r.Labeler, err = personname.Clean(rec[4+nShow]); err != nil {
+			if r.Labeler, err = personname.Clean(rec[first+2+nShow]); err != nil {
 				return nil, nil, inputErrorf(name, line, "labeler", "labeler of item %d: %v", r.Item, err).
 					WithHint("retype the labeler's name: it holds a character that prints nothing or reorders the text around it")
 			}
@@ -174,15 +233,23 @@ func worksheetFromTable(name string, t *CSVTable) ([]string, []WorksheetRow, err
 }
 
 // ShownColumns returns the shown columns of a worksheet header: the
-// columns between record_id and label (item, record_id, shown…, label,
-// note[, labeler]); none when the header is not a worksheet's.
+// columns between record_id (or spare) and label (item, record_id[,
+// spare], shown…, label, note[, labeler]); none when the header is not a
+// worksheet's.
 func ShownColumns(h []string) []string {
+	first := 2
+	if len(h) > 2 && h[2] == SpareColumn {
+		first = 3
+	}
 	end := len(h)
 	if end > 0 && h[end-1] == "labeler" {
 		end--
 	}
-	if end < 4 {
+	if end < first+2 {
 		return nil
 	}
-	return h[2 : end-2]
+	return h[first : end-2]
 }
+
+// HasSpareColumn reports whether a worksheet header has the spare column.
+func HasSpareColumn(h []string) bool { return len(h) > 2 && h[2] == SpareColumn }

@@ -7,16 +7,16 @@ import (
 	"probity/sampling/labeltrail"
 )
 
-// spareRule assigns spares to unsure items by the draw's fixed rule, the
-// one the record's intake checks: within a stratum, spares are used in
-// key order; each sample item marked unsure is replaced by the next spare,
-// and a spare marked unsure by the one after it.
+// spareRule assigns spares to unsure items by the draw's fixed rule
+// (drawfolder.SpareRule, the one the record's intake applies): within a
+// stratum, spares are used in key order; each sample item marked unsure
+// is replaced by the next spare, and a spare marked unsure by the one
+// after it.
 type spareRule struct {
-	// mains and spares list each stratum's sample items (worksheet order)
-	// and spares (key order).
-	mains, spares [][]int
-	stratum       map[int]int
-	isSpare       map[int]bool
+	rule *drawfolder.SpareRule
+	// spares lists each stratum's spares (key order).
+	spares  [][]int
+	isSpare map[int]bool
 	// order is each item's position in the worksheet; items are all
 	// items in that order.
 	order map[int]int
@@ -24,17 +24,15 @@ type spareRule struct {
 }
 
 func newSpareRule(ledger []drawfolder.LedgerRow, strata map[string]int) *spareRule {
-	r := &spareRule{mains: make([][]int, len(strata)), spares: make([][]int, len(strata)),
-		stratum: map[int]int{}, isSpare: map[int]bool{}, order: map[int]int{}}
+	r := &spareRule{rule: drawfolder.NewSpareRule(ledger), spares: make([][]int, len(strata)),
+		isSpare: map[int]bool{}, order: map[int]int{}}
 	keys := map[int]string{}
 	for i, lr := range ledger {
 		h := strata[lr.Stratum]
-		r.stratum[lr.Item], r.order[lr.Item], keys[lr.Item] = h, i, lr.Key
+		r.order[lr.Item], keys[lr.Item] = i, lr.Key
 		if lr.Spare {
 			r.isSpare[lr.Item] = true
 			r.spares[h] = append(r.spares[h], lr.Item)
-		} else {
-			r.mains[h] = append(r.mains[h], lr.Item)
 		}
 	}
 	for h := range r.spares {
@@ -63,27 +61,19 @@ type assignment struct {
 // labeled unsure passes its item on to the next spare.
 func (r *spareRule) assign(label labelOf) assignment {
 	a := assignment{spareFor: map[int]int{}, blank: map[int]bool{}}
-	for h, spares := range r.spares {
-		var queue []int
-		for _, m := range r.mains[h] {
-			if label(m) == drawfolder.Unsure {
-				queue = append(queue, m)
-			}
+	use := r.rule.Assign(func(item int) drawfolder.LabelKind {
+		switch label(item) {
+		case "":
+			return drawfolder.LabelBlank
+		case drawfolder.Unsure:
+			return drawfolder.LabelUnsure
 		}
-		j := 0
-		for _, s := range spares {
-			if j >= len(queue) {
-				break
-			}
-			a.spareFor[s] = queue[j]
-			switch label(s) {
-			case "":
-				a.blank[s] = true
-				j++
-			case drawfolder.Unsure:
-			default:
-				j++
-			}
+		return drawfolder.LabelClass
+	})
+	for _, st := range use.Steps {
+		a.spareFor[st.Spare] = st.Item
+		if st.Label == drawfolder.LabelBlank {
+			a.blank[st.Spare] = true
 		}
 	}
 	return a

@@ -309,7 +309,7 @@ func (s *State) Worksheet(sheet string) []drawfolder.WorksheetRow {
 	out := make([]drawfolder.WorksheetRow, len(rows))
 	for i, r := range rows {
 		c := s.cells[sheet][r.Item]
-		out[i] = drawfolder.WorksheetRow{Item: r.Item, RecordID: r.RecordID, Show: slices.Clone(r.Show),
+		out[i] = drawfolder.WorksheetRow{Item: r.Item, RecordID: r.RecordID, Spare: r.Spare, Show: slices.Clone(r.Show),
 			Label: c.Label, Note: c.Note, Labeler: c.Labeler, Line: c.Line}
 	}
 	return out
@@ -340,7 +340,7 @@ func (s *State) Labels(sheet string) (*drawfolder.Labels, error) {
 	}
 	return &drawfolder.Labels{
 		Path:   s.path,
-		Header: drawfolder.WorksheetHeader(s.draw.Show),
+		Header: drawfolder.WorksheetHeader(s.draw.Show, s.draw.Sheets[sheet]),
 		Rows:   s.Worksheet(sheet),
 		Bytes:  data,
 	}, nil

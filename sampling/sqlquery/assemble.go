@@ -56,7 +56,7 @@ func (res *Result) Folder(toolVersion string) (*drawfolder.Content, error) {
 			}
 			rows[i].Predictions[ci] = v
 		}
-		w := drawfolder.WorksheetRow{Item: i + 1, RecordID: it.RecordID}
+		w := drawfolder.WorksheetRow{Item: i + 1, RecordID: it.RecordID, Spare: rows[i].Spare}
 		for _, col := range s.Show {
 			w.Show = append(w.Show, it.Values[slices.Index(values, col)])
 		}

@@ -308,6 +308,9 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 		rec.Method.Assumptions = append(rec.Method.Assumptions, w)
 	}
 	rec.Deviations = checked.Deviations
+	if in.Second == nil {
+		rec.Deviations.DoubleNotLabeled = in.Folder.Manifest.Double
+	}
 	for _, s := range checked.Design.Strata {
 		w := 0.0
 		if s.Sample > 0 {
@@ -481,7 +484,7 @@ func planInfo(p *plan.File, fp string, f *drawfolder.Folder) record.PlanInfo {
 	return record.PlanInfo{
 		Fingerprint: fp, Method: in.Method, Model: p.Rule.Model, Design: in.Design,
 		Multiplicity: in.Multiplicity, Require: in.Require, Ceiling: in.Ceiling, Confidence: in.Confidence,
-		CandidateCount: in.CandidateCount, Anticipated: in.Anticipated, Population: in.Population,
+		CandidateCount: in.CandidateCount, Anticipated: in.Anticipated, Population: record.LotSize(in.Population),
 		SampleSize: p.Rule.SampleSize, AcceptanceNumber: p.Rule.AcceptanceNumber,
 		PerCandidateRisk: p.Rule.PerCandidateRisk, ConsumerRisk: p.Rule.ConsumerRisk, ProducerRisk: p.Rule.ProducerRisk,
 		Seed: p.Seed, SelectionSeed: f.Manifest.SelectionSeed,

@@ -3,8 +3,8 @@ package assemble
 import (
 	"fmt"
 	"math"
-	"strconv"
 
+	"probity/plan/numfmt"
 	"probity/plan/record"
 	"probity/templates"
 )
@@ -49,27 +49,14 @@ func caveats(rec *record.Record) []record.Caveat {
 		}
 		text := fmt.Sprintf("%s is accepted with an upper bound of %s against the ceiling %s, but on the doubled items a single labeler "+
 			"was wrong on at least %s of items: label error of that size consumes the margin of %s between the bound and the ceiling",
-			c.Name, pctUp(c.UpperBound), pctExact(ceiling), pctDown(eps), pctDown(math.Max(0, ceiling-c.UpperBound)))
+			c.Name, numfmt.RateUp(c.UpperBound), numfmt.Setting(ceiling), numfmt.RateDown(eps), numfmt.RateDown(math.Max(0, ceiling-c.UpperBound)))
 		if eps >= ceiling-c.Estimate {
 			text += fmt.Sprintf(", and even the distance of %s from its estimate %s to the ceiling, so label error alone could put its true error at the ceiling.",
-				pctDown(math.Max(0, ceiling-c.Estimate)), pct(c.Estimate))
+				numfmt.RateDown(math.Max(0, ceiling-c.Estimate)), numfmt.Rate(c.Estimate))
 		} else {
 			text += ". The stated false-accept risk holds only if the reference labels are better than the doubled items show."
 		}
 		out = append(out, record.Caveat{Kind: record.CaveatLabelErrorMargin, Candidate: c.Name, Text: text})
 	}
 	return out
-}
-
-// Percentages with three decimals, as the PDF prints rates: pct rounds,
-// pctUp rounds up (a bound), pctDown rounds down (an "at least");
-// pctExact shows a plan value with the digits it needs.
-func pct(x float64) string     { return percent(math.Round(x * 1e5)) }
-func pctUp(x float64) string   { return percent(math.Ceil(x*1e5 - 1e-6)) }
-func pctDown(x float64) string { return percent(math.Floor(x*1e5 + 1e-6)) }
-func percent(units float64) string {
-	return strconv.FormatFloat(units/1000, 'f', 3, 64) + " %"
-}
-func pctExact(x float64) string {
-	return strconv.FormatFloat(math.Round(x*1e10)/1e8, 'f', -1, 64) + " %"
 }

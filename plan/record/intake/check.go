@@ -121,79 +121,73 @@ func (res *Result) judgeable(p *plan.File, f *drawfolder.Folder, l *drawfolder.L
 		wr.Label = lab
 		rows[i] = row{lr: lr, wr: wr, state: st}
 	}
-	// Per stratum: the sample rows in ledger order, the spares in key
-	// order (the order they were drawn in).
-	type bucket struct{ main, spares []int }
-	buckets := make([]bucket, len(strata))
+	// Which spare replaces which unsure item is the draw's fixed rule
+	// (drawfolder.SpareRule), as on the labeling page; a labeled spare the
+	// rule gives no item is unused, never an error.
+	rowOf := make(map[int]int, len(rows))
 	for i, r := range rows {
-		h := index[r.lr.Stratum]
+		rowOf[r.lr.Item] = i
+	}
+	use := drawfolder.NewSpareRule(f.Ledger).Assign(func(item int) drawfolder.LabelKind { return rows[rowOf[item]].state })
+	dev := &res.Deviations
+	for i, r := range rows {
 		if r.lr.Spare {
-			buckets[h].spares = append(buckets[h].spares, i)
-		} else {
-			buckets[h].main = append(buckets[h].main, i)
+			continue
+		}
+		switch r.state {
+		case labeled:
+			res.add(i, r.lr, r.wr.Label, index[r.lr.Stratum], false)
+		case blank:
+			dev.Unlabeled = append(dev.Unlabeled, r.lr.RecordID)
+		case unsure:
+			dev.Unsure = append(dev.Unsure, r.lr.RecordID)
 		}
 	}
-	dev := &res.Deviations
-	var unresolved []string
-	for h := range buckets {
-		b := &buckets[h]
-		sort.SliceStable(b.spares, func(x, y int) bool { return rows[b.spares[x]].lr.Key < rows[b.spares[y]].lr.Key })
-		var deficits []int // main rows to replace, in ledger order
-		for _, i := range b.main {
-			r := rows[i]
-			switch r.state {
-			case labeled:
-				res.add(i, r.lr, r.wr.Label, h, false)
-			case blank:
-				dev.Unlabeled = append(dev.Unlabeled, r.lr.RecordID)
-				deficits = append(deficits, i)
-			case unsure:
-				dev.Unsure = append(dev.Unsure, r.lr.RecordID)
-				deficits = append(deficits, i)
-			}
+	for _, st := range use.Steps {
+		sr, ir := rows[rowOf[st.Spare]], rows[rowOf[st.Item]]
+		switch st.Label {
+		case labeled:
+			dev.SparesUsed = append(dev.SparesUsed, sr.lr.RecordID)
+			dev.Replacements = append(dev.Replacements, record.SpareReplacement{Item: ir.lr.RecordID, Spare: sr.lr.RecordID, Reason: unsureReason(ir.wr)})
+			res.add(rowOf[st.Spare], sr.lr, sr.wr.Label, index[sr.lr.Stratum], false)
+		case unsure:
+			dev.SparesUsed = append(dev.SparesUsed, sr.lr.RecordID)
+			dev.Unsure = append(dev.Unsure, sr.lr.RecordID)
 		}
-		need := len(deficits)
-		firstBlank := -1
-		for _, i := range b.spares {
-			r := rows[i]
-			if r.state == blank {
-				if firstBlank < 0 {
-					firstBlank = i
-				}
-				continue
-			}
-			if firstBlank >= 0 {
-				prev := rows[firstBlank]
-				return &inputerr.Error{File: l.Path, Line: r.wr.Line, Field: "label",
-					Msg:  fmt.Sprintf("spare item %d of stratum %q is labeled, but the spare before it (item %d) is not: spares must be used in order", r.wr.Item, strata[h].Label, prev.wr.Item),
-					Hint: fmt.Sprintf("label spare item %d first, or clear the label of item %d", prev.wr.Item, r.wr.Item)}
-			}
-			if need == 0 {
-				return &inputerr.Error{File: l.Path, Line: r.wr.Line, Field: "label",
-					Msg:  fmt.Sprintf("spare item %d of stratum %q is labeled, but no unlabeled or unsure item of that stratum is left for it to replace", r.wr.Item, strata[h].Label),
-					Hint: "spares only replace items that cannot be labeled; clear the spare's label"}
-			}
-			dev.SparesUsed = append(dev.SparesUsed, r.lr.RecordID)
-			if r.state == unsure {
-				dev.Unsure = append(dev.Unsure, r.lr.RecordID)
-				continue // the spare itself could not be labeled; the next one may replace the item
-			}
-			res.add(i, r.lr, r.wr.Label, h, false)
-			need--
+	}
+	for _, it := range use.Unused {
+		dev.SparesUnused = append(dev.SparesUnused, rows[rowOf[it]].lr.RecordID)
+	}
+	// Items left without a label: blank sample items, and unsure ones no
+	// labeled spare replaces (in worksheet order).
+	waiting := map[int]int{} // unsure item → its blank spare
+	for _, st := range use.Steps {
+		if st.Label == blank {
+			waiting[st.Item] = st.Spare
 		}
-		for _, i := range deficits[len(deficits)-need:] {
-			r := rows[i]
-			unresolved = append(unresolved, fmt.Sprintf("%d", r.wr.Item))
-			if opts.AllowIncomplete {
-				res.add(i, r.lr, "", h, true)
-				res.Counted++
-			}
+	}
+	unreplaced := map[int]bool{}
+	for _, it := range use.Unreplaced {
+		unreplaced[it] = true
+	}
+	var unresolved, spareNotes []string
+	for i, r := range rows {
+		if r.lr.Spare || (r.state != blank && !unreplaced[r.lr.Item]) {
+			continue
+		}
+		unresolved = append(unresolved, fmt.Sprintf("%d", r.wr.Item))
+		if s, ok := waiting[r.lr.Item]; ok {
+			spareNotes = append(spareNotes, fmt.Sprintf("item %d's spare by the draw's rule is item %d, which is not labeled", r.wr.Item, s))
+		}
+		if opts.AllowIncomplete {
+			res.add(i, r.lr, "", index[r.lr.Stratum], true)
+			res.Counted++
 		}
 	}
 	if len(unresolved) > 0 && !opts.AllowIncomplete {
 		return &inputerr.Error{File: l.Path, Field: "label", Err: ErrIncomplete,
-			Msg:  fmt.Sprintf("%s unlabeled or unsure and no spare replaces %s (%s %s)", itemsAre(len(unresolved)), pron(len(unresolved)), itemWord(len(unresolved)), first(unresolved)),
-			Hint: "label them, or label the stratum's spares in order"}
+			Msg:  fmt.Sprintf("%s unlabeled or unsure and no spare replaces %s (%s %s)%s", itemsAre(len(unresolved)), pron(len(unresolved)), itemWord(len(unresolved)), first(unresolved), spareList(spareNotes)),
+			Hint: "label them; an item that cannot be labeled is marked unsure and replaced by a spare (the rows marked spare), so label the spares too"}
 	}
 	if res.Counted > 0 {
 		dev.AllowIncomplete = true
@@ -291,6 +285,27 @@ func (res *Result) prefix(p *plan.File, f *drawfolder.Folder, l *drawfolder.Labe
 	}
 	res.order = nil
 	return nil
+}
+
+// spareList is "; " and the first of notes, and how many more ("" for
+// none).
+func spareList(notes []string) string {
+	switch len(notes) {
+	case 0:
+		return ""
+	case 1:
+		return "; " + notes[0]
+	}
+	return fmt.Sprintf("; %s (and %d more like it)", notes[0], len(notes)-1)
+}
+
+// unsureReason is why a spare replaced an item: it was marked unsure,
+// with the labeler's note when there is one.
+func unsureReason(r drawfolder.WorksheetRow) string {
+	if n := strings.TrimSpace(r.Note); n != "" {
+		return "marked unsure: " + n
+	}
+	return "marked unsure"
 }
 
 // itemsAre is "1 item is" or "k items are".

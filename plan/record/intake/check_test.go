@@ -2,12 +2,15 @@ package intake
 
 import (
 	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
 	"probity/plan/inputerr"
+	"probity/plan/record"
 	"probity/sampling/drawfolder"
 )
 
@@ -77,19 +80,57 @@ func TestSparesReplaceInOrder(t *testing.T) {
 	}
 }
 
+// TestLabeledSparesThatReplaceNothingAreUnused (issue 16 item 3): a
+// labeler who labels the spares too, as the worksheet's order invites,
+// is not refused: a labeled spare the draw's rule gives no item is listed
+// as unused; which spare replaces which unsure item is the rule's, and the
+// record lists each pair with the reason (the labeler's note).
+func TestLabeledSparesThatReplaceNothingAreUnused(t *testing.T) {
+	fx := newDrawFixture(t)
+	id := func(i int) string { return fx.folder.Ledger[i].RecordID }
+	rows := fx.labeled()
+	for i := range rows {
+		if fx.folder.Ledger[i].Spare {
+			rows[i].Label = "ok" // every spare labeled
+		}
+	}
+	res, err := fx.check(t, rows, Options{})
+	if err != nil {
+		t.Fatalf("labeled spares replacing nothing were refused: %v", err)
+	}
+	if len(res.Deviations.SparesUnused) != fx.folder.Manifest.Spares || len(res.Deviations.SparesUsed) != 0 || len(res.Deviations.Replacements) != 0 {
+		t.Errorf("deviations %+v, want every one of the %d spares unused", res.Deviations, fx.folder.Manifest.Spares)
+	}
+
+	// One unsure item in stratum a: the stratum's first spare (key order)
+	// replaces it whichever spares were labeled; the others are unused.
+	rows[fx.mainIndex("a", 3)].Label, rows[fx.mainIndex("a", 3)].Note = "unsure", "text cut off"
+	res, err = fx.check(t, rows, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := record.SpareReplacement{Item: id(fx.mainIndex("a", 3)), Spare: id(fx.spareIndex("a", 0)), Reason: "marked unsure: text cut off"}
+	if len(res.Deviations.Replacements) != 1 || res.Deviations.Replacements[0] != want {
+		t.Errorf("replacements %+v, want %+v", res.Deviations.Replacements, want)
+	}
+	if len(res.Deviations.SparesUnused) != fx.folder.Manifest.Spares-1 || slices.Contains(res.Deviations.SparesUnused, want.Spare) {
+		t.Errorf("unused %v", res.Deviations.SparesUnused)
+	}
+}
+
 func TestSpareMisuseIsRefused(t *testing.T) {
 	fx := newDrawFixture(t)
 	cases := map[string]struct {
 		edit func(rows []drawfolder.WorksheetRow)
 		want string
 	}{
-		"out of order": {func(rows []drawfolder.WorksheetRow) {
-			rows[fx.mainIndex("b", 0)].Label = ""
+		// The rule gives the unsure item the first spare; labeling the
+		// second instead does not make it its replacement.
+		"spare skipped": {func(rows []drawfolder.WorksheetRow) {
+			rows[fx.mainIndex("b", 0)].Label = "unsure"
 			rows[fx.spareIndex("b", 1)].Label = "ok"
-		}, "spares must be used in order"},
-		"nothing to replace": {func(rows []drawfolder.WorksheetRow) {
-			rows[fx.spareIndex("a", 0)].Label = "ok"
-		}, "no unlabeled or unsure item of that stratum is left"},
+		}, fmt.Sprintf("1 item is unlabeled or unsure and no spare replaces it (item %d); item %[1]d's spare by the draw's rule is item %d, which is not labeled",
+			fx.folder.Ledger[fx.mainIndex("b", 0)].Item, fx.folder.Ledger[fx.spareIndex("b", 0)].Item)},
 		"bad label": {func(rows []drawfolder.WorksheetRow) {
 			rows[4].Label = "defekt"
 		}, `label "defekt" (item 5) is not one of the plan's classes (ok, defect), blank or "unsure"`},
@@ -97,9 +138,9 @@ func TestSpareMisuseIsRefused(t *testing.T) {
 	for name, c := range cases {
 		rows := fx.labeled()
 		c.edit(rows)
-		_, err := fx.check(t, rows, Options{AllowIncomplete: true})
-		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "labels.csv line") {
-			t.Errorf("%s: got %v, want %q with the file and line", name, err, c.want)
+		_, err := fx.check(t, rows, Options{})
+		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "labels.csv") {
+			t.Errorf("%s: got %v, want %q with the file", name, err, c.want)
 		}
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+	"strings"
 
 	"probity/plan/record"
 )
@@ -146,13 +147,17 @@ func diffValue(path string, a, b any, out *[]string) {
 	}
 }
 
-// brief prints a JSON value for a difference message, shortened.
+// brief prints a JSON value for a difference message, shortened, as the
+// record reads: without the escapes encoding/json adds for HTML (<, >, &).
 func brief(v any) string {
 	if o, ok := v.(*object); ok {
 		return fmt.Sprintf("an object of %d fields", len(o.keys))
 	}
-	data, _ := json.Marshal(v)
-	r := []rune(string(data))
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	enc.Encode(v)
+	r := []rune(strings.TrimSuffix(buf.String(), "\n"))
 	if len(r) > 60 {
 		return string(r[:57]) + "…"
 	}

@@ -67,6 +67,25 @@ func TestDiff(t *testing.T) {
 	}
 }
 
+// A difference quotes the record's text as it reads, never with JSON's
+// escapes (issue 16 item 14: "defect_score\u003e=0.35").
+func TestDiffShowsNoJSONEscapes(t *testing.T) {
+	a := &record.Record{Format: record.Format, RecordID: "x", Candidates: []record.Candidate{{Name: "score>=0.5", Reason: "3 errors <= c & more"}}}
+	b := *a
+	b.Candidates = []record.Candidate{{Name: "score>=0.6", Reason: "4 errors > c"}}
+	d, err := Diff(a, &b)
+	if err != nil || len(d) != 2 {
+		t.Fatalf("%q %v", d, err)
+	}
+	want := []string{`candidates[0].name: "score>=0.5" in the record, "score>=0.6" recomputed`,
+		`candidates[0].reason: "3 errors <= c & more" in the record, "4 errors > c" recomputed`}
+	for i := range want {
+		if d[i] != want[i] {
+			t.Errorf("got  %s\nwant %s", d[i], want[i])
+		}
+	}
+}
+
 // TestNothingBelowTheCommandImportsVerification: the verification calls
 // pdfreport, plan, plan/record and sampling; none of them, nor any other
 // package but the command, may depend on it.

@@ -2,4 +2,4 @@ probity-signature-v1
 algorithm: ed25519
 public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
 key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
-file: record.json a860b5bcf79060031411bf02bf3b688711e38759f484995f976274b0516055fe 1nrpU9VENPF89q7wP68wOMhzMLzrhslEFh4jSChkp9eex4KNwbuUFEX4VOwzmdLz6swkOvwv5Q+NcyVFaqz8Cg==
+file: record.json 7879d5acfbea81a2fa8c9c93db4ee521769cf6e89ba87d9a57b609b7b9db12cf /5T4luMr/AQcMDJDxjcdurlj1J8c8DtYHo9BG5wRGLj4v4U9ghLerIw8z1m+qlAw9kpZcOqpTMN3mrVP3tt/Bg==
