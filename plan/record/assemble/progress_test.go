@@ -86,6 +86,22 @@ func TestProgressStopsAreNeverReversed(t *testing.T) {
 					rows[i].Label = drawfolder.Unsure
 				}
 			}
+			// sometimes the spares are labeled too, so progress judges the
+			// spare that replaces an unsure item (under the count rule the
+			// record judges it after its stratum's sample items)
+			if trial%4 == 3 && !s.seq {
+				top = sample
+				for i := range rows {
+					if c.Ledger[i].Spare {
+						rows[i].Label = randomLabel(rng, c.Ledger[i].Predictions[0], errRate)
+					} else if rows[i].Label == "" {
+						rows[i].Label = randomLabel(rng, c.Ledger[i].Predictions[0], errRate)
+						if rng.IntN(25) == 0 {
+							rows[i].Label = drawfolder.Unsure
+						}
+					}
+				}
+			}
 			res, err := progress.Assess(progress.Input{Plan: p.plan, Ledger: c.Ledger, Worksheet: rows, WorksheetName: "labels.csv",
 				Strata: c.Manifest.Strata, Rates: c.Manifest.AnticipatedRates()})
 			if err != nil {
