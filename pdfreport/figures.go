@@ -7,6 +7,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/numfmt"
+	"probity/plan/record"
 )
 
 // verdictWord is a verdict for running text ("no verdict" when empty).
@@ -33,6 +34,12 @@ func (d *doc) ocSection(c *content) {
 		"per-candidate rule (" + rule + "). " +
 		"At the ceiling (red dashed line) its height is the consumer's risk, the chance of accepting a candidate " +
 		"that is exactly at the ceiling."
+	if r := c.rec.Method.Rule; r != nil && r.Name == record.RuleStratifiedCount {
+		caption = "The curve gives, for each true error rate, the probability that a candidate is accepted by the " +
+			"stratified count rule applied to this draw (at most " + itoa(r.AcceptanceNumber) + " errors among the " +
+			itoa(r.CountedSize) + " counted items) when every stratum has that error rate. Errors spread otherwise " +
+			"change the curve; at the ceiling the red dot bounds the chance of acceptance for every spread (the consumer's risk)."
+	}
 	if p.Anticipated != nil {
 		caption += " The green dotted line marks the anticipated error; one minus the curve's height there (green dot) is the producer's risk."
 	}

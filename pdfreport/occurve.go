@@ -92,9 +92,14 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 	curve.Color = plotCurve
 	curve.Width = vg.Points(1.8)
 	p.Add(curve)
-	if rec.Plan.Design == plan.DesignSequential {
+	consumer, consumerWord, producer := rec.Plan.ConsumerRisk, "consumer's risk ", rec.Plan.ProducerRisk
+	switch r := rec.Method.Rule; {
+	case rec.Plan.Design == plan.DesignSequential:
 		leg.Add(fmt.Sprintf("OC curve, sequential, n ≤ %d", rec.Plan.SampleSize), curve)
-	} else {
+	case r != nil && r.Name == record.RuleStratifiedCount:
+		leg.Add(fmt.Sprintf("OC curve, count rule, c = %d", r.AcceptanceNumber), curve)
+		consumer, consumerWord, producer = r.ConsumerRiskBound, "consumer's risk ≤ ", r.ProducerRisk
+	default:
 		leg.Add(fmt.Sprintf("OC curve, n = %d, c = %d", rec.Plan.SampleSize, rec.Plan.AcceptanceNumber), curve)
 	}
 
@@ -105,14 +110,14 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 	p.Add(ceilLine)
 	leg.Add("ceiling "+numfmt.Setting(rec.Plan.Ceiling), ceilLine)
 
-	if rec.Plan.ConsumerRisk > 0 {
-		risk, err := plotter.NewScatter(plotter.XYs{{X: ceil, Y: rec.Plan.ConsumerRisk}})
+	if consumer > 0 {
+		risk, err := plotter.NewScatter(plotter.XYs{{X: ceil, Y: consumer}})
 		if err != nil {
 			return nil, err
 		}
 		risk.GlyphStyle = draw.GlyphStyle{Color: plotCeiling, Radius: vg.Points(3.5), Shape: draw.CircleGlyph{}}
 		p.Add(risk)
-		leg.Add("consumer's risk "+numfmt.Chance(rec.Plan.ConsumerRisk), risk)
+		leg.Add(consumerWord+numfmt.Chance(consumer), risk)
 	}
 	if a := rec.Plan.Anticipated; a != nil {
 		line, err := vline(100**a, plotAnticip, []vg.Length{vg.Points(2), vg.Points(2)})
@@ -121,7 +126,7 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 		}
 		p.Add(line)
 		leg.Add("anticipated error "+numfmt.Setting(*a), line)
-		if pr := rec.Plan.ProducerRisk; pr != nil {
+		if pr := producer; pr != nil {
 			// The curve's height at p0 is 1 − producer's risk.
 			pt, err := plotter.NewScatter(plotter.XYs{{X: 100 * *a, Y: 1 - *pr}})
 			if err != nil {

@@ -48,10 +48,20 @@ func (d *doc) planInfo(c *content) {
 	)
 	if p.Design != plan.DesignSequential {
 		use := " (accept when errors ≤ c)"
-		if f.Weighted {
+		if f.CountRule {
+			use = " (for a simple random sample; this draw is judged by the stratified count rule below)"
+		} else if f.Weighted {
 			use = " (for a self-weighting sample; this one is weighted, so the bound decides)"
 		}
 		rows = append(rows, kv("Acceptance number c", itoa(p.AcceptanceNumber)+use))
+	}
+	if r := c.rec.Method.Rule; r != nil && r.Name == record.RuleStratifiedCount {
+		rows = append(rows,
+			kv("Rule applied to this draw", "stratified count rule: accept when at most "+itoa(r.AcceptanceNumber)+" of the "+itoa(r.CountedSize)+" counted items are errors"),
+			kv("Its consumer's risk", "at most "+numfmt.Chance(r.ConsumerRiskBound)+" for a candidate at the ceiling, wherever its errors sit"))
+		if r.ProducerRisk != nil {
+			rows = append(rows, kv("Its producer's risk", numfmt.Chance(*r.ProducerRisk)+" at "+r.AnticipatedFrom))
+		}
 	}
 	atCeiling := "P(accept | error = ceiling) = "
 	if p.Population > 0 {

@@ -13,6 +13,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/planfile"
+	"probity/plan/sequential"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
@@ -51,7 +52,9 @@ func TestDrawThenCheck(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	for _, want := range []string{"drew 581 items and 24 spares from 6000 rows in scope (6000 read) in 12 strata", "doubled: items 1–30 also in worksheet-second.csv", "east|app"} {
+	// 12 strata, shares rounded up: 6 items beyond the plan's 581.
+	for _, want := range []string{"drew 587 items and 24 spares from 6000 rows in scope (6000 read) in 12 strata", "doubled: items 1–30 also in worksheet-second.csv", "east|app",
+		"allocation note: proportional shares rounded up: 587 items where the plan asks for 581", "verdict: the stratified count rule"} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("stdout lacks %q:\n%s", want, stdout)
 		}
@@ -324,5 +327,70 @@ func TestDrawNeymanAnticipated(t *testing.T) {
 	}
 	if _, err := os.Stat(out2); !os.IsNotExist(err) {
 		t.Fatal("output left behind")
+	}
+}
+
+// Issue 13: before any label, draw says which rule will judge the sample,
+// warns of strata left without an item (they count as unknown), and
+// refuses to draw a sequential plan with strata.
+func TestDrawStatesTheRuleBeforeLabeling(t *testing.T) {
+	dir := t.TempDir()
+	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 6000, Seed: 4})
+	// largest remainder, no minimum, and score bands thin enough to get no item
+	out := filepath.Join(dir, "gaps")
+	code, stdout, stderr := runDrawCmd(t, nil, "--plan", drawPlan, "--log", log, "--out", out, "--strata", "region,channel",
+		"--band", "score=0.001,0.002,0.003", "--rounding", "largest-remainder", "--min-per-stratum", "0")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	for _, want := range []string{"got no item", "counts all of", "verdict: the stratified count rule", "consumer's risk: at most", "producer's risk:"} {
+		if !strings.Contains(stdout, want) {
+			t.Errorf("stdout lacks %q:\n%s", want, stdout)
+		}
+	}
+	m, _, err := drawfolder.ReadManifest(filepath.Join(out, drawfolder.ManifestFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m.Allocation.Rounding != sampling.RoundLargestRemainder || m.Allocation.MinPerStratum != 0 || !strings.Contains(m.Allocation.Note, "with no item") {
+		t.Errorf("manifest allocation %+v", m.Allocation)
+	}
+	// the default: every stratum gets an item
+	out = filepath.Join(dir, "default")
+	code, stdout, stderr = runDrawCmd(t, nil, "--plan", drawPlan, "--log", log, "--out", out, "--strata", "region,channel", "--band", "score=0.001,0.002,0.003")
+	if code != exitOK || strings.Contains(stdout, "got no item") || !strings.Contains(stdout, "proportional shares rounded up") {
+		t.Errorf("default draw: exit %d\n%s%s", code, stdout, stderr)
+	}
+
+	// a sequential plan with strata is refused, before the log is read
+	p, _, err := planfile.Load(drawPlan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	in := p.Inputs
+	in.Design = plan.DesignSequential
+	seq, err := plan.Build(in, plan.Meta{ToolVersion: p.ToolVersion, Created: p.Created, CreatedFrom: p.CreatedFrom, Seed: p.Seed,
+		Classes: p.Classes, Candidates: p.Candidates})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := sequential.Apply(seq, 0); err != nil {
+		t.Fatal(err)
+	}
+	data, err := seq.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	seqPlan := filepath.Join(dir, "seq.yaml")
+	if err := os.WriteFile(seqPlan, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out = filepath.Join(dir, "seq")
+	code, _, stderr = runDrawCmd(t, nil, "--plan", seqPlan, "--log", log, "--out", out, "--strata", "region")
+	if code != exitBadInput || !strings.Contains(stderr, "a sequential plan cannot be drawn with --strata or --band") || !strings.Contains(stderr, "hint:") {
+		t.Errorf("sequential with strata: exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("a refused draw left %s behind", out)
 	}
 }

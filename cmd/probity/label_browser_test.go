@@ -84,8 +84,9 @@ func labelSecondInBrowser(ctx context.Context, t *testing.T, fx *browserFixture,
 }
 
 // newBrowserFixture plans (ceiling 0.15, confidence 0.90: a sample of a
-// few dozen) and draws with one spare per stratum; every scan is a real
-// PNG in the media folder.
+// few dozen) and draws as the command does by default (shares rounded up:
+// 8 of each yard's 200, exactly proportional, so the plan's c judges it)
+// with one spare per stratum; every scan is a real PNG in the media folder.
 func newBrowserFixture(t *testing.T) *browserFixture {
 	t.Helper()
 	fx := &recFixture{dir: t.TempDir(), truth: map[string]string{}, show: []string{"scan", "remark"}}
@@ -133,7 +134,7 @@ func newBrowserFixture(t *testing.T) *browserFixture {
 	defer log.Close()
 	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: "log.csv", Log: log,
 		Format: "csv", IDColumn: "record_id", StrataColumns: []string{"yard"}, Show: fx.show,
-		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 1}, Double: 3, ToolVersion: "test"})
+		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Rounding: sampling.RoundUp, MinPerStratum: 1, MinIfRoom: true, Spare: 1}, Double: 3, ToolVersion: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -46,7 +46,7 @@ func newRecFixture(t *testing.T, both bool, minPer int) *recFixture {
 }
 
 // buildRecFixture is newRecFixture; with seq the plan is sequential
-// (sequential.Apply on the same inputs).
+// (sequential.Apply on the same inputs) and the draw has one stratum.
 func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture {
 	t.Helper()
 	fx := &recFixture{dir: t.TempDir(), truth: map[string]string{}, show: []string{"parcel"}}
@@ -109,9 +109,13 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 		t.Fatal(err)
 	}
 	defer log.Close()
+	strata := []string{"depot"}
+	if seq {
+		strata = nil // a sequential plan needs one stratum
+	}
 	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: "log.csv", Log: log,
-		Format: "csv", IDColumn: "record_id", StrataColumns: []string{"depot"}, Show: fx.show,
-		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 2, MinPerStratum: minPer}, ToolVersion: "test"})
+		Format: "csv", IDColumn: "record_id", StrataColumns: strata, Show: fx.show,
+		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 2, MinPerStratum: minPer, Rounding: sampling.RoundUp}, ToolVersion: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}

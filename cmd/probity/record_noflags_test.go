@@ -19,7 +19,7 @@ var flagSpelling = regexp.MustCompile(`(^|[^-\w])--[a-z][a-z-]*`)
 // never spell a command-line flag, in every deviation and label-quality
 // state the fixtures reach: complete labels, spares used, unlabeled and
 // unsure items counted as errors, a sequential prefix with an unsure item,
-// unequal weights under both bounds, adjudicated and unadjudicated
+// unequal weights under the stratified count rule, adjudicated and unadjudicated
 // disagreements, unsure double labels, the same labeler twice (a warning)
 // and enforced labeler independence, a planned second labeling not done. The flags belong to the command line;
 // the signed artifacts speak of what was decided.
@@ -63,10 +63,8 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 		})), "--allow-incomplete", "--use", "safety"), accepted},
 	)
 	weighted := newRecFixture(t, false, 40)
-	for _, bound := range []string{"korn-graubard", "weighted-hoeffding"} {
-		runs = append(runs, run{"unequal weights " + bound, []string{"record", "--plan", weighted.planPath, "--draw", weighted.draw,
-			"--labels", weighted.labels(t, "w-"+bound+".csv", nil), "--bound", bound, "--date", "2026-12-01"}, accepted})
-	}
+	runs = append(runs, run{"unequal weights", []string{"record", "--plan", weighted.planPath, "--draw", weighted.draw,
+		"--labels", weighted.labels(t, "w.csv", nil), "--date", "2026-12-01"}, accepted})
 	seq := buildRecFixture(t, false, 0, true)
 	runs = append(runs, run{"sequential prefix", []string{"record", "--plan", seq.planPath, "--draw", seq.draw,
 		"--labels", seq.labels(t, "seq.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {

@@ -42,7 +42,7 @@ func TestRecordAcceptedExitsZero(t *testing.T) {
 		t.Errorf("record folder holds %s", got)
 	}
 	r := readRecord(t, out)
-	if r.OverallVerdict != record.Accept || r.Date != "2026-12-01" || r.System != "Parcel sorter" || len(r.Strata) != 3 || len(r.OC) == 0 || r.Method.Bound != plan.BoundClopperPearson {
+	if r.OverallVerdict != record.Accept || r.Date != "2026-12-01" || r.System != "Parcel sorter" || len(r.Strata) != 3 || len(r.OC) == 0 || r.Method.Bound != plan.BoundStratifiedCount {
 		t.Errorf("record: %+v", r)
 	}
 	if id, _ := record.ID(r); r.Fingerprints.Labels != record.SHA256(mustRead(t, labels)) || r.RecordID != id {
@@ -214,19 +214,35 @@ func TestRecordAllowIncompleteCountsErrors(t *testing.T) {
 	}
 }
 
+// TestRecordUnequalWeights: a draw with a minimum per stratum is judged by
+// the stratified count rule, which the record names with its reason,
+// sources and counted items; --bound, once the choice of a bound for
+// unequal weights, is refused with a sentence saying why.
 func TestRecordUnequalWeights(t *testing.T) {
 	fx := newRecFixture(t, false, 20)
 	labels := fx.labels(t, "labels.csv", nil)
-	for _, c := range []struct{ flag, bound string }{{"korn-graubard", "korn-graubard (approximate)"}, {"weighted-hoeffding", "weighted-hoeffding"}} {
-		out := filepath.Join(fx.dir, "rec-"+c.flag)
-		code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", out, "--bound", c.flag)
-		if code != exitOK && code != exitRejected {
-			t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
-		}
-		r := readRecord(t, out)
-		if r.Method.Bound.String() != c.bound || r.Method.Approximate != (c.flag == "korn-graubard") || !strings.Contains(r.Method.Statement, "N_h/N") {
-			t.Errorf("%s: method %+v", c.flag, r.Method)
-		}
+	out := filepath.Join(fx.dir, "rec")
+	code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", out)
+	if code != exitOK && code != exitRejected {
+		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
+	}
+	r := readRecord(t, out)
+	rule := r.Method.Rule
+	if r.Method.Bound != plan.BoundStratifiedCount || r.Method.Approximate || rule == nil || rule.Name != record.RuleStratifiedCount ||
+		!strings.Contains(r.Method.Statement, "N_h/N") || !strings.Contains(rule.Reason, "keeps the risk whatever the allocation") || len(rule.Sources) != 3 {
+		t.Fatalf("method %+v, rule %+v", r.Method, rule)
+	}
+	counted := 0
+	for _, s := range rule.Strata {
+		counted += s.Counted
+	}
+	c := r.Candidates[0]
+	if counted != rule.CountedSize || c.CountedErrors == nil || c.KornGraubardUpper == nil || !strings.Contains(c.Reason, "counted items") {
+		t.Errorf("rule %+v, candidate %+v", rule, c)
+	}
+	code, _, stderr = runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", filepath.Join(fx.dir, "rec2"), "--bound", "weighted-hoeffding")
+	if code != exitBadInput || !strings.Contains(stderr, "--bound is no longer an option") {
+		t.Errorf("--bound: exit %d: %s", code, stderr)
 	}
 }
 

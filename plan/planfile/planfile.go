@@ -5,8 +5,9 @@
 // Parse decodes the one YAML document (plan.Decode: known keys only, the
 // right types, each error located by line and field), checks the
 // structure, recomputes the rule, the risks and the comparison from the
-// inputs (plan.File.Check) and verifies any sequential boundaries
-// (sequential.Check). An edited plan — a sample size, an acceptance
+// inputs (plan.File.Check), verifies any sequential boundaries
+// (sequential.Check) and, for a plan sized for a stratified design, its
+// count rule on the planned strata (verdict.CheckStratification). An edited plan — a sample size, an acceptance
 // number, a ceiling or a risk changed by hand, a class repeated, a
 // threshold that is not a number, a design without its section — is an
 // input error naming the file, the line and the field; no plan file
@@ -20,6 +21,7 @@ import (
 	"probity/plan/inputerr"
 	"probity/plan/inputfile"
 	"probity/plan/sequential"
+	"probity/plan/verdict"
 )
 
 // Parse decodes and checks a plan file's bytes; name is the file as the
@@ -33,6 +35,9 @@ func Parse(data []byte, name string) (*plan.File, error) {
 		return nil, err
 	}
 	if err := sequential.Check(f, src); err != nil {
+		return nil, err
+	}
+	if err := verdict.CheckStratification(f, src); err != nil {
 		return nil, err
 	}
 	return f, nil

@@ -220,7 +220,7 @@ func (res *Result) judgeable(p *plan.File, f *drawfolder.Folder, l *drawfolder.L
 
 func (res *Result) add(row int, lr drawfolder.LedgerRow, label string, h int, missing bool) {
 	res.order = append(res.order, row)
-	res.Items = append(res.Items, verdict.Item{RecordID: lr.RecordID, Stratum: h, Label: label, Missing: missing,
+	res.Items = append(res.Items, verdict.Item{RecordID: lr.RecordID, Item: lr.Item, Stratum: h, Label: label, Missing: missing,
 		Predictions: append([]string(nil), lr.Predictions...)})
 }
 
