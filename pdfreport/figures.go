@@ -1,11 +1,22 @@
 package pdfreport
 
 import (
+	"strings"
+
 	"github.com/jung-kurt/gofpdf"
 
 	"probity/plan"
+	"probity/plan/numfmt"
 	"probity/plan/record"
 )
+
+// verdictWord is a verdict for running text ("no verdict" when empty).
+func verdictWord(v string) string {
+	if v == "" {
+		return "no verdict"
+	}
+	return v
+}
 
 // ocSection embeds the OC figure with its caption, kept on one page.
 func (d *doc) ocSection(c *content) {
@@ -32,8 +43,14 @@ func (d *doc) ocSection(c *content) {
 	if p.Anticipated != nil {
 		caption += " The green dotted line marks the anticipated error; one minus the curve's height there (green dot) is the producer's risk."
 	}
-	if len(c.rec.Candidates) > 0 {
-		caption += " Triangles on the axis mark each candidate's observed estimate."
+	if marks := estimateMarks(c.rec); len(marks) > 0 {
+		var keys []string
+		for _, m := range marks {
+			cand := c.rec.Candidates[m.number-1]
+			keys = append(keys, itoa(m.number)+" = "+cand.Name+" ("+numfmt.Rate(cand.Estimate)+", "+verdictWord(cand.Verdict)+")")
+		}
+		caption += " The numbered triangles in the strip under the axis are the candidates' observed estimates (errors / " +
+			"labeled), observations on the same scale, not true error rates: " + strings.Join(keys, "; ") + "."
 	}
 	w := d.contentW()
 	h := w * ocHeightMM / ocWidthMM

@@ -174,6 +174,8 @@ func newContent(rec *record.Record, tpl *templates.Set) (*content, error) {
 type output struct {
 	bytes []byte
 	pages int
+	// placed is where each table row went.
+	placed []placement
 }
 
 // layout runs one pass.
@@ -226,13 +228,13 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 	pages := pdf.PageNo()
 	if total == 0 {
 		// The counting pass needs the layout only, not the file.
-		return output{pages: pages}, nil
+		return output{pages: pages, placed: d.placed}, nil
 	}
 	var buf bytes.Buffer
 	if err := pdf.Output(&buf); err != nil {
 		return output{}, fmt.Errorf("writing the PDF: %w", err)
 	}
-	return output{bytes: buf.Bytes(), pages: pages}, nil
+	return output{bytes: buf.Bytes(), pages: pages, placed: d.placed}, nil
 }
 
 // pageHeader prints the running head on every page after the first.

@@ -96,12 +96,17 @@ func TestTextHasVerdictsBoundsAndCautions(t *testing.T) {
 			pdf := render(t, rec, Options{Paper: "a4"})
 			text := flat(pdfText(t, pdf))
 			layout := strings.Split(pdfText(t, pdf, "-layout"), "\n")
-			for _, c := range rec.Candidates {
-				// The summary row: name, bound, verdict and reason on one line.
+			for i, c := range rec.Candidates {
+				// The summary: the name on its own line, whole, and the
+				// bound, verdict and reason on the next line.
 				row := false
-				for _, l := range layout {
-					if strings.Contains(l, c.Name) && strings.Contains(l, numfmt.RateUp(c.UpperBound)) &&
-						strings.Contains(l, c.Verdict) && strings.Contains(l, c.Reason) {
+				for j, l := range layout[:len(layout)-2] {
+					next := layout[j+1]
+					if strings.TrimSpace(next) == "" {
+						next = layout[j+2]
+					}
+					if strings.Contains(l, "Candidate "+strconv.Itoa(i+1)+": "+c.Name) && strings.Contains(next, numfmt.RateUp(c.UpperBound)) &&
+						strings.Contains(next, c.Verdict) && strings.Contains(next, c.Reason) {
 						row = true
 					}
 				}
