@@ -73,7 +73,7 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 				f.UnknownStrata++
 			}
 		}
-		f.ConsumerRisk, f.CountRiskBound = "", numfmt.Chance(r.ConsumerRiskBound)
+		f.ConsumerRisk, f.CountRiskBound = "", numfmt.ChanceUp(r.ConsumerRiskBound)
 		if r.ProducerRisk != nil {
 			f.ProducerRisk, f.AnticipatedFrom = numfmt.Chance(*r.ProducerRisk), r.AnticipatedFrom
 		}

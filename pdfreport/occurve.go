@@ -117,7 +117,11 @@ func ocFigure(rec *record.Record) ([]byte, error) {
 		}
 		risk.GlyphStyle = draw.GlyphStyle{Color: plotCeiling, Radius: vg.Points(3.5), Shape: draw.CircleGlyph{}}
 		p.Add(risk)
-		leg.Add(consumerWord+numfmt.Chance(consumer), risk)
+		written := numfmt.Chance(consumer)
+		if consumerWord != "consumer's risk " {
+			written = numfmt.ChanceUp(consumer) // an "at most" is never printed below its value
+		}
+		leg.Add(consumerWord+written, risk)
 	}
 	if a := rec.Plan.Anticipated; a != nil {
 		line, err := vline(100**a, plotAnticip, []vg.Length{vg.Points(2), vg.Points(2)})

@@ -58,7 +58,7 @@ func (d *doc) planInfo(c *content) {
 	if r := c.rec.Method.Rule; r != nil && r.Name == record.RuleStratifiedCount {
 		rows = append(rows,
 			kv("Rule applied to this draw", "stratified count rule: accept when at most "+itoa(r.AcceptanceNumber)+" of the "+itoa(r.CountedSize)+" counted items are errors"),
-			kv("Its consumer's risk", "at most "+numfmt.Chance(r.ConsumerRiskBound)+" for a candidate at the ceiling, wherever its errors sit"))
+			kv("Its consumer's risk", "at most "+numfmt.ChanceUp(r.ConsumerRiskBound)+" for a candidate at the ceiling, wherever its errors sit"))
 		if r.ProducerRisk != nil {
 			rows = append(rows, kv("Its producer's risk", numfmt.Chance(*r.ProducerRisk)+" at "+r.AnticipatedFrom))
 		}

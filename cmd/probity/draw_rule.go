@@ -53,7 +53,7 @@ func writeDrawRule(w io.Writer, p *plan.File, m *drawfolder.Manifest) error {
 			c.Accept, c.CountedSize(), p.Rule.AcceptanceNumber, p.Rule.SampleSize)
 	}
 	fmt.Fprintf(w, "  consumer's risk: at most %s for a candidate at the ceiling, wherever its errors sit (allowed %s)\n",
-		numfmt.Chance(c.ConsumerRiskBound()), numfmt.Chance(p.Rule.PerCandidateRisk))
+		numfmt.ChanceUp(c.ConsumerRiskBound()), numfmt.Chance(p.Rule.PerCandidateRisk))
 	planPR := ""
 	if pr := p.Rule.ProducerRisk; pr != nil {
 		planPR = fmt.Sprintf("; the plan states %s for a simple random sample", numfmt.Chance(*pr))

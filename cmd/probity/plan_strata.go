@@ -272,7 +272,7 @@ func writeStrataReport(w io.Writer, f *plan.File, o *planStrataOptions) {
 	for h, s := range st.Strata {
 		fmt.Fprintf(w, "  %-16s %10d %7d %8d  %s\n", s.Label, s.Population, st.Sample[h], st.Counted[h], numfmt.Setting(s.Anticipated))
 	}
-	fmt.Fprintf(w, "  accept a candidate with at most %d errors among the %d counted items; the consumer's risk is at most %s\n", a.Count.Accept, a.Count.CountedSize(), numfmt.Chance(a.Count.ConsumerRiskBound()))
+	fmt.Fprintf(w, "  accept a candidate with at most %d errors among the %d counted items; the consumer's risk is at most %s\n", a.Count.Accept, a.Count.CountedSize(), numfmt.ChanceUp(a.Count.ConsumerRiskBound()))
 	fmt.Fprintf(w, "  wherever the errors sit (Hoeffding 1956 at the least favourable spread), and a stratum left without an item counts as unknown.\n")
 	if f.Rule.ProducerRisk != nil {
 		fmt.Fprintf(w, "  producer's risk %s at the anticipated errors (allowed %s); a simple random sample would need %d labels.\n", numfmt.Chance(*f.Rule.ProducerRisk), numfmt.Chance(f.Inputs.ProducerRisk), st.SimpleRandomSampleSize)

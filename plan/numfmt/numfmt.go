@@ -158,6 +158,29 @@ func Chance(p float64) string {
 	return strconv.FormatFloat(r, 'f', -1, 64) + " %"
 }
 
+// ChanceUp writes a risk stated as "at most" as Chance does, rounded up
+// at the fourth significant figure so the printed bound is never below
+// the computed one: ChanceUp(0.0165012) = "1.651 %", ChanceUp(0.0165) =
+// "1.65 %" (float noise below 1e-9 relative is not rounded up).
+func ChanceUp(p float64) string {
+	if bad(p) || p <= 0 || 100*p < 1e-4 {
+		return Chance(p)
+	}
+	v := 100 * p
+	scale := math.Pow(10, 3-math.Floor(math.Log10(v)))
+	u := v * scale
+	if r := math.Round(u); math.Abs(u-r) <= noise*math.Max(1, u) {
+		u = r
+	} else {
+		u = math.Ceil(u)
+	}
+	r, _ := strconv.ParseFloat(strconv.FormatFloat(u/scale, 'g', 4, 64), 64)
+	if r >= 100 && p < 1 {
+		return "over 99.99 %"
+	}
+	return strconv.FormatFloat(r, 'f', -1, 64) + " %"
+}
+
 // PValue writes a p-value with four significant figures, plain down to
 // 0.0001 and with an exponent below: PValue(0.0482912) = "0.04829",
 // PValue(0.0844) = "0.08440", PValue(3.2e-7) = "3.200e-7".
