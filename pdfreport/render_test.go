@@ -3,7 +3,6 @@ package pdfreport
 import (
 	"bytes"
 	"errors"
-	"flag"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -12,28 +11,14 @@ import (
 	"strings"
 	"testing"
 
+	"probity/internal/golden"
+	"probity/internal/needs"
 	"probity/plan"
 	"probity/plan/record"
 	"probity/templates"
 )
 
-var update = flag.Bool("update", false, "rewrite the golden files in testdata/pdfreport")
-
 const goldenDir = "../testdata/pdfreport"
-
-// tool returns the path of a poppler-utils program, failing under CI and
-// skipping elsewhere when it is missing.
-func tool(t *testing.T, name string) string {
-	t.Helper()
-	path, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s (poppler-utils) is required under CI: %v", name, err)
-		}
-		t.Skipf("%s (poppler-utils) not installed", name)
-	}
-	return path
-}
 
 func render(t *testing.T, rec *record.Record, opts Options) []byte {
 	t.Helper()
@@ -47,7 +32,7 @@ func render(t *testing.T, rec *record.Record, opts Options) []byte {
 // pdfText extracts the text of a PDF with pdftotext.
 func pdfText(t *testing.T, pdf []byte, args ...string) string {
 	t.Helper()
-	bin := tool(t, "pdftotext")
+	bin := needs.Program(t, "pdftotext")
 	in := filepath.Join(t.TempDir(), "r.pdf")
 	if err := os.WriteFile(in, pdf, 0o644); err != nil {
 		t.Fatal(err)
@@ -70,7 +55,7 @@ func flat(s string) string { return strings.TrimSpace(spaces.ReplaceAllString(s,
 // pageCount reads the page count with pdfinfo.
 func pageCount(t *testing.T, pdf []byte) int {
 	t.Helper()
-	bin := tool(t, "pdfinfo")
+	bin := needs.Program(t, "pdfinfo")
 	in := filepath.Join(t.TempDir(), "r.pdf")
 	if err := os.WriteFile(in, pdf, 0o644); err != nil {
 		t.Fatal(err)
@@ -164,7 +149,7 @@ func TestEveryPageCarriesRecordIDAndPageNumber(t *testing.T) {
 }
 
 func TestPdftoppmRendersEveryPage(t *testing.T) {
-	bin := tool(t, "pdftoppm")
+	bin := needs.Program(t, "pdftoppm")
 	for _, tc := range []struct {
 		name string
 		rec  *record.Record
@@ -241,29 +226,6 @@ func TestSameInputsGiveSameBytes(t *testing.T) {
 	}
 }
 
-// golden compares got with a golden file, rewriting it under -update.
-func golden(t *testing.T, name string, got []byte) {
-	t.Helper()
-	path := filepath.Join(goldenDir, name)
-	if *update {
-		if err := os.MkdirAll(goldenDir, 0o755); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(path, got, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return
-	}
-	want, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatalf("%v (run go test ./pdfreport -update to create it)", err)
-	}
-	if !bytes.Equal(got, want) {
-		t.Errorf("%s differs from the golden file (%d bytes, golden %d); inspect it and rerun with -update if the change is intended",
-			name, len(got), len(want))
-	}
-}
-
 func TestGoldenPDFAndText(t *testing.T) {
 	for _, tc := range []struct {
 		name string
@@ -275,8 +237,8 @@ func TestGoldenPDFAndText(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			pdf := render(t, fixtureRecord(tc.use), tc.opts)
-			golden(t, tc.name+".txt", []byte(pdfText(t, pdf, "-layout")))
-			golden(t, tc.name+".pdf", pdf)
+			golden.CompareString(t, filepath.Join(goldenDir, tc.name+".txt"), pdfText(t, pdf, "-layout"))
+			golden.Compare(t, filepath.Join(goldenDir, tc.name+".pdf"), pdf)
 		})
 	}
 }
@@ -462,7 +424,7 @@ func TestNoHeadingEndsAPage(t *testing.T) {
 }
 
 func TestPaperAndMetadata(t *testing.T) {
-	bin := tool(t, "pdfinfo")
+	bin := needs.Program(t, "pdfinfo")
 	for _, tc := range []struct{ paper, want string }{{"a4", "(A4)"}, {"LETTER", "(letter)"}, {"", "(A4)"}} {
 		rec := fixtureRecord("general")
 		in := filepath.Join(t.TempDir(), "r.pdf")

@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"flag"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -11,6 +10,7 @@ import (
 	"testing"
 	"time"
 
+	"probity/internal/golden"
 	"probity/plan"
 	"probity/plan/progress"
 	"probity/plan/sequential"
@@ -283,29 +283,11 @@ func TestProgressBadInput(t *testing.T) {
 	}
 }
 
-var updateProgress = flag.Bool("update-progress", false, "rewrite testdata/progress golden files from the current output")
-
 // progressGolden compares got with testdata/progress/NAME (rewritten with
-// -update-progress).
+// -update).
 func progressGolden(t *testing.T, name, got string) {
 	t.Helper()
-	path := filepath.Join("..", "..", "testdata", "progress", name)
-	if *updateProgress {
-		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return
-	}
-	want, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatalf("%v (run go test ./cmd/probity -run ProgressGolden -update-progress)", err)
-	}
-	if got != string(want) {
-		t.Errorf("output differs from %s (run with -update-progress to accept):\n--- got\n%s\n--- want\n%s", path, got, want)
-	}
+	golden.CompareString(t, filepath.Join("..", "..", "testdata", "progress", name), got)
 }
 
 // Golden outputs for a fixed and a sequential plan, human and --json

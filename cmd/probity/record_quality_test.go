@@ -11,6 +11,7 @@ import (
 	"testing"
 	"time"
 
+	"probity/internal/needs"
 	"probity/plan"
 	"probity/plan/record"
 	"probity/sampling"
@@ -252,14 +253,7 @@ func TestRecordAdjudicationOverridesTheFirstLabel(t *testing.T) {
 	}
 	// record.pdf carries the Label quality section (text by pdftotext,
 	// poppler-utils).
-	tool, err := exec.LookPath("pdftotext")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("pdftotext is missing under CI")
-		}
-		t.Skip("pdftotext not installed")
-	}
-	txt, err := exec.Command(tool, filepath.Join(dir, "record.pdf"), "-").Output()
+	txt, err := exec.Command(needs.Program(t, "pdftotext"), filepath.Join(dir, "record.pdf"), "-").Output()
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
-	"flag"
 	"fmt"
 	"image/png"
 	"os"
@@ -14,12 +13,12 @@ import (
 	"testing"
 	"time"
 
+	"probity/internal/golden"
+	"probity/internal/needs"
 	"probity/plan"
 	"probity/plan/record"
 	trendpkg "probity/plan/trend"
 )
-
-var updateTrend = flag.Bool("update-trend", false, "rewrite testdata/trend/golden from the current output")
 
 // trendMonthly is the year of records the tests read (written by
 // go test ./plan/trend -run TestMonthlyFixtures -update).
@@ -46,26 +45,10 @@ func trendRun(t *testing.T, args ...string) (string, string, int) {
 func trendMonth(m string) string { return filepath.Join(trendMonthly, m, "record.json") }
 
 // trendGolden compares got with testdata/trend/golden/name (or rewrites it
-// with -update-trend).
+// with -update).
 func trendGolden(t *testing.T, name, got string) {
 	t.Helper()
-	path := filepath.Join("../../testdata/trend/golden", name)
-	if *updateTrend {
-		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return
-	}
-	want, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatalf("%v (run go test ./cmd/probity -run Trend -update-trend)", err)
-	}
-	if got != string(want) {
-		t.Errorf("output differs from %s (run with -update-trend to accept):\n--- got\n%s\n--- want\n%s", path, got, want)
-	}
+	golden.CompareString(t, filepath.Join("../../testdata/trend/golden", name), got)
 }
 
 func TestTrendYearRejectsLatest(t *testing.T) {
@@ -112,8 +95,9 @@ func TestTrendYearRejectsLatest(t *testing.T) {
 	}
 	// And the bytes are the golden ones (pure-Go rasterising and a fixed
 	// date make them the same on every machine).
-	trendGolden(t, "year.pdf.sha256", record.SHA256(pdfData)+"\n")
-	trendGolden(t, "year.png.sha256", record.SHA256(pngData)+"\n")
+	// The images themselves are kept, so a reviewer can look at a change.
+	golden.Compare(t, "../../testdata/trend/golden/year.pdf", pdfData)
+	golden.Compare(t, "../../testdata/trend/golden/year.png", pngData)
 	entries, _ := os.ReadDir(dir)
 	if len(entries) != 4 {
 		t.Errorf("chart folder holds %d files, want the 2 PNGs and 2 PDFs (no temporary files)", len(entries))
@@ -123,15 +107,8 @@ func TestTrendYearRejectsLatest(t *testing.T) {
 
 // trendPDFText compares the PDF's extracted text with the golden text.
 func trendPDFText(t *testing.T, path string) {
-	tool, err := exec.LookPath("pdftotext")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("reference tool pdftotext (poppler-utils) is missing")
-		}
-		t.Log("pdftotext is missing: PDF text not checked")
-		return
-	}
-	txt, err := exec.Command(tool, "-layout", path, "-").Output()
+	t.Helper()
+	txt, err := exec.Command(needs.Program(t, "pdftotext"), "-layout", path, "-").Output()
 	if err != nil {
 		t.Fatalf("pdftotext: %v", err)
 	}

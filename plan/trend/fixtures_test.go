@@ -1,16 +1,12 @@
 package trend
 
 import (
-	"bytes"
-	"flag"
-	"os"
 	"path/filepath"
 	"testing"
 
+	"probity/internal/golden"
 	"probity/plan/record"
 )
-
-var update = flag.Bool("update", false, "rewrite testdata/trend/monthly from the scenario in records_test.go")
 
 // monthlyDir holds the year of records used by the command tests, the
 // chart tests and the README walkthrough: one folder per month, as
@@ -26,23 +22,7 @@ func TestMonthlyFixtures(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		path := filepath.Join(monthlyDir, r.Period, "record.json")
-		if *update {
-			if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-				t.Fatal(err)
-			}
-			if err := os.WriteFile(path, data, 0o644); err != nil {
-				t.Fatal(err)
-			}
-			continue
-		}
-		got, err := os.ReadFile(path)
-		if err != nil {
-			t.Fatalf("%v (run go test ./plan/trend -run TestMonthlyFixtures -update)", err)
-		}
-		if !bytes.Equal(got, data) {
-			t.Errorf("%s differs from the scenario (run with -update)", path)
-		}
+		golden.Compare(t, filepath.Join(monthlyDir, r.Period, "record.json"), data)
 	}
 	l, err := Load([]string{monthlyDir})
 	if err != nil {

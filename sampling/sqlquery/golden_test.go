@@ -1,15 +1,12 @@
 package sqlquery
 
 import (
-	"flag"
-	"os"
 	"path/filepath"
 	"testing"
 
+	"probity/internal/golden"
 	"probity/plan"
 )
-
-var update = flag.Bool("update", false, "rewrite the golden queries in testdata/sql")
 
 // TestQueryGolden pins the query text for each dialect. The import
 // rebuilds the query from a result's first row and records its SHA-256,
@@ -30,18 +27,8 @@ func TestQueryGolden(t *testing.T) {
 			t.Fatal(err)
 		}
 		path := filepath.Join("..", "..", "testdata", "sql", "query-"+string(d)+".sql")
-		if *update {
-			if err := os.WriteFile(path, []byte(q), 0o644); err != nil {
-				t.Fatal(err)
-			}
-			continue
-		}
-		want, err := os.ReadFile(path)
-		if err != nil {
-			t.Fatalf("%v (run go test -update to create it)", err)
-		}
-		if string(want) != q {
-			t.Errorf("the %s query changed; bump QueryFormat if the change is intended, then go test -run Golden -update", d)
+		if !golden.CompareString(t, path, q) {
+			t.Errorf("the %s query changed: bump QueryFormat if the change is intended", d)
 		}
 	}
 }
