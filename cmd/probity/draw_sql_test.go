@@ -11,6 +11,7 @@ import (
 	"strings"
 	"testing"
 
+	"probity/internal/pgtest"
 	"probity/sampling"
 	"probity/sampling/loggen"
 )
@@ -20,39 +21,28 @@ const (
 	sqlOtherPlan = "../../testdata/sql/plan-other-seed.yaml" // same but another seed
 )
 
-// testPG runs psql against the test server of .ci/run
-// (PROBITY_TEST_PGHOST, PROBITY_TEST_PGUSER); tests skip without it, and
-// fail when CI is set.
-type testPG struct{ host, user string }
+// testPG runs psql against the test server of probity/internal/pgtest (a
+// throw-away cluster, or the server PROBITY_TEST_PGHOST names); tests skip
+// without PostgreSQL, and fail when CI is set.
+type testPG struct{ *pgtest.Server }
 
 func needTestPG(t *testing.T) *testPG {
 	t.Helper()
-	host := os.Getenv("PROBITY_TEST_PGHOST")
-	if _, err := exec.LookPath("psql"); host == "" || err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("PostgreSQL is not configured (PROBITY_TEST_PGHOST unset or psql missing)")
-		}
-		t.Skip("PostgreSQL is not configured (PROBITY_TEST_PGHOST unset or psql missing)")
-	}
-	user := os.Getenv("PROBITY_TEST_PGUSER")
-	if user == "" {
-		user = "postgres"
-	}
-	return &testPG{host: host, user: user}
+	return &testPG{pgtest.Need(t)}
 }
 
 // psql runs one statement (-c) or, with script true, a script on stdin;
 // stdin feeds COPY … FROM STDIN.
 func (pg *testPG) psql(t *testing.T, sql string, stdin []byte, script bool, args ...string) []byte {
 	t.Helper()
-	argv := append([]string{"-h", pg.host, "-U", pg.user, "-X", "-q", "-v", "ON_ERROR_STOP=1", "-d", "postgres"}, args...)
+	argv := append(append(pg.Args("postgres"), "-X", "-q", "-v", "ON_ERROR_STOP=1"), args...)
 	if script {
 		argv = append(argv, "-f", "-")
 		stdin = []byte(sql)
 	} else {
 		argv = append(argv, "-c", sql)
 	}
-	cmd := exec.Command("psql", argv...)
+	cmd := exec.Command(pg.Psql, argv...)
 	cmd.Stdin = bytes.NewReader(stdin)
 	var out, errb bytes.Buffer
 	cmd.Stdout, cmd.Stderr = &out, &errb
