@@ -17,18 +17,10 @@ import (
 	"probity/sampling"
 )
 
-// demoDeps returns deps for a demo run whose clock is deliberately not the
-// scenario's: the demo must not depend on the machine's date.
-func demoDeps(stdout, stderr *bytes.Buffer) deps {
-	return deps{
-		stdin:   strings.NewReader(""),
-		stdout:  stdout,
-		stderr:  stderr,
-		now:     func() time.Time { return time.Date(2031, 7, 4, 12, 0, 0, 0, time.UTC) },
-		random:  strings.NewReader(""), // the demo must not need randomness
-		version: "test",
-	}
-}
+// demoTestOptions are the test deps of a demo run: a clock deliberately not
+// the scenario's (the demo must not depend on the machine's date) and no
+// random bytes (the demo must not need randomness).
+var demoTestOptions = []testOption{atTime(time.Date(2031, 7, 4, 12, 0, 0, 0, time.UTC)), withRandom(nil), withVersion("test")}
 
 func sha256File(t *testing.T, path string) string {
 	t.Helper()
@@ -48,14 +40,13 @@ func sha256File(t *testing.T, path string) string {
 // must give byte-identical artifacts.
 func TestDemoEndToEnd(t *testing.T) {
 	runOnce := func(dir string) {
-		var out, errb bytes.Buffer
-		code := run([]string{"demo", "--out", dir}, demoDeps(&out, &errb))
+		code, out, errOut := runTest(t, []string{"demo", "--out", dir}, demoTestOptions...)
 		if code != exitOK {
-			t.Fatalf("demo exit %d\nstdout:\n%s\nstderr:\n%s", code, out.String(), errb.String())
+			t.Fatalf("demo exit %d\nstdout:\n%s\nstderr:\n%s", code, out, errOut)
 		}
 		for _, want := range []string{"invented", "record-2026-11/record.pdf (overall ACCEPT, exit 0)", "all checks passed", "trend.png"} {
-			if !strings.Contains(out.String(), want) {
-				t.Errorf("demo output lacks %q:\n%s", want, out.String())
+			if !strings.Contains(out, want) {
+				t.Errorf("demo output lacks %q:\n%s", want, out)
 			}
 		}
 	}
@@ -135,14 +126,13 @@ func TestDemoEndToEnd(t *testing.T) {
 	}
 
 	// An independent verify run on the artifacts.
-	var out, errb bytes.Buffer
 	rd := filepath.Join(a, "record-2026-11")
-	if code := run([]string{"verify", rd, "--pub", filepath.Join(a, "keys", "demo-signing-key.pub"),
+	if code, out, errOut := runTest(t, []string{"verify", rd, "--pub", filepath.Join(a, "keys", "demo-signing-key.pub"),
 		"--plan", filepath.Join(a, "plan.yaml"), "--draw", filepath.Join(a, "draw-2026-11"),
 		"--labels", filepath.Join(a, "labels-2026-11", "worksheet-labeled.csv"),
 		"--second", filepath.Join(a, "labels-2026-11", "worksheet-second-labeled.csv"),
-		"--adjudicated", filepath.Join(a, "labels-2026-11", "adjudication.csv")}, demoDeps(&out, &errb)); code != exitOK || !strings.Contains(out.String(), "judgement recomputed") {
-		t.Fatalf("verify exit %d:\n%s\n%s", code, out.String(), errb.String())
+		"--adjudicated", filepath.Join(a, "labels-2026-11", "adjudication.csv")}, demoTestOptions...); code != exitOK || !strings.Contains(out, "judgement recomputed") {
+		t.Fatalf("verify exit %d:\n%s\n%s", code, out, errOut)
 	}
 
 	// The command log shows the monthly steps: progress midway and the trend.
@@ -185,12 +175,12 @@ func TestDemoRefusesNonEmptyFolder(t *testing.T) {
 	if err := os.WriteFile(keep, []byte("mine"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	var out, errb bytes.Buffer
-	if code := run([]string{"demo", "--out", dir}, demoDeps(&out, &errb)); code != exitBadInput {
-		t.Fatalf("exit %d, want 2; stderr %s", code, errb.String())
+	code, _, errOut := runTest(t, []string{"demo", "--out", dir}, demoTestOptions...)
+	if code != exitBadInput {
+		t.Fatalf("exit %d, want 2; stderr %s", code, errOut)
 	}
-	if !strings.Contains(errb.String(), "is not empty") || !strings.Contains(errb.String(), "hint: ") {
-		t.Errorf("stderr %q", errb.String())
+	if !strings.Contains(errOut, "is not empty") || !strings.Contains(errOut, "hint: ") {
+		t.Errorf("stderr %q", errOut)
 	}
 	entries, _ := os.ReadDir(dir)
 	if len(entries) != 1 {

@@ -20,11 +20,7 @@ const drawPlan = "../../testdata/draw/plan.yaml"
 
 func runDrawCmd(t *testing.T, stdin []byte, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{stdin: bytes.NewReader(stdin), stdout: &out, stderr: &errb, now: func() time.Time { return time.Unix(0, 0) },
-		random: strings.NewReader(strings.Repeat("x", 64)), version: "test"}
-	code := run(append([]string{"draw"}, args...), d)
-	return code, out.String(), errb.String()
+	return runTest(t, append([]string{"draw"}, args...), withStdin(bytes.NewReader(stdin)), withVersion("test"))
 }
 
 func writeGenLog(t *testing.T, dir, name string, c loggen.Config) string {
@@ -269,10 +265,9 @@ func TestDrawProgressBarOnlyOnTerminal(t *testing.T) {
 	zw := gzip.NewWriter(&gzb)
 	loggen.Write(zw, loggen.Config{Rows: 2000, Seed: 3})
 	zw.Close()
-	var errb, outb bytes.Buffer
 	tick := time.Unix(0, 0)
-	d := deps{stdin: bytes.NewReader(gzb.Bytes()), stdout: &outb, stderr: &errb, version: "test", stderrIsTerminal: true,
-		now: func() time.Time { tick = tick.Add(time.Second); return tick }}
+	d, _, errb := newTestDeps(withStdin(bytes.NewReader(gzb.Bytes())), withVersion("test"), onTerminal(),
+		withClock(func() time.Time { tick = tick.Add(time.Second); return tick }))
 	// stdin has no known size: the bar appears once 64 MB are read, so
 	// not here; this checks the terminal path runs and leaves stderr clean.
 	code := run([]string{"draw", "--plan", drawPlan, "--log", "-", "--out", filepath.Join(dir, "o")}, d)

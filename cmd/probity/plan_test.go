@@ -12,26 +12,22 @@ import (
 	"probity/plan"
 )
 
-// planCmdDeps is a fresh environment: buffers, a fixed clock and a fixed
-// random stream (bytes 0x00, 0x01, …).
-func planCmdDeps(stdout, stderr *bytes.Buffer) deps {
+// planRandom is the plan tests' random stream, bytes 0x00, 0x01, …, 0x3f
+// (the seed of a plan written without --seed).
+func planRandom() testOption {
 	random := make([]byte, 64)
 	for i := range random {
 		random[i] = byte(i)
 	}
-	return deps{
-		stdin: strings.NewReader(""), stdout: stdout, stderr: stderr,
-		now:     func() time.Time { return time.Date(2026, 11, 30, 9, 15, 42, 123456789, time.FixedZone("x", 3600)) },
-		random:  bytes.NewReader(random),
-		version: "0.1.0-test",
-	}
+	return withRandom(random)
 }
 
+// runPlanCmd runs probity plan with test deps: a clock with a zone and
+// nanoseconds (the plan's date must not depend on them) and planRandom.
 func runPlanCmd(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
-	var stdout, stderr bytes.Buffer
-	code := run(append([]string{"plan"}, args...), planCmdDeps(&stdout, &stderr))
-	return code, stdout.String(), stderr.String()
+	return runTest(t, append([]string{"plan"}, args...),
+		atTime(time.Date(2026, 11, 30, 9, 15, 42, 123456789, time.FixedZone("x", 3600))), planRandom())
 }
 
 func TestPlanIssueExample(t *testing.T) {

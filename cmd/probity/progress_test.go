@@ -107,11 +107,7 @@ func (pf progressFiles) label(t *testing.T, k int, edit func(rows []sampling.Wor
 
 func runProgressCmd(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, now: func() time.Time { return time.Unix(0, 0) },
-		random: strings.NewReader(strings.Repeat("x", 64)), version: "test"}
-	code := run(append([]string{"progress"}, args...), d)
-	return code, out.String(), errb.String()
+	return runTest(t, append([]string{"progress"}, args...))
 }
 
 func dirEntries(t *testing.T, dir string) []string {

@@ -135,12 +135,7 @@ func lqWrite(t *testing.T, path string, data []byte) {
 
 func lqRun(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb,
-		now:    func() time.Time { return time.Date(2026, 12, 1, 12, 0, 0, 0, time.UTC) },
-		random: bytes.NewReader(bytes.Repeat([]byte{0x3c}, 256)), version: "0.1.0-test"}
-	code := run(args, d)
-	return code, out.String(), errb.String()
+	return runTest(t, args)
 }
 
 func lqRecord(t *testing.T, path string) *record.Record {

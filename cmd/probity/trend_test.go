@@ -11,7 +11,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-	"time"
 
 	"probity/internal/golden"
 	"probity/internal/needs"
@@ -25,20 +24,12 @@ import (
 const trendMonthly = "../../testdata/trend/monthly"
 
 // trendRun runs probity with args and returns stdout, stderr and the exit
-// code, with a fixed clock and version.
+// code, with test deps whose version is a release's (it is printed in the
+// chart's PDF).
 func trendRun(t *testing.T, args ...string) (string, string, int) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{
-		stdin:   strings.NewReader(""),
-		stdout:  &out,
-		stderr:  &errb,
-		now:     func() time.Time { return time.Date(2027, 1, 5, 9, 0, 0, 0, time.UTC) },
-		random:  bytes.NewReader(make([]byte, 1024)),
-		version: "0.1.0",
-	}
-	code := run(args, d)
-	return out.String(), errb.String(), code
+	code, stdout, stderr := runTest(t, args, withVersion("0.1.0"))
+	return stdout, stderr, code
 }
 
 // trendMonth returns the path of one month's record in the fixtures.
@@ -357,7 +348,8 @@ func TestTrendOptionsValidate(t *testing.T) {
 		}
 	}
 	// Flags parse into the options.
-	cmd := newTrendCommand(deps{})
+	d, _, _ := newTestDeps()
+	cmd := newTrendCommand(d)
 	if err := cmd.ParseFlags([]string{"--baseline", "2026-02", "--alpha", "0.1", "--chart", "c/t", "--json"}); err != nil {
 		t.Fatal(err)
 	}
