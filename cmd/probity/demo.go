@@ -90,26 +90,25 @@ func runDemo(d deps, o *demoOptions) error {
 		return err
 	}
 	defer release()
-	// The steps run inside DIR with relative paths, as a user would type
-	// them: the command log can be replayed there, and the artifacts (which
-	// record the paths they were given) do not depend on where DIR is.
-	back, err := os.Getwd()
+	// The steps run inside DIR with paths relative to it, as a user would
+	// type them there (each command takes them from DIR, deps.dir): the
+	// command log can be replayed there, and the artifacts (which record
+	// the paths they were given) do not depend on where DIR is. base is
+	// DIR for the demo's own files, shown is DIR as the user named it.
+	base, err := filepath.Abs(o.out)
 	if err != nil {
 		return err
 	}
-	if err := os.Chdir(o.out); err != nil {
-		return inputerr.FromPath(err)
-	}
-	defer os.Chdir(back)
+	in := func(p string) string { return filepath.Join(base, p) }
 	shown := func(p string) string { return filepath.Join(o.out, p) }
 	var cmdlog bytes.Buffer
 	fmt.Fprintf(&cmdlog, "probity demo — %s\n%s: %s %s.\nEverything here is invented.\n\n", version, sc.Organisation, sc.System, sc.Description)
 
-	if err := writeDemoFile("signoff.yaml", func(w io.Writer) error { _, err := io.WriteString(w, demoSignoff); return err }); err != nil {
+	if err := writeDemoFile(in("signoff.yaml"), func(w io.Writer) error { _, err := io.WriteString(w, demoSignoff); return err }); err != nil {
 		return err
 	}
 	step := func(args ...string) (demoRun, error) {
-		r := runDemoStep(d, &cmdlog, args)
+		r := runDemoStep(d, base, &cmdlog, args)
 		if r.code == exitBadInput || r.code == exitInternal {
 			return r, &internalError{msg: fmt.Sprintf("demo step 'probity %s' failed (exit %d): %s", strings.Join(args, " "), r.code, firstLine(r.stderr))}
 		}
@@ -124,12 +123,12 @@ func runDemo(d deps, o *demoOptions) error {
 	if err != nil {
 		return err
 	}
-	if err := os.MkdirAll(filepath.Dir(keyPath), 0o700); err != nil {
+	if err := os.MkdirAll(in(filepath.Dir(keyPath)), 0o700); err != nil {
 		return err
 	}
 	keyDeps := d
 	keyDeps.random = demolog.ThrowAwayKeySource()
-	if r := runDemoStep(keyDeps, &cmdlog, []string{"keygen", "--out", keyPath}); r.code != exitOK {
+	if r := runDemoStep(keyDeps, base, &cmdlog, []string{"keygen", "--out", keyPath}); r.code != exitOK {
 		return &internalError{msg: "demo step keygen failed: " + firstLine(r.stderr)}
 	}
 
@@ -139,7 +138,7 @@ func runDemo(d deps, o *demoOptions) error {
 	var recDirs []string
 	var last demoMonth
 	for i, m := range months {
-		res, err := runDemoMonth(m, step, &cmdlog, keyPath, i == len(months)-1)
+		res, err := runDemoMonth(m, base, step, &cmdlog, keyPath, i == len(months)-1)
 		if err != nil {
 			return err
 		}
@@ -164,7 +163,7 @@ func runDemo(d deps, o *demoOptions) error {
 	if err != nil {
 		return err
 	}
-	if err := writeDemoFile("commands.txt", func(w io.Writer) error { _, err := w.Write(cmdlog.Bytes()); return err }); err != nil {
+	if err := writeDemoFile(in("commands.txt"), func(w io.Writer) error { _, err := w.Write(cmdlog.Bytes()); return err }); err != nil {
 		return err
 	}
 	verdict := "all checks passed"
@@ -199,17 +198,18 @@ const demoDouble = 60
 var demoSecondWrongAt = []int{9, 41}
 
 // runDemoMonth writes one month's log, draws its sample, labels it from
-// the hidden truth and issues its signed record. For the latest month it
+// the hidden truth and issues its signed record, in the demo's folder base
+// (the paths in demoMonth are relative to it). For the latest month it
 // also asks `progress` about the first 400 labels, as an operator would
 // midway through labeling.
-func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmdlog *bytes.Buffer, keyPath string, latest bool) (demoMonth, error) {
+func runDemoMonth(m demolog.Scenario, base string, step func(...string) (demoRun, error), cmdlog *bytes.Buffer, keyPath string, latest bool) (demoMonth, error) {
 	res := demoMonth{
 		logPath:    "prediction-log-" + m.Month + ".csv.gz",
 		drawDir:    "draw-" + m.Month,
 		labelsPath: filepath.Join("labels-"+m.Month, "worksheet-labeled.csv"),
 		recDir:     "record-" + m.Month,
 	}
-	if err := writeDemoFile(res.logPath, m.WriteLogGzip); err != nil {
+	if err := writeDemoFile(filepath.Join(base, res.logPath), m.WriteLogGzip); err != nil {
 		return res, err
 	}
 	drawArgs := []string{"draw", "--plan", "plan.yaml", "--log", res.logPath, "--out", res.drawDir, "--period", m.Month,
@@ -220,12 +220,12 @@ func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmd
 	if _, err := step(drawArgs...); err != nil {
 		return res, err
 	}
-	summary, firstRows, err := demoLabel(m, res.drawDir, res.labelsPath, 0)
+	summary, firstRows, err := demoLabel(m, base, res.drawDir, res.labelsPath, 0)
 	if err != nil {
 		return res, err
 	}
 	if latest {
-		if err := demoSecondLabels(m, &res, firstRows); err != nil {
+		if err := demoSecondLabels(m, base, &res, firstRows); err != nil {
 			return res, err
 		}
 		fmt.Fprintf(cmdlog, "# simulated second labeling of the %d doubled items by %s, who disagrees on %d; %s adjudicated them: %s\n\n",
@@ -236,7 +236,7 @@ func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmd
 		m.Month, summary.Labeled, demolog.Labeler, len(summary.Unsure), strings.Join(summary.Unsure, ", "), strings.Join(summary.SparesUsed, ", "))
 	if latest {
 		partial := filepath.Join("labels-"+m.Month, "worksheet-first-400.csv")
-		if _, _, err := demoLabel(m, res.drawDir, partial, 400); err != nil {
+		if _, _, err := demoLabel(m, base, res.drawDir, partial, 400); err != nil {
 			return res, err
 		}
 		if _, err := step("progress", "--plan", "plan.yaml", "--draw", res.drawDir, "--labels", partial); err != nil {
@@ -257,13 +257,14 @@ func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmd
 }
 
 // demoSecondLabels labels the draw's worksheet-second.csv as the second
-// labeler would and writes the adjudication of every disagreement.
-func demoSecondLabels(m demolog.Scenario, res *demoMonth, first []sampling.WorksheetRow) error {
-	man, _, err := sampling.ReadManifest(filepath.Join(res.drawDir, sampling.ManifestFile))
+// labeler would and writes the adjudication of every disagreement (paths
+// relative to base).
+func demoSecondLabels(m demolog.Scenario, base string, res *demoMonth, first []sampling.WorksheetRow) error {
+	man, _, err := sampling.ReadManifest(filepath.Join(base, res.drawDir, sampling.ManifestFile))
 	if err != nil {
 		return err
 	}
-	_, rows, err := sampling.ReadWorksheet(filepath.Join(res.drawDir, sampling.WorksheetSecondFile))
+	_, rows, err := sampling.ReadWorksheet(filepath.Join(base, res.drawDir, sampling.WorksheetSecondFile))
 	if err != nil {
 		return err
 	}
@@ -275,10 +276,10 @@ func demoSecondLabels(m demolog.Scenario, res *demoMonth, first []sampling.Works
 	res.secondPath = filepath.Join(dir, "worksheet-second-labeled.csv")
 	res.adjudicatedPath = filepath.Join(dir, "adjudication.csv")
 	res.doubled = len(second)
-	if err := writeDemoFile(res.secondPath, func(w io.Writer) error { return sampling.WriteWorksheet(w, man.ShowColumns, second) }); err != nil {
+	if err := writeDemoFile(filepath.Join(base, res.secondPath), func(w io.Writer) error { return sampling.WriteWorksheet(w, man.ShowColumns, second) }); err != nil {
 		return err
 	}
-	return writeDemoFile(res.adjudicatedPath, func(w io.Writer) error {
+	return writeDemoFile(filepath.Join(base, res.adjudicatedPath), func(w io.Writer) error {
 		n, err := m.WriteAdjudications(w, first, second)
 		res.adjudicated = n
 		return err
@@ -309,30 +310,37 @@ func demoTrendFlags(out string) string {
 	return strings.Join(flags, "; ")
 }
 
-// runDemoStep runs one probity command line in a fresh command tree with
-// the scenario's clock, no terminal, and captured streams, and appends it
-// to the command log.
-func runDemoStep(d deps, cmdlog *bytes.Buffer, args []string) demoRun {
+// runDemoStep runs one probity command line inside the folder base (its
+// relative paths are taken from there) in a fresh command tree with the
+// scenario's clock, no terminal, and captured streams, and appends it to
+// the command log. The paths the command prints under base are shown
+// relative to it, as the same command line typed inside base prints them.
+func runDemoStep(d deps, base string, cmdlog *bytes.Buffer, args []string) demoRun {
 	var out, errb bytes.Buffer
 	sub := d
 	sub.stdin = strings.NewReader("")
 	sub.stdout, sub.stderr = &out, &errb
 	sub.now = func() time.Time { return demolog.Clock }
 	sub.stderrIsTerminal, sub.stdoutIsTerminal = false, false
+	sub.dir = base
 	code := run(args, sub)
-	fmt.Fprintf(cmdlog, "$ probity %s\n%s", quoteArgs(args), out.String())
-	if errb.Len() > 0 {
-		fmt.Fprintf(cmdlog, "[stderr]\n%s", errb.String())
+	inBase := func(s string) string { return strings.ReplaceAll(s, base+string(filepath.Separator), "") }
+	r := demoRun{args: args, stdout: inBase(out.String()), stderr: inBase(errb.String()), code: code}
+	fmt.Fprintf(cmdlog, "$ probity %s\n%s", quoteArgs(args), r.stdout)
+	if r.stderr != "" {
+		fmt.Fprintf(cmdlog, "[stderr]\n%s", r.stderr)
 	}
 	fmt.Fprintf(cmdlog, "[exit %d]\n\n", code)
-	return demoRun{args: args, stdout: out.String(), stderr: errb.String(), code: code}
+	return r
 }
 
 // demoLabel fills the drawn worksheet from the scenario's hidden truth and
-// writes it to path. With prefix > 0 only the first prefix items keep their
-// labels, as midway through labeling from the top.
-func demoLabel(sc demolog.Scenario, drawDir, path string, prefix int) (demolog.LabelingSummary, []sampling.WorksheetRow, error) {
+// writes it to path (drawDir and path are relative to base). With prefix >
+// 0 only the first prefix items keep their labels, as midway through
+// labeling from the top.
+func demoLabel(sc demolog.Scenario, base, drawDir, path string, prefix int) (demolog.LabelingSummary, []sampling.WorksheetRow, error) {
 	var sum demolog.LabelingSummary
+	drawDir, path = filepath.Join(base, drawDir), filepath.Join(base, path)
 	m, _, err := sampling.ReadManifest(filepath.Join(drawDir, sampling.ManifestFile))
 	if err != nil {
 		return sum, nil, err

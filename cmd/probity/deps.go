@@ -25,6 +25,9 @@ type deps struct {
 	stdoutIsTerminal bool
 	// version is the tool version written into every artifact.
 	version string
+	// dir is the folder relative paths on the command line are taken from
+	// (see takePathsFrom); empty for the process's working directory.
+	dir string
 }
 
 // systemDeps returns the dependencies of a real process.

@@ -63,5 +63,9 @@ func withVersion(v string) testOption { return func(d *deps) { d.version = v } }
 // withStdin sets stdin.
 func withStdin(r io.Reader) testOption { return func(d *deps) { d.stdin = r } }
 
+// withDir runs the command inside dir (deps.dir: its relative paths are
+// taken from there).
+func withDir(dir string) testOption { return func(d *deps) { d.dir = dir } }
+
 // onTerminal makes stderr a terminal (progress bars are drawn).
 func onTerminal() testOption { return func(d *deps) { d.stderrIsTerminal = true } }

@@ -273,7 +273,7 @@ func runDraw(d deps, o *drawOptions) error {
 		return drawError(err)
 	}
 	in := sampling.DrawInput{
-		Plan: p, PlanFingerprint: fp, LogPath: o.logPath, Format: o.format, Period: o.period,
+		Plan: p, PlanFingerprint: fp, LogPath: d.given(o.logPath), Format: o.format, Period: o.period,
 		IDColumn: o.id, StrataColumns: o.strata, Bands: o.parsedBands, Where: o.parsedWhere, Show: o.show,
 		Alloc:  sampling.AllocOptions{Rule: o.allocation, MinPerStratum: o.minPer, Spare: o.spare},
 		Double: o.double, Dedupe: o.dedupe == "first", ToolVersion: d.version,
