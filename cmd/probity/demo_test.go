@@ -39,6 +39,7 @@ func sha256File(t *testing.T, path string) string {
 // the PDF carries the safety cautions. A second run into another folder
 // must give byte-identical artifacts.
 func TestDemoEndToEnd(t *testing.T) {
+	t.Parallel()
 	runOnce := func(dir string) {
 		code, out, errOut := runTest(t, []string{"demo", "--out", dir}, demoTestOptions...)
 		if code != exitOK {
@@ -170,6 +171,7 @@ func TestDemoEndToEnd(t *testing.T) {
 
 // TestDemoRefusesNonEmptyFolder: bad usage exits 2 and touches nothing.
 func TestDemoRefusesNonEmptyFolder(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	keep := filepath.Join(dir, "notes.txt")
 	if err := os.WriteFile(keep, []byte("mine"), 0o644); err != nil {

@@ -15,6 +15,7 @@ import (
 // ordering and number formatting; the selection itself is checked
 // independently in sampling's tests).
 func TestDrawGolden(t *testing.T) {
+	t.Parallel()
 	goldenDir := "../../testdata/draw/golden"
 	out := filepath.Join(t.TempDir(), "draw")
 	code, stdout, stderr := runDrawCmd(t, nil, "--plan", drawPlan, "--log", "../../testdata/draw/log-small.csv", "--out", out,

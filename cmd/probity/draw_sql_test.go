@@ -77,6 +77,7 @@ func (pg *testPG) loadLogTable(t *testing.T, rows int) string {
 // would: print the query, run it with psql, import the result; then draw
 // from an export of the same table and check the folder against it.
 func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
+	t.Parallel()
 	pg := needTestPG(t)
 	table := pg.loadLogTable(t, 30000)
 	dir := t.TempDir()
@@ -235,6 +236,7 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 // TestDrawSQLFlags checks the flag combinations refused before anything is
 // read or printed.
 func TestDrawSQLFlags(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		args []string
 		want string

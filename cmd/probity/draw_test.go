@@ -37,6 +37,7 @@ func writeGenLog(t *testing.T, dir, name string, c loggen.Config) string {
 }
 
 func TestDrawThenCheck(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 6000, Seed: 4})
 	out := filepath.Join(dir, "audit")
@@ -105,6 +106,7 @@ func TestDrawThenCheck(t *testing.T) {
 }
 
 func TestDrawStdinGzipPeriod(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	var b bytes.Buffer
 	loggen.Write(&b, loggen.Config{Rows: 3000, Seed: 6, Gzip: true})
@@ -132,6 +134,7 @@ func TestDrawStdinGzipPeriod(t *testing.T) {
 }
 
 func TestDrawBadInput(t *testing.T) {
+	t.Parallel()
 	var gz bytes.Buffer
 	loggen.Write(&gz, loggen.Config{Rows: 5000, Seed: 1, Gzip: true})
 	truncated := gz.Bytes()[:gz.Len()*2/3]
@@ -229,6 +232,7 @@ func TestDrawBadInput(t *testing.T) {
 }
 
 func TestDrawPopulationPlan(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	p, _, err := plan.Load(drawPlan)
 	if err != nil {
@@ -260,6 +264,7 @@ func TestDrawPopulationPlan(t *testing.T) {
 }
 
 func TestDrawProgressBarOnlyOnTerminal(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	var gzb bytes.Buffer
 	zw := gzip.NewWriter(&gzb)
@@ -284,6 +289,7 @@ func TestDrawProgressBarOnlyOnTerminal(t *testing.T) {
 }
 
 func TestDrawNeymanAnticipated(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 4000, Seed: 12})
 	ant := filepath.Join(dir, "anticipated.yaml")

@@ -11,6 +11,7 @@ import (
 // testdata/plan (go test ./cmd/probity -run PlanGolden -update
 // rewrites them after a deliberate change).
 func TestPlanGolden(t *testing.T) {
+	t.Parallel()
 	for _, tc := range []struct {
 		name string
 		args []string

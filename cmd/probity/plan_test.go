@@ -31,6 +31,7 @@ func runPlanCmd(t *testing.T, args ...string) (int, string, string) {
 }
 
 func TestPlanIssueExample(t *testing.T) {
+	t.Parallel()
 	code, out, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01")
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
@@ -49,6 +50,7 @@ func TestPlanIssueExample(t *testing.T) {
 }
 
 func TestPlanJSON(t *testing.T) {
+	t.Parallel()
 	code, out, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--json")
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
@@ -88,6 +90,7 @@ func TestPlanJSON(t *testing.T) {
 }
 
 func TestPlanOutFile(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	path := filepath.Join(dir, "plan.yaml")
 	code, out, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01",
@@ -146,6 +149,7 @@ func TestPlanOutFile(t *testing.T) {
 // Bad input: one sentence naming the flag on stderr, exit 2, nothing on
 // stdout and no plan file (nor temporary file) left behind.
 func TestPlanBadInput(t *testing.T) {
+	t.Parallel()
 	for _, tc := range []struct {
 		args []string
 		want string
@@ -199,6 +203,7 @@ func TestPlanBadInput(t *testing.T) {
 }
 
 func TestPlanBudget(t *testing.T) {
+	t.Parallel()
 	code, out, errOut := runPlanCmd(t, "--budget", "500", "--confidence", "0.95", "--ceiling", "0.02")
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
@@ -223,6 +228,7 @@ func TestPlanBudget(t *testing.T) {
 }
 
 func TestPlanPopulationAndMethods(t *testing.T) {
+	t.Parallel()
 	code, out, _ := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--population", "20000")
 	if code != exitOK || !strings.Contains(out, "Label 1199 decisions drawn at random from the batch of 20000; accept the model if at most 16") ||
 		!strings.Contains(out, "a batch with 400 or more errors") {

@@ -121,6 +121,7 @@ func dirEntries(t *testing.T, dir string) []string {
 }
 
 func TestProgressFixedPlan(t *testing.T) {
+	t.Parallel()
 	pf := progressFixture(t, false)
 	// c+1 model-b errors come at item 4(c+1)
 	k := 4*(pf.c+1) + 3
@@ -152,6 +153,7 @@ func TestProgressFixedPlan(t *testing.T) {
 }
 
 func TestProgressJSON(t *testing.T) {
+	t.Parallel()
 	pf := progressFixture(t, false)
 	labels := pf.label(t, pf.n-pf.c, func(rows []sampling.WorksheetRow) {})
 	code, out, errs := runProgressCmd(t, "--plan", pf.plan, "--draw", pf.draw, "--labels", labels, "--json")
@@ -190,6 +192,7 @@ func TestProgressJSON(t *testing.T) {
 }
 
 func TestProgressSequentialPlan(t *testing.T) {
+	t.Parallel()
 	pf := progressFixture(t, true)
 	r, err := sequential.NewRule(pf.file.Sequential)
 	if err != nil {
@@ -219,6 +222,7 @@ func TestProgressSequentialPlan(t *testing.T) {
 }
 
 func TestProgressBadInput(t *testing.T) {
+	t.Parallel()
 	pf := progressFixture(t, false)
 	gap := pf.label(t, 10, func(rows []sampling.WorksheetRow) { rows[4].Label = "" })
 	cases := []struct {
@@ -289,6 +293,7 @@ func progressGolden(t *testing.T, name, got string) {
 // Golden outputs for a fixed and a sequential plan, human and --json
 // (temp paths replaced by DIR).
 func TestProgressGolden(t *testing.T) {
+	t.Parallel()
 	for _, seq := range []bool{false, true} {
 		pf := progressFixture(t, seq)
 		labels := pf.label(t, 30, func(rows []sampling.WorksheetRow) { rows[2].Label = progress.Unsure })

@@ -15,6 +15,7 @@ import (
 // Run `go test ./cmd/probity -run TestRecordGolden -update` after a
 // deliberate change and review the diff.
 func TestRecordGolden(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")

@@ -25,6 +25,7 @@ var flagSpelling = regexp.MustCompile(`(^|[^-\w])--[a-z][a-z-]*`)
 // and enforced labeler independence. The flags belong to the command line;
 // the signed artifacts speak of what was decided.
 func TestRecordArtifactsNameNoFlag(t *testing.T) {
+	t.Parallel()
 	type run struct {
 		name string
 		args []string

@@ -32,6 +32,7 @@ func pdfText(t *testing.T, path string) string {
 // use, the sign-off names (UTF-8) and the signing key; --templates
 // overrides a caution and a broken override is refused naming the file.
 func TestRecordPDFShowsVerdictsAndCautions(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	key := filepath.Join(fx.dir, "key")

@@ -158,6 +158,7 @@ func lqRecord(t *testing.T, path string) *record.Record {
 // REJECT (c = 0); unadjudicated under --allow-unadjudicated, counted as an
 // error: REJECT; unadjudicated without it: refused, nothing written.
 func TestRecordJudgesOnTheAdjudicatedLabel(t *testing.T) {
+	t.Parallel()
 	fx := newLQFixture(t)
 	item1 := fx.ledger[0]
 	if !item1.Double {
@@ -228,6 +229,7 @@ func TestRecordJudgesOnTheAdjudicatedLabel(t *testing.T) {
 // error and is rejected); the second labeler is right and the adjudication
 // agrees with the second: the record accepts.
 func TestRecordAdjudicationOverridesTheFirstLabel(t *testing.T) {
+	t.Parallel()
 	fx := newLQFixture(t)
 	truth := fx.truth[fx.ledger[1].RecordID]
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []sampling.WorksheetRow) { rows[1].Label = other(truth) })
@@ -262,6 +264,7 @@ func TestRecordAdjudicationOverridesTheFirstLabel(t *testing.T) {
 }
 
 func TestRecordLabelQualityBadInput(t *testing.T) {
+	t.Parallel()
 	fx := newLQFixture(t)
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", nil)
 	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
@@ -348,6 +351,7 @@ func lqList(dir string) []string {
 // alone, and record.json differs only by label_quality and by the record
 // id (which also fingerprints the second worksheet).
 func TestRecordFullAgreementChangesNothing(t *testing.T) {
+	t.Parallel()
 	fx := newLQFixture(t)
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []sampling.WorksheetRow) {
 		rows[7].Label = other(rows[7].Label) // one error by the candidate, outside the doubled items

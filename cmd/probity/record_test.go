@@ -26,6 +26,7 @@ func readRecord(t *testing.T, dir string) *record.Record {
 }
 
 func TestRecordAcceptedExitsZero(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
@@ -75,6 +76,7 @@ func listDirAll(t *testing.T, dir string) string {
 }
 
 func TestRecordRejectedExitsOneAndStillWrites(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
@@ -92,6 +94,7 @@ func TestRecordRejectedExitsOneAndStillWrites(t *testing.T) {
 }
 
 func TestRecordIsDeterministic(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	var first [2][]byte
@@ -112,6 +115,7 @@ func TestRecordIsDeterministic(t *testing.T) {
 // TestRecordBadInputLeavesNothing: each bad input exits 2 with a one-line
 // message naming the file and what, and no --out folder is left behind.
 func TestRecordBadInputLeavesNothing(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	good := fx.labels(t, "labels.csv", nil)
 	other := newRecFixture(t, false, 0)
@@ -179,6 +183,7 @@ func writeTemp(t *testing.T, dir, name, text string) string {
 }
 
 func TestRecordRefusesNonEmptyOut(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
@@ -201,6 +206,7 @@ func TestRecordRefusesNonEmptyOut(t *testing.T) {
 }
 
 func TestRecordAllowIncompleteCountsErrors(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "partial.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow { r[1].Label = ""; return r })
 	out := filepath.Join(fx.dir, "rec")
@@ -215,6 +221,7 @@ func TestRecordAllowIncompleteCountsErrors(t *testing.T) {
 }
 
 func TestRecordUnequalWeights(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 20)
 	labels := fx.labels(t, "labels.csv", nil)
 	for _, c := range []struct{ flag, bound string }{{"korn-graubard", "korn-graubard (approximate)"}, {"weighted-hoeffding", "weighted-hoeffding"}} {
@@ -231,6 +238,7 @@ func TestRecordUnequalWeights(t *testing.T) {
 }
 
 func TestRecordJSONPrintsTheRecord(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")

@@ -43,6 +43,7 @@ func trendGolden(t *testing.T, name, got string) {
 }
 
 func TestTrendYearRejectsLatest(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	prefix := filepath.Join(dir, "trend")
 	out, errOut, code := trendRun(t, "trend", trendMonthly, "--chart", prefix)
@@ -113,6 +114,7 @@ func trendPDFText(t *testing.T, path string) {
 }
 
 func TestTrendElevenMonthsAccepts(t *testing.T) {
+	t.Parallel()
 	args := []string{"trend", "--json"}
 	for _, m := range []string{"2026-11", "2026-03", "2026-01", "2026-02", "2026-04", "2026-05", "2026-06", "2026-07", "2026-08", "2026-09", "2026-10"} {
 		args = append(args, trendMonth(m))
@@ -164,6 +166,7 @@ func TestTrendElevenMonthsAccepts(t *testing.T) {
 }
 
 func TestTrendBaselineAndAlpha(t *testing.T) {
+	t.Parallel()
 	out, _, code := trendRun(t, "trend", trendMonthly, "--baseline", "2026-06", "--alpha", "0.01")
 	if code != exitRejected {
 		t.Fatalf("exit %d", code)
@@ -206,6 +209,7 @@ func trendLoadMonth(t *testing.T, m string) *record.Record {
 }
 
 func TestTrendWarnsAboutPlansAndCandidates(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	jan := trendLoadMonth(t, "2026-01")
 	feb := trendLoadMonth(t, "2026-02")
@@ -233,6 +237,7 @@ type trendBad struct {
 }
 
 func TestTrendBadInput(t *testing.T) {
+	t.Parallel()
 	cases := []trendBad{
 		{"no arguments", func(t *testing.T, dir string) []string { return nil },
 			[]string{"probity: trend needs at least one record.json or folder of records\nhint: "}},
@@ -329,6 +334,7 @@ func TestTrendBadInput(t *testing.T) {
 }
 
 func TestTrendOptionsValidate(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	good := []trendOptions{
 		{alpha: 0.05}, {alpha: 0.5}, {alpha: 1e-6, chart: filepath.Join(dir, "x")}, {alpha: 0.05, chart: "trend"},
@@ -361,6 +367,7 @@ func TestTrendOptionsValidate(t *testing.T) {
 }
 
 func TestTrendFolderSkipsOtherJSON(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	for _, m := range []string{"2026-01", "2026-02"} {
 		os.MkdirAll(filepath.Join(dir, m, "draw"), 0o755)
@@ -387,6 +394,7 @@ func TestTrendFolderSkipsOtherJSON(t *testing.T) {
 // 2026-01 and one in every 40 rows in 2026-02, so 2026-02 is rejected and
 // flagged, with the p-value of Fisher's test on the recorded counts.
 func TestTrendOfRealRecords(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	at := func(p ...string) string { return filepath.Join(append([]string{dir}, p...)...) }
 	planPath := at("plan.yaml")
