@@ -3,12 +3,14 @@ package pdfreport
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 
 	"probity/internal/golden"
@@ -443,5 +445,64 @@ func TestPaperAndMetadata(t *testing.T) {
 				t.Errorf("paper %q: pdfinfo lacks %q:\n%s", tc.paper, want, info)
 			}
 		}
+	}
+}
+
+// TestRenderConcurrently renders records from four goroutines at once (a
+// long one, one with a label-quality section, names in Icelandic, both
+// paper sizes): each gets the bytes of a render alone, and go test -race
+// finds no write to shared memory (gofpdf pads the embedded fonts' tables
+// in place, so each document needs its own copy of them).
+func TestRenderConcurrently(t *testing.T) {
+	record := func(i int) *record.Record {
+		var r *record.Record
+		switch i % 3 {
+		case 0:
+			r = fixtureRecord("medical")
+		case 1:
+			r = manyRecord()
+		default:
+			r = fixtureRecord("general")
+			r.LabelQuality = fixtureLabelQuality()
+		}
+		if len(r.Signoff) > 0 {
+			r.Signoff[0].Name = "Jörg Þórsson"
+		}
+		return r
+	}
+	paper := func(i int) Options { return Options{Paper: []string{"a4", "letter"}[i%2]} }
+	// Four goroutines render three records each, before any render alone.
+	type job struct{ rec, paper int }
+	got := map[job][]byte{}
+	var mu sync.Mutex
+	var wg sync.WaitGroup
+	errs := make(chan error, 12)
+	for g := 0; g < 4; g++ {
+		wg.Go(func() {
+			for i := 0; i < 3; i++ {
+				j := job{(g + i) % 3, i % 2}
+				pdf, err := Render(record(j.rec), paper(j.paper))
+				if err != nil {
+					errs <- err
+					continue
+				}
+				mu.Lock()
+				if prev, ok := got[j]; ok && !bytes.Equal(prev, pdf) {
+					errs <- fmt.Errorf("record %d on paper %d: two renders at the same time differ", j.rec, j.paper)
+				}
+				got[j] = pdf
+				mu.Unlock()
+			}
+		})
+	}
+	wg.Wait()
+	close(errs)
+	for j, pdf := range got {
+		if !bytes.Equal(pdf, render(t, record(j.rec), paper(j.paper))) {
+			t.Errorf("record %d on paper %d, rendered at the same time as others, differs from its render alone", j.rec, j.paper)
+		}
+	}
+	for err := range errs {
+		t.Error(err)
 	}
 }
