@@ -45,7 +45,6 @@ type worker struct {
 	rows       int64
 	dups       []dupEvent
 	seq        int64
-	tooMany    bool
 }
 
 type wstratum struct {

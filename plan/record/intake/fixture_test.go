@@ -17,11 +17,10 @@ import (
 // strata of the log with 2 spares each. Items are in key order with the
 // spares after the sample.
 type drawFixture struct {
-	dir      string
-	plan     *plan.File
-	planFP   string
-	folder   *sampling.Folder
-	labelsAt string
+	dir    string
+	plan   *plan.File
+	planFP string
+	folder *sampling.Folder
 }
 
 func newDrawFixture(t *testing.T) *drawFixture {
