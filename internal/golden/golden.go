@@ -5,8 +5,12 @@
 // Every package with golden files uses this one flag, so the recipe after
 // a deliberate change is the same everywhere:
 //
-//	go test ./... -update   # or one package: go test ./pdfreport -update
-//	git diff                # read the change before committing it
+//	go test ./pdfreport -update   # the package's golden files
+//	git diff                      # read the change before committing it
+//
+// (DEVELOPERS.md gives the command line for every package at once: a test
+// binary refuses a flag it does not define, so go test ./... -update fails
+// in the packages without golden files.)
 //
 // Golden files are written through probity's safe writer
 // (sampling/safewrite), so an interrupted update never leaves half a file.
