@@ -217,6 +217,29 @@ func Fingerprint(data []byte) string {
 // size an audit but not be drawn or judged.
 func (f *File) IsSizingOnly() bool { return len(f.Candidates) == 0 }
 
+// CandidateNames returns the declared candidates' names, in plan order
+// (the ledger's prediction columns).
+func (f *File) CandidateNames() []string {
+	names := make([]string, len(f.Candidates))
+	for i, c := range f.Candidates {
+		names[i] = c.Name
+	}
+	return names
+}
+
+// LoadForJudging is Load for a plan a labeled sample is judged under: a
+// sizing-only plan, which declares no candidates, is an input error.
+func LoadForJudging(path string) (*File, string, error) {
+	f, fp, err := Load(path)
+	if err != nil {
+		return nil, "", err
+	}
+	if f.IsSizingOnly() {
+		return nil, "", inputerr.Errorf("%s: the plan declares no candidates, so there is nothing to judge", path).WithHint("use the plan the sample was drawn from")
+	}
+	return f, fp, nil
+}
+
 // validate checks the structural invariants a later step relies on.
 func (f *File) validate() error {
 	if f.Format != FileFormat {

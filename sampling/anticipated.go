@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"probity/plan/inputerr"
+	"probity/sampling/drawfolder"
 	"strconv"
 	"strings"
 
@@ -30,17 +31,17 @@ func ReadAnticipated(path string) (map[string]float64, error) {
 }
 
 func parseAnticipatedCSV(data []byte, name string) (map[string]float64, error) {
-	t, err := parseCSVTable(data, name)
+	t, err := drawfolder.ParseCSVTable(data, name)
 	if err != nil {
 		return nil, err
 	}
-	if err := checkHeader(name, t.header, []string{"stratum", "anticipated_error"}); err != nil {
+	if err := drawfolder.CheckHeader(name, t.Header, []string{"stratum", "anticipated_error"}); err != nil {
 		return nil, err
 	}
 	out := map[string]float64{}
 	lines := map[string]int{}
-	for i, rec := range t.rows {
-		line := t.lines[i]
+	for i, rec := range t.Rows {
+		line := t.Lines[i]
 		if prev, ok := lines[rec[0]]; ok {
 			return nil, inputErrorf(name, line, "stratum", "stratum %q is listed twice (lines %d and %d)", rec[0], prev, line)
 		}

@@ -1,6 +1,8 @@
 // Package sampling reads prediction logs, computes the selection keys,
-// allocates a plan's sample across strata and writes the draw folder
-// (worksheet.csv, worksheet-second.csv, ledger.csv, manifest.json).
+// allocates a plan's sample across strata and builds the draw folder's
+// content (worksheet.csv, worksheet-second.csv, ledger.csv, manifest.json,
+// whose formats are package drawfolder's). DrawInputFromManifest repeats a
+// draw from what its manifest records, to check a folder against its log.
 //
 // Selection. Each row's key is the lowercase hex SHA-256 of the UTF-8
 // bytes "<seed>:<record id>" (the plan's seed, or for a period the seed

@@ -9,6 +9,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/sampling/drawfolder"
 )
 
 // DrawInput is everything a draw from a log file depends on.
@@ -58,7 +59,7 @@ const capacityMargin = 8
 // n_h rows with the smallest keys are the sample and the next ones the
 // spares; the worksheet lists the sample in ascending key order, then the
 // spares in key order.
-func Draw(in DrawInput) (*Folder, error) {
+func Draw(in DrawInput) (*drawfolder.Content, error) {
 	p := in.Plan
 	if p.IsSizingOnly() {
 		return nil, inputerr.Errorf("%w: it declares no candidates (models or thresholds) to judge", ErrNotDrawable)
@@ -142,7 +143,7 @@ func Draw(in DrawInput) (*Folder, error) {
 		}
 		return nil, err
 	}
-	var sample, spares []LedgerRow
+	var sample, spares []drawfolder.LedgerRow
 	var src []*Row
 	var spareSrc []*Row
 	for i := range alloc {
@@ -157,7 +158,7 @@ func Draw(in DrawInput) (*Folder, error) {
 		}
 		for j := 0; j < need; j++ {
 			r := &st.Rows[j]
-			lr := LedgerRow{RecordID: r.ID, Stratum: a.Label, StratumSize: a.Population, StratumSample: a.Sample, Weight: a.Weight, Key: r.KeyHex(), Spare: j >= a.Sample}
+			lr := drawfolder.LedgerRow{RecordID: r.ID, Stratum: a.Label, StratumSize: a.Population, StratumSample: a.Sample, Weight: a.Weight, Key: r.KeyHex(), Spare: j >= a.Sample}
 			if lr.Spare {
 				spares = append(spares, lr)
 				spareSrc = append(spareSrc, r)
@@ -171,7 +172,7 @@ func Draw(in DrawInput) (*Folder, error) {
 	sortByKey(spares, spareSrc)
 	rows := append(sample, spares...)
 	srcRows := append(src, spareSrc...)
-	f := &Folder{Show: append([]string{}, in.Show...)}
+	f := &drawfolder.Content{Show: append([]string{}, in.Show...)}
 	for _, c := range p.Candidates {
 		f.Candidates = append(f.Candidates, c.Name)
 	}
@@ -187,7 +188,7 @@ func Draw(in DrawInput) (*Folder, error) {
 			}
 			rows[i].Predictions[ci] = v
 		}
-		w := WorksheetRow{Item: i + 1, RecordID: r.ID, Show: append([]string{}, r.Values[:len(in.Show)]...)}
+		w := drawfolder.WorksheetRow{Item: i + 1, RecordID: r.ID, Show: append([]string{}, r.Values[:len(in.Show)]...)}
 		f.Worksheet = append(f.Worksheet, w)
 		if rows[i].Double {
 			f.Second = append(f.Second, w)
@@ -200,17 +201,17 @@ func Draw(in DrawInput) (*Folder, error) {
 	return f, nil
 }
 
-func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, selection string) *Manifest {
+func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, selection string) *drawfolder.Manifest {
 	p := in.Plan
-	m := &Manifest{
-		Format: ManifestFormat, ToolVersion: in.ToolVersion, PlanFingerprint: in.PlanFingerprint,
+	m := &drawfolder.Manifest{
+		Format: drawfolder.ManifestFormat, ToolVersion: in.ToolVersion, PlanFingerprint: in.PlanFingerprint,
 		Seed: p.Seed, SelectionSeed: selection, KeyDefinition: KeyDefinition,
-		Log: LogInfo{Path: in.LogPath, SHA256: res.SHA256, Bytes: res.Bytes, Rows: res.Rows,
+		Log: drawfolder.LogInfo{Path: in.LogPath, SHA256: res.SHA256, Bytes: res.Bytes, Rows: res.Rows,
 			Format: res.Format, Compression: res.Compression},
 		IDColumn:      in.IDColumn,
 		StrataColumns: append([]string{}, in.StrataColumns...),
 		ShowColumns:   append([]string{}, in.Show...),
-		Allocation: AllocationInfo{Rule: ruleName(in.Alloc.Rule), MinPerStratum: in.Alloc.MinPerStratum,
+		Allocation: drawfolder.AllocationInfo{Rule: ruleName(in.Alloc.Rule), MinPerStratum: in.Alloc.MinPerStratum,
 			Spare: in.Alloc.Spare, NeymanSource: in.NeymanSource},
 		Double:  in.Double,
 		LotSize: res.InScope,
@@ -230,7 +231,7 @@ func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, sel
 		m.DuplicatesDropped = len(res.Duplicates)
 	}
 	for _, a := range alloc {
-		m.Strata = append(m.Strata, StratumInfo{Label: a.Label, Population: a.Population, Sample: a.Sample,
+		m.Strata = append(m.Strata, drawfolder.StratumInfo{Label: a.Label, Population: a.Population, Sample: a.Sample,
 			Spare: a.Spare, Weight: a.Weight, Anticipated: a.Anticipated})
 	}
 	return m
@@ -301,13 +302,13 @@ func bandAnticipated(in DrawInput, counts []StratumCount) (map[string]float64, e
 	return out, nil
 }
 
-func sortByKey(rows []LedgerRow, src []*Row) {
+func sortByKey(rows []drawfolder.LedgerRow, src []*Row) {
 	idx := make([]int, len(rows))
 	for i := range idx {
 		idx[i] = i
 	}
 	sort.Slice(idx, func(a, b int) bool { return keyLess(&src[idx[a]].Key, &src[idx[b]].Key) })
-	r2 := make([]LedgerRow, len(rows))
+	r2 := make([]drawfolder.LedgerRow, len(rows))
 	s2 := make([]*Row, len(src))
 	for i, j := range idx {
 		r2[i], s2[i] = rows[j], src[j]

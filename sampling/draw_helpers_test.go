@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"probity/plan"
+	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 )
 
@@ -33,7 +34,7 @@ func genLog(t testing.TB, c loggen.Config) []byte {
 	return b.Bytes()
 }
 
-func renderMap(t testing.TB, f *Folder) map[string][]byte {
+func renderMap(t testing.TB, f *drawfolder.Content) map[string][]byte {
 	t.Helper()
 	files, err := f.Render()
 	if err != nil {

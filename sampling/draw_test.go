@@ -16,6 +16,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"probity/internal/needs"
+	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 )
 
@@ -238,9 +239,9 @@ func TestOutputsDoNotDependOnOrderCompressionFormatOrSplit(t *testing.T) {
 	}
 	for _, v := range variants {
 		got := drawFiles(t, v.log, v.file, v.mod)
-		names := []string{LedgerFile, WorksheetFile, WorksheetSecondFile}
+		names := []string{drawfolder.LedgerFile, drawfolder.WorksheetFile, drawfolder.WorksheetSecondFile}
 		if v.ledgerO {
-			names = []string{LedgerFile}
+			names = []string{drawfolder.LedgerFile}
 		}
 		for _, n := range names {
 			if !bytes.Equal(got[n], want[n]) {
@@ -250,11 +251,11 @@ func TestOutputsDoNotDependOnOrderCompressionFormatOrSplit(t *testing.T) {
 	}
 	// The gzip and plain manifests differ only where they describe the file.
 	gzf := drawFiles(t, genLog(t, gz), "log.csv", nil)
-	m1, _ := ParseManifest(want[ManifestFile], "a")
-	m2, _ := ParseManifest(gzf[ManifestFile], "b")
-	m1.Log, m2.Log = LogInfo{}, LogInfo{}
-	b1, _ := MarshalManifest(m1)
-	b2, _ := MarshalManifest(m2)
+	m1, _ := drawfolder.ParseManifest(want[drawfolder.ManifestFile], "a")
+	m2, _ := drawfolder.ParseManifest(gzf[drawfolder.ManifestFile], "b")
+	m1.Log, m2.Log = drawfolder.LogInfo{}, drawfolder.LogInfo{}
+	b1, _ := drawfolder.MarshalManifest(m1)
+	b2, _ := drawfolder.MarshalManifest(m2)
 	if !bytes.Equal(b1, b2) {
 		t.Errorf("gzip and plain manifests differ beyond the log description:\n%s\n%s", b1, b2)
 	}
@@ -319,7 +320,7 @@ func TestQuotedCSVAcrossChunks(t *testing.T) {
 		m := renderMap(t, f)
 		if first == nil {
 			first = m
-		} else if !bytes.Equal(first[LedgerFile], m[LedgerFile]) || !bytes.Equal(first[WorksheetFile], m[WorksheetFile]) {
+		} else if !bytes.Equal(first[drawfolder.LedgerFile], m[drawfolder.LedgerFile]) || !bytes.Equal(first[drawfolder.WorksheetFile], m[drawfolder.WorksheetFile]) {
 			t.Fatalf("chunk size %d changes the outputs", cs)
 		}
 	}

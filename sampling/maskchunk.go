@@ -11,9 +11,7 @@ import (
 // separators and line ends (delimscan) are in w.seps and w.nls. Records
 // and the needed fields are cut with bit arithmetic and the separators
 // after the last needed field only counted — the same records and fields
-// as splitting each line. Rows are hashed two at a time: a row waits in
-// the loop for the next one (its id and record stay in the chunk until
-// the chunk is done).
+// as splitting each line.
 //
 // This is the hot loop of every draw; chunkQuoted repeats its shape with
 // the quote bookkeeping, which here would cost about 3 % of a draw.
@@ -25,11 +23,7 @@ func (w *worker) chunkPlain(c chunk) {
 	last := w.hotLast
 	vals := w.vals
 	idSlot := w.s.idSlot
-	pair := w.keys.pair
 	line := c.line
-	var pst *wstratum
-	var pid, prec []byte
-	var pline int64
 	for recStart := 0; recStart < n; line++ {
 		nl := delimscan.Next(nls, recStart, n)
 		end := nl
@@ -61,29 +55,15 @@ func (w *worker) chunkPlain(c chunk) {
 				return
 			}
 			if st != nil {
-				rec, id := data[recStart:end], vals[idSlot]
-				switch {
-				case !pair:
-					k := w.keys.key(id)
-					w.consider(st, &k, id, line, rec, false)
-				case pst == nil:
-					pst, pid, pline, prec = st, id, line, rec
-				default:
-					ka, kb := w.keys.key2(pid, id)
-					w.consider(pst, &ka, pid, pline, prec, false)
-					w.consider(st, &kb, id, line, rec, false)
-					pst = nil
-				}
+				id := vals[idSlot]
+				k := w.keys.key(id)
+				w.consider(st, &k, id, line, data[recStart:end], false)
 			}
 			if c.seq > w.s.errSeq.Load() {
 				return
 			}
 		}
 		recStart = nl + 1
-	}
-	if pst != nil {
-		k := w.keys.key(pid)
-		w.consider(pst, &k, pid, pline, prec, false)
 	}
 }
 
@@ -107,14 +87,7 @@ func (w *worker) chunkQuoted(c chunk) {
 	last := w.hotLast
 	vals := w.vals
 	idSlot := w.s.idSlot
-	pair := w.keys.pair
 	line := c.line
-	// A row waiting for a second one, so that both are hashed together;
-	// its id and record stay in the chunk until the chunk is done.
-	var pst *wstratum
-	var pid, prec []byte
-	var pline int64
-	var pquoted bool
 	for recStart := 0; recStart < n; {
 		nl := delimscan.Next(nls, recStart, n)
 		end := nl
@@ -148,11 +121,6 @@ func (w *worker) chunkQuoted(c chunk) {
 				}
 			}
 			if !ok {
-				if pst != nil {
-					k := w.keys.key(pid)
-					w.consider(pst, &k, pid, pline, prec, pquoted)
-					pst = nil
-				}
 				if err := w.record(line, data[recStart:end]); err != nil {
 					w.s.fail(c.seq, err)
 					return
@@ -164,19 +132,9 @@ func (w *worker) chunkQuoted(c chunk) {
 					return
 				}
 				if st != nil {
-					rec, id := data[recStart:end], vals[idSlot]
-					switch {
-					case !pair:
-						k := w.keys.key(id)
-						w.consider(st, &k, id, line, rec, hasQuotes)
-					case pst == nil:
-						pst, pid, pline, prec, pquoted = st, id, line, rec, hasQuotes
-					default:
-						ka, kb := w.keys.key2(pid, id)
-						w.consider(pst, &ka, pid, pline, prec, pquoted)
-						w.consider(st, &kb, id, line, rec, hasQuotes)
-						pst = nil
-					}
+					id := vals[idSlot]
+					k := w.keys.key(id)
+					w.consider(st, &k, id, line, data[recStart:end], hasQuotes)
 				}
 			}
 			if c.seq > w.s.errSeq.Load() {
@@ -185,10 +143,6 @@ func (w *worker) chunkQuoted(c chunk) {
 		}
 		line += phys
 		recStart = nl + 1
-	}
-	if pst != nil {
-		k := w.keys.key(pid)
-		w.consider(pst, &k, pid, pline, prec, pquoted)
 	}
 }
 

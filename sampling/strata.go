@@ -99,3 +99,7 @@ func ParseFilter(s string) (Filter, error) {
 
 // String is the filter's definition.
 func (f Filter) String() string { return f.Column + "=" + strings.Join(f.Values, ",") }
+
+// formatFloat writes a band edge as the shortest decimal that reads back
+// to the same float64, never with an exponent.
+func formatFloat(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }

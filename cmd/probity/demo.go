@@ -15,9 +15,10 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"probity/plan"
 	"probity/plan/inputerr"
-	"probity/sampling"
 	"probity/sampling/demolog"
+	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 )
 
@@ -54,6 +55,9 @@ published with the source: it signs nothing but demo records.
 	cmd.Flags().BoolVar(&opts.force, "force", false, "replace the artifacts of an earlier demo in --out")
 	return cmd
 }
+
+// demoPlan is the plan file of the demo, inside its folder.
+const demoPlan = "plan.yaml"
 
 // demoUnsureAt are the main items (1-based, among main items) the simulated
 // labeler marks unsure.
@@ -115,8 +119,8 @@ func runDemo(d deps, o *demoOptions) error {
 		return r, nil
 	}
 
-	const planPath, keyPath = "plan.yaml", "keys/demo-signing-key"
-	plan, err := step("plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--producer-risk", "0.10",
+	const planPath, keyPath = demoPlan, "keys/demo-signing-key"
+	planRun, err := step("plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--producer-risk", "0.10",
 		"--thresholds", "defect_score:0.35,0.50,0.65", "--positive", demolog.Defect, "--negative", demolog.Sound,
 		"--require", "any", "--system", sc.System, "--system-version", sc.SystemVersion,
 		"--seed", demolog.PlanSeed, "--out", planPath)
@@ -134,7 +138,7 @@ func runDemo(d deps, o *demoOptions) error {
 
 	w := d.stdout
 	fmt.Fprintf(w, "probity demo: %s — %s (invented scenario)\n", sc.Organisation, sc.System)
-	fmt.Fprintf(w, "  plan      %s: %s\n", shown(planPath), firstLine(plan.stdout))
+	fmt.Fprintf(w, "  plan      %s: %s\n", shown(planPath), firstLine(planRun.stdout))
 	var recDirs []string
 	var last demoMonth
 	for i, m := range months {
@@ -259,12 +263,12 @@ func runDemoMonth(m demolog.Scenario, base string, step func(...string) (demoRun
 // demoSecondLabels labels the draw's worksheet-second.csv as the second
 // labeler would and writes the adjudication of every disagreement (paths
 // relative to base).
-func demoSecondLabels(m demolog.Scenario, base string, res *demoMonth, first []sampling.WorksheetRow) error {
-	man, _, err := sampling.ReadManifest(filepath.Join(base, res.drawDir, sampling.ManifestFile))
+func demoSecondLabels(m demolog.Scenario, base string, res *demoMonth, first []drawfolder.WorksheetRow) error {
+	f, err := openDemoDraw(base, res.drawDir)
 	if err != nil {
 		return err
 	}
-	_, rows, err := sampling.ReadWorksheet(filepath.Join(base, res.drawDir, sampling.WorksheetSecondFile))
+	_, rows, err := drawfolder.ReadWorksheet(f.Path(drawfolder.WorksheetSecondFile))
 	if err != nil {
 		return err
 	}
@@ -276,7 +280,7 @@ func demoSecondLabels(m demolog.Scenario, base string, res *demoMonth, first []s
 	res.secondPath = filepath.Join(dir, "worksheet-second-labeled.csv")
 	res.adjudicatedPath = filepath.Join(dir, "adjudication.csv")
 	res.doubled = len(second)
-	if err := writeDemoFile(filepath.Join(base, res.secondPath), func(w io.Writer) error { return sampling.WriteWorksheet(w, man.ShowColumns, second) }); err != nil {
+	if err := writeDemoFile(filepath.Join(base, res.secondPath), func(w io.Writer) error { return drawfolder.WriteWorksheet(w, f.Manifest.ShowColumns, second) }); err != nil {
 		return err
 	}
 	return writeDemoFile(filepath.Join(base, res.adjudicatedPath), func(w io.Writer) error {
@@ -338,26 +342,13 @@ func runDemoStep(d deps, base string, cmdlog *bytes.Buffer, args []string) demoR
 // writes it to path (drawDir and path are relative to base). With prefix >
 // 0 only the first prefix items keep their labels, as midway through
 // labeling from the top.
-func demoLabel(sc demolog.Scenario, base, drawDir, path string, prefix int) (demolog.LabelingSummary, []sampling.WorksheetRow, error) {
+func demoLabel(sc demolog.Scenario, base, drawDir, path string, prefix int) (demolog.LabelingSummary, []drawfolder.WorksheetRow, error) {
 	var sum demolog.LabelingSummary
-	drawDir, path = filepath.Join(base, drawDir), filepath.Join(base, path)
-	m, _, err := sampling.ReadManifest(filepath.Join(drawDir, sampling.ManifestFile))
+	f, err := openDemoDraw(base, drawDir)
 	if err != nil {
 		return sum, nil, err
 	}
-	_, rows, err := sampling.ReadWorksheet(filepath.Join(drawDir, sampling.WorksheetFile))
-	if err != nil {
-		return sum, nil, err
-	}
-	names, err := demoCandidateNames(drawDir)
-	if err != nil {
-		return sum, nil, err
-	}
-	ledger, err := sampling.ReadLedger(filepath.Join(drawDir, sampling.LedgerFile), names)
-	if err != nil {
-		return sum, nil, err
-	}
-	labeled, sum, err := sc.Label(rows, ledger, demoUnsureAt)
+	labeled, sum, err := sc.Label(f.Worksheet, f.Ledger, demoUnsureAt)
 	if err != nil {
 		return sum, nil, err
 	}
@@ -366,23 +357,18 @@ func demoLabel(sc demolog.Scenario, base, drawDir, path string, prefix int) (dem
 			labeled[i].Label, labeled[i].Note, labeled[i].Labeler = "", "", ""
 		}
 	}
-	err = writeDemoFile(path, func(w io.Writer) error { return sampling.WriteWorksheet(w, m.ShowColumns, labeled) })
+	err = writeDemoFile(filepath.Join(base, path), func(w io.Writer) error { return drawfolder.WriteWorksheet(w, f.Manifest.ShowColumns, labeled) })
 	return sum, labeled, err
 }
 
-// demoCandidateNames reads the candidate columns from the ledger header.
-func demoCandidateNames(drawDir string) ([]string, error) {
-	data, err := os.ReadFile(filepath.Join(drawDir, sampling.LedgerFile))
+// openDemoDraw opens a draw folder of the demo against the demo's plan,
+// as record and progress open it (drawDir relative to base).
+func openDemoDraw(base, drawDir string) (*drawfolder.Folder, error) {
+	p, fp, err := plan.LoadForJudging(filepath.Join(base, demoPlan))
 	if err != nil {
 		return nil, err
 	}
-	header, _, _ := strings.Cut(string(data), "\n")
-	fixed := len(sampling.LedgerHeader(nil))
-	cols := strings.Split(strings.TrimRight(header, "\r"), ",")
-	if len(cols) <= fixed {
-		return nil, fmt.Errorf("%s: no candidate columns", sampling.LedgerFile)
-	}
-	return cols[fixed:], nil
+	return drawfolder.Open(filepath.Join(base, drawDir), fp, p.CandidateNames())
 }
 
 // demoArtifact matches the names the demo writes at the top of its folder.

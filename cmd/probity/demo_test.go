@@ -14,7 +14,7 @@ import (
 
 	"probity/internal/needs"
 	"probity/plan/record"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // demoTestOptions are the test deps of a demo run: a clock deliberately not
@@ -69,14 +69,14 @@ func TestDemoEndToEnd(t *testing.T) {
 		}
 	}
 
-	m, _, err := sampling.ReadManifest(filepath.Join(a, "draw-2026-11", sampling.ManifestFile))
+	m, _, err := drawfolder.ReadManifest(filepath.Join(a, "draw-2026-11", drawfolder.ManifestFile))
 	if err != nil {
 		t.Fatal(err)
 	}
 	if m.Period != "2026-11" || m.SampleSize < 1000 || len(m.Strata) != 4 {
 		t.Fatalf("manifest period %q, n %d, %d strata", m.Period, m.SampleSize, len(m.Strata))
 	}
-	for _, f := range []string{sampling.WorksheetFile, sampling.LedgerFile} {
+	for _, f := range []string{drawfolder.WorksheetFile, drawfolder.LedgerFile} {
 		if got := sha256File(t, filepath.Join(a, "draw-2026-11", f)); got != m.Files[f] {
 			t.Errorf("manifest says %s has sha256 %s, the file has %s", f, m.Files[f], got)
 		}

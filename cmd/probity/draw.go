@@ -14,6 +14,7 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 )
 
@@ -295,7 +296,7 @@ func runDraw(d deps, o *drawOptions) error {
 	if err != nil {
 		return drawError(err)
 	}
-	if err := sampling.WriteFolder(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: o.inputs()}); err != nil {
+	if err := drawfolder.Write(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: o.inputs()}); err != nil {
 		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
@@ -313,7 +314,7 @@ func (o *drawOptions) inputs() []string {
 
 // drawFromLog opens the log and draws, with a progress bar when stderr is
 // a terminal and the log is large.
-func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*sampling.Folder, error) {
+func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*drawfolder.Content, error) {
 	r, closeLog, size, err := openDrawLog(d, o.logPath)
 	if err != nil {
 		return nil, err
@@ -333,7 +334,7 @@ func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*sampling.Fold
 }
 
 // writeDrawSummary prints what was drawn.
-func writeDrawSummary(w io.Writer, dir string, f *sampling.Folder) {
+func writeDrawSummary(w io.Writer, dir string, f *drawfolder.Content) {
 	m := f.Manifest
 	fmt.Fprintf(w, "drew %d items", m.SampleSize)
 	if m.Spares > 0 {
@@ -359,14 +360,14 @@ func writeDrawSummary(w io.Writer, dir string, f *sampling.Folder) {
 		fmt.Fprintf(w, "selection seed: %s (the plan's)\n", m.SelectionSeed)
 	}
 	if m.Double > 0 {
-		fmt.Fprintf(w, "doubled: items 1–%d also in %s\n", m.Double, sampling.WorksheetSecondFile)
+		fmt.Fprintf(w, "doubled: items 1–%d also in %s\n", m.Double, drawfolder.WorksheetSecondFile)
 	}
 	if m.DuplicatesDropped > 0 {
 		fmt.Fprintf(w, "repeated ids: %d later rows dropped (--dedupe first)\n", m.DuplicatesDropped)
 	}
 	fmt.Fprintf(w, "log sha256: %s (%d bytes)\n", m.Log.SHA256, m.Log.Bytes)
 	fmt.Fprintf(w, "give %s to the labelers; keep %s and %s\n",
-		filepath.Join(dir, sampling.WorksheetFile), filepath.Join(dir, sampling.LedgerFile), filepath.Join(dir, sampling.ManifestFile))
+		filepath.Join(dir, drawfolder.WorksheetFile), filepath.Join(dir, drawfolder.LedgerFile), filepath.Join(dir, drawfolder.ManifestFile))
 }
 
 func formatWeight(w float64) string {
@@ -381,25 +382,25 @@ func runDrawCheck(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
-	mpath := filepath.Join(o.check, sampling.ManifestFile)
-	m, _, err := sampling.ReadManifest(mpath)
+	mpath := filepath.Join(o.check, drawfolder.ManifestFile)
+	m, _, err := drawfolder.ReadManifest(mpath)
 	if err != nil {
 		if errors.Is(err, os.ErrNotExist) {
-			return inputerr.Errorf("%s has no %s: it is not a draw folder", o.check, sampling.ManifestFile).WithHint("give the folder written by probity draw --out")
+			return inputerr.Errorf("%s has no %s: it is not a draw folder", o.check, drawfolder.ManifestFile).WithHint("give the folder written by probity draw --out")
 		}
 		return err
 	}
 	// The settings come from the manifest: an error about one names it.
 	in, err := sampling.DrawInputFromManifest(m)
 	if err != nil {
-		return inFile(err, mpath)
+		return inputerr.InFile(err, mpath)
 	}
 	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
-		return inFile(err, mpath)
+		return inputerr.InFile(err, mpath)
 	}
-	rep, err := sampling.CompareFolder(o.check, f)
+	rep, err := drawfolder.Compare(o.check, f)
 	if err != nil {
 		return err
 	}

@@ -11,16 +11,20 @@ import (
 
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 	"probity/sampling/sqlquery"
 )
 
 // drawSQLOptions are the flags that make draw work with a database: print
-// the query (--sql with --table) or import its result (--selected).
+// the query (--sql with --table) or import its result (--selected); for a
+// dialect that draws in two steps (clickhouse), --counts names the result
+// of the first query.
 type drawSQLOptions struct {
 	dialect  string
 	table    string
 	selected string
+	counts   string
 }
 
 // drawSQLHelp is added to draw's long help.
@@ -44,7 +48,20 @@ a NULL or empty id, or an id on more than one row, is refused. An export of
 the table written with NULL '(null)', e.g.
   COPY t TO STDOUT (FORMAT csv, HEADER, NULL '(null)')
 gives the same worksheet and ledger with --log, and
-probity draw --check DIR --log EXPORT verifies a draw made in the engine.`
+probity draw --check DIR --log EXPORT verifies a draw made in the engine.
+
+ClickHouse draws in two steps (it has no window functions). With --sql
+clickhouse --table NAME, draw prints the counts query; run it with
+  clickhouse-client < counts.sql > counts.csv
+then draw --plan PLAN.yaml --sql clickhouse --counts counts.csv allocates the
+sample from those counts (as a draw from a file does; the other settings come
+from counts.csv) and prints the selection query; run it the same way and
+import its result with --counts counts.csv --selected selected.csv --out DIR.
+The import checks the selection against the counts (the table counted again
+must give the same strata) and the manifest records the counts file's
+SHA-256. Both queries end with FORMAT CSVWithNames, which writes ids exactly.
+Never set skip_unavailable_shards (the queries pin it to 0): a shard that does
+not answer must fail the query, not drop its rows.`
 
 // hookDrawSQL adds --sql, --table and --selected to the draw command and
 // routes the command to the SQL paths when they are given; otherwise the
@@ -52,19 +69,27 @@ probity draw --check DIR --log EXPORT verifies a draw made in the engine.`
 func hookDrawSQL(d deps, cmd *cobra.Command, o *drawOptions) {
 	so := &drawSQLOptions{}
 	fl := cmd.Flags()
-	fl.StringVar(&so.dialect, "sql", "", "print the query that draws inside a database instead, for `DIALECT` postgres or duckdb")
+	fl.StringVar(&so.dialect, "sql", "", "print the query that draws inside a database instead, for `DIALECT` postgres, duckdb or clickhouse")
 	fl.StringVar(&so.table, "table", "", "with --sql: the table or view to draw from (`NAME` or schema.name)")
 	fl.StringVar(&so.selected, "selected", "", "import the drawing query's result `FILE` (CSV; - for stdin) into the folder --out")
+	fl.StringVar(&so.counts, "counts", "", "with --sql clickhouse: print the selection query for the counts query's result `FILE`; with --selected: the counts it was made from")
 	cmd.Long = strings.Replace(cmd.Long, "\n\n"+exitCodesHelp, drawSQLHelp+"\n\n"+exitCodesHelp, 1)
 	cmd.Example += `
   probity draw --plan plan.yaml --sql postgres --table analytics.predictions \
       --strata region --show text > draw.sql
-  probity draw --plan plan.yaml --selected result.csv --out audit-2026-11`
+  probity draw --plan plan.yaml --selected result.csv --out audit-2026-11
+  probity draw --plan plan.yaml --sql clickhouse --table logs.predictions --strata region > counts.sql
+  probity draw --plan plan.yaml --sql clickhouse --counts counts.csv > selection.sql
+  probity draw --plan plan.yaml --counts counts.csv --selected selected.csv --out audit-2026-11`
 	pre, run := cmd.PreRunE, cmd.RunE
 	cmd.PreRunE = func(c *cobra.Command, args []string) error {
 		if so.dialect == "" && so.selected == "" {
 			if so.table != "" {
-				return inputerr.Errorf("--table is only used with --sql").WithHint("add --sql postgres or --sql duckdb to print the drawing query")
+				return inputerr.Errorf("--table is only used with --sql").WithHint("add --sql postgres, duckdb or clickhouse to print the drawing query")
+			}
+			if so.counts != "" {
+				return inputerr.Errorf("--counts is only used with --sql clickhouse or --selected").
+					WithHint("print the selection query with --sql clickhouse --counts FILE, or import its result with --counts FILE --selected RESULT")
 			}
 			return pre(c, args)
 		}
@@ -73,7 +98,7 @@ func hookDrawSQL(d deps, cmd *cobra.Command, o *drawOptions) {
 	cmd.RunE = func(c *cobra.Command, args []string) error {
 		switch {
 		case so.dialect != "":
-			return runDrawSQL(d, o, so)
+			return runDrawSQL(d, c, o, so)
 		case so.selected != "":
 			return runDrawSelected(d, c, o, so)
 		case o.check != "" && isEngineDraw(o.check):
@@ -110,12 +135,20 @@ func (so *drawSQLOptions) validate(c *cobra.Command, o *drawOptions) error {
 		if o.out == "" {
 			return inputerr.Errorf("--out is required").WithHint("name the folder to write the draw into, e.g. --out audit-2026-11")
 		}
+		if so.selected == "-" && so.counts == "-" {
+			return inputerr.Errorf("--counts and --selected cannot both read stdin")
+		}
 		return nil
 	}
-	if _, err := sqlquery.ParseDialect(so.dialect); err != nil {
+	dialect, err := sqlquery.ParseDialect(so.dialect)
+	if err != nil {
 		return inputerr.Errorf("--sql: %v", err).WithHint("e.g. --sql postgres")
 	}
-	if so.table == "" {
+	if so.counts != "" && !dialect.TwoStep() {
+		return inputerr.Errorf("--counts cannot be used with --sql %s", dialect).
+			WithHint("--sql " + string(dialect) + " prints one query that counts and selects; --counts is for --sql clickhouse")
+	}
+	if so.table == "" && so.counts == "" {
 		return inputerr.Errorf("--sql needs --table").WithHint("name the table or view holding the prediction log, e.g. --table analytics.predictions")
 	}
 	if o.allocation == sampling.Neyman {
@@ -181,11 +214,18 @@ var sqlFlags = map[string]string{
 	"double": "--double", "spare": "--spare", "min_per_stratum": "--min-per-stratum", "allocation": "--allocation",
 }
 
-// runDrawSQL prints the drawing query.
-func runDrawSQL(d deps, o *drawOptions, so *drawSQLOptions) error {
+// runDrawSQL prints the drawing query (for clickhouse, the counts query,
+// or with --counts the selection query).
+func runDrawSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOptions) error {
+	if so.counts != "" {
+		return runDrawSelectionSQL(d, c, o, so)
+	}
 	s, err := drawSpec(d, o, so, o.planPath)
 	if err != nil {
 		return err
+	}
+	if s.Dialect.TwoStep() {
+		return printCountsQuery(d, o, s)
 	}
 	q, err := sqlquery.Query(s)
 	if err != nil {
@@ -195,13 +235,74 @@ func runDrawSQL(d deps, o *drawOptions, so *drawSQLOptions) error {
 		return err
 	}
 	if !o.quiet {
-		fmt.Fprintf(d.stderr, "probity: query for %s on %s, sha256 %s\n", s.Dialect, s.Table, sampling.SHA256Hex([]byte(q)))
+		fmt.Fprintf(d.stderr, "probity: query for %s on %s, sha256 %s\n", s.Dialect, s.Table, drawfolder.SHA256Hex([]byte(q)))
 		fmt.Fprintf(d.stderr, "probity: run it, save the result as CSV with a header, then: probity draw --plan %s --selected RESULT.csv --out DIR\n", o.planPath)
 	}
 	return nil
 }
 
-// runDrawSelected imports a query's result into the draw folder.
+// printCountsQuery prints the first query of a two-step draw.
+func printCountsQuery(d deps, o *drawOptions, s *sqlquery.Spec) error {
+	q, err := sqlquery.CountsQuery(s)
+	if err != nil {
+		return flagNames(err, sqlFlags)
+	}
+	if _, err := io.WriteString(d.stdout, q); err != nil {
+		return err
+	}
+	noteQuerySize(d, q)
+	if !o.quiet {
+		fmt.Fprintf(d.stderr, "probity: counts query (step 1 of 2) for %s on %s, sha256 %s\n", s.Dialect, s.Table, drawfolder.SHA256Hex([]byte(q)))
+		fmt.Fprintf(d.stderr, "probity: run it, save the result as CSV with a header, then: probity draw --plan %s --sql %s --counts COUNTS.csv > selection.sql\n", o.planPath, s.Dialect)
+	}
+	return nil
+}
+
+// noteQuerySize warns when a ClickHouse query is longer than the server
+// parses by default.
+func noteQuerySize(d deps, q string) {
+	if len(q) > sqlquery.ClickHouseMaxQuerySize {
+		fmt.Fprintf(d.stderr, "probity: the query is %d bytes, more than ClickHouse parses by default (max_query_size %d)\nhint: run it with clickhouse-client --max_query_size=%d\n",
+			len(q), sqlquery.ClickHouseMaxQuerySize, len(q)+1)
+	}
+}
+
+// runDrawSelectionSQL reads the counts query's result, allocates the
+// sample and prints the selection query.
+func runDrawSelectionSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOptions) error {
+	p, fp, err := loadDrawPlan(o.planPath)
+	if err != nil {
+		return err
+	}
+	counts, err := sqlquery.ReadCounts(so.counts, d.stdin, p, fp)
+	if err != nil {
+		return drawError(err)
+	}
+	if err := checkResultFlags(so.counts, c, o, so, counts.Spec); err != nil {
+		return err
+	}
+	q, err := sqlquery.SelectionQuery(counts)
+	if err != nil {
+		return flagNames(err, sqlFlags)
+	}
+	if _, err := io.WriteString(d.stdout, q); err != nil {
+		return err
+	}
+	noteQuerySize(d, q)
+	if !o.quiet {
+		n, spares := 0, 0
+		for _, a := range counts.Strata {
+			n, spares = n+a.Sample, spares+a.Spare
+		}
+		fmt.Fprintf(d.stderr, "probity: selection query (step 2 of 2) for %s on %s, sha256 %s: %d items and %d spares from %d strata (%d rows in scope)\n",
+			counts.Spec.Dialect, counts.Spec.Table, drawfolder.SHA256Hex([]byte(q)), n, spares, len(counts.Strata), counts.InScope)
+		fmt.Fprintf(d.stderr, "probity: run it, save the result as CSV with a header, then: probity draw --plan %s --counts %s --selected RESULT.csv --out DIR\n", o.planPath, so.counts)
+	}
+	return nil
+}
+
+// runDrawSelected imports a query's result into the draw folder (with
+// --counts, a two-step selection checked against its counts).
 func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOptions) error {
 	p, fp, err := loadDrawPlan(o.planPath)
 	if err != nil {
@@ -210,30 +311,41 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 	if err := safewrite.CheckFolder(o.out, o.force); err != nil {
 		return drawError(err)
 	}
-	res, err := sqlquery.Import(so.selected, d.stdin, p, fp)
-	if err != nil {
+	var res *sqlquery.Result
+	if so.counts != "" {
+		counts, err := sqlquery.ReadCounts(so.counts, d.stdin, p, fp)
+		if err != nil {
+			return drawError(err)
+		}
+		if res, err = sqlquery.ImportSelection(so.selected, d.stdin, p, fp, counts); err != nil {
+			return drawError(err)
+		}
+	} else if res, err = sqlquery.Import(so.selected, d.stdin, p, fp); err != nil {
 		return drawError(err)
 	}
-	if err := checkSelectedFlags(c, o, so, res.Spec); err != nil {
+	if err := checkResultFlags(so.selected, c, o, so, res.Spec); err != nil {
 		return err
 	}
 	f, err := res.Folder(d.version)
 	if err != nil {
 		return drawError(err)
 	}
-	if err := sampling.WriteFolder(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: []string{o.planPath, so.selected}}); err != nil {
+	if err := drawfolder.Write(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: []string{o.planPath, so.selected, so.counts}}); err != nil {
 		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
 	fmt.Fprintf(d.stdout, "drawn inside %s from table %s (the log above is the query's result); query sha256 %s\n", res.Spec.Dialect, res.Spec.Table, res.QuerySHA256)
+	if res.Counts != nil {
+		fmt.Fprintf(d.stdout, "allocated from the counts in %s (sha256 %s)\n", res.Counts.Path, res.Counts.SHA256)
+	}
 	return nil
 }
 
-// checkSelectedFlags refuses a draw setting given with --selected that
-// differs from the one the result was made with: the result carries its
-// settings, and a differing flag means the wrong result or the wrong
-// command line.
-func checkSelectedFlags(c *cobra.Command, o *drawOptions, so *drawSQLOptions, s *sqlquery.Spec) error {
+// checkResultFlags refuses a draw setting given with --selected (or with
+// --counts) that differs from the one the result file was made with: the
+// result carries its settings, and a differing flag means the wrong result
+// or the wrong command line.
+func checkResultFlags(file string, c *cobra.Command, o *drawOptions, so *drawSQLOptions, s *sqlquery.Spec) error {
 	bands := make([]string, len(o.bands))
 	for i, b := range o.bands {
 		if pb, err := sampling.ParseBand(b); err == nil {
@@ -269,7 +381,7 @@ func checkSelectedFlags(c *cobra.Command, o *drawOptions, so *drawSQLOptions, s 
 	}
 	for _, ch := range checks {
 		if c.Flags().Changed(ch.flag) && ch.given != ch.in {
-			return inputerr.Errorf("%s: --%s %q differs from the draw the result was made for (%q)", so.selected, ch.flag, ch.given, ch.in).WithHint("the result carries the draw's settings; drop the flag, or import the result of the query printed with these settings")
+			return inputerr.Errorf("%s: --%s %q differs from the draw the result was made for (%q)", file, ch.flag, ch.given, ch.in).WithHint("the result carries the draw's settings; drop the flag, or import the result of the query printed with these settings")
 		}
 	}
 	return nil
@@ -278,7 +390,7 @@ func checkSelectedFlags(c *cobra.Command, o *drawOptions, so *drawSQLOptions, s 
 // isEngineDraw reports whether the draw folder dir was made inside a
 // database (its manifest names an engine).
 func isEngineDraw(dir string) bool {
-	m, _, err := sampling.ReadManifest(filepath.Join(dir, sampling.ManifestFile))
+	m, _, err := drawfolder.ReadManifest(filepath.Join(dir, drawfolder.ManifestFile))
 	return err == nil && m.Engine != nil
 }
 
@@ -292,24 +404,24 @@ func runDrawCheckEngine(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
-	mpath := filepath.Join(o.check, sampling.ManifestFile)
-	m, _, err := sampling.ReadManifest(mpath)
+	mpath := filepath.Join(o.check, drawfolder.ManifestFile)
+	m, _, err := drawfolder.ReadManifest(mpath)
 	if err != nil {
 		return err
 	}
 	in, err := sampling.DrawInputFromManifest(m)
 	if err != nil {
-		return inFile(err, mpath)
+		return inputerr.InFile(err, mpath)
 	}
 	in.Format = ""
 	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
-		return inFile(err, mpath)
+		return inputerr.InFile(err, mpath)
 	}
 	exportSHA, exportBytes := f.Manifest.Log.SHA256, f.Manifest.Log.Bytes
 	f.Manifest.Log.SHA256, f.Manifest.Log.Bytes = m.Log.SHA256, m.Log.Bytes
-	rep, err := sampling.CompareFolder(o.check, f)
+	rep, err := drawfolder.Compare(o.check, f)
 	if err != nil {
 		return err
 	}

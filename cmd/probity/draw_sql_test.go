@@ -12,7 +12,7 @@ import (
 	"testing"
 
 	"probity/internal/pgtest"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 )
 
@@ -87,7 +87,7 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("--sql: exit %d: %s", code, stderr)
 	}
-	querySHA := sampling.SHA256Hex([]byte(query))
+	querySHA := drawfolder.SHA256Hex([]byte(query))
 	if !strings.Contains(stderr, "sha256 "+querySHA) || !strings.Contains(stderr, "--selected RESULT.csv") {
 		t.Errorf("stderr should give the query's SHA-256 and the next step:\n%s", stderr)
 	}
@@ -119,15 +119,15 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("--log: exit %d: %s", code, stderr)
 	}
-	for _, f := range []string{sampling.WorksheetFile, sampling.WorksheetSecondFile, sampling.LedgerFile} {
+	for _, f := range []string{drawfolder.WorksheetFile, drawfolder.WorksheetSecondFile, drawfolder.LedgerFile} {
 		a, _ := os.ReadFile(filepath.Join(sqlDir, f))
 		b, _ := os.ReadFile(filepath.Join(logDir, f))
 		if len(a) == 0 || !bytes.Equal(a, b) {
 			t.Errorf("%s differs between the draw in the engine and the draw from the export", f)
 		}
 	}
-	var m sampling.Manifest
-	data, _ := os.ReadFile(filepath.Join(sqlDir, sampling.ManifestFile))
+	var m drawfolder.Manifest
+	data, _ := os.ReadFile(filepath.Join(sqlDir, drawfolder.ManifestFile))
 	if err := json.Unmarshal(data, &m); err != nil {
 		t.Fatal(err)
 	}
@@ -146,7 +146,7 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 
 	// An export that lost a drawn row does not verify it.
 	var ledgerFirst string
-	if l, err := sampling.ReadLedger(filepath.Join(sqlDir, sampling.LedgerFile), []string{"model-a", "score-0.7"}); err == nil && len(l) > 0 {
+	if l, err := drawfolder.ReadLedger(filepath.Join(sqlDir, drawfolder.LedgerFile), []string{"model-a", "score-0.7"}); err == nil && len(l) > 0 {
 		ledgerFirst = l[0].RecordID
 	}
 	exportData, _ := os.ReadFile(export)
@@ -242,7 +242,7 @@ func TestDrawSQLFlags(t *testing.T) {
 		want string
 	}{
 		{[]string{"--plan", sqlPlan, "--sql", "postgres"}, "probity: --sql needs --table\nhint: name the table or view"},
-		{[]string{"--plan", sqlPlan, "--sql", "oracle", "--table", "t"}, `--sql: unknown SQL dialect "oracle" (supported: postgres, duckdb)`},
+		{[]string{"--plan", sqlPlan, "--sql", "oracle", "--table", "t"}, `--sql: unknown SQL dialect "oracle" (supported: postgres, duckdb, clickhouse)`},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--log", "x.csv"}, "--log cannot be used with --sql\nhint: the query reads the table, not a log"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--out", "d"}, "--out cannot be used with --sql"},
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--allocation", "neyman"}, "--allocation neyman cannot run inside the engine"},
@@ -257,6 +257,12 @@ func TestDrawSQLFlags(t *testing.T) {
 		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--allocation", "best"}, `unknown allocation rule "best"`},
 		{[]string{"--plan", sqlPlan, "--selected", "r.csv", "--sql", "postgres"}, "--sql and --selected cannot be used together"},
 		{[]string{"--plan", sqlPlan, "--log", "x.csv", "--out", "d", "--table", "t"}, "--table is only used with --sql"},
+		{[]string{"--plan", sqlPlan, "--log", "x.csv", "--out", "d", "--counts", "c.csv"}, "--counts is only used with --sql clickhouse or --selected"},
+		{[]string{"--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--counts", "c.csv"}, "--counts cannot be used with --sql postgres"},
+		{[]string{"--plan", sqlPlan, "--sql", "clickhouse"}, "probity: --sql needs --table"},
+		{[]string{"--plan", sqlPlan, "--sql", "clickhouse", "--table", "a.b.c"}, `has 3 parts; ClickHouse names a table database.table`},
+		{[]string{"--plan", sqlPlan, "--sql", "clickhouse", "--table", "t", "--allocation", "neyman"}, "--allocation neyman cannot run inside the engine"},
+		{[]string{"--plan", sqlPlan, "--counts", "-", "--selected", "-", "--out", "d"}, "--counts and --selected cannot both read stdin"},
 	}
 	for _, c := range cases {
 		code, stdout, stderr := runDrawCmd(t, nil, c.args...)

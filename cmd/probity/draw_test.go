@@ -13,6 +13,7 @@ import (
 
 	"probity/plan"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 )
 
@@ -115,7 +116,7 @@ func TestDrawStdinGzipPeriod(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	m, _, err := sampling.ReadManifest(filepath.Join(out, "manifest.json"))
+	m, _, err := drawfolder.ReadManifest(filepath.Join(out, "manifest.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -257,7 +258,7 @@ func TestDrawPopulationPlan(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("period: %s", stderr)
 	}
-	m, _, _ := sampling.ReadManifest(filepath.Join(out, "manifest.json"))
+	m, _, _ := drawfolder.ReadManifest(filepath.Join(out, "manifest.json"))
 	if m.LotSize != 4000 {
 		t.Fatalf("lot size %d", m.LotSize)
 	}
@@ -299,9 +300,9 @@ func TestDrawNeymanAnticipated(t *testing.T) {
 	if code != exitOK || !strings.Contains(stdout, "allocation: neyman") {
 		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
 	}
-	m, _, _ := sampling.ReadManifest(filepath.Join(out, "manifest.json"))
+	m, _, _ := drawfolder.ReadManifest(filepath.Join(out, "manifest.json"))
 	// n_h ∝ N_h·√(p_h(1−p_h)): west (p = 0.1) gets the most, north the least.
-	by := map[string]sampling.StratumInfo{}
+	by := map[string]drawfolder.StratumInfo{}
 	for _, s := range m.Strata {
 		by[s.Label] = s
 	}

@@ -70,16 +70,3 @@ func flagNames(err error, flags map[string]string) error {
 	c.Field = flags[e.Field]
 	return &c
 }
-
-// inFile returns err with File set to file when err is an input error
-// about a setting that came from that file (a Field and no File), such as
-// an option recorded in a draw's manifest.
-func inFile(err error, file string) error {
-	e, ok := err.(*inputerr.Error)
-	if !ok || e.File != "" || e.Field == "" {
-		return err
-	}
-	c := *e
-	c.File = file
-	return &c
-}

@@ -4,8 +4,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"os"
-	"path/filepath"
 	"strings"
 	"text/tabwriter"
 
@@ -15,8 +13,15 @@ import (
 	"probity/plan/inputerr"
 	"probity/plan/progress"
 	"probity/plan/sequential"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
+
+// labelCellHelp says what a label cell may hold, in the help of every
+// command that reads labels (the rule is drawfolder.ParseLabel's).
+const labelCellHelp = `A label cell holds one of the plan's classes, spelled exactly as the plan
+spells it (case counts: "OK" is not the class "ok"), the word "unsure" in any
+case ("Unsure" too) for an item that cannot be decided, or nothing; spaces
+around it are ignored. Anything else is refused, naming the file and line.`
 
 // progressOptions are the flags of probity progress.
 type progressOptions struct {
@@ -38,7 +43,9 @@ can take at most.
 
 The worksheet lists the sample in random key order, so the labeled items at
 its top are themselves a random sample. Label it from the top without skipping
-items: a gap followed by labels breaks that and is refused.
+items: a gap followed by labels breaks that and is refused. The draw folder is
+checked as record checks it: drawn from this plan, its ledger and worksheet
+the files the draw wrote.
 
 A fixed plan (label n, accept at most c errors) stops by exact curtailment:
 reject as soon as the errors exceed c, accept as soon as even all the
@@ -47,6 +54,8 @@ changes: every stop is the decision the full sample would give. A sequential
 plan (probity plan --design sequential) stops at its own boundaries.
 Items labeled "unsure" count as errors toward acceptance and as correct
 toward rejection. Spare items are ignored.
+
+` + labelCellHelp + `
 
 ` + exitCodesHelp + `
 progress exits 0 whenever it could assess the worksheet, whatever the
@@ -66,7 +75,7 @@ decision.`,
 	}
 	fl := cmd.Flags()
 	fl.StringVar(&opts.planPath, "plan", "", "the plan file the sample was drawn from")
-	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv)")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv, worksheet.csv)")
 	fl.StringVar(&opts.labels, "labels", "", "the worksheet, labeled from the top")
 	fl.BoolVar(&opts.json, "json", false, "print one JSON object instead of the table")
 	return cmd
@@ -91,16 +100,29 @@ type progressCandidateJS struct {
 }
 
 func runProgress(d deps, opts *progressOptions) error {
-	in, fingerprint, period, err := loadProgressInput(opts)
+	p, fingerprint, err := plan.LoadForJudging(opts.planPath)
 	if err != nil {
 		return err
 	}
-	res, err := progress.Assess(in)
+	if p.Sequential != nil {
+		if err := sequential.Validate(p.Sequential); err != nil {
+			return inputerr.Errorf("%s: sequential: %v", opts.planPath, err).WithHint("the boundaries were edited by hand; use the plan file probity plan wrote")
+		}
+	}
+	f, err := drawfolder.Open(opts.drawDir, fingerprint, p.CandidateNames())
+	if err != nil {
+		return err
+	}
+	l, err := drawfolder.ReadLabels(opts.labels)
+	if err != nil {
+		return err
+	}
+	res, err := progress.Assess(progress.Input{Plan: p, Ledger: f.Ledger, Worksheet: l.Rows, WorksheetName: l.Path})
 	if err != nil {
 		return err
 	}
 	if opts.json {
-		rep := progressReport{Plan: opts.planPath, PlanFingerprint: fingerprint, Labels: opts.labels, Period: period, Result: res}
+		rep := progressReport{Plan: opts.planPath, PlanFingerprint: fingerprint, Labels: opts.labels, Period: f.Manifest.Period, Result: res}
 		for _, c := range res.Candidates {
 			rep.Candidates = append(rep.Candidates, progressCandidateJS{Candidate: c, Stop: c.Decision != sequential.Continue, Status: progressStatus(c.Decision)})
 		}
@@ -109,62 +131,8 @@ func runProgress(d deps, opts *progressOptions) error {
 		enc.SetIndent("", "  ")
 		return enc.Encode(rep)
 	}
-	writeProgress(d.stdout, in.Plan, res)
+	writeProgress(d.stdout, p, res)
 	return nil
-}
-
-// loadProgressInput reads the plan, the draw folder and the labels, and
-// checks that they belong together.
-func loadProgressInput(opts *progressOptions) (progress.Input, string, string, error) {
-	var in progress.Input
-	p, fingerprint, err := plan.Load(opts.planPath)
-	if err != nil {
-		return in, "", "", err
-	}
-	if p.IsSizingOnly() {
-		return in, "", "", inputerr.Errorf("%s: the plan declares no candidates, so there is nothing to judge", opts.planPath).WithHint("use the plan the sample was drawn from")
-	}
-	if p.Sequential != nil {
-		if err := sequential.Validate(p.Sequential); err != nil {
-			return in, "", "", inputerr.Errorf("%s: sequential: %v", opts.planPath, err).WithHint("the boundaries were edited by hand; use the plan file probity plan wrote")
-		}
-	}
-	manifestPath := filepath.Join(opts.drawDir, sampling.ManifestFile)
-	m, _, err := sampling.ReadManifest(manifestPath)
-	if err != nil {
-		return in, "", "", err
-	}
-	if m.PlanFingerprint != fingerprint {
-		return in, "", "", inputerr.Errorf("%s: plan_fingerprint %s is not the fingerprint of %s (%s)", manifestPath, progressShort(m.PlanFingerprint), opts.planPath, progressShort(fingerprint)).WithHint("use the plan file the sample was drawn from, unedited")
-	}
-	ledgerPath := filepath.Join(opts.drawDir, sampling.LedgerFile)
-	data, err := os.ReadFile(ledgerPath)
-	if err != nil {
-		return in, "", "", err
-	}
-	if want := m.Files[sampling.LedgerFile]; sampling.SHA256Hex(data) != want {
-		return in, "", "", inputerr.Errorf("%s: SHA-256 %s differs from the manifest's %s", ledgerPath, progressShort(sampling.SHA256Hex(data)), progressShort(want)).WithHint("the ledger was changed after the draw; use the original file")
-	}
-	names := make([]string, len(p.Candidates))
-	for i, c := range p.Candidates {
-		names[i] = c.Name
-	}
-	ledger, err := sampling.ReadLedger(ledgerPath, names)
-	if err != nil {
-		return in, "", "", err
-	}
-	_, ws, err := sampling.ReadWorksheet(opts.labels)
-	if err != nil {
-		return in, "", "", err
-	}
-	return progress.Input{Plan: p, Ledger: ledger, Worksheet: ws, WorksheetName: opts.labels}, fingerprint, m.Period, nil
-}
-
-func progressShort(fp string) string {
-	if len(fp) > 12 {
-		return fp[:12]
-	}
-	return fp
 }
 
 // progressStatus is the printed decision.

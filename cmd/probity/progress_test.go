@@ -12,9 +12,8 @@ import (
 
 	"probity/internal/golden"
 	"probity/plan"
-	"probity/plan/progress"
 	"probity/plan/sequential"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 )
 
@@ -27,8 +26,8 @@ type progressFiles struct {
 	dir, plan, draw string
 	n, c            int
 	file            *plan.File
-	ledger          []sampling.LedgerRow
-	worksheet       []sampling.WorksheetRow
+	ledger          []drawfolder.LedgerRow
+	worksheet       []drawfolder.WorksheetRow
 }
 
 func progressFixture(t *testing.T, seq bool) progressFiles {
@@ -59,25 +58,26 @@ func progressFixture(t *testing.T, seq bool) progressFiles {
 		t.Fatal(err)
 	}
 	n := f.Rule.SampleSize
-	var led []sampling.LedgerRow
-	var ws []sampling.WorksheetRow
+	var led []drawfolder.LedgerRow
+	var ws []drawfolder.WorksheetRow
 	for i := 1; i <= n+2; i++ {
 		id := fmt.Sprintf("dec-%05d", i)
 		b := "ok"
 		if i%4 == 0 {
 			b = "bad"
 		}
-		led = append(led, sampling.LedgerRow{Item: i, RecordID: id, Stratum: "all", StratumSize: 100000, StratumSample: n,
+		led = append(led, drawfolder.LedgerRow{Item: i, RecordID: id, Stratum: "all", StratumSize: 100000, StratumSample: n,
 			Weight: 100000 / float64(n), Key: fmt.Sprintf("%064x", i), Spare: i > n, Predictions: []string{"ok", b}})
-		ws = append(ws, sampling.WorksheetRow{Item: i, RecordID: id})
+		ws = append(ws, drawfolder.WorksheetRow{Item: i, RecordID: id})
 	}
-	folder := &sampling.Folder{
-		Manifest:   &sampling.Manifest{Format: sampling.ManifestFormat, ToolVersion: "test", PlanFingerprint: plan.Fingerprint(data), Seed: "5eed", SelectionSeed: "5eed", SampleSize: n},
+	folder := &drawfolder.Content{
+		Manifest: &drawfolder.Manifest{Format: drawfolder.ManifestFormat, ToolVersion: "test", PlanFingerprint: plan.Fingerprint(data), Seed: "5eed", SelectionSeed: "5eed",
+			Strata: []drawfolder.StratumInfo{{Label: "all", Population: 100000, Sample: n, Spare: 2, Weight: 100000 / float64(n)}}, SampleSize: n, Spares: 2},
 		Candidates: []string{"model-a", "model-b"},
 		Ledger:     led, Worksheet: ws,
 	}
 	draw := filepath.Join(dir, "draw")
-	if err := sampling.WriteFolder(draw, folder, safewrite.FolderOptions{}); err != nil {
+	if err := drawfolder.Write(draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	return progressFiles{dir: dir, plan: planPath, draw: draw, n: n, c: f.Rule.AcceptanceNumber, file: f, ledger: led, worksheet: ws}
@@ -85,9 +85,9 @@ func progressFixture(t *testing.T, seq bool) progressFiles {
 
 // label writes a labeled copy of the worksheet: the first k items get
 // "ok" (so model-b errs on every 4th), then edit may change rows.
-func (pf progressFiles) label(t *testing.T, k int, edit func(rows []sampling.WorksheetRow)) string {
+func (pf progressFiles) label(t *testing.T, k int, edit func(rows []drawfolder.WorksheetRow)) string {
 	t.Helper()
-	rows := append([]sampling.WorksheetRow{}, pf.worksheet...)
+	rows := append([]drawfolder.WorksheetRow{}, pf.worksheet...)
 	for i := 0; i < k && i < len(rows); i++ {
 		rows[i].Label = "ok"
 	}
@@ -95,7 +95,7 @@ func (pf progressFiles) label(t *testing.T, k int, edit func(rows []sampling.Wor
 		edit(rows)
 	}
 	var buf bytes.Buffer
-	if err := sampling.WriteWorksheet(&buf, nil, rows); err != nil {
+	if err := drawfolder.WriteWorksheet(&buf, nil, rows); err != nil {
 		t.Fatal(err)
 	}
 	path := filepath.Join(pf.dir, "labels.csv")
@@ -155,7 +155,7 @@ func TestProgressFixedPlan(t *testing.T) {
 func TestProgressJSON(t *testing.T) {
 	t.Parallel()
 	pf := progressFixture(t, false)
-	labels := pf.label(t, pf.n-pf.c, func(rows []sampling.WorksheetRow) {})
+	labels := pf.label(t, pf.n-pf.c, func(rows []drawfolder.WorksheetRow) {})
 	code, out, errs := runProgressCmd(t, "--plan", pf.plan, "--draw", pf.draw, "--labels", labels, "--json")
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, errs)
@@ -224,7 +224,7 @@ func TestProgressSequentialPlan(t *testing.T) {
 func TestProgressBadInput(t *testing.T) {
 	t.Parallel()
 	pf := progressFixture(t, false)
-	gap := pf.label(t, 10, func(rows []sampling.WorksheetRow) { rows[4].Label = "" })
+	gap := pf.label(t, 10, func(rows []drawfolder.WorksheetRow) { rows[4].Label = "" })
 	cases := []struct {
 		name      string
 		args      []string
@@ -250,11 +250,11 @@ func TestProgressBadInput(t *testing.T) {
 	edited := filepath.Join(pf.dir, "edited.yaml")
 	os.WriteFile(edited, append(data, []byte("# edited\n")...), 0o644)
 	code, _, errs := runProgressCmd(t, "--plan", edited, "--draw", pf.draw, "--labels", gap)
-	if code != exitBadInput || !strings.Contains(errs, "plan_fingerprint") || !strings.Contains(errs, "hint: use the plan file the sample was drawn from") {
+	if code != exitBadInput || !strings.Contains(errs, "plan_fingerprint") || !strings.Contains(errs, "hint: pass the plan file the draw was made with") {
 		t.Errorf("edited plan: exit %d, %q", code, errs)
 	}
 	// a ledger changed after the draw
-	ledger := filepath.Join(pf.draw, sampling.LedgerFile)
+	ledger := filepath.Join(pf.draw, drawfolder.LedgerFile)
 	ld, _ := os.ReadFile(ledger)
 	os.WriteFile(ledger, bytes.Replace(ld, []byte("dec-00001"), []byte("dec-99999"), 1), 0o644)
 	code, _, errs = runProgressCmd(t, "--plan", pf.plan, "--draw", pf.draw, "--labels", gap)
@@ -276,9 +276,9 @@ func TestProgressBadInput(t *testing.T) {
 		t.Errorf("broken boundaries: exit %d, %q", code, errs)
 	}
 	// an unknown label
-	bad := pf.label(t, 3, func(rows []sampling.WorksheetRow) { rows[1].Label = "OK" })
+	bad := pf.label(t, 3, func(rows []drawfolder.WorksheetRow) { rows[1].Label = "OK" })
 	code, _, errs = runProgressCmd(t, "--plan", pf.plan, "--draw", pf.draw, "--labels", bad)
-	if code != exitBadInput || !strings.Contains(errs, `label "OK" of item 2 is not one of the plan's classes (ok, bad), blank or unsure`) {
+	if code != exitBadInput || !strings.Contains(errs, `label "OK" (item 2) is not one of the plan's classes (ok, bad), blank or "unsure"`) {
 		t.Errorf("unknown label: exit %d, %q", code, errs)
 	}
 }
@@ -296,7 +296,7 @@ func TestProgressGolden(t *testing.T) {
 	t.Parallel()
 	for _, seq := range []bool{false, true} {
 		pf := progressFixture(t, seq)
-		labels := pf.label(t, 30, func(rows []sampling.WorksheetRow) { rows[2].Label = progress.Unsure })
+		labels := pf.label(t, 30, func(rows []drawfolder.WorksheetRow) { rows[2].Label = drawfolder.Unsure })
 		kind := "fixed"
 		if seq {
 			kind = "sequential"

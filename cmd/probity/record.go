@@ -11,7 +11,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/pdfreport"
-	"probity/plan"
+	"probity/plan/agreement"
 	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
@@ -60,6 +60,8 @@ is one of the plan's classes, blank or "unsure", and that spare items only
 replace unlabeled or unsure items of their stratum, in order. Incomplete
 labeling is refused unless --allow-incomplete, which counts every item left
 unlabeled or unsure as an error for every candidate and says so in the record.
+
+` + labelCellHelp + `
 
 A self-weighting sample is judged by the plan's rule (accept when errors ≤ c),
 with the exact Clopper–Pearson bound (or the exact hypergeometric bound for a
@@ -135,7 +137,7 @@ func (o *recordOptions) validate() error {
 		return inputerr.Errorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
 	}
 	o.unequal = u
-	return nil
+	return o.quality.validate()
 }
 
 func oneOf(v string, list []string) bool {
@@ -147,44 +149,8 @@ func oneOf(v string, list []string) bool {
 	return false
 }
 
-// recordInputs are the files a record is computed from, read and checked.
-type recordInputs struct {
-	plan   *plan.File
-	planFP string
-	folder *intake.Folder
-	labels *intake.Labels
-}
-
-// loadRecordInputs reads the plan, the draw folder and the labels.
-func loadRecordInputs(planPath, drawDir, labels string) (*recordInputs, error) {
-	p, fp, err := plan.Load(planPath)
-	if err != nil {
-		return nil, err
-	}
-	if p.IsSizingOnly() {
-		return nil, inputerr.Errorf("%s: the plan declares no candidates, so there is nothing to judge", planPath).WithHint("use the plan the sample was drawn from")
-	}
-	names := make([]string, len(p.Candidates))
-	for i, c := range p.Candidates {
-		names[i] = c.Name
-	}
-	f, err := intake.ReadFolder(drawDir, fp, names)
-	if err != nil {
-		return nil, err
-	}
-	l, err := intake.ReadLabels(labels)
-	if err != nil {
-		return nil, err
-	}
-	return &recordInputs{plan: p, planFP: fp, folder: f, labels: l}, nil
-}
-
 func runRecord(d deps, o *recordOptions) error {
 	if err := checkOutWritable(o.out, o.force); err != nil {
-		return err
-	}
-	in, err := loadRecordInputs(o.planPath, o.drawDir, o.labels)
-	if err != nil {
 		return err
 	}
 	var signoff []record.Signoff
@@ -216,42 +182,52 @@ func runRecord(d deps, o *recordOptions) error {
 	if err != nil {
 		return err
 	}
-	adjust, err := labelQualityAdjust(o.quality, in.plan, in.folder, in.labels)
-	if err != nil {
-		return err
-	}
 	date := o.date
 	if date == "" {
 		date = d.now().UTC().Format("2006-01-02")
 	}
-	rec, err := assemble.Assemble(assemble.Input{
-		Plan: in.plan, PlanFP: in.planFP, Folder: in.folder, Labels: in.labels,
-		AllowIncomplete: o.allowIncomplete, Bound: o.unequal, Use: o.use, Date: date,
-		Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP, Adjust: adjust,
+	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated}
+	rec, err := assemble.Record(files, assemble.Options{
+		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
+		Bound: o.unequal, Use: o.use, Date: date, Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
 	})
-	if errors.Is(err, intake.ErrIncomplete) {
-		return inputerr.SetHint(err, inputerr.HintOf(err)+", or pass --allow-incomplete to count each as an error for every candidate")
+	if err != nil {
+		return recordHints(err, o)
 	}
+	out, err := renderRecord(rec, o.paper, set, priv)
 	if err != nil {
 		return err
 	}
-	files, err := renderRecord(rec, o.paper, set, priv)
-	if err != nil {
-		return err
-	}
-	if err := writeRecordFolder(o.out, files, o.force, recordInputFiles(o)); err != nil {
+	if err := writeRecordFolder(o.out, out, o.force, recordInputFiles(o)); err != nil {
 		return err
 	}
 	if o.json {
-		d.stdout.Write(files[0].data)
+		d.stdout.Write(out[0].data)
 	} else {
-		writeRecordSummary(d, o, rec, files)
+		writeRecordSummary(d, o, rec, out)
 	}
 	reportLabelQuality(d, rec.LabelQuality, !o.json)
 	if rec.OverallVerdict != record.Accept {
 		return rejected("")
 	}
 	return nil
+}
+
+// recordHints completes the hint of a refusal that a flag can lift:
+// incomplete labeling (--allow-incomplete) and open disagreements of
+// double labeling (--adjudicated, --allow-unadjudicated).
+func recordHints(err error, o *recordOptions) error {
+	switch {
+	case errors.Is(err, intake.ErrIncomplete):
+		return inputerr.SetHint(err, inputerr.HintOf(err)+", or pass --allow-incomplete to count each as an error for every candidate")
+	case errors.Is(err, agreement.ErrUnadjudicated):
+		fix := "or pass --allow-unadjudicated to count them as errors for every candidate"
+		if o.quality.adjudicated == "" {
+			return inputerr.SetHint(err, inputerr.HintOf(err)+" and pass --adjudicated FILE, "+fix)
+		}
+		return inputerr.SetHint(err, inputerr.HintOf(err)+", "+fix)
+	}
+	return err
 }
 
 // renderRecord encodes record.json, lays out record.pdf and, with a key,
@@ -265,9 +241,9 @@ func renderRecord(rec *record.Record, paper string, set *templates.Set, priv ed2
 	if err != nil {
 		return nil, &internalError{msg: "laying out record.pdf: " + err.Error()}
 	}
-	files := []namedFile{{recordJSON, js}, {recordPDF, pdf}}
+	files := []namedFile{{record.JSONFile, js}, {record.PDFFile, pdf}}
 	if priv != nil {
-		sig := signature.Sign(priv, map[string][]byte{recordJSON: js, recordPDF: pdf})
+		sig := signature.Sign(priv, map[string][]byte{record.JSONFile: js, record.PDFFile: pdf})
 		files = append(files, namedFile{signature.FileName, sig.Marshal()})
 	}
 	return files, nil

@@ -12,6 +12,7 @@ import (
 	"probity/plan"
 	"probity/plan/sequential"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 )
 
@@ -25,8 +26,8 @@ type recFixture struct {
 	dir, planPath, logPath, draw string
 	file                         *plan.File
 	truth                        map[string]string
-	ledger                       []sampling.LedgerRow
-	worksheet                    []sampling.WorksheetRow
+	ledger                       []drawfolder.LedgerRow
+	worksheet                    []drawfolder.WorksheetRow
 	show                         []string
 }
 
@@ -110,7 +111,7 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 		t.Fatal(err)
 	}
 	fx.draw = filepath.Join(fx.dir, "draw")
-	if err := sampling.WriteFolder(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
+	if err := drawfolder.Write(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	fx.ledger, fx.worksheet = folder.Ledger, folder.Worksheet
@@ -120,9 +121,9 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 // labels writes a labeled copy of the worksheet (every sample item with
 // its true label, the spares blank), passed through edit, and returns its
 // path.
-func (fx *recFixture) labels(t *testing.T, name string, edit func(rows []sampling.WorksheetRow) []sampling.WorksheetRow) string {
+func (fx *recFixture) labels(t *testing.T, name string, edit func(rows []drawfolder.WorksheetRow) []drawfolder.WorksheetRow) string {
 	t.Helper()
-	rows := make([]sampling.WorksheetRow, len(fx.worksheet))
+	rows := make([]drawfolder.WorksheetRow, len(fx.worksheet))
 	copy(rows, fx.worksheet)
 	for i := range rows {
 		if !fx.ledger[i].Spare {
@@ -133,7 +134,7 @@ func (fx *recFixture) labels(t *testing.T, name string, edit func(rows []samplin
 		rows = edit(rows)
 	}
 	var buf bytes.Buffer
-	if err := sampling.WriteWorksheet(&buf, fx.show, rows); err != nil {
+	if err := drawfolder.WriteWorksheet(&buf, fx.show, rows); err != nil {
 		t.Fatal(err)
 	}
 	path := filepath.Join(fx.dir, name)

@@ -7,6 +7,7 @@ import (
 
 	"probity/internal/golden"
 	"probity/plan/record"
+	"probity/plan/record/verification"
 )
 
 // TestRecordGolden locks record.json's layout and numbers for the fixture
@@ -28,7 +29,7 @@ func TestRecordGolden(t *testing.T) {
 		want, _ := os.ReadFile(path)
 		r := readRecord(t, out)
 		w, _ := decodeRecordBytes(want)
-		diffs, _ := diffRecords(w, r)
+		diffs, _ := verification.Diff(w, r)
 		t.Errorf("the fields that differ: %v", diffs)
 	}
 }

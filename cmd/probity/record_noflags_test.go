@@ -9,7 +9,8 @@ import (
 	"testing"
 
 	"probity/internal/needs"
-	"probity/sampling"
+	"probity/plan/record"
+	"probity/sampling/drawfolder"
 )
 
 // flagSpelling matches a command-line flag ("--allow-incomplete") but not a
@@ -35,7 +36,7 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 	accepted := []int{exitOK, exitRejected}
 
 	fx := newRecFixture(t, true, 0)
-	spareOf := func(rows []sampling.WorksheetRow, stratum string) int {
+	spareOf := func(rows []drawfolder.WorksheetRow, stratum string) int {
 		for i, l := range fx.ledger {
 			if l.Spare && l.Stratum == stratum {
 				return i
@@ -49,17 +50,17 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 	}
 	runs = append(runs,
 		run{"complete", base(fx.labels(t, "complete.csv", nil)), accepted},
-		run{"spare used", base(fx.labels(t, "spare.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
+		run{"spare used", base(fx.labels(t, "spare.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
 			r[0].Label = "unsure"
 			s := spareOf(r, fx.ledger[0].Stratum)
 			r[s].Label = fx.truth[r[s].RecordID]
 			return r
 		})), accepted},
-		run{"unlabeled counted", append(base(fx.labels(t, "unlabeled.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
+		run{"unlabeled counted", append(base(fx.labels(t, "unlabeled.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
 			r[1].Label = ""
 			return r
 		})), "--allow-incomplete"), accepted},
-		run{"unsure counted", append(base(fx.labels(t, "unsure.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
+		run{"unsure counted", append(base(fx.labels(t, "unsure.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
 			r[2].Label, r[3].Label = "unsure", ""
 			return r
 		})), "--allow-incomplete", "--use", "safety"), accepted},
@@ -71,7 +72,7 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 	}
 	seq := buildRecFixture(t, false, 0, true)
 	runs = append(runs, run{"sequential prefix", []string{"record", "--plan", seq.planPath, "--draw", seq.draw,
-		"--labels", seq.labels(t, "seq.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
+		"--labels", seq.labels(t, "seq.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
 			r[1].Label = "unsure"
 			return r
 		}), "--allow-incomplete", "--date", "2026-12-01"}, accepted})
@@ -79,8 +80,8 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 	lq := newLQFixture(t)
 	truth := lq.truth[lq.ledger[0].RecordID]
 	first := lq.write(t, "first.csv", lq.worksheet, "ana", nil)
-	disagree := lq.write(t, "second-disagree.csv", lq.second, "bea", func(r []sampling.WorksheetRow) { r[0].Label = other(truth) })
-	unsure := lq.write(t, "second-unsure.csv", lq.second, "bea", func(r []sampling.WorksheetRow) { r[1].Label = "unsure" })
+	disagree := lq.write(t, "second-disagree.csv", lq.second, "bea", func(r []drawfolder.WorksheetRow) { r[0].Label = other(truth) })
+	unsure := lq.write(t, "second-unsure.csv", lq.second, "bea", func(r []drawfolder.WorksheetRow) { r[1].Label = "unsure" })
 	same := lq.write(t, "second-same.csv", lq.second, "Ana", nil)
 	agree := lq.write(t, "second-agree.csv", lq.second, "bea", nil)
 	lqBase := []string{"record", "--plan", lq.planPath, "--draw", lq.draw, "--labels", first, "--date", "2026-12-01"}
@@ -100,7 +101,7 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 			t.Errorf("%s: exit %d\n%s%s", r.name, code, stdout, stderr)
 			continue
 		}
-		js, err := os.ReadFile(filepath.Join(out, recordJSON))
+		js, err := os.ReadFile(filepath.Join(out, record.JSONFile))
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -108,7 +109,7 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 			t.Errorf("%s: record.json names the flag %q:\n%s", r.name, m[strings.Index(m, "--"):], js)
 		}
 		t.Run(r.name+"/record.pdf", func(t *testing.T) {
-			txt, err := exec.Command(needs.Program(t, "pdftotext"), "-layout", filepath.Join(out, recordPDF), "-").Output()
+			txt, err := exec.Command(needs.Program(t, "pdftotext"), "-layout", filepath.Join(out, record.PDFFile), "-").Output()
 			if err != nil {
 				t.Fatal(err)
 			}

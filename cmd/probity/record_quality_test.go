@@ -15,6 +15,7 @@ import (
 	"probity/plan"
 	"probity/plan/record"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 )
 
@@ -26,8 +27,8 @@ import (
 // edits the audit passes.
 type lqFixture struct {
 	dir, planPath, draw string
-	ledger              []sampling.LedgerRow
-	worksheet, second   []sampling.WorksheetRow
+	ledger              []drawfolder.LedgerRow
+	worksheet, second   []drawfolder.WorksheetRow
 	truth               map[string]string
 }
 
@@ -78,7 +79,7 @@ func newLQFixture(t *testing.T) *lqFixture {
 		t.Fatal(err)
 	}
 	fx.draw = filepath.Join(fx.dir, "draw")
-	if err := sampling.WriteFolder(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
+	if err := drawfolder.Write(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	fx.ledger, fx.worksheet, fx.second = folder.Ledger, folder.Worksheet, folder.Second
@@ -93,9 +94,9 @@ func other(label string) string { return map[string]string{"ok": "defect", "defe
 
 // write labels a copy of rows with the truth and labeler, applies edit and
 // writes it to name.
-func (fx *lqFixture) write(t *testing.T, name string, rows []sampling.WorksheetRow, labeler string, edit func([]sampling.WorksheetRow)) string {
+func (fx *lqFixture) write(t *testing.T, name string, rows []drawfolder.WorksheetRow, labeler string, edit func([]drawfolder.WorksheetRow)) string {
 	t.Helper()
-	rows = append([]sampling.WorksheetRow(nil), rows...)
+	rows = append([]drawfolder.WorksheetRow(nil), rows...)
 	for i := range rows {
 		rows[i].Label, rows[i].Labeler = fx.truth[rows[i].RecordID], labeler
 	}
@@ -103,7 +104,7 @@ func (fx *lqFixture) write(t *testing.T, name string, rows []sampling.WorksheetR
 		edit(rows)
 	}
 	var buf bytes.Buffer
-	if err := sampling.WriteWorksheet(&buf, []string{"scan"}, rows); err != nil {
+	if err := drawfolder.WriteWorksheet(&buf, []string{"scan"}, rows); err != nil {
 		t.Fatal(err)
 	}
 	path := filepath.Join(fx.dir, name)
@@ -166,7 +167,7 @@ func TestRecordJudgesOnTheAdjudicatedLabel(t *testing.T) {
 	}
 	truth := fx.truth[item1.RecordID]
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", nil)
-	second := fx.write(t, "labeled-second.csv", fx.second, "bea", func(rows []sampling.WorksheetRow) {
+	second := fx.write(t, "labeled-second.csv", fx.second, "bea", func(rows []drawfolder.WorksheetRow) {
 		rows[0].Label = other(truth)
 	})
 	base := []string{"record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--second", second, "--date", "2026-12-01"}
@@ -232,7 +233,7 @@ func TestRecordAdjudicationOverridesTheFirstLabel(t *testing.T) {
 	t.Parallel()
 	fx := newLQFixture(t)
 	truth := fx.truth[fx.ledger[1].RecordID]
-	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []sampling.WorksheetRow) { rows[1].Label = other(truth) })
+	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []drawfolder.WorksheetRow) { rows[1].Label = other(truth) })
 	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
 	dir := filepath.Join(fx.dir, "single")
 	code, _, stderr := lqRun(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--out", dir, "--date", "2026-12-01")
@@ -269,7 +270,7 @@ func TestRecordLabelQualityBadInput(t *testing.T) {
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", nil)
 	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
 	sameLabeler := fx.write(t, "same.csv", fx.second, "Ana", nil)
-	undoubled := fx.write(t, "undoubled.csv", append(append([]sampling.WorksheetRow(nil), fx.second...), fx.worksheet[10]), "bea", nil)
+	undoubled := fx.write(t, "undoubled.csv", append(append([]drawfolder.WorksheetRow(nil), fx.second...), fx.worksheet[10]), "bea", nil)
 	base := []string{"record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--date", "2026-12-01"}
 	cases := []struct {
 		name  string
@@ -283,7 +284,7 @@ func TestRecordLabelQualityBadInput(t *testing.T) {
 		{"extra adjudication row", []string{"--second", second, "--adjudicated", fx.adjudication(t, "b.csv", [2]string{"1", fx.truth[fx.ledger[0].RecordID]})}, "the labelers agreed on item 1"},
 		{"adjudicated label outside the classes", []string{"--second", second, "--adjudicated", fx.adjudication(t, "c.csv", [2]string{"1", "maybe"})}, `final_label "maybe" is not one of the classes (defect, ok)`},
 		{"missing second file", []string{"--second", filepath.Join(fx.dir, "nope.csv")}, "nope.csv"},
-		{"second with an edited shown value", []string{"--second", fx.write(t, "edited.csv", fx.second, "bea", func(rows []sampling.WorksheetRow) { rows[2].Show[0] = "other.png" })},
+		{"second with an edited shown value", []string{"--second", fx.write(t, "edited.csv", fx.second, "bea", func(rows []drawfolder.WorksheetRow) { rows[2].Show[0] = "other.png" })},
 			"item 3 differs from the draw's worksheet-second.csv (record id or shown values)"},
 	}
 	for i, c := range cases {
@@ -353,7 +354,7 @@ func lqList(dir string) []string {
 func TestRecordFullAgreementChangesNothing(t *testing.T) {
 	t.Parallel()
 	fx := newLQFixture(t)
-	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []sampling.WorksheetRow) {
+	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []drawfolder.WorksheetRow) {
 		rows[7].Label = other(rows[7].Label) // one error by the candidate, outside the doubled items
 	})
 	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)

@@ -8,7 +8,7 @@ import (
 	"probity/plan"
 	"probity/plan/record"
 	"probity/plan/sequential"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // TestRecordSequentialPlan: each candidate is judged where the plan's
@@ -37,7 +37,7 @@ func TestRecordSequentialPlan(t *testing.T) {
 	}
 	last := max(atA, atB)
 	// Label from the top down to where both have decided; leave the rest blank.
-	labels := fx.labels(t, "top.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
+	labels := fx.labels(t, "top.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
 		for i := last; i < len(r); i++ {
 			r[i].Label = ""
 		}
@@ -85,7 +85,7 @@ func TestRecordSequentialPlan(t *testing.T) {
 	}
 
 	// Too few labels: sorter-a has not decided yet.
-	short := fx.labels(t, "short.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
+	short := fx.labels(t, "short.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
 		for i := atA - 1; i < len(r); i++ {
 			r[i].Label = ""
 		}
@@ -96,7 +96,7 @@ func TestRecordSequentialPlan(t *testing.T) {
 		t.Errorf("undecided: exit %d: %s", code, stderr)
 	}
 	// A gap in the labels.
-	gap := fx.labels(t, "gap.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow { r[1].Label = ""; return r })
+	gap := fx.labels(t, "gap.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[1].Label = ""; return r })
 	code, _, stderr = runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", gap, "--out", filepath.Join(fx.dir, "r3"))
 	if code != exitBadInput || !strings.Contains(stderr, "item 3 is labeled after the unlabeled item 2") {
 		t.Errorf("gap: exit %d: %s", code, stderr)

@@ -9,7 +9,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/record"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 func readRecord(t *testing.T, dir string) *record.Record {
@@ -126,13 +126,13 @@ func TestRecordBadInputLeavesNothing(t *testing.T) {
 		plan   string
 		want   []string
 	}{
-		{"removed row", fx.labels(t, "removed.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow { return append(r[:3:3], r[4:]...) }), nil, "",
+		{"removed row", fx.labels(t, "removed.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { return append(r[:3:3], r[4:]...) }), nil, "",
 			[]string{"removed.csv: rows differ from the ledger", "missing: item 4", "hint: label every row"}},
-		{"changed id", fx.labels(t, "changed.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow { r[0].RecordID = "forged"; return r }), nil, "",
+		{"changed id", fx.labels(t, "changed.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[0].RecordID = "forged"; return r }), nil, "",
 			[]string{"changed.csv: rows differ from the ledger", `added: line 2 (item 1, record_id "forged")`}},
-		{"label outside the classes", fx.labels(t, "bad.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow { r[2].Label = "maybe"; return r }), nil, "",
+		{"label outside the classes", fx.labels(t, "bad.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[2].Label = "maybe"; return r }), nil, "",
 			[]string{`bad.csv line 4, field label: label "maybe" (item 3) is not one of the plan's classes (ok, defect), blank or "unsure"`, "hint: use exactly one of: ok, defect"}},
-		{"incomplete", fx.labels(t, "partial.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
+		{"incomplete", fx.labels(t, "partial.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
 			r[1].Label = ""
 			r[5].Label = "unsure"
 			return r
@@ -208,7 +208,7 @@ func TestRecordRefusesNonEmptyOut(t *testing.T) {
 func TestRecordAllowIncompleteCountsErrors(t *testing.T) {
 	t.Parallel()
 	fx := newRecFixture(t, false, 0)
-	labels := fx.labels(t, "partial.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow { r[1].Label = ""; return r })
+	labels := fx.labels(t, "partial.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[1].Label = ""; return r })
 	out := filepath.Join(fx.dir, "rec")
 	code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", out, "--allow-incomplete")
 	if code != exitOK || !strings.Contains(stdout, "sorter-a  ACCEPT  1/") || !strings.Contains(stdout, "--allow-incomplete") {

@@ -5,14 +5,8 @@ import (
 
 	"probity/plan/inputerr"
 	"probity/plan/record/signature"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
-)
-
-// Names of the files in a record folder.
-const (
-	recordJSON = "record.json"
-	recordPDF  = "record.pdf"
 )
 
 // namedFile is one file of a record folder.
@@ -56,7 +50,7 @@ func writeRecordFolder(dir string, files []namedFile, force bool, inputs []strin
 // recordInputFiles are the files a record is made from.
 func recordInputFiles(o *recordOptions) []string {
 	in := []string{o.planPath, o.labels, o.signoff, o.signKey, o.quality.second, o.quality.adjudicated}
-	for _, name := range []string{sampling.ManifestFile, sampling.LedgerFile, sampling.WorksheetFile, sampling.WorksheetSecondFile} {
+	for _, name := range []string{drawfolder.ManifestFile, drawfolder.LedgerFile, drawfolder.WorksheetFile, drawfolder.WorksheetSecondFile} {
 		in = append(in, filepath.Join(o.drawDir, name))
 	}
 	return in

@@ -212,17 +212,17 @@ func writeTrendChart(t *trend.Trend, prefix string, loaded *trend.Loaded, d deps
 func trendProtected(loaded *trend.Loaded, chartDir string) []string {
 	var out []string
 	recordFolder := func(dir string) {
-		for _, name := range []string{recordJSON, recordPDF, signature.FileName} {
+		for _, name := range []string{record.JSONFile, record.PDFFile, signature.FileName} {
 			out = append(out, filepath.Join(dir, name))
 		}
 	}
 	for _, e := range loaded.Entries {
 		out = append(out, e.Path)
-		if filepath.Base(e.Path) == recordJSON {
+		if filepath.Base(e.Path) == record.JSONFile {
 			recordFolder(filepath.Dir(e.Path))
 		}
 	}
-	if _, err := os.Stat(filepath.Join(chartDir, recordJSON)); err == nil {
+	if _, err := os.Stat(filepath.Join(chartDir, record.JSONFile)); err == nil {
 		recordFolder(chartDir)
 	}
 	return out

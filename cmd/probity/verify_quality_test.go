@@ -2,10 +2,9 @@ package main
 
 import (
 	"path/filepath"
+	"probity/sampling/drawfolder"
 	"strings"
 	"testing"
-
-	"probity/sampling"
 )
 
 // TestVerifyRecomputesDoubleLabeledRecord: verify recomputes a record judged
@@ -19,7 +18,7 @@ func TestVerifyRecomputesDoubleLabeledRecord(t *testing.T) {
 	fx := newLQFixture(t)
 	truth := fx.truth[fx.ledger[0].RecordID]
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", nil)
-	second := fx.write(t, "labeled-second.csv", fx.second, "bea", func(rows []sampling.WorksheetRow) {
+	second := fx.write(t, "labeled-second.csv", fx.second, "bea", func(rows []drawfolder.WorksheetRow) {
 		rows[0].Label = other(truth)
 	})
 	adjTruth := fx.adjudication(t, "adj-truth.csv", [2]string{"1", truth})

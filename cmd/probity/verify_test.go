@@ -8,7 +8,7 @@ import (
 	"testing"
 
 	"probity/plan/record/signature"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // signedRecord makes a key pair and a signed record of the fixture.
@@ -71,11 +71,11 @@ func TestTamperingIsDetected(t *testing.T) {
 		return dst
 	}
 	// The first sample item's label flipped.
-	changed := fx.labels(t, "changed.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
+	changed := fx.labels(t, "changed.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
 		r[0].Label = map[string]string{"ok": "defect", "defect": "ok"}[r[0].Label]
 		return r
 	})
-	removed := fx.labels(t, "removed.csv", func(r []sampling.WorksheetRow) []sampling.WorksheetRow { return append(r[:2:2], r[3:]...) })
+	removed := fx.labels(t, "removed.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { return append(r[:2:2], r[3:]...) })
 
 	edited := copyDir("edited")
 	js := mustRead(t, filepath.Join(edited, "record.json"))

@@ -17,7 +17,7 @@ import (
 var pathFlags = map[string][]string{
 	"plan":     {"out"},
 	"keygen":   {"out"},
-	"draw":     {"plan", "log", "out", "check", "anticipated", "selected"},
+	"draw":     {"plan", "log", "out", "check", "anticipated", "selected", "counts"},
 	"progress": {"plan", "draw", "labels"},
 	"record":   {"plan", "draw", "labels", "out", "signoff", "sign-key", "templates", "second", "adjudicated"},
 	"verify":   {"pub", "plan", "draw", "labels", "log", "second", "adjudicated", "templates"},

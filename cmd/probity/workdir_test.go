@@ -8,7 +8,7 @@ import (
 
 	"github.com/spf13/pflag"
 
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // notPathFlags are the string flags whose values are not paths. With
@@ -89,7 +89,7 @@ func TestCommandsTakePathsFromDir(t *testing.T) {
 	if code, _, stderr := runTest(t, []string{"draw", "--plan", plan, "--log", "log.csv", "--out", "draw"}, in); code != exitOK {
 		t.Fatalf("draw: exit %d\n%s", code, stderr)
 	}
-	m, _, err := sampling.ReadManifest(filepath.Join(dir, "draw", sampling.ManifestFile))
+	m, _, err := drawfolder.ReadManifest(filepath.Join(dir, "draw", drawfolder.ManifestFile))
 	if err != nil {
 		t.Fatal(err)
 	}

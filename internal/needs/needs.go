@@ -1,7 +1,7 @@
 // Package needs is how a test asks for a tool from outside Go — Debian's
 // /usr/bin/python3 with scipy or statsmodels, Rscript with the survey
-// package, poppler-utils, openssl, the PostgreSQL programs, chromium,
-// clickhouse — as a reference or a driver.
+// package, poppler-utils, openssl, the PostgreSQL and ClickHouse programs,
+// chromium, the go command — as a reference or a driver.
 //
 // A missing tool skips the test on a developer's machine and fails it when
 // the CI environment variable is set, so CI cannot pass without the
@@ -26,17 +26,19 @@ const Python = "/usr/bin/python3"
 
 // debianPackage names the Debian package of each program the tests call.
 var debianPackage = map[string]string{
-	"python3":    "python3",
-	"Rscript":    "r-base-core",
-	"pdftotext":  "poppler-utils",
-	"pdftoppm":   "poppler-utils",
-	"pdfinfo":    "poppler-utils",
-	"openssl":    "openssl",
-	"psql":       "postgresql-client",
-	"initdb":     "postgresql",
-	"pg_ctl":     "postgresql",
-	"chromium":   "chromium",
-	"clickhouse": "clickhouse-server",
+	"python3":           "python3",
+	"Rscript":           "r-base-core",
+	"pdftotext":         "poppler-utils",
+	"pdftoppm":          "poppler-utils",
+	"pdfinfo":           "poppler-utils",
+	"openssl":           "openssl",
+	"psql":              "postgresql-client",
+	"initdb":            "postgresql",
+	"pg_ctl":            "postgresql",
+	"chromium":          "chromium",
+	"clickhouse-server": "clickhouse-server",
+	"clickhouse-client": "clickhouse-client",
+	"go":                "golang-go",
 }
 
 // pythonPackage names the Debian package of each Python module.
@@ -59,8 +61,9 @@ func Missing(t testing.TB, what, pkg string) {
 }
 
 // Program returns the path of a program the test runs: name is looked up
-// in PATH, or taken as it is when it is a path. A program not listed in
-// this package is a mistake of the test.
+// in PATH, then in /usr/sbin (where Debian installs servers, and which a
+// non-root PATH may lack), or taken as it is when it is a path. A program
+// not listed in this package is a mistake of the test.
 func Program(t testing.TB, name string) string {
 	t.Helper()
 	pkg, ok := debianPackage[filepath.Base(name)]
@@ -68,6 +71,9 @@ func Program(t testing.TB, name string) string {
 		t.Fatalf("needs: no Debian package known for %q; add it to debianPackage", name)
 	}
 	path, err := exec.LookPath(name)
+	if err != nil && !strings.ContainsRune(name, filepath.Separator) {
+		path, err = exec.LookPath(filepath.Join("/usr/sbin", name))
+	}
 	if err != nil {
 		Missing(t, name, pkg)
 	}

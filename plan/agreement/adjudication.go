@@ -9,7 +9,7 @@ import (
 	"strings"
 
 	"probity/plan/inputerr"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // AdjudicationColumns is the header of an adjudication file, in order:
@@ -18,16 +18,14 @@ import (
 //	record_id    the item's record id, as in the worksheets (a guard
 //	             against a shifted row)
 //	final_label  the label the judgement uses: one of the plan's classes
-//	             (not blank, not unsure)
+//	             (not blank, not unsure), read as a worksheet's label cell
+//	             is (spaces around it are ignored)
 //	decided_by   who decided (not blank)
 //	note         why, in a few words (may be blank)
 //
 // One row per doubled item the two labelers did not agree on; a row for an
 // item that was not doubled, or on which the labelers agreed, is refused.
 var AdjudicationColumns = []string{"item", "record_id", "final_label", "decided_by", "note"}
-
-// Unsure is the label a labeler writes for an item they cannot decide.
-const Unsure = "unsure"
 
 // Adjudication is one row of an adjudication file.
 type Adjudication struct {
@@ -56,7 +54,7 @@ func ReadAdjudications(path string, classes []string) ([]Adjudication, error) {
 // the file name used in messages.
 func ParseAdjudications(data []byte, name string, classes []string) ([]Adjudication, error) {
 	emptyHint := "start the file with the line: " + strings.Join(AdjudicationColumns, ",")
-	t, err := sampling.ParseCSVTable(data, name)
+	t, err := drawfolder.ParseCSVTable(data, name)
 	if err != nil {
 		var ie *inputerr.Error
 		if errors.As(err, &ie) && ie.Line == 0 && ie.Err == nil {
@@ -109,18 +107,22 @@ func parseAdjudication(name string, line int, rec, classes []string) (Adjudicati
 	if a.RecordID == "" {
 		return a, bad("record_id", "record_id is empty")
 	}
-	switch {
-	case a.FinalLabel == "":
+	// The final label is read as a worksheet's label cell is
+	// (drawfolder.ParseLabel), but it must be a class.
+	final, kind := drawfolder.ParseLabel(rec[2], classes)
+	switch kind {
+	case drawfolder.LabelBlank:
 		e := bad("final_label", "final_label is empty").(*inputerr.Error)
 		e.Hint = "write the decided class (" + strings.Join(classes, ", ") + ") or remove the row"
 		return a, e
-	case !slices.Contains(classes, a.FinalLabel):
+	case drawfolder.LabelUnsure, drawfolder.LabelInvalid:
 		e := bad("final_label", "final_label %q is not one of the classes (%s)", a.FinalLabel, strings.Join(classes, ", ")).(*inputerr.Error)
-		if a.FinalLabel == Unsure {
+		if kind == drawfolder.LabelUnsure {
 			e.Hint = "an adjudication must decide one of the classes; leave the item out to keep the disagreement open"
 		}
 		return a, e
 	}
+	a.FinalLabel = final
 	if a.DecidedBy == "" {
 		return a, bad("decided_by", "decided_by is empty; name who decided")
 	}

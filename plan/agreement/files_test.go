@@ -6,7 +6,7 @@ import (
 	"testing"
 
 	"probity/plan/record"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // TestResolveDrawFolderFiles runs Resolve on the files of
@@ -15,15 +15,15 @@ import (
 func TestResolveDrawFolderFiles(t *testing.T) {
 	dir := filepath.Join("..", "..", "testdata", "agreement", "folder")
 	path := func(name string) string { return filepath.Join(dir, name) }
-	ledger, err := sampling.ReadLedger(path("ledger.csv"), []string{"line-a"})
+	ledger, err := drawfolder.ReadLedger(path("ledger.csv"), []string{"line-a"})
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, first, err := sampling.ReadWorksheet(path("worksheet.csv"))
+	_, first, err := drawfolder.ReadWorksheet(path("worksheet.csv"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, second, err := sampling.ReadWorksheet(path("worksheet-second.csv"))
+	_, second, err := drawfolder.ReadWorksheet(path("worksheet-second.csv"))
 	if err != nil {
 		t.Fatal(err)
 	}

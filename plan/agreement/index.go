@@ -2,16 +2,15 @@ package agreement
 
 import (
 	"slices"
-	"strings"
 
 	"probity/plan/inputerr"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // indexLedger maps items to ledger rows and returns the doubled items in
 // item order.
-func indexLedger(in Input) (map[int]sampling.LedgerRow, []int, error) {
-	ledger := make(map[int]sampling.LedgerRow, len(in.Ledger))
+func indexLedger(in Input) (map[int]drawfolder.LedgerRow, []int, error) {
+	ledger := make(map[int]drawfolder.LedgerRow, len(in.Ledger))
 	var doubled []int
 	for _, r := range in.Ledger {
 		ledger[r.Item] = r
@@ -26,34 +25,23 @@ func indexLedger(in Input) (map[int]sampling.LedgerRow, []int, error) {
 	return ledger, doubled, nil
 }
 
-// normalLabel is a worksheet label as the record reads it: surrounding
-// space removed, and unsure in any case written as Unsure.
-func normalLabel(label string) string {
-	label = strings.TrimSpace(label)
-	if strings.EqualFold(label, Unsure) {
-		return Unsure
-	}
-	return label
-}
-
-// labelOK reports whether a worksheet label is a class, unsure or blank.
-func labelOK(tb *Table, label string) bool {
-	return label == "" || label == Unsure || tb.Has(label)
-}
-
-// badLabel is the error for a label outside the classes.
-func badLabel(file string, r sampling.WorksheetRow, classes []string) error {
-	return inputerr.At(file, r.Line, "label", "label %q of item %d is not one of the classes (%s), blank or %s", r.Label, r.Item, strings.Join(classes, ", "), Unsure).WithHint("correct the label; write " + Unsure + " when the item cannot be decided")
+// rowLabel reads a worksheet row's label cell under the draw folder's one
+// rule (drawfolder.ParseLabel) and returns the row with the label in its
+// normal form, or the refusal of a cell that is no class, blank or unsure.
+func rowLabel(file string, r drawfolder.WorksheetRow, classes []string) (drawfolder.WorksheetRow, error) {
+	l, _, err := drawfolder.RowLabel(file, r, classes)
+	r.Label = l
+	return r, err
 }
 
 // indexFirst maps the doubled items to their rows in the first worksheet,
 // checking they are there with the ledger's record id and a valid label.
-func indexFirst(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb *Table) (map[int]sampling.WorksheetRow, error) {
-	rows := make(map[int]sampling.WorksheetRow, len(in.First))
+func indexFirst(in Input, ledger map[int]drawfolder.LedgerRow, doubled []int, tb *Table) (map[int]drawfolder.WorksheetRow, error) {
+	rows := make(map[int]drawfolder.WorksheetRow, len(in.First))
 	for _, r := range in.First {
 		rows[r.Item] = r
 	}
-	out := make(map[int]sampling.WorksheetRow, len(doubled))
+	out := make(map[int]drawfolder.WorksheetRow, len(doubled))
 	for _, item := range doubled {
 		r, ok := rows[item]
 		if !ok {
@@ -62,9 +50,9 @@ func indexFirst(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb *
 		if r.RecordID != ledger[item].RecordID {
 			return nil, inputerr.At(in.FirstFile, r.Line, "record_id", "item %d has record_id %q, but the ledger has %q", item, r.RecordID, ledger[item].RecordID).WithHint("the worksheet was edited after the draw; use the original file")
 		}
-		r.Label = normalLabel(r.Label)
-		if !labelOK(tb, r.Label) {
-			return nil, badLabel(in.FirstFile, r, tb.Classes)
+		r, err := rowLabel(in.FirstFile, r, tb.Classes)
+		if err != nil {
+			return nil, err
 		}
 		out[item] = r
 	}
@@ -73,11 +61,11 @@ func indexFirst(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb *
 
 // indexSecond checks the second worksheet: every row a doubled ledger item
 // with its record id and a valid label, every doubled item present.
-func indexSecond(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb *Table) (map[int]sampling.WorksheetRow, error) {
+func indexSecond(in Input, ledger map[int]drawfolder.LedgerRow, doubled []int, tb *Table) (map[int]drawfolder.WorksheetRow, error) {
 	const again = "use the worksheet-second.csv written by probity draw for this draw folder"
-	out := make(map[int]sampling.WorksheetRow, len(in.Second))
+	out := make(map[int]drawfolder.WorksheetRow, len(in.Second))
 	for _, r := range in.Second {
-		r.Label = normalLabel(r.Label)
+		r, labelErr := rowLabel(in.SecondFile, r, tb.Classes)
 		l, ok := ledger[r.Item]
 		switch {
 		case !ok:
@@ -86,8 +74,8 @@ func indexSecond(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb 
 			return nil, inputerr.At(in.SecondFile, r.Line, "record_id", "item %d has record_id %q, but the ledger has %q", r.Item, r.RecordID, l.RecordID).WithHint(again)
 		case !l.Double:
 			return nil, inputerr.At(in.SecondFile, r.Line, "item", "item %d (record_id %q) was not drawn for a second label", r.Item, r.RecordID).WithHint(again)
-		case !labelOK(tb, r.Label):
-			return nil, badLabel(in.SecondFile, r, tb.Classes)
+		case labelErr != nil:
+			return nil, labelErr
 		}
 		out[r.Item] = r
 	}
@@ -106,7 +94,7 @@ func indexSecond(in Input, ledger map[int]sampling.LedgerRow, doubled []int, tb 
 // indexAdjudications checks every adjudication row names a ledger item by
 // its record id and a doubled one; rows for agreed items are refused by
 // Resolve.
-func indexAdjudications(in Input, ledger map[int]sampling.LedgerRow) (map[int]Adjudication, error) {
+func indexAdjudications(in Input, ledger map[int]drawfolder.LedgerRow) (map[int]Adjudication, error) {
 	out := make(map[int]Adjudication, len(in.Adjudications))
 	for _, a := range in.Adjudications {
 		l, ok := ledger[a.Item]

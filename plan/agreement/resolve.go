@@ -9,7 +9,7 @@ import (
 
 	"probity/plan/inputerr"
 	"probity/plan/record"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // Input is what Resolve reads: the ledger (which items are doubled), both
@@ -19,12 +19,12 @@ type Input struct {
 	// Classes are the plan's classes (at least two).
 	Classes []string
 	// Ledger rows; LedgerRow.Double marks the doubled items.
-	Ledger     []sampling.LedgerRow
+	Ledger     []drawfolder.LedgerRow
 	LedgerFile string
 	// First is the labeled worksheet, Second the labeled second worksheet.
-	First      []sampling.WorksheetRow
+	First      []drawfolder.WorksheetRow
 	FirstFile  string
-	Second     []sampling.WorksheetRow
+	Second     []drawfolder.WorksheetRow
 	SecondFile string
 	// Adjudications are the rows of the adjudication file; AdjudicationFile
 	// is "" when none was given.
@@ -67,9 +67,9 @@ const (
 type Final struct {
 	Item     int
 	RecordID string
-	// Label is a class, Unsure or "" (blank), with surrounding space
-	// removed and unsure in any case written as Unsure. It is "" for an
-	// item counted as an error.
+	// Label is a class, drawfolder.Unsure or "" (blank), in the normal
+	// form of drawfolder.ParseLabel. It is "" for an item counted as an
+	// error.
 	Label string
 	// Source says where Label came from (FromFirst, FromAgreement, …).
 	Source string
@@ -207,8 +207,8 @@ func Resolve(in Input) (*Result, error) {
 				q.Disagreements = append(q.Disagreements, adjudicated(fin, f, s, ad))
 			} else {
 				fin.Source = FromNeither
-				if a == Unsure || b == Unsure {
-					fin.Label = Unsure
+				if a == drawfolder.Unsure || b == drawfolder.Unsure {
+					fin.Label = drawfolder.Unsure
 				}
 			}
 		}
@@ -232,15 +232,16 @@ func Resolve(in Input) (*Result, error) {
 
 	fillAgreement(&q, tb, conf)
 	fillDisagreement(&q, tb, conf, in.Ceiling)
-	q.Labelers = countLabelers(in.First, in.Second)
+	q.Labelers = countLabelers(in.First, in.Second, in.Classes)
 
 	res := &Result{Labels: make([]Final, 0, len(in.First))}
 	for _, r := range in.First {
 		f, ok := finals[r.Item]
 		if !ok {
-			f = Final{Item: r.Item, RecordID: r.RecordID, Label: normalLabel(r.Label), Source: FromFirst}
+			l, _ := drawfolder.ParseLabel(r.Label, in.Classes)
+			f = Final{Item: r.Item, RecordID: r.RecordID, Label: l, Source: FromFirst}
 		}
-		if f.Label == Unsure {
+		if f.Label == drawfolder.Unsure {
 			q.Unsure++
 		}
 		res.Labels = append(res.Labels, f)
@@ -251,7 +252,7 @@ func Resolve(in Input) (*Result, error) {
 
 // adjudicated is the disagreement entry of an item the adjudication file
 // resolved.
-func adjudicated(fin Final, f, s sampling.WorksheetRow, ad Adjudication) record.Disagreement {
+func adjudicated(fin Final, f, s drawfolder.WorksheetRow, ad Adjudication) record.Disagreement {
 	return record.Disagreement{Item: fin.Item, RecordID: fin.RecordID,
 		First: f.Label, FirstLabeler: f.Labeler, Second: s.Label, SecondLabeler: s.Labeler,
 		Resolution: record.ResolvedAdjudicated, Final: ad.FinalLabel, DecidedBy: ad.DecidedBy, Note: ad.Note}
@@ -344,7 +345,7 @@ func sameLabeler(a, b string) bool {
 
 // checkIndependence warns (or, under Strict, refuses) when one person gave
 // both labels of an item or a doubled item does not name both labelers.
-func checkIndependence(in Input, f, s sampling.WorksheetRow, q *record.LabelQuality, unnamed *int) error {
+func checkIndependence(in Input, f, s drawfolder.WorksheetRow, q *record.LabelQuality, unnamed *int) error {
 	if sameLabeler(f.Labeler, s.Labeler) {
 		if in.Strict {
 			return inputerr.At(in.SecondFile, s.Line, "labeler", "item %d was labeled by %q in both worksheets; its two labels are not independent (labeler independence enforced)", s.Item, strings.TrimSpace(s.Labeler)).WithHint("have another person give the second label")
@@ -368,15 +369,15 @@ func checkIndependence(in Input, f, s sampling.WorksheetRow, q *record.LabelQual
 // countLabelers counts, per labeler name, the rows labeled (a non-blank
 // label) in each worksheet. Names equal but for case and surrounding
 // space are one labeler, shown with the first spelling in sorted order.
-func countLabelers(first, second []sampling.WorksheetRow) []record.Labeler {
+func countLabelers(first, second []drawfolder.WorksheetRow, classes []string) []record.Labeler {
 	type acc struct {
 		name          string
 		first, second int
 	}
 	by := map[string]*acc{}
-	add := func(rows []sampling.WorksheetRow, isFirst bool) {
+	add := func(rows []drawfolder.WorksheetRow, isFirst bool) {
 		for _, r := range rows {
-			if normalLabel(r.Label) == "" {
+			if _, k := drawfolder.ParseLabel(r.Label, classes); k == drawfolder.LabelBlank {
 				continue
 			}
 			name := strings.TrimSpace(r.Labeler)

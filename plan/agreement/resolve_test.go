@@ -11,7 +11,7 @@ import (
 
 	"probity/plan/inputerr"
 	"probity/plan/record"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // fixture is a draw of 10 items, the first 6 doubled, with labels:
@@ -27,19 +27,19 @@ import (
 type fixture struct{ in Input }
 
 func newFixture() *fixture {
-	var ledger []sampling.LedgerRow
+	var ledger []drawfolder.LedgerRow
 	for i := 1; i <= 10; i++ {
-		ledger = append(ledger, sampling.LedgerRow{Item: i, RecordID: fmt.Sprintf("w-%04d", i), Double: i <= 6})
+		ledger = append(ledger, drawfolder.LedgerRow{Item: i, RecordID: fmt.Sprintf("w-%04d", i), Double: i <= 6})
 	}
-	row := func(item int, label, labeler string, line int) sampling.WorksheetRow {
-		return sampling.WorksheetRow{Item: item, RecordID: fmt.Sprintf("w-%04d", item), Label: label, Labeler: labeler, Line: line}
+	row := func(item int, label, labeler string, line int) drawfolder.WorksheetRow {
+		return drawfolder.WorksheetRow{Item: item, RecordID: fmt.Sprintf("w-%04d", item), Label: label, Labeler: labeler, Line: line}
 	}
-	first := []sampling.WorksheetRow{
+	first := []drawfolder.WorksheetRow{
 		row(1, "ok", "ann", 2), row(2, "defect", "ann", 3), row(3, "ok", "ann", 4), row(4, "unsure", "cy", 5),
 		row(5, "defect", "cy", 6), row(6, "defect", "cy", 7), row(7, "ok", "ann", 8), row(8, "defect", "ann", 9),
 		row(9, "unsure", "ann", 10), row(10, "ok", "", 11),
 	}
-	second := []sampling.WorksheetRow{
+	second := []drawfolder.WorksheetRow{
 		row(1, "ok", "bo", 2), row(2, "ok", "bo", 3), row(3, "unsure", "bo", 4), row(4, "unsure", "bo", 5),
 		row(5, "", "bo", 6), row(6, "defect", "Bo ", 7),
 	}
@@ -196,19 +196,19 @@ func TestResolveRefusesBadInput(t *testing.T) {
 		msg    string
 	}{
 		{"second has an undoubled item", func(in *Input) {
-			in.Second = append(in.Second, sampling.WorksheetRow{Item: 8, RecordID: "w-0008", Label: "ok", Line: 8})
+			in.Second = append(in.Second, drawfolder.WorksheetRow{Item: 8, RecordID: "w-0008", Label: "ok", Line: 8})
 		}, "worksheet-second.csv", 8, "item", `item 8 (record_id "w-0008") was not drawn for a second label`},
 		{"second has an unknown item", func(in *Input) {
-			in.Second = append(in.Second, sampling.WorksheetRow{Item: 99, RecordID: "w-0099", Line: 8})
+			in.Second = append(in.Second, drawfolder.WorksheetRow{Item: 99, RecordID: "w-0099", Line: 8})
 		}, "worksheet-second.csv", 8, "item", "item 99 is not in the ledger"},
 		{"second has a wrong record id", func(in *Input) { in.Second[2].RecordID = "w-0009" },
 			"worksheet-second.csv", 4, "record_id", `item 3 has record_id "w-0009", but the ledger has "w-0003"`},
 		{"second lacks a doubled item", func(in *Input) { in.Second = in.Second[:4] },
 			"worksheet-second.csv", 0, "item", "2 doubled items are missing: items 5, 6"},
 		{"second has a bad label", func(in *Input) { in.Second[0].Label = "maybe" },
-			"worksheet-second.csv", 2, "label", `label "maybe" of item 1 is not one of the classes (defect, ok), blank or unsure`},
+			"worksheet-second.csv", 2, "label", `label "maybe" (item 1) is not one of the plan's classes (defect, ok), blank or "unsure"`},
 		{"first has a bad label", func(in *Input) { in.First[0].Label = "Ok" },
-			"worksheet.csv", 2, "label", `label "Ok" of item 1 is not one of the classes`},
+			"worksheet.csv", 2, "label", `label "Ok" (item 1) is not one of the plan's classes`},
 		{"first lacks a doubled item", func(in *Input) { in.First = in.First[1:] },
 			"worksheet.csv", 0, "item", `item 1 (record_id "w-0001") is in the ledger but not in the worksheet`},
 		{"adjudication of an undoubled item", func(in *Input) {
@@ -285,7 +285,7 @@ func TestResolveNeitherClassCanBeAdjudicated(t *testing.T) {
 func TestResolveUndefinedKappa(t *testing.T) {
 	// Every compared item is "ok" for both: kappa is 0/0, AC1 is 1.
 	f := newFixture()
-	for _, rows := range [][]sampling.WorksheetRow{f.in.First, f.in.Second} {
+	for _, rows := range [][]drawfolder.WorksheetRow{f.in.First, f.in.Second} {
 		for i := range rows {
 			if rows[i].Item <= 6 {
 				rows[i].Label = "ok"

@@ -179,3 +179,17 @@ func FromPath(err error) error {
 	}
 	return &Error{File: pe.Path, Msg: pe.Err.Error(), Hint: "check the path", Err: err}
 }
+
+// InFile returns err with File set to file when err is an Error about a
+// setting (a Field and no File) that came from that file, such as an
+// option recorded in a draw's manifest. Any other error is returned
+// unchanged.
+func InFile(err error, file string) error {
+	e, ok := err.(*Error)
+	if !ok || e.File != "" || e.Field == "" {
+		return err
+	}
+	c := *e
+	c.File = file
+	return &c
+}

@@ -3,23 +3,19 @@ package progress
 import (
 	"fmt"
 	"probity/plan/inputerr"
-	"strings"
+	"probity/sampling/drawfolder"
 )
 
 // prefix checks the labeled worksheet against the ledger and returns the
 // labeled prefix of the sample (spares excluded) and the number of labeled
 // spares. The worksheet must list the ledger's items, with the same
 // record ids, in the same order; every label must be one of the plan's
-// classes, blank or unsure; and the labels must form a prefix: an
+// classes, blank or unsure (drawfolder.ParseLabel); and the labels must form a prefix: an
 // unlabeled sample item followed by a labeled one breaks the rule that a
 // labeled prefix is a random sample.
 func prefix(in Input) ([]item, int, error) {
 	name := in.WorksheetName
 	ws, led := in.Worksheet, in.Ledger
-	classes := map[string]bool{}
-	for _, c := range in.Plan.Classes {
-		classes[c] = true
-	}
 	if len(ws) != len(led) {
 		return nil, 0, &inputerr.Error{File: name, Msg: fmt.Sprintf("has %d items but the draw's ledger has %d", len(ws), len(led)),
 			Hint: "label a copy of the worksheet.csv from the same draw folder, without adding or removing rows"}
@@ -35,11 +31,9 @@ func prefix(in Input) ([]item, int, error) {
 				Msg:  fmt.Sprintf("item %d is %q but the ledger's row %d is item %d, %q", w.Item, w.RecordID, i+1, l.Item, l.RecordID),
 				Hint: "the worksheet was edited or reordered after the draw; use the worksheet.csv of the same draw folder"}
 		}
-		label := strings.TrimSpace(w.Label)
-		if label != "" && label != Unsure && !classes[label] {
-			return nil, 0, &inputerr.Error{File: name, Line: w.Line, Field: "label",
-				Msg:  fmt.Sprintf("label %q of item %d is not one of the plan's classes (%s), blank or %s", label, w.Item, strings.Join(in.Plan.Classes, ", "), Unsure),
-				Hint: "use exactly the class names of the plan, or unsure"}
+		label, _, err := drawfolder.RowLabel(name, w, in.Plan.Classes)
+		if err != nil {
+			return nil, 0, err
 		}
 		if l.Spare {
 			if label != "" {

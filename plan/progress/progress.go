@@ -6,20 +6,17 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/plan/sequential"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
-
-// Unsure is the label a labeler gives when they cannot decide.
-const Unsure = "unsure"
 
 // Input is what Assess needs: the plan, the ledger of the draw and the
 // partially labeled worksheet, both in worksheet order.
 type Input struct {
 	Plan *plan.File
 	// Ledger rows in the order of ledger.csv (the worksheet's order).
-	Ledger []sampling.LedgerRow
+	Ledger []drawfolder.LedgerRow
 	// Worksheet rows as read, with their line numbers.
-	Worksheet []sampling.WorksheetRow
+	Worksheet []drawfolder.WorksheetRow
 	// WorksheetName names the labels file in messages.
 	WorksheetName string
 }
@@ -95,7 +92,7 @@ func Assess(in Input) (*Result, error) {
 	}
 	unsure := 0
 	for _, it := range items {
-		if it.label == Unsure {
+		if it.label == drawfolder.Unsure {
 			unsure++
 		}
 	}
@@ -129,7 +126,7 @@ func judge(name string, ci int, items []item, r candRules) Candidate {
 	lo, hi := 0, 0
 	for t, it := range items {
 		switch {
-		case it.label == Unsure:
+		case it.label == drawfolder.Unsure:
 			hi++
 			c.Unsure++
 		case it.preds[ci] != it.label:

@@ -9,7 +9,7 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/plan/sequential"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // fixture builds a plan with the given candidates and rule, a ledger of
@@ -25,20 +25,20 @@ func fixture(n, c, spares int, cands []string, labels []string) Input {
 	for _, name := range cands {
 		p.Candidates = append(p.Candidates, plan.Candidate{Name: name, Column: name})
 	}
-	var led []sampling.LedgerRow
-	var ws []sampling.WorksheetRow
+	var led []drawfolder.LedgerRow
+	var ws []drawfolder.WorksheetRow
 	for i := 0; i < n+spares; i++ {
 		preds := make([]string, len(cands))
 		for j := range preds {
 			preds[j] = "ok"
 		}
 		id := fmt.Sprintf("r%03d", i+1)
-		led = append(led, sampling.LedgerRow{Item: i + 1, RecordID: id, Spare: i >= n, Predictions: preds})
+		led = append(led, drawfolder.LedgerRow{Item: i + 1, RecordID: id, Spare: i >= n, Predictions: preds})
 		l := ""
 		if i < len(labels) {
 			l = labels[i]
 		}
-		ws = append(ws, sampling.WorksheetRow{Item: i + 1, RecordID: id, Label: l, Line: i + 2})
+		ws = append(ws, drawfolder.WorksheetRow{Item: i + 1, RecordID: id, Label: l, Line: i + 2})
 	}
 	return Input{Plan: p, Ledger: led, Worksheet: ws, WorksheetName: "labels.csv"}
 }
@@ -52,7 +52,7 @@ func labelsOf(s string) []string {
 		case 'x':
 			out = append(out, "bad")
 		case '?':
-			out = append(out, Unsure)
+			out = append(out, drawfolder.Unsure)
 		case '_':
 			out = append(out, "")
 		}
@@ -107,7 +107,7 @@ func TestGapBreaksPrefixRule(t *testing.T) {
 func TestBadWorksheets(t *testing.T) {
 	in := fixture(10, 1, 0, []string{"A"}, labelsOf("oo"))
 	in.Worksheet[1].Label = "maybe"
-	if _, err := Assess(in); err == nil || !strings.Contains(err.Error(), `label "maybe" of item 2 is not one of the plan's classes (ok, bad)`) {
+	if _, err := Assess(in); err == nil || !strings.Contains(err.Error(), `label "maybe" (item 2) is not one of the plan's classes (ok, bad)`) {
 		t.Errorf("unknown label: %v", err)
 	}
 	in = fixture(10, 1, 0, []string{"A"}, labelsOf("oo"))

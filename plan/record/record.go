@@ -10,6 +10,13 @@ import "probity/plan"
 // Format is the version of the record.json layout written by this code.
 const Format = 1
 
+// Names of the files in a record folder (the signatures are in
+// signature.FileName).
+const (
+	JSONFile = "record.json"
+	PDFFile  = "record.pdf"
+)
+
 // Verdicts.
 const (
 	Accept = "ACCEPT"

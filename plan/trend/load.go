@@ -105,7 +105,7 @@ func Load(paths []string) (*Loaded, error) {
 		sort.Strings(files)
 		found := 0
 		for _, f := range files {
-			ok, err := add(f, filepath.Base(f) == "record.json")
+			ok, err := add(f, filepath.Base(f) == record.JSONFile)
 			if err != nil {
 				return nil, err
 			}

@@ -4,9 +4,8 @@ import (
 	"encoding/csv"
 	"fmt"
 	"io"
+	"probity/sampling/drawfolder"
 	"strconv"
-
-	"probity/sampling"
 )
 
 // SecondLabeler gives the independent second labels of the doubled items;
@@ -20,12 +19,12 @@ const (
 // LabelSecond fills the second worksheet (the doubled items) the way an
 // independent expert would: the hidden true label, except at the 1-based
 // positions in wrongAt, where this labeler slips and gives the other class.
-func (s Scenario) LabelSecond(rows []sampling.WorksheetRow, wrongAt []int) ([]sampling.WorksheetRow, error) {
+func (s Scenario) LabelSecond(rows []drawfolder.WorksheetRow, wrongAt []int) ([]drawfolder.WorksheetRow, error) {
 	wrong := map[int]bool{}
 	for _, p := range wrongAt {
 		wrong[p] = true
 	}
-	out := make([]sampling.WorksheetRow, len(rows))
+	out := make([]drawfolder.WorksheetRow, len(rows))
 	copy(out, rows)
 	for i := range out {
 		t := s.Truth(out[i].RecordID)
@@ -51,7 +50,7 @@ func otherLabel(l string) string {
 // whose first and second labels differ: the adjudicator, looking at the
 // scan again, gives the hidden true label. It returns how many rows it
 // wrote. The columns are item, record_id, final_label, decided_by, note.
-func (s Scenario) WriteAdjudications(w io.Writer, first, second []sampling.WorksheetRow) (int, error) {
+func (s Scenario) WriteAdjudications(w io.Writer, first, second []drawfolder.WorksheetRow) (int, error) {
 	label := map[int]string{}
 	for _, r := range first {
 		label[r.Item] = r.Label
@@ -62,7 +61,8 @@ func (s Scenario) WriteAdjudications(w io.Writer, first, second []sampling.Works
 	}
 	n := 0
 	for _, r := range second {
-		if label[r.Item] == r.Label {
+		a, _ := drawfolder.ParseLabel(label[r.Item], []string{Defect, Sound})
+		if b, _ := drawfolder.ParseLabel(r.Label, []string{Defect, Sound}); a == b {
 			continue
 		}
 		note := "rescanned; the trace shows " + s.Truth(r.RecordID)

@@ -2,10 +2,9 @@ package demolog
 
 import (
 	"bytes"
+	"probity/sampling/drawfolder"
 	"strings"
 	"testing"
-
-	"probity/sampling"
 )
 
 // TestSecondLabelsAndAdjudication: the second labeler slips exactly at the
@@ -13,11 +12,11 @@ import (
 // disagreement, each giving the truth.
 func TestSecondLabelsAndAdjudication(t *testing.T) {
 	s := Default()
-	var first, second []sampling.WorksheetRow
+	var first, second []drawfolder.WorksheetRow
 	for i := 0; i < 8; i++ {
 		id := s.RecordID(i * 11)
-		first = append(first, sampling.WorksheetRow{Item: i + 1, RecordID: id, Label: s.Truth(id)})
-		second = append(second, sampling.WorksheetRow{Item: i + 1, RecordID: id})
+		first = append(first, drawfolder.WorksheetRow{Item: i + 1, RecordID: id, Label: s.Truth(id)})
+		second = append(second, drawfolder.WorksheetRow{Item: i + 1, RecordID: id})
 	}
 	first[5].Label = "unsure" // the first labeler could not judge item 6
 	got, err := s.LabelSecond(second, []int{2, 7})

@@ -2,8 +2,7 @@ package demolog
 
 import (
 	"fmt"
-
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // Labeler is an invented person who labels in the demo.
@@ -29,7 +28,7 @@ type LabelingSummary struct {
 // `unsure`; each of those is replaced by the next unused spare of its
 // stratum, in key order, which is labeled. ledger gives each item's stratum
 // and whether it is a spare; rows are the worksheet's rows in order.
-func (s Scenario) Label(rows []sampling.WorksheetRow, ledger []sampling.LedgerRow, unsureAt []int) ([]sampling.WorksheetRow, LabelingSummary, error) {
+func (s Scenario) Label(rows []drawfolder.WorksheetRow, ledger []drawfolder.LedgerRow, unsureAt []int) ([]drawfolder.WorksheetRow, LabelingSummary, error) {
 	var sum LabelingSummary
 	if len(rows) != len(ledger) {
 		return nil, sum, fmt.Errorf("worksheet has %d rows but the ledger %d", len(rows), len(ledger))
@@ -38,7 +37,7 @@ func (s Scenario) Label(rows []sampling.WorksheetRow, ledger []sampling.LedgerRo
 	for _, p := range unsureAt {
 		unsure[p] = true
 	}
-	out := make([]sampling.WorksheetRow, len(rows))
+	out := make([]drawfolder.WorksheetRow, len(rows))
 	copy(out, rows)
 	needSpare := map[string]int{} // stratum → spares still to label
 	main := 0
@@ -52,7 +51,7 @@ func (s Scenario) Label(rows []sampling.WorksheetRow, ledger []sampling.LedgerRo
 		}
 		main++
 		if unsure[main] {
-			out[i].Label, out[i].Note, out[i].Labeler = "unsure", unsureNote, Labeler
+			out[i].Label, out[i].Note, out[i].Labeler = drawfolder.Unsure, unsureNote, Labeler
 			sum.Unsure = append(sum.Unsure, l.RecordID)
 			needSpare[l.Stratum]++
 			continue
@@ -84,7 +83,7 @@ func (s Scenario) Label(rows []sampling.WorksheetRow, ledger []sampling.LedgerRo
 	return out, sum, nil
 }
 
-func (s Scenario) labelRow(r *sampling.WorksheetRow) error {
+func (s Scenario) labelRow(r *drawfolder.WorksheetRow) error {
 	t := s.Truth(r.RecordID)
 	if t == "" {
 		return fmt.Errorf("record %s is not in the scenario's log", r.RecordID)

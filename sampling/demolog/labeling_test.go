@@ -1,20 +1,19 @@
 package demolog
 
 import (
+	"probity/sampling/drawfolder"
 	"testing"
-
-	"probity/sampling"
 )
 
-func fixture(s Scenario) ([]sampling.WorksheetRow, []sampling.LedgerRow) {
+func fixture(s Scenario) ([]drawfolder.WorksheetRow, []drawfolder.LedgerRow) {
 	// Items 1–6: strata A, B alternating; items 7–10 spares (two per stratum).
 	strata := []string{"A", "B", "A", "B", "A", "B", "A", "A", "B", "B"}
-	var ws []sampling.WorksheetRow
-	var lg []sampling.LedgerRow
+	var ws []drawfolder.WorksheetRow
+	var lg []drawfolder.LedgerRow
 	for i, st := range strata {
 		id := s.RecordID(i * 7)
-		ws = append(ws, sampling.WorksheetRow{Item: i + 1, RecordID: id})
-		lg = append(lg, sampling.LedgerRow{Item: i + 1, RecordID: id, Stratum: st, Spare: i >= 6})
+		ws = append(ws, drawfolder.WorksheetRow{Item: i + 1, RecordID: id})
+		lg = append(lg, drawfolder.LedgerRow{Item: i + 1, RecordID: id, Stratum: st, Spare: i >= 6})
 	}
 	return ws, lg
 }

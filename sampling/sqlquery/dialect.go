@@ -12,12 +12,22 @@ type Dialect string
 const (
 	Postgres Dialect = "postgres"
 	DuckDB   Dialect = "duckdb"
+	// ClickHouse draws in two steps (see CountsQuery and SelectionQuery):
+	// the versions this supports have neither window functions nor query
+	// parameters, so the allocation is computed by probity between a
+	// query for the stratum counts and one for the selected rows.
+	ClickHouse Dialect = "clickhouse"
 )
 
 // Dialects lists the supported dialects in the order help texts show them.
-var Dialects = []Dialect{Postgres, DuckDB}
+var Dialects = []Dialect{Postgres, DuckDB, ClickHouse}
 
-// ParseDialect returns the dialect named s ("postgres" or "duckdb").
+// TwoStep reports whether a draw in this dialect runs as two queries (the
+// stratum counts, then the selection) rather than one.
+func (d Dialect) TwoStep() bool { return d == ClickHouse }
+
+// ParseDialect returns the dialect named s ("postgres", "duckdb" or
+// "clickhouse").
 func ParseDialect(s string) (Dialect, error) {
 	for _, d := range Dialects {
 		if s == string(d) {

@@ -6,9 +6,16 @@
 // checking every key against its id and seed, the allocation against the
 // counts, and the result against the plan it claims to come from.
 //
-// Identifiers are always double-quoted (with "" doubling) and every string
-// the user supplies reaches the query as a literal it cannot break out of,
-// so a table or column name with quotes, spaces or SQL keywords is safe.
+// ClickHouse (18.16, as Debian packages it) has neither window functions
+// nor query parameters, so there the draw takes two queries: CountsQuery
+// counts the strata, ReadCounts checks its result and allocates the sample
+// in Go, SelectionQuery selects each stratum's rows with the smallest keys
+// (on every shard of a Distributed table, then across shards), and
+// ImportSelection checks that result against the counts file as well.
+//
+// Identifiers are always quoted and every string the user supplies reaches
+// the query as a literal it cannot break out of, so a table or column name
+// with quotes, backslashes, spaces or SQL keywords is safe.
 //
 // The package computes and never prints.
 package sqlquery

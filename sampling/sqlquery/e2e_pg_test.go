@@ -10,6 +10,7 @@ import (
 
 	"probity/plan"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 )
 
@@ -150,7 +151,7 @@ func TestQueryMatchesFileDraw(t *testing.T) {
 			}
 			fromFile := fileDraw(t, p, &s, c.table.export)
 			compareFolders(t, fromSQL, fromFile)
-			if fromSQL.Manifest.Engine == nil || fromSQL.Manifest.Engine.QuerySHA256 != sampling.SHA256Hex([]byte(query)) {
+			if fromSQL.Manifest.Engine == nil || fromSQL.Manifest.Engine.QuerySHA256 != drawfolder.SHA256Hex([]byte(query)) {
 				t.Errorf("manifest engine = %+v, want the query's SHA-256", fromSQL.Manifest.Engine)
 			}
 		})
@@ -158,7 +159,7 @@ func TestQueryMatchesFileDraw(t *testing.T) {
 }
 
 // fileDraw runs the draw from a file with the settings of s.
-func fileDraw(t *testing.T, p *plan.File, s *Spec, path string) *sampling.Folder {
+func fileDraw(t *testing.T, p *plan.File, s *Spec, path string) *drawfolder.Content {
 	t.Helper()
 	f, err := os.Open(path)
 	if err != nil {
@@ -191,7 +192,7 @@ func fileDraw(t *testing.T, p *plan.File, s *Spec, path string) *sampling.Folder
 
 // compareFolders requires byte-identical worksheets and ledgers and the
 // same strata, lot and sample in the manifests.
-func compareFolders(t *testing.T, sql, file *sampling.Folder) {
+func compareFolders(t *testing.T, sql, file *drawfolder.Content) {
 	t.Helper()
 	a, err := sql.Render()
 	if err != nil {
@@ -201,7 +202,7 @@ func compareFolders(t *testing.T, sql, file *sampling.Folder) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	files := func(nf []sampling.NamedFile) map[string][]byte {
+	files := func(nf []drawfolder.NamedFile) map[string][]byte {
 		m := map[string][]byte{}
 		for _, f := range nf {
 			m[f.Name] = f.Data
@@ -209,7 +210,7 @@ func compareFolders(t *testing.T, sql, file *sampling.Folder) {
 		return m
 	}
 	fa, fb := files(a), files(b)
-	for _, name := range []string{sampling.WorksheetFile, sampling.WorksheetSecondFile, sampling.LedgerFile} {
+	for _, name := range []string{drawfolder.WorksheetFile, drawfolder.WorksheetSecondFile, drawfolder.LedgerFile} {
 		if !bytes.Equal(fa[name], fb[name]) {
 			t.Errorf("%s differs between the query's result and the file draw:\n%s", name, firstDiff(fa[name], fb[name]))
 		}

@@ -2,10 +2,12 @@ package sqlquery
 
 import (
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"probity/internal/golden"
 	"probity/plan"
+	"probity/sampling"
 )
 
 // TestQueryGolden pins the query text for each dialect. The import
@@ -22,13 +24,30 @@ func TestQueryGolden(t *testing.T) {
 			Bands: []string{"score=0.5,0.9"}, Where: []string{"channel=web,app"}, Show: []string{"text"},
 			Candidates: []plan.Candidate{{Name: "model-a", Column: "model_a"}, {Name: "score-0.7", ScoreColumn: "score", Threshold: &th, Positive: "fraud", Negative: "ok"}},
 			SampleSize: 581, Allocation: "proportional", MinPerStratum: 3, Spare: 2, Double: 20}
-		q, err := Query(s)
-		if err != nil {
-			t.Fatal(err)
+		queries := map[string]func() (string, error){"": func() (string, error) { return Query(s) }}
+		if d.TwoStep() {
+			// The selection query for invented counts of three strata, one
+			// of them too small for its share.
+			counts := &Counts{SHA256: "9f86d081884c7d659a2feaa0c55ad015a3bf4f1b2b0b822cd15d6c15b0f00a08", Spec: s, TableRows: 20500, InScope: 20000,
+				Strata: []sampling.StratumAllocation{{Label: "north|web|[0,0.5)", Population: 12000, Sample: 345, Spare: 2},
+					{Label: "south|app|[0.5,0.9)", Population: 7998, Sample: 230, Spare: 2}, {Label: `s'\|x|[0.9,1]`, Population: 2, Sample: 2}}}
+			queries = map[string]func() (string, error){
+				"-counts":    func() (string, error) { return CountsQuery(s) },
+				"-selection": func() (string, error) { return SelectionQuery(counts) },
+			}
 		}
-		path := filepath.Join("..", "..", "testdata", "sql", "query-"+string(d)+".sql")
-		if !golden.CompareString(t, path, q) {
-			t.Errorf("the %s query changed: bump QueryFormat if the change is intended", d)
+		for suffix, query := range queries {
+			q, err := query()
+			if err != nil {
+				t.Fatal(err)
+			}
+			if strings.Count(q, "skip_unavailable_shards") != strings.Count(q, "skip_unavailable_shards = 0,") {
+				t.Errorf("the %s%s query sets skip_unavailable_shards to something other than 0", d, suffix)
+			}
+			path := filepath.Join("..", "..", "testdata", "sql", "query-"+string(d)+suffix+".sql")
+			if !golden.CompareString(t, path, q) {
+				t.Errorf("the %s%s query changed: bump QueryFormat if the change is intended", d, suffix)
+			}
 		}
 	}
 }

@@ -9,6 +9,7 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // Result is a query result that passed every check: it was made by the
@@ -38,6 +39,9 @@ type Result struct {
 	// Items holds, per stratum label, the rows selected, in key order:
 	// the first n_h are the sample, the rest the spares.
 	Items map[string][]Item
+	// Counts is the counts file a two-step (ClickHouse) selection was
+	// made from; nil for the other dialects.
+	Counts *Counts
 }
 
 // Item is one selected row of a result.
@@ -55,7 +59,7 @@ type Item struct {
 // Import reads and checks a query result. p and fingerprint are the plan
 // the result must have been made for; stdin is read when path is "-".
 // Every problem is a *inputerr.Error naming the file, line and
-// column.
+// column. A ClickHouse result is imported with ImportSelection instead.
 func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Result, error) {
 	data, err := readFile(path, stdin)
 	if err != nil {
@@ -65,30 +69,34 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	if err != nil {
 		return nil, err
 	}
-	res := &Result{Path: path, SHA256: sampling.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{}}
-	if len(t.rows) == 0 || t.rows[0][colKind] != KindDraw {
-		return nil, &inputerr.Error{File: path, Line: 2, Field: "kind", Msg: "the first row must be the draw row (kind " + KindDraw + ")",
-			Hint: "save the whole result of the query, in the order it returns"}
-	}
-	if res.Spec, err = checkDrawRow(t, p, fingerprint); err != nil {
+	res := &Result{Path: path, SHA256: drawfolder.SHA256Hex(data), Bytes: int64(len(data)), Items: map[string][]Item{}}
+	if err := firstRowKind(t, KindDraw); err != nil {
 		return nil, err
 	}
+	spec, countsSHA, err := checkDrawRow(t, p, fingerprint)
+	if err != nil {
+		return nil, err
+	}
+	if spec.Dialect.TwoStep() || countsSHA != "" {
+		return nil, t.rowError(0, colDetail, "a %s selection is checked against the counts it was made from", spec.Dialect).
+			WithHint("import it together with the counts file its selection query was printed from")
+	}
+	res.Spec = spec
 	if res.Query, err = Query(res.Spec); err != nil {
 		return nil, &inputerr.Error{File: path, Line: t.lines[0], Field: "detail", Msg: err.Error(), Err: err}
 	}
-	res.QuerySHA256 = sampling.SHA256Hex([]byte(res.Query))
+	res.QuerySHA256 = drawfolder.SHA256Hex([]byte(res.Query))
 	if res.TableRows, err = t.int64At(0, colStratumSize); err != nil {
 		return nil, err
 	}
-	nValues := len(res.Spec.valueColumns())
-	if len(t.header)-fixedColumns != nValues {
-		return nil, &inputerr.Error{File: path, Line: 1, Msg: fmt.Sprintf("%d value columns, but the draw row lists %d", len(t.header)-fixedColumns, nValues)}
-	}
-	if res.InScope, err = checkIDRows(t); err != nil {
+	if err := checkValueColumns(t, res.Spec); err != nil {
 		return nil, err
 	}
-	if pop := p.Inputs.Population; pop > 0 && res.Spec.Period == "" && res.InScope != pop {
-		return nil, (&inputerr.Error{File: path, Msg: fmt.Sprintf("%d rows of %s are in scope but the plan is for a lot of %d (inputs.population)", res.InScope, res.Spec.Table, pop)}).WithHint(fmt.Sprintf("a finite-lot plan judges exactly one lot: plan again for a lot of %d, or draw for a period to take this table as the period's lot", res.InScope))
+	if res.InScope, err = checkIDRows(t, res.Spec.Dialect); err != nil {
+		return nil, err
+	}
+	if err := checkLot(t, p, res.Spec, res.InScope); err != nil {
+		return nil, err
 	}
 	if err := res.checkStrata(t); err != nil {
 		return nil, err
@@ -99,52 +107,97 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	return res, nil
 }
 
+// firstRowKind checks that the result starts with the row of the kind
+// expected (the draw row, or the counts row of a ClickHouse counts
+// result), and names the file it looks like otherwise.
+func firstRowKind(t *resultTable, kind string) error {
+	if len(t.rows) > 0 && t.rows[0][colKind] == kind {
+		return nil
+	}
+	e := &inputerr.Error{File: t.name, Line: 2, Field: "kind", Msg: "the first row must be the " + kind + " row (kind " + kind + ")",
+		Hint: "save the whole result of the query, in the order it returns"}
+	switch {
+	case len(t.rows) > 0 && kind == KindDraw && t.rows[0][colKind] == KindCounts:
+		e.Msg = "this is the result of the counts query (step 1 of 2), not of the selection query"
+		e.Hint = "print the selection query from this counts file, run it, and import its result"
+	case len(t.rows) > 0 && kind == KindCounts && t.rows[0][colKind] == KindDraw:
+		e.Msg = "this is the result of a selection query, not of the counts query (step 1 of 2)"
+		e.Hint = "give the counts query's result as the counts and the selection query's as the selection"
+	}
+	return e
+}
+
+// checkValueColumns checks that the result has one value column per value
+// the draw row lists.
+func checkValueColumns(t *resultTable, s *Spec) error {
+	if n := len(s.valueColumns()); len(t.header)-fixedColumns != n {
+		return &inputerr.Error{File: t.name, Line: 1, Msg: fmt.Sprintf("%d value columns, but the draw row lists %d", len(t.header)-fixedColumns, n)}
+	}
+	return nil
+}
+
+// checkLot refuses rows in scope that are not the lot a finite-lot plan
+// judges.
+func checkLot(t *resultTable, p *plan.File, s *Spec, inScope int64) error {
+	if pop := p.Inputs.Population; pop > 0 && s.Period == "" && inScope != pop {
+		return (&inputerr.Error{File: t.name, Msg: fmt.Sprintf("%d rows of %s are in scope but the plan is for a lot of %d (inputs.population)", inScope, s.Table, pop)}).WithHint(fmt.Sprintf("a finite-lot plan judges exactly one lot: plan again for a lot of %d, or draw for a period to take this table as the period's lot", inScope))
+	}
+	return nil
+}
+
 // checkDrawRow decodes the draw row's description and checks that it names
-// this plan, its seed and a selection seed that follows from them.
-func checkDrawRow(t *resultTable, p *plan.File, fingerprint string) (*Spec, error) {
+// this plan, its seed and a selection seed that follows from them. It also
+// returns the SHA-256 of the counts file the description names (a
+// ClickHouse selection; "" otherwise).
+func checkDrawRow(t *resultTable, p *plan.File, fingerprint string) (*Spec, string, error) {
 	d, err := parseDetail(t.rows[0][colDetail])
 	if err != nil {
-		return nil, t.rowError(0, colDetail, "%v", err)
+		return nil, "", t.rowError(0, colDetail, "%v", err)
 	}
 	if d.Format != QueryFormat {
-		return nil, t.rowError(0, colDetail, "the result was made by a query of format %d; this probity reads format %d", d.Format, QueryFormat).WithHint("print the query again with this probity and run it")
+		return nil, "", t.rowError(0, colDetail, "the result was made by a query of format %d; this probity reads format %d", d.Format, QueryFormat).WithHint("print the query again with this probity and run it")
 	}
 	if d.PlanFingerprint != fingerprint {
-		return nil, t.rowError(0, colDetail, "the result was made for another plan (fingerprint %s), not this one (%s)", short(d.PlanFingerprint), short(fingerprint)).WithHint("import it with the plan the query was printed from, or print and run the query for this plan")
+		return nil, "", t.rowError(0, colDetail, "the result was made for another plan (fingerprint %s), not this one (%s)", short(d.PlanFingerprint), short(fingerprint)).WithHint("import it with the plan the query was printed from, or print and run the query for this plan")
 	}
 	if d.Seed != p.Seed {
-		return nil, t.rowError(0, colDetail, "the result was made with seed %q, but the plan's seed is %q", d.Seed, p.Seed).WithHint("print and run the query for this plan")
+		return nil, "", t.rowError(0, colDetail, "the result was made with seed %q, but the plan's seed is %q", d.Seed, p.Seed).WithHint("print and run the query for this plan")
 	}
 	want := p.Seed
 	if d.Period != "" {
 		want = sampling.PeriodSeed(p.Seed, d.Period)
 	}
 	if d.SelectionSeed != want {
-		return nil, t.rowError(0, colDetail, "the selection seed %q does not follow from the plan's seed and period %q (expected %q)", d.SelectionSeed, d.Period, want)
+		return nil, "", t.rowError(0, colDetail, "the selection seed %q does not follow from the plan's seed and period %q (expected %q)", d.SelectionSeed, d.Period, want)
 	}
 	if d.SampleSize != p.Rule.SampleSize {
-		return nil, t.rowError(0, colDetail, "the result was made for a sample of %d, but the plan's is %d", d.SampleSize, p.Rule.SampleSize)
+		return nil, "", t.rowError(0, colDetail, "the result was made for a sample of %d, but the plan's is %d", d.SampleSize, p.Rule.SampleSize)
 	}
 	s := d.Spec
 	s.Candidates = p.Candidates
 	if got := s.valueColumns(); !slices.Equal(got, d.Values) {
-		return nil, t.rowError(0, colDetail, "the value columns %q are not those the plan's candidates and the shown columns need (%q)", d.Values, got)
+		return nil, "", t.rowError(0, colDetail, "the value columns %q are not those the plan's candidates and the shown columns need (%q)", d.Values, got)
 	}
-	return &s, nil
+	return &s, d.CountsSHA256, nil
 }
 
 // checkIDRows reads the rows that count the table's rows in scope, its
 // empty and repeated ids and its values a draw from a file would refuse,
 // and refuses the result when there are any; it returns the rows in scope.
 // Repeated ids are refused wherever they are (a draw inside the engine has
-// no log order in which to keep a first copy).
-func checkIDRows(t *resultTable) (int64, error) {
+// no log order in which to keep a first copy). A two-step (ClickHouse)
+// result counts the rows that repeat an id instead of the ids repeated.
+func checkIDRows(t *resultTable, d Dialect) (int64, error) {
 	counts := map[string]int64{}
 	var dupLines []int
 	var dupExamples []string
+	required := []string{KindInScope, KindEmptyIDs, KindDuplicateIDs}
+	if d.TwoStep() {
+		required[2] = KindRepeatedRows
+	}
 	for i, row := range t.rows {
 		switch row[colKind] {
-		case KindInScope, KindEmptyIDs, KindDuplicateIDs:
+		case KindInScope, KindEmptyIDs, KindDuplicateIDs, KindRepeatedRows:
 			n, err := t.int64At(i, colStratumSize)
 			if err != nil {
 				return 0, err
@@ -157,7 +210,7 @@ func checkIDRows(t *resultTable) (int64, error) {
 			return 0, badValueError(t, i)
 		}
 	}
-	for _, k := range []string{KindInScope, KindEmptyIDs, KindDuplicateIDs} {
+	for _, k := range required {
 		if _, ok := counts[k]; !ok {
 			return 0, &inputerr.Error{File: t.name, Msg: "the " + k + " row is missing", Hint: "save the whole result of the query"}
 		}
@@ -171,6 +224,10 @@ func checkIDRows(t *resultTable) (int64, error) {
 			line = dupLines[0]
 		}
 		return 0, (&inputerr.Error{File: t.name, Line: line, Field: "record_id", Msg: fmt.Sprintf("%d %s more than once in the table, e.g. %s", n, plural(n, "id occurs", "ids occur"), joinList(dupExamples))}).WithHint("ids must be unique; a draw inside the engine cannot keep a first copy (draw from an export of the table, keeping the first row of each id)")
+	}
+	if n := counts[KindRepeatedRows]; n > 0 {
+		return 0, (&inputerr.Error{File: t.name, Field: "record_id", Msg: fmt.Sprintf("%d %s in scope %s the id of another row", n, plural(n, "row", "rows"), plural(n, "repeats", "repeat"))}).
+			WithHint("ids must be unique; list the repeated ones with SELECT id, count() FROM table GROUP BY id HAVING count() > 1, or draw from an export of the table, keeping the first row of each id")
 	}
 	return counts[KindInScope], nil
 }

@@ -159,4 +159,29 @@ func TestQueryRefusesBadSpecs(t *testing.T) {
 	if _, err := Query(&base); err != nil {
 		t.Fatalf("the base spec is valid: %v", err)
 	}
+	// ClickHouse: the same checks for its counts query, and its own.
+	ch := base
+	ch.Dialect = ClickHouse
+	chCases := append(cases[2:len(cases)-1:len(cases)-1], []struct {
+		edit func(*Spec)
+		want string
+	}{
+		{func(s *Spec) { s.Allocation = "neyman" }, "neyman allocation is not available for a clickhouse draw"},
+		{func(s *Spec) { s.Table = "a.b.c" }, "ClickHouse names a table database.table"},
+		{func(s *Spec) { s.Where = []string{"region=a\x00b"} }, "contains a NUL byte"},
+	}...)
+	for i, c := range chCases {
+		s := ch
+		c.edit(&s)
+		_, err := CountsQuery(&s)
+		if !errors.Is(err, ErrSpec) || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("clickhouse case %d: %v; want ErrSpec with %q", i, err, c.want)
+		}
+	}
+	if _, err := Query(&ch); !errors.Is(err, ErrSpec) || !strings.Contains(err.Error(), "draws in two steps") {
+		t.Errorf("Query for clickhouse: %v", err)
+	}
+	if _, err := CountsQuery(&base); !errors.Is(err, ErrSpec) {
+		t.Errorf("CountsQuery for postgres: %v", err)
+	}
 }

@@ -15,6 +15,7 @@ const (
 	KindEmptyIDs     = "empty_ids"     // one row: rows whose id is NULL or empty
 	KindDuplicateIDs = "duplicate_ids" // one row: ids in scope that occur more than once
 	KindDuplicateID  = "duplicate_id"  // up to 3 rows: such an id and its count
+	KindRepeatedRows = "repeated_rows" // one row (ClickHouse counts): rows in scope beyond the first of each id
 	KindBadValue     = "bad_value"     // per problem: rows a draw from a file would refuse
 	KindStratum      = "stratum"       // one row per stratum: N_h, n_h, spares
 	KindItem         = "item"          // one row per selected item or spare
@@ -40,6 +41,9 @@ func ResultHeader(values int) []string {
 // HEADER, or DuckDB's COPY), is what Import reads. The text is a pure
 // function of s.
 func Query(s *Spec) (string, error) {
+	if s.Dialect.TwoStep() {
+		return "", specError("dialect", "%s draws in two steps, a counts query and a selection query", s.Dialect)
+	}
 	q, err := newQuoter(s)
 	if err != nil {
 		return "", err

@@ -17,10 +17,12 @@ var ErrLiteral = errors.New("invalid SQL literal")
 
 // QuoteIdent returns name as a delimited identifier: wrapped in double
 // quotes with every double quote doubled (SQL:2016 Part 2 §5.2 <delimited
-// identifier>, as in both PostgreSQL and DuckDB). The name is taken exactly
-// as written — case, spaces and keywords included — since a delimited
-// identifier is never folded. A name that is empty, not UTF-8, holds a NUL
-// byte or is longer than the dialect keeps is refused.
+// identifier>, as in both PostgreSQL and DuckDB). ClickHouse reads
+// backslash escapes inside quoted identifiers (\n, \x41, \\), so there
+// every backslash and double quote is escaped with a backslash instead. The
+// name is taken exactly as written — case, spaces and keywords included —
+// since a delimited identifier is never folded. A name that is empty, not
+// UTF-8, holds a NUL byte or is longer than the dialect keeps is refused.
 func (d Dialect) QuoteIdent(name string) (string, error) {
 	switch {
 	case name == "":
@@ -33,7 +35,16 @@ func (d Dialect) QuoteIdent(name string) (string, error) {
 	if max := d.maxIdentBytes(); max > 0 && len(name) > max {
 		return "", fmt.Errorf("%w: %q is %d bytes long; %s keeps only the first %d", ErrName, name, len(name), d, max)
 	}
+	if d == ClickHouse {
+		return `"` + backslashEscaper('"').Replace(name) + `"`, nil
+	}
 	return `"` + strings.ReplaceAll(name, `"`, `""`) + `"`, nil
+}
+
+// backslashEscaper escapes backslashes and the quote character q with a
+// backslash, as ClickHouse reads quoted strings and identifiers.
+func backslashEscaper(q byte) *strings.Replacer {
+	return strings.NewReplacer(`\`, `\\`, string(q), `\`+string(q))
 }
 
 // QuoteLiteral returns s as a string literal the query cannot break out of.
@@ -41,7 +52,9 @@ func (d Dialect) QuoteIdent(name string) (string, error) {
 // written as an escape string E'…' with every backslash doubled as well, so
 // it reads the same whatever standard_conforming_strings is set to (the
 // rule of PostgreSQL's own quote_literal). DuckDB treats backslashes in
-// ordinary literals as plain characters. A string that is not UTF-8 or
+// ordinary literals as plain characters. ClickHouse reads backslash escapes
+// in every literal, so there each backslash and single quote is escaped
+// with a backslash ('it\'s a \\ seed'). A string that is not UTF-8 or
 // holds a NUL byte (which no text value can) is refused.
 func (d Dialect) QuoteLiteral(s string) (string, error) {
 	switch {
@@ -49,6 +62,9 @@ func (d Dialect) QuoteLiteral(s string) (string, error) {
 		return "", fmt.Errorf("%w: %q is not valid UTF-8", ErrLiteral, s)
 	case strings.IndexByte(s, 0) >= 0:
 		return "", fmt.Errorf("%w: %q contains a NUL byte", ErrLiteral, s)
+	}
+	if d == ClickHouse {
+		return `'` + backslashEscaper('\'').Replace(s) + `'`, nil
 	}
 	q := strings.ReplaceAll(s, `'`, `''`)
 	if d == Postgres && strings.Contains(s, `\`) {
@@ -119,11 +135,15 @@ func ParseTableName(s string) ([]string, error) {
 }
 
 // QuoteTable returns the table reference s (see ParseTableName) with each
-// part quoted by QuoteIdent.
+// part quoted by QuoteIdent. ClickHouse names a table with at most two
+// parts, database.table.
 func (d Dialect) QuoteTable(s string) (string, error) {
 	parts, err := ParseTableName(s)
 	if err != nil {
 		return "", err
+	}
+	if d == ClickHouse && len(parts) > 2 {
+		return "", fmt.Errorf("%w: table name %q has %d parts; ClickHouse names a table database.table", ErrName, s, len(parts))
 	}
 	quoted := make([]string, len(parts))
 	for i, p := range parts {

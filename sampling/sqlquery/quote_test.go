@@ -54,6 +54,14 @@ func TestQuoteIdent(t *testing.T) {
 	if _, err := DuckDB.QuoteIdent(strings.Repeat("x", 64)); err != nil {
 		t.Errorf("duckdb keeps long names: %v", err)
 	}
+	for in, want := range map[string]string{`score`: `"score"`, `a"b`: `"a\"b"`, `a\b`: `"a\\b"`, `\"`: `"\\\""`} {
+		if got, err := ClickHouse.QuoteIdent(in); err != nil || got != want {
+			t.Errorf("clickhouse QuoteIdent(%q) = %q, %v; want %q", in, got, err, want)
+		}
+	}
+	if _, err := ClickHouse.QuoteTable("a.b.c"); !errors.Is(err, ErrName) {
+		t.Errorf("clickhouse QuoteTable of three parts: %v", err)
+	}
 }
 
 func TestQuoteLiteral(t *testing.T) {
@@ -67,6 +75,12 @@ func TestQuoteLiteral(t *testing.T) {
 		{Postgres, `\'`, `E'\\'''`},
 		{DuckDB, `a\b`, `'a\b'`},
 		{DuckDB, `it's`, `'it''s'`},
+		// ClickHouse reads backslash escapes in every literal (its SQL
+		// reference, "String literals").
+		{ClickHouse, `it's`, `'it\'s'`},
+		{ClickHouse, `a\b`, `'a\\b'`},
+		{ClickHouse, `\'`, `'\\\''`},
+		{ClickHouse, `\x41\n`, `'\\x41\\n'`},
 	}
 	for _, c := range cases {
 		got, err := c.d.QuoteLiteral(c.in)

@@ -10,7 +10,7 @@ import (
 	"strings"
 
 	"probity/plan/inputerr"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // resultTable is a query result file read whole (it is as large as the
@@ -45,7 +45,7 @@ func readResult(path string, data []byte) (*resultTable, error) {
 		return nil, &inputerr.Error{File: path, Msg: "the file is empty",
 			Hint: "save the query's result with its header, e.g. psql --csv -f draw.sql > result.csv"}
 	}
-	ct, err := sampling.ParseCSVTable(data, path)
+	ct, err := drawfolder.ParseCSVTable(data, path)
 	if err != nil {
 		var ie *inputerr.Error
 		if errors.As(err, &ie) && ie.Line > 0 && ie.Err != nil {

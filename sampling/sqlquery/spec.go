@@ -93,15 +93,24 @@ func (s *Spec) valueColumns() []string {
 type specJSON struct {
 	Spec
 	Values []string `json:"values"`
+	// CountsSHA256 is set in the description a ClickHouse selection query
+	// carries: the SHA-256 of the counts file it was made from.
+	CountsSHA256 string `json:"counts_sha256,omitempty"`
 }
 
 // MarshalDetail returns the canonical JSON of the Spec that the query
 // carries: compact, keys in struct order, no HTML escaping.
 func (s *Spec) MarshalDetail() ([]byte, error) {
+	return s.marshalDetail("")
+}
+
+// marshalDetail is MarshalDetail with the counts file's SHA-256 (for a
+// ClickHouse selection query; "" otherwise).
+func (s *Spec) marshalDetail(countsSHA256 string) ([]byte, error) {
 	var buf bytes.Buffer
 	enc := json.NewEncoder(&buf)
 	enc.SetEscapeHTML(false)
-	v := specJSON{Spec: *s, Values: s.valueColumns()}
+	v := specJSON{Spec: *s, Values: s.valueColumns(), CountsSHA256: countsSHA256}
 	if v.Strata == nil {
 		v.Strata = []string{}
 	}

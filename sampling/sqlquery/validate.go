@@ -40,6 +40,11 @@ func (s *Spec) validate() error {
 	switch s.Allocation {
 	case ruleProportional, ruleEqual:
 	case sampling.Neyman:
+		if s.Dialect.TwoStep() {
+			// The allocation runs in Go between the two queries, but the
+			// draw description carries no anticipated errors yet.
+			return specError("", "neyman allocation is not available for a %s draw; use proportional or equal, or draw from an export of the table", s.Dialect)
+		}
 		return specError("", "neyman allocation cannot run inside the engine: its weights N_h·√(p_h(1−p_h)) are divided in exact rational arithmetic that SQL cannot reproduce bit for bit; use proportional or equal, or draw from an export of the table")
 	default:
 		return specError("", "unknown allocation rule %q (proportional or equal inside the engine)", s.Allocation)

@@ -8,85 +8,114 @@ import (
 	"probity/sampling"
 )
 
-// checkStrata reads the stratum rows and checks them against the table's
-// row count and against sampling.Allocate on the same counts.
-func (res *Result) checkStrata(t *resultTable) error {
-	var counts []sampling.StratumCount
-	type claim struct {
-		row           int
-		sample, spare int64
-	}
-	claims := map[string]claim{}
-	var total int64
+// stratumCounts reads the stratum rows: each label once, in byte order,
+// with at least one row. rows[i] is the result row of counts[i].
+func stratumCounts(t *resultTable) (counts []sampling.StratumCount, rows []int, err error) {
+	seen := map[string]bool{}
 	for i, row := range t.rows {
 		if row[colKind] != KindStratum {
 			continue
 		}
 		label := row[colStratum]
-		if _, dup := claims[label]; dup {
-			return t.rowError(i, colStratum, "stratum %q is listed twice", label)
+		if seen[label] {
+			return nil, nil, t.rowError(i, colStratum, "stratum %q is listed twice", label)
 		}
+		seen[label] = true
 		if n := len(counts); n > 0 && label < counts[n-1].Label {
-			return t.rowError(i, colStratum, "stratum %q comes after %q; the rows are not in the query's order", label, counts[n-1].Label)
+			return nil, nil, t.rowError(i, colStratum, "stratum %q comes after %q; the rows are not in the query's order", label, counts[n-1].Label)
 		}
 		pop, err := t.int64At(i, colStratumSize)
 		if err != nil {
-			return err
+			return nil, nil, err
 		}
 		if pop < 1 {
-			return t.rowError(i, colStratumSize, "stratum %q has no rows", label)
+			return nil, nil, t.rowError(i, colStratumSize, "stratum %q has no rows", label)
 		}
-		var c claim
-		c.row = i
-		if c.sample, err = t.int64At(i, colStratumSample); err != nil {
-			return err
-		}
-		if c.spare, err = t.int64At(i, colStratumSpare); err != nil {
-			return err
-		}
-		claims[label] = c
 		counts = append(counts, sampling.StratumCount{Label: label, Population: pop})
-		total += pop
+		rows = append(rows, i)
 	}
+	return counts, rows, nil
+}
+
+// allocateCounts checks that the strata hold the rows in scope and
+// allocates the sample among them as the draw from a file does.
+func allocateCounts(t *resultTable, s *Spec, counts []sampling.StratumCount, inScope, tableRows int64) ([]sampling.StratumAllocation, error) {
 	if len(counts) == 0 {
-		return &inputerr.Error{File: t.name, Msg: "the table " + res.Spec.Table + " has no rows in scope", Hint: "check the table name and the filter"}
+		return nil, &inputerr.Error{File: t.name, Msg: "the table " + s.Table + " has no rows in scope", Hint: "check the table name and the filter"}
 	}
-	if total != res.InScope {
-		return &inputerr.Error{File: t.name, Field: "stratum_size", Msg: fmt.Sprintf("%d rows are in scope but the strata add up to %d", res.InScope, total)}
+	var total int64
+	for _, c := range counts {
+		total += c.Population
 	}
-	if res.InScope > res.TableRows {
-		return t.rowError(0, colStratumSize, "the table has %d rows but %d are in scope", res.TableRows, res.InScope)
+	if total != inScope {
+		return nil, &inputerr.Error{File: t.name, Field: "stratum_size", Msg: fmt.Sprintf("%d rows are in scope but the strata add up to %d", inScope, total)}
 	}
-	s := res.Spec
+	if inScope > tableRows {
+		return nil, t.rowError(0, colStratumSize, "the table has %d rows but %d are in scope", tableRows, inScope)
+	}
 	alloc, err := sampling.Allocate(counts, s.SampleSize, sampling.AllocOptions{Rule: s.Allocation, MinPerStratum: s.MinPerStratum, Spare: s.Spare})
 	if err != nil {
 		e := &inputerr.Error{File: t.name, Msg: err.Error(), Err: err}
 		if errors.Is(err, sampling.ErrSampleTooLarge) {
-			e.Msg = fmt.Sprintf("the plan needs a sample of %d but only %d rows are in scope", s.SampleSize, res.InScope)
+			e.Msg = fmt.Sprintf("the plan needs a sample of %d but only %d rows are in scope", s.SampleSize, inScope)
 			e.Hint = "check the table and the filters"
 		}
-		return e
+		return nil, e
 	}
+	return alloc, nil
+}
+
+// checkClaims checks the n_h and spares each stratum row claims (rows[i]
+// is the row of alloc[i]) and their sums on the draw row.
+func checkClaims(t *resultTable, alloc []sampling.StratumAllocation, rows []int) error {
 	var sumSample, sumSpare int64
-	for _, a := range alloc {
-		c := claims[a.Label]
-		if c.sample != int64(a.Sample) {
-			return t.rowError(c.row, colStratumSample, "stratum %q: the result allocates %d items but its %d rows get %d", a.Label, c.sample, a.Population, a.Sample)
+	for i, a := range alloc {
+		r := rows[i]
+		sample, err := t.int64At(r, colStratumSample)
+		if err != nil {
+			return err
 		}
-		if c.spare != int64(a.Spare) {
-			return t.rowError(c.row, colStratumSpare, "stratum %q: the result draws %d spares but should draw %d", a.Label, c.spare, a.Spare)
+		spare, err := t.int64At(r, colStratumSpare)
+		if err != nil {
+			return err
+		}
+		if sample != int64(a.Sample) {
+			return t.rowError(r, colStratumSample, "stratum %q: the result allocates %d items but its %d rows get %d", a.Label, sample, a.Population, a.Sample)
+		}
+		if spare != int64(a.Spare) {
+			return t.rowError(r, colStratumSpare, "stratum %q: the result draws %d spares but should draw %d", a.Label, spare, a.Spare)
 		}
 		sumSample += int64(a.Sample)
 		sumSpare += int64(a.Spare)
 	}
-	for col, want := range map[int]int64{colStratumSample: sumSample, colStratumSpare: sumSpare} {
-		got, err := t.int64At(0, col)
+	for _, f := range []struct {
+		col  int
+		want int64
+	}{{colStratumSample, sumSample}, {colStratumSpare, sumSpare}} {
+		got, err := t.int64At(0, f.col)
 		if err != nil {
 			return err
 		}
-		if got != want {
-			return t.rowError(0, col, "the draw row says %d, but the strata add up to %d", got, want)
+		if got != f.want {
+			return t.rowError(0, f.col, "the draw row says %d, but the strata add up to %d", got, f.want)
 		}
+	}
+	return nil
+}
+
+// checkStrata reads the stratum rows and checks them against the table's
+// row count and against sampling.Allocate on the same counts.
+func (res *Result) checkStrata(t *resultTable) error {
+	counts, rows, err := stratumCounts(t)
+	if err != nil {
+		return err
+	}
+	alloc, err := allocateCounts(t, res.Spec, counts, res.InScope, res.TableRows)
+	if err != nil {
+		return err
+	}
+	if err := checkClaims(t, alloc, rows); err != nil {
+		return err
 	}
 	res.Strata = alloc
 	return nil
@@ -136,11 +165,18 @@ func (res *Result) checkItems(t *resultTable) error {
 				return t.rowError(i, f.col, "record %q: %d, but stratum %q has %d", id, got, label, f.want)
 			}
 		}
-		rank, err := t.int64At(i, colStratumRank)
-		if err != nil {
-			return err
-		}
 		items := res.Items[label]
+		// A two-step (ClickHouse) result has no ranks: without window
+		// functions the engine writes each stratum's rows in key order,
+		// and the rank is the row's place among them.
+		rank := int64(len(items) + 1)
+		if !res.Spec.Dialect.TwoStep() {
+			r, err := t.int64At(i, colStratumRank)
+			if err != nil {
+				return err
+			}
+			rank = r
+		}
 		if rank != int64(len(items)+1) {
 			return t.rowError(i, colStratumRank, "record %q has rank %d in stratum %q, expected %d (rows missing, repeated or out of order)", id, rank, label, len(items)+1)
 		}

@@ -1,9 +1,13 @@
 // Package assemble builds an acceptance record (record.json's content)
-// from a plan, a draw folder and the labeled worksheet: it runs the intake
-// checks, judges every candidate and fills in the plan, the fingerprints,
-// the OC curve, the deviations, the method and the sign-off. The record
-// command calls it to write a record and the verify command calls it again
-// to recompute one.
+// from a plan, a draw folder and the labeled worksheet (with double
+// labeling, also the second worksheet and the adjudications): it reads and
+// checks the files (Read), resolves double labels (package agreement),
+// runs the intake checks, judges every candidate and fills in the plan,
+// the fingerprints, the OC curve, the deviations, the method and the
+// sign-off (Assemble). Record does both; the record command calls it to
+// write a record and the verification of a record calls it again, with
+// the stored record's options, to recompute one, so the two cannot drift
+// apart.
 //
 // The package computes and never prints; it reads no clock (the date is
 // passed in).
@@ -12,28 +16,57 @@ package assemble
 import (
 	"errors"
 	"fmt"
+	"os"
 	"strings"
 	"time"
 
 	"probity/plan"
+	"probity/plan/agreement"
 	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/intake"
 	"probity/plan/verdict"
+	"probity/sampling/drawfolder"
 	"probity/templates"
 )
 
 // OCPoints is the number of OC-curve points a record holds.
 const OCPoints = 61
 
-// Input is everything a record is built from.
-type Input struct {
+// Files names the files a record is computed from. Second and
+// Adjudications are empty without double labeling; Adjudications needs
+// Second.
+type Files struct {
+	Plan, Draw, Labels    string
+	Second, Adjudications string
+}
+
+// Inputs are the files a record is computed from, read and checked.
+type Inputs struct {
 	Plan   *plan.File
 	PlanFP string
-	Folder *intake.Folder
-	Labels *intake.Labels
+	Folder *drawfolder.Folder
+	Labels *drawfolder.Labels
+	// Second is the labeled second worksheet (nil without double
+	// labeling), Adjudications the rows of the adjudication file (whose
+	// name and SHA-256 are AdjudicationFile and AdjudicationSHA256; empty
+	// when none was given).
+	Second             *drawfolder.Labels
+	Adjudications      []agreement.Adjudication
+	AdjudicationFile   string
+	AdjudicationSHA256 string
+}
+
+// Options are the choices a record is made with, besides its files.
+type Options struct {
 	// AllowIncomplete counts unlabeled and unsure items as errors.
 	AllowIncomplete bool
+	// AllowUnadjudicated counts the disagreements of double labeling left
+	// without an adjudication as errors; Strict refuses a doubled item
+	// labeled twice by one person or without both labelers' names (see
+	// agreement.Input).
+	AllowUnadjudicated bool
+	Strict             bool
 	// Bound is the bound for unequal weights (verdict.KornGraubard unless
 	// set).
 	Bound verdict.UnequalBound
@@ -50,49 +83,108 @@ type Input struct {
 	// unsigned) are written into the record.
 	ToolVersion string
 	SigningKey  string
-	// Adjust, when set, is called after the intake checks and before the
-	// judgement, and may change the items' labels (e.g. to the adjudicated
-	// final labels of double labeling); what it returns is stored as the
-	// record's label quality.
-	Adjust func(*intake.Result) (*record.LabelQuality, error)
 }
 
 // ErrInput is wrapped by errors about the assemble inputs themselves (an
 // unknown use, a malformed date).
 var ErrInput = errors.New("invalid record input")
 
-// Assemble checks the inputs and builds the record. Errors from the intake
-// checks are *inputerr.Error values naming the file and line.
-func Assemble(in Input) (*record.Record, error) {
-	if err := checkUse(in.Use); err != nil {
+// Record reads the files (Read) and builds the record from them
+// (Assemble).
+func Record(files Files, o Options) (*record.Record, error) {
+	in, err := Read(files)
+	if err != nil {
 		return nil, err
 	}
-	if _, err := time.Parse("2006-01-02", in.Date); err != nil {
-		return nil, inputerr.Errorf("%w: date %q is not a date in the form YYYY-MM-DD", ErrInput, in.Date)
+	return Assemble(in, o)
+}
+
+// Read reads and checks the files of a record: the plan (one that declares
+// candidates), the draw folder (drawfolder.Open, against the plan), the
+// labeled worksheet and, with double labeling, the labeled second
+// worksheet (against the draw's, drawfolder.Folder.CheckSecond) and the
+// adjudications. Errors are *inputerr.Error values naming the file.
+func Read(f Files) (*Inputs, error) {
+	p, fp, err := plan.LoadForJudging(f.Plan)
+	if err != nil {
+		return nil, err
+	}
+	in := &Inputs{Plan: p, PlanFP: fp}
+	if in.Folder, err = drawfolder.Open(f.Draw, fp, p.CandidateNames()); err != nil {
+		return nil, err
+	}
+	if in.Labels, err = drawfolder.ReadLabels(f.Labels); err != nil {
+		return nil, err
+	}
+	if f.Second == "" {
+		if f.Adjudications != "" {
+			return nil, fmt.Errorf("assemble: adjudications given without a second worksheet")
+		}
+		return in, nil
+	}
+	if in.Second, err = drawfolder.ReadLabels(f.Second); err != nil {
+		return nil, err
+	}
+	if err := in.Folder.CheckSecond(in.Second); err != nil {
+		return nil, err
+	}
+	if f.Adjudications != "" {
+		data, err := os.ReadFile(f.Adjudications)
+		if err != nil {
+			return nil, inputerr.FromPath(err)
+		}
+		if in.Adjudications, err = agreement.ParseAdjudications(data, f.Adjudications, p.Classes); err != nil {
+			return nil, err
+		}
+		in.AdjudicationFile, in.AdjudicationSHA256 = f.Adjudications, record.SHA256(data)
+	}
+	return in, nil
+}
+
+// Assemble checks the inputs and builds the record. Errors from the intake
+// checks are *inputerr.Error values naming the file and line.
+func Assemble(in *Inputs, o Options) (*record.Record, error) {
+	if err := checkUse(o.Use); err != nil {
+		return nil, err
+	}
+	if _, err := time.Parse("2006-01-02", o.Date); err != nil {
+		return nil, inputerr.Errorf("%w: date %q is not a date in the form YYYY-MM-DD", ErrInput, o.Date)
 	}
 	p := in.Plan
 	if p.IsSizingOnly() {
 		return nil, inputerr.Errorf("%w: the plan declares no candidates, so there is nothing to judge", ErrInput)
 	}
+	labels := in.Labels
+	var resolved *agreement.Result
+	if in.Second != nil {
+		var err error
+		if resolved, err = resolve(in, o); err != nil {
+			return nil, err
+		}
+		relabeled := *labels
+		relabeled.Rows = resolved.Relabel(labels.Rows, in.Second.Rows, p.Classes)
+		labels = &relabeled
+	}
 	seq := p.Sequential != nil
-	checked, err := intake.Check(p, in.PlanFP, in.Folder, in.Labels, intake.Options{AllowIncomplete: in.AllowIncomplete, Prefix: seq})
+	checked, err := intake.Check(p, in.PlanFP, in.Folder, labels, intake.Options{AllowIncomplete: o.AllowIncomplete, Prefix: seq})
 	if err != nil {
 		return nil, err
 	}
 	rec := &record.Record{
-		Format: record.Format, ToolVersion: in.ToolVersion, Date: in.Date,
-		Period: in.Folder.Manifest.Period, System: p.System, SystemVersion: p.SystemVersion, Use: in.Use,
-		Fingerprints: checked.Fingerprints, SigningKey: in.SigningKey,
+		Format: record.Format, ToolVersion: o.ToolVersion, Date: o.Date,
+		Period: in.Folder.Manifest.Period, System: p.System, SystemVersion: p.SystemVersion, Use: o.Use,
+		Fingerprints: checked.Fingerprints, SigningKey: o.SigningKey,
 	}
-	if in.Adjust != nil {
-		lq, err := in.Adjust(checked)
+	if resolved != nil {
+		lq, err := resolved.Judged(checked.Items, &checked.Deviations, in.Folder.Ledger)
 		if err != nil {
 			return nil, err
 		}
+		lq.SecondWorksheet, lq.Adjudications = record.SHA256(in.Second.Bytes), in.AdjudicationSHA256
 		rec.LabelQuality = lq
 	}
 	rec.RecordID = record.ID(rec.Fingerprints, rec.LabelQuality)
-	res, err := judge(p, checked, in.Bound)
+	res, err := judge(p, checked, o.Bound)
 	if err != nil {
 		return nil, err
 	}
@@ -125,11 +217,25 @@ func Assemble(in Input) (*record.Record, error) {
 			rec.OC = append(rec.OC, record.OCPoint{Error: pt.Error, AcceptProbability: pt.AcceptProbability})
 		}
 	}
-	if rec.Signoff, err = signoff(in.Signoff, in.Templates, rec); err != nil {
+	if rec.Signoff, err = signoff(o.Signoff, o.Templates, rec); err != nil {
 		return nil, err
 	}
 	rec.Normalize()
 	return rec, nil
+}
+
+// resolve checks the second worksheet and the adjudications against the
+// ledger and the labeled worksheet and gives every item its final label.
+func resolve(in *Inputs, o Options) (*agreement.Result, error) {
+	return agreement.Resolve(agreement.Input{
+		Classes: in.Plan.Classes,
+		Ledger:  in.Folder.Ledger, LedgerFile: in.Folder.Path(drawfolder.LedgerFile),
+		First: in.Labels.Rows, FirstFile: in.Labels.Path,
+		Second: in.Second.Rows, SecondFile: in.Second.Path,
+		Adjudications: in.Adjudications, AdjudicationFile: in.AdjudicationFile,
+		Strict: o.Strict, AllowUnadjudicated: o.AllowUnadjudicated,
+		Ceiling: in.Plan.Inputs.Ceiling,
+	})
 }
 
 func checkUse(use string) error {
@@ -157,7 +263,7 @@ func ocTop(p *plan.File) float64 {
 }
 
 // planInfo repeats the plan's rule and inputs.
-func planInfo(p *plan.File, fp string, f *intake.Folder) record.PlanInfo {
+func planInfo(p *plan.File, fp string, f *drawfolder.Folder) record.PlanInfo {
 	in := p.Inputs
 	return record.PlanInfo{
 		Fingerprint: fp, Method: in.Method, Model: p.Rule.Model, Design: in.Design,

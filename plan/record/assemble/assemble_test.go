@@ -15,15 +15,15 @@ import (
 func TestAssembleRefusesBadInputsFirst(t *testing.T) {
 	p := &plan.File{Inputs: plan.Inputs{Ceiling: 0.1, Confidence: 0.9, CandidateCount: 1}}
 	cases := []struct {
-		in   Input
+		o    Options
 		want string
 	}{
-		{Input{Plan: p, Use: "aviation", Date: "2026-01-01"}, `use "aviation" is not one of general, safety, medical, vehicle, credit, employment`},
-		{Input{Plan: p, Use: "general", Date: "2026-13-01"}, `date "2026-13-01" is not a date`},
-		{Input{Plan: p, Use: "general", Date: "2026-01-01"}, "the plan declares no candidates"},
+		{Options{Use: "aviation", Date: "2026-01-01"}, `use "aviation" is not one of general, safety, medical, vehicle, credit, employment`},
+		{Options{Use: "general", Date: "2026-13-01"}, `date "2026-13-01" is not a date`},
+		{Options{Use: "general", Date: "2026-01-01"}, "the plan declares no candidates"},
 	}
 	for _, c := range cases {
-		_, err := Assemble(c.in)
+		_, err := Assemble(&Inputs{Plan: p}, c.o)
 		if !errors.Is(err, ErrInput) || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("got %v, want ErrInput with %q", err, c.want)
 		}

@@ -3,7 +3,6 @@ package intake
 import (
 	"errors"
 	"fmt"
-	"path/filepath"
 	"sort"
 	"strings"
 
@@ -11,11 +10,8 @@ import (
 	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/verdict"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
-
-// Unsure is the label a labeler gives when they cannot decide.
-const Unsure = "unsure"
 
 // ErrIncomplete is the cause of the refusal of a worksheet whose items are
 // left unlabeled or unsure without a spare to replace them, when
@@ -57,20 +53,16 @@ const maxListed = 5
 // Check validates the labeled worksheet against the plan and the draw
 // folder and returns the items to judge. planFP is the plan file's
 // SHA-256.
-func Check(p *plan.File, planFP string, f *Folder, l *Labels, opts Options) (*Result, error) {
-	mpath := filepath.Join(f.Dir, sampling.ManifestFile)
-	lpath := filepath.Join(f.Dir, sampling.LedgerFile)
+func Check(p *plan.File, planFP string, f *drawfolder.Folder, l *drawfolder.Labels, opts Options) (*Result, error) {
 	m := f.Manifest
-	if err := checkPlan(m, mpath, planFP); err != nil {
+	if err := f.CheckPlan(planFP); err != nil {
 		return nil, err
 	}
-	strata, index, err := designFromManifest(m, mpath)
-	if err != nil {
-		return nil, err
+	strata := make([]verdict.Stratum, len(m.Strata))
+	for i, s := range m.Strata {
+		strata[i] = verdict.Stratum{Label: s.Label, Population: s.Population}
 	}
-	if err := checkLedger(f.Ledger, m, index, lpath); err != nil {
-		return nil, err
-	}
+	index := f.StratumIndex
 	if err := compareRows(f, l); err != nil {
 		return nil, err
 	}
@@ -87,80 +79,16 @@ func Check(p *plan.File, planFP string, f *Folder, l *Labels, opts Options) (*Re
 	}
 	res.Design = verdict.Design{Strata: strata}
 	if f.LabeledInPlace {
-		res.Deviations.Notes = append(res.Deviations.Notes, fmt.Sprintf("%s in the draw folder was labeled in place; with its labels removed it is the file the draw wrote", sampling.WorksheetFile))
+		res.Deviations.Notes = append(res.Deviations.Notes, fmt.Sprintf("%s in the draw folder was labeled in place; with its labels removed it is the file the draw wrote", drawfolder.WorksheetFile))
 	}
 	return res, nil
-}
-
-// checkPlan checks the manifest's plan_fingerprint.
-func checkPlan(m *sampling.Manifest, mpath, planFP string) error {
-	if m.PlanFingerprint != planFP {
-		return &inputerr.Error{File: mpath, Field: "plan_fingerprint",
-			Msg:  fmt.Sprintf("the draw was made from the plan with SHA-256 %s…, not from this plan (%s…)", short(m.PlanFingerprint), short(planFP)),
-			Hint: "pass the plan file the draw was made with"}
-	}
-	return nil
-}
-
-func short(h string) string {
-	if len(h) > 12 {
-		return h[:12]
-	}
-	return h
-}
-
-// designFromManifest builds the strata (with n_h = 0, filled in later) and
-// an index from label to position.
-func designFromManifest(m *sampling.Manifest, mpath string) ([]verdict.Stratum, map[string]int, error) {
-	index := map[string]int{}
-	var strata []verdict.Stratum
-	for i, s := range m.Strata {
-		if _, dup := index[s.Label]; dup {
-			return nil, nil, &inputerr.Error{File: mpath, Field: fmt.Sprintf("strata[%d].label", i), Msg: fmt.Sprintf("stratum %q is listed twice", s.Label)}
-		}
-		if s.Population < 1 || s.Sample < 0 || int64(s.Sample) > s.Population {
-			return nil, nil, &inputerr.Error{File: mpath, Field: fmt.Sprintf("strata[%d]", i), Msg: fmt.Sprintf("stratum %q has population %d and sample %d", s.Label, s.Population, s.Sample)}
-		}
-		index[s.Label] = i
-		strata = append(strata, verdict.Stratum{Label: s.Label, Population: s.Population})
-	}
-	if len(strata) == 0 {
-		return nil, nil, &inputerr.Error{File: mpath, Field: "strata", Msg: "the manifest lists no strata"}
-	}
-	return strata, index, nil
-}
-
-// checkLedger checks the ledger against the manifest's strata: every row's
-// stratum is listed with the same N_h and n_h, and each stratum holds n_h
-// sample rows.
-func checkLedger(rows []sampling.LedgerRow, m *sampling.Manifest, index map[string]int, lpath string) error {
-	counts := make([]int, len(m.Strata))
-	for _, r := range rows {
-		h, ok := index[r.Stratum]
-		if !ok {
-			return &inputerr.Error{File: lpath, Field: "stratum", Msg: fmt.Sprintf("item %d: stratum %q is not in the manifest", r.Item, r.Stratum)}
-		}
-		s := m.Strata[h]
-		if r.StratumSize != s.Population || r.StratumSample != s.Sample {
-			return &inputerr.Error{File: lpath, Field: "stratum_size", Msg: fmt.Sprintf("item %d: stratum %q has N_h = %d, n_h = %d where the manifest has %d, %d", r.Item, r.Stratum, r.StratumSize, r.StratumSample, s.Population, s.Sample)}
-		}
-		if !r.Spare {
-			counts[h]++
-		}
-	}
-	for h, s := range m.Strata {
-		if counts[h] != s.Sample {
-			return &inputerr.Error{File: lpath, Msg: fmt.Sprintf("stratum %q has %d sample rows where the manifest has n_h = %d", s.Label, counts[h], s.Sample)}
-		}
-	}
-	return nil
 }
 
 // compareRows checks that the labeled worksheet has the same columns, the
 // same items and record ids in the same order, and the same shown values
 // as the draw's worksheet and ledger, and lists what differs.
-func compareRows(f *Folder, l *Labels) error {
-	wshow, lshow := showColumns(f.WorksheetHeader), showColumns(l.Header)
+func compareRows(f *drawfolder.Folder, l *drawfolder.Labels) error {
+	wshow, lshow := drawfolder.ShownColumns(f.WorksheetHeader), l.Shown()
 	if strings.Join(wshow, "\x00") != strings.Join(lshow, "\x00") {
 		return &inputerr.Error{File: l.Path, Line: 1,
 			Msg:  fmt.Sprintf("the shown columns are %s, but the draw's worksheet has %s", list(lshow), list(wshow)),
@@ -197,7 +125,7 @@ func compareRows(f *Folder, l *Labels) error {
 	}
 	if len(added)+len(missing)+len(altered) == 0 {
 		if len(f.Worksheet) != len(f.Ledger) {
-			return &inputerr.Error{File: filepath.Join(f.Dir, sampling.WorksheetFile), Msg: fmt.Sprintf("%d rows where the ledger has %d", len(f.Worksheet), len(f.Ledger))}
+			return &inputerr.Error{File: f.Path(drawfolder.WorksheetFile), Msg: fmt.Sprintf("%d rows where the ledger has %d", len(f.Worksheet), len(f.Ledger))}
 		}
 		return nil
 	}
@@ -230,49 +158,25 @@ func list(s []string) string {
 	return strings.Join(s, ", ")
 }
 
-// showColumns returns the shown columns of a worksheet header.
-func showColumns(h []string) []string {
-	end := len(h)
-	if end > 0 && h[end-1] == "labeler" {
-		end--
-	}
-	if end < 4 {
-		return nil
-	}
-	return h[2 : end-2]
-}
-
 // judgeable checks the labels and the use of spares, and builds the items.
-func (res *Result) judgeable(p *plan.File, f *Folder, l *Labels, strata []verdict.Stratum, index map[string]int, opts Options) error {
-	classes := map[string]bool{}
-	for _, c := range p.Classes {
-		classes[c] = true
-	}
+func (res *Result) judgeable(p *plan.File, f *drawfolder.Folder, l *drawfolder.Labels, strata []verdict.Stratum, index map[string]int, opts Options) error {
 	// Labels by ledger row (compareRows established a 1:1 match in order).
 	type row struct {
-		lr    sampling.LedgerRow
-		wr    sampling.WorksheetRow
-		state int // 0 labeled, 1 blank, 2 unsure
+		lr    drawfolder.LedgerRow
+		wr    drawfolder.WorksheetRow
+		state drawfolder.LabelKind
 	}
 	const (
-		labeled = iota
-		blank
-		unsure
+		labeled = drawfolder.LabelClass
+		blank   = drawfolder.LabelBlank
+		unsure  = drawfolder.LabelUnsure
 	)
 	rows := make([]row, len(f.Ledger))
 	for i, lr := range f.Ledger {
 		wr := l.Rows[i]
-		lab := strings.TrimSpace(wr.Label)
-		st := labeled
-		switch {
-		case lab == "":
-			st = blank
-		case strings.EqualFold(lab, Unsure):
-			st = unsure
-		case !classes[lab]:
-			return &inputerr.Error{File: l.Path, Line: wr.Line, Field: "label",
-				Msg:  fmt.Sprintf("label %q (item %d) is not one of the plan's classes (%s), blank or %q", wr.Label, wr.Item, strings.Join(p.Classes, ", "), Unsure),
-				Hint: fmt.Sprintf("use exactly one of: %s; leave the label blank or write %q when the item cannot be labeled", strings.Join(p.Classes, ", "), Unsure)}
+		lab, st, err := drawfolder.RowLabel(l.Path, wr, p.Classes)
+		if err != nil {
+			return err
 		}
 		wr.Label = lab
 		rows[i] = row{lr: lr, wr: wr, state: st}
@@ -380,7 +284,7 @@ func (res *Result) judgeable(p *plan.File, f *Folder, l *Labels, strata []verdic
 	return nil
 }
 
-func (res *Result) add(row int, lr sampling.LedgerRow, label string, h int, missing bool) {
+func (res *Result) add(row int, lr drawfolder.LedgerRow, label string, h int, missing bool) {
 	res.order = append(res.order, row)
 	res.Items = append(res.Items, verdict.Item{RecordID: lr.RecordID, Stratum: h, Label: label, Missing: missing,
 		Predictions: append([]string(nil), lr.Predictions...)})
@@ -388,19 +292,15 @@ func (res *Result) add(row int, lr sampling.LedgerRow, label string, h int, miss
 
 // prefix builds the items of a worksheet labeled from the top (a
 // sequential plan).
-func (res *Result) prefix(p *plan.File, f *Folder, l *Labels, strata []verdict.Stratum, index map[string]int, opts Options) error {
-	classes := map[string]bool{}
-	for _, c := range p.Classes {
-		classes[c] = true
-	}
+func (res *Result) prefix(p *plan.File, f *drawfolder.Folder, l *drawfolder.Labels, strata []verdict.Stratum, index map[string]int, opts Options) error {
 	dev := &res.Deviations
 	firstBlank := 0
 	var unsure []string
 	for i, lr := range f.Ledger {
 		wr := l.Rows[i]
-		lab := strings.TrimSpace(wr.Label)
+		lab, kind, err := drawfolder.RowLabel(l.Path, wr, p.Classes)
 		if lr.Spare {
-			if lab != "" {
+			if kind != drawfolder.LabelBlank {
 				return &inputerr.Error{File: l.Path, Line: wr.Line, Field: "label",
 					Msg:  fmt.Sprintf("spare item %d is labeled, but a sequential plan uses no spares", wr.Item),
 					Hint: "label the sample items from the top and leave the spares blank; mark an item that cannot be labeled unsure"}
@@ -408,7 +308,7 @@ func (res *Result) prefix(p *plan.File, f *Folder, l *Labels, strata []verdict.S
 			continue
 		}
 		switch {
-		case lab == "":
+		case kind == drawfolder.LabelBlank:
 			if firstBlank == 0 {
 				firstBlank = wr.Item
 			}
@@ -417,7 +317,9 @@ func (res *Result) prefix(p *plan.File, f *Folder, l *Labels, strata []verdict.S
 			return &inputerr.Error{File: l.Path, Line: wr.Line, Field: "label",
 				Msg:  fmt.Sprintf("item %d is labeled after the unlabeled item %d: a sequential plan is labeled from the top without gaps", wr.Item, firstBlank),
 				Hint: fmt.Sprintf("label item %d (and any other gap) or clear the labels after it", firstBlank)}
-		case strings.EqualFold(lab, Unsure):
+		case err != nil:
+			return err
+		case kind == drawfolder.LabelUnsure:
 			dev.Unsure = append(dev.Unsure, lr.RecordID)
 			unsure = append(unsure, fmt.Sprint(wr.Item))
 			if opts.AllowIncomplete {
@@ -425,10 +327,6 @@ func (res *Result) prefix(p *plan.File, f *Folder, l *Labels, strata []verdict.S
 				res.Counted++
 			}
 			continue
-		case !classes[lab]:
-			return &inputerr.Error{File: l.Path, Line: wr.Line, Field: "label",
-				Msg:  fmt.Sprintf("label %q (item %d) is not one of the plan's classes (%s), blank or %q", wr.Label, wr.Item, strings.Join(p.Classes, ", "), Unsure),
-				Hint: fmt.Sprintf("use exactly one of: %s; write %q when the item cannot be labeled", strings.Join(p.Classes, ", "), Unsure)}
 		}
 		res.add(i, lr, lab, index[lr.Stratum], false)
 	}

@@ -8,7 +8,7 @@ import (
 	"testing"
 
 	"probity/plan/inputerr"
-	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 func TestCompleteLabelsGiveTheSample(t *testing.T) {
@@ -80,17 +80,17 @@ func TestSparesReplaceInOrder(t *testing.T) {
 func TestSpareMisuseIsRefused(t *testing.T) {
 	fx := newDrawFixture(t)
 	cases := map[string]struct {
-		edit func(rows []sampling.WorksheetRow)
+		edit func(rows []drawfolder.WorksheetRow)
 		want string
 	}{
-		"out of order": {func(rows []sampling.WorksheetRow) {
+		"out of order": {func(rows []drawfolder.WorksheetRow) {
 			rows[fx.mainIndex("b", 0)].Label = ""
 			rows[fx.spareIndex("b", 1)].Label = "ok"
 		}, "spares must be used in order"},
-		"nothing to replace": {func(rows []sampling.WorksheetRow) {
+		"nothing to replace": {func(rows []drawfolder.WorksheetRow) {
 			rows[fx.spareIndex("a", 0)].Label = "ok"
 		}, "no unlabeled or unsure item of that stratum is left"},
-		"bad label": {func(rows []sampling.WorksheetRow) {
+		"bad label": {func(rows []drawfolder.WorksheetRow) {
 			rows[4].Label = "defekt"
 		}, `label "defekt" (item 5) is not one of the plan's classes (ok, defect), blank or "unsure"`},
 	}
@@ -107,17 +107,17 @@ func TestSpareMisuseIsRefused(t *testing.T) {
 func TestRowDifferencesAreListed(t *testing.T) {
 	fx := newDrawFixture(t)
 	cases := map[string]struct {
-		edit func([]sampling.WorksheetRow) []sampling.WorksheetRow
+		edit func([]drawfolder.WorksheetRow) []drawfolder.WorksheetRow
 		want string
 	}{
-		"removed row": {func(r []sampling.WorksheetRow) []sampling.WorksheetRow { return append(r[:3:3], r[4:]...) }, `1 missing: item 4 (record_id`},
-		"added row": {func(r []sampling.WorksheetRow) []sampling.WorksheetRow {
-			return append(r, sampling.WorksheetRow{Item: 99, RecordID: "zz", Show: []string{"x"}, Label: "ok"})
+		"removed row": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { return append(r[:3:3], r[4:]...) }, `1 missing: item 4 (record_id`},
+		"added row": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
+			return append(r, drawfolder.WorksheetRow{Item: 99, RecordID: "zz", Show: []string{"x"}, Label: "ok"})
 		}, `1 added: line 35 (item 99, record_id "zz")`},
-		"edited id": {func(r []sampling.WorksheetRow) []sampling.WorksheetRow { r[0].RecordID = "other"; return r }, "1 missing: item 1"},
-		"edited shown value": {func(r []sampling.WorksheetRow) []sampling.WorksheetRow { r[2].Show = []string{"changed"}; return r },
+		"edited id": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[0].RecordID = "other"; return r }, "1 missing: item 1"},
+		"edited shown value": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[2].Show = []string{"changed"}; return r },
 			"1 altered: line 4: item 3's shown values differ"},
-		"sorted rows": {func(r []sampling.WorksheetRow) []sampling.WorksheetRow { r[0], r[1] = r[1], r[0]; return r }, "out of order"},
+		"sorted rows": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[0], r[1] = r[1], r[0]; return r }, "out of order"},
 	}
 	for name, c := range cases {
 		_, err := fx.check(t, c.edit(fx.labeled()), Options{})
@@ -130,34 +130,34 @@ func TestRowDifferencesAreListed(t *testing.T) {
 func TestFingerprintMismatchesAreRefused(t *testing.T) {
 	// The plan is not the one the draw was made with.
 	fx := newDrawFixture(t)
-	f, err := ReadFolder(fx.drawDir(), fx.planFP, []string{"m1", "m2"})
+	f, err := drawfolder.Open(fx.drawDir(), fx.planFP, []string{"m1", "m2"})
 	if err != nil {
 		t.Fatal(err)
 	}
-	l, err := ReadLabels(fx.writeLabels(t, fx.labeled()))
+	l, err := drawfolder.ReadLabels(fx.writeLabels(t, fx.labeled()))
 	if err != nil {
 		t.Fatal(err)
 	}
 	if _, err := Check(fx.plan, strings.Repeat("0", 64), f, l, Options{}); err == nil || !strings.Contains(err.Error(), "manifest.json, field plan_fingerprint") {
 		t.Errorf("other plan: %v", err)
 	}
-	if _, err := ReadFolder(fx.drawDir(), strings.Repeat("0", 64), []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "manifest.json, field plan_fingerprint") {
+	if _, err := drawfolder.Open(fx.drawDir(), strings.Repeat("0", 64), []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "manifest.json, field plan_fingerprint") {
 		t.Errorf("other plan: %v", err)
 	}
 	// An edited ledger.
 	lp := filepath.Join(fx.drawDir(), "ledger.csv")
 	data, _ := os.ReadFile(lp)
 	os.WriteFile(lp, []byte(strings.Replace(string(data), ",ok,ok\n", ",defect,ok\n", 1)), 0o644)
-	if _, err := ReadFolder(fx.drawDir(), fx.planFP, []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "the file was changed after the draw") || !strings.Contains(err.Error(), "ledger.csv") {
+	if _, err := drawfolder.Open(fx.drawDir(), fx.planFP, []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "the file was changed after the draw") || !strings.Contains(err.Error(), "ledger.csv") {
 		t.Errorf("edited ledger: %v", err)
 	}
 	os.WriteFile(lp, data, 0o644)
 	// The worksheet labeled in place is recognised as the draw's.
 	wp := filepath.Join(fx.drawDir(), "worksheet.csv")
 	wf, _ := os.Create(wp)
-	sampling.WriteWorksheet(wf, []string{"text"}, fx.labeled())
+	drawfolder.WriteWorksheet(wf, []string{"text"}, fx.labeled())
 	wf.Close()
-	f, err = ReadFolder(fx.drawDir(), fx.planFP, []string{"m1", "m2"})
+	f, err = drawfolder.Open(fx.drawDir(), fx.planFP, []string{"m1", "m2"})
 	if err != nil || !f.LabeledInPlace || f.WorksheetSHA256 != fx.folder.Manifest.Files["worksheet.csv"] {
 		t.Errorf("worksheet labeled in place: %v %+v", err, f)
 	}
@@ -165,9 +165,9 @@ func TestFingerprintMismatchesAreRefused(t *testing.T) {
 	rows := fx.labeled()
 	rows[0].RecordID = "forged"
 	wf, _ = os.Create(wp)
-	sampling.WriteWorksheet(wf, []string{"text"}, rows)
+	drawfolder.WriteWorksheet(wf, []string{"text"}, rows)
 	wf.Close()
-	if _, err := ReadFolder(fx.drawDir(), fx.planFP, []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "worksheet.csv") {
+	if _, err := drawfolder.Open(fx.drawDir(), fx.planFP, []string{"m1", "m2"}); err == nil || !strings.Contains(err.Error(), "worksheet.csv") {
 		t.Errorf("edited worksheet: %v", err)
 	}
 }

@@ -9,6 +9,7 @@ import (
 
 	"probity/plan"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 )
 
@@ -20,7 +21,7 @@ type drawFixture struct {
 	dir    string
 	plan   *plan.File
 	planFP string
-	folder *sampling.Folder
+	folder *drawfolder.Content
 }
 
 func newDrawFixture(t *testing.T) *drawFixture {
@@ -40,8 +41,8 @@ func newDrawFixture(t *testing.T) *drawFixture {
 	type row struct {
 		id, key, stratum string
 	}
-	strata := []sampling.StratumInfo{{Label: "a", Population: 600, Sample: 17, Spare: 2}, {Label: "b", Population: 400, Sample: 12, Spare: 2}}
-	var main, spares []sampling.LedgerRow
+	strata := []drawfolder.StratumInfo{{Label: "a", Population: 600, Sample: 17, Spare: 2}, {Label: "b", Population: 400, Sample: 12, Spare: 2}}
+	var main, spares []drawfolder.LedgerRow
 	for _, s := range strata {
 		var rows []row
 		for i := 0; i < int(s.Population); i++ {
@@ -50,7 +51,7 @@ func newDrawFixture(t *testing.T) *drawFixture {
 		}
 		sort.Slice(rows, func(i, j int) bool { return rows[i].key < rows[j].key })
 		for k, r := range rows[:s.Sample+s.Spare] {
-			lr := sampling.LedgerRow{RecordID: r.id, Stratum: s.Label, StratumSize: s.Population, StratumSample: s.Sample,
+			lr := drawfolder.LedgerRow{RecordID: r.id, Stratum: s.Label, StratumSize: s.Population, StratumSample: s.Sample,
 				Weight: float64(s.Population) / float64(s.Sample), Key: r.key, Spare: k >= s.Sample, Predictions: []string{"ok", "ok"}}
 			if lr.Spare {
 				spares = append(spares, lr)
@@ -62,19 +63,19 @@ func newDrawFixture(t *testing.T) *drawFixture {
 	sort.Slice(main, func(i, j int) bool { return main[i].Key < main[j].Key })
 	sort.Slice(spares, func(i, j int) bool { return spares[i].Key < spares[j].Key })
 	ledger := append(main, spares...)
-	var ws []sampling.WorksheetRow
+	var ws []drawfolder.WorksheetRow
 	for i := range ledger {
 		ledger[i].Item = i + 1
-		ws = append(ws, sampling.WorksheetRow{Item: i + 1, RecordID: ledger[i].RecordID, Show: []string{"text " + ledger[i].RecordID}})
+		ws = append(ws, drawfolder.WorksheetRow{Item: i + 1, RecordID: ledger[i].RecordID, Show: []string{"text " + ledger[i].RecordID}})
 	}
-	fx.folder = &sampling.Folder{
-		Manifest: &sampling.Manifest{Format: sampling.ManifestFormat, ToolVersion: "test", PlanFingerprint: fx.planFP, Seed: p.Seed, SelectionSeed: p.Seed,
-			Log:      sampling.LogInfo{Path: "log.csv", SHA256: "ab" + fmt.Sprintf("%062d", 0), Rows: 1000, Format: "csv", Compression: "none"},
+	fx.folder = &drawfolder.Content{
+		Manifest: &drawfolder.Manifest{Format: drawfolder.ManifestFormat, ToolVersion: "test", PlanFingerprint: fx.planFP, Seed: p.Seed, SelectionSeed: p.Seed,
+			Log:      drawfolder.LogInfo{Path: "log.csv", SHA256: "ab" + fmt.Sprintf("%062d", 0), Rows: 1000, Format: "csv", Compression: "none"},
 			IDColumn: "record_id", StrataColumns: []string{"region"}, ShowColumns: []string{"text"},
-			Allocation: sampling.AllocationInfo{Rule: "proportional", Spare: 2}, Strata: strata, SampleSize: 29, Spares: 4},
+			Allocation: drawfolder.AllocationInfo{Rule: "proportional", Spare: 2}, Strata: strata, SampleSize: 29, Spares: 4},
 		Candidates: []string{"m1", "m2"}, Show: []string{"text"}, Ledger: ledger, Worksheet: ws,
 	}
-	if err := sampling.WriteFolder(filepath.Join(fx.dir, "draw"), fx.folder, safewrite.FolderOptions{}); err != nil {
+	if err := drawfolder.Write(filepath.Join(fx.dir, "draw"), fx.folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	return fx
@@ -84,8 +85,8 @@ func (fx *drawFixture) drawDir() string { return filepath.Join(fx.dir, "draw") }
 
 // labeled returns worksheet rows with every sample item labeled "ok" and
 // the spares blank; edit them and pass them to writeLabels.
-func (fx *drawFixture) labeled() []sampling.WorksheetRow {
-	out := make([]sampling.WorksheetRow, len(fx.folder.Worksheet))
+func (fx *drawFixture) labeled() []drawfolder.WorksheetRow {
+	out := make([]drawfolder.WorksheetRow, len(fx.folder.Worksheet))
 	copy(out, fx.folder.Worksheet)
 	for i := range out {
 		if !fx.folder.Ledger[i].Spare {
@@ -95,14 +96,14 @@ func (fx *drawFixture) labeled() []sampling.WorksheetRow {
 	return out
 }
 
-func (fx *drawFixture) writeLabels(t *testing.T, rows []sampling.WorksheetRow) string {
+func (fx *drawFixture) writeLabels(t *testing.T, rows []drawfolder.WorksheetRow) string {
 	t.Helper()
 	path := filepath.Join(fx.dir, "labels.csv")
 	f, err := os.Create(path)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if err := sampling.WriteWorksheet(f, []string{"text"}, rows); err != nil {
+	if err := drawfolder.WriteWorksheet(f, []string{"text"}, rows); err != nil {
 		t.Fatal(err)
 	}
 	if err := f.Close(); err != nil {
@@ -112,14 +113,14 @@ func (fx *drawFixture) writeLabels(t *testing.T, rows []sampling.WorksheetRow) s
 }
 
 // check runs ReadFolder, ReadLabels and Check.
-func (fx *drawFixture) check(t *testing.T, rows []sampling.WorksheetRow, opts Options) (*Result, error) {
+func (fx *drawFixture) check(t *testing.T, rows []drawfolder.WorksheetRow, opts Options) (*Result, error) {
 	t.Helper()
 	path := fx.writeLabels(t, rows)
-	f, err := ReadFolder(fx.drawDir(), fx.planFP, []string{"m1", "m2"})
+	f, err := drawfolder.Open(fx.drawDir(), fx.planFP, []string{"m1", "m2"})
 	if err != nil {
 		return nil, err
 	}
-	l, err := ReadLabels(path)
+	l, err := drawfolder.ReadLabels(path)
 	if err != nil {
 		return nil, err
 	}

@@ -14,6 +14,7 @@ import (
 
 	"probity/plan"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 	"probity/sampling/sqlquery"
 )
@@ -148,7 +149,7 @@ func TestDuckDBQueryMatchesFileDraw(t *testing.T) {
 			}
 			fromFile := fileDraw(t, p, &s, export)
 			compare(t, fromSQL, fromFile)
-			if res.Spec.Dialect != sqlquery.DuckDB || fromSQL.Manifest.Engine.QuerySHA256 != sampling.SHA256Hex([]byte(q)) {
+			if res.Spec.Dialect != sqlquery.DuckDB || fromSQL.Manifest.Engine.QuerySHA256 != drawfolder.SHA256Hex([]byte(q)) {
 				t.Errorf("manifest engine %+v", fromSQL.Manifest.Engine)
 			}
 		})
@@ -156,7 +157,7 @@ func TestDuckDBQueryMatchesFileDraw(t *testing.T) {
 }
 
 // fileDraw runs the draw from a file with the settings of s.
-func fileDraw(t *testing.T, p *plan.File, s *sqlquery.Spec, path string) *sampling.Folder {
+func fileDraw(t *testing.T, p *plan.File, s *sqlquery.Spec, path string) *drawfolder.Content {
 	t.Helper()
 	f, err := os.Open(path)
 	if err != nil {
@@ -189,7 +190,7 @@ func fileDraw(t *testing.T, p *plan.File, s *sqlquery.Spec, path string) *sampli
 
 // compare requires byte-identical worksheets and ledgers and the same
 // strata in both manifests.
-func compare(t *testing.T, a, b *sampling.Folder) {
+func compare(t *testing.T, a, b *drawfolder.Content) {
 	t.Helper()
 	ra, err := a.Render()
 	if err != nil {
@@ -200,7 +201,7 @@ func compare(t *testing.T, a, b *sampling.Folder) {
 		t.Fatal(err)
 	}
 	for i := range ra {
-		if ra[i].Name == sampling.ManifestFile {
+		if ra[i].Name == drawfolder.ManifestFile {
 			continue
 		}
 		if i >= len(rb) || rb[i].Name != ra[i].Name || !bytes.Equal(ra[i].Data, rb[i].Data) {

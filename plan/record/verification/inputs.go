@@ -1,0 +1,166 @@
+package verification
+
+import (
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"probity/plan/inputerr"
+	"probity/plan/record"
+	"probity/plan/record/assemble"
+	"probity/plan/verdict"
+	"probity/sampling/drawfolder"
+)
+
+// checkInputs compares the given inputs' fingerprints with the record's,
+// recomputes the record when the plan, the draw folder and the labels are
+// all given, and draws the sample again when the log is given.
+func checkInputs(rep *Report, in Input, rec *record.Record) error {
+	f, n := in.Files, in.Names
+	if f.Plan == "" && f.Draw == "" && f.Labels == "" {
+		rep.add(CheckJudgement, Skipped, "inputs: pass %s, %s and %s to recompute the judgement", n.plan(), n.draw(), n.labels())
+		return nil
+	}
+	if err := checkFingerprints(rep, in, rec); err != nil {
+		return err
+	}
+	if f.Plan != "" && f.Draw != "" && f.Labels != "" {
+		if err := recompute(rep, in, rec); err != nil {
+			return err
+		}
+	} else {
+		rep.add(CheckJudgement, Skipped, "judgement not recomputed: it needs all of %s, %s and %s", n.plan(), n.draw(), n.labels())
+	}
+	if in.Log != "" {
+		return redraw(rep, in)
+	}
+	return nil
+}
+
+// checkFingerprints compares the SHA-256 of each given input with the one
+// the record holds.
+func checkFingerprints(rep *Report, in Input, rec *record.Record) error {
+	fp, f := rec.Fingerprints, in.Files
+	same := func(what, path, got, want string) {
+		if got == want {
+			rep.add(CheckFingerprint, OK, "%s: SHA-256 matches the record's %s", path, what)
+		} else {
+			rep.add(CheckFingerprint, Failed, "%s: SHA-256 %s… is not the record's %s %s…", path, short12(got), what, short12(want))
+		}
+	}
+	if f.Plan != "" {
+		h, err := fileHash(f.Plan)
+		if err != nil {
+			return err
+		}
+		same("plan fingerprint", f.Plan, h, fp.Plan)
+	}
+	if f.Draw != "" {
+		mpath := filepath.Join(f.Draw, drawfolder.ManifestFile)
+		m, mb, err := drawfolder.ReadManifest(mpath)
+		if err != nil {
+			return err
+		}
+		same("manifest fingerprint", mpath, record.SHA256(mb), fp.Manifest)
+		same("log fingerprint (from the manifest)", mpath, m.Log.SHA256, fp.Log)
+		lpath := filepath.Join(f.Draw, drawfolder.LedgerFile)
+		lh, err := fileHash(lpath)
+		if err != nil {
+			return err
+		}
+		same("ledger fingerprint", lpath, lh, fp.Ledger)
+	}
+	if f.Labels != "" {
+		h, err := fileHash(f.Labels)
+		if err != nil {
+			return err
+		}
+		same("labels fingerprint", f.Labels, h, fp.Labels)
+	}
+	if f.Second == "" {
+		return nil
+	}
+	lq := rec.LabelQuality
+	if lq == nil {
+		rep.add(CheckFingerprint, Failed, "%s: the record was not judged on double labels, but %s was given", f.Second, in.Names.second())
+		return nil
+	}
+	h, err := fileHash(f.Second)
+	if err != nil {
+		return err
+	}
+	same("second-worksheet fingerprint", f.Second, h, lq.SecondWorksheet)
+	switch {
+	case f.Adjudications != "":
+		h, err := fileHash(f.Adjudications)
+		if err != nil {
+			return err
+		}
+		same("adjudications fingerprint", f.Adjudications, h, lq.Adjudications)
+	case lq.Adjudications != "":
+		rep.add(CheckFingerprint, Failed, "the record was judged with an adjudication file (SHA-256 %s…); pass it with %s", short12(lq.Adjudications), in.Names.adjudications())
+	}
+	return nil
+}
+
+// fileHash is the SHA-256 of a file's bytes.
+func fileHash(path string) (string, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return "", inputerr.Errorf("cannot read %s: %v", path, errors.Unwrap(err)).WithHint("check the path").Wrap(err)
+	}
+	return record.SHA256(data), nil
+}
+
+// recompute builds the record again from its inputs with the stored
+// record's own options (date, use, bound, sign-off, signing key, the
+// treatment of incomplete labeling and of double labeling), through
+// assemble.Record as the record command does, and compares it with the
+// stored record field by field.
+func recompute(rep *Report, in Input, rec *record.Record) error {
+	files := in.Files
+	o := assemble.Options{
+		AllowIncomplete: rec.Deviations.AllowIncomplete, Bound: verdict.UnequalBoundOf(rec.Method.Bound),
+		Use: rec.Use, Date: rec.Date, Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
+	}
+	if lq := rec.LabelQuality; lq != nil {
+		if files.Second == "" {
+			rep.add(CheckJudgement, Skipped, "judgement not recomputed: the record was judged on double labels; pass %s (and %s) as well", in.Names.second(), in.Names.adjudications())
+			return nil
+		}
+		o.AllowUnadjudicated, o.Strict = lq.AllowUnadjudicated, lq.Strict
+	} else {
+		files.Second, files.Adjudications = "", ""
+	}
+	again, err := assemble.Record(files, o)
+	if err != nil {
+		// A file that cannot be read is a usage error; bad content in
+		// one is a failed check.
+		var pe *fs.PathError
+		if inputerr.Is(err) && !errors.As(err, &pe) {
+			rep.add(CheckJudgement, Failed, "the inputs do not give a record: %s", err.Error())
+			return nil
+		}
+		return err
+	}
+	// The fingerprints (and so the record id) were compared above, input
+	// by input; this compares what was computed from them.
+	again.RecordID, again.Fingerprints = rec.RecordID, rec.Fingerprints
+	diffs, err := Diff(rec, again)
+	if err != nil {
+		return err
+	}
+	if len(diffs) == 0 {
+		rep.add(CheckJudgement, OK, "judgement recomputed from the inputs: every field of %s agrees", record.JSONFile)
+		return nil
+	}
+	listed := diffs
+	if len(listed) > 8 {
+		listed = append(listed[:8:8], fmt.Sprintf("and %d more", len(diffs)-8))
+	}
+	rep.add(CheckJudgement, Failed, "%s differs from the judgement recomputed from the inputs: %s", record.JSONFile, strings.Join(listed, "; "))
+	return nil
+}

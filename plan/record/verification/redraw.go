@@ -1,0 +1,55 @@
+package verification
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"probity/plan"
+	"probity/plan/inputerr"
+	"probity/sampling"
+	"probity/sampling/drawfolder"
+)
+
+// redraw draws the sample again from the log, with the plan's seed and the
+// options the manifest records, and compares it with the draw folder.
+func redraw(rep *Report, in Input) error {
+	p, planFP, err := plan.Load(in.Files.Plan)
+	if err != nil {
+		return err
+	}
+	mpath := filepath.Join(in.Files.Draw, drawfolder.ManifestFile)
+	m, _, err := drawfolder.ReadManifest(mpath)
+	if err != nil {
+		return err
+	}
+	di, err := sampling.DrawInputFromManifest(m)
+	if err != nil {
+		return inputerr.InFile(err, mpath)
+	}
+	f, err := os.Open(in.Log)
+	if err != nil {
+		return inputerr.Errorf("cannot read %s %s: %v", in.Names.log(), in.Log, errors.Unwrap(err)).WithHint("pass the log the sample was drawn from").Wrap(err)
+	}
+	defer f.Close()
+	di.Plan, di.PlanFingerprint, di.LogPath, di.Log, di.ToolVersion = p, planFP, in.Log, f, m.ToolVersion
+	want, err := sampling.Draw(di)
+	if err != nil {
+		if inputerr.Is(err) {
+			rep.add(CheckSample, Failed, "drawing the sample again from %s: %v", in.Log, inputerr.InFile(err, mpath))
+			return nil
+		}
+		return err
+	}
+	cmp, err := drawfolder.Compare(in.Files.Draw, want)
+	if err != nil {
+		return err
+	}
+	if len(cmp.Differences) == 0 {
+		rep.add(CheckSample, OK, "sample drawn again from %s: the draw folder holds exactly the %d items and %d spares chance picked", in.Log, cmp.Items, cmp.Spares)
+		return nil
+	}
+	rep.add(CheckSample, Failed, "the draw folder is not what chance picked from %s: %s", in.Log, strings.Join(cmp.Differences, "; "))
+	return nil
+}

@@ -1,0 +1,177 @@
+package verification
+
+import (
+	"crypto/ed25519"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+
+	"probity/plan/inputerr"
+	"probity/plan/record"
+	"probity/plan/record/assemble"
+	"probity/templates"
+)
+
+// Status is the outcome of one check.
+type Status int
+
+const (
+	// OK: the check passed.
+	OK Status = iota
+	// Failed: the check found a difference or a bad signature.
+	Failed
+	// Skipped: the check was not run, for want of an input (Detail says
+	// which).
+	Skipped
+)
+
+// String is "ok", "failed" or "skipped".
+func (s Status) String() string {
+	switch s {
+	case OK:
+		return "ok"
+	case Failed:
+		return "failed"
+	}
+	return "skipped"
+}
+
+// Names of the checks (Check.Name).
+const (
+	CheckRecord      = "record"      // record.json well formed and canonical
+	CheckSignature   = "signature"   // record.sig over a file, or its absence
+	CheckSigningKey  = "signing key" // the key record.json names, and the trusted key
+	CheckRendering   = "rendering"   // record.pdf against a fresh rendering
+	CheckFingerprint = "fingerprint" // an input's SHA-256 against the record's
+	CheckJudgement   = "judgement"   // the record recomputed from its inputs
+	CheckSample      = "sample"      // the sample drawn again from the log
+)
+
+// Check is the outcome of one check.
+type Check struct {
+	// Name says what was checked (CheckRecord, CheckSignature, …).
+	Name   string
+	Status Status
+	// Detail says what was found, naming the file: one sentence.
+	Detail string
+}
+
+// Report is the checks Verify ran, in order.
+type Report struct {
+	Checks []Check
+}
+
+// Failed returns the checks that failed, in order.
+func (r *Report) Failed() []Check {
+	var out []Check
+	for _, c := range r.Checks {
+		if c.Status == Failed {
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+func (r *Report) add(name string, s Status, format string, args ...any) {
+	r.Checks = append(r.Checks, Check{Name: name, Status: s, Detail: fmt.Sprintf(format, args...)})
+}
+
+// Names says how the user gives each input, for the checks' wording: a
+// command line passes its flag names ("--pub"), so that a skipped check
+// can say what to pass. An empty name reads as the input in words.
+type Names struct {
+	TrustedKey, Templates   string
+	Plan, Draw, Labels, Log string
+	Second, Adjudications   string
+}
+
+// or returns name, or words when name is empty.
+func or(name, words string) string {
+	if name == "" {
+		return words
+	}
+	return name
+}
+
+func (n Names) trustedKey() string    { return or(n.TrustedKey, "a trusted key") }
+func (n Names) templates() string     { return or(n.Templates, "templates") }
+func (n Names) plan() string          { return or(n.Plan, "the plan") }
+func (n Names) draw() string          { return or(n.Draw, "the draw folder") }
+func (n Names) labels() string        { return or(n.Labels, "the labels") }
+func (n Names) log() string           { return or(n.Log, "the log") }
+func (n Names) second() string        { return or(n.Second, "the second worksheet") }
+func (n Names) adjudications() string { return or(n.Adjudications, "the adjudications") }
+
+// Input is the record folder and whatever inputs are given.
+type Input struct {
+	// Dir is the record folder (record.json, record.pdf, record.sig).
+	Dir string
+	// TrustedKey is the public key the record must be signed with, read
+	// from TrustedKeyPath; nil when none is given (the signing key is then
+	// only reported).
+	TrustedKey     ed25519.PublicKey
+	TrustedKeyPath string
+	// Templates is the wording record.pdf is rendered with again (nil:
+	// the built-in wording); TemplatesDir names its folder ("" for the
+	// built-in wording).
+	Templates    *templates.Set
+	TemplatesDir string
+	// Files are the record's inputs; any may be empty. Log is the
+	// prediction log the sample was drawn from ("" when not given); it
+	// needs Files.Plan and Files.Draw.
+	Files assemble.Files
+	Log   string
+	// ToolVersion is this probity's version: a record.pdf that is not the
+	// rendering of record.json fails only when the record was made by
+	// this very version.
+	ToolVersion string
+	// Names is how the user gives each input, for the wording.
+	Names Names
+}
+
+// ErrNoRecord is the cause of the error for a folder that is not a
+// record folder (missing, or without a readable record.json).
+var ErrNoRecord = errors.New("not a record folder")
+
+// Verify runs every check the inputs allow and returns them in order. A
+// check that fails is reported in the Report; the error is for input that
+// cannot be used at all (see the package comment).
+func Verify(in Input) (*Report, error) {
+	st, err := os.Stat(in.Dir)
+	if err != nil || !st.IsDir() {
+		return nil, inputerr.Errorf("%s is not a record folder", in.Dir).Wrap(ErrNoRecord)
+	}
+	rep := &Report{}
+	jsonPath := filepath.Join(in.Dir, record.JSONFile)
+	js, err := os.ReadFile(jsonPath)
+	if err != nil {
+		return nil, inputerr.Errorf("cannot read %s: %v", jsonPath, errors.Unwrap(err)).Wrap(errors.Join(ErrNoRecord, err))
+	}
+	rec, err := record.Decode(js)
+	switch {
+	case err != nil:
+		rep.add(CheckRecord, Failed, "%s: not a valid record: %v", jsonPath, err)
+	case !record.IsCanonical(js):
+		rep.add(CheckRecord, Failed, "%s is not in canonical form: it was edited after it was written", jsonPath)
+	default:
+		rep.add(CheckRecord, OK, "%s is a canonical record (id %s, %s, overall %s)", jsonPath, rec.RecordID, rec.Date, rec.OverallVerdict)
+	}
+	checkSignatures(rep, in, rec, js)
+	if rec == nil {
+		return rep, nil
+	}
+	checkRendering(rep, in, rec)
+	if err := checkInputs(rep, in, rec); err != nil {
+		return nil, err
+	}
+	return rep, nil
+}
+
+// short12 is the first 12 digits of a fingerprint, for messages.
+func short12(h string) string {
+	if len(h) > 12 {
+		return h[:12]
+	}
+	return h
+}

@@ -1,0 +1,141 @@
+package drawfolder
+
+import (
+	"io"
+	"strconv"
+)
+
+// WorksheetRow is one row of worksheet.csv, what labelers get: item,
+// record_id, the shown columns, label, note (and, once label quality is
+// tracked, labeler). It never carries a prediction, score or stratum.
+type WorksheetRow struct {
+	Item     int
+	RecordID string
+	Show     []string
+	Label    string
+	Note     string
+	Labeler  string
+	// Line is the 1-based line in the file it was read from (0 if written).
+	Line int
+}
+
+// WorksheetHeader returns a worksheet's header: item, record_id, the show
+// columns, label, note, labeler.
+func WorksheetHeader(show []string) []string {
+	h := []string{"item", "record_id"}
+	h = append(h, show...)
+	return append(h, "label", "note", "labeler")
+}
+
+// WriteWorksheet writes a worksheet (worksheet.csv or worksheet-second.csv)
+// with the header of WorksheetHeader(show) and one line per row. The
+// labeler column is always written (empty unless set).
+func WriteWorksheet(w io.Writer, show []string, rows []WorksheetRow) error {
+	out := make([][]string, 0, len(rows)+1)
+	out = append(out, WorksheetHeader(show))
+	for _, r := range rows {
+		rec := make([]string, 0, len(show)+5)
+		rec = append(rec, strconv.Itoa(r.Item), r.RecordID)
+		rec = append(rec, r.Show...)
+		for len(rec) < 2+len(show) {
+			rec = append(rec, "")
+		}
+		rec = append(rec, r.Label, r.Note, r.Labeler)
+		out = append(out, rec)
+	}
+	return writeCSV(w, out)
+}
+
+// ReadWorksheet reads a labeled worksheet. Its columns must be item,
+// record_id, any show columns, label, note and optionally labeler (in that
+// order). It returns the header as found and the rows with their line
+// numbers. Items must be positive whole numbers and record ids non-empty,
+// each appearing once. Errors are *inputerr.Error naming file, line, column.
+func ReadWorksheet(path string) (header []string, rows []WorksheetRow, err error) {
+	t, err := readCSVTable(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	return worksheetFromTable(path, t)
+}
+
+// worksheetLayout finds the show columns and whether a labeler column is
+// present in a worksheet header.
+func worksheetLayout(name string, h []string) (nShow int, hasLabeler bool, err error) {
+	bad := func() error {
+		e := inputErrorf(name, 1, "", "header is %s; a worksheet's columns are item, record_id, the shown columns, label, note and optionally labeler", columnList(h))
+		e.Hint = "use the worksheet.csv written by probity draw; keep its header line as it is"
+		return e
+	}
+	if len(h) < 4 || h[0] != "item" || h[1] != "record_id" {
+		return 0, false, bad()
+	}
+	end := len(h)
+	if h[end-1] == "labeler" {
+		hasLabeler = true
+		end--
+	}
+	if end < 4 || h[end-2] != "label" || h[end-1] != "note" {
+		return 0, false, bad()
+	}
+	seen := map[string]bool{}
+	for i, c := range h {
+		if seen[c] {
+			return 0, false, inputErrorf(name, 1, c, "header names column %q twice (column %d)", c, i+1)
+		}
+		seen[c] = true
+	}
+	return end - 4, hasLabeler, nil
+}
+
+func worksheetFromTable(name string, t *CSVTable) ([]string, []WorksheetRow, error) {
+	nShow, hasLabeler, err := worksheetLayout(name, t.Header)
+	if err != nil {
+		return nil, nil, err
+	}
+	rows := make([]WorksheetRow, 0, len(t.Rows))
+	items := map[int]int{}
+	ids := map[string]int{}
+	for i, rec := range t.Rows {
+		line := t.Lines[i]
+		var r WorksheetRow
+		r.Line = line
+		if r.Item, err = parseItem(name, line, "item", rec[0]); err != nil {
+			return nil, nil, err
+		}
+		if prev, ok := items[r.Item]; ok {
+			return nil, nil, inputErrorf(name, line, "item", "item %d appears twice (lines %d and %d)", r.Item, prev, line)
+		}
+		items[r.Item] = line
+		r.RecordID = rec[1]
+		if r.RecordID == "" {
+			return nil, nil, inputErrorf(name, line, "record_id", "record_id is empty")
+		}
+		if prev, ok := ids[r.RecordID]; ok {
+			return nil, nil, inputErrorf(name, line, "record_id", "record_id %q appears twice (lines %d and %d)", r.RecordID, prev, line)
+		}
+		ids[r.RecordID] = line
+		r.Show = append([]string{}, rec[2:2+nShow]...)
+		r.Label = rec[2+nShow]
+		r.Note = rec[3+nShow]
+		if hasLabeler {
+			r.Labeler = rec[4+nShow]
+		}
+		rows = append(rows, r)
+	}
+	return append([]string{}, t.Header...), rows, nil
+}
+
+// ShownColumns returns the shown columns of a worksheet header: the
+// columns between record_id and label (item, record_id, shown…, label,
+// note[, labeler]); none when the header is not a worksheet's.
+func ShownColumns(h []string) []string {
+	end := len(h)
+	if end > 0 && h[end-1] == "labeler" {
+		end--
+	}
+	if end < 4 {
+		return nil
+	}
+	return h[2 : end-2]
+}
