@@ -2,9 +2,11 @@ package pdfreport
 
 import (
 	"fmt"
+	"time"
 
 	"probity/plan"
 	"probity/plan/record"
+	"probity/templates"
 )
 
 // fixtureCandidate is the judgement of one fixture candidate.
@@ -124,7 +126,8 @@ func fixtureRecord(use string) *record.Record {
 	rec := &record.Record{
 		Format:        record.Format,
 		ToolVersion:   "0.4.0-test",
-		RecordID:      "3f9c2a71be04",
+		RecordID:      "3f9c2a71be04d5e6f708192a3b4c5d6e",
+		Revision:      1,
 		Date:          "2026-11-30",
 		Period:        "2026-10",
 		System:        "Ward triage classifier",
@@ -178,6 +181,9 @@ func fixtureRecord(use string) *record.Record {
 		SigningKey:     "ed25519:SHA256:7Qx2m9v0kLr3bH8sT1uYw4Zc6Na5Pd0Fe2Gi9Jk8Lm0",
 		OverallVerdict: record.Reject,
 	}
+	if templates.SafetyRelevant(use) {
+		rec.Caveats = []record.Caveat{{Kind: record.CaveatLabelErrorUnmeasured, Text: "Label error was not measured: no item was given a second, independent label, so nothing in this record shows how often the reference labels are wrong. Every bound holds only if they are right; for a " + use + " use, have part of the sample labeled twice, independently."}}
+	}
 	// The draw records inclusion weights N_h/n_h.
 	for i := range rec.Strata {
 		rec.Strata[i].Weight = float64(rec.Strata[i].Population) / float64(rec.Strata[i].Sample)
@@ -206,6 +212,14 @@ func fixtureRecord(use string) *record.Record {
 		rec.Candidates = append(rec.Candidates, c)
 	}
 	return rec
+}
+
+// fixtureSignatures are the electronic signatures of the triage audit's
+// record so far: the preparer has signed.
+func fixtureSignatures() []record.ElectronicSignature {
+	return []record.ElectronicSignature{{Sequence: 1, Name: "Zoë Łukasiewicz-Øberg", Role: "prepared",
+		Meaning:  "I drew the sample as planned, organised the labeling and prepared this record from the labels without alteration.",
+		SignedAt: time.Date(2026, 11, 30, 16, 42, 7, 0, time.UTC), KeyFingerprint: "sha256:54d3c0087de1a8e125a5c683f9c6309751aef11b637cd44cfd5d1ba8ad720072"}}
 }
 
 // manyRecord is a layout stress case: 12 candidates (Holm, with adjusted

@@ -21,9 +21,18 @@ import (
 type Options struct {
 	// Paper is "a4" or "letter" (any case); "" means a4.
 	Paper string
-	// Templates is the wording set; nil means the embedded set.
+	// Templates is the wording set; nil means the embedded set. It must be
+	// the set the record names (record.Wording.Digest).
 	Templates *templates.Set
+	// Signatures are the electronic signatures given so far, in chain
+	// order; the sign-off block shows each, and every role without one as
+	// not signed.
+	Signatures []record.ElectronicSignature
 }
+
+// ErrWording is wrapped when the wording given is not the wording the
+// record was made with.
+var ErrWording = errors.New("not the record's wording")
 
 // ErrRecord is wrapped by every error about a Record that cannot be laid
 // out (a malformed date, an unknown use, inconsistent tables).
@@ -63,10 +72,14 @@ func Render(rec *record.Record, opts Options) ([]byte, error) {
 	if err := check(rec); err != nil {
 		return nil, err
 	}
+	if d := rec.Wording.Digest; d != "" && d != tpl.Fingerprint() {
+		return nil, fmt.Errorf("%w: the record was made with wording digest %s, the wording given has %s", ErrWording, d, tpl.Fingerprint())
+	}
 	c, err := newContent(rec, tpl)
 	if err != nil {
 		return nil, err
 	}
+	c.signatures = opts.Signatures
 	// Two passes: the first counts the pages, the second prints "Page x
 	// of y" with the count. Both lay out exactly the same content.
 	first, err := c.layout(size, w, h, date, 0)
@@ -126,6 +139,8 @@ type content struct {
 	fields templates.Fields
 	use    string
 	oc     []byte // the OC figure as PNG; nil when the record has no curve
+	// signatures are the electronic signatures shown in the sign-off.
+	signatures []record.ElectronicSignature
 }
 
 func newContent(rec *record.Record, tpl *templates.Set) (*content, error) {
@@ -238,17 +253,34 @@ func (d *doc) pageFooter(c *content) {
 	d.font("", smallSize)
 	d.textColour(mutedColour)
 	d.pdf.SetXY(marginX, y+1.5)
-	left := "Record " + c.rec.RecordID + " · " + c.rec.Date
+	left := "Record " + c.rec.RecordID + " · revision " + itoa(revision(c.rec)) + " · " + c.rec.Date
 	if c.rec.OverallVerdict != "" {
 		left += " · overall verdict " + c.rec.OverallVerdict
 	}
-	d.pdf.CellFormat(d.contentW()*0.7, 4, d.ellipsis(left, d.contentW()*0.7), "", 0, "L", false, 0, "")
+	d.pdf.CellFormat(d.contentW()*0.8, 4, d.ellipsis(left, d.contentW()*0.8), "", 0, "L", false, 0, "")
 	total := "?"
 	if d.totalPages > 0 {
 		total = itoa(d.totalPages)
 	}
-	d.pdf.CellFormat(d.contentW()*0.3, 4, "Page "+itoa(d.pdf.PageNo())+" of "+total, "", 0, "R", false, 0, "")
+	d.pdf.CellFormat(d.contentW()*0.2, 4, "Page "+itoa(d.pdf.PageNo())+" of "+total, "", 0, "R", false, 0, "")
+	if c.rec.Demonstration {
+		d.font("B", smallSize)
+		d.textColour(rejectColour)
+		d.pdf.SetXY(marginX, y+5.5)
+		d.pdf.CellFormat(d.contentW(), 4, d.ellipsis(demonstrationLine, d.contentW()), "", 0, "L", false, 0, "")
+	}
 	d.textColour(inkColour)
+}
+
+// demonstrationLine is printed on every page of a demonstration record.
+const demonstrationLine = "DEMONSTRATION — the scenario, organisation and people are invented; signed with published keys. Not an acceptance record."
+
+// revision is the record's revision (a record without one is the first).
+func revision(rec *record.Record) int {
+	if rec.Revision < 1 {
+		return 1
+	}
+	return rec.Revision
 }
 
 // systemName is "name version", or a placeholder when the record names no

@@ -12,6 +12,7 @@ import (
 	"strings"
 	"sync"
 	"testing"
+	"time"
 
 	"probity/internal/golden"
 	"probity/internal/needs"
@@ -195,7 +196,7 @@ func TestManyCandidatesAndStrataLayOut(t *testing.T) {
 		}
 	}
 	for _, want := range []string{"(continued)", "Adjusted p", "1,250,000", "Korn–Graubard",
-		"counted as an error for every candidate", "w00017, w00230, w01999", "not signed electronically"} {
+		"counted as an error for every candidate", "w00017, w00230, w01999", "This record was not sealed."} {
 		if !strings.Contains(text, want) {
 			t.Errorf("text lacks %q", want)
 		}
@@ -234,7 +235,7 @@ func TestGoldenPDFAndText(t *testing.T) {
 		use  string
 		opts Options
 	}{
-		{"medical-a4", "medical", Options{Paper: "a4"}},
+		{"medical-a4", "medical", Options{Paper: "a4", Signatures: fixtureSignatures()}},
 		{"general-letter", "general", Options{Paper: "letter"}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
@@ -247,7 +248,7 @@ func TestGoldenPDFAndText(t *testing.T) {
 
 func TestTemplatesOverrideReachesThePDF(t *testing.T) {
 	dir := t.TempDir()
-	custom := "Ward-specific caution: a triage nurse confirms every urgent flag within ten minutes."
+	custom := "Ward-specific caution: a triage nurse confirms every urgent flag within ten minutes. We defer to the local codes, the regulator and licensed clinicians."
 	if err := os.WriteFile(filepath.Join(dir, "caution-medical.md"), []byte(custom+"\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
@@ -255,7 +256,9 @@ func TestTemplatesOverrideReachesThePDF(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	text := flat(pdfText(t, render(t, fixtureRecord("medical"), Options{Templates: set})))
+	rec := fixtureRecord("medical")
+	rec.Wording = record.Wording{Digest: set.Fingerprint(), Replaced: set.Overridden()}
+	text := flat(pdfText(t, render(t, rec, Options{Templates: set})))
 	if !strings.Contains(text, custom) {
 		t.Error("the overriding caution is not in the PDF")
 	}
@@ -264,6 +267,13 @@ func TestTemplatesOverrideReachesThePDF(t *testing.T) {
 	}
 	if !strings.Contains(text, "caution-medical.md replaced") {
 		t.Error("the PDF does not say which wording was replaced")
+	}
+	if page1 := flat(strings.Split(pdfText(t, render(t, rec, Options{Templates: set})), "\f")[0]); !strings.Contains(page1, "Wording CUSTOM: caution-medical.md replaced by the issuer") {
+		t.Errorf("page 1 does not flag the custom wording:\n%s", page1)
+	}
+	// The record names its wording: another set is refused.
+	if _, err := Render(rec, Options{}); !errors.Is(err, ErrWording) {
+		t.Errorf("rendered with the built-in wording a record made with custom wording: %v", err)
 	}
 
 	bad := t.TempDir()
@@ -504,5 +514,56 @@ func TestRenderConcurrently(t *testing.T) {
 	}
 	for err := range errs {
 		t.Error(err)
+	}
+}
+
+// TestSignoffShowsSignaturesAndWrapsNames: each electronic signature is
+// shown with name, role, meaning, UTC time and key; an unsigned role reads
+// NOT SIGNED and carries no date; the sign-off file's names are marked as
+// intended signers; a long name is wrapped, never cut.
+func TestSignoffShowsSignaturesAndWrapsNames(t *testing.T) {
+	rec := fixtureRecord("general")
+	long := "Dr. Maximiliane Alexandra von Hohenstein-Wittelsbach-Oberkirchberg zu Liebenau-Rothenfels"
+	rec.Signoff[2] = record.Signoff{Role: "approved", Name: long, Title: "Head of quality and of the clinical safety board"}
+	sigs := fixtureSignatures()
+	sigs = append(sigs, record.ElectronicSignature{Sequence: 2, Name: long, Role: "approved", Meaning: "I approve.",
+		SignedAt: time.Date(2026, 12, 1, 8, 5, 0, 0, time.UTC), KeyFingerprint: "sha256:" + strings.Repeat("ab", 32)})
+	pages := strings.Split(pdfText(t, render(t, rec, Options{Signatures: sigs})), "\f")
+	text := flat(pages[len(pages)-2])
+	for _, want := range []string{
+		"Intended signer, from the sign-off file (not a signature) Zoë Łukasiewicz-Øberg, Audit engineer (planned date 2026-11-30)",
+		"Signed electronically by Zoë Łukasiewicz-Øberg on 2026-11-30 16:42:07 UTC Role signed: prepared; signature 1 in signatures.txt",
+		"Signer's key: sha256:54d3c0087de1a8e125a5c683f9c6309751aef11b637cd44cfd5d1ba8ad720072",
+		"Reviewed by Intended signer, from the sign-off file (not a signature) Renée Dubois-Ibáñez, Model-risk reviewer (planned date 2026-12-01) Electronic signature NOT SIGNED Meaning of this signature once given: I reviewed the method and the calculations.",
+		"Signed electronically by " + long + " on 2026-12-01 08:05:00 UTC",
+		"Operator's seal",
+	} {
+		if !strings.Contains(text, want) {
+			t.Errorf("sign-off lacks %q:\n%s", want, text)
+		}
+	}
+	if n := strings.Count(text, long); n != 2 {
+		t.Errorf("the long name is printed whole %d times, want 2 (intended and signed):\n%s", n, text)
+	}
+}
+
+// TestEveryPageCarriesRevisionAndDemonstration: the revision is on every
+// page's foot with the record id; a demonstration record says so on every
+// page; a revision names the record it supersedes on page 1.
+func TestEveryPageCarriesRevisionAndDemonstration(t *testing.T) {
+	rec := fixtureRecord("general")
+	rec.Revision, rec.Supersedes, rec.Demonstration = 2, strings.Repeat("9", record.IDLength), true
+	pages := strings.Split(strings.TrimSuffix(pdfText(t, render(t, rec, Options{})), "\f"), "\f")
+	for i, p := range pages {
+		p = flat(p)
+		if !strings.Contains(p, "Record "+rec.RecordID+" · revision 2 · 2026-11-30") {
+			t.Errorf("page %d lacks the revision", i+1)
+		}
+		if !strings.Contains(p, "DEMONSTRATION — the scenario, organisation and people are invented") {
+			t.Errorf("page %d lacks the demonstration mark", i+1)
+		}
+	}
+	if !strings.Contains(flat(pages[0]), "Revision 2, supersedes record "+rec.Supersedes) {
+		t.Errorf("page 1 does not name the superseded record:\n%s", pages[0])
 	}
 }

@@ -33,11 +33,21 @@ func (d *doc) titleBlock(c *content) {
 		period = "not stated"
 	}
 	tool := "probity " + rec.ToolVersion
+	issue := "1 (first issue)"
+	if rec.Supersedes != "" {
+		issue = itoa(revision(rec)) + ", supersedes record " + rec.Supersedes
+	}
+	wording := cell{text: "built-in"}
+	if n := len(rec.Wording.Replaced); n > 0 {
+		wording = cell{text: "CUSTOM: " + strings.Join(rec.Wording.Replaced, ", ") + " replaced by the issuer", bold: true, ink: &amber}
+	}
 	d.drawTable(&table{
-		cols: []column{{w: 17}, {w: 33}, {w: 17}, {w: 33}},
+		cols: []column{{w: 17}, {w: 36}, {w: 15}, {w: 32}},
 		rows: [][]cell{
 			{{text: "Record id", bold: true, fill: &headFill}, {text: rec.RecordID, mono: true},
 				{text: "Date", bold: true, fill: &headFill}, {text: rec.Date}},
+			{{text: "Revision", bold: true, fill: &headFill}, {text: issue},
+				{text: "Wording", bold: true, fill: &headFill}, wording},
 			{{text: "Period", bold: true, fill: &headFill}, {text: period},
 				{text: "Declared use", bold: true, fill: &headFill}, {text: c.use}},
 			{{text: "System", bold: true, fill: &headFill}, {text: systemName(rec)},
@@ -45,6 +55,38 @@ func (d *doc) titleBlock(c *content) {
 		},
 		size: bodySize - 0.5,
 	})
+	if rec.Demonstration {
+		d.space(1.5)
+		d.paragraph(demonstrationLine, "B", bodySize, lineH, 0, rejectColour)
+	}
+}
+
+// caveatsBox prints, under the verdict, the caveats that change what it
+// means, each beside an amber bar.
+func (d *doc) caveatsBox(c *content) {
+	if len(c.rec.Caveats) == 0 {
+		return
+	}
+	title := "The verdict is qualified"
+	if c.rec.OverallVerdict != record.Accept {
+		title = "Caveats"
+	}
+	d.subheading(title, 2*lineH)
+	for _, cv := range c.rec.Caveats {
+		d.font("", bodySize)
+		lines := d.wrap(cv.Text, d.contentW()-5)
+		d.need(float64(min(len(lines), 2)) * lineH)
+		for _, l := range lines {
+			d.need(lineH)
+			y := d.pdf.GetY()
+			d.fillColour(amber)
+			d.pdf.Rect(marginX, y, 1.3, lineH, "F")
+			d.pdf.SetXY(marginX+5, y)
+			d.pdf.CellFormat(d.contentW()-5, lineH, l, "", 1, "L", false, 0, "")
+		}
+		d.space(1.2)
+	}
+	d.space(1)
 }
 
 // summary prints the overall verdict banner and one row per candidate.
@@ -52,6 +94,7 @@ func (d *doc) summary(c *content) {
 	rec := c.rec
 	d.heading("Decision summary")
 	d.verdictBanner(c)
+	d.caveatsBox(c)
 	if len(rec.Candidates) == 0 {
 		d.body("The record lists no candidates.")
 		return
@@ -157,6 +200,10 @@ func (d *doc) verdictBanner(c *content) {
 		word = "NO VERDICT"
 	}
 	detail := itoa(accepted) + " of " + itoa(len(rec.Candidates)) + " candidates accepted; " + rec.Plan.Require.Title() + "."
+	if len(rec.Caveats) > 0 && word == record.Accept {
+		detail += " Qualified: see below."
+		word = "ACCEPT, QUALIFIED"
+	}
 	const h = 15.0
 	d.need(h + 2)
 	y := d.pdf.GetY()
@@ -166,9 +213,13 @@ func (d *doc) verdictBanner(c *content) {
 	d.font("", smallSize)
 	d.pdf.SetXY(marginX+4, y+2)
 	d.pdf.CellFormat(50, 3.5, "OVERALL VERDICT", "", 0, "L", false, 0, "")
-	d.font("B", 17)
+	// The word in 17 pt, or smaller when it is long ("ACCEPT, QUALIFIED").
+	size := 17.0
+	for d.font("B", size); size > 10 && d.pdf.GetStringWidth(word) > 62; d.font("B", size) {
+		size--
+	}
 	d.pdf.SetXY(marginX+4, y+5.5)
-	d.pdf.CellFormat(60, 8, d.ellipsis(word, 60), "", 0, "L", false, 0, "")
+	d.pdf.CellFormat(62, 8, d.ellipsis(word, 62), "", 0, "L", false, 0, "")
 	d.font("", bodySize+0.5)
 	lines := d.wrap(detail, d.contentW()-74)
 	ly := y + (h-float64(len(lines))*lineH)/2

@@ -173,6 +173,14 @@ func (s *Set) check(name, path string) error {
 		if len(Blocks(text)) == 0 {
 			return fileError(path, "is empty; a caution cannot be removed, only reworded")
 		}
+		for _, u := range uses {
+			if name == cautionFile(u) && SafetyRelevant(u) {
+				if miss := checkSafetyCaution(text); miss != "" {
+					return fileError(path, "lacks "+miss+", which the cautions for a "+u+" use must keep").
+						WithHint("reword the caution, but keep its deferral to codes and standards, to the regulator and to licensed professionals")
+				}
+			}
+		}
 		return nil
 	}
 	t, err := template.New(name).Option("missingkey=error").Parse(text)
@@ -187,6 +195,25 @@ func (s *Set) check(name, path string) error {
 		var buf bytes.Buffer
 		if err := t.Execute(&buf, f); err != nil {
 			return fileError(path, "cannot be filled in: "+trimTemplateErr(err.Error(), name))
+		}
+	}
+	switch {
+	case name == DecisionRule:
+		miss, err := checkDecisionRule(t)
+		if err != nil {
+			return fileError(path, "cannot be filled in: "+trimTemplateErr(err.Error(), name))
+		}
+		if miss != "" {
+			return fileError(path, "does not state "+miss+"; the decision rule must state the numeric rule with the ceiling and the confidence").
+				WithHint("reword the rule, but keep {{.Ceiling}}, {{.BoundConfidence}}, {{.SampleSize}} and, for a fixed plan, {{.AcceptanceNumber}}")
+		}
+	case strings.HasPrefix(name, "signoff-") && name != SignoffIntro:
+		named, err := namesRecordID(t)
+		if err != nil {
+			return fileError(path, "cannot be filled in: "+trimTemplateErr(err.Error(), name))
+		}
+		if named {
+			return fileError(path, "prints the record id ({{.RecordID}}); a signature's meaning is part of what the record id covers, so it cannot name the id (the id is printed beside every signature)")
 		}
 	}
 	s.parsed[name] = t

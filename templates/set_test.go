@@ -99,16 +99,16 @@ func write(t *testing.T, dir, name, text string) {
 
 func TestOverrideFileByFile(t *testing.T) {
 	dir := t.TempDir()
-	write(t, dir, "caution-medical.md", "Ward 7 wording: ask the duty physician.\n")
+	write(t, dir, "caution-credit.md", "Branch 7 wording: ask the duty credit officer.\n")
 	write(t, dir, "scope.md", "Only {{.System}} in {{.Period}}.\n")
 	write(t, dir, ".notes", "ignored")
 	s, err := Load(dir)
 	if err != nil {
 		t.Fatal(err)
 	}
-	c, _ := s.Caution("medical")
-	if c != "Ward 7 wording: ask the duty physician.\n" {
-		t.Errorf("medical caution not overridden: %q", c)
+	c, _ := s.Caution("credit")
+	if c != "Branch 7 wording: ask the duty credit officer.\n" {
+		t.Errorf("credit caution not overridden: %q", c)
 	}
 	emb, _ := Load("")
 	g1, _ := s.Caution("general")
@@ -120,7 +120,7 @@ func TestOverrideFileByFile(t *testing.T) {
 	if err != nil || scope != "Only triage-v2 in 2026-10.\n" {
 		t.Errorf("scope = %q, %v", scope, err)
 	}
-	if got := strings.Join(s.Overridden(), ","); got != "caution-medical.md,scope.md" {
+	if got := strings.Join(s.Overridden(), ","); got != "caution-credit.md,scope.md" {
 		t.Errorf("Overridden = %s", got)
 	}
 	if s.Fingerprint() == emb.Fingerprint() {
@@ -176,4 +176,44 @@ func TestBadOverrideIsRefusedNamingTheFile(t *testing.T) {
 			t.Errorf("err = %v", err)
 		}
 	})
+}
+
+// TestGuttedTemplatesRefused: wording that drops what the record's promise
+// rests on is refused, naming the file and what is missing — the decision
+// rule without its numbers, a safety-relevant caution without its
+// deferral, a signature meaning that names the record id.
+func TestGuttedTemplatesRefused(t *testing.T) {
+	cases := []struct {
+		file, text, want string
+	}{
+		{"decision-rule.md", "The model is accepted.\n",
+			"decision-rule.md: does not state the ceiling ({{.Ceiling}}) for a fixed plan; the decision rule must state the numeric rule with the ceiling and the confidence"},
+		{"decision-rule.md", "Accepted when the {{.BoundConfidence}} bound is below {{.Ceiling}}.\n",
+			"does not state the number of decisions labeled ({{.SampleSize}}) for a fixed plan"},
+		{"decision-rule.md", "{{.SampleSize}} labeled; accepted when the {{.BoundConfidence}} bound is below {{.Ceiling}}.\n",
+			"does not state the acceptance number ({{.AcceptanceNumber}}) for a fixed plan"},
+		{"decision-rule.md", "{{if .Sequential}}Sequential.{{else}}{{.SampleSize}} labeled, at most {{.AcceptanceNumber}} errors; the {{.BoundConfidence}} bound is below {{.Ceiling}}.{{end}}\n",
+			"does not state the ceiling ({{.Ceiling}}) for a sequential plan"},
+		{"decision-rule.md", "{{if gt .Candidates 1}}All fine.{{else}}{{.SampleSize}} labeled, at most {{.AcceptanceNumber}} errors; the {{.BoundConfidence}} bound is below {{.Ceiling}}.{{end}}\n",
+			"for three candidates under bonferroni"},
+		{"caution-safety.md", "No special cautions apply.\n", "caution-safety.md: lacks the deferral to the applicable codes and standards"},
+		{"caution-medical.md", "Defer to local codes. Ask the regulator.\n", "caution-medical.md: lacks the review by licensed professionals"},
+		{"caution-vehicle.md", "Defer to local codes. Licensed engineers review it.\n", "caution-vehicle.md: lacks the regulator"},
+		{"signoff-approved.md", "I approve record {{.RecordID}}.\n", "signoff-approved.md: prints the record id"},
+	}
+	for _, c := range cases {
+		dir := t.TempDir()
+		write(t, dir, c.file, c.text)
+		_, err := Load(dir)
+		if !errors.Is(err, ErrTemplate) || !strings.Contains(err.Error(), filepath.Join(dir, c.want)) && !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s %q: got %v, want %q", c.file, c.text, err, c.want)
+		}
+	}
+	// Reworded but complete wording is accepted.
+	dir := t.TempDir()
+	write(t, dir, "caution-safety.md", "Our site rules first. We defer to the applicable codes; the regulator and licensed engineers decide.\n")
+	write(t, dir, "decision-rule.md", "{{.SampleSize}} decisions{{if not (or .Sequential .Weighted)}}, at most {{.AcceptanceNumber}} errors{{end}}; accepted when the {{.BoundConfidence}} upper bound is below {{.Ceiling}}.\n")
+	if _, err := Load(dir); err != nil {
+		t.Errorf("complete reworded wording refused: %v", err)
+	}
 }

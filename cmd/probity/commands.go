@@ -9,6 +9,7 @@ func commands(d deps) []*cobra.Command {
 		newPlanCommand(d),
 		newDrawCommand(d),
 		newRecordCommand(d),
+		newSignCommand(d),
 		newVerifyCommand(d),
 		newKeygenCommand(d),
 		newTrendCommand(d),

@@ -45,7 +45,9 @@ func TestDemoEndToEnd(t *testing.T) {
 		if code != exitOK {
 			t.Fatalf("demo exit %d\nstdout:\n%s\nstderr:\n%s", code, out, errOut)
 		}
-		for _, want := range []string{"invented", "record-2026-11/record.pdf (overall ACCEPT, exit 0)", "all checks passed", "trend.png"} {
+		for _, want := range []string{"invented", "record-2026-11/record.pdf (overall ACCEPT, exit 0)",
+			"signed  prepared by Maren Tøllefsen, 2026-12-01 11:30 UTC", "signed  reviewed by Dr. Ilse Brandvold-Achebe, 2026-12-01 14:30 UTC",
+			"every check passed but authentication, as it must: the demo's keys are published (exit 1)", "trend.png", "charted as unauthenticated"} {
 			if !strings.Contains(out, want) {
 				t.Errorf("demo output lacks %q:\n%s", want, out)
 			}
@@ -54,8 +56,9 @@ func TestDemoEndToEnd(t *testing.T) {
 	a := filepath.Join(t.TempDir(), "demo-a")
 	runOnce(a)
 
-	files := []string{"plan.yaml", "signoff.yaml", "commands.txt", "trend.png", "trend.pdf",
-		"keys/demo-signing-key", "keys/demo-signing-key.pub", "labels-2026-11/worksheet-first-400.csv",
+	files := []string{"plan.yaml", "signoff.yaml", "signers.yaml", "commands.txt", "trend.png", "trend.pdf",
+		"keys/demo-signing-key", "keys/demo-signing-key.pub", "keys/demo-preparer", "keys/demo-reviewer.pub",
+		"record-2026-11/signatures.txt", "labels-2026-11/worksheet-first-400.csv",
 		"draw-2026-11/worksheet-second.csv", "labels-2026-11/worksheet-second-labeled.csv", "labels-2026-11/adjudication.csv"}
 	for _, m := range []string{"2026-10", "2026-11"} {
 		files = append(files, "prediction-log-"+m+".csv.gz",
@@ -126,13 +129,21 @@ func TestDemoEndToEnd(t *testing.T) {
 		t.Errorf("deviations: unsure %v, spares used %v", rec.Deviations.Unsure, rec.Deviations.SparesUsed)
 	}
 
-	// An independent verify run on the artifacts.
+	if !rec.Demonstration || len(rec.Caveats) != 2 {
+		t.Errorf("the November record: demonstration %v, caveats %+v (want the two accepted thresholds qualified by label error)", rec.Demonstration, rec.Caveats)
+	}
+
+	// An independent verify run on the artifacts: every check passes but
+	// the authentication, which fails on the published keys alone, even
+	// with the demo's key passed as trusted.
 	rd := filepath.Join(a, "record-2026-11")
-	if code, out, errOut := runTest(t, []string{"verify", rd, "--pub", filepath.Join(a, "keys", "demo-signing-key.pub"),
+	code, out, errOut := runTest(t, []string{"verify", rd, "--pub", filepath.Join(a, "keys", "demo-signing-key.pub"), "--signers", filepath.Join(a, "signers.yaml"),
 		"--plan", filepath.Join(a, "plan.yaml"), "--draw", filepath.Join(a, "draw-2026-11"),
 		"--labels", filepath.Join(a, "labels-2026-11", "worksheet-labeled.csv"),
 		"--second", filepath.Join(a, "labels-2026-11", "worksheet-second-labeled.csv"),
-		"--adjudicated", filepath.Join(a, "labels-2026-11", "adjudication.csv")}, demoTestOptions...); code != exitOK || !strings.Contains(out, "judgement recomputed") {
+		"--adjudicated", filepath.Join(a, "labels-2026-11", "adjudication.csv")}, demoTestOptions...)
+	if code != exitRejected || !strings.Contains(out, "judgement recomputed") || !strings.Contains(out, "and its 2 signatures") ||
+		len(demoOtherFailures(out)) != 0 || strings.Count(out, "published demonstration key") != 3 {
 		t.Fatalf("verify exit %d:\n%s\n%s", code, out, errOut)
 	}
 
@@ -152,7 +163,8 @@ func TestDemoEndToEnd(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		for _, want := range []string{"ACCEPT", "REJECT", "safety case", "licensed", "Label quality", "Gwet's AC1"} {
+		for _, want := range []string{"ACCEPT", "REJECT", "safety case", "licensed", "Label quality", "Gwet's AC1",
+			"Signed electronically by Maren Tøllefsen on 2026-12-01 11:30:00 UTC", "NOT SIGNED", "DEMONSTRATION — the scenario"} {
 			if !bytes.Contains(txt, []byte(want)) {
 				t.Errorf("record.pdf text lacks %q", want)
 			}

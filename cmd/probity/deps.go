@@ -2,6 +2,7 @@ package main
 
 import (
 	"crypto/rand"
+	"fmt"
 	"io"
 	"os"
 	"time"
@@ -28,6 +29,19 @@ type deps struct {
 	// dir is the folder relative paths on the command line are taken from
 	// (see takePathsFrom); empty for the process's working directory.
 	dir string
+	// getenv reads an environment variable (nil: none is set).
+	getenv func(string) string
+	// readPassword asks for a secret on the terminal without echoing it,
+	// after printing prompt to stderr; nil when there is no terminal.
+	readPassword func(prompt string) ([]byte, error)
+}
+
+// env returns the environment variable name, or "" when deps has none.
+func (d deps) env(name string) string {
+	if d.getenv == nil {
+		return ""
+	}
+	return d.getenv(name)
 }
 
 // systemDeps returns the dependencies of a real process.
@@ -41,5 +55,21 @@ func systemDeps() deps {
 		stderrIsTerminal: term.IsTerminal(int(os.Stderr.Fd())),
 		stdoutIsTerminal: term.IsTerminal(int(os.Stdout.Fd())),
 		version:          toolVersion(),
+		getenv:           os.Getenv,
+		readPassword:     terminalPassword(),
+	}
+}
+
+// terminalPassword reads a secret from the controlling terminal (stdin
+// when it is one), or is nil when there is none.
+func terminalPassword() func(string) ([]byte, error) {
+	fd := int(os.Stdin.Fd())
+	if !term.IsTerminal(fd) {
+		return nil
+	}
+	return func(prompt string) ([]byte, error) {
+		fmt.Fprint(os.Stderr, prompt)
+		defer fmt.Fprintln(os.Stderr)
+		return term.ReadPassword(fd)
 	}
 }

@@ -63,6 +63,11 @@ func withVersion(v string) testOption { return func(d *deps) { d.version = v } }
 // withStdin sets stdin.
 func withStdin(r io.Reader) testOption { return func(d *deps) { d.stdin = r } }
 
+// withEnv gives the command the environment variables env (and no other).
+func withEnv(env map[string]string) testOption {
+	return func(d *deps) { d.getenv = func(k string) string { return env[k] } }
+}
+
 // withDir runs the command inside dir (deps.dir: its relative paths are
 // taken from there).
 func withDir(dir string) testOption { return func(d *deps) { d.dir = dir } }

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"crypto/ed25519"
 	"errors"
 	"fmt"
 	"os"
@@ -15,7 +14,9 @@ import (
 
 // keygenOptions are the flags of probity keygen.
 type keygenOptions struct {
-	out string
+	out        string
+	protect    bool
+	passphrase passphraseSource
 }
 
 // newKeygenCommand builds `probity keygen`.
@@ -24,12 +25,22 @@ func newKeygenCommand(d deps) *cobra.Command {
 	cmd := &cobra.Command{
 		Use:   "keygen --out NAME",
 		Short: "Make an Ed25519 key pair for signing acceptance records",
-		Long: `keygen writes an Ed25519 key pair: the private key to NAME (PEM, PKCS #8,
-readable by you only: mode 0600) and the public key to NAME.pub (PEM). It
-never overwrites an existing file. Give the private key to 'probity record
---sign-key NAME' and the public key to whoever checks the records with
-'probity verify RECDIR --pub NAME.pub'. The private key is not encrypted:
-keep it where only the signer can read it.
+		Long: `keygen writes an Ed25519 key pair: the private key to NAME (readable by you
+only: mode 0600) and the public key to NAME.pub (PEM), and prints the key's
+fingerprint. It never overwrites an existing file.
+
+With --protect the private key is encrypted under a passphrase, in the
+OpenSSH private key format (bcrypt_pbkdf, AES-256-CTR; ssh-keygen reads it,
+and 'ssh-keygen -p -f NAME' changes the passphrase). The passphrase, of at
+least 10 characters, comes from --passphrase-file (its first line), else
+from the environment variable ` + passphraseEnv + `, else it is asked for
+twice on the terminal. Without --protect the private key is stored in the
+clear (PEM, PKCS #8), and every command that signs with it warns.
+
+A person signs records with 'probity sign RECDIR --key NAME'; whoever
+answers for the records lists the fingerprint in the signers file that
+'probity verify --signers' checks. An operator seals records with 'probity
+record --sign-key NAME'; verify checks the seal with --pub NAME.pub.
 
 ` + exitCodesHelp,
 		Args: cobra.NoArgs,
@@ -43,7 +54,9 @@ keep it where only the signer can read it.
 			return runKeygen(d, opts)
 		},
 	}
-	cmd.Flags().StringVar(&opts.out, "out", "", "file name of the private key; the public key goes to NAME.pub")
+	cmd.Flags().StringVar(&opts.out, "out", "", "file `NAME` of the private key; the public key goes to NAME.pub")
+	cmd.Flags().BoolVar(&opts.protect, "protect", false, "encrypt the private key under a passphrase")
+	addPassphraseFlag(cmd, &opts.passphrase)
 	return cmd
 }
 
@@ -54,11 +67,29 @@ func runKeygen(d deps, o *keygenOptions) error {
 			return inputerr.Errorf("%s already exists; keygen never overwrites a key", p).WithHint("choose another --out name, or remove the old key pair yourself")
 		}
 	}
+	if o.passphrase.file != "" && !o.protect {
+		return inputerr.Errorf("--passphrase-file needs --protect").WithHint("pass --protect to encrypt the private key under the passphrase")
+	}
+	var pass []byte
+	if o.protect {
+		var err error
+		if pass, err = o.passphrase.get(d, "the new key "+o.out, true); err != nil {
+			return err
+		}
+		if n := len([]rune(string(pass))); n < signature.MinPassphrase {
+			return inputerr.Errorf("the passphrase has %d characters; use at least %d", n, signature.MinPassphrase)
+		}
+	}
 	pub, priv, err := signature.GenerateKey(d.random)
 	if err != nil {
 		return &internalError{msg: err.Error()}
 	}
-	privPEM, err := signature.MarshalPrivate(priv)
+	var privPEM []byte
+	if o.protect {
+		privPEM, err = signature.MarshalProtected(priv, pass)
+	} else {
+		privPEM, err = signature.MarshalPrivate(priv)
+	}
 	if err != nil {
 		return &internalError{msg: err.Error()}
 	}
@@ -73,33 +104,10 @@ func runKeygen(d deps, o *keygenOptions) error {
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(d.stdout, "private key: %s (mode 0600; keep it secret)\npublic key:  %s\nfingerprint: %s\n", o.out, pubPath, signature.Fingerprint(pub))
+	stored := "in the clear, mode 0600; keep it secret, or protect it: ssh-keygen -p -f " + o.out
+	if o.protect {
+		stored = "protected by the passphrase, mode 0600"
+	}
+	fmt.Fprintf(d.stdout, "private key: %s (%s)\npublic key:  %s\nfingerprint: %s\n", o.out, stored, pubPath, signature.Fingerprint(pub))
 	return nil
-}
-
-// loadPrivateKey reads a private key file written by keygen and returns
-// it with its public key's fingerprint.
-func loadPrivateKey(path string) (ed25519.PrivateKey, string, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return nil, "", inputerr.Errorf("cannot read --sign-key %s: %v", path, errors.Unwrap(err)).WithHint("make a key pair with 'probity keygen --out NAME'")
-	}
-	priv, err := signature.ParsePrivate(data, path)
-	if err != nil {
-		return nil, "", inputerr.SetHint(err, "pass the private key file written by probity keygen (not the .pub file)")
-	}
-	return priv, signature.Fingerprint(priv.Public().(ed25519.PublicKey)), nil
-}
-
-// loadPublicKey reads a public key file written by keygen.
-func loadPublicKey(path string) (ed25519.PublicKey, error) {
-	data, err := os.ReadFile(path)
-	if err != nil {
-		return nil, inputerr.Errorf("cannot read --pub %s: %v", path, errors.Unwrap(err)).WithHint("pass the NAME.pub file written by probity keygen")
-	}
-	pub, err := signature.ParsePublic(data, path)
-	if err != nil {
-		return nil, inputerr.SetHint(err, "pass the NAME.pub file written by probity keygen")
-	}
-	return pub, nil
 }

@@ -45,12 +45,14 @@ func TestTrendChartNeverReplacesARecord(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, e := range entries {
-		data, err := os.ReadFile(filepath.Join(trendMonthly, e.Name(), "record.json"))
-		if err != nil {
-			t.Fatal(err)
-		}
 		os.MkdirAll(filepath.Join(months, e.Name()), 0o755)
-		writeFile(t, filepath.Join(months, e.Name(), "record.json"), data)
+		for _, f := range []string{"record.json", "record.sig"} {
+			data, err := os.ReadFile(filepath.Join(trendMonthly, e.Name(), f))
+			if err != nil {
+				t.Fatal(err)
+			}
+			writeFile(t, filepath.Join(months, e.Name(), f), data)
+		}
 	}
 	dec := filepath.Join(months, "2026-12")
 	signed := []byte("%PDF-1.4 the signed record\n")
@@ -66,7 +68,7 @@ func TestTrendChartNeverReplacesARecord(t *testing.T) {
 		if b, _ := os.ReadFile(filepath.Join(dec, "record.pdf")); !bytes.Equal(b, signed) {
 			t.Fatalf("%v: record.pdf was replaced", args)
 		}
-		if got := strings.Join(tree(t, dec), ","); got != "record.json,record.pdf" {
+		if got := strings.Join(tree(t, dec), ","); got != "record.json,record.pdf,record.sig" {
 			t.Errorf("%v: the record folder holds %s", args, got)
 		}
 	}

@@ -38,6 +38,11 @@ type recordOptions struct {
 	unequal         verdict.UnequalBound
 	force           bool
 	json            bool
+	// supersedes is the id of the record this one replaces, revision its
+	// revision number (0: 1, or 2 with supersedes).
+	supersedes string
+	revision   int
+	passphrase passphraseSource
 	// quality holds the double-labeling flags (record_quality.go).
 	quality labelQualityOptions
 }
@@ -51,7 +56,17 @@ func newRecordCommand(d deps) *cobra.Command {
 		Long: `record checks the labeled worksheet against the plan and the draw folder,
 judges every candidate and writes the acceptance record into RECDIR:
 record.json (canonical, machine-readable), record.pdf (for the reviewer) and,
-with --sign-key, record.sig (Ed25519 signatures over both).
+with --sign-key, record.sig: the operator's seal, an Ed25519 signature over
+both that shows the record was not changed after it was issued and with
+which key. The seal is not the signature of a person: the people named in
+the sign-off sign the record afterwards with 'probity sign'.
+
+The record id is the digest of everything record.json says (the inputs'
+fingerprints, the judgement, the use, the bound, the date, the sealing key,
+the wording, the revision), so no two records share one. Re-issuing a
+record is a revision: --supersedes RECORD_ID names the record it replaces,
+and the PDF shows the revision on every page (--revision N, default 2 with
+--supersedes).
 
 Before anything is computed it checks that the draw was made from this plan,
 that the ledger and worksheet are the files the draw wrote, that the labeled
@@ -73,13 +88,18 @@ of the worksheet without gaps and each candidate is judged by the plan's
 boundaries where they decide (probity progress says when to stop); items
 below that point may stay blank.
 
-The sign-off file names who prepared, reviewed and approved the record; each
-key is optional, and a role left out prints blank signature lines:
+The sign-off file names who is to prepare, review and approve the record
+and what each signature means; each key is optional. Its names and dates
+are printed as the intended signers, not as signatures: every role reads
+NOT SIGNED until its signer runs 'probity sign'. Names may not hold control,
+zero-width or direction-overriding characters.
 
   prepared: {name: Dana Example, title: ML engineer, date: 2026-12-01}
   reviewed: {name: Jo Example, title: Model-risk reviewer}
   approved: {name: Sam Example, title: Head of quality,
              meaning: "I approve the release of version 2.4"}
+
+` + passphraseHelp + `
 
 ` + exitCodesHelp + `
 
@@ -101,7 +121,7 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 	fl.StringVar(&opts.out, "out", "", "the record folder to write (must not exist or be empty)")
 	fl.StringVar(&opts.signoff, "signoff", "", "sign-off file (YAML: prepared/reviewed/approved with name, title, date, meaning)")
 	fl.StringVar(&opts.use, "use", "general", "declared use: "+strings.Join(templates.Uses(), ", "))
-	fl.StringVar(&opts.signKey, "sign-key", "", "private key from probity keygen; writes record.sig")
+	fl.StringVar(&opts.signKey, "sign-key", "", "the operator's private `KEY` from probity keygen; writes record.sig, the operator's seal")
 	fl.BoolVar(&opts.allowIncomplete, "allow-incomplete", false, "count unlabeled and unsure items as errors for every candidate instead of refusing")
 	fl.StringVar(&opts.date, "date", "", "the record's date, YYYY-MM-DD (default: today, UTC)")
 	fl.StringVar(&opts.paper, "paper", "a4", "paper size of record.pdf: a4 or letter")
@@ -109,6 +129,9 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
 	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
+	fl.StringVar(&opts.supersedes, "supersedes", "", "the `RECORD_ID` of the record this one replaces (a revision)")
+	fl.IntVar(&opts.revision, "revision", 0, "the revision number `N` of this record (default 1, or 2 with --supersedes)")
+	addPassphraseFlag(cmd, &opts.passphrase)
 	addLabelQualityFlags(cmd, &opts.quality)
 	return cmd
 }
@@ -131,6 +154,22 @@ func (o *recordOptions) validate() error {
 		if _, err := time.Parse("2006-01-02", o.date); err != nil {
 			return inputerr.Errorf("--date %q is not a date in the form YYYY-MM-DD", o.date).WithHint("for example --date 2026-03-31")
 		}
+	}
+	if o.supersedes != "" && !record.IsID(o.supersedes) {
+		return inputerr.Errorf("--supersedes %q is not a record id (%d lowercase hex digits)", o.supersedes, record.IDLength).
+			WithHint("copy the record_id of the superseded record's record.json")
+	}
+	switch {
+	case o.revision < 0:
+		return inputerr.Errorf("--revision %d is not a positive whole number", o.revision)
+	case o.revision == 0 && o.supersedes != "":
+		o.revision = 2
+	case o.revision == 0:
+		o.revision = 1
+	case o.revision == 1 && o.supersedes != "":
+		return inputerr.Errorf("--revision 1 with --supersedes: a record that supersedes another is revision 2 or later")
+	case o.revision > 1 && o.supersedes == "":
+		return inputerr.Errorf("--revision %d needs --supersedes", o.revision).WithHint("name the record this revision replaces: --supersedes RECORD_ID")
 	}
 	u, err := verdict.ParseUnequalBound(o.bound)
 	if err != nil {
@@ -166,14 +205,11 @@ func runRecord(d deps, o *recordOptions) error {
 	var priv ed25519.PrivateKey
 	keyFP := ""
 	if o.signKey != "" {
-		k, fp, err := loadPrivateKey(o.signKey)
+		k, fp, err := loadPrivateKey(d, o.signKey, "--sign-key", o.passphrase)
 		if err != nil {
 			return err
 		}
 		priv, keyFP = k, fp
-		if st, err := os.Stat(o.signKey); err == nil && st.Mode().Perm()&0o077 != 0 {
-			fmt.Fprintf(d.stderr, "probity: warning: the private key %s can be read by others (mode %04o); run chmod 600 %s\n", o.signKey, st.Mode().Perm(), o.signKey)
-		}
 	}
 	set, err := templates.Load(o.templatesDir)
 	if errors.Is(err, templates.ErrTemplate) {
@@ -190,6 +226,7 @@ func runRecord(d deps, o *recordOptions) error {
 	rec, err := assemble.Record(files, assemble.Options{
 		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
 		Bound: o.unequal, Use: o.use, Date: date, Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
+		Revision: o.revision, Supersedes: o.supersedes, Demonstration: signature.IsDemoKey(keyFP),
 	})
 	if err != nil {
 		return recordHints(err, o)
@@ -253,6 +290,9 @@ func renderRecord(rec *record.Record, paper string, set *templates.Set, priv ed2
 func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []namedFile) {
 	w := d.stdout
 	fmt.Fprintf(w, "record %s (%s) for %s\n", rec.RecordID, rec.Date, systemName(rec))
+	if rec.Supersedes != "" {
+		fmt.Fprintf(w, "revision %d, superseding record %s\n", rec.Revision, rec.Supersedes)
+	}
 	fmt.Fprintf(w, "ceiling %s, confidence %s, %s\n", record.FormatFloat(rec.Plan.Ceiling), record.FormatFloat(rec.Plan.Confidence), rec.Method.Bound)
 	width := 4
 	for _, c := range rec.Candidates {
@@ -263,6 +303,9 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 			fmt.Sprintf("%.4f", c.Estimate), fmt.Sprintf("%.4f", c.UpperBound), c.Reason)
 	}
 	fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
+	for _, c := range rec.Caveats {
+		fmt.Fprintf(w, "caveat: %s\n", c.Text)
+	}
 	if rec.Deviations.AllowIncomplete {
 		fmt.Fprintf(w, "note: unlabeled or unsure items were counted as errors for every candidate (--allow-incomplete)\n")
 	}
@@ -272,8 +315,12 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 	}
 	fmt.Fprintf(w, "wrote %s into %s\n", strings.Join(names, ", "), o.out)
 	if rec.SigningKey != "" {
-		fmt.Fprintf(w, "signed with key %s\n", rec.SigningKey)
+		fmt.Fprintf(w, "sealed with key %s (the operator's seal)\n", rec.SigningKey)
 	}
+	if len(rec.Wording.Replaced) > 0 {
+		fmt.Fprintf(w, "custom wording: %s (flagged on page 1)\n", strings.Join(rec.Wording.Replaced, ", "))
+	}
+	fmt.Fprintf(w, "not yet signed: %s (probity sign %s --role ROLE --key KEY)\n", strings.Join(record.SignoffRoles, ", "), o.out)
 }
 
 func systemName(rec *record.Record) string {

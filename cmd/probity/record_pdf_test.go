@@ -60,7 +60,7 @@ func TestRecordPDFShowsVerdictsAndCautions(t *testing.T) {
 
 	tdir := filepath.Join(fx.dir, "wording")
 	os.Mkdir(tdir, 0o755)
-	writeFile(t, filepath.Join(tdir, "caution-medical.md"), []byte("Invented override: consult the hospital's device committee.\n"))
+	writeFile(t, filepath.Join(tdir, "caution-medical.md"), []byte("Invented override: consult the hospital's device committee. Defer to the local codes; the regulator and licensed clinicians decide.\n"))
 	out2 := filepath.Join(fx.dir, "rec2")
 	runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", out2, "--use", "medical", "--templates", tdir)
 	if flat := strings.Join(strings.Fields(pdfText(t, filepath.Join(out2, "record.pdf"))), " "); !strings.Contains(flat, "consult the hospital's device committee") || strings.Contains(flat, "clinical validation") {

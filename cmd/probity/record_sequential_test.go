@@ -44,7 +44,9 @@ func TestRecordSequentialPlan(t *testing.T) {
 		return r
 	})
 	out := filepath.Join(fx.dir, "rec")
-	code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", out, "--date", "2026-12-01")
+	key := filepath.Join(fx.dir, "key")
+	runProbity(t, "keygen", "--out", key)
+	code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", out, "--date", "2026-12-01", "--sign-key", key)
 	if code != exitRejected {
 		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
 	}
@@ -80,7 +82,7 @@ func TestRecordSequentialPlan(t *testing.T) {
 		}
 	}
 	// verify recomputes the same record.
-	if code, stdout, _ := runProbity(t, "verify", out, "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels); code != exitOK {
+	if code, stdout, _ := runProbity(t, "verify", out, "--pub", key+".pub", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels); code != exitOK {
 		t.Errorf("verify: exit %d\n%s", code, stdout)
 	}
 

@@ -46,7 +46,7 @@ func TestRecordAcceptedExitsZero(t *testing.T) {
 	if r.OverallVerdict != record.Accept || r.Date != "2026-12-01" || r.System != "Parcel sorter" || len(r.Strata) != 3 || len(r.OC) == 0 || r.Method.Bound != plan.BoundClopperPearson {
 		t.Errorf("record: %+v", r)
 	}
-	if r.Fingerprints.Labels != record.SHA256(mustRead(t, labels)) || r.RecordID != record.ID(r.Fingerprints, nil) {
+	if id, _ := record.ID(r); r.Fingerprints.Labels != record.SHA256(mustRead(t, labels)) || r.RecordID != id {
 		t.Errorf("fingerprints %+v, id %s", r.Fingerprints, r.RecordID)
 	}
 	if len(r.Signoff) != 3 || r.Signoff[0].Meaning == "" || r.Signoff[0].Name != "" {

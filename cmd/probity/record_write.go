@@ -34,8 +34,9 @@ func recordOutError(err error) error {
 
 // writeRecordFolder writes the files into dir through safewrite: a new
 // folder appears whole; into an existing one (force) the files are
-// replaced together, and a record.sig of an earlier signed record is
-// removed when this record is unsigned. None of the record's inputs is
+// replaced together; the people's signatures of an earlier record
+// (signatures.txt) are removed, and so is its record.sig when this record
+// is not sealed. None of the record's inputs is
 // ever written over.
 func writeRecordFolder(dir string, files []namedFile, force bool, inputs []string) error {
 	out := make([]safewrite.File, len(files))
@@ -43,7 +44,7 @@ func writeRecordFolder(dir string, files []namedFile, force bool, inputs []strin
 		out[i] = safewrite.File{Path: f.name, Data: f.data}
 	}
 	return recordOutError(safewrite.WriteFolder(dir, out, safewrite.FolderOptions{
-		Replace: force, Protected: inputs, Stale: []string{signature.FileName},
+		Replace: force, Protected: inputs, Stale: []string{signature.FileName, signature.SignaturesFile},
 	}))
 }
 

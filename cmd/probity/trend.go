@@ -17,6 +17,7 @@ import (
 	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/signature"
+	"probity/plan/record/verification"
 	"probity/plan/trend"
 	"probity/sampling/safewrite"
 )
@@ -28,6 +29,11 @@ type trendOptions struct {
 	alpha    float64
 	chart    string
 	json     bool
+	// pub, signers and allowUnauthenticated say what the records are
+	// authenticated against, or that they may be charted without.
+	pub                  []string
+	signers              string
+	allowUnauthenticated bool
 }
 
 // trendChartDPI is the resolution of the PNG chart.
@@ -56,6 +62,15 @@ different plan files, or with different candidates, are compared with a
 warning. Each period may appear once, and period labels must be written the
 same way (2026-09, not 2026-9) so that sorting them gives time order.
 
+Every record is authenticated before it is charted, with the same trust
+inputs as probity verify: its record id must recompute from its content,
+and the operator's seal (record.sig beside it) and the people's signatures
+(signatures.txt) must be valid and made with keys --pub or --signers vouch
+for; a record with no signature, or an edited one, is refused (exit 1, and
+nothing is charted). --allow-unauthenticated charts records that cannot be
+authenticated (with or without trust inputs) and says so: a note per
+record, the "unauthenticated" list of --json, and a red line on the chart.
+
 --chart PREFIX writes PREFIX.png (the chart: one panel per candidate, the
 estimate and upper bound of every period against the ceiling) and PREFIX.pdf
 (one page: the chart above a table of every period).
@@ -63,7 +78,8 @@ estimate and upper bound of every period against the ceiling) and PREFIX.pdf
 ` + exitCodesHelp + `
 
 trend exits 1 when the latest period's record rejects (overall verdict
-REJECT) and 0 otherwise, whatever the flags.`,
+REJECT) or a record cannot be authenticated (without
+--allow-unauthenticated), and 0 otherwise.`,
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) == 0 {
 				return inputerr.Errorf("trend needs at least one record.json or folder of records").WithHint("e.g. 'probity trend audits/' or 'probity trend audits/2026-*/record.json'")
@@ -83,6 +99,9 @@ REJECT) and 0 otherwise, whatever the flags.`,
 	fl.Float64Var(&opts.alpha, "alpha", 0.05, "significance `LEVEL` of each one-sided comparison with the baseline, in (0, 0.5]")
 	fl.StringVar(&opts.chart, "chart", "", "write the chart to `PREFIX`.png and a one-page PREFIX.pdf")
 	fl.BoolVar(&opts.json, "json", false, "print one JSON object (stable keys) instead of the tables")
+	fl.StringArrayVar(&opts.pub, "pub", nil, "a public `KEY.pub` trusted to seal records; repeatable")
+	fl.StringVar(&opts.signers, "signers", "", "the signers `FILE`: whose key signs in which role")
+	fl.BoolVar(&opts.allowUnauthenticated, "allow-unauthenticated", false, "chart records that cannot be authenticated, marked as such")
 	return cmd
 }
 
@@ -90,6 +109,10 @@ REJECT) and 0 otherwise, whatever the flags.`,
 func (o *trendOptions) validate() error {
 	if !(o.alpha > 0 && o.alpha <= 0.5) {
 		return inputerr.Errorf("--alpha %v is outside (0, 0.5]", o.alpha).WithHint("the usual level is 0.05")
+	}
+	if len(o.pub) == 0 && o.signers == "" && !o.allowUnauthenticated {
+		return inputerr.Errorf("trend authenticates every record it charts, and no trusted key or signers file was given").
+			WithHint("pass --pub KEY.pub (the operator's seal) or --signers FILE, or --allow-unauthenticated to chart records that cannot be authenticated, marked as such")
 	}
 	if o.chart != "" {
 		ext := strings.ToLower(filepath.Ext(o.chart))
@@ -126,6 +149,9 @@ func runTrend(d deps, o *trendOptions) error {
 	loaded, err := trend.Load(o.paths)
 	if err != nil {
 		return trendInputError(err)
+	}
+	if err := authenticateTrend(d, o, loaded); err != nil {
+		return err
 	}
 	t, err := trend.Build(loaded.Entries, trend.Options{Baseline: o.baseline, Alpha: o.alpha})
 	if err != nil {
@@ -164,6 +190,41 @@ func runTrend(d deps, o *trendOptions) error {
 	}
 	if t.Latest.OverallVerdict == record.Reject {
 		return rejected("latest period %s was rejected (record %s, %s)", t.Latest.Label, t.Latest.RecordID, t.Latest.File)
+	}
+	return nil
+}
+
+// authenticateTrend authenticates every record loaded: a record that does
+// not authenticate is refused (exit 1) unless unauthenticated records are
+// allowed, when it is marked and noted on stderr.
+func authenticateTrend(d deps, o *trendOptions, loaded *trend.Loaded) error {
+	trust, err := loadTrust(d, o.pub, o.signers)
+	if err != nil {
+		return err
+	}
+	refused := 0
+	for i := range loaded.Entries {
+		e := &loaded.Entries[i]
+		rep, err := verification.Authenticate(e.Path, trust, verifyNames)
+		if err != nil {
+			return err
+		}
+		failed := rep.Failed()
+		if len(failed) == 0 {
+			continue
+		}
+		e.Unauthenticated = true
+		if o.allowUnauthenticated {
+			fmt.Fprintf(d.stderr, "probity: note: %s is charted unauthenticated: %s\n", e.Path, failed[0].Detail)
+			continue
+		}
+		refused++
+		for _, c := range failed {
+			fmt.Fprintf(d.stderr, "probity: %s: not authenticated: %s\n", e.Path, c.Detail)
+		}
+	}
+	if refused > 0 {
+		return rejected("%d of %d records could not be authenticated; nothing was charted (--allow-unauthenticated charts them, marked as such)", refused, len(loaded.Entries))
 	}
 	return nil
 }
@@ -212,7 +273,7 @@ func writeTrendChart(t *trend.Trend, prefix string, loaded *trend.Loaded, d deps
 func trendProtected(loaded *trend.Loaded, chartDir string) []string {
 	var out []string
 	recordFolder := func(dir string) {
-		for _, name := range []string{record.JSONFile, record.PDFFile, signature.FileName} {
+		for _, name := range []string{record.JSONFile, record.PDFFile, signature.FileName, signature.SignaturesFile} {
 			out = append(out, filepath.Join(dir, name))
 		}
 	}
@@ -245,6 +306,9 @@ func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
 		head += " — " + sys
 	}
 	fmt.Fprintln(w, head)
+	if len(t.Unauthenticated) > 0 {
+		fmt.Fprintf(w, "UNAUTHENTICATED records charted: %s (their signatures did not authenticate them, or were not checked)\n", strings.Join(t.Unauthenticated, ", "))
+	}
 	fmt.Fprintf(w, "plan: %s model, %s method, %s design; ceiling %s, confidence %s\n",
 		c.Model, c.Method, c.Design, trendTrimPercent(c.Ceiling), trendTrimPercent(c.Confidence))
 	fmt.Fprintf(w, "flag ↑: one-sided Fisher's exact test against %s, p ≤ %s per comparison\n",

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"crypto/ed25519"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
@@ -9,6 +10,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -16,6 +18,7 @@ import (
 	"probity/internal/needs"
 	"probity/plan"
 	"probity/plan/record"
+	"probity/plan/record/signature"
 	trendpkg "probity/plan/trend"
 )
 
@@ -23,11 +26,20 @@ import (
 // go test ./plan/trend -run TestMonthlyFixtures -update).
 const trendMonthly = "../../testdata/trend/monthly"
 
+// trendFixtureSeal is the public key the monthly fixtures are sealed with.
+const trendFixtureSeal = "../../testdata/trend/fixture-seal.pub"
+
 // trendRun runs probity with args and returns stdout, stderr and the exit
 // code, with test deps whose version is a release's (it is printed in the
-// chart's PDF).
+// chart's PDF). A trend given no trust input trusts the key the monthly
+// fixtures are sealed with.
 func trendRun(t *testing.T, args ...string) (string, string, int) {
 	t.Helper()
+	if len(args) > 0 && args[0] == "trend" && !slices.ContainsFunc(args, func(a string) bool {
+		return a == "--pub" || a == "--signers" || a == "--allow-unauthenticated"
+	}) {
+		args = append(args, "--pub", trendFixtureSeal)
+	}
 	code, stdout, stderr := runTest(t, args, withVersion("0.1.0"))
 	return stdout, stderr, code
 }
@@ -50,14 +62,14 @@ func TestTrendYearRejectsLatest(t *testing.T) {
 	if code != exitRejected {
 		t.Fatalf("exit %d, want %d (the 2026-12 record rejects)\n%s", code, exitRejected, errOut)
 	}
-	if want := "probity: latest period 2026-12 was rejected (record 7c8de5a47e55, " + trendMonth("2026-12") + ")\n"; errOut != want {
+	if want := "probity: latest period 2026-12 was rejected (record 39e27c33410cc91b03d93d025b013db3, " + trendMonth("2026-12") + ")\n"; errOut != want {
 		t.Errorf("stderr = %q, want %q", errOut, want)
 	}
 	trendGolden(t, "year.txt", strings.ReplaceAll(out, dir, "OUT"))
 	for _, want := range []string{
 		"router-b   flagged: 2026-10, 2026-11, 2026-12",
 		"  2026-10      613      5   0.816%   1.997%      2%  ACCEPT  0.0310 ↑ higher",
-		"latest period 2026-12 (record 7c8de5a47e55): REJECT",
+		"latest period 2026-12 (record 39e27c33410cc91b03d93d025b013db3): REJECT",
 	} {
 		if !strings.Contains(out, want) {
 			t.Errorf("stdout lacks %q", want)
@@ -105,7 +117,7 @@ func trendPDFText(t *testing.T, path string) {
 		t.Fatalf("pdftotext: %v", err)
 	}
 	s := string(txt)
-	for _, want := range []string{"Trend of acceptance records — ticket-router 4.2", "Latest period 2026-12: REJECT (record 7c8de5a47e55)", "0.031 ↑", "page 1 of 1"} {
+	for _, want := range []string{"Trend of acceptance records — ticket-router 4.2", "Latest period 2026-12: REJECT (record 39e27c33410cc91b03d93d025b013db3)", "0.031 ↑", "page 1 of 1"} {
 		if !strings.Contains(s, want) {
 			t.Errorf("PDF text lacks %q", want)
 		}
@@ -160,7 +172,7 @@ func TestTrendElevenMonthsAccepts(t *testing.T) {
 		var skip json.RawMessage
 		dec.Decode(&skip)
 	}
-	if got := strings.Join(keys, ","); got != "format,tool_version,system,system_version,class,baseline,alpha,test,periods,candidates,latest,warnings,chart,skipped" {
+	if got := strings.Join(keys, ","); got != "format,tool_version,system,system_version,class,baseline,alpha,test,periods,candidates,latest,warnings,unauthenticated,chart,skipped" {
 		t.Errorf("keys %s", got)
 	}
 }
@@ -181,17 +193,29 @@ func TestTrendBaselineAndAlpha(t *testing.T) {
 	}
 }
 
-// trendWrite writes r into dir/name as canonical record.json.
+// trendWrite writes r as a record folder dir/NAME (name without .json):
+// its id recomputed, record.json canonical and sealed (record.sig) with the
+// key the monthly fixtures are sealed with, so trend authenticates it. It
+// returns the path of record.json.
 func trendWrite(t *testing.T, dir, name string, r *record.Record) string {
 	t.Helper()
+	folder := filepath.Join(dir, strings.TrimSuffix(name, ".json"))
+	if err := os.MkdirAll(folder, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	_, key, _ := signature.GenerateKey(bytes.NewReader(bytes.Repeat([]byte{0x7e}, 64)))
+	r.SigningKey = signature.Fingerprint(key.Public().(ed25519.PublicKey))
+	var err error
+	if r.RecordID, err = record.ID(r); err != nil {
+		t.Fatal(err)
+	}
 	data, err := record.Encode(r)
 	if err != nil {
 		t.Fatal(err)
 	}
-	p := filepath.Join(dir, name)
-	if err := os.WriteFile(p, data, 0o644); err != nil {
-		t.Fatal(err)
-	}
+	p := filepath.Join(folder, record.JSONFile)
+	writeFile(t, p, data)
+	writeFile(t, filepath.Join(folder, signature.FileName), signature.Sign(key, map[string][]byte{record.JSONFile: data}).Marshal())
 	return p
 }
 
@@ -262,15 +286,15 @@ func TestTrendBadInput(t *testing.T) {
 		}, []string{"feb.json line ", ", field candidates[0].upper_bound: missing"}},
 		{"repeated period", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-03")
-			r.RecordID = "0123456789ab"
+			r.Date = "2026-03-29"
 			return []string{trendMonthly, trendWrite(t, dir, "march-again.json", r)}
-		}, []string{"period 2026-03 is repeated: " + trendMonth("2026-03") + " and ", "march-again.json are both records of it",
+		}, []string{"period 2026-03 is repeated: " + trendMonth("2026-03") + " and ", filepath.Join("march-again", "record.json") + " are both records of it",
 			"hint: keep the record that was signed off"}},
 		{"lot plan mixed with stream plan", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
 			r.Plan.Model, r.Plan.Population = plan.ModelHypergeometric, 41250
 			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
-		}, []string{"april.json: plan.model is hypergeometric here but binomial in " + trendMonth("2026-03") + " (period 2026-03): records of different classes of plan cannot share a trend",
+		}, []string{filepath.Join("april", "record.json") + ": plan.model is hypergeometric here but binomial in " + trendMonth("2026-03") + " (period 2026-03): records of different classes of plan cannot share a trend",
 			"hint: a trend compares audits of one model, method, design, ceiling and confidence"}},
 		{"sequential mixed with fixed", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
@@ -291,7 +315,7 @@ func TestTrendBadInput(t *testing.T) {
 			r := trendLoadMonth(t, "2026-04")
 			r.Period = ""
 			return []string{trendWrite(t, dir, "april.json", r)}
-		}, []string{"april.json line 6, field period: empty: a trend needs records of audits drawn for a period", "hint: draw each month's sample with 'probity draw --period LABEL'"}},
+		}, []string{filepath.Join("april", "record.json") + " line 9, field period: empty: a trend needs records of audits drawn for a period", "hint: draw each month's sample with 'probity draw --period LABEL'"}},
 		{"unknown baseline", func(t *testing.T, dir string) []string { return []string{trendMonthly, "--baseline", "2025-12"} },
 			[]string{`baseline period "2025-12" is not among the records`, "hint: the periods are 2026-01, 2026-02"}},
 		{"alpha zero", func(t *testing.T, dir string) []string { return []string{trendMonthly, "--alpha", "0"} },
@@ -337,7 +361,8 @@ func TestTrendOptionsValidate(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
 	good := []trendOptions{
-		{alpha: 0.05}, {alpha: 0.5}, {alpha: 1e-6, chart: filepath.Join(dir, "x")}, {alpha: 0.05, chart: "trend"},
+		{alpha: 0.05, pub: []string{"k.pub"}}, {alpha: 0.5, signers: "s.yaml"}, {alpha: 1e-6, chart: filepath.Join(dir, "x"), allowUnauthenticated: true},
+		{alpha: 0.05, chart: "trend", pub: []string{"k.pub"}},
 	}
 	for _, o := range good {
 		if err := o.validate(); err != nil {
@@ -345,8 +370,10 @@ func TestTrendOptionsValidate(t *testing.T) {
 		}
 	}
 	bad := []trendOptions{
-		{alpha: 0}, {alpha: 0.51}, {alpha: -1}, {alpha: 0.05, chart: dir + string(filepath.Separator)},
-		{alpha: 0.05, chart: filepath.Join(dir, "x.PNG")},
+		{alpha: 0, pub: []string{"k.pub"}}, {alpha: 0.51, pub: []string{"k.pub"}}, {alpha: -1, pub: []string{"k.pub"}},
+		{alpha: 0.05, chart: dir + string(filepath.Separator), pub: []string{"k.pub"}},
+		{alpha: 0.05, chart: filepath.Join(dir, "x.PNG"), pub: []string{"k.pub"}},
+		{alpha: 0.05}, // nothing to authenticate the records with
 	}
 	for _, o := range bad {
 		if err := o.validate(); err == nil {
@@ -404,6 +431,10 @@ func TestTrendOfRealRecords(t *testing.T) {
 		t.Fatalf("plan: exit %d: %s", code, e)
 	}
 	classes := []string{"billing", "tech", "account"}
+	key := at("operator-key")
+	if _, e, code := trendRun(t, "keygen", "--out", key); code != exitOK {
+		t.Fatalf("keygen: exit %d: %s", code, e)
+	}
 	for mi, m := range []string{"2026-01", "2026-02"} {
 		// The log: 4000 rows; truth cycles through the classes; router-a is
 		// always right; router-b is wrong on every 40th row in 2026-02.
@@ -434,12 +465,12 @@ func TestTrendOfRealRecords(t *testing.T) {
 			t.Fatal(err)
 		}
 		_, e, code := trendRun(t, "record", "--plan", planPath, "--draw", drawDir, "--labels", labelsPath,
-			"--out", at("audits", m, "record"), "--date", fmt.Sprintf("2026-%02d-03", mi+2))
+			"--out", at("audits", m, "record"), "--date", fmt.Sprintf("2026-%02d-03", mi+2), "--sign-key", key)
 		if code != exitOK && code != exitRejected {
 			t.Fatalf("record %s: exit %d: %s", m, code, e)
 		}
 	}
-	out, errOut, code := trendRun(t, "trend", at("audits"), "--json")
+	out, errOut, code := trendRun(t, "trend", at("audits"), "--json", "--pub", key+".pub")
 	if code != exitRejected {
 		t.Fatalf("trend: exit %d, want 1 (2026-02 rejects): %s", code, errOut)
 	}
@@ -503,4 +534,58 @@ func trendLabel(t *testing.T, worksheet string, truth map[string]string) []byte 
 	w := csv.NewWriter(&buf)
 	w.WriteAll(rows)
 	return buf.Bytes()
+}
+
+// TestTrendAuthenticatesEveryRecord: an edited record.json is refused (it
+// used to be charted), as is a trend with nothing to trust; with
+// --allow-unauthenticated it is charted and every output says so.
+func TestTrendAuthenticatesEveryRecord(t *testing.T) {
+	t.Parallel()
+	dir := t.TempDir()
+	months := filepath.Join(dir, "monthly")
+	entries, _ := os.ReadDir(trendMonthly)
+	for _, e := range entries {
+		os.MkdirAll(filepath.Join(months, e.Name()), 0o755)
+		for _, f := range []string{"record.json", "record.sig"} {
+			writeFile(t, filepath.Join(months, e.Name(), f), mustRead(t, filepath.Join(trendMonthly, e.Name(), f)))
+		}
+	}
+	may := filepath.Join(months, "2026-05", "record.json")
+	js := mustRead(t, may)
+	writeFile(t, may, bytes.Replace(js, []byte(`"errors": 2,`), []byte(`"errors": 0,`), 1))
+
+	// Nothing to trust: a usage error, before anything is read.
+	_, errOut, code := trendRun(t, "trend", months, "--signers", "")
+	if code != exitBadInput || !strings.Contains(errOut, "trend authenticates every record it charts") {
+		t.Errorf("no trust inputs: exit %d: %s", code, errOut)
+	}
+	chart := filepath.Join(dir, "out", "trend")
+	out, errOut, code := trendRun(t, "trend", months, "--pub", trendFixtureSeal, "--chart", chart)
+	if code != exitRejected || out != "" ||
+		!strings.Contains(errOut, "probity: "+may+": not authenticated: ") || !strings.Contains(errOut, "the file was changed after signing") ||
+		!strings.Contains(errOut, "probity: 1 of 12 records could not be authenticated; nothing was charted") {
+		t.Errorf("edited record: exit %d\n%s%s", code, out, errOut)
+	}
+	if _, err := os.Stat(chart + ".png"); err == nil {
+		t.Errorf("a refused trend wrote a chart")
+	}
+
+	out, errOut, code = trendRun(t, "trend", months, "--pub", trendFixtureSeal, "--allow-unauthenticated", "--chart", chart)
+	if code != exitRejected || !strings.Contains(out, "UNAUTHENTICATED records charted: 2026-05") ||
+		!strings.Contains(errOut, "probity: note: "+may+" is charted unauthenticated: ") {
+		t.Errorf("allowed: exit %d\n%s%s", code, out, errOut)
+	}
+	if text := strings.Join(strings.Fields(pdfText(t, chart+".pdf")), " "); !strings.Contains(text, "UNAUTHENTICATED records charted (marked *): 1 of 12, not authenticated by their signatures or not checked: 2026-05") {
+		t.Errorf("the chart's PDF does not say what it charted unauthenticated:\n%s", text)
+	}
+	out, _, _ = trendRun(t, "trend", months, "--allow-unauthenticated", "--json")
+	var rep struct {
+		Unauthenticated []string `json:"unauthenticated"`
+		Periods         []struct {
+			Authenticated bool `json:"authenticated"`
+		} `json:"periods"`
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil || len(rep.Unauthenticated) != 12 || rep.Periods[0].Authenticated {
+		t.Errorf("nothing trusted: every record is unauthenticated: %v %+v", err, rep)
+	}
 }

@@ -15,7 +15,8 @@ import (
 // verifyOptions are the flags of probity verify.
 type verifyOptions struct {
 	dir      string
-	pub      string
+	pub      []string
+	signers  string
 	planPath string
 	drawDir  string
 	labels   string
@@ -32,17 +33,29 @@ type verifyOptions struct {
 func newVerifyCommand(d deps) *cobra.Command {
 	opts := &verifyOptions{}
 	cmd := &cobra.Command{
-		Use:   "verify RECDIR [--pub KEY.pub] [--plan PLAN.yaml] [--draw DIR] [--labels WORKSHEET.csv] [--log FILE]",
-		Short: "Check a record's signatures and recompute it from its inputs",
+		Use:   "verify RECDIR [--pub KEY.pub] [--signers FILE] [--plan PLAN.yaml] [--draw DIR] [--labels WORKSHEET.csv] [--log FILE]",
+		Short: "Authenticate a record's signatures and recompute it from its inputs",
 		Long: `verify checks an acceptance record folder and prints each check with its
-outcome:
+outcome. It says "verified" (exit 0) only when the record is authenticated
+and every check it ran passed:
 
-  - record.json is well formed and in canonical form (not edited by hand);
-  - record.sig's signatures over record.json and record.pdf are valid, and
-    the signing key is the one record.json names; with --pub, that it is
-    your trusted key (without --pub the key is only reported);
-  - record.pdf is byte for byte the rendering of record.json (A4 or Letter,
-    the built-in wording or --templates), when this probity version made it;
+  - record.json is a record of this format in canonical form (not edited by
+    hand), and its record id is the digest of its content;
+  - the operator's seal (record.sig) is valid over record.json and the PDF
+    as issued, made with the key record.json names, and that key is
+    trusted: one of the --pub keys, or an operator in the --signers file;
+  - every person's signature (signatures.txt, from probity sign) is valid,
+    bound to record.json, to the seal and to the signatures before it, made
+    with the key the --signers file gives that person in that role, and
+    dated neither before the record's date nor after this computer's clock;
+  - the record carries at least one signature, and each one checked: a
+    record nothing authenticates fails;
+  - record.pdf is byte for byte the rendering of record.json and its
+    signatures (A4 or Letter, the built-in wording or --templates), and each
+    signer's signature and the seal cover the rendering they were shown.
+    For a record made by another probity version, whose layout may differ,
+    a PDF that is not the rendering passes only when it is exactly the PDF
+    the last trusted signature signed; the limitation is printed ("limit");
   - with --plan, --draw, --labels: each input's SHA-256 is the one the
     record holds; given all three, the judgement is recomputed and compared
     with record.json field by field (a record judged on double labels also
@@ -51,10 +64,18 @@ outcome:
     and compared with the draw folder, so the items labeled are exactly the
     ones chance picked.
 
+The keys probity demo signs with are published with the source: a seal or
+signature made with one is reported as a demonstration and never
+authenticates, so verify exits 1 on a demo record whatever is trusted.
+
+` + signersHelp + `
+
 ` + exitCodesHelp + `
 
-verify exits 0 when every check it ran passed and 1 when any failed (the
-failing checks say which file and what); 2 on bad usage or unreadable input.`,
+verify exits 0 when the record is authenticated and every check it ran
+passed, and 1 when anything could not be authenticated or any check failed
+(the failing checks say which file and what); 2 on bad usage or unreadable
+input.`,
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) != 1 {
 				return inputerr.Errorf("verify needs exactly one record folder, got %d arguments", len(args)).WithHint("probity verify RECDIR [--pub KEY.pub]")
@@ -76,7 +97,8 @@ failing checks say which file and what); 2 on bad usage or unreadable input.`,
 		},
 	}
 	fl := cmd.Flags()
-	fl.StringVar(&opts.pub, "pub", "", "trusted public key (NAME.pub from probity keygen)")
+	fl.StringArrayVar(&opts.pub, "pub", nil, "a public `KEY.pub` (from probity keygen) trusted to seal records; repeatable")
+	fl.StringVar(&opts.signers, "signers", "", "the signers `FILE`: whose key signs in which role")
 	fl.StringVar(&opts.planPath, "plan", "", "the plan file, to check and recompute from")
 	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder, to check and recompute from")
 	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet, to check and recompute from")
@@ -94,16 +116,13 @@ func runVerify(d deps, o *verifyOptions) error {
 		Log:          o.logPath,
 		TemplatesDir: o.templatesDir,
 		ToolVersion:  d.version,
-		Names: verification.Names{TrustedKey: "--pub", Templates: "--templates", Plan: "--plan", Draw: "--draw", Labels: "--labels",
-			Log: "--log", Second: "--second", Adjudications: "--adjudicated"},
+		Names:        verifyNames,
 	}
-	if o.pub != "" {
-		k, err := loadPublicKey(o.pub)
-		if err != nil {
-			return err
-		}
-		in.TrustedKey, in.TrustedKeyPath = k, o.pub
+	trust, err := loadTrust(d, o.pub, o.signers)
+	if err != nil {
+		return err
 	}
+	in.Trust = trust
 	set, err := templates.Load(o.templatesDir)
 	if err != nil {
 		return inputerr.SetHint(err, "pass the --templates folder the record was made with")
@@ -122,8 +141,36 @@ func runVerify(d deps, o *verifyOptions) error {
 	if failed := rep.Failed(); len(failed) > 0 {
 		return rejected("verification failed: %d of %d checks (%s)", len(failed), len(rep.Checks), failed[0].Detail)
 	}
-	fmt.Fprintf(d.stdout, "verified: %d checks passed\n", len(rep.Checks))
+	passed := fmt.Sprintf("%d checks passed", rep.Count(verification.OK))
+	if n := rep.Count(verification.Limited); n > 0 {
+		passed += fmt.Sprintf(", %d with a stated limitation", n)
+	}
+	fmt.Fprintf(d.stdout, "verified: %s\n", passed)
 	return nil
+}
+
+// verifyNames are the flags verify and trend take each input from.
+var verifyNames = verification.Names{TrustedKey: "--pub", Signers: "--signers", Templates: "--templates", Plan: "--plan", Draw: "--draw",
+	Labels: "--labels", Log: "--log", Second: "--second", Adjudications: "--adjudicated"}
+
+// loadTrust reads the trusted keys and the signers file, with the clock.
+func loadTrust(d deps, pubs []string, signers string) (verification.Trust, error) {
+	t := verification.Trust{Now: d.now()}
+	for _, p := range pubs {
+		k, err := loadPublicKey(p)
+		if err != nil {
+			return t, err
+		}
+		t.Keys = append(t.Keys, verification.TrustedKey{Key: k, Path: p})
+	}
+	if signers != "" {
+		s, err := loadSigners(signers)
+		if err != nil {
+			return t, err
+		}
+		t.Signers = s
+	}
+	return t, nil
 }
 
 // verifyStatus is how each outcome is printed.
@@ -133,6 +180,8 @@ func verifyStatus(s verification.Status) string {
 		return "ok"
 	case verification.Failed:
 		return "FAIL"
+	case verification.Limited:
+		return "limit"
 	}
 	return "skip"
 }

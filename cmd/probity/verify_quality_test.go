@@ -24,7 +24,11 @@ func TestVerifyRecomputesDoubleLabeledRecord(t *testing.T) {
 	adjTruth := fx.adjudication(t, "adj-truth.csv", [2]string{"1", truth})
 	adjOther := fx.adjudication(t, "adj-other.csv", [2]string{"1", other(truth)})
 	recA, recB := filepath.Join(fx.dir, "rec-a"), filepath.Join(fx.dir, "rec-b")
-	base := []string{"record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--second", second, "--date", "2026-12-01"}
+	key := filepath.Join(fx.dir, "key")
+	if code, _, stderr := lqRun(t, "keygen", "--out", key); code != exitOK {
+		t.Fatal(stderr)
+	}
+	base := []string{"record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first, "--second", second, "--date", "2026-12-01", "--sign-key", key}
 	if code, _, stderr := lqRun(t, append(base, "--out", recA, "--adjudicated", adjTruth)...); code != exitOK {
 		t.Fatalf("record: exit %d: %s", code, stderr)
 	}
@@ -35,7 +39,7 @@ func TestVerifyRecomputesDoubleLabeledRecord(t *testing.T) {
 		t.Errorf("records from different adjudications share the id %s", a)
 	}
 
-	inputs := []string{"--plan", fx.planPath, "--draw", fx.draw, "--labels", first}
+	inputs := []string{"--pub", key + ".pub", "--plan", fx.planPath, "--draw", fx.draw, "--labels", first}
 	code, stdout, stderr := lqRun(t, append(append([]string{"verify", recA}, inputs...), "--second", second, "--adjudicated", adjTruth)...)
 	if code != exitOK || !strings.Contains(stdout, "judgement recomputed from the inputs: every field of record.json agrees") ||
 		!strings.Contains(stdout, "matches the record's second-worksheet fingerprint") ||

@@ -40,19 +40,22 @@ func TestVerifyAllGood(t *testing.T) {
 		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
 	}
 	for _, want := range []string{
-		"record.json is a canonical record", "record.json: signature valid", "record.pdf: signature valid",
-		"signed with the trusted key", "SHA-256 matches the record's plan fingerprint", "labels fingerprint",
+		"record.json is a canonical record", "recomputes from the content of record.json", "record.json: seal valid (key sha256:", "record.pdf: seal valid",
+		"sealed by the trusted key " + pub, "SHA-256 matches the record's plan fingerprint", "labels fingerprint",
 		"judgement recomputed from the inputs: every field of record.json agrees",
-		"sample drawn again from " + fx.logPath, "record.pdf is exactly the rendering of record.json (a4)", "verified: 12 checks passed",
+		"record.json authenticated: sealed by the trusted key " + pub, "not yet signed: prepared, reviewed, approved",
+		"sample drawn again from " + fx.logPath, "record.pdf is exactly the rendering of record.json (a4)", "verified: 14 checks passed\n",
 	} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("stdout lacks %q:\n%s", want, stdout)
 		}
 	}
-	// Without --pub the key is reported, not trusted; still exit 0.
-	code, stdout, _ = runProbity(t, "verify", rec)
-	if code != exitOK || !strings.Contains(stdout, "not checked against a trusted key (pass --pub KEY.pub)") {
-		t.Errorf("exit %d\n%s", code, stdout)
+	// Without --pub or --signers nothing vouches for the seal's key: the
+	// record is not authenticated, exit 1 (today: "verified", exit 0).
+	code, stdout, stderr = runProbity(t, "verify", rec)
+	if code != exitRejected || !strings.Contains(stdout, "FAIL  sealed with key sha256:") ||
+		!strings.Contains(stdout, "which was not checked: pass --pub KEY.pub or --signers FILE") || strings.Contains(stdout, "verified") {
+		t.Errorf("exit %d\n%s%s", code, stdout, stderr)
 	}
 }
 
@@ -109,15 +112,19 @@ func TestTamperingIsDetected(t *testing.T) {
 		{"removed row", []string{rec, "--plan", fx.planPath, "--draw", fx.draw, "--labels", removed},
 			[]string{"FAIL  " + removed + ": SHA-256", "FAIL  the inputs do not give a record: " + removed + ": rows differ from the ledger — 1 missing: item 3"}},
 		{"edited record.json", []string{edited, "--pub", pub},
-			[]string{"FAIL  record.json has SHA-256", "but record.sig signed", "the file was changed after signing (in " + edited + ")"}},
+			[]string{"FAIL  record.json has SHA-256", "but record.sig signed", "the file was changed after signing (in " + edited + ")",
+				"FAIL  " + filepath.Join(edited, "record.json") + ": record_id"}},
 		{"swapped PDF", []string{swapped, "--pub", pub},
 			[]string{"FAIL  record.pdf has SHA-256", "the file was changed after signing (in " + swapped + ")"}},
 		{"another key", []string{rec, "--pub", otherKey + ".pub"},
-			[]string{"FAIL  record.sig was signed with key sha256:", "not with --pub " + otherKey + ".pub"}},
+			[]string{"FAIL  sealed with key sha256:", "which is not a trusted key (" + otherKey + ".pub)"}},
 		{"swapped PDF, unsigned", []string{unsignedSwap},
-			[]string{"FAIL  " + filepath.Join(unsignedSwap, "record.pdf") + " is not the rendering of record.json with the built-in wording by this probity version"}},
+			[]string{"FAIL  " + filepath.Join(unsignedSwap, "record.pdf") + " is not the rendering of record.json with the built-in wording by this probity version",
+				"FAIL  " + filepath.Join(unsignedSwap, "record.sig") + " is missing, but record.json says the record was sealed with sha256:"}},
 		{"unsigned but --pub", []string{otherRec, "--pub", pub},
-			[]string{"FAIL  " + filepath.Join(otherRec, "record.sig") + " is missing: the record is not signed"}},
+			[]string{"FAIL  " + filepath.Join(otherRec, "record.sig") + " is missing: the record has no operator's seal to check against --pub"}},
+		{"unsigned", []string{otherRec},
+			[]string{"FAIL  nothing authenticates the record: it carries neither an operator's seal (record.sig) nor people's signatures (signatures.txt)"}},
 	}
 	for _, c := range cases {
 		code, stdout, stderr := runProbity(t, append([]string{"verify"}, c.args...)...)

@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
 )
 
 // A command whose deps.dir is set takes the relative paths on its command
@@ -16,17 +17,18 @@ import (
 // pathFlags are the flags of each command whose value is a path.
 var pathFlags = map[string][]string{
 	"plan":     {"out"},
-	"keygen":   {"out"},
+	"keygen":   {"out", "passphrase-file"},
 	"draw":     {"plan", "log", "out", "check", "anticipated", "selected", "counts"},
 	"progress": {"plan", "draw", "labels"},
-	"record":   {"plan", "draw", "labels", "out", "signoff", "sign-key", "templates", "second", "adjudicated"},
-	"verify":   {"pub", "plan", "draw", "labels", "log", "second", "adjudicated", "templates"},
-	"trend":    {"chart"},
+	"record":   {"plan", "draw", "labels", "out", "signoff", "sign-key", "passphrase-file", "templates", "second", "adjudicated"},
+	"sign":     {"key", "passphrase-file", "signers", "templates"},
+	"verify":   {"pub", "signers", "plan", "draw", "labels", "log", "second", "adjudicated", "templates"},
+	"trend":    {"chart", "pub", "signers"},
 	"demo":     {"out"},
 }
 
 // pathArgs are the commands whose arguments are paths.
-var pathArgs = map[string]bool{"verify": true, "trend": true}
+var pathArgs = map[string]bool{"verify": true, "trend": true, "sign": true}
 
 // takePathsFrom makes cmd's relative path flags and path arguments paths
 // under dir (nothing when dir is ""). It runs before the command's own
@@ -38,6 +40,16 @@ func takePathsFrom(dir string, cmd *cobra.Command, args []string) error {
 	}
 	for _, name := range pathFlags[cmd.Name()] {
 		f := cmd.Flags().Lookup(name)
+		if list, ok := f.Value.(pflag.SliceValue); ok { // a repeatable flag
+			paths := list.GetSlice()
+			for i, p := range paths {
+				paths[i] = inFolder(dir, p)
+			}
+			if err := list.Replace(paths); err != nil {
+				return err
+			}
+			continue
+		}
 		if v := f.Value.String(); v != "" {
 			if err := f.Value.Set(inFolder(dir, v)); err != nil {
 				return err

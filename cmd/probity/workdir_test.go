@@ -19,7 +19,8 @@ var notPathFlags = map[string][]string{
 	"plan": {"anticipated", "budget", "candidate", "candidates", "ceiling", "classes", "confidence", "design", "method",
 		"multiplicity", "negative", "population", "positive", "producer-risk", "require", "seed", "system", "system-version", "thresholds"},
 	"draw":   {"allocation", "band", "dedupe", "format", "id", "period", "show", "sql", "strata", "table", "where"},
-	"record": {"bound", "date", "paper", "use"},
+	"record": {"bound", "date", "paper", "use", "supersedes"},
+	"sign":   {"role", "name"},
 	"trend":  {"baseline"},
 }
 

@@ -1,7 +1,8 @@
 // Package needs is how a test asks for a tool from outside Go — Debian's
 // /usr/bin/python3 with scipy or statsmodels, Rscript with the survey
-// package, poppler-utils, openssl, the PostgreSQL and ClickHouse programs,
-// chromium, the go command — as a reference or a driver.
+// package, poppler-utils, openssl, ssh-keygen, the PostgreSQL and
+// ClickHouse programs, chromium, the go command, the shell tools of a
+// documented recipe — as a reference or a driver.
 //
 // A missing tool skips the test on a developer's machine and fails it when
 // the CI environment variable is set, so CI cannot pass without the
@@ -39,6 +40,13 @@ var debianPackage = map[string]string{
 	"clickhouse-server": "clickhouse-server",
 	"clickhouse-client": "clickhouse-client",
 	"go":                "golang-go",
+	"ssh-keygen":        "openssh-client",
+	"sh":                "dash",
+	"sed":               "sed",
+	"awk":               "mawk",
+	"sha256sum":         "coreutils",
+	"cut":               "coreutils",
+	"base64":            "coreutils",
 }
 
 // pythonPackage names the Debian package of each Python module.

@@ -300,7 +300,15 @@ func panelTitle(c draw.Canvas, left vg.Length, s trend.Series, alpha float64) {
 func drawHeader(t *trend.Trend, c draw.Canvas, left vg.Length) {
 	first, last := t.Periods[0].Label, t.Latest.Label
 	title := fmt.Sprintf("Error per period against the ceiling, %s to %s", first, last)
-	c.FillText(style(sansBold(11.5), inkCol), vg.Point{X: left, Y: c.Max.Y - 16}, title)
+	tsty := style(sansBold(11.5), inkCol)
+	c.FillText(tsty, vg.Point{X: left, Y: c.Max.Y - 16}, title)
+	if n := len(t.Unauthenticated); n > 0 {
+		note := "UNAUTHENTICATED: " + strings.Join(t.Unauthenticated, ", ")
+		if n > 3 {
+			note = fmt.Sprintf("UNAUTHENTICATED: %d of %d records", n, len(t.Periods))
+		}
+		c.FillText(style(sansBold(9.5), rejectCol), vg.Point{X: left + tsty.Width(title) + 16, Y: c.Max.Y - 15}, note)
+	}
 	y := c.Min.Y + 5
 	x := left
 	entry := func(th plot.Thumbnailer, label string) {

@@ -182,6 +182,27 @@ func (p *page) header(t *trend.Trend) {
 	}
 	p.font("B", 10, col)
 	p.line(fmt.Sprintf("Latest period %s: %s (record %s)", t.Latest.Label, t.Latest.OverallVerdict, t.Latest.RecordID), 5.5)
+	if len(t.Unauthenticated) > 0 {
+		p.font("B", 9, reject)
+		p.line(fitText(p.pdf, fmt.Sprintf("UNAUTHENTICATED records charted (marked *): %d of %d, not authenticated by their signatures or not checked: %s",
+			len(t.Unauthenticated), len(t.Periods), strings.Join(t.Unauthenticated, ", ")), p.w), 4.8)
+	}
+}
+
+// shortID is the first 12 digits of a record id.
+func shortID(id string) string {
+	if len(id) > 12 {
+		return id[:12]
+	}
+	return id
+}
+
+// authMark marks an unauthenticated record in the table.
+func authMark(p trend.Period) string {
+	if p.Authenticated {
+		return ""
+	}
+	return " *"
 }
 
 // table draws one row per period.
@@ -223,7 +244,8 @@ func (p *page) table(t *trend.Trend, candW, size, rowH float64) {
 		pdf.SetX(p.x)
 		p.font("", size, ink)
 		pdf.CellFormat(colPeriod, rowH, per.Label, "", 0, "L", zebra, 0, "")
-		pdf.CellFormat(colRecord, rowH, per.RecordID, "", 0, "L", zebra, 0, "")
+		// The first 12 digits of the id: enough to find the record.
+		pdf.CellFormat(colRecord, rowH, shortID(per.RecordID)+authMark(per), "", 0, "L", zebra, 0, "")
 		vc := accept
 		if per.OverallVerdict == record.Reject {
 			vc = reject

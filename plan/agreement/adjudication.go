@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"probity/plan/inputerr"
+	"probity/plan/personname"
 	"probity/sampling/drawfolder"
 )
 
@@ -123,6 +124,11 @@ func parseAdjudication(name string, line int, rec, classes []string) (Adjudicati
 		return a, e
 	}
 	a.FinalLabel = final
+	if a.DecidedBy, err = personname.Clean(a.DecidedBy); err != nil {
+		e := bad("decided_by", "decided_by of item %d: %v", a.Item, err).(*inputerr.Error)
+		e.Hint = "retype the name: it holds a character that prints nothing or reorders the text around it"
+		return a, e
+	}
 	if a.DecidedBy == "" {
 		return a, bad("decided_by", "decided_by is empty; name who decided")
 	}

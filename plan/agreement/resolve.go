@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"probity/plan/inputerr"
+	"probity/plan/personname"
 	"probity/plan/record"
 	"probity/sampling/drawfolder"
 )
@@ -336,11 +337,10 @@ func unadjudicatedError(in Input, open []int) error {
 		Wrap(ErrUnadjudicated).WithHint("add one row per item")
 }
 
-// sameLabeler compares two labeler names, ignoring case and surrounding
-// space. Empty names are never the same.
+// sameLabeler compares two labeler names as personname.Same does (NFC,
+// trimmed, ignoring case). Empty names are never the same.
 func sameLabeler(a, b string) bool {
-	a, b = strings.TrimSpace(a), strings.TrimSpace(b)
-	return a != "" && strings.EqualFold(a, b)
+	return strings.TrimSpace(a) != "" && personname.Same(a, b)
 }
 
 // checkIndependence warns (or, under Strict, refuses) when one person gave

@@ -393,3 +393,11 @@ func TestResolveStrictAcceptsAnAdjudicatedBlankSide(t *testing.T) {
 		t.Errorf("disagreement entry %+v", d)
 	}
 }
+
+// TestSameLabelerNormalises: one person's name typed with a precomposed
+// and with a combining accent, or in another case, is one labeler.
+func TestSameLabelerNormalises(t *testing.T) {
+	if !sameLabeler("Jörg", " jo\u0308rg") || sameLabeler("", "") || sameLabeler("ann", "anne") {
+		t.Errorf("sameLabeler does not compare normalised names")
+	}
+}

@@ -82,6 +82,12 @@ func (r *Record) Normalize() {
 	if r.Method.Assumptions == nil {
 		r.Method.Assumptions = []string{}
 	}
+	if r.Wording.Replaced == nil {
+		r.Wording.Replaced = []string{}
+	}
+	if r.Caveats == nil {
+		r.Caveats = []Caveat{}
+	}
 	cands := make([]Candidate, len(r.Candidates))
 	copy(cands, r.Candidates)
 	for i := range cands {

@@ -2,9 +2,14 @@ package record
 
 import (
 	"bytes"
-	"probity/plan"
+	"os"
+	"os/exec"
+	"path/filepath"
 	"strings"
 	"testing"
+
+	"probity/internal/needs"
+	"probity/plan"
 )
 
 func fixture() *Record {
@@ -98,30 +103,66 @@ func TestIsCanonicalRejectsEdits(t *testing.T) {
 }
 
 func TestID(t *testing.T) {
-	f := Fingerprints{Plan: "a", Log: "b", Manifest: "c", Ledger: "d", Worksheet: "e", Labels: "f"}
-	id := ID(f, nil)
-	if len(id) != IDLength {
-		t.Fatalf("id %q has length %d", id, len(id))
+	r := fixture()
+	id, err := ID(r)
+	if err != nil || !IsID(id) {
+		t.Fatalf("id %q: %v", id, err)
 	}
-	// SHA-256 of the documented preimage, computed independently with
-	// `printf 'probity-record-id-v1\nplan:a\nlog:b\nmanifest:c\nledger:d\nworksheet:e\nlabels:f\n' | sha256sum`.
-	if want := SHA256([]byte("probity-record-id-v1\nplan:a\nlog:b\nmanifest:c\nledger:d\nworksheet:e\nlabels:f\n"))[:12]; id != want {
+	// The documented preimage: the canonical record.json with an empty
+	// record_id, after the domain line.
+	c := *r
+	c.RecordID = ""
+	data, _ := Encode(&c)
+	if want := SHA256(append([]byte("probity-record-id-v2\n"), data...))[:IDLength]; id != want {
 		t.Errorf("ID = %s, want %s", id, want)
 	}
-	g := f
-	g.Labels = "g"
-	if ID(g, nil) == id {
-		t.Errorf("changing the labels fingerprint did not change the id")
+	// The id does not depend on the id already written.
+	r.RecordID = strings.Repeat("f", IDLength)
+	if again, _ := ID(r); again != id {
+		t.Errorf("the id depends on the record_id field")
 	}
-	// A record judged on double labels also depends on the second
-	// worksheet and the adjudications; the preimage gains two lines.
-	lq := &LabelQuality{SecondWorksheet: "s", Adjudications: "j"}
-	if got, want := ID(f, lq), SHA256([]byte("probity-record-id-v1\nplan:a\nlog:b\nmanifest:c\nledger:d\nworksheet:e\nlabels:f\nsecond:s\nadjudications:j\n"))[:12]; got != want {
-		t.Errorf("ID with label quality = %s, want %s", got, want)
+	// Whatever the record says changes it: the attacks of a shared id.
+	changes := map[string]func(*Record){
+		"use":           func(r *Record) { r.Use = "safety" },
+		"date":          func(r *Record) { r.Date = "2026-02-01" },
+		"sealing key":   func(r *Record) { r.SigningKey = "sha256:" + strings.Repeat("0", 64) },
+		"bound":         func(r *Record) { r.Method.Bound = plan.BoundWeightedHoeffding },
+		"wording":       func(r *Record) { r.Wording.Digest = strings.Repeat("1", 64) },
+		"custom":        func(r *Record) { r.Wording.Replaced = []string{"decision-rule.md"} },
+		"revision":      func(r *Record) { r.Revision, r.Supersedes = 2, id },
+		"verdict":       func(r *Record) { r.Candidates[0].Verdict = Reject },
+		"labels":        func(r *Record) { r.Fingerprints.Labels = "g" },
+		"demonstration": func(r *Record) { r.Demonstration = true },
+		"sign-off":      func(r *Record) { r.Signoff = []Signoff{{Role: "approved", Meaning: "I approve."}} },
 	}
-	other := *lq
-	other.Adjudications = "k"
-	if ID(f, &other) == ID(f, lq) {
-		t.Errorf("changing the adjudications did not change the id")
+	for name, change := range changes {
+		x := fixture()
+		x.Candidates = append([]Candidate{}, x.Candidates...)
+		change(x)
+		if other, _ := ID(x); other == id {
+			t.Errorf("changing the %s did not change the id", name)
+		}
+	}
+}
+
+// TestIDShellRecipe recomputes a record id with the README's recipe
+// (sed, sha256sum), independently of this package.
+func TestIDShellRecipe(t *testing.T) {
+	for _, tool := range []string{"sh", "sed", "sha256sum", "cut"} {
+		needs.Program(t, tool)
+	}
+	r := fixture()
+	r.LabelQuality = &LabelQuality{Disagreements: []Disagreement{{Item: 3, RecordID: "w00311"}}}
+	id, _ := ID(r)
+	r.RecordID = id
+	data, _ := Encode(r)
+	path := filepath.Join(t.TempDir(), "record.json")
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	const recipe = `{ printf 'probity-record-id-v2\n'; sed 's/^  "record_id": "[0-9a-f]*",$/  "record_id": "",/' "$1"; } | sha256sum | cut -c1-32`
+	out, err := exec.Command("sh", "-c", recipe, "sh", path).Output()
+	if err != nil || strings.TrimSpace(string(out)) != id {
+		t.Errorf("the recipe gives %q (%v), want %s", out, err, id)
 	}
 }

@@ -8,7 +8,9 @@ package record
 import "probity/plan"
 
 // Format is the version of the record.json layout written by this code.
-const Format = 1
+// Format 2 added the content-covering record id, the revision, the
+// wording, the demonstration mark and the caveats.
+const Format = 2
 
 // Names of the files in a record folder (the signatures are in
 // signature.FileName).
@@ -27,9 +29,19 @@ const (
 type Record struct {
 	Format      int    `json:"format"`
 	ToolVersion string `json:"tool_version"`
-	// RecordID is the short fingerprint (first 12 hex digits of the
-	// SHA-256 of the judged inputs) printed on every PDF page.
+	// RecordID identifies the record: the first IDLength hex digits of the
+	// SHA-256 of everything else it says (see ID), printed on every PDF
+	// page. Two records differ in any field exactly when their ids do.
 	RecordID string `json:"record_id"`
+	// Revision counts the issues of a record: 1 for the first, 2 for a
+	// record that supersedes it, and so on; Supersedes is the id of the
+	// record this one replaces ("" for a first issue).
+	Revision   int    `json:"revision"`
+	Supersedes string `json:"supersedes"`
+	// Demonstration marks a record made for the demonstration of the tool
+	// on an invented scenario (sealed with a published demonstration
+	// key); every PDF page says so.
+	Demonstration bool `json:"demonstration"`
 	// Date is the record's date, YYYY-MM-DD (from --date or the clock).
 	Date string `json:"date"`
 	// Period is the audited period label ("" when none).
@@ -50,17 +62,55 @@ type Record struct {
 	// Method names the bound used (plan.Bound: "clopper-pearson",
 	// "korn-graubard (approximate)", "weighted-hoeffding", …) and its
 	// assumptions in words.
-	Method  MethodInfo `json:"method"`
-	Signoff []Signoff  `json:"signoff"`
+	Method MethodInfo `json:"method"`
+	// Wording identifies the wording the PDF was rendered with.
+	Wording Wording   `json:"wording"`
+	Signoff []Signoff `json:"signoff"`
 	// SigningKey is the fingerprint of the public key that signed the
 	// record ("" when unsigned).
 	SigningKey string `json:"signing_key"`
 	// OverallVerdict is ACCEPT when every candidate the plan requires is
 	// accepted, else REJECT.
 	OverallVerdict string `json:"overall_verdict"`
+	// Caveats are the findings that change what a verdict means (label
+	// error that consumes a candidate's margin; label error not measured
+	// for a safety-relevant use), printed on page 1 beside the verdict.
+	Caveats []Caveat `json:"caveats"`
 	// LabelQuality is the double-labeling evidence (nil, and absent from
 	// record.json, when no second worksheet was given).
 	LabelQuality *LabelQuality `json:"label_quality,omitempty"`
+}
+
+// Wording identifies the wording set (package templates) of the PDF.
+type Wording struct {
+	// Digest is the SHA-256 of the whole set (templates.Set.Fingerprint).
+	Digest string `json:"digest"`
+	// Replaced lists, sorted, the files that replaced the built-in
+	// wording (empty for the built-in wording); page 1 flags them.
+	Replaced []string `json:"replaced"`
+}
+
+// Kinds of caveat.
+const (
+	// CaveatLabelErrorMargin: the label error measured on the doubled
+	// items is at least the distance between an accepted candidate's upper
+	// bound and the ceiling.
+	CaveatLabelErrorMargin = "label-error-consumes-margin"
+	// CaveatLabelErrorUnmeasured: a safety, medical or vehicle use was
+	// judged without a measure of label error (no double labeling, or no
+	// doubled item labeled by both).
+	CaveatLabelErrorUnmeasured = "label-error-not-measured"
+)
+
+// Caveat is a finding that changes what a verdict means.
+type Caveat struct {
+	// Kind is CaveatLabelErrorMargin or CaveatLabelErrorUnmeasured.
+	Kind string `json:"kind"`
+	// Candidate names the candidate it qualifies ("" for the record as a
+	// whole).
+	Candidate string `json:"candidate"`
+	// Text says it in a sentence or two, with the record's numbers.
+	Text string `json:"text"`
 }
 
 // PlanInfo repeats the plan's rule and inputs.

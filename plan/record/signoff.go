@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"probity/plan/inputerr"
+	"probity/plan/personname"
 	"strings"
 	"time"
 
@@ -70,16 +71,22 @@ func ParseSignoff(data []byte, name string) ([]Signoff, error) {
 		}
 		if e.Date != "" {
 			if _, err := time.Parse("2006-01-02", e.Date); err != nil {
-				line := v.Line
-				for j := 0; j+1 < len(v.Content); j += 2 {
-					if v.Content[j].Value == "date" {
-						line = v.Content[j].Line
-					}
-				}
-				return nil, inputerr.At(name, line, k.Value+".date", "%w: %q is not a date in the form YYYY-MM-DD", ErrSignoffFile, e.Date)
+				return nil, inputerr.At(name, keyLine(v, "date"), k.Value+".date", "%w: %q is not a date in the form YYYY-MM-DD", ErrSignoffFile, e.Date)
 			}
 		}
-		byRole[k.Value] = Signoff{Role: k.Value, Name: strings.TrimSpace(e.Name), Title: strings.TrimSpace(e.Title), Date: e.Date, Meaning: strings.TrimSpace(e.Meaning)}
+		// A meaning may be written over several lines (a YAML block): its
+		// lines are joined with single spaces. A name or title is one line.
+		e.Meaning = strings.Join(strings.Fields(e.Meaning), " ")
+		clean := map[string]*string{"name": &e.Name, "title": &e.Title, "meaning": &e.Meaning}
+		for _, field := range []string{"name", "title", "meaning"} {
+			c, err := personname.Clean(*clean[field])
+			if err != nil {
+				return nil, inputerr.At(name, keyLine(v, field), k.Value+"."+field, "%w: %v", ErrSignoffFile, err).
+					WithHint("retype the text: it holds a character that prints nothing or reorders the text around it")
+			}
+			*clean[field] = c
+		}
+		byRole[k.Value] = Signoff{Role: k.Value, Name: e.Name, Title: e.Title, Date: e.Date, Meaning: e.Meaning}
 	}
 	var out []Signoff
 	for _, r := range SignoffRoles {
@@ -88,6 +95,16 @@ func ParseSignoff(data []byte, name string) ([]Signoff, error) {
 		}
 	}
 	return out, nil
+}
+
+// keyLine is the line of key in the mapping v, or v's own line.
+func keyLine(v *yaml.Node, key string) int {
+	for j := 0; j+1 < len(v.Content); j += 2 {
+		if v.Content[j].Value == key {
+			return v.Content[j].Line
+		}
+	}
+	return v.Line
 }
 
 // yamlReason drops yaml.v3's "yaml: " prefix and line numbers relative to

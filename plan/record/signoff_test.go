@@ -44,3 +44,27 @@ func TestParseSignoffHelpExample(t *testing.T) {
 		t.Errorf("%+v", got)
 	}
 }
+
+// TestParseSignoffRefusesHiddenCharacters: a NUL, a right-to-left override
+// or a zero-width space in a name is refused with its line and field; a
+// name is trimmed and put in NFC; a meaning's lines are joined.
+func TestParseSignoffRefusesHiddenCharacters(t *testing.T) {
+	bad := map[string]string{
+		"reviewed:\n  name: \"Jo\\0Example\"\n":                "line 2, field reviewed.name: invalid sign-off file: invalid name: character 3 is U+0000 (NUL)",
+		"reviewed:\n  name: \"Jo \\u202eelpmaxE\"\n":           "line 2, field reviewed.name: invalid sign-off file: invalid name: character 4 is U+202E (a right-to-left override)",
+		"reviewed:\n  name: A\n  title: \"Re\\u200bviewer\"\n": "line 3, field reviewed.title: invalid sign-off file: invalid name: character 3 is U+200B (a zero-width space)",
+	}
+	for text, want := range bad {
+		_, err := ParseSignoff([]byte(text), "signoff.yaml")
+		if err == nil || !strings.Contains(err.Error(), "signoff.yaml "+want) {
+			t.Errorf("%q: got %v, want %q", text, err, want)
+		}
+	}
+	got, err := ParseSignoff([]byte("reviewed:\n  name: \"  Jo\\u0308rg \"\n  meaning: >\n    I reviewed\n    the method.\n"), "signoff.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got[0].Name != "Jörg" || got[0].Meaning != "I reviewed the method." {
+		t.Errorf("%+v", got)
+	}
+}

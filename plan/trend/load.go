@@ -24,6 +24,9 @@ type Entry struct {
 	// folder given on it.
 	Path   string
 	Record record.Record
+	// Unauthenticated marks a record charted although its signatures did
+	// not authenticate it (or were not checked); the trend says so.
+	Unauthenticated bool
 }
 
 // ErrNotRecord is wrapped by every error about a file that is not a usable

@@ -1,6 +1,8 @@
 package trend
 
 import (
+	"bytes"
+	"crypto/ed25519"
 	"crypto/sha256"
 	"encoding/hex"
 	"fmt"
@@ -12,6 +14,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/record"
+	"probity/plan/record/signature"
 )
 
 // cand is a candidate's result in a test record.
@@ -96,8 +99,25 @@ func makeRecord(period string, info record.PlanInfo, cs ...cand) record.Record {
 			Strata:          []record.StratumErr{},
 		})
 	}
-	r.RecordID = fingerprint(fmt.Sprint(period, cs))[:12]
+	r.Revision = 1
+	r.SigningKey = signature.Fingerprint(fixtureSealKey().Public().(ed25519.PublicKey))
+	id, err := record.ID(&r)
+	if err != nil {
+		panic(err)
+	}
+	r.RecordID = id
 	return r
+}
+
+// fixtureSealKey is the key the fixture records are sealed with, made from
+// a fixed byte stream: a test key, published with the tests, whose public
+// half is testdata/trend/fixture-seal.pub.
+func fixtureSealKey() ed25519.PrivateKey {
+	_, priv, err := signature.GenerateKey(bytes.NewReader(bytes.Repeat([]byte{0x7e}, 64)))
+	if err != nil {
+		panic(err)
+	}
+	return priv
 }
 
 // clopperPearsonUpper is the one-sided upper bound: the conf quantile of

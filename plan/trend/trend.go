@@ -49,6 +49,9 @@ type Trend struct {
 	// Warnings are the differences between records that do not stop a
 	// trend (plans, candidate sets, bound confidences, weighting).
 	Warnings []string `json:"warnings"`
+	// Unauthenticated lists, in period order, the periods whose records
+	// are charted without having been authenticated.
+	Unauthenticated []string `json:"unauthenticated"`
 }
 
 // Period is one record on the trend.
@@ -60,6 +63,9 @@ type Period struct {
 	PlanFingerprint string `json:"plan_fingerprint"`
 	SampleSize      int    `json:"sample_size"`
 	OverallVerdict  string `json:"overall_verdict"`
+	// Authenticated is false for a record charted without its signatures
+	// authenticating it.
+	Authenticated bool `json:"authenticated"`
 }
 
 // Series is one candidate across the periods it appears in.
@@ -198,12 +204,13 @@ func Build(entries []Entry, opts Options) (*Trend, error) {
 
 	latest := &es[len(es)-1].Record
 	t := &Trend{
-		System:        latest.System,
-		SystemVersion: latest.SystemVersion,
-		Class:         ClassOf(&first.Record),
-		Alpha:         opts.Alpha,
-		Test:          TestName,
-		Warnings:      []string{},
+		System:          latest.System,
+		SystemVersion:   latest.SystemVersion,
+		Class:           ClassOf(&first.Record),
+		Alpha:           opts.Alpha,
+		Test:            TestName,
+		Warnings:        []string{},
+		Unauthenticated: []string{},
 	}
 	labels := make([]string, len(es))
 	for i, e := range es {
@@ -216,7 +223,11 @@ func Build(entries []Entry, opts Options) (*Trend, error) {
 			PlanFingerprint: e.Record.Plan.Fingerprint,
 			SampleSize:      e.Record.Plan.SampleSize,
 			OverallVerdict:  e.Record.OverallVerdict,
+			Authenticated:   !e.Unauthenticated,
 		})
+		if e.Unauthenticated {
+			t.Unauthenticated = append(t.Unauthenticated, e.Record.Period)
+		}
 	}
 	t.Latest = t.Periods[len(t.Periods)-1]
 	base := 0

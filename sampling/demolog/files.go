@@ -35,12 +35,24 @@ func (s Scenario) WriteLogGzip(w io.Writer) error {
 // from: SHA-256 in counter mode over a fixed phrase. The key it yields is
 // published with the source code and signs nothing but demo records; it
 // makes the demo's record, signature included, reproducible byte for byte.
-func ThrowAwayKeySource() io.Reader { return &counterStream{} }
+func ThrowAwayKeySource() io.Reader {
+	return &counterStream{phrase: "probity demo throw-away key:"}
+}
+
+// SignerKeySource returns the byte stream the demo's signer of a sign-off
+// role (prepared, reviewed, approved) makes their key from: SHA-256 in
+// counter mode over "probity demo signer key:ROLE:". Like the demo's
+// signing key, these keys are published with the source code: records
+// signed with them are demonstrations and authenticate nothing.
+func SignerKeySource(role string) io.Reader {
+	return &counterStream{phrase: "probity demo signer key:" + role + ":"}
+}
 
 type counterStream struct {
-	block [32]byte
-	used  int
-	n     uint64
+	phrase string
+	block  [32]byte
+	used   int
+	n      uint64
 }
 
 func (c *counterStream) Read(p []byte) (int, error) {
@@ -49,7 +61,7 @@ func (c *counterStream) Read(p []byte) (int, error) {
 			var ctr [8]byte
 			binary.BigEndian.PutUint64(ctr[:], c.n)
 			c.n++
-			c.block = sha256.Sum256(append([]byte("probity demo throw-away key:"), ctr[:]...))
+			c.block = sha256.Sum256(append([]byte(c.phrase), ctr[:]...))
 			c.used = 0
 		}
 		p[i] = c.block[c.used]

@@ -176,3 +176,28 @@ func TestWorksheetBOMAndCRLF(t *testing.T) {
 		t.Fatalf("header %q rows %+v", h, rows)
 	}
 }
+
+// TestLabelerNamesAreCleaned: a labeler's name with a control, zero-width
+// or direction-overriding character is refused with its line; a name
+// written with a combining accent is read in NFC, trimmed.
+func TestLabelerNamesAreCleaned(t *testing.T) {
+	dir := t.TempDir()
+	for name, c := range map[string]struct{ labeler, want string }{
+		"zero-width": {"an\u200bn", "line 3, field labeler: labeler of item 2: invalid name: character 3 is U+200B (a zero-width space)"},
+		"override":   {"\u202enna", "line 3, field labeler: labeler of item 2: invalid name: character 1 is U+202E (a right-to-left override)"},
+		"nul":        {"a\x00", "line 3, field labeler: labeler of item 2: invalid name: character 2 is U+0000 (NUL)"},
+	} {
+		p := filepath.Join(dir, name+".csv")
+		os.WriteFile(p, []byte("item,record_id,label,note,labeler\n1,r1,yes,,ann\n2,r2,no,,"+c.labeler+"\n"), 0o644)
+		_, _, err := ReadWorksheet(p)
+		if err == nil || !strings.Contains(err.Error(), p+" "+c.want) {
+			t.Errorf("%s: got %v, want %q", name, err, c.want)
+		}
+	}
+	p := filepath.Join(dir, "nfc.csv")
+	os.WriteFile(p, []byte("item,record_id,label,note,labeler\n1,r1,yes,, Jo\u0308rg \n"), 0o644)
+	_, rows, err := ReadWorksheet(p)
+	if err != nil || rows[0].Labeler != "Jörg" {
+		t.Fatalf("%v %+v", err, rows)
+	}
+}

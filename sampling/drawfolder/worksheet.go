@@ -3,6 +3,8 @@ package drawfolder
 import (
 	"io"
 	"strconv"
+
+	"probity/plan/personname"
 )
 
 // WorksheetRow is one row of worksheet.csv, what labelers get: item,
@@ -119,7 +121,10 @@ func worksheetFromTable(name string, t *CSVTable) ([]string, []WorksheetRow, err
 		r.Label = rec[2+nShow]
 		r.Note = rec[3+nShow]
 		if hasLabeler {
-			r.Labeler = rec[4+nShow]
+			if r.Labeler, err = personname.Clean(rec[4+nShow]); err != nil {
+				return nil, nil, inputErrorf(name, line, "labeler", "labeler of item %d: %v", r.Item, err).
+					WithHint("retype the labeler's name: it holds a character that prints nothing or reorders the text around it")
+			}
 		}
 		rows = append(rows, r)
 	}

@@ -83,6 +83,12 @@ type Options struct {
 	// unsigned) are written into the record.
 	ToolVersion string
 	SigningKey  string
+	// Revision is the record's revision (0 reads as 1) and Supersedes the
+	// id of the record it replaces: "" exactly for revision 1.
+	Revision   int
+	Supersedes string
+	// Demonstration marks a record of the demonstration scenario.
+	Demonstration bool
 }
 
 // ErrInput is wrapped by errors about the assemble inputs themselves (an
@@ -150,6 +156,16 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 	if _, err := time.Parse("2006-01-02", o.Date); err != nil {
 		return nil, inputerr.Errorf("%w: date %q is not a date in the form YYYY-MM-DD", ErrInput, o.Date)
 	}
+	revision, err := checkRevision(o.Revision, o.Supersedes)
+	if err != nil {
+		return nil, err
+	}
+	set := o.Templates
+	if set == nil {
+		if set, err = templates.Load(""); err != nil {
+			return nil, err
+		}
+	}
 	p := in.Plan
 	if p.IsSizingOnly() {
 		return nil, inputerr.Errorf("%w: the plan declares no candidates, so there is nothing to judge", ErrInput)
@@ -171,9 +187,11 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 		return nil, err
 	}
 	rec := &record.Record{
-		Format: record.Format, ToolVersion: o.ToolVersion, Date: o.Date,
+		Format: record.Format, ToolVersion: o.ToolVersion, Revision: revision, Supersedes: o.Supersedes,
+		Demonstration: o.Demonstration, Date: o.Date,
 		Period: in.Folder.Manifest.Period, System: p.System, SystemVersion: p.SystemVersion, Use: o.Use,
 		Fingerprints: checked.Fingerprints, SigningKey: o.SigningKey,
+		Wording: record.Wording{Digest: set.Fingerprint(), Replaced: set.Overridden()},
 	}
 	if resolved != nil {
 		lq, err := resolved.Judged(checked.Items, &checked.Deviations, in.Folder.Ledger)
@@ -183,7 +201,6 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 		lq.SecondWorksheet, lq.Adjudications = record.SHA256(in.Second.Bytes), in.AdjudicationSHA256
 		rec.LabelQuality = lq
 	}
-	rec.RecordID = record.ID(rec.Fingerprints, rec.LabelQuality)
 	res, err := judge(p, checked, o.Bound)
 	if err != nil {
 		return nil, err
@@ -217,11 +234,35 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 			rec.OC = append(rec.OC, record.OCPoint{Error: pt.Error, AcceptProbability: pt.AcceptProbability})
 		}
 	}
-	if rec.Signoff, err = signoff(o.Signoff, o.Templates, rec); err != nil {
+	if rec.Signoff, err = signoff(o.Signoff, set, rec); err != nil {
 		return nil, err
 	}
+	rec.Caveats = caveats(rec)
 	rec.Normalize()
+	if rec.RecordID, err = record.ID(rec); err != nil {
+		return nil, err
+	}
 	return rec, nil
+}
+
+// checkRevision returns the revision number (0 reads as 1) after checking
+// it against the id of the record superseded: a first issue supersedes
+// nothing, a later one names the record it replaces.
+func checkRevision(revision int, supersedes string) (int, error) {
+	if revision == 0 {
+		revision = 1
+	}
+	switch {
+	case revision < 1:
+		return 0, inputerr.Errorf("%w: revision %d is not a positive whole number", ErrInput, revision)
+	case supersedes != "" && !record.IsID(supersedes):
+		return 0, inputerr.Errorf("%w: %q is not a record id (%d lowercase hex digits, as record.json's record_id)", ErrInput, supersedes, record.IDLength)
+	case supersedes != "" && revision == 1:
+		return 0, inputerr.Errorf("%w: a record that supersedes another is revision 2 or later", ErrInput)
+	case supersedes == "" && revision > 1:
+		return 0, inputerr.Errorf("%w: revision %d must name the record it supersedes", ErrInput, revision)
+	}
+	return revision, nil
 }
 
 // resolve checks the second worksheet and the adjudications against the
@@ -279,17 +320,13 @@ func planInfo(p *plan.File, fp string, f *drawfolder.Folder) record.PlanInfo {
 // reviewed, approved), each with its meaning (the templates' default when
 // the sign-off file gave none) and blank when not given.
 func signoff(given []record.Signoff, set *templates.Set, rec *record.Record) ([]record.Signoff, error) {
-	if set == nil {
-		var err error
-		if set, err = templates.Load(""); err != nil {
-			return nil, err
-		}
-	}
 	byRole := map[string]record.Signoff{}
 	for _, s := range given {
 		byRole[s.Role] = s
 	}
-	f := templates.Fields{System: rec.System, SystemVersion: rec.SystemVersion, Period: rec.Period, Date: rec.Date, RecordID: rec.RecordID, Use: rec.Use}
+	// No record id: a meaning is part of what the id covers (and the
+	// templates refuse a meaning that prints it).
+	f := templates.Fields{System: rec.System, SystemVersion: rec.SystemVersion, Period: rec.Period, Date: rec.Date, Use: rec.Use}
 	var out []record.Signoff
 	for _, role := range templates.Roles() {
 		s := byRole[role]

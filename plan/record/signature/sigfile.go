@@ -203,6 +203,24 @@ func (s *Sig) Verify(name string, data []byte) error {
 	return mismatchf("%s is not signed in %s", name, FileName)
 }
 
+// VerifySigned checks the signature of a signed file against the SHA-256
+// record.sig states for it, without the file itself, and returns that
+// SHA-256: it proves that the key signed a file with that digest (a
+// record.pdf since replaced, for instance), not that a file at hand is it.
+func (s *Sig) VerifySigned(name string) (string, error) {
+	for _, f := range s.Files {
+		if f.Name != name {
+			continue
+		}
+		msg := []byte(Header + "\n" + name + "\n" + f.SHA256 + "\n")
+		if !ed25519.Verify(s.PublicKey, msg, f.Signature) {
+			return "", mismatchf("the signature of %s in %s is not valid for key %s", name, FileName, Fingerprint(s.PublicKey))
+		}
+		return f.SHA256, nil
+	}
+	return "", mismatchf("%s is not signed in %s", name, FileName)
+}
+
 // mismatch is a failed signature check: errors.Is(err, ErrMismatch) holds,
 // and the message says what differs without the sentinel's words, so a
 // caller can print it as it is.

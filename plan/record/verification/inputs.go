@@ -125,6 +125,7 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	o := assemble.Options{
 		AllowIncomplete: rec.Deviations.AllowIncomplete, Bound: verdict.UnequalBoundOf(rec.Method.Bound),
 		Use: rec.Use, Date: rec.Date, Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
+		Revision: rec.Revision, Supersedes: rec.Supersedes, Demonstration: rec.Demonstration, Templates: in.Templates,
 	}
 	if lq := rec.LabelQuality; lq != nil {
 		if files.Second == "" {

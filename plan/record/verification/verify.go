@@ -6,10 +6,12 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"time"
 
 	"probity/plan/inputerr"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
+	"probity/plan/record/signature"
 	"probity/templates"
 )
 
@@ -24,6 +26,10 @@ const (
 	// Skipped: the check was not run, for want of an input (Detail says
 	// which).
 	Skipped
+	// Limited: the check could not be done in full; Detail states the
+	// limitation and what the result rests on instead. It does not fail
+	// the verification.
+	Limited
 )
 
 // String is "ok", "failed" or "skipped".
@@ -33,19 +39,24 @@ func (s Status) String() string {
 		return "ok"
 	case Failed:
 		return "failed"
+	case Limited:
+		return "limited"
 	}
 	return "skipped"
 }
 
 // Names of the checks (Check.Name).
 const (
-	CheckRecord      = "record"      // record.json well formed and canonical
-	CheckSignature   = "signature"   // record.sig over a file, or its absence
-	CheckSigningKey  = "signing key" // the key record.json names, and the trusted key
-	CheckRendering   = "rendering"   // record.pdf against a fresh rendering
-	CheckFingerprint = "fingerprint" // an input's SHA-256 against the record's
-	CheckJudgement   = "judgement"   // the record recomputed from its inputs
-	CheckSample      = "sample"      // the sample drawn again from the log
+	CheckRecord         = "record"         // record.json well formed and canonical
+	CheckRecordID       = "record id"      // the record id recomputed from record.json
+	CheckSignature      = "signature"      // record.sig over a file, or its absence
+	CheckSigningKey     = "signing key"    // the seal's key: the one record.json names, and trusted
+	CheckPeople         = "people"         // the people's signatures (signatures.txt)
+	CheckAuthentication = "authentication" // whether the signatures authenticate the record
+	CheckRendering      = "rendering"      // record.pdf against a fresh rendering
+	CheckFingerprint    = "fingerprint"    // an input's SHA-256 against the record's
+	CheckJudgement      = "judgement"      // the record recomputed from its inputs
+	CheckSample         = "sample"         // the sample drawn again from the log
 )
 
 // Check is the outcome of one check.
@@ -60,6 +71,17 @@ type Check struct {
 // Report is the checks Verify ran, in order.
 type Report struct {
 	Checks []Check
+}
+
+// Count returns how many checks have status st.
+func (r *Report) Count(st Status) int {
+	n := 0
+	for _, c := range r.Checks {
+		if c.Status == st {
+			n++
+		}
+	}
+	return n
 }
 
 // Failed returns the checks that failed, in order.
@@ -81,7 +103,8 @@ func (r *Report) add(name string, s Status, format string, args ...any) {
 // command line passes its flag names ("--pub"), so that a skipped check
 // can say what to pass. An empty name reads as the input in words.
 type Names struct {
-	TrustedKey, Templates   string
+	TrustedKey, Signers     string
+	Templates               string
 	Plan, Draw, Labels, Log string
 	Second, Adjudications   string
 }
@@ -95,6 +118,7 @@ func or(name, words string) string {
 }
 
 func (n Names) trustedKey() string    { return or(n.TrustedKey, "a trusted key") }
+func (n Names) signers() string       { return or(n.Signers, "a signers file") }
 func (n Names) templates() string     { return or(n.Templates, "templates") }
 func (n Names) plan() string          { return or(n.Plan, "the plan") }
 func (n Names) draw() string          { return or(n.Draw, "the draw folder") }
@@ -107,11 +131,8 @@ func (n Names) adjudications() string { return or(n.Adjudications, "the adjudica
 type Input struct {
 	// Dir is the record folder (record.json, record.pdf, record.sig).
 	Dir string
-	// TrustedKey is the public key the record must be signed with, read
-	// from TrustedKeyPath; nil when none is given (the signing key is then
-	// only reported).
-	TrustedKey     ed25519.PublicKey
-	TrustedKeyPath string
+	// Trust is what the signatures are checked against.
+	Trust Trust
 	// Templates is the wording record.pdf is rendered with again (nil:
 	// the built-in wording); TemplatesDir names its folder ("" for the
 	// built-in wording).
@@ -122,13 +143,41 @@ type Input struct {
 	// needs Files.Plan and Files.Draw.
 	Files assemble.Files
 	Log   string
-	// ToolVersion is this probity's version: a record.pdf that is not the
-	// rendering of record.json fails only when the record was made by
-	// this very version.
+	// ToolVersion is this probity's version: a record.pdf made by another
+	// version may lay the record out differently, so when it is not the
+	// rendering of record.json it is authenticated by the signature over
+	// it instead (a stated limitation), or fails.
 	ToolVersion string
 	// Names is how the user gives each input, for the wording.
 	Names Names
 }
+
+// Trust is what a record's signatures are checked against: nothing else
+// makes a verification pass.
+type Trust struct {
+	// Keys are the public keys trusted to seal records (the operator's).
+	Keys []TrustedKey
+	// Signers binds keys to people and roles: the people's signatures are
+	// checked against it, and a seal against its operators. nil: none.
+	Signers *signature.Signers
+	// Now is the verifier's clock: a signature dated more than
+	// ClockSkew after it fails. The zero time skips that check.
+	Now time.Time
+}
+
+// TrustedKey is a public key trusted to seal records, and the file it was
+// read from.
+type TrustedKey struct {
+	Key  ed25519.PublicKey
+	Path string
+}
+
+// ClockSkew is how far a signature's time may lie after the verifier's
+// clock before it is refused as dated in the future.
+const ClockSkew = 5 * time.Minute
+
+// none reports whether nothing is trusted.
+func (t Trust) none() bool { return len(t.Keys) == 0 && t.Signers == nil }
 
 // ErrNoRecord is the cause of the error for a folder that is not a
 // record folder (missing, or without a readable record.json).
@@ -148,24 +197,54 @@ func Verify(in Input) (*Report, error) {
 	if err != nil {
 		return nil, inputerr.Errorf("cannot read %s: %v", jsonPath, errors.Unwrap(err)).Wrap(errors.Join(ErrNoRecord, err))
 	}
+	rec := checkRecord(rep, jsonPath, js)
+	pdfPath := filepath.Join(in.Dir, record.PDFFile)
+	pdf, pdfErr := os.ReadFile(pdfPath)
+	if pdfErr != nil {
+		rep.add(CheckRendering, Failed, "%s is missing or unreadable: %v", pdfPath, errors.Unwrap(pdfErr))
+		pdf = nil
+	}
+	a := authenticate(rep, in.Dir, in.Trust, in.Names, rec, js, pdf)
+	if rec == nil {
+		return rep, nil
+	}
+	if pdf != nil {
+		checkRendering(rep, in, rec, a, pdf)
+	}
+	a.summarise(rep, in.Names, rec)
+	if err := checkInputs(rep, in, rec); err != nil {
+		return nil, err
+	}
+	return rep, nil
+}
+
+// checkRecord checks that record.json is a record of this format in
+// canonical form and that its id is the digest of its content; it returns
+// the record, or nil when record.json is not one.
+func checkRecord(rep *Report, jsonPath string, js []byte) *record.Record {
 	rec, err := record.Decode(js)
 	switch {
 	case err != nil:
 		rep.add(CheckRecord, Failed, "%s: not a valid record: %v", jsonPath, err)
+		return nil
+	case rec.Format != record.Format:
+		rep.add(CheckRecord, Failed, "%s is a record of format %d, made by probity %s; this probity reads format %d", jsonPath, rec.Format, rec.ToolVersion, record.Format)
+		return nil
 	case !record.IsCanonical(js):
 		rep.add(CheckRecord, Failed, "%s is not in canonical form: it was edited after it was written", jsonPath)
 	default:
 		rep.add(CheckRecord, OK, "%s is a canonical record (id %s, %s, overall %s)", jsonPath, rec.RecordID, rec.Date, rec.OverallVerdict)
 	}
-	checkSignatures(rep, in, rec, js)
-	if rec == nil {
-		return rep, nil
+	id, err := record.ID(rec)
+	switch {
+	case err != nil:
+		rep.add(CheckRecordID, Failed, "%s: the record id cannot be recomputed: %v", jsonPath, err)
+	case id != rec.RecordID:
+		rep.add(CheckRecordID, Failed, "%s: record_id %s is not the digest of the record's content (%s): the id was made up, or the record was edited", jsonPath, rec.RecordID, id)
+	default:
+		rep.add(CheckRecordID, OK, "record id %s recomputes from the content of %s", id, record.JSONFile)
 	}
-	checkRendering(rep, in, rec)
-	if err := checkInputs(rep, in, rec); err != nil {
-		return nil, err
-	}
-	return rep, nil
+	return rec
 }
 
 // short12 is the first 12 digits of a fingerprint, for messages.

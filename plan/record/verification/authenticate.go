@@ -1,0 +1,30 @@
+package verification
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+
+	"probity/plan/inputerr"
+)
+
+// Authenticate checks a record.json for a use that reads its numbers only
+// (a trend chart): that it is a canonical record of this format, that its
+// id recomputes from its content, and that the operator's seal and the
+// people's signatures in its folder are valid, bound to it and made with
+// keys trust vouches for, and that it carries at least one. record.pdf is
+// not checked. The record is authenticated when the report has no failed
+// check; the error is for a file that cannot be read.
+func Authenticate(jsonPath string, trust Trust, names Names) (*Report, error) {
+	js, err := os.ReadFile(jsonPath)
+	if err != nil {
+		return nil, inputerr.Errorf("cannot read %s: %v", jsonPath, errors.Unwrap(err)).Wrap(err)
+	}
+	rep := &Report{}
+	rec := checkRecord(rep, jsonPath, js)
+	a := authenticate(rep, filepath.Dir(jsonPath), trust, names, rec, js, nil)
+	if rec != nil {
+		a.summarise(rep, names, rec)
+	}
+	return rep, nil
+}

@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json ec44c5805dd9ef273b776fd8adc0a3c9ae330b9c88094883a930d0f261976b77 1336GL7UDfd3WoKJ+q8SOei1QrNmxNoja31LuaznNFsqhMlq+ufd6+E8n4Cay7lRLhBhsJZho1r+0VAPtO6+DA==

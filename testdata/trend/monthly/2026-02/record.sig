@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json 95df5cd3d75e6cf947b83e93b4324fddeb4c3cb32b04ff3b45fd0da7a762bed4 pirDATrWvp/NxjIXxMqBfF4VPoOeZjaBn/8V1aG9Ppk8TLtMzeoFg604c3gPvdj4vmSKgdDhk4l91nK+oJqIDA==

@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json 96098fb6bbce176d4fc66eb447ba382fa940d415b80e64eabcda6985af47eb0f EAI7ylHGuT+jcRbERYpklTV3Q6PMautCED2Hvz5NNrOy/cLXd7mTstjUksspgyrSONASbySVQ2Xa82fHBmeDBg==

@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json 40238512e12ea5bd0fb39f2b1412f1d67854d5e1b57c2bdaeb4cb36b5852bacd aw+fUwtbKPGOlzcVBEKXAzaKW1fugcduA7NFYyB8ej9f3VrLeK4aakPpLw2eSwiFTwBcVKWeV9cnCGT+ERx+AA==

@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json 9959a52645c4b137682fd257397200743f5822aef61ab33cb96ce3c2e034edac w6Bvp6DlBZN+MAPlDiuq+Ha7On3btwrJk8QlCycmZW6l6E+PGjmTw7SBSzMP08gj/6nBtHIDHkIJJzWt55Z7CA==

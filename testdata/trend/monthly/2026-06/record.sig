@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json 7ede8e1442529208dc27c04845dde0744071967d5cfa1ba969bd6dacb4f9e4ec NuesNPq6LNwKrtLhmXz/15dOE/IOtYqrTzZRnYyHurW6Jhgy1I8cqZ7xJ9uHm/iy3FVqA9TuW0NpMT2HY/WQAQ==

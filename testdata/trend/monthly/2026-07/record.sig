@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json a2a957cb79235ae4a8e01afcd3296fe71a293844c66a750c62857d8c05fe2ab1 KJKNZuCWr1FMD/ZJSMXHrWFKUsmPiNkJOxHNTVD4//UMribw6SjItR0746Gz9MgJUrIyAfie3rp1l6850vjmAQ==

@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json a860b5bcf79060031411bf02bf3b688711e38759f484995f976274b0516055fe 1nrpU9VENPF89q7wP68wOMhzMLzrhslEFh4jSChkp9eex4KNwbuUFEX4VOwzmdLz6swkOvwv5Q+NcyVFaqz8Cg==

@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json 1108ad343b7dd949ad110dbe87b6befb45ac170fb73267215577d87f35c24549 px1nSIoxESe+nyd3xJCumbhSHhOzK1cJUiQYuAdmOsRRGKL83Ez+Zq1C+ujPXXWxyYFYE8X2efzL9QhxwS+gAw==

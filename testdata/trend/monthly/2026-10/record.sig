@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json fd7691e1a5e84a5e86d2b59cc6381b521c349786a7e62e3950c1f8ea4d37afdd 3hVRHeZ7l+LDTaRWShJhn8pQ3FFPAi471wPeaR3KUKY40GjNXLe5ymz/mhnAm5gegX4V7Hjs5dc/ZrdUtbfEBQ==

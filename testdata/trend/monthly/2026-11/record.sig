@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json 0346b46dcd1132d77be637ac299f0abda02cd467f39f63fa88f5cccd75c85fd4 vAZ7/0PaB+Ec+c+rNOf4hhRdTt/NvV20HQWyN+DaajKQm1AqSqAnAcpDFOn1Vpx6jcHQTkr2aA8YzaoNKpYZDg==

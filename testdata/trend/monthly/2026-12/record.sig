@@ -1,0 +1,5 @@
+probity-signature-v1
+algorithm: ed25519
+public-key: Ub+uf6ksUVUSzTrUQnYOQWEuWd/sORP2cLchwEJVsGg=
+key-fingerprint: sha256:b1e3ff24afcd9ccbc606e942d4e72066e9cc2a0b913cf364e59f5e80ccc588f7
+file: record.json b93b9d8c6a78338405e55066f45e8f656b74de059566f91b3b4b617b62143379 wvUKIEiaNJuv+A3146L6NPlTbBl0xit5j2y7mj1N+K9DA1//om0U6quY4e6KlRVYNtAyboox7AWD49uIOmdACg==
