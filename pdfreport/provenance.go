@@ -33,6 +33,9 @@ func (d *doc) provenanceSection(c *content) {
 		kvMono("Worksheet", digest(fp.Worksheet)),
 		kvMono("Labels", digest(fp.Labels)),
 	}
+	if fp.Trail != "" {
+		rows = append(rows, kvMono("Label trail", fp.Trail))
+	}
 	d.drawTable(&table{title: "Data fingerprints", cols: []column{{w: 22}, {w: 78}}, rows: rows, keyFill: true, size: bodySize - 0.5})
 
 	wording := "embedded set"

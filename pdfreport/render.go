@@ -202,6 +202,7 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 		d.strataSection,
 		d.confusionSection,
 		d.labelQualitySection,
+		d.labelTrailSection,
 		d.methodSection,
 		d.deviationsSection,
 		d.scopeSection,

@@ -6,8 +6,8 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
-	"os"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"time"
 
 	"gopkg.in/yaml.v3"
@@ -176,6 +176,9 @@ func (f *File) Marshal() ([]byte, error) {
 // *inputerr.Error wrapping ErrPlanFile. Unknown keys
 // are refused, so a typo in a hand-edited plan is not silently ignored.
 func Parse(data []byte, name string) (*File, error) {
+	if err := checkNotReport(data, name); err != nil {
+		return nil, err
+	}
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	dec.KnownFields(true)
 	var f File
@@ -196,9 +199,9 @@ func planFileError(name string, err error) error {
 
 // Load reads and parses a plan file and returns it with its fingerprint.
 func Load(path string) (*File, string, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "plan file", inputfile.SmallLimit)
 	if err != nil {
-		return nil, "", inputerr.FromPath(err)
+		return nil, "", err
 	}
 	f, err := Parse(data, path)
 	if err != nil {

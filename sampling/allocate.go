@@ -2,6 +2,7 @@ package sampling
 
 import (
 	"errors"
+	"fmt"
 	"math"
 	"math/big"
 	"probity/plan/inputerr"
@@ -79,8 +80,11 @@ func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocat
 	if n < 1 {
 		return nil, inputerr.Errorf("%w: sample size %d is below 1", ErrAllocation, n)
 	}
-	if opts.MinPerStratum < 0 || opts.Spare < 0 {
-		return nil, inputerr.Errorf("%w: minimum per stratum and spares cannot be negative", ErrAllocation)
+	if opts.MinPerStratum < 0 {
+		return nil, inputerr.Errorf("%w: the minimum per stratum cannot be negative", ErrAllocation)
+	}
+	if err := checkSpare(opts.Spare, n); err != nil {
+		return nil, err
 	}
 	rule := opts.Rule
 	if rule == "" {
@@ -168,6 +172,20 @@ func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocat
 		}
 	}
 	return out, nil
+}
+
+// checkSpare bounds the spares per stratum by the sample size: spares
+// replace items that cannot be labeled, and every kept spare costs memory
+// in each stratum while the log is read.
+func checkSpare(spare, n int) error {
+	switch {
+	case spare < 0:
+		return &inputerr.Error{Field: "spare", Msg: fmt.Sprintf("%d: cannot be negative", spare)}
+	case spare > n:
+		return &inputerr.Error{Field: "spare", Msg: fmt.Sprintf("%d: at most the sample size %d per stratum", spare, n),
+			Hint: "spares replace the few items that cannot be labeled; a handful per stratum is usual"}
+	}
+	return nil
 }
 
 // apportion divides m units among the strata not fixed, in proportion to

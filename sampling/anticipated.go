@@ -4,9 +4,8 @@ import (
 	"bytes"
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
-	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/sampling/drawfolder"
 	"strconv"
 	"strings"
@@ -19,9 +18,9 @@ import (
 // anticipated_error, or a YAML (.yaml/.yml) mapping of stratum label to
 // p_h. Every p_h must lie in (0, 1); a label may appear once.
 func ReadAnticipated(path string) (map[string]float64, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "file of anticipated errors", inputfile.SmallLimit)
 	if err != nil {
-		return nil, inputerr.FromPath(err)
+		return nil, err
 	}
 	ext := strings.ToLower(filepath.Ext(path))
 	if ext == ".yaml" || ext == ".yml" {

@@ -1,6 +1,8 @@
 package sampling
 
 import (
+	"errors"
+	"fmt"
 	"probity/plan/inputerr"
 	"probity/sampling/drawfolder"
 )
@@ -44,4 +46,42 @@ func DrawInputFromManifest(m *drawfolder.Manifest) (DrawInput, error) {
 		}
 	}
 	return in, nil
+}
+
+// ErrNotTheLog is wrapped by the error of Redraw about a log that cannot
+// be the one the draw was made from.
+var ErrNotTheLog = errors.New("not the log the draw was made from")
+
+// Redraw draws again, with the options m records (in, from
+// DrawInputFromManifest, completed by the caller with the plan and the
+// log), for a comparison with the draw folder (drawfolder.Compare, which
+// also tells a log compressed again from another log). A log that cannot
+// be the one the draw read — its name gives another format than the
+// draw's log had, or it cannot be read as that log was — is an input
+// error wrapping ErrNotTheLog that says so. (A line over the length limit
+// is left as it is: raising the limit is its fix.)
+func Redraw(m *drawfolder.Manifest, in DrawInput) (*drawfolder.Content, error) {
+	name := in.LogPath
+	if name == "-" {
+		name = "stdin"
+	}
+	if f := FormatFromName(in.LogPath); f != "" && m.Log.Format != "" && f != m.Log.Format {
+		return nil, notTheLog(name, fmt.Sprintf("its name says %s, but the draw read %s (%s)", f, m.Log.Path, m.Log.Kind()))
+	}
+	c, err := Draw(in)
+	if err == nil {
+		return c, nil
+	}
+	if ie, ok := inputerr.As(err); ok && ie.File == name && !errors.Is(err, ErrLineTooLong) {
+		return nil, notTheLog(name, fmt.Sprintf("it cannot be read as the draw's log %s (%s) was: %s", m.Log.Path, m.Log.Kind(), err))
+	}
+	return nil, err
+}
+
+// notTheLog is the error about a log that is not the draw's.
+func notTheLog(name, why string) *inputerr.Error {
+	e := inputErrorf(name, 0, "", "this is not the log the draw was made from: %s", why)
+	e.Err = ErrNotTheLog
+	e.Hint = "give the log the draw was made from (compressed again is fine; the same rows in another format are another file)"
+	return e
 }

@@ -5,7 +5,9 @@ import (
 	"errors"
 	"fmt"
 	"io"
+
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 )
 
 // readError turns a read failure into an InputError (a truncated gzip
@@ -90,6 +92,53 @@ func (s *scanner) firstRecordEnd(buf []byte, eof bool) int {
 	return 0
 }
 
+// growTo is the size of the next read buffer when a record does not end
+// within n bytes: twice as large, but no larger than is needed to see
+// that a record runs past MaxLine (its line end, up to 2 bytes, aside).
+func (s *scanner) growTo(n int) int {
+	return max(n+1, int(min(2*int64(n), s.spec.MaxLine+2)))
+}
+
+// checkLines refuses a line of data, whose first line is line number
+// first, that is longer than MaxLine (its line end excluded).
+func (s *scanner) checkLines(first int64, data []byte) *inputerr.Error {
+	for n := first; len(data) > 0; n++ {
+		i := bytes.IndexByte(data, '\n')
+		if i < 0 {
+			i = len(data)
+		}
+		if l := trimEOL(data[:i]); int64(len(l)) > s.spec.MaxLine {
+			return s.longRecordError(n, l)
+		}
+		data = data[min(i+1, len(data)):]
+	}
+	return nil
+}
+
+// longRecordError refuses the line (or CSV record) starting at line
+// number line, of which data is the start, for being longer than MaxLine.
+// Only a line of text that is merely long wraps ErrLineTooLong (raising the
+// limit is its fix); a quoted field never closed and a file of NUL bytes
+// are not logs with long lines.
+func (s *scanner) longRecordError(line int64, data []byte) *inputerr.Error {
+	var e *inputerr.Error
+	switch {
+	case bytes.IndexByte(data, '\n') < 0 && bytes.Count(data[:min(len(data), 1<<16)], []byte{'\r'}) > 1:
+		return s.crOnlyError()
+	case bytes.IndexByte(data, '\n') >= 0:
+		e = inputErrorf(s.spec.Name, int(line), "", "the record starting on this line runs past %s without ending: a quoted field that is never closed?", inputfile.Size(s.spec.MaxLine))
+		e.Hint = "a \" opens a quoted field in CSV, which runs to the next \" (line ends included)"
+	case bytes.Count(data[:min(len(data), 4096)], []byte{0}) > 64:
+		e = inputErrorf(s.spec.Name, int(line), "", "the line is longer than %s and holds NUL bytes: this is not a text log", inputfile.Size(s.spec.MaxLine))
+		e.Hint = "give a CSV, TSV or JSON Lines file, optionally gzip-compressed"
+	default:
+		e = inputErrorf(s.spec.Name, int(line), "", "the line is longer than %s", inputfile.Size(s.spec.MaxLine))
+		e.Hint = "a log holds one record per line; if its lines really are this long, raise the limit"
+		e.Err = ErrLineTooLong
+	}
+	return e
+}
+
 // trimEOL removes a final "\n" or "\r\n".
 func trimEOL(b []byte) []byte {
 	b = bytes.TrimSuffix(b, []byte("\n"))
@@ -127,7 +176,7 @@ func (s *scanner) feed(r io.Reader, rest []byte, rerr error, out chan<- chunk, p
 		var err error
 		size := s.spec.ChunkSize
 		if len(buf) >= size {
-			size = 2 * len(buf)
+			size = s.growTo(len(buf))
 		}
 		if !eof {
 			buf, err = readMore(r, buf, size)
@@ -144,11 +193,24 @@ func (s *scanner) feed(r io.Reader, rest []byte, rerr error, out chan<- chunk, p
 		}
 		end := s.recordEnd(buf, eof)
 		if end == 0 {
-			// No record ends in this buffer: read a bigger one.
+			// No record ends in this buffer: read a bigger one, up to
+			// the longest record allowed.
+			if int64(len(buf)) > s.spec.MaxLine {
+				pool <- bp
+				return line - 1, s.longRecordError(line, buf)
+			}
 			carry = append(carry[:0], buf...)
 			*bp = buf[:0]
 			pool <- bp
 			continue
+		}
+		if len(buf) > s.spec.ChunkSize || int64(s.spec.ChunkSize) > s.spec.MaxLine {
+			// The buffer grew for a long record (or could hold a line
+			// over the limit): check its lines.
+			if err := s.checkLines(line, buf[:end]); err != nil {
+				pool <- bp
+				return line - 1, err
+			}
 		}
 		carry = append(carry[:0], buf[end:]...)
 		data := buf[:end]

@@ -39,7 +39,9 @@ type DrawInput struct {
 	// Double is k of --double k.
 	Double int
 	// Dedupe keeps the first row of a repeated id.
-	Dedupe      bool
+	Dedupe bool
+	// MaxLine bounds the bytes of a line of the log (0: DefaultMaxLine).
+	MaxLine     int64
 	ToolVersion string
 	Workers     int
 	ChunkSize   int
@@ -70,6 +72,9 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	n := p.Rule.SampleSize
 	if in.Double < 0 || in.Double > n {
 		return nil, &inputerr.Error{Field: "double", Msg: fmt.Sprintf("%d: must be between 0 and the sample size %d", in.Double, n)}
+	}
+	if err := checkSpare(in.Alloc.Spare, n); err != nil {
+		return nil, err
 	}
 	if err := checkShow(in); err != nil {
 		return nil, err
@@ -103,7 +108,7 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	res, err := Scan(in.Log, ScanSpec{
 		Name: name, Format: in.Format, Seed: selection, IDColumn: in.IDColumn,
 		StrataColumns: in.StrataColumns, Bands: in.Bands, Where: in.Where, Keep: keep, KeepRoles: roles,
-		Capacity: n + in.Alloc.Spare + capacityMargin, Dedupe: in.Dedupe,
+		Capacity: n + in.Alloc.Spare + capacityMargin, Dedupe: in.Dedupe, MaxLine: in.MaxLine,
 		Workers: in.Workers, ChunkSize: in.ChunkSize, Progress: in.Progress,
 	})
 	if err != nil {
@@ -206,7 +211,7 @@ func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, sel
 	m := &drawfolder.Manifest{
 		Format: drawfolder.ManifestFormat, ToolVersion: in.ToolVersion, PlanFingerprint: in.PlanFingerprint,
 		Seed: p.Seed, SelectionSeed: selection, KeyDefinition: KeyDefinition,
-		Log: drawfolder.LogInfo{Path: in.LogPath, SHA256: res.SHA256, Bytes: res.Bytes, Rows: res.Rows,
+		Log: drawfolder.LogInfo{Path: in.LogPath, SHA256: res.SHA256, ContentSHA256: res.ContentSHA256, Bytes: res.Bytes, Rows: res.Rows,
 			Format: res.Format, Compression: res.Compression},
 		IDColumn:      in.IDColumn,
 		StrataColumns: append([]string{}, in.StrataColumns...),
@@ -228,7 +233,7 @@ func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, sel
 	}
 	if in.Dedupe {
 		m.Dedupe = "first"
-		m.DuplicatesDropped = len(res.Duplicates)
+		m.DuplicatesDropped = int(res.Repeats)
 	}
 	for _, a := range alloc {
 		m.Strata = append(m.Strata, drawfolder.StratumInfo{Label: a.Label, Population: a.Population, Sample: a.Sample,

@@ -181,8 +181,9 @@ type jsonValueError struct {
 
 func (e *jsonValueError) Error() string { return e.msg }
 
-// parse decodes rec (one JSON object) and fills vals: strings unquoted,
-// numbers and booleans as written, null as empty.
+// parse decodes rec (one JSON object) and fills vals: strings unquoted
+// to exactly the bytes they stand for (see unquoteJSON), numbers and
+// booleans as written, null as empty.
 func (j *jsonFields) parse(rec []byte) error {
 	if j.parseFlat(rec) {
 		return nil
@@ -214,11 +215,11 @@ func (j *jsonFields) parseGeneral(rec []byte) error {
 		case len(raw) == 0 || string(raw) == "null":
 			j.vals[slot] = nil
 		case raw[0] == '"':
-			var s string
-			if err := json.Unmarshal(raw, &s); err != nil {
+			s, err := unquoteJSON(nil, raw)
+			if err != nil {
 				return &jsonValueError{name, fmt.Sprintf("key %q: %v", name, err)}
 			}
-			j.vals[slot] = []byte(s)
+			j.vals[slot] = s
 		case raw[0] == '{' || raw[0] == '[':
 			return &jsonValueError{name, fmt.Sprintf("key %q holds an object or a list, not a value", name)}
 		default:

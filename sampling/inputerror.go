@@ -1,7 +1,10 @@
 package sampling
 
 import (
+	"fmt"
+	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"probity/plan/inputerr"
 )
@@ -14,10 +17,51 @@ func inputErrorf(file string, line int, column, format string, args ...any) *inp
 	return inputerr.At(file, line, column, format, args...)
 }
 
-// columnList formats column names for a "the columns are …" message.
+// columnList formats column names for a "the columns are …" message: at
+// most 40 of them, each cut to a readable length.
 func columnList(cols []string) string {
 	if len(cols) == 0 {
 		return "(none)"
 	}
-	return strings.Join(cols, ", ")
+	const most = 40
+	var out []string
+	for i, c := range cols {
+		if i == most {
+			out = append(out, fmt.Sprintf("… (%d columns)", len(cols)))
+			break
+		}
+		out = append(out, cut(c))
+	}
+	return strings.Join(out, ", ")
+}
+
+// shownBytes is how much of a value from a log a message shows.
+const shownBytes = 60
+
+// cut returns s, or its start and the count of its bytes when it is too
+// long to show in a message.
+func cut(s string) string {
+	if len(s) <= shownBytes+16 {
+		return s
+	}
+	return fmt.Sprintf("%s… (%d bytes)", startOf(s), len(s))
+}
+
+// quote is %q of a value from a log, cut like cut when too long.
+func quote[T ~string | ~[]byte](v T) string {
+	s := string(v)
+	if len(s) <= shownBytes+16 {
+		return strconv.Quote(s)
+	}
+	return fmt.Sprintf("%s… (%d bytes)", strconv.Quote(startOf(s)), len(s))
+}
+
+// startOf is the first shownBytes bytes of s, without splitting a
+// character.
+func startOf(s string) string {
+	n := shownBytes
+	for n > 0 && n < len(s) && !utf8.RuneStart(s[n]) {
+		n--
+	}
+	return s[:n]
 }

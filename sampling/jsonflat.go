@@ -13,8 +13,8 @@ import (
 // null as empty; of a repeated key the last value). It returns false —
 // and the caller takes the general path, which also words any error —
 // for anything else: an escape, a nested value, a string that is not
-// valid UTF-8 (which the general path would alter), a needed key missing,
-// or a record that is not valid JSON.
+// valid UTF-8 (the general path keeps its bytes too, and words the refusal
+// of an id), a needed key missing, or a record that is not valid JSON.
 func (j *jsonFields) parseFlat(rec []byte) bool {
 	if bytes.IndexByte(rec, '\\') >= 0 {
 		return false

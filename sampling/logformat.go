@@ -76,9 +76,12 @@ func (c *countingHasher) Read(p []byte) (int, error) {
 }
 
 // openedLog is a log stream ready for the chunker: decompressed if it was
-// gzip, with the raw bytes hashed and counted underneath.
+// gzip, with the raw bytes hashed and counted underneath, and the
+// decompressed bytes hashed too (content; nil when the log is not
+// compressed, its content being its raw bytes).
 type openedLog struct {
 	raw         *countingHasher
+	content     *countingHasher
 	r           io.Reader
 	compression string
 }
@@ -94,18 +97,25 @@ func openLog(src io.Reader) (*openedLog, error) {
 		if err != nil {
 			return nil, err
 		}
-		return &openedLog{raw: raw, r: zr, compression: CompressionGzip}, nil
+		content := &countingHasher{r: zr, h: sha256.New()}
+		return &openedLog{raw: raw, content: content, r: content, compression: CompressionGzip}, nil
 	}
 	return &openedLog{raw: raw, r: br, compression: CompressionNone}, nil
 }
 
 // finish drains what is left of the raw stream (so the hash covers the
-// whole file, e.g. bytes after a gzip member) and returns hash and size.
-func (o *openedLog) finish() (string, int64, error) {
+// whole file, e.g. bytes after a gzip member) and returns its hash and
+// size, and the hash of its content (the decompressed bytes).
+func (o *openedLog) finish() (sum string, n int64, content string, err error) {
 	if _, err := io.Copy(io.Discard, o.raw); err != nil {
-		return "", 0, err
+		return "", 0, "", err
 	}
-	return hexSum(o.raw.h), o.raw.n, nil
+	sum = hexSum(o.raw.h)
+	content = sum
+	if o.content != nil {
+		content = hexSum(o.content.h)
+	}
+	return sum, o.raw.n, content, nil
 }
 
 func hexSum(h hash.Hash) string {

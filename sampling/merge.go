@@ -30,6 +30,7 @@ func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 		events = append(events, w.dups...)
 	}
 	strata := make([]StratumScan, len(sorted))
+	var rowsInScope int64
 	index := map[string]int{}
 	for i, label := range sorted {
 		index[label] = i
@@ -40,6 +41,7 @@ func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 				continue
 			}
 			st.Count += ws.count
+			rowsInScope += ws.count
 			st.Rows = mergeRows(st.Rows, w.held[label], label, &events)
 		}
 		if len(st.Rows) > s.spec.Capacity {
@@ -65,6 +67,9 @@ func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 			valid = append(valid, ev)
 			strata[index[ev.stratum]].Count--
 		}
+	}
+	if s.distinct != nil {
+		return s.mergeDistinct(res, strata, valid, rowsInScope)
 	}
 	// The same id in two strata (its stratum values differ between rows).
 	type at struct{ stratum, row int }
@@ -101,27 +106,74 @@ func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 			strata[i].Rows = out
 		}
 	}
-	sort.Slice(valid, func(a, b int) bool {
-		if valid[a].other != valid[b].other {
-			return valid[a].other < valid[b].other
-		}
-		return bytes.Compare(valid[a].key[:], valid[b].key[:]) < 0
-	})
-	for _, ev := range valid {
-		res.Duplicates = append(res.Duplicates, Duplicate{ID: ev.id, Stratum: ev.stratum, FirstLine: ev.kept, Line: ev.other})
-	}
-	if len(valid) > 0 && !s.spec.Dedupe {
+	res.Duplicates = duplicates(valid)
+	if len(valid) > 0 {
 		return nil, s.duplicateError(res.Duplicates)
 	}
+	res.Strata, res.InScope = nonEmpty(strata)
+	return res, nil
+}
+
+// mergeDistinct completes merge under Dedupe from the distinct-id table:
+// each stratum's population is the number of distinct ids whose first row
+// in scope lies in it, and a kept row that is not its id's first row (a
+// later row of an id first seen in another stratum) is dropped.
+func (s *scanner) mergeDistinct(res *ScanResult, strata []StratumScan, events []dupEvent, rowsInScope int64) (*ScanResult, error) {
+	counts := s.distinct.counts(len(s.numLabels))
+	for i := range strata {
+		st := &strata[i]
+		n, ok := s.stratumNums[st.Label]
+		if !ok {
+			return nil, fmt.Errorf("internal: stratum %q has no number", st.Label)
+		}
+		st.Count = counts[n]
+		out := st.Rows[:0]
+		for _, r := range st.Rows {
+			line, num, ok := s.distinct.first(&r.Key)
+			if !ok {
+				return nil, fmt.Errorf("internal: a kept row of line %d is not in the distinct-id table", r.Line)
+			}
+			if line == r.Line && num == n {
+				out = append(out, r)
+				continue
+			}
+			events = append(events, dupEvent{key: r.Key, stratum: s.numLabels[num], id: r.ID, kept: line, other: r.Line})
+		}
+		st.Rows = out
+	}
+	res.Duplicates = duplicates(events)
+	res.Strata, res.InScope = nonEmpty(strata)
+	res.Repeats = rowsInScope - res.InScope
+	return res, nil
+}
+
+// duplicates sorts repeat events by the later line (then key) into the
+// result's list.
+func duplicates(events []dupEvent) []Duplicate {
+	sort.Slice(events, func(a, b int) bool {
+		if events[a].other != events[b].other {
+			return events[a].other < events[b].other
+		}
+		return bytes.Compare(events[a].key[:], events[b].key[:]) < 0
+	})
+	var out []Duplicate
+	for _, ev := range events {
+		out = append(out, Duplicate{ID: ev.id, Stratum: ev.stratum, FirstLine: ev.kept, Line: ev.other})
+	}
+	return out
+}
+
+// nonEmpty keeps the strata with a population and sums it.
+func nonEmpty(strata []StratumScan) ([]StratumScan, int64) {
 	var out []StratumScan
+	var total int64
 	for _, st := range strata {
 		if st.Count > 0 {
 			out = append(out, st)
-			res.InScope += st.Count
+			total += st.Count
 		}
 	}
-	res.Strata = out
-	return res, nil
+	return out, total
 }
 
 // mergeRows merges two runs of rows sorted by key into one; of two rows
@@ -157,7 +209,7 @@ func mergeRows(a, b []Row, label string, events *[]dupEvent) []Row {
 func (s *scanner) duplicateError(d []Duplicate) *inputerr.Error {
 	first := d[0]
 	var b strings.Builder
-	fmt.Fprintf(&b, "record id %q appears again (first on line %d)", first.ID, first.FirstLine)
+	fmt.Fprintf(&b, "record id %s appears again (first on line %d)", quote(first.ID), first.FirstLine)
 	if len(d) > 1 {
 		fmt.Fprintf(&b, "; %d repeats among the rows that could be drawn: ", len(d))
 		for i, x := range d {
@@ -168,7 +220,7 @@ func (s *scanner) duplicateError(d []Duplicate) *inputerr.Error {
 			if i > 0 {
 				b.WriteString(", ")
 			}
-			fmt.Fprintf(&b, "%q (lines %d and %d)", x.ID, x.FirstLine, x.Line)
+			fmt.Fprintf(&b, "%s (lines %d and %d)", quote(x.ID), x.FirstLine, x.Line)
 		}
 	}
 	e := inputErrorf(s.spec.Name, int(first.Line), s.spec.IDColumn, "%s", b.String())

@@ -37,8 +37,13 @@ type ScanSpec struct {
 	// allocation can give (n + spare is always enough).
 	Capacity int
 	// Dedupe keeps the first occurrence of a repeated id instead of
-	// reporting an error.
+	// reporting an error; every stratum then counts distinct ids (the
+	// stratum of an id is that of its first row in scope), which needs an
+	// entry per distinct id (see distinctSet).
 	Dedupe bool
+	// MaxDistinct bounds the distinct ids a scan under Dedupe counts (0:
+	// DefaultMaxDistinct); a log with more is refused.
+	MaxDistinct int64
 	// Workers is the number of parsing and hashing goroutines (0: one per
 	// CPU).
 	Workers int
@@ -47,6 +52,11 @@ type ScanSpec struct {
 	ChunkSize int
 	// MaxStrata bounds the number of strata (0: 10 000).
 	MaxStrata int
+	// MaxLine bounds the bytes of one line of the log, and of one record
+	// (a CSV record may span lines inside quotes), line end excluded (0:
+	// DefaultMaxLine): memory stays bounded by the sample even for a log
+	// without line ends. A longer line is refused (ErrLineTooLong).
+	MaxLine int64
 	// lineByLine sends CSV chunks holding quotes through the general
 	// line-by-line reader instead of the delimiter masks (tests compare
 	// the two).
@@ -87,10 +97,17 @@ type ScanResult struct {
 	Compression string
 	SHA256      string
 	Bytes       int64
-	// Rows counts data rows; InScope those matching the filters (after
-	// dropping detected repeats under Dedupe).
+	// ContentSHA256 is the SHA-256 of the log's content: its decompressed
+	// bytes (SHA256 itself when the log is not compressed), which
+	// compressing it again does not change.
+	ContentSHA256 string
+	// Rows counts data rows; InScope those matching the filters (under
+	// Dedupe: the distinct ids among them).
 	Rows    int64
 	InScope int64
+	// Repeats is, under Dedupe, the number of rows in scope dropped as
+	// later rows of an id already seen.
+	Repeats int64
 	Strata  []StratumScan
 	// Duplicates are the repeated ids detected, by line.
 	Duplicates []Duplicate
@@ -98,6 +115,14 @@ type ScanResult struct {
 
 // ErrDuplicateIDs is wrapped by the error for repeated ids without Dedupe.
 var ErrDuplicateIDs = errors.New("duplicate record ids")
+
+// DefaultMaxLine is the longest line a log may have unless told
+// otherwise.
+const DefaultMaxLine = 16 << 20
+
+// ErrLineTooLong is wrapped by the error about a line of text longer than
+// ScanSpec.MaxLine.
+var ErrLineTooLong = errors.New("a line of the log is longer than the limit")
 
 // ErrIDColumn is the cause of the error about a log without the id column
 // the draw was told to use.
@@ -110,10 +135,12 @@ var ErrIDColumn = errors.New("the id column is not in the log")
 //
 // A repeated id has the same key on every row, so every repeat whose key
 // is among the kept rows of its stratum is detected exactly: without
-// Dedupe it is an error naming the first few and their lines; with Dedupe
-// the first occurrence is kept and the stratum count excludes the
-// repeats. (Repeats whose key is larger than every kept key cannot change
-// the sample and are not seen in one bounded pass.)
+// Dedupe it is an error naming the first few and their lines. (Repeats
+// whose key is larger than every kept key cannot change the sample and
+// are not seen in one bounded pass.) With Dedupe the first row of each id
+// is kept and the others dropped; the stratum counts are then exact
+// counts of distinct ids, which costs memory per distinct id (at most
+// MaxDistinct of them).
 func Scan(src io.Reader, spec ScanSpec) (*ScanResult, error) {
 	if spec.Name == "" {
 		spec.Name = "log"
@@ -130,11 +157,18 @@ func Scan(src io.Reader, spec ScanSpec) (*ScanResult, error) {
 	if spec.IDColumn == "" {
 		spec.IDColumn = "record_id"
 	}
+	if spec.MaxLine <= 0 {
+		spec.MaxLine = DefaultMaxLine
+	}
 	ol, err := openLog(src)
 	if err != nil {
 		return nil, inputErrorf(spec.Name, 0, "", "cannot read the gzip header: %v", err)
 	}
 	s := &scanner{spec: spec, ol: ol}
+	if spec.Dedupe {
+		s.distinct = newDistinctSet(spec.MaxDistinct)
+		s.spec.MaxStrata = min(s.spec.MaxStrata, maxDistinctStrata)
+	}
 	return s.run()
 }
 
@@ -163,6 +197,39 @@ type scanner struct {
 	errSeq atomic.Int64 // lowest chunk seq that failed
 	mu     sync.Mutex
 	errs   []*inputerr.Error
+
+	// distinct holds every distinct id in scope under Dedupe (else nil);
+	// stratumNums numbers the strata for it, by label.
+	distinct    *distinctSet
+	numMu       sync.Mutex
+	stratumNums map[string]int
+	numLabels   []string
+}
+
+// stratumNumber returns the number of the stratum with this label in the
+// distinct-id table, numbering it when new.
+func (s *scanner) stratumNumber(label string) int {
+	s.numMu.Lock()
+	defer s.numMu.Unlock()
+	if s.stratumNums == nil {
+		s.stratumNums = map[string]int{}
+	}
+	n, ok := s.stratumNums[label]
+	if !ok {
+		n = len(s.numLabels)
+		s.stratumNums[label] = n
+		s.numLabels = append(s.numLabels, label)
+	}
+	return n
+}
+
+// tooManyDistinctError refuses a log with more distinct ids than a scan
+// under Dedupe counts.
+func (s *scanner) tooManyDistinctError() *inputerr.Error {
+	e := inputErrorf(s.spec.Name, 0, "", "more than %d distinct record ids are in scope: removing repeated ids counts every distinct id, and a draw holds at most that many in memory", s.distinct.max)
+	e.Err = ErrTooManyDistinct
+	e.Hint = "remove the repeated rows before drawing (or draw from a smaller scope), and draw without removing repeats"
+	return e
 }
 
 type compiledFilter struct {
@@ -215,12 +282,21 @@ func (s *scanner) run() (*ScanResult, error) {
 		if headerEnd > 0 || rerr != nil {
 			break
 		}
-		first, rerr = readMore(br, first, 2*cap(first))
+		if int64(len(first)) > s.spec.MaxLine {
+			return nil, s.longRecordError(1, first)
+		}
+		first, rerr = readMore(br, first, s.growTo(cap(first)))
 	}
 	if headerEnd <= 0 {
 		headerEnd = len(first)
 	}
+	if err := s.checkLines(1, first[:headerEnd]); err != nil {
+		return nil, err
+	}
 	headRec := trimEOL(first[:headerEnd])
+	if err := s.checkHeaderLine(headRec); err != nil {
+		return nil, err
+	}
 	var err error
 	switch s.format {
 	case FormatJSONL:
@@ -261,6 +337,11 @@ func (s *scanner) run() (*ScanResult, error) {
 					w.chunk(c)
 				}
 				*c.buf = (*c.buf)[:0]
+				if cap(*c.buf) > 4*s.spec.ChunkSize {
+					// Grown for a long record: let it go, so the
+					// pool does not keep long buffers.
+					*c.buf = make([]byte, 0, s.spec.ChunkSize)
+				}
 				pool <- c.buf
 			}
 			w.finish()
@@ -284,7 +365,7 @@ func (s *scanner) run() (*ScanResult, error) {
 	if readErr != nil {
 		return nil, readErr
 	}
-	sum, n, err := s.ol.finish()
+	sum, n, content, err := s.ol.finish()
 	if err != nil {
 		return nil, s.readError(err, lines)
 	}
@@ -293,6 +374,7 @@ func (s *scanner) run() (*ScanResult, error) {
 		return nil, err
 	}
 	res.Header, res.Format, res.Compression, res.SHA256, res.Bytes = s.header, s.format, s.ol.compression, sum, n
+	res.ContentSHA256 = content
 	if res.Rows == 0 {
 		return nil, inputErrorf(s.spec.Name, 0, "", "the log has a header but no rows")
 	}
@@ -315,12 +397,35 @@ func filterList(fs []Filter) string {
 	return b.String()
 }
 
+// checkHeaderLine refuses two layouts a spreadsheet program may save a log
+// in, which would otherwise read as one odd header: line ends that are
+// carriage returns alone (old Mac files), and CSV fields separated by
+// semicolons.
+func (s *scanner) checkHeaderLine(h []byte) *inputerr.Error {
+	if s.format != FormatJSONL && bytes.IndexByte(h, '\r') >= 0 && bytes.Count(h, []byte{'"'}) == 0 {
+		return s.crOnlyError()
+	}
+	if semis := bytes.Count(h, []byte{';'}); s.format == FormatCSV && semis >= 2 && bytes.Count(h, []byte{','}) < semis {
+		e := inputErrorf(s.spec.Name, 1, "", "its fields are separated by ';', not ','")
+		e.Hint = "a log is CSV with ',' as the separator, TSV or JSON Lines: save or export it again with ',' (or tabs)"
+		return e
+	}
+	return nil
+}
+
+// crOnlyError refuses a log whose line ends are carriage returns alone.
+func (s *scanner) crOnlyError() *inputerr.Error {
+	e := inputErrorf(s.spec.Name, 0, "", "its line ends are carriage returns alone (\\r, as in old Mac files), so it reads as one line")
+	e.Hint = "save it with Unix (LF) or Windows (CRLF) line ends"
+	return e
+}
+
 // compile resolves the spec's columns against the header.
 func (s *scanner) compile() error {
 	seen := map[string]int{}
 	for i, h := range s.header {
 		if _, dup := seen[h]; dup {
-			return inputErrorf(s.spec.Name, 1, h, "the header names column %q twice (column %d)", h, i+1)
+			return inputErrorf(s.spec.Name, 1, cut(h), "the header names column %s twice (column %d)", quote(h), i+1)
 		}
 		seen[h] = i
 	}

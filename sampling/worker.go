@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"strconv"
+	"unicode/utf8"
 	"unsafe"
 
 	"probity/plan/inputerr"
@@ -45,6 +46,8 @@ type worker struct {
 	rows       int64
 	dups       []dupEvent
 	seq        int64
+	// tooMany is set once the distinct ids overflowed (reported once).
+	tooMany bool
 }
 
 type wstratum struct {
@@ -52,6 +55,8 @@ type wstratum struct {
 	label string
 	count int64
 	ret   *retainer
+	// num is the stratum's number in the distinct-id table (Dedupe).
+	num int
 }
 
 type dupEvent struct {
@@ -108,6 +113,9 @@ func (w *worker) finish() {
 // retainer finds become the worker's repeat events.
 func (w *worker) newStratum(label string) *wstratum {
 	st := &wstratum{label: label, ret: newRetainer(w.s.spec.Capacity, &w.merge)}
+	if w.s.distinct != nil {
+		st.num = w.s.stratumNumber(label)
+	}
 	st.ret.onDup = func(k *hkey, id []byte, kept, other int64) {
 		w.dups = append(w.dups, dupEvent{key: k.bytes(), stratum: label, id: string(id), kept: kept, other: other})
 	}
@@ -228,6 +236,9 @@ func (w *worker) classify(line int64, nf int) (*wstratum, *inputerr.Error) {
 	if len(id) == 0 {
 		return nil, inputErrorf(name, int(line), s.spec.IDColumn, "the record id is empty")
 	}
+	if !utf8.Valid(id) {
+		return nil, notUTF8(name, line, s.spec.IDColumn, "the record id", id)
+	}
 	for _, f := range s.filters {
 		if _, ok := f.set[string(w.vals[f.slot])]; !ok {
 			return nil, nil
@@ -281,7 +292,9 @@ func (w *worker) classify(line int64, nf int) (*wstratum, *inputerr.Error) {
 			// two different value lists could share a label.
 			for i, sl := range s.strataSlots {
 				if v := w.vals[sl]; bytes.IndexByte(v, '|') >= 0 {
-					return nil, inputErrorf(name, int(line), s.spec.StrataColumns[i], "the value %q holds a |, which separates stratum values in labels", v)
+					return nil, inputErrorf(name, int(line), s.spec.StrataColumns[i], "the value %s holds a |, which separates stratum values in labels", quote(v))
+				} else if !utf8.Valid(v) {
+					return nil, notUTF8(name, line, s.spec.StrataColumns[i], "the stratum value", v)
 				}
 			}
 			if len(w.strata) >= s.spec.MaxStrata {
@@ -303,6 +316,11 @@ func (w *worker) classify(line int64, nf int) (*wstratum, *inputerr.Error) {
 // not nil, is the record whose kept columns have not been read yet (quoted
 // tells whether it holds quote characters); otherwise they are in w.vals.
 func (w *worker) consider(st *wstratum, key *hkey, id []byte, line int64, rec []byte, quoted bool) {
+	if d := w.s.distinct; d != nil && !d.add(key, line, st.num) && !w.tooMany {
+		w.tooMany = true
+		w.s.fail(w.seq, w.s.tooManyDistinctError())
+		return
+	}
 	r := st.ret
 	if !r.wants(key[0]) || !r.admit(key, line) {
 		return
@@ -352,7 +370,7 @@ func (w *worker) bandIndex(line int64, i, sl int) (int, *inputerr.Error) {
 		if err == nil {
 			what = "is outside [0, 1], the range a band splits"
 		}
-		return 0, inputErrorf(w.s.spec.Name, int(line), b.Column, "the band value %q %s", v, what)
+		return 0, inputErrorf(w.s.spec.Name, int(line), b.Column, "the band value %s %s", quote(v), what)
 	}
 	if e != nil {
 		*e = shortEntry{word: word, id: int32(idx)}
@@ -367,6 +385,24 @@ func parseScore(v []byte) (float64, error) {
 		return 0, strconv.ErrSyntax
 	}
 	return strconv.ParseFloat(unsafe.String(&v[0], len(v)), 64)
+}
+
+// notUTF8 refuses a value that is not valid UTF-8: ids and stratum values
+// are taken as bytes in every log format, and these bytes must reach the
+// worksheet, the ledger and the manifest (JSON) exactly, which only UTF-8
+// text can. The message names the first byte that is not.
+func notUTF8(file string, line int64, column, what string, v []byte) *inputerr.Error {
+	at := 0
+	for at < len(v) {
+		r, n := utf8.DecodeRune(v[at:])
+		if r == utf8.RuneError && n <= 1 {
+			break
+		}
+		at += n
+	}
+	e := inputErrorf(file, int(line), column, "%s %s is not valid UTF-8 (byte 0x%02x at byte %d)", what, quote(v), v[at], at+1)
+	e.Hint = "ids and strata values are kept exactly as bytes; convert the log to UTF-8 (e.g. iconv -f latin1 -t utf-8), and take the ids from the converted log everywhere"
+	return e
 }
 
 // fieldName names the column at index i of the header, or "".

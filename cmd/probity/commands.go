@@ -8,6 +8,7 @@ func commands(d deps) []*cobra.Command {
 	return []*cobra.Command{
 		newPlanCommand(d),
 		newDrawCommand(d),
+		newLabelCommand(d),
 		newRecordCommand(d),
 		newSignCommand(d),
 		newVerifyCommand(d),

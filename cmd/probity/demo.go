@@ -52,13 +52,13 @@ fixed bytes published with the source: verify recognises them and never
 trusts them, so the demo's verify step ends with exit 1, as it must, and
 its trend charts the records as unauthenticated.
 
-` + exitCodesHelp,
+` + exitHelp("success: the demo ran and its signed record verified", "the demo's record did not verify", true),
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return runDemo(d, opts)
 		},
 	}
-	cmd.Flags().StringVar(&opts.out, "out", "probity-demo", "the folder to write every artifact into")
+	cmd.Flags().StringVar(&opts.out, "out", "probity-demo", "the folder `DIR` to write every artifact into")
 	cmd.Flags().BoolVar(&opts.force, "force", false, "replace the artifacts of an earlier demo in --out")
 	return cmd
 }
@@ -209,8 +209,7 @@ func runDemo(d deps, o *demoOptions) error {
 		fmt.Fprintf(w, "            signed  %s by %s, %s UTC\n", s.role, s.name, at.Format("2006-01-02 15:04"))
 	}
 	ver := runDemoStep(d, base, &cmdlog, demolog.Clock.Add(24*time.Hour), []string{"verify", last.recDir, "--signers", demoSignersFile,
-		"--plan", planPath, "--draw", last.drawDir, "--labels", last.labelsPath,
-		"--second", last.secondPath, "--adjudicated", last.adjudicatedPath, "--log", last.logPath})
+		"--plan", planPath, "--draw", last.drawDir, "--trail", last.trailPath, "--adjudicated", last.adjudicatedPath, "--log", last.logPath})
 	if ver.code == exitBadInput || ver.code == exitInternal {
 		return &internalError{msg: fmt.Sprintf("demo step verify failed (exit %d): %s", ver.code, firstLine(ver.stderr))}
 	}
@@ -254,9 +253,14 @@ type demoMonth struct {
 	// secondPath and adjudicatedPath are set for the month with double
 	// labeling.
 	secondPath, adjudicatedPath string
-	labeled, unsure, doubled    int
-	adjudicated                 int
-	record                      demoRun
+	// trailPath is the label trail in the draw folder; firstRows the
+	// first labeler's labels and summary what that labeling did.
+	trailPath                string
+	firstRows                []drawfolder.WorksheetRow
+	summary                  demolog.LabelingSummary
+	labeled, unsure, doubled int
+	adjudicated              int
+	record                   demoRun
 }
 
 // demoDouble is how many items of the latest month get an independent
@@ -288,62 +292,96 @@ func runDemoMonth(m demolog.Scenario, base string, step func(...string) (demoRun
 	if _, err := step(drawArgs...); err != nil {
 		return res, err
 	}
-	summary, firstRows, err := demoLabel(m, base, res.drawDir, res.labelsPath, 0)
-	if err != nil {
+	// The latest month is labeled and recorded at the scenario's clock,
+	// the month before a month earlier.
+	date := demolog.Clock.Format("2006-01-02")
+	if !latest {
+		date = demolog.Clock.AddDate(0, -1, 0).Format("2006-01-02")
+	}
+	if err := demoLabelMonth(m, base, &res, latest, demolog.Clock); err != nil {
 		return res, err
 	}
 	if latest {
-		if err := demoSecondLabels(m, base, &res, firstRows); err != nil {
-			return res, err
-		}
-		fmt.Fprintf(cmdlog, "# simulated second labeling of the %d doubled items by %s, who disagrees on %d; %s adjudicated them: %s\n\n",
+		fmt.Fprintf(cmdlog, "# simulated labeling of %s on the labeling page (the server of probity label, in process; trail %s): %d items labeled from the hidden truth by %s; %d marked unsure (%s), replaced by the spares the page offered %s; the labeled worksheet derived from the trail: %s\n",
+			m.Month, res.trailPath, res.labeled, demolog.Labeler, res.unsure, strings.Join(res.summary.Unsure, ", "), strings.Join(res.summary.SparesUsed, ", "), res.labelsPath)
+	} else {
+		fmt.Fprintf(cmdlog, "# simulated labeling of %s in a copy of the worksheet (a spreadsheet): %d items labeled from the hidden truth by %s; %d marked unsure (%s), replaced by spares %s: %s\n",
+			m.Month, res.labeled, demolog.Labeler, res.unsure, strings.Join(res.summary.Unsure, ", "), strings.Join(res.summary.SparesUsed, ", "), res.labelsPath)
+	}
+	if latest {
+		fmt.Fprintf(cmdlog, "# simulated second labeling of the %d doubled items on the second address by %s, who disagrees on %d; %s adjudicated them: %s\n",
 			res.doubled, demolog.SecondLabeler, res.adjudicated, demolog.Adjudicator, res.adjudicatedPath)
 	}
-	res.labeled, res.unsure = summary.Labeled, len(summary.Unsure)
-	fmt.Fprintf(cmdlog, "# simulated labeling of %s: %d items labeled from the hidden truth by %s; %d marked unsure (%s), replaced by spares %s\n\n",
-		m.Month, summary.Labeled, demolog.Labeler, len(summary.Unsure), strings.Join(summary.Unsure, ", "), strings.Join(summary.SparesUsed, ", "))
+	fmt.Fprintln(cmdlog)
 	if latest {
 		partial := filepath.Join("labels-"+m.Month, "worksheet-first-400.csv")
-		if _, _, err := demoLabel(m, base, res.drawDir, partial, 400); err != nil {
+		if err := demoPartial(base, res.drawDir, partial, res.firstRows, 400); err != nil {
 			return res, err
 		}
 		if _, err := step("progress", "--plan", "plan.yaml", "--draw", res.drawDir, "--labels", partial); err != nil {
 			return res, err
 		}
 	}
-	date := demolog.Clock.Format("2006-01-02")
-	if !latest {
-		date = demolog.Clock.AddDate(0, -1, 0).Format("2006-01-02")
+	labels := []string{"--labels", res.labelsPath}
+	if res.trailPath != "" {
+		labels = []string{"--trail", res.trailPath}
 	}
-	recordArgs := []string{"record", "--plan", "plan.yaml", "--draw", res.drawDir, "--labels", res.labelsPath, "--out", res.recDir,
-		"--use", "safety", "--signoff", "signoff.yaml", "--sign-key", keyPath, "--date", date}
-	if res.secondPath != "" {
-		recordArgs = append(recordArgs, "--second", res.secondPath, "--adjudicated", res.adjudicatedPath)
+	recordArgs := append(append([]string{"record", "--plan", "plan.yaml", "--draw", res.drawDir}, labels...), "--out", res.recDir,
+		"--use", "safety", "--signoff", "signoff.yaml", "--sign-key", keyPath, "--date", date)
+	if res.adjudicatedPath != "" {
+		recordArgs = append(recordArgs, "--adjudicated", res.adjudicatedPath)
 	}
+	var err error
 	res.record, err = step(recordArgs...)
 	return res, err
 }
 
-// demoSecondLabels labels the draw's worksheet-second.csv as the second
-// labeler would and writes the adjudication of every disagreement.
-func demoSecondLabels(m demolog.Scenario, base string, res *demoMonth, first []drawfolder.WorksheetRow) error {
+// demoLabelMonth labels a month's draw from the scenario's hidden truth:
+// the first labeler's labels (demolog.Scenario.Label, with the items of
+// demoUnsureAt marked unsure and replaced by spares) and, for the latest
+// month, the second labeler's on the doubled items. The latest month is
+// labeled on the labeling page (demoLabelThroughPage), and its labeled
+// worksheets are derived from the trail; an earlier one in a copy of the
+// worksheet, as in a spreadsheet (both ways stay open to a user). It
+// writes the labeled worksheets and the adjudication of every
+// disagreement.
+func demoLabelMonth(m demolog.Scenario, base string, res *demoMonth, latest bool, start time.Time) error {
 	f, err := openDemoDraw(base, res.drawDir)
 	if err != nil {
 		return err
 	}
-	_, rows, err := drawfolder.ReadWorksheet(f.Path(drawfolder.WorksheetSecondFile))
+	first, sum, err := m.Label(f.Worksheet, f.Ledger, demoUnsureAt)
 	if err != nil {
 		return err
 	}
-	second, err := m.LabelSecond(rows, demoSecondWrongAt)
+	res.firstRows, res.summary = first, sum
+	res.labeled, res.unsure = sum.Labeled, len(sum.Unsure)
+	var second []drawfolder.WorksheetRow
+	if latest {
+		_, rows, err := drawfolder.ReadWorksheet(f.Path(drawfolder.WorksheetSecondFile))
+		if err != nil {
+			return err
+		}
+		if second, err = m.LabelSecond(rows, demoSecondWrongAt); err != nil {
+			return err
+		}
+	}
+	if !latest {
+		return writeDemoFile(filepath.Join(base, res.labelsPath), func(w io.Writer) error { return drawfolder.WriteWorksheet(w, f.Manifest.ShowColumns, first) })
+	}
+	firstOut, secondOut, err := demoLabelThroughPage(base, res.drawDir, first, second, start)
 	if err != nil {
+		return err
+	}
+	res.trailPath = demoTrail(res.drawDir)
+	if err := writeDemoFile(filepath.Join(base, res.labelsPath), func(w io.Writer) error { _, err := w.Write(firstOut); return err }); err != nil {
 		return err
 	}
 	dir := filepath.Dir(res.labelsPath)
 	res.secondPath = filepath.Join(dir, "worksheet-second-labeled.csv")
 	res.adjudicatedPath = filepath.Join(dir, "adjudication.csv")
 	res.doubled = len(second)
-	if err := writeDemoFile(filepath.Join(base, res.secondPath), func(w io.Writer) error { return drawfolder.WriteWorksheet(w, f.Manifest.ShowColumns, second) }); err != nil {
+	if err := writeDemoFile(filepath.Join(base, res.secondPath), func(w io.Writer) error { _, err := w.Write(secondOut); return err }); err != nil {
 		return err
 	}
 	return writeDemoFile(filepath.Join(base, res.adjudicatedPath), func(w io.Writer) error {
@@ -391,6 +429,7 @@ func runDemoStep(d deps, base string, cmdlog *bytes.Buffer, now time.Time, args 
 	sub.now = func() time.Time { return now }
 	sub.getenv, sub.readPassword = nil, nil
 	sub.stderrIsTerminal, sub.stdoutIsTerminal = false, false
+	sub.width = 0 // the demo reads its steps' output whole
 	sub.dir = base
 	code := run(args, sub)
 	inBase := func(s string) string { return strings.ReplaceAll(s, base+string(filepath.Separator), "") }
@@ -403,26 +442,19 @@ func runDemoStep(d deps, base string, cmdlog *bytes.Buffer, now time.Time, args 
 	return r
 }
 
-// demoLabel fills the drawn worksheet from the scenario's hidden truth and
-// writes it to path. With prefix > 0 only the first prefix items keep their
-// labels, as midway through labeling from the top.
-func demoLabel(sc demolog.Scenario, base, drawDir, path string, prefix int) (demolog.LabelingSummary, []drawfolder.WorksheetRow, error) {
-	var sum demolog.LabelingSummary
+// demoPartial writes the first labeler's worksheet as it stood midway:
+// only the first prefix items keep their labels, as when labeling from the
+// top.
+func demoPartial(base, drawDir, path string, labeled []drawfolder.WorksheetRow, prefix int) error {
 	f, err := openDemoDraw(base, drawDir)
 	if err != nil {
-		return sum, nil, err
+		return err
 	}
-	labeled, sum, err := sc.Label(f.Worksheet, f.Ledger, demoUnsureAt)
-	if err != nil {
-		return sum, nil, err
+	rows := slices.Clone(labeled)
+	for i := prefix; i < len(rows); i++ {
+		rows[i].Label, rows[i].Note, rows[i].Labeler = "", "", ""
 	}
-	if prefix > 0 {
-		for i := prefix; i < len(labeled); i++ {
-			labeled[i].Label, labeled[i].Note, labeled[i].Labeler = "", "", ""
-		}
-	}
-	err = writeDemoFile(filepath.Join(base, path), func(w io.Writer) error { return drawfolder.WriteWorksheet(w, f.Manifest.ShowColumns, labeled) })
-	return sum, labeled, err
+	return writeDemoFile(filepath.Join(base, path), func(w io.Writer) error { return drawfolder.WriteWorksheet(w, f.Manifest.ShowColumns, rows) })
 }
 
 // openDemoDraw opens a draw folder of the demo against the demo's plan,

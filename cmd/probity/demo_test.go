@@ -14,6 +14,7 @@ import (
 
 	"probity/internal/needs"
 	"probity/plan/record"
+	"probity/sampling/demolog"
 	"probity/sampling/drawfolder"
 )
 
@@ -59,7 +60,7 @@ func TestDemoEndToEnd(t *testing.T) {
 	files := []string{"plan.yaml", "signoff.yaml", "signers.yaml", "commands.txt", "trend.png", "trend.pdf",
 		"keys/demo-signing-key", "keys/demo-signing-key.pub", "keys/demo-preparer", "keys/demo-reviewer.pub",
 		"record-2026-11/signatures.txt", "labels-2026-11/worksheet-first-400.csv",
-		"draw-2026-11/worksheet-second.csv", "labels-2026-11/worksheet-second-labeled.csv", "labels-2026-11/adjudication.csv"}
+		"draw-2026-11/worksheet-second.csv", "draw-2026-11/label-trail.jsonl", "labels-2026-11/worksheet-second-labeled.csv", "labels-2026-11/adjudication.csv"}
 	for _, m := range []string{"2026-10", "2026-11"} {
 		files = append(files, "prediction-log-"+m+".csv.gz",
 			"draw-"+m+"/worksheet.csv", "draw-"+m+"/ledger.csv", "draw-"+m+"/manifest.json",
@@ -125,6 +126,13 @@ func TestDemoEndToEnd(t *testing.T) {
 	if q := rec.LabelQuality; q == nil || q.Doubled != demoDouble || q.Adjudicated != len(demoSecondWrongAt) || q.Unadjudicated != 0 {
 		t.Errorf("November label quality %+v, want %d doubled and %d adjudicated", q, demoDouble, len(demoSecondWrongAt))
 	}
+	// The labels were given on the labeling page: the record states its
+	// trail (both labelers, the scenario's clock, no label changed).
+	if tr := rec.LabelTrail; tr == nil || strings.Join(tr.Labelers, ";") != demolog.SecondLabeler+";"+demolog.Labeler ||
+		tr.FirstLabel != "2026-12-01T09:30:03.000Z" || tr.Changed != 0 || tr.Events != rec.Candidates[0].Labeled+len(demoUnsureAt)+demoDouble ||
+		rec.Fingerprints.Trail != sha256File(t, filepath.Join(a, "draw-2026-11", "label-trail.jsonl")) {
+		t.Errorf("November label trail %+v, fingerprint %s", rec.LabelTrail, rec.Fingerprints.Trail)
+	}
 	if len(rec.Deviations.Unsure) != len(demoUnsureAt) || len(rec.Deviations.SparesUsed) != len(demoUnsureAt) {
 		t.Errorf("deviations: unsure %v, spares used %v", rec.Deviations.Unsure, rec.Deviations.SparesUsed)
 	}
@@ -141,8 +149,10 @@ func TestDemoEndToEnd(t *testing.T) {
 		"--plan", filepath.Join(a, "plan.yaml"), "--draw", filepath.Join(a, "draw-2026-11"),
 		"--labels", filepath.Join(a, "labels-2026-11", "worksheet-labeled.csv"),
 		"--second", filepath.Join(a, "labels-2026-11", "worksheet-second-labeled.csv"),
-		"--adjudicated", filepath.Join(a, "labels-2026-11", "adjudication.csv")}, demoTestOptions...)
+		"--adjudicated", filepath.Join(a, "labels-2026-11", "adjudication.csv"),
+		"--trail", filepath.Join(a, "draw-2026-11", "label-trail.jsonl")}, demoTestOptions...)
 	if code != exitRejected || !strings.Contains(out, "judgement recomputed") || !strings.Contains(out, "and its 2 signatures") ||
+		!strings.Contains(out, "label trail fingerprint") ||
 		len(demoOtherFailures(out)) != 0 || strings.Count(out, "published demonstration key") != 3 {
 		t.Fatalf("verify exit %d:\n%s\n%s", code, out, errOut)
 	}

@@ -29,6 +29,12 @@ type deps struct {
 	// dir is the folder relative paths on the command line are taken from
 	// (see takePathsFrom); empty for the process's working directory.
 	dir string
+	// width, when above 0, is the number of columns people's output is
+	// fitted into (lines broken at spaces; see fitWriter).
+	width int
+	// stop ends a command that serves until stopped (label); nil in a
+	// real process, which a signal ends (exitOnSignal).
+	stop <-chan struct{}
 	// getenv reads an environment variable (nil: none is set).
 	getenv func(string) string
 	// readPassword asks for a secret on the terminal without echoing it,
@@ -55,6 +61,7 @@ func systemDeps() deps {
 		stderrIsTerminal: term.IsTerminal(int(os.Stderr.Fd())),
 		stdoutIsTerminal: term.IsTerminal(int(os.Stdout.Fd())),
 		version:          toolVersion(),
+		width:            consoleWidth,
 		getenv:           os.Getenv,
 		readPassword:     terminalPassword(),
 	}

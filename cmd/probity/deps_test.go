@@ -74,3 +74,21 @@ func withDir(dir string) testOption { return func(d *deps) { d.dir = dir } }
 
 // onTerminal makes stderr a terminal (progress bars are drawn).
 func onTerminal() testOption { return func(d *deps) { d.stderrIsTerminal = true } }
+
+// withRandomFrom makes the random stream r (a generator, for a command that
+// draws many tokens).
+func withRandomFrom(r io.Reader) testOption { return func(d *deps) { d.random = r } }
+
+// withOutput sends stdout and stderr to out and errOut instead of the
+// buffers newTestDeps returns (streams a test reads while the command
+// runs).
+func withOutput(out, errOut io.Writer) testOption {
+	return func(d *deps) { d.stdout, d.stderr = out, errOut }
+}
+
+// withWidth fits what the command prints for people into n columns, as on
+// a terminal (deps.width).
+func withWidth(n int) testOption { return func(d *deps) { d.width = n } }
+
+// withStop ends a command that serves (label) when stop is closed.
+func withStop(stop <-chan struct{}) testOption { return func(d *deps) { d.stop = stop } }

@@ -13,6 +13,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/trend"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
@@ -39,10 +40,16 @@ type drawOptions struct {
 	period      string
 	force       bool
 	quiet       bool
+	maxLine     string
 
-	parsedBands []sampling.Band
-	parsedWhere []sampling.Filter
+	parsedBands   []sampling.Band
+	parsedMaxLine int64
+	parsedWhere   []sampling.Filter
 }
+
+// drawExitHelp is the exit-code section of draw's help.
+var drawExitHelp = exitHelp("success: the sample was drawn (with --check: the folder holds exactly what\nthe seed picks from the log)",
+	"with --check: the folder differs from what the seed picks from the log", true)
 
 // drawProgressMin is the log size from which a progress bar is shown.
 const drawProgressMin = 64 << 20
@@ -91,17 +98,20 @@ DIR receives, each written to a temporary name and renamed:
                         tool version
 A non-empty DIR is refused unless --force.
 
-Repeated record ids are an error unless --dedupe first (the first row of an
-id is kept). They are detected exactly among the rows that could be drawn
-(those whose keys are among the n + spare smallest of their stratum); a
-repeat that could not be drawn cannot change the sample.
+Repeated record ids are an error unless --dedupe first. They are detected
+exactly among the rows that could be drawn (those whose keys are among the
+n + spare smallest of their stratum); a repeat that could not be drawn cannot
+change the sample. --dedupe first keeps the first row of each id and drops
+the others: every stratum then counts distinct ids (an id belongs to the
+stratum of its first row), which needs memory for each distinct id, so a log
+with more than 10 million distinct ids in scope is refused.
 
 probity draw --check DIR --plan PLAN.yaml --log FILE draws again with the
 options recorded in DIR/manifest.json and reports whether the ledger and
 worksheets hold exactly what chance picked (exit 0) or what differs (exit 1).
 Labels written into the worksheets since the draw are not differences.
 
-` + exitCodesHelp,
+` + drawExitHelp,
 		Example: `  probity draw --plan plan.yaml --log predictions.csv.gz --out audit-2026-11 \
       --strata region,channel --show text --spare 2 --double 50 --period 2026-11
   probity draw --check audit-2026-11 --plan plan.yaml --log predictions.csv.gz`,
@@ -136,6 +146,7 @@ Labels written into the worksheets since the draw are not differences.
 	fl.StringVar(&opts.period, "period", "", "draw a fresh sample for period `LABEL` (e.g. 2026-11) with the period seed")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty output folder")
 	fl.BoolVarP(&opts.quiet, "quiet", "q", false, "no progress bar")
+	fl.StringVar(&opts.maxLine, "max-line", "", maxLineHelp)
 	hookDrawSQL(d, cmd, opts) // --sql, --table, --selected: draw_sql.go
 	return cmd
 }
@@ -147,6 +158,13 @@ func (o *drawOptions) validate() error {
 	}
 	if o.logPath == "" {
 		return inputerr.Errorf("--log is required").WithHint("give the prediction log, e.g. --log predictions.csv.gz (- reads stdin)")
+	}
+	if o.maxLine != "" {
+		n, err := parseSize("--max-line", o.maxLine)
+		if err != nil {
+			return err
+		}
+		o.parsedMaxLine = n
 	}
 	if o.check != "" {
 		if o.out != "" {
@@ -185,8 +203,8 @@ func (o *drawOptions) validate() error {
 	if o.dedupe != "" && o.dedupe != "first" {
 		return inputerr.Errorf("--dedupe %s is not supported", o.dedupe).WithHint("--dedupe first keeps the first row of each repeated id")
 	}
-	if strings.TrimSpace(o.period) != o.period || strings.ContainsAny(o.period, "\n\r") {
-		return inputerr.Errorf("--period %q has leading or trailing spaces", o.period)
+	if err := checkPeriodFlag(o.period); err != nil {
+		return err
 	}
 	for _, b := range o.bands {
 		pb, err := sampling.ParseBand(b)
@@ -206,6 +224,25 @@ func (o *drawOptions) validate() error {
 		if strings.TrimSpace(c) == "" {
 			return inputerr.Errorf("an empty column name was given (check --id, --strata and --show)")
 		}
+	}
+	return nil
+}
+
+// checkPeriodFlag refuses a --period label a trend could not line up,
+// naming what is wrong with it: a line break, surrounding spaces, or a
+// character outside the label rule of plan/trend.
+func checkPeriodFlag(p string) error {
+	hint := "e.g. --period 2026-11"
+	switch {
+	case p == "":
+		return nil
+	case strings.ContainsAny(p, "\n\r"):
+		return inputerr.Errorf("--period %q holds a line break", p).WithHint(hint)
+	case strings.TrimSpace(p) != p:
+		return inputerr.Errorf("--period %q has leading or trailing spaces", p).WithHint(hint)
+	}
+	if err := trend.CheckPeriod(p); err != nil {
+		return inputerr.Errorf("--period %v", err).WithHint(hint)
 	}
 	return nil
 }
@@ -245,7 +282,7 @@ func openDrawLog(d deps, path string) (io.Reader, func(), int64, error) {
 // drawFlags names the flag of each draw setting the sampling package
 // names by its manifest key.
 var drawFlags = map[string]string{
-	"double": "--double", "show_columns": "--show", "bands": "--band", "where": "--where",
+	"double": "--double", "show_columns": "--show", "bands": "--band", "where": "--where", "spare": "--spare",
 }
 
 // drawError adds the draw command's flags to an error of the sampling
@@ -255,6 +292,10 @@ func drawError(err error) error {
 	switch {
 	case errors.Is(err, sampling.ErrDuplicateIDs):
 		return inputerr.SetHint(err, "each record id must appear once; --dedupe first keeps the first row of each id")
+	case errors.Is(err, sampling.ErrTooManyDistinct):
+		return inputerr.SetHint(err, "remove the repeated rows before drawing (or narrow the scope with --where), then draw without --dedupe")
+	case errors.Is(err, sampling.ErrLineTooLong):
+		return inputerr.SetHint(err, "a log holds one record per line; if its lines really are this long, raise the limit with --max-line, e.g. --max-line 256MiB")
 	case errors.Is(err, sampling.ErrIDColumn):
 		return inputerr.SetHint(err, "name the id column with --id COLUMN")
 	case errors.Is(err, safewrite.ErrNotEmpty) && inputerr.HintOf(err) == "":
@@ -277,7 +318,7 @@ func runDraw(d deps, o *drawOptions) error {
 		Plan: p, PlanFingerprint: fp, LogPath: d.given(o.logPath), Format: o.format, Period: o.period,
 		IDColumn: o.id, StrataColumns: o.strata, Bands: o.parsedBands, Where: o.parsedWhere, Show: o.show,
 		Alloc:  sampling.AllocOptions{Rule: o.allocation, MinPerStratum: o.minPer, Spare: o.spare},
-		Double: o.double, Dedupe: o.dedupe == "first", ToolVersion: d.version,
+		Double: o.double, Dedupe: o.dedupe == "first", MaxLine: o.parsedMaxLine, ToolVersion: d.version,
 	}
 	if o.allocation == sampling.Neyman {
 		if o.anticipated != "" {
@@ -313,8 +354,9 @@ func (o *drawOptions) inputs() []string {
 }
 
 // drawFromLog opens the log and draws, with a progress bar when stderr is
-// a terminal and the log is large.
-func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*drawfolder.Content, error) {
+// a terminal and the log is large; with a manifest (draw --check) it draws
+// again as that draw did (sampling.Redraw).
+func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput, m ...*drawfolder.Manifest) (*drawfolder.Content, error) {
 	r, closeLog, size, err := openDrawLog(d, o.logPath)
 	if err != nil {
 		return nil, err
@@ -326,7 +368,12 @@ func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*drawfolder.Co
 		bar = &drawProgressBar{w: d.stderr, now: d.now, total: size, start: d.now(), min: drawProgressMin}
 		in.Progress = bar.update
 	}
-	f, err := sampling.Draw(*in)
+	var f *drawfolder.Content
+	if len(m) > 0 {
+		f, err = sampling.Redraw(m[0], *in)
+	} else {
+		f, err = sampling.Draw(*in)
+	}
 	if bar != nil {
 		bar.finish()
 	}
@@ -336,11 +383,11 @@ func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput) (*drawfolder.Co
 // writeDrawSummary prints what was drawn.
 func writeDrawSummary(w io.Writer, dir string, f *drawfolder.Content) {
 	m := f.Manifest
-	fmt.Fprintf(w, "drew %d items", m.SampleSize)
+	fmt.Fprintf(w, "drew %s", countOf(m.SampleSize, "item", "items"))
 	if m.Spares > 0 {
-		fmt.Fprintf(w, " and %d spares", m.Spares)
+		fmt.Fprintf(w, " and %s", countOf(m.Spares, "spare", "spares"))
 	}
-	fmt.Fprintf(w, " from %d rows in scope (%d read) in %d strata into %s\n", m.LotSize, m.Log.Rows, len(m.Strata), dir)
+	fmt.Fprintf(w, " from %s in scope (%d read) in %s into %s\n", count(m.LotSize, "row", "rows"), m.Log.Rows, countOf(len(m.Strata), "stratum", "strata"), dir)
 	fmt.Fprintf(w, "allocation: %s", m.Allocation.Rule)
 	if m.Allocation.MinPerStratum > 0 {
 		fmt.Fprintf(w, ", at least %d per stratum", m.Allocation.MinPerStratum)
@@ -363,7 +410,7 @@ func writeDrawSummary(w io.Writer, dir string, f *drawfolder.Content) {
 		fmt.Fprintf(w, "doubled: items 1–%d also in %s\n", m.Double, drawfolder.WorksheetSecondFile)
 	}
 	if m.DuplicatesDropped > 0 {
-		fmt.Fprintf(w, "repeated ids: %d later rows dropped (--dedupe first)\n", m.DuplicatesDropped)
+		fmt.Fprintf(w, "repeated ids: %s dropped (--dedupe first)\n", countOf(m.DuplicatesDropped, "later row", "later rows"))
 	}
 	fmt.Fprintf(w, "log sha256: %s (%d bytes)\n", m.Log.SHA256, m.Log.Bytes)
 	fmt.Fprintf(w, "give %s to the labelers; keep %s and %s\n",
@@ -395,8 +442,12 @@ func runDrawCheck(d deps, o *drawOptions) error {
 	if err != nil {
 		return inputerr.InFile(err, mpath)
 	}
-	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
-	f, err := drawFromLog(d, o, &in)
+	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion, in.MaxLine = p, fp, o.logPath, d.version, o.parsedMaxLine
+	f, err := drawFromLog(d, o, &in, m)
+	if errors.Is(err, sampling.ErrNotTheLog) {
+		fmt.Fprintf(d.stdout, "different: %s was not drawn from %s:\n  %s\n", o.check, o.logPath, messageOf(err))
+		return rejected("draw check failed: %s", messageOf(err))
+	}
 	if err != nil {
 		return inputerr.InFile(err, mpath)
 	}
@@ -404,16 +455,19 @@ func runDrawCheck(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
+	for _, n := range rep.Notes {
+		fmt.Fprintf(d.stdout, "note: %s\n", n)
+	}
 	if len(rep.Differences) == 0 {
-		fmt.Fprintf(d.stdout, "same: %s holds exactly the %d items and %d spares that the seed picks from %s (%d rows, sha256 %s)\n",
-			o.check, rep.Items, rep.Spares, o.logPath, f.Manifest.Log.Rows, f.Manifest.Log.SHA256)
+		fmt.Fprintf(d.stdout, "same: %s holds exactly the %s and %s that the seed picks from %s (%s, sha256 %s)\n",
+			o.check, countOf(rep.Items, "item", "items"), countOf(rep.Spares, "spare", "spares"), o.logPath, count(f.Manifest.Log.Rows, "row", "rows"), f.Manifest.Log.SHA256)
 		return nil
 	}
 	fmt.Fprintf(d.stdout, "different: %s is not what the seed picks from %s:\n", o.check, o.logPath)
 	for _, s := range rep.Differences {
 		fmt.Fprintf(d.stdout, "  %s\n", s)
 	}
-	return rejected("draw check failed: %d differences", len(rep.Differences))
+	return rejected("draw check failed: %s", countOf(len(rep.Differences), "difference", "differences"))
 }
 
 // drawProgressBar draws a one-line progress bar on stderr: bytes read of

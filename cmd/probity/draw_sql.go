@@ -73,12 +73,13 @@ func hookDrawSQL(d deps, cmd *cobra.Command, o *drawOptions) {
 	fl.StringVar(&so.table, "table", "", "with --sql: the table or view to draw from (`NAME` or schema.name)")
 	fl.StringVar(&so.selected, "selected", "", "import the drawing query's result `FILE` (CSV; - for stdin) into the folder --out")
 	fl.StringVar(&so.counts, "counts", "", "with --sql clickhouse: print the selection query for the counts query's result `FILE`; with --selected: the counts it was made from")
-	cmd.Long = strings.Replace(cmd.Long, "\n\n"+exitCodesHelp, drawSQLHelp+"\n\n"+exitCodesHelp, 1)
+	cmd.Long = strings.Replace(cmd.Long, "\n\n"+drawExitHelp, drawSQLHelp+"\n\n"+drawExitHelp, 1)
 	cmd.Example += `
   probity draw --plan plan.yaml --sql postgres --table analytics.predictions \
       --strata region --show text > draw.sql
   probity draw --plan plan.yaml --selected result.csv --out audit-2026-11
-  probity draw --plan plan.yaml --sql clickhouse --table logs.predictions --strata region > counts.sql
+  probity draw --plan plan.yaml --sql clickhouse --table logs.predictions \
+      --strata region > counts.sql
   probity draw --plan plan.yaml --sql clickhouse --counts counts.csv > selection.sql
   probity draw --plan plan.yaml --counts counts.csv --selected selected.csv --out audit-2026-11`
 	pre, run := cmd.PreRunE, cmd.RunE
@@ -128,8 +129,8 @@ func (so *drawSQLOptions) validate(c *cobra.Command, o *drawOptions) error {
 			return inputerr.Errorf("--%s cannot be used with %s", name, mode).WithHint(drawSQLConflictHint(name, mode))
 		}
 	}
-	if strings.TrimSpace(o.period) != o.period || strings.ContainsAny(o.period, "\n\r") {
-		return inputerr.Errorf("--period %q has leading or trailing spaces", o.period)
+	if err := checkPeriodFlag(o.period); err != nil {
+		return err
 	}
 	if so.selected != "" {
 		if o.out == "" {
@@ -414,13 +415,14 @@ func runDrawCheckEngine(d deps, o *drawOptions) error {
 		return inputerr.InFile(err, mpath)
 	}
 	in.Format = ""
-	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion = p, fp, o.logPath, d.version
+	in.Plan, in.PlanFingerprint, in.LogPath, in.ToolVersion, in.MaxLine = p, fp, o.logPath, d.version, o.parsedMaxLine
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
 		return inputerr.InFile(err, mpath)
 	}
 	exportSHA, exportBytes := f.Manifest.Log.SHA256, f.Manifest.Log.Bytes
 	f.Manifest.Log.SHA256, f.Manifest.Log.Bytes = m.Log.SHA256, m.Log.Bytes
+	f.Manifest.Log.ContentSHA256 = m.Log.ContentSHA256
 	rep, err := drawfolder.Compare(o.check, f)
 	if err != nil {
 		return err
@@ -434,5 +436,5 @@ func runDrawCheckEngine(d deps, o *drawOptions) error {
 	for _, s := range rep.Differences {
 		fmt.Fprintf(d.stdout, "  %s\n", s)
 	}
-	return rejected("draw check failed: %d differences", len(rep.Differences))
+	return rejected("draw check failed: %s", countOf(len(rep.Differences), "difference", "differences"))
 }

@@ -85,7 +85,7 @@ func TestDrawThenCheck(t *testing.T) {
 	os.WriteFile(lp, ledger, 0o644)
 	other := writeGenLog(t, dir, "other.csv", loggen.Config{Rows: 6000, Seed: 5})
 	code, stdout, _ = runDrawCmd(t, nil, "--check", out, "--plan", drawPlan, "--log", other)
-	if code != exitRejected || !strings.Contains(stdout, "manifest log.sha256") {
+	if code != exitRejected || !strings.Contains(stdout, "this is not the log the draw was made from: its content's SHA-256 is") {
 		t.Fatalf("other log: exit %d\n%s", code, stdout)
 	}
 	// Refuses the non-empty folder, leaves it as it was; --force redraws.

@@ -70,3 +70,12 @@ func flagNames(err error, flags map[string]string) error {
 	c.Field = flags[e.Field]
 	return &c
 }
+
+// messageOf is an input error's message without its file, line and field
+// (what went wrong reading a file, say), or err's text.
+func messageOf(err error) string {
+	if e, ok := inputerr.As(err); ok {
+		return e.Msg
+	}
+	return err.Error()
+}

@@ -1,5 +1,10 @@
 package main
 
+import (
+	"fmt"
+	"strings"
+)
+
 // Exit codes of every probity command. They are documented in the root
 // command's help and in the README; pipelines that gate a deployment rely on
 // them, so they never change meaning.
@@ -21,7 +26,8 @@ const (
 	exitTerminated  = 143
 )
 
-// exitCodesHelp is appended to the root command's long help.
+// exitCodesHelp is appended to the root command's long help: every code
+// any command returns. Each command's help lists only its own (exitHelp).
 const exitCodesHelp = `Exit codes:
   0  success: the plan was made, the sample drawn, every required candidate
      accepted, every check passed
@@ -29,3 +35,31 @@ const exitCodesHelp = `Exit codes:
   2  bad input or usage: nothing was written
   3  internal error: please report it with the command line you ran
   130, 143  stopped by Ctrl-C (SIGINT) or SIGTERM: nothing half-written is left`
+
+// exitHelp is the "Exit codes:" section of one command's help, listing
+// only the codes it can return: ok and rejected say what 0 and 1 mean for
+// it (rejected is empty when it never returns 1), writes whether it writes
+// files (so that a stop leaves nothing half-written).
+func exitHelp(ok, rejected string, writes bool) string {
+	var b strings.Builder
+	b.WriteString("Exit codes:\n")
+	fmt.Fprintf(&b, "  0  %s\n", hang(ok))
+	if rejected != "" {
+		fmt.Fprintf(&b, "  1  %s\n", hang(rejected))
+	}
+	if writes {
+		b.WriteString("  2  bad input or usage: nothing was written\n")
+	} else {
+		b.WriteString("  2  bad input or usage\n")
+	}
+	b.WriteString("  3  internal error: please report it with the command line you ran\n")
+	b.WriteString("  130, 143  stopped by Ctrl-C (SIGINT) or SIGTERM")
+	if writes {
+		b.WriteString(": nothing half-written is left")
+	}
+	return b.String()
+}
+
+// hang indents the continuation lines of an exit code's text under its
+// first line.
+func hang(text string) string { return strings.ReplaceAll(text, "\n", "\n     ") }

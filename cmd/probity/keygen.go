@@ -42,7 +42,7 @@ answers for the records lists the fingerprint in the signers file that
 'probity verify --signers' checks. An operator seals records with 'probity
 record --sign-key NAME'; verify checks the seal with --pub NAME.pub.
 
-` + exitCodesHelp,
+` + exitHelp("success: the key pair was written", "", true),
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			if opts.out == "" {

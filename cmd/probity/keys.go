@@ -10,6 +10,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record/signature"
 )
 
@@ -40,9 +41,9 @@ func addPassphraseFlag(cmd *cobra.Command, p *passphraseSource) {
 // them can give one.
 func (p passphraseSource) get(d deps, what string, confirm bool) ([]byte, error) {
 	if p.file != "" {
-		data, err := os.ReadFile(p.file)
+		data, err := inputfile.ReadFile(p.file, "passphrase file", inputfile.SmallLimit)
 		if err != nil {
-			return nil, inputerr.FromPath(err)
+			return nil, err
 		}
 		line, _, _ := bytes.Cut(data, []byte("\n"))
 		line = bytes.TrimSuffix(line, []byte("\r"))
@@ -79,9 +80,12 @@ func (p passphraseSource) get(d deps, what string, confirm bool) ([]byte, error)
 // passphrase of a protected key. It warns on stderr about a key stored in
 // the clear, readable by others, or published with the demo.
 func loadPrivateKey(d deps, path, flag string, pass passphraseSource) (ed25519.PrivateKey, string, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "private key", inputfile.SmallLimit)
+	if errors.Is(err, os.ErrNotExist) {
+		return nil, "", inputerr.Errorf("cannot read %s %s: %v", flag, path, messageOf(err)).WithHint("make a key pair with 'probity keygen --out NAME'")
+	}
 	if err != nil {
-		return nil, "", inputerr.Errorf("cannot read %s %s: %v", flag, path, errors.Unwrap(err)).WithHint("make a key pair with 'probity keygen --out NAME'")
+		return nil, "", err
 	}
 	priv, prot, err := signature.ReadPrivate(data, path, func() ([]byte, error) { return pass.get(d, "the key "+path, false) })
 	switch {
@@ -107,9 +111,12 @@ func loadPrivateKey(d deps, path, flag string, pass passphraseSource) (ed25519.P
 
 // loadPublicKey reads a public key file written by keygen.
 func loadPublicKey(path string) (ed25519.PublicKey, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "public key", inputfile.SmallLimit)
+	if errors.Is(err, os.ErrNotExist) {
+		return nil, inputerr.Errorf("cannot read --pub %s: %v", path, messageOf(err)).WithHint("pass the NAME.pub file written by probity keygen")
+	}
 	if err != nil {
-		return nil, inputerr.Errorf("cannot read --pub %s: %v", path, errors.Unwrap(err)).WithHint("pass the NAME.pub file written by probity keygen")
+		return nil, err
 	}
 	pub, err := signature.ParsePublic(data, path)
 	if err != nil {
@@ -120,9 +127,9 @@ func loadPublicKey(path string) (ed25519.PublicKey, error) {
 
 // loadSigners reads a signers file.
 func loadSigners(path string) (*signature.Signers, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "signers file", inputfile.SmallLimit)
 	if err != nil {
-		return nil, inputerr.FromPath(err)
+		return nil, err
 	}
 	s, err := signature.ParseSigners(data, path)
 	if err != nil && inputerr.HintOf(err) == "" {

@@ -71,13 +71,17 @@ errors, the lowest ceiling that can be certified.
 
 Candidates may be declared now, before any label is seen: --candidate
 NAME=COLUMN (repeatable; the log column holding that model's predicted label,
-with --classes listing the label values) or --thresholds COLUMN:t1,t2,… with
---positive and --negative (predict positive when score ≥ t). M then follows
-from them. --out writes the plan file (YAML): every input, the rule, the
-comparison, the candidates, a 128-bit selection seed (random unless --seed),
-the time and the tool version; its SHA-256 identifies the plan later.
+with --classes listing the label values) and --thresholds COLUMN:t1,t2,… with
+--positive and --negative (predict positive when score ≥ t). Both kinds may
+be declared together: the --candidate ones come first (the order
+fixed-sequence tests in), and --classes must then list the positive and the
+negative label. M then follows from them.
 
-` + exitCodesHelp,
+--out writes the plan file (YAML): every input, the rule, the comparison, the
+candidates, a 128-bit selection seed (random unless --seed), the time and the
+tool version; its SHA-256 identifies the plan later.
+
+` + exitHelp("success: the plan, or with --budget the table, was made", "", true),
 		Example: `  probity plan --ceiling 0.02 --confidence 0.95 --anticipated 0.01
   probity plan --ceiling 0.02 --confidence 0.95 --anticipated 0.01 \
       --thresholds score:0.5,0.6,0.7 --positive fraud --negative ok \
@@ -104,7 +108,7 @@ the time and the tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.method, "method", plan.MethodExact.String(), "the decision `RULE`: exact, hoeffding or kl")
 	fl.StringVar(&o.multiplicity, "multiplicity", plan.Bonferroni.String(), "with several candidates, the `ADJUSTMENT`: bonferroni, holm or fixed-sequence")
 	fl.StringVar(&o.design, "design", plan.DesignFixed.String(), "the `DESIGN`: fixed (label n, count errors) or sequential (stop early at boundaries)")
-	fl.StringVar(&o.require, "require", plan.RequireAll.String(), "`all` candidates or `any` one must be accepted for the audit to pass")
+	fl.StringVar(&o.require, "require", plan.RequireAll.String(), "`RULE`: all candidates or any one must be accepted for the audit to pass")
 	fl.StringVar(&o.budget, "budget", "", "with `n` labels: the ceiling each number of errors certifies (no plan is made)")
 	fl.StringVar(&o.out, "out", "", "write the plan file (YAML) to `PATH`")
 	fl.BoolVar(&o.force, "force", false, "replace an existing --out file")
@@ -224,7 +228,11 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 	if n < 1 || n > plan.MaxSampleSize {
 		return inputerr.Errorf("--budget %d: must be between 1 and %d", n, plan.MaxSampleSize)
 	}
-	for _, f := range []string{"out", "anticipated", "candidate", "thresholds", "design", "method"} {
+	// Every flag that only shapes a plan, or what is written with one,
+	// is refused: none may be silently ignored. (--ceiling is used: it
+	// says how many errors the budget allows at that ceiling.)
+	for _, f := range []string{"out", "force", "anticipated", "producer-risk", "candidate", "classes", "thresholds",
+		"positive", "negative", "design", "method", "require", "seed", "system", "system-version"} {
 		if changed(f) {
 			return inputerr.Errorf("--%s has no effect with --budget, which makes no plan", f).WithHint("drop --budget to make a plan")
 		}
@@ -305,11 +313,10 @@ func planInputError(err error) error {
 }
 
 // parseCandidates reads --candidate, --classes, --thresholds, --positive
-// and --negative.
+// and --negative. Label-column and threshold candidates may be declared
+// together: the --candidate ones come first, then the thresholds, and the
+// threshold labels must then be among --classes.
 func (o *planOptions) parseCandidates() error {
-	if len(o.candidate) > 0 && o.thresholds != "" {
-		return inputerr.Errorf("use either --candidate or --thresholds, not both")
-	}
 	seen := map[string]bool{}
 	add := func(c plan.Candidate) error {
 		if seen[c.Name] {
@@ -319,33 +326,16 @@ func (o *planOptions) parseCandidates() error {
 		o.declared = append(o.declared, c)
 		return nil
 	}
+	for _, spec := range o.candidate {
+		name, col, ok := strings.Cut(spec, "=")
+		if !ok || name == "" || col == "" || strings.TrimSpace(name) != name || strings.TrimSpace(col) != col {
+			return inputerr.Errorf("--candidate %q is not NAME=COLUMN", spec).WithHint("e.g. --candidate model-a=pred_a")
+		}
+		if err := add(plan.Candidate{Name: name, Column: col}); err != nil {
+			return err
+		}
+	}
 	switch {
-	case len(o.candidate) > 0:
-		if o.positive != "" || o.negative != "" {
-			return inputerr.Errorf("--positive and --negative go with --thresholds; with --candidate list the labels in --classes")
-		}
-		for _, spec := range o.candidate {
-			name, col, ok := strings.Cut(spec, "=")
-			if !ok || name == "" || col == "" || strings.TrimSpace(name) != name || strings.TrimSpace(col) != col {
-				return inputerr.Errorf("--candidate %q is not NAME=COLUMN", spec).WithHint("e.g. --candidate model-a=pred_a")
-			}
-			if err := add(plan.Candidate{Name: name, Column: col}); err != nil {
-				return err
-			}
-		}
-		if o.classes == "" {
-			return inputerr.Errorf("--classes is required with --candidate: the label values a labeler may give").WithHint("e.g. --classes spam,ham")
-		}
-		for _, c := range strings.Split(o.classes, ",") {
-			c = strings.TrimSpace(c)
-			if c == "" || slices.Contains(o.classesList, c) {
-				return inputerr.Errorf("--classes %q: each label must be non-empty and listed once", o.classes)
-			}
-			o.classesList = append(o.classesList, c)
-		}
-		if len(o.classesList) < 2 {
-			return inputerr.Errorf("--classes %q: list at least two labels", o.classes)
-		}
 	case o.thresholds != "":
 		i := strings.LastIndex(o.thresholds, ":")
 		if i <= 0 || i == len(o.thresholds)-1 {
@@ -354,9 +344,6 @@ func (o *planOptions) parseCandidates() error {
 		col := o.thresholds[:i]
 		if o.positive == "" || o.negative == "" || o.positive == o.negative {
 			return inputerr.Errorf("--thresholds needs --positive and --negative, two different labels").WithHint("e.g. --positive fraud --negative ok")
-		}
-		if o.classes != "" {
-			return inputerr.Errorf("--classes is not used with --thresholds: the labels are --positive and --negative")
 		}
 		for _, ts := range strings.Split(o.thresholds[i+1:], ",") {
 			ts = strings.TrimSpace(ts)
@@ -368,11 +355,35 @@ func (o *planOptions) parseCandidates() error {
 				return err
 			}
 		}
-		o.classesList = []string{o.positive, o.negative}
-	default:
-		if o.classes != "" || o.positive != "" || o.negative != "" {
-			return inputerr.Errorf("--classes, --positive and --negative describe declared candidates; add --candidate or --thresholds")
+	case o.positive != "" || o.negative != "":
+		return inputerr.Errorf("--positive and --negative go with --thresholds; with --candidate list the labels in --classes")
+	}
+	switch {
+	case o.classes != "" && len(o.declared) == 0:
+		return inputerr.Errorf("--classes, --positive and --negative describe declared candidates; add --candidate or --thresholds")
+	case o.classes != "":
+		for _, c := range strings.Split(o.classes, ",") {
+			c = strings.TrimSpace(c)
+			if c == "" || slices.Contains(o.classesList, c) {
+				return inputerr.Errorf("--classes %q: each label must be non-empty and listed once", o.classes)
+			}
+			o.classesList = append(o.classesList, c)
 		}
+		if len(o.classesList) < 2 {
+			return inputerr.Errorf("--classes %q: list at least two labels", o.classes)
+		}
+		if o.thresholds != "" {
+			for _, l := range []string{o.positive, o.negative} {
+				if !slices.Contains(o.classesList, l) {
+					return inputerr.Errorf("--classes %q does not list %q, a label the thresholds predict", o.classes, l).
+						WithHint("list every label a labeler may give, the --positive and --negative ones included")
+				}
+			}
+		}
+	case len(o.candidate) > 0:
+		return inputerr.Errorf("--classes is required with --candidate: the label values a labeler may give").WithHint("e.g. --classes spam,ham")
+	case o.thresholds != "":
+		o.classesList = []string{o.positive, o.negative}
 	}
 	return nil
 }

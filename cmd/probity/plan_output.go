@@ -362,7 +362,7 @@ func runPlanBudget(d deps, o *planOptions) error {
 			fmt.Fprintf(w, "%d labels cannot certify the ceiling %s even with no errors: at least %s would be needed with none.\n",
 				o.budgetN, pct(in.Ceiling), strconv.Itoa(zeroFailureN(in.Ceiling, alpha)))
 		} else {
-			fmt.Fprintf(w, "For the ceiling %s these labels allow at most %d errors.\n", pct(in.Ceiling), *c)
+			fmt.Fprintf(w, "For the ceiling %s these labels allow at most %s.\n", pct(in.Ceiling), countOf(*c, "error", "errors"))
 		}
 	}
 	return nil

@@ -95,8 +95,8 @@ func writeSequentialSummary(w io.Writer, f *plan.File) {
 	fmt.Fprintf(w, "at most %d labels (the draw selects that many). 'probity progress' says when to stop.\n", s.MaxSampleSize)
 	fmt.Fprintf(w, "Average labels needed (exact ASN): %.0f at the anticipated error %s, %.0f at the ceiling %s;\n",
 		s.ASNAtAnticipated, planSeqPercent(p0), s.ASNAtCeiling, planSeqPercent(f.Inputs.Ceiling))
-	fmt.Fprintf(w, "the fixed plan needs %d labels with at most %d errors (%.0f %% and %.0f %% of it).\n",
-		s.FixedSampleSize, s.FixedAcceptanceNumber, 100*s.ASNAtAnticipated/n, 100*s.ASNAtCeiling/n)
+	fmt.Fprintf(w, "the fixed plan needs %d labels with at most %s (%.0f %% and %.0f %% of it).\n",
+		s.FixedSampleSize, countOf(s.FixedAcceptanceNumber, "error", "errors"), 100*s.ASNAtAnticipated/n, 100*s.ASNAtCeiling/n)
 	pr := "n/a"
 	if f.Rule.ProducerRisk != nil {
 		pr = fmt.Sprintf("%.4g", *f.Rule.ProducerRisk)

@@ -57,9 +57,7 @@ toward rejection. Spare items are ignored.
 
 ` + labelCellHelp + `
 
-` + exitCodesHelp + `
-progress exits 0 whenever it could assess the worksheet, whatever the
-decision.`,
+` + exitHelp("the worksheet was assessed, whatever the decision", "", false),
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			for _, f := range []struct{ name, v string }{{"plan", opts.planPath}, {"draw", opts.drawDir}, {"labels", opts.labels}} {
@@ -74,9 +72,9 @@ decision.`,
 		},
 	}
 	fl := cmd.Flags()
-	fl.StringVar(&opts.planPath, "plan", "", "the plan file the sample was drawn from")
-	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv, worksheet.csv)")
-	fl.StringVar(&opts.labels, "labels", "", "the worksheet, labeled from the top")
+	fl.StringVar(&opts.planPath, "plan", "", "the plan `FILE` the sample was drawn from")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder `DIR` (manifest.json, ledger.csv, worksheet.csv)")
+	fl.StringVar(&opts.labels, "labels", "", "the worksheet `FILE`, labeled from the top")
 	fl.BoolVar(&opts.json, "json", false, "print one JSON object instead of the table")
 	return cmd
 }
@@ -151,8 +149,8 @@ func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
 	if res.Design == plan.DesignSequential {
 		fmt.Fprintf(w, "Sequential plan: at most %d labels; each candidate stops at its boundaries.\n", res.SampleSize)
 	} else {
-		fmt.Fprintf(w, "Fixed plan: %d labels, accept with at most %d errors; stopping early by exact curtailment (no change to either risk).\n",
-			res.SampleSize, *res.AcceptanceNumber)
+		fmt.Fprintf(w, "Fixed plan: %d labels, accept with at most %s; stopping early by exact curtailment (no change to either risk).\n",
+			res.SampleSize, countOf(*res.AcceptanceNumber, "error", "errors"))
 	}
 	fmt.Fprintf(w, "Labeled from the top: %d of %d.\n\n", res.Labeled, res.SampleSize)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
@@ -180,7 +178,7 @@ func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
 	}
 	switch res.Overall {
 	case sequential.Continue:
-		fmt.Fprintf(w, "Audit (require %s): continue — at most %d more labels.\n", req, res.MaxRemaining)
+		fmt.Fprintf(w, "Audit (require %s): continue — at most %s.\n", req, countOf(res.MaxRemaining, "more label", "more labels"))
 	default:
 		fmt.Fprintf(w, "Audit (require %s): %s; run probity record on the labels to issue the record.\n", req, progressStatus(res.Overall))
 	}

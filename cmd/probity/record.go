@@ -4,7 +4,6 @@ import (
 	"crypto/ed25519"
 	"errors"
 	"fmt"
-	"os"
 	"strings"
 	"time"
 
@@ -13,6 +12,7 @@ import (
 	"probity/pdfreport"
 	"probity/plan/agreement"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/record/intake"
@@ -26,6 +26,7 @@ type recordOptions struct {
 	planPath        string
 	drawDir         string
 	labels          string
+	trail           string
 	out             string
 	signoff         string
 	use             string
@@ -51,7 +52,7 @@ type recordOptions struct {
 func newRecordCommand(d deps) *cobra.Command {
 	opts := &recordOptions{}
 	cmd := &cobra.Command{
-		Use:   "record --plan PLAN.yaml --draw DIR --labels WORKSHEET.csv --out RECDIR",
+		Use:   "record --plan PLAN.yaml --draw DIR (--labels|--trail FILE) --out RECDIR",
 		Short: "Judge the candidates from the labels and write the acceptance record",
 		Long: `record checks the labeled worksheet against the plan and the draw folder,
 judges every candidate and writes the acceptance record into RECDIR:
@@ -78,6 +79,14 @@ unlabeled or unsure as an error for every candidate and says so in the record.
 
 ` + labelCellHelp + `
 
+Labels given on the labeling page (probity label) are in the draw folder's
+audit trail, label-trail.jsonl: pass it with --trail, in place of --labels
+(and of --second when it holds second labels). record checks its hash chain
+and that it belongs to this draw, derives the labeled worksheets from it,
+fingerprints it, and states on the record who labeled, the first and last
+label time and how many labels were changed. A worksheet passed beside the
+trail must be the one the trail gives, byte for byte.
+
 A self-weighting sample is judged by the plan's rule (accept when errors ≤ c),
 with the exact Clopper–Pearson bound (or the exact hypergeometric bound for a
 finite lot). When the strata's inclusion weights are unequal the error is
@@ -101,11 +110,8 @@ zero-width or direction-overriding characters.
 
 ` + passphraseHelp + `
 
-` + exitCodesHelp + `
-
-record exits 0 when the audit passes (every candidate the plan requires is
-accepted), 1 when it is rejected — the record is written in both cases — and
-2 on bad input, when nothing is written.`,
+` + exitHelp("the audit passes: every candidate the plan requires is accepted (the\nrecord is written)",
+			"the audit is rejected (the record is written)", true),
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			return opts.validate()
@@ -115,18 +121,19 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 		},
 	}
 	fl := cmd.Flags()
-	fl.StringVar(&opts.planPath, "plan", "", "the plan file the sample was drawn from")
-	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder (manifest.json, ledger.csv, worksheet.csv)")
-	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet")
-	fl.StringVar(&opts.out, "out", "", "the record folder to write (must not exist or be empty)")
-	fl.StringVar(&opts.signoff, "signoff", "", "sign-off file (YAML: prepared/reviewed/approved with name, title, date, meaning)")
-	fl.StringVar(&opts.use, "use", "general", "declared use: "+strings.Join(templates.Uses(), ", "))
+	fl.StringVar(&opts.planPath, "plan", "", "the plan `FILE` the sample was drawn from")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder `DIR` (manifest.json, ledger.csv, worksheet.csv)")
+	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet `FILE`")
+	fl.StringVar(&opts.trail, "trail", "", "the label `TRAIL` of probity label (label-trail.jsonl in the draw folder), in place of --labels")
+	fl.StringVar(&opts.out, "out", "", "the record folder `DIR` to write (must not exist or be empty)")
+	fl.StringVar(&opts.signoff, "signoff", "", "sign-off `FILE` (YAML: prepared/reviewed/approved with name, title, date, meaning)")
+	fl.StringVar(&opts.use, "use", "general", "declared `USE`: "+strings.Join(templates.Uses(), ", "))
 	fl.StringVar(&opts.signKey, "sign-key", "", "the operator's private `KEY` from probity keygen; writes record.sig, the operator's seal")
 	fl.BoolVar(&opts.allowIncomplete, "allow-incomplete", false, "count unlabeled and unsure items as errors for every candidate instead of refusing")
-	fl.StringVar(&opts.date, "date", "", "the record's date, YYYY-MM-DD (default: today, UTC)")
-	fl.StringVar(&opts.paper, "paper", "a4", "paper size of record.pdf: a4 or letter")
-	fl.StringVar(&opts.templatesDir, "templates", "", "folder of wording files overriding the built-in ones")
-	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "bound for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
+	fl.StringVar(&opts.date, "date", "", "the record's `DATE`, YYYY-MM-DD (default: today, UTC)")
+	fl.StringVar(&opts.paper, "paper", "a4", "`PAPER` size of record.pdf: a4 or letter")
+	fl.StringVar(&opts.templatesDir, "templates", "", "folder `DIR` of wording files overriding the built-in ones")
+	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "`BOUND` for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
 	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
 	fl.StringVar(&opts.supersedes, "supersedes", "", "the `RECORD_ID` of the record this one replaces (a revision)")
@@ -138,10 +145,13 @@ accepted), 1 when it is rejected — the record is written in both cases — and
 
 // validate checks the flags that need no file.
 func (o *recordOptions) validate() error {
-	for _, f := range []struct{ name, v string }{{"plan", o.planPath}, {"draw", o.drawDir}, {"labels", o.labels}, {"out", o.out}} {
+	for _, f := range []struct{ name, v string }{{"plan", o.planPath}, {"draw", o.drawDir}, {"out", o.out}} {
 		if f.v == "" {
 			return inputerr.Errorf("--%s is required", f.name).WithHint("see 'probity record --help'")
 		}
+	}
+	if o.labels == "" && o.trail == "" {
+		return inputerr.Errorf("--labels or --trail is required").WithHint("pass the labeled worksheet, or the label trail of probity label")
 	}
 	if !oneOf(o.use, templates.Uses()) {
 		return inputerr.Errorf("--use %q is not one of %s", o.use, strings.Join(templates.Uses(), ", ")).WithHint("pick the use the classifier's decisions serve")
@@ -176,7 +186,7 @@ func (o *recordOptions) validate() error {
 		return inputerr.Errorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
 	}
 	o.unequal = u
-	return o.quality.validate()
+	return o.quality.validate(o.trail != "")
 }
 
 func oneOf(v string, list []string) bool {
@@ -194,9 +204,9 @@ func runRecord(d deps, o *recordOptions) error {
 	}
 	var signoff []record.Signoff
 	if o.signoff != "" {
-		data, err := os.ReadFile(o.signoff)
+		data, err := inputfile.ReadFile(o.signoff, "sign-off file", inputfile.SmallLimit)
 		if err != nil {
-			return inputerr.FromPath(err)
+			return err
 		}
 		if signoff, err = record.ParseSignoff(data, o.signoff); err != nil {
 			return inputerr.SetHint(err, "see 'probity record --help' for the sign-off file's keys")
@@ -222,7 +232,7 @@ func runRecord(d deps, o *recordOptions) error {
 	if date == "" {
 		date = d.now().UTC().Format("2006-01-02")
 	}
-	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated}
+	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated, Trail: o.trail}
 	rec, err := assemble.Record(files, assemble.Options{
 		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
 		Bound: o.unequal, Use: o.use, Date: date, Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
@@ -303,6 +313,9 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 			fmt.Sprintf("%.4f", c.Estimate), fmt.Sprintf("%.4f", c.UpperBound), c.Reason)
 	}
 	fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
+	if t := rec.LabelTrail; t != nil {
+		fmt.Fprintf(w, "labels from the trail: %d events by %s, %s to %s, %d changed\n", t.Events, strings.Join(t.Labelers, ", "), t.FirstLabel, t.LastLabel, t.Changed)
+	}
 	for _, c := range rec.Caveats {
 		fmt.Fprintf(w, "caveat: %s\n", c.Text)
 	}

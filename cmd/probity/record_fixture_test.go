@@ -28,7 +28,10 @@ type recFixture struct {
 	truth                        map[string]string
 	ledger                       []drawfolder.LedgerRow
 	worksheet                    []drawfolder.WorksheetRow
-	show                         []string
+	// second is the draw's worksheet-second.csv (nil without doubled
+	// items).
+	second []drawfolder.WorksheetRow
+	show   []string
 }
 
 // newRecFixture plans (ceiling 0.05, confidence 0.95, anticipated 0.01,

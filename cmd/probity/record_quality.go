@@ -25,8 +25,8 @@ type labelQualityOptions struct {
 // adds their explanation to its help.
 func addLabelQualityFlags(cmd *cobra.Command, o *labelQualityOptions) {
 	fs := cmd.Flags()
-	fs.StringVar(&o.second, "second", "", "the labeled second worksheet (worksheet-second.csv of a draw with --double): agreement, Cohen's kappa and Gwet's AC1 on the doubled items")
-	fs.StringVar(&o.adjudicated, "adjudicated", "", "adjudication CSV ("+strings.Join(agreement.AdjudicationColumns, ",")+"): the final label of each doubled item the two labelers did not agree on")
+	fs.StringVar(&o.second, "second", "", "the labeled second worksheet `FILE` (worksheet-second.csv of a draw with --double): agreement, Cohen's kappa and Gwet's AC1 on the doubled items")
+	fs.StringVar(&o.adjudicated, "adjudicated", "", "adjudication CSV `FILE` ("+strings.Join(agreement.AdjudicationColumns, ",")+"): the final label of each doubled item the two labelers did not agree on")
 	fs.BoolVar(&o.allowUnadjudicated, "allow-unadjudicated", false, "issue the record with disagreements left without an adjudication, counting each as an error for every candidate")
 	fs.BoolVar(&o.strict, "strict", false, "refuse (instead of warning about) an item labeled twice by the same person, a doubled item that does not name both labelers, or one with a blank label")
 	cmd.Long += labelQualityHelp
@@ -51,9 +51,10 @@ the judgement uses that label. Without a row the record is refused, unless
 every candidate. The same person giving both labels of an item is a warning,
 an error with --strict.`
 
-// validate checks the flags that only make sense with --second.
-func (o labelQualityOptions) validate() error {
-	if o.second != "" {
+// validate checks the flags that only make sense with --second (or a
+// label trail, which may hold the second labels).
+func (o labelQualityOptions) validate(trail bool) error {
+	if o.second != "" || trail {
 		return nil
 	}
 	var given []string

@@ -127,9 +127,9 @@ func TestRecordBadInputLeavesNothing(t *testing.T) {
 		want   []string
 	}{
 		{"removed row", fx.labels(t, "removed.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { return append(r[:3:3], r[4:]...) }), nil, "",
-			[]string{"removed.csv: rows differ from the ledger", "missing: item 4", "hint: label every row"}},
+			[]string{"removed.csv: rows differ from the draw's worksheet — a row is missing: item 4", "hint: label every row"}},
 		{"changed id", fx.labels(t, "changed.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[0].RecordID = "forged"; return r }), nil, "",
-			[]string{"changed.csv: rows differ from the ledger", `added: line 2 (item 1, record_id "forged")`}},
+			[]string{"changed.csv: rows differ from the draw's worksheet", `line 2: record_id "forged" (item 1) is not in this draw`}},
 		{"label outside the classes", fx.labels(t, "bad.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[2].Label = "maybe"; return r }), nil, "",
 			[]string{`bad.csv line 4, field label: label "maybe" (item 3) is not one of the plan's classes (ok, defect), blank or "unsure"`, "hint: use exactly one of: ok, defect"}},
 		{"incomplete", fx.labels(t, "partial.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {

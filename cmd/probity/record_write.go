@@ -6,6 +6,7 @@ import (
 	"probity/plan/inputerr"
 	"probity/plan/record/signature"
 	"probity/sampling/drawfolder"
+	"probity/sampling/labeltrail"
 	"probity/sampling/safewrite"
 )
 
@@ -50,8 +51,8 @@ func writeRecordFolder(dir string, files []namedFile, force bool, inputs []strin
 
 // recordInputFiles are the files a record is made from.
 func recordInputFiles(o *recordOptions) []string {
-	in := []string{o.planPath, o.labels, o.signoff, o.signKey, o.quality.second, o.quality.adjudicated}
-	for _, name := range []string{drawfolder.ManifestFile, drawfolder.LedgerFile, drawfolder.WorksheetFile, drawfolder.WorksheetSecondFile} {
+	in := []string{o.planPath, o.labels, o.trail, o.signoff, o.signKey, o.quality.second, o.quality.adjudicated}
+	for _, name := range []string{drawfolder.ManifestFile, drawfolder.LedgerFile, drawfolder.WorksheetFile, drawfolder.WorksheetSecondFile, labeltrail.FileName} {
 		in = append(in, filepath.Join(o.drawDir, name))
 	}
 	return in

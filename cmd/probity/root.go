@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"probity/plan/inputerr"
 	"runtime/debug"
+	"strings"
 
 	"github.com/spf13/cobra"
 )
@@ -18,7 +19,16 @@ func run(args []string, d deps) (code int) {
 			code = exitInternal
 		}
 	}()
+	var fit *fitWriter
+	if d.width > 0 {
+		fit = &fitWriter{w: d.stdout, width: d.width}
+		d.stdout = fit
+		defer fit.Flush()
+	}
 	root := newRootCommand(d)
+	if fit != nil {
+		root.PersistentPreRun = func(c *cobra.Command, args []string) { fit.raw = machineOutput(c) }
+	}
 	// An unknown command is cobra's to find and the user's to fix.
 	if _, _, err := root.Find(args); err != nil {
 		return reportError(d.stderr, inputerr.Errorf("%w", err).WithHint("see 'probity --help' for the commands"))
@@ -50,6 +60,7 @@ signed acceptance record.
 	root.SetErr(d.stderr)
 	root.SetIn(d.stdin)
 	root.SetVersionTemplate("probity {{.Version}}\n")
+	root.SetUsageTemplate(wrappedUsage(root.UsageTemplate()))
 	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error {
 		return inputerr.Errorf("%w", err).WithHint("see '" + c.CommandPath() + " --help'")
 	})
@@ -75,4 +86,17 @@ func usageArgs(c *cobra.Command) {
 		}
 		return inputerr.Errorf("%w", err).WithHint("see '" + cmd.CommandPath() + " --help'")
 	}
+}
+
+// consoleWidth is the widest line of the commands' console output, help
+// included.
+const consoleWidth = 100
+
+// wrappedUsage is cobra's usage template with the flag descriptions
+// wrapped to consoleWidth columns.
+func wrappedUsage(tpl string) string {
+	return strings.NewReplacer(
+		"{{.LocalFlags.FlagUsages", fmt.Sprintf("{{.LocalFlags.FlagUsagesWrapped %d", consoleWidth),
+		"{{.InheritedFlags.FlagUsages", fmt.Sprintf("{{.InheritedFlags.FlagUsagesWrapped %d", consoleWidth),
+	).Replace(tpl)
 }

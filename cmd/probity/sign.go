@@ -33,7 +33,7 @@ type signOptions struct {
 func newSignCommand(d deps) *cobra.Command {
 	opts := &signOptions{}
 	cmd := &cobra.Command{
-		Use:   "sign RECDIR --role prepared|reviewed|approved --key KEY [--name NAME] [--signers FILE]",
+		Use:   "sign RECDIR --role ROLE --key KEY [--name NAME] [--signers FILE]",
 		Short: "Sign a record electronically, as its preparer, reviewer or approver",
 		Long: `sign adds a person's electronic signature to the record in RECDIR. The
 signature manifestation holds the signer's printed name, the sign-off role
@@ -62,10 +62,7 @@ check a signature with another Ed25519 implementation (openssl pkeyutl).
 
 ` + passphraseHelp + `
 
-` + exitCodesHelp + `
-
-sign exits 0 when the signature was added and 2 when it was refused (the
-message says why); nothing is changed then.`,
+` + exitHelp("the signature was added", "", true),
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) != 1 {
 				return inputerr.Errorf("sign needs exactly one record folder, got %d arguments", len(args)).WithHint("probity sign RECDIR --role reviewed --key KEY")

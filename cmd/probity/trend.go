@@ -75,11 +75,8 @@ record, the "unauthenticated" list of --json, and a red line on the chart.
 estimate and upper bound of every period against the ceiling) and PREFIX.pdf
 (one page: the chart above a table of every period).
 
-` + exitCodesHelp + `
-
-trend exits 1 when the latest period's record rejects (overall verdict
-REJECT) or a record cannot be authenticated (without
---allow-unauthenticated), and 0 otherwise.`,
+` + exitHelp("the latest period's record does not reject, and every record is authenticated",
+			"the latest period's record rejects (overall verdict REJECT), or a record cannot be\nauthenticated (without --allow-unauthenticated)", true),
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) == 0 {
 				return inputerr.Errorf("trend needs at least one record.json or folder of records").WithHint("e.g. 'probity trend audits/' or 'probity trend audits/2026-*/record.json'")
@@ -301,7 +298,7 @@ func trendShortList(xs []string, n int) string {
 // candidate and the latest verdict.
 func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
 	c := t.Class
-	head := fmt.Sprintf("Trend of %d records, %s to %s", len(t.Periods), t.Periods[0].Label, t.Latest.Label)
+	head := fmt.Sprintf("Trend of %s, %s to %s", countOf(len(t.Periods), "record", "records"), t.Periods[0].Label, t.Latest.Label)
 	if sys := strings.TrimSpace(t.System + " " + t.SystemVersion); sys != "" {
 		head += " — " + sys
 	}

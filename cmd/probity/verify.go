@@ -25,15 +25,20 @@ type verifyOptions struct {
 	// adjudication file of a record judged on double labels.
 	second      string
 	adjudicated string
+	// trail is the label trail a record's labels were derived from.
+	trail string
 	// templatesDir is the wording record.pdf was rendered with.
 	templatesDir string
+	// maxLine bounds a line of the log (--max-line), parsedMaxLine read.
+	maxLine       string
+	parsedMaxLine int64
 }
 
 // newVerifyCommand builds `probity verify`.
 func newVerifyCommand(d deps) *cobra.Command {
 	opts := &verifyOptions{}
 	cmd := &cobra.Command{
-		Use:   "verify RECDIR [--pub KEY.pub] [--signers FILE] [--plan PLAN.yaml] [--draw DIR] [--labels WORKSHEET.csv] [--log FILE]",
+		Use:   "verify RECDIR [--pub KEY.pub] [--plan FILE] [--draw DIR] [--labels|--trail FILE]",
 		Short: "Authenticate a record's signatures and recompute it from its inputs",
 		Long: `verify checks an acceptance record folder and prints each check with its
 outcome. It says "verified" (exit 0) only when the record is authenticated
@@ -60,6 +65,9 @@ and every check it ran passed:
     record holds; given all three, the judgement is recomputed and compared
     with record.json field by field (a record judged on double labels also
     needs --second and, if it had one, --adjudicated);
+  - with --trail (a record made from a label trail): the trail's SHA-256
+    is the record's, its hash chain holds, it belongs to the draw, and the
+    labeled worksheets derived from it again give the same judgement;
   - with --log (and --plan, --draw): the sample is drawn again from the log
     and compared with the draw folder, so the items labeled are exactly the
     ones chance picked.
@@ -70,12 +78,8 @@ authenticates, so verify exits 1 on a demo record whatever is trusted.
 
 ` + signersHelp + `
 
-` + exitCodesHelp + `
-
-verify exits 0 when the record is authenticated and every check it ran
-passed, and 1 when anything could not be authenticated or any check failed
-(the failing checks say which file and what); 2 on bad usage or unreadable
-input.`,
+` + exitHelp("the record is authenticated and every check it ran passed",
+			"anything could not be authenticated, or a check failed (the failing checks say\nwhich file and what)", false),
 		Args: func(cmd *cobra.Command, args []string) error {
 			if len(args) != 1 {
 				return inputerr.Errorf("verify needs exactly one record folder, got %d arguments", len(args)).WithHint("probity verify RECDIR [--pub KEY.pub]")
@@ -83,11 +87,18 @@ input.`,
 			return nil
 		},
 		PreRunE: func(cmd *cobra.Command, args []string) error {
-			if opts.adjudicated != "" && opts.second == "" {
-				return inputerr.Errorf("--adjudicated needs --second").WithHint("pass the labeled worksheet-second.csv the record was made with")
+			if opts.adjudicated != "" && opts.second == "" && opts.trail == "" {
+				return inputerr.Errorf("--adjudicated needs --second or --trail").WithHint("pass the labeled worksheet-second.csv or the label trail the record was made with")
 			}
 			if opts.logPath != "" && (opts.drawDir == "" || opts.planPath == "") {
 				return inputerr.Errorf("--log needs --plan and --draw").WithHint("the sample is drawn again from the log with the plan's seed and the draw folder's settings")
+			}
+			if opts.maxLine != "" {
+				n, err := parseSize("--max-line", opts.maxLine)
+				if err != nil {
+					return err
+				}
+				opts.parsedMaxLine = n
 			}
 			return nil
 		},
@@ -99,21 +110,24 @@ input.`,
 	fl := cmd.Flags()
 	fl.StringArrayVar(&opts.pub, "pub", nil, "a public `KEY.pub` (from probity keygen) trusted to seal records; repeatable")
 	fl.StringVar(&opts.signers, "signers", "", "the signers `FILE`: whose key signs in which role")
-	fl.StringVar(&opts.planPath, "plan", "", "the plan file, to check and recompute from")
-	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder, to check and recompute from")
-	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet, to check and recompute from")
-	fl.StringVar(&opts.logPath, "log", "", "the prediction log, to draw the sample again")
-	fl.StringVar(&opts.second, "second", "", "the labeled second worksheet of a record judged on double labels, to check and recompute from")
-	fl.StringVar(&opts.adjudicated, "adjudicated", "", "the adjudication file of such a record, to check and recompute from")
-	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder the record was made with, to re-render record.pdf")
+	fl.StringVar(&opts.planPath, "plan", "", "the plan `FILE`, to check and recompute from")
+	fl.StringVar(&opts.drawDir, "draw", "", "the draw folder `DIR`, to check and recompute from")
+	fl.StringVar(&opts.labels, "labels", "", "the labeled worksheet `FILE`, to check and recompute from")
+	fl.StringVar(&opts.logPath, "log", "", "the prediction log `FILE`, to draw the sample again")
+	fl.StringVar(&opts.maxLine, "max-line", "", "with --log: "+maxLineHelp)
+	fl.StringVar(&opts.second, "second", "", "the labeled second worksheet `FILE` of a record judged on double labels, to check and recompute from")
+	fl.StringVar(&opts.adjudicated, "adjudicated", "", "the adjudication `FILE` of such a record, to check and recompute from")
+	fl.StringVar(&opts.trail, "trail", "", "the label `TRAIL` (label-trail.jsonl in the draw folder) the record's labels were derived from, to check and recompute from")
+	fl.StringVar(&opts.templatesDir, "templates", "", "the --templates folder `DIR` the record was made with, to re-render record.pdf")
 	return cmd
 }
 
 func runVerify(d deps, o *verifyOptions) error {
 	in := verification.Input{
 		Dir:          o.dir,
-		Files:        assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.second, Adjudications: o.adjudicated},
+		Files:        assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.second, Adjudications: o.adjudicated, Trail: o.trail},
 		Log:          o.logPath,
+		MaxLine:      o.parsedMaxLine,
 		TemplatesDir: o.templatesDir,
 		ToolVersion:  d.version,
 		Names:        verifyNames,
@@ -141,7 +155,7 @@ func runVerify(d deps, o *verifyOptions) error {
 	if failed := rep.Failed(); len(failed) > 0 {
 		return rejected("verification failed: %d of %d checks (%s)", len(failed), len(rep.Checks), failed[0].Detail)
 	}
-	passed := fmt.Sprintf("%d checks passed", rep.Count(verification.OK))
+	passed := countOf(rep.Count(verification.OK), "check", "checks") + " passed"
 	if n := rep.Count(verification.Limited); n > 0 {
 		passed += fmt.Sprintf(", %d with a stated limitation", n)
 	}
@@ -151,7 +165,7 @@ func runVerify(d deps, o *verifyOptions) error {
 
 // verifyNames are the flags verify and trend take each input from.
 var verifyNames = verification.Names{TrustedKey: "--pub", Signers: "--signers", Templates: "--templates", Plan: "--plan", Draw: "--draw",
-	Labels: "--labels", Log: "--log", Second: "--second", Adjudications: "--adjudicated"}
+	Labels: "--labels", Log: "--log", Second: "--second", Adjudications: "--adjudicated", Trail: "--trail"}
 
 // loadTrust reads the trusted keys and the signers file, with the clock.
 func loadTrust(d deps, pubs []string, signers string) (verification.Trust, error) {

@@ -110,7 +110,7 @@ func TestTamperingIsDetected(t *testing.T) {
 		{"changed label", []string{rec, "--pub", pub, "--plan", fx.planPath, "--draw", fx.draw, "--labels", changed},
 			[]string{"FAIL  " + changed + ": SHA-256", "is not the record's labels fingerprint", "FAIL  record.json differs from the judgement recomputed from the inputs: candidates[0].errors: 0 in the record, 1 recomputed"}},
 		{"removed row", []string{rec, "--plan", fx.planPath, "--draw", fx.draw, "--labels", removed},
-			[]string{"FAIL  " + removed + ": SHA-256", "FAIL  the inputs do not give a record: " + removed + ": rows differ from the ledger — 1 missing: item 3"}},
+			[]string{"FAIL  " + removed + ": SHA-256", "FAIL  the inputs do not give a record: " + removed + ": rows differ from the draw's worksheet — a row is missing: item 3"}},
 		{"edited record.json", []string{edited, "--pub", pub},
 			[]string{"FAIL  record.json has SHA-256", "but record.sig signed", "the file was changed after signing (in " + edited + ")",
 				"FAIL  " + filepath.Join(edited, "record.json") + ": record_id"}},
@@ -142,7 +142,7 @@ func TestTamperingIsDetected(t *testing.T) {
 	}
 	// record itself refuses the tampered labels (the removed row): exit 2.
 	code, _, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", removed, "--out", filepath.Join(fx.dir, "again"))
-	if code != exitBadInput || !strings.Contains(stderr, "removed.csv: rows differ from the ledger — 1 missing: item 3") {
+	if code != exitBadInput || !strings.Contains(stderr, "removed.csv: rows differ from the draw's worksheet — a row is missing: item 3") {
 		t.Errorf("record on a removed row: exit %d: %s", code, stderr)
 	}
 }

@@ -20,15 +20,16 @@ var pathFlags = map[string][]string{
 	"keygen":   {"out", "passphrase-file"},
 	"draw":     {"plan", "log", "out", "check", "anticipated", "selected", "counts"},
 	"progress": {"plan", "draw", "labels"},
-	"record":   {"plan", "draw", "labels", "out", "signoff", "sign-key", "passphrase-file", "templates", "second", "adjudicated"},
+	"record":   {"plan", "draw", "labels", "out", "signoff", "sign-key", "passphrase-file", "templates", "second", "adjudicated", "trail"},
 	"sign":     {"key", "passphrase-file", "signers", "templates"},
-	"verify":   {"pub", "signers", "plan", "draw", "labels", "log", "second", "adjudicated", "templates"},
+	"verify":   {"pub", "signers", "plan", "draw", "labels", "log", "second", "adjudicated", "templates", "trail"},
+	"label":    {"plan", "media"},
 	"trend":    {"chart", "pub", "signers"},
 	"demo":     {"out"},
 }
 
 // pathArgs are the commands whose arguments are paths.
-var pathArgs = map[string]bool{"verify": true, "trend": true, "sign": true}
+var pathArgs = map[string]bool{"verify": true, "trend": true, "sign": true, "label": true}
 
 // takePathsFrom makes cmd's relative path flags and path arguments paths
 // under dir (nothing when dir is ""). It runs before the command's own

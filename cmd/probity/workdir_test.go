@@ -18,9 +18,11 @@ import (
 var notPathFlags = map[string][]string{
 	"plan": {"anticipated", "budget", "candidate", "candidates", "ceiling", "classes", "confidence", "design", "method",
 		"multiplicity", "negative", "population", "positive", "producer-risk", "require", "seed", "system", "system-version", "thresholds"},
-	"draw":   {"allocation", "band", "dedupe", "format", "id", "period", "show", "sql", "strata", "table", "where"},
+	"draw":   {"allocation", "band", "dedupe", "format", "id", "period", "show", "max-line", "sql", "strata", "table", "where"},
 	"record": {"bound", "date", "paper", "use", "supersedes"},
 	"sign":   {"role", "name"},
+	"verify": {"max-line"},
+	"label":  {"bind"},
 	"trend":  {"baseline"},
 }
 

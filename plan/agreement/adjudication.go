@@ -3,12 +3,12 @@ package agreement
 import (
 	"errors"
 	"fmt"
-	"os"
 	"slices"
 	"strconv"
 	"strings"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/personname"
 	"probity/sampling/drawfolder"
 )
@@ -44,9 +44,9 @@ type Adjudication struct {
 // accepted). Every final_label must be one of classes. Errors are
 // *inputerr.Error naming the file, line and column.
 func ReadAdjudications(path string, classes []string) ([]Adjudication, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "adjudication file", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.FromPath(err)
+		return nil, err
 	}
 	return ParseAdjudications(data, path, classes)
 }
@@ -99,7 +99,7 @@ func parseAdjudication(name string, line int, rec, classes []string) (Adjudicati
 	bad := func(col, format string, args ...any) error {
 		return &inputerr.Error{File: name, Line: line, Field: col, Msg: fmt.Sprintf(format, args...)}
 	}
-	a := Adjudication{Line: line, RecordID: rec[1], FinalLabel: rec[2], DecidedBy: strings.TrimSpace(rec[3]), Note: rec[4]}
+	a := Adjudication{Line: line, RecordID: drawfolder.CellValue(rec[1]), FinalLabel: rec[2], DecidedBy: strings.TrimSpace(rec[3]), Note: rec[4]}
 	n, err := strconv.Atoi(rec[0])
 	if err != nil || n < 1 {
 		return a, bad("item", "%q is not a positive whole number", rec[0])

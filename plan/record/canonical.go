@@ -79,6 +79,11 @@ func (r *Record) Normalize() {
 			*l = []string{}
 		}
 	}
+	if t := r.LabelTrail; t != nil && t.Labelers == nil {
+		cp := *t
+		cp.Labelers = []string{}
+		r.LabelTrail = &cp
+	}
 	if r.Method.Assumptions == nil {
 		r.Method.Assumptions = []string{}
 	}

@@ -165,4 +165,17 @@ func TestIDShellRecipe(t *testing.T) {
 	if err != nil || strings.TrimSpace(string(out)) != id {
 		t.Errorf("the recipe gives %q (%v), want %s", out, err, id)
 	}
+	// A record whose labels came from a label trail: the trail's
+	// fingerprint and summary are part of what the id covers.
+	withTrail := *r
+	withTrail.RecordID = ""
+	withTrail.Fingerprints.Trail = strings.Repeat("7", 64)
+	withTrail.LabelTrail = &LabelTrail{Labelers: []string{"Jo Example"}, Events: 3}
+	idT, _ := ID(&withTrail)
+	other := withTrail
+	other.LabelTrail = &LabelTrail{Labelers: []string{"Jo Example"}, Events: 3, Changed: 1}
+	idO, _ := ID(&other)
+	if idT == id || idO == idT {
+		t.Errorf("the id does not cover the label trail: %s, %s, %s", id, idT, idO)
+	}
 }

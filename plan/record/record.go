@@ -79,6 +79,26 @@ type Record struct {
 	// LabelQuality is the double-labeling evidence (nil, and absent from
 	// record.json, when no second worksheet was given).
 	LabelQuality *LabelQuality `json:"label_quality,omitempty"`
+	// LabelTrail is what the labeling's audit trail says (nil, and absent
+	// from record.json, when the labels came from worksheets alone).
+	LabelTrail *LabelTrail `json:"label_trail,omitempty"`
+}
+
+// LabelTrail summarises the audit trail the labels were derived from
+// (label-trail.jsonl, whose SHA-256 is Fingerprints.Trail): who labeled,
+// when, and how many labels were changed after they were given.
+type LabelTrail struct {
+	// Labelers are the names on the trail's label events, sorted.
+	Labelers []string `json:"labelers"`
+	// FirstLabel and LastLabel are the UTC times of the first and last
+	// label event, to the millisecond ("" when the trail has none).
+	FirstLabel string `json:"first_label"`
+	LastLabel  string `json:"last_label"`
+	// Events counts the label events (labels, notes, corrections);
+	// Changed those that changed a label already given, each with its
+	// reason in the trail.
+	Events  int `json:"events"`
+	Changed int `json:"changed"`
 }
 
 // Wording identifies the wording set (package templates) of the PDF.
@@ -143,6 +163,9 @@ type Fingerprints struct {
 	Ledger    string `json:"ledger"`
 	Worksheet string `json:"worksheet"`
 	Labels    string `json:"labels"`
+	// Trail is the SHA-256 of the label trail the labels were derived
+	// from ("", and absent, when there was none).
+	Trail string `json:"trail,omitempty"`
 }
 
 // Candidate is the judgement of one candidate.

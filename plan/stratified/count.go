@@ -173,6 +173,25 @@ func tailBound(s, m int, mu float64) float64 {
 	return plan.BinomialCDF(s, m, math.Min(mu/float64(m), 1))
 }
 
+// PValueAt is the p-value of "the population holds at least D errors"
+// after s errors among the counted items: Hoeffding's bound on P(S ≤ s)
+// at the least favourable spread of D errors, P(Bin(m, μ*(D)/m) ≤ s)
+// when s ≤ μ*(D) − 1, and 1 where the theorem says nothing. D ≤ 0 gives 1
+// and D above the population 0 (no population holds that many). Judge's
+// PValue is PValueAt(S, D*); the test of D at level α rejects when
+// PValueAt(S, D) ≤ α, which for every spread of at least D errors happens
+// with probability at most α (see CountRule), so the rule's design serves
+// any error count, not only the one of its ceiling.
+func (r *CountRule) PValueAt(s int, D int64) float64 {
+	if D <= 0 {
+		return 1
+	}
+	if D > r.Design.Population() {
+		return 0
+	}
+	return tailBound(s, r.CountedSize(), r.fillSpread(D, nil))
+}
+
 // acceptanceNumber is the largest c ≤ μ − 1 with P(Bin(m, μ/m) ≤ c) ≤ α,
 // or −1.
 func acceptanceNumber(m int, mu, alpha float64) int {

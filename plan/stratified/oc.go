@@ -27,17 +27,50 @@ func (r *CountRule) AcceptProbability(errors []int64) (float64, error) {
 	if c < 0 {
 		return 0, nil
 	}
-	dist := []float64{1} // P(S_so_far = s), s = 0 … min(c, Σ k)
+	dist := countDistribution(r.Design, r.Counted, errors, c)
+	var p float64
+	for _, v := range dist {
+		p += v
+	}
+	return math.Min(p, 1), nil
+}
+
+// CountDistribution is the law of S, the errors among the counted items,
+// when stratum h holds errors[h] errors: P(S = s) for s = 0 … top (fewer
+// entries when the counted items cannot hold top errors), the
+// convolution of the independent hypergeometric counts X_h ~ Hyp(N_h,
+// errors[h], k_h) of AcceptProbability, with its precision. Summing its
+// entries up to c gives P(S ≤ c) for any acceptance number c.
+func (r *CountRule) CountDistribution(errors []int64, top int) ([]float64, error) {
+	if len(errors) != len(r.Design.Strata) {
+		return nil, fmt.Errorf("%w: %d error counts for %d strata", ErrDesign, len(errors), len(r.Design.Strata))
+	}
 	for h, s := range r.Design.Strata {
-		k := r.Counted[h]
+		if errors[h] < 0 || errors[h] > s.Population {
+			return nil, fmt.Errorf("%w: stratum %q cannot hold %d errors in %d decisions", ErrDesign, s.Label, errors[h], s.Population)
+		}
+	}
+	if top < 0 {
+		return nil, nil
+	}
+	return countDistribution(r.Design, r.Counted, errors, top), nil
+}
+
+// countDistribution is P(S = s), s = 0 … top, by convolution (only the
+// values 0 … top matter; see hyperPMFRange for what is left out). It is
+// empty when some stratum's count must exceed top.
+func countDistribution(d Design, counted []int, errors []int64, top int) []float64 {
+	dist := []float64{1} // P(S_so_far = s), s = 0 … min(top, Σ k)
+	for h, s := range d.Strata {
+		k := counted[h]
 		if k == 0 {
 			continue
 		}
-		lo, pmf := hyperPMFRange(s.Population, errors[h], k, c)
+		lo, pmf := hyperPMFRange(s.Population, errors[h], k, top)
 		if len(pmf) == 0 {
-			return 0, nil // every count of this stratum exceeds c
+			return nil // every count of this stratum exceeds top
 		}
-		next := make([]float64, min(len(dist)+lo+len(pmf)-1, c+1))
+		next := make([]float64, min(len(dist)+lo+len(pmf)-1, top+1))
 		for i, a := range dist {
 			if a == 0 {
 				continue
@@ -51,11 +84,7 @@ func (r *CountRule) AcceptProbability(errors []int64) (float64, error) {
 		}
 		dist = next
 	}
-	var p float64
-	for _, v := range dist {
-		p += v
-	}
-	return math.Min(p, 1), nil
+	return dist
 }
 
 // hyperPMFRange returns P(X = x) for X ~ Hyp(N, D, n) over the values

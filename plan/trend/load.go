@@ -15,6 +15,7 @@ import (
 	"time"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 )
 
@@ -61,9 +62,9 @@ func Load(paths []string) (*Loaded, error) {
 		if was, ok := isRecord[abs]; ok {
 			return was, nil
 		}
-		data, err := os.ReadFile(path)
+		data, err := inputfile.ReadFile(path, "record", inputfile.TableLimit)
 		if err != nil {
-			return false, &inputerr.Error{Err: ErrNotRecord, File: path, Msg: readReason(err)}
+			return false, &inputerr.Error{Err: errors.Join(ErrNotRecord, err), File: path, Msg: readReason(err)}
 		}
 		if !mustBe && !looksLikeRecord(data) {
 			if !json.Valid(data) {

@@ -35,6 +35,10 @@ func checkPeriod(p string) error {
 	return nil
 }
 
+// CheckPeriod applies checkPeriod's rule, so that a sample is drawn only
+// for a period label a trend can line up.
+func CheckPeriod(p string) error { return checkPeriod(p) }
+
 // ErrNoPeriod is the cause of the error about a record without a period:
 // its audit was not drawn for a period, so it has no place in a trend.
 var ErrNoPeriod = errors.New("empty: a trend needs records of audits drawn for a period")

@@ -6,6 +6,8 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+
+	"probity/plan/inputfile"
 )
 
 // Comparison is the outcome of comparing a draw folder with a fresh draw
@@ -17,6 +19,9 @@ type Comparison struct {
 	Differences []string
 	// Items and Spares count the recomputed sample.
 	Items, Spares int
+	// Notes say what is not a difference but worth knowing: a log
+	// compressed again since the draw.
+	Notes []string
 }
 
 // maxListed bounds the differences listed per file.
@@ -43,10 +48,16 @@ func Compare(dir string, want *Content) (*Comparison, error) {
 			diff("manifest %s: the folder has %v, the log and plan give %v", name, g, x)
 		}
 	}
+	switch same, why := SameLog(got.Log, w.Log); {
+	case !same:
+		// Every other difference would only follow from this one.
+		rep.Differences = []string{why}
+		return rep, nil
+	case why != "":
+		rep.Notes = append(rep.Notes, why)
+	}
 	field("plan_fingerprint", got.PlanFingerprint, w.PlanFingerprint)
 	field("selection_seed", got.SelectionSeed, w.SelectionSeed)
-	field("log.sha256", got.Log.SHA256, w.Log.SHA256)
-	field("log.bytes", got.Log.Bytes, w.Log.Bytes)
 	field("log.rows", got.Log.Rows, w.Log.Rows)
 	field("lot_size", got.LotSize, w.LotSize)
 	field("sample_size", got.SampleSize, w.SampleSize)
@@ -57,7 +68,7 @@ func Compare(dir string, want *Content) (*Comparison, error) {
 	}
 	// Files edited since the draw: the ledger must be unchanged; the
 	// worksheets are expected to gain labels.
-	if data, err := os.ReadFile(filepath.Join(dir, LedgerFile)); err == nil && got.Files[LedgerFile] != SHA256Hex(data) {
+	if data, err := inputfile.ReadFile(filepath.Join(dir, LedgerFile), "ledger", inputfile.TableLimit); err == nil && got.Files[LedgerFile] != SHA256Hex(data) {
 		diff("%s was changed after the draw: its SHA-256 is not the one in %s", LedgerFile, ManifestFile)
 	}
 	ledger, err := ReadLedger(filepath.Join(dir, LedgerFile), want.Candidates)
@@ -65,14 +76,45 @@ func Compare(dir string, want *Content) (*Comparison, error) {
 		return nil, err
 	}
 	rep.Differences = append(rep.Differences, compareLedger(ledger, want.Ledger)...)
-	rep.Differences = append(rep.Differences, compareWorksheet(filepath.Join(dir, WorksheetFile), want.Show, want.Worksheet)...)
+	id := ManifestDrawID(want.Manifest)
+	rep.Differences = append(rep.Differences, compareWorksheet(filepath.Join(dir, WorksheetFile), id, want.Show, want.Worksheet)...)
 	secondPath := filepath.Join(dir, WorksheetSecondFile)
 	if want.Second != nil {
-		rep.Differences = append(rep.Differences, compareWorksheet(secondPath, want.Show, want.Second)...)
+		rep.Differences = append(rep.Differences, compareWorksheet(secondPath, id, want.Show, want.Second)...)
 	} else if _, err := os.Stat(secondPath); err == nil {
 		diff("%s is in the folder but the draw doubles no item", WorksheetSecondFile)
 	}
 	return rep, nil
+}
+
+// SameLog reports whether read, a log just read, is the log a draw
+// recorded: the same content (decompressed bytes), whatever its
+// compression. When it is not, why says so with both fingerprints; when it
+// is the same content compressed differently, why notes that. A manifest
+// from before content fingerprints is matched on the file's own SHA-256.
+func SameLog(recorded, read LogInfo) (same bool, why string) {
+	rec, got, what := recorded.ContentSHA256, read.ContentSHA256, "its content's SHA-256"
+	if rec == "" {
+		rec, got, what = recorded.SHA256, read.SHA256, "its SHA-256"
+	}
+	if rec != got {
+		return false, fmt.Sprintf("this is not the log the draw was made from: %s is %s… (%s, %d rows), the draw's log %s had %s… (%s, %d rows)",
+			what, short(got), read.Kind(), read.Rows, recorded.Path, short(rec), recorded.Kind(), recorded.Rows)
+	}
+	if recorded.SHA256 != read.SHA256 {
+		return true, fmt.Sprintf("the log was compressed again since the draw: the same content (SHA-256 %s…) in a file with SHA-256 %s…, where the draw's log had %s…",
+			short(rec), short(read.SHA256), short(recorded.SHA256))
+	}
+	return true, ""
+}
+
+// Kind is a log's format and compression, for messages: "csv",
+// "jsonl, gzip".
+func (l LogInfo) Kind() string {
+	if l.Compression == "" || l.Compression == "none" {
+		return l.Format
+	}
+	return l.Format + ", " + l.Compression
 }
 
 func strataText(s []StratumInfo) string {
@@ -147,7 +189,7 @@ func ledgerRowDiff(g, x *LedgerRow) string {
 
 // compareWorksheet checks the drawn columns of a worksheet (item,
 // record_id, shown columns); labels, notes and labelers are ignored.
-func compareWorksheet(path string, show []string, want []WorksheetRow) []string {
+func compareWorksheet(path string, id DrawID, show []string, want []WorksheetRow) []string {
 	name := filepath.Base(path)
 	header, rows, err := ReadWorksheet(path)
 	if err != nil {
@@ -156,7 +198,7 @@ func compareWorksheet(path string, show []string, want []WorksheetRow) []string 
 		}
 		return []string{err.Error()}
 	}
-	wantHeader := WorksheetHeader(show)
+	wantHeader := worksheetHeader(id, show)
 	if strings.Join(header[:min(len(header), len(show)+2)], ",") != strings.Join(wantHeader[:len(show)+2], ",") {
 		return []string{fmt.Sprintf("%s: columns are %s, the draw wrote %s", name, columnList(header), columnList(wantHeader))}
 	}

@@ -33,13 +33,14 @@ type NamedFile struct {
 func (f *Content) Render() ([]NamedFile, error) {
 	var files []NamedFile
 	var buf bytes.Buffer
-	if err := WriteWorksheet(&buf, f.Show, f.Worksheet); err != nil {
+	id := ManifestDrawID(f.Manifest)
+	if err := WriteDrawWorksheet(&buf, id, f.Show, f.Worksheet); err != nil {
 		return nil, err
 	}
 	files = append(files, NamedFile{WorksheetFile, append([]byte{}, buf.Bytes()...)})
 	if f.Second != nil {
 		buf.Reset()
-		if err := WriteWorksheet(&buf, f.Show, f.Second); err != nil {
+		if err := WriteDrawWorksheet(&buf, id, f.Show, f.Second); err != nil {
 			return nil, err
 		}
 		files = append(files, NamedFile{WorksheetSecondFile, append([]byte{}, buf.Bytes()...)})

@@ -6,8 +6,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"strconv"
 )
 
@@ -22,11 +22,12 @@ type CSVTable struct {
 	Lines  []int
 }
 
-// readCSVTable reads a CSV file with ParseCSVTable.
-func readCSVTable(path string) (*CSVTable, error) {
-	data, err := os.ReadFile(path)
+// readCSVTable reads a CSV file with ParseCSVTable; what names the
+// kind of file in messages.
+func readCSVTable(path, what string) (*CSVTable, error) {
+	data, err := inputfile.ReadFile(path, what, inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.FromPath(err)
+		return nil, err
 	}
 	return ParseCSVTable(data, path)
 }
@@ -38,6 +39,9 @@ func readCSVTable(path string) (*CSVTable, error) {
 // and the line.
 func ParseCSVTable(data []byte, name string) (*CSVTable, error) {
 	data = bytes.TrimPrefix(data, []byte("\xef\xbb\xbf"))
+	if err := checkLayout(data, name); err != nil {
+		return nil, err
+	}
 	r := csv.NewReader(bytes.NewReader(data))
 	r.FieldsPerRecord = -1
 	t := &CSVTable{}
@@ -68,6 +72,29 @@ func ParseCSVTable(data []byte, name string) (*CSVTable, error) {
 		return nil, inputErrorf(name, 0, "", "the file is empty (no header line)")
 	}
 	return t, nil
+}
+
+// checkLayout refuses two layouts a spreadsheet program may save a CSV
+// file in that would otherwise read as one odd header: line ends that are
+// carriage returns alone (old Mac files), and fields separated by
+// semicolons (the CSV of locales that write decimal commas).
+func checkLayout(data []byte, name string) error {
+	first := data
+	if i := bytes.IndexByte(data, '\n'); i >= 0 {
+		first = data[:i]
+	}
+	first = bytes.TrimSuffix(first, []byte("\r"))
+	if bytes.IndexByte(first, '\r') >= 0 {
+		e := inputErrorf(name, 0, "", "its line ends are carriage returns alone (\\r, as in old Mac files), so it reads as one line")
+		e.Hint = "save it as CSV with Unix (LF) or Windows (CRLF) line ends"
+		return e
+	}
+	if semis := bytes.Count(first, []byte{';'}); semis >= 2 && bytes.Count(first, []byte{','}) < semis {
+		e := inputErrorf(name, 1, "", "its fields are separated by ';', not ','")
+		e.Hint = "save it as CSV with ',' as the field separator (in the spreadsheet's CSV export options)"
+		return e
+	}
+	return nil
 }
 
 // CheckHeader compares a header read from the file name with the expected

@@ -60,7 +60,7 @@ func TestFolderRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if want := []string{"item", "record_id", "text", "label", "note", "labeler"}; !reflect.DeepEqual(h, want) {
+	if want := []string{"item (draw: seed s)", "record_id", "text", "label", "note", "labeler"}; !reflect.DeepEqual(h, want) {
 		t.Fatalf("header %v, want %v", h, want)
 	}
 	if len(ws) != 2 || ws[1].RecordID != "r,2" || ws[1].Show[0] != "line\nbreak" || ws[0].Line != 2 || ws[1].Line != 3 {

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 )
 
 // Labels is a labeled worksheet: a copy of worksheet.csv (or of
@@ -21,9 +22,9 @@ type Labels struct {
 // ReadLabels reads a labeled worksheet (ReadWorksheet), keeping its bytes
 // for its fingerprint.
 func ReadLabels(path string) (*Labels, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "worksheet", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.FromPath(err)
+		return nil, err
 	}
 	t, err := ParseCSVTable(data, path)
 	if err != nil {

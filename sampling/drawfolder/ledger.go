@@ -44,10 +44,10 @@ func WriteLedger(w io.Writer, candidates []string, rows []LedgerRow) error {
 	for _, r := range rows {
 		rec := make([]string, 0, len(LedgerFixedColumns)+len(candidates))
 		rec = append(rec,
-			strconv.Itoa(r.Item), r.RecordID, r.Stratum,
+			strconv.Itoa(r.Item), CellText(r.RecordID), CellText(r.Stratum),
 			strconv.FormatInt(r.StratumSize, 10), strconv.Itoa(r.StratumSample),
 			formatFloat(r.Weight), r.Key, formatBool(r.Spare), formatBool(r.Double))
-		rec = append(rec, r.Predictions...)
+		rec = append(rec, cellTexts(r.Predictions)...)
 		for len(rec) < len(LedgerFixedColumns)+len(candidates) {
 			rec = append(rec, "")
 		}
@@ -62,7 +62,7 @@ func WriteLedger(w io.Writer, candidates []string, rows []LedgerRow) error {
 // from before double labeling, is also read; Double is then false.) Every
 // field is checked; errors are *inputerr.Error naming file, line and column.
 func ReadLedger(path string, candidates []string) ([]LedgerRow, error) {
-	t, err := readCSVTable(path)
+	t, err := readCSVTable(path, "ledger")
 	if err != nil {
 		return nil, err
 	}
@@ -96,7 +96,7 @@ func ledgerFromTable(name string, t *CSVTable, candidates []string) ([]LedgerRow
 			return nil, inputErrorf(name, line, "item", "item %d appears twice (lines %d and %d)", r.Item, prev, line)
 		}
 		items[r.Item] = line
-		r.RecordID = rec[1]
+		r.RecordID = CellValue(rec[1])
 		if r.RecordID == "" {
 			return nil, inputErrorf(name, line, "record_id", "record_id is empty")
 		}
@@ -104,7 +104,7 @@ func ledgerFromTable(name string, t *CSVTable, candidates []string) ([]LedgerRow
 			return nil, inputErrorf(name, line, "record_id", "record_id %q appears twice (lines %d and %d)", r.RecordID, prev, line)
 		}
 		ids[r.RecordID] = line
-		r.Stratum = rec[2]
+		r.Stratum = CellValue(rec[2])
 		if r.StratumSize, err = strconv.ParseInt(rec[3], 10, 64); err != nil || r.StratumSize < 1 {
 			return nil, inputErrorf(name, line, "stratum_size", "%q is not a whole number of at least 1", rec[3])
 		}
@@ -126,7 +126,7 @@ func ledgerFromTable(name string, t *CSVTable, candidates []string) ([]LedgerRow
 				return nil, err
 			}
 		}
-		r.Predictions = append([]string{}, rec[first:]...)
+		r.Predictions = cellValues(rec[first:])
 		rows = append(rows, r)
 	}
 	return rows, nil

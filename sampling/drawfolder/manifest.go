@@ -6,8 +6,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 )
 
 // ManifestFormat is the version of the manifest layout written by this code.
@@ -64,12 +64,17 @@ type Manifest struct {
 
 // LogInfo describes the prediction log a draw read.
 type LogInfo struct {
-	Path        string `json:"path"`
-	SHA256      string `json:"sha256"`
-	Bytes       int64  `json:"bytes"`
-	Rows        int64  `json:"rows"`
-	Format      string `json:"format"`      // csv, tsv or jsonl
-	Compression string `json:"compression"` // none or gzip
+	Path   string `json:"path"`
+	SHA256 string `json:"sha256"`
+	// ContentSHA256 is the SHA-256 of the log's decompressed bytes (equal
+	// to SHA256 for a log that is not compressed), so a log compressed
+	// again is known for the same log; empty in manifests from before it
+	// was recorded, and for a draw inside a database.
+	ContentSHA256 string `json:"content_sha256,omitempty"`
+	Bytes         int64  `json:"bytes"`
+	Rows          int64  `json:"rows"`
+	Format        string `json:"format"`      // csv, tsv or jsonl
+	Compression   string `json:"compression"` // none or gzip
 }
 
 // AllocationInfo records the allocation rule and its parameters.
@@ -182,9 +187,9 @@ func ParseManifest(data []byte, name string) (*Manifest, error) {
 // ReadManifest reads and decodes a manifest.json. It also returns the raw
 // bytes, which later steps fingerprint.
 func ReadManifest(path string) (*Manifest, []byte, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "manifest", inputfile.SmallLimit)
 	if err != nil {
-		return nil, nil, inputerr.FromPath(err)
+		return nil, nil, err
 	}
 	m, err := ParseManifest(data, path)
 	if err != nil {

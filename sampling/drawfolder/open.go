@@ -3,10 +3,10 @@ package drawfolder
 import (
 	"bytes"
 	"fmt"
-	"os"
 	"path/filepath"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 )
 
 // Folder is a draw folder opened by Open: its files as read, with their
@@ -66,8 +66,8 @@ func Open(dir, planFP string, candidates []string) (*Folder, error) {
 		return nil, err
 	}
 	lpath := f.Path(LedgerFile)
-	if f.LedgerBytes, err = os.ReadFile(lpath); err != nil {
-		return nil, inputerr.FromPath(err)
+	if f.LedgerBytes, err = inputfile.ReadFile(lpath, "ledger", inputfile.TableLimit); err != nil {
+		return nil, err
 	}
 	if err := f.matchManifest(lpath, LedgerFile, f.LedgerBytes); err != nil {
 		return nil, err
@@ -83,8 +83,8 @@ func Open(dir, planFP string, candidates []string) (*Folder, error) {
 		return nil, err
 	}
 	wpath := f.Path(WorksheetFile)
-	if f.WorksheetBytes, err = os.ReadFile(wpath); err != nil {
-		return nil, inputerr.FromPath(err)
+	if f.WorksheetBytes, err = inputfile.ReadFile(wpath, "worksheet", inputfile.TableLimit); err != nil {
+		return nil, err
 	}
 	if t, err = ParseCSVTable(f.WorksheetBytes, wpath); err != nil {
 		return nil, err
@@ -192,8 +192,10 @@ func blankWorksheet(header []string, rows []WorksheetRow) ([]byte, error) {
 	for i, r := range rows {
 		blank[i] = WorksheetRow{Item: r.Item, RecordID: r.RecordID, Show: r.Show}
 	}
+	nShow := len(ShownColumns(header))
+	h := append(append([]string{}, header[:2+nShow]...), "label", "note", "labeler")
 	var buf bytes.Buffer
-	if err := WriteWorksheet(&buf, ShownColumns(header), blank); err != nil {
+	if err := writeWorksheet(&buf, h, nShow, blank); err != nil {
 		return nil, err
 	}
 	return buf.Bytes(), nil

@@ -67,7 +67,7 @@ func TestOpenChecksTheFolder(t *testing.T) {
 	labeled := append([]WorksheetRow{}, c.Worksheet...)
 	labeled[0].Label, labeled[0].Labeler = "yes", "ann"
 	wf, _ := os.Create(filepath.Join(dir, WorksheetFile))
-	WriteWorksheet(wf, c.Show, labeled)
+	WriteDrawWorksheet(wf, ManifestDrawID(c.Manifest), c.Show, labeled)
 	wf.Close()
 	f, err = Open(dir, "pf", c.Candidates)
 	if err != nil || !f.LabeledInPlace || f.WorksheetSHA256 != f.Manifest.Files[WorksheetFile] {

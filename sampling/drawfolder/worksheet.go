@@ -2,7 +2,9 @@ package drawfolder
 
 import (
 	"io"
+	"slices"
 	"strconv"
+	"strings"
 
 	"probity/plan/personname"
 )
@@ -22,23 +24,63 @@ type WorksheetRow struct {
 }
 
 // WorksheetHeader returns a worksheet's header: item, record_id, the show
-// columns, label, note, labeler.
-func WorksheetHeader(show []string) []string {
-	h := []string{"item", "record_id"}
-	h = append(h, show...)
+// columns (as ShownHeader names them), label, note, labeler.
+func WorksheetHeader(show []string) []string { return worksheetHeader(DrawID{}, show) }
+
+// worksheetHeader is WorksheetHeader with the first cell naming the draw
+// (DrawID.itemCell).
+func worksheetHeader(id DrawID, show []string) []string {
+	h := []string{id.itemCell(), "record_id"}
+	h = append(h, ShownHeader(show)...)
 	return append(h, "label", "note", "labeler")
+}
+
+// worksheetColumns are the names of a worksheet's own columns.
+var worksheetColumns = []string{"item", "record_id", "label", "note", "labeler"}
+
+// shownPrefix marks a shown column whose log name is one of the
+// worksheet's own column names.
+const shownPrefix = "log:"
+
+// ShownHeader is how the worksheet names the log's shown columns: as the
+// log does, except that a name of the worksheet's own (item, record_id,
+// label, note, labeler) — or one already starting with "log:" — is written
+// "log:NAME", so a log column called note can be shown without two note
+// columns in the header. The mapping is one-to-one.
+func ShownHeader(show []string) []string {
+	out := make([]string, len(show))
+	for i, c := range show {
+		if slices.Contains(worksheetColumns, c) || strings.HasPrefix(c, shownPrefix) {
+			c = shownPrefix + c
+		}
+		out[i] = c
+	}
+	return out
 }
 
 // WriteWorksheet writes a worksheet (worksheet.csv or worksheet-second.csv)
 // with the header of WorksheetHeader(show) and one line per row. The
 // labeler column is always written (empty unless set).
 func WriteWorksheet(w io.Writer, show []string, rows []WorksheetRow) error {
+	return writeWorksheet(w, WorksheetHeader(show), len(show), rows)
+}
+
+// WriteDrawWorksheet is WriteWorksheet for the worksheet of the draw id:
+// its first header cell names the draw (as a draw writes it).
+func WriteDrawWorksheet(w io.Writer, id DrawID, show []string, rows []WorksheetRow) error {
+	return writeWorksheet(w, worksheetHeader(id, show), len(show), rows)
+}
+
+// writeWorksheet writes a worksheet with this header, which names nShow
+// shown columns.
+func writeWorksheet(w io.Writer, header []string, nShow int, rows []WorksheetRow) error {
+	show := header[2 : 2+nShow]
 	out := make([][]string, 0, len(rows)+1)
-	out = append(out, WorksheetHeader(show))
+	out = append(out, header)
 	for _, r := range rows {
 		rec := make([]string, 0, len(show)+5)
-		rec = append(rec, strconv.Itoa(r.Item), r.RecordID)
-		rec = append(rec, r.Show...)
+		rec = append(rec, strconv.Itoa(r.Item), CellText(r.RecordID))
+		rec = append(rec, cellTexts(r.Show)...)
 		for len(rec) < 2+len(show) {
 			rec = append(rec, "")
 		}
@@ -54,7 +96,7 @@ func WriteWorksheet(w io.Writer, show []string, rows []WorksheetRow) error {
 // numbers. Items must be positive whole numbers and record ids non-empty,
 // each appearing once. Errors are *inputerr.Error naming file, line, column.
 func ReadWorksheet(path string) (header []string, rows []WorksheetRow, err error) {
-	t, err := readCSVTable(path)
+	t, err := readCSVTable(path, "worksheet")
 	if err != nil {
 		return nil, nil, err
 	}
@@ -69,7 +111,7 @@ func worksheetLayout(name string, h []string) (nShow int, hasLabeler bool, err e
 		e.Hint = "use the worksheet.csv written by probity draw; keep its header line as it is"
 		return e
 	}
-	if len(h) < 4 || h[0] != "item" || h[1] != "record_id" {
+	if _, _, ok := parseItemCell(h[0]); len(h) < 4 || !ok || h[1] != "record_id" {
 		return 0, false, bad()
 	}
 	end := len(h)
@@ -109,7 +151,7 @@ func worksheetFromTable(name string, t *CSVTable) ([]string, []WorksheetRow, err
 			return nil, nil, inputErrorf(name, line, "item", "item %d appears twice (lines %d and %d)", r.Item, prev, line)
 		}
 		items[r.Item] = line
-		r.RecordID = rec[1]
+		r.RecordID = CellValue(rec[1])
 		if r.RecordID == "" {
 			return nil, nil, inputErrorf(name, line, "record_id", "record_id is empty")
 		}
@@ -117,7 +159,7 @@ func worksheetFromTable(name string, t *CSVTable) ([]string, []WorksheetRow, err
 			return nil, nil, inputErrorf(name, line, "record_id", "record_id %q appears twice (lines %d and %d)", r.RecordID, prev, line)
 		}
 		ids[r.RecordID] = line
-		r.Show = append([]string{}, rec[2:2+nShow]...)
+		r.Show = cellValues(rec[2 : 2+nShow])
 		r.Label = rec[2+nShow]
 		r.Note = rec[3+nShow]
 		if hasLabeler {

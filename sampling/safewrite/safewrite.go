@@ -262,10 +262,26 @@ func writeError(path string, err error) error {
 	switch {
 	case errors.As(err, &pe):
 		reason = pe.Err.Error()
+		if parent := filepath.Dir(pe.Path); creates[pe.Op] && errors.Is(err, fs.ErrNotExist) && isDir(parent) {
+			// The folder is there but refuses a new entry: a special
+			// file system such as /proc.
+			return inputerr.At(path, 0, "", "cannot write: %s exists but does not take new files or folders", parent).
+				WithHint("choose a folder on an ordinary disk").Wrap(err)
+		}
 	case errors.As(err, &le):
 		reason = le.Err.Error()
 	}
 	return inputerr.At(path, 0, "", "cannot write: %s", reason).Wrap(err)
+}
+
+// creates are the operations (as *fs.PathError names them) that make a
+// new entry in an existing folder.
+var creates = map[string]bool{"mkdir": true, "mkdirtemp": true, "createtemp": true, "open": true}
+
+// isDir reports whether path is a folder.
+func isDir(path string) bool {
+	st, err := os.Stat(path)
+	return err == nil && st.IsDir()
 }
 
 // leftoversOf keeps the leftovers that stand in the way of writing name:

@@ -5,11 +5,11 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"os"
 	"strconv"
 	"strings"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/sampling/drawfolder"
 )
 
@@ -83,8 +83,7 @@ func (t *resultTable) int64At(i, col int) (int64, error) {
 // readFile returns a file's bytes, or stdin's for "-".
 func readFile(path string, stdin io.Reader) ([]byte, error) {
 	if path == "-" {
-		return io.ReadAll(stdin)
+		return inputfile.ReadAll(stdin, "stdin", "query result", inputfile.TableLimit)
 	}
-	data, err := os.ReadFile(path)
-	return data, inputerr.FromPath(err)
+	return inputfile.ReadFile(path, "query result", inputfile.TableLimit)
 }

@@ -37,6 +37,9 @@ func (s *Spec) validate() error {
 	if s.Spare < 0 {
 		return specError("spare", "%d is negative", s.Spare)
 	}
+	if s.Spare > s.SampleSize {
+		return specError("spare", "%d: at most the sample size %d per stratum", s.Spare, s.SampleSize)
+	}
 	switch s.Allocation {
 	case ruleProportional, ruleEqual:
 	case sampling.Neyman:

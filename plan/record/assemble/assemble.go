@@ -14,19 +14,21 @@
 package assemble
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
-	"os"
 	"strings"
 	"time"
 
 	"probity/plan"
 	"probity/plan/agreement"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/intake"
 	"probity/plan/verdict"
 	"probity/sampling/drawfolder"
+	"probity/sampling/labeltrail"
 	"probity/templates"
 )
 
@@ -35,10 +37,15 @@ const OCPoints = 61
 
 // Files names the files a record is computed from. Second and
 // Adjudications are empty without double labeling; Adjudications needs
-// Second.
+// Second. Trail is the label trail (labeltrail.FileName in the draw
+// folder, "" when the labels were typed into worksheets): the labeled
+// worksheet, and the second one when the trail holds second labels, are
+// then derived from it, and a Labels or Second file given beside it must
+// be the very bytes derived. Labels or Trail must be given.
 type Files struct {
 	Plan, Draw, Labels    string
 	Second, Adjudications string
+	Trail                 string
 }
 
 // Inputs are the files a record is computed from, read and checked.
@@ -55,6 +62,11 @@ type Inputs struct {
 	Adjudications      []agreement.Adjudication
 	AdjudicationFile   string
 	AdjudicationSHA256 string
+	// Trail is the label trail the labels were derived from (nil when
+	// none was given), replayed against the draw; TrailSHA256 is its
+	// fingerprint.
+	Trail       *labeltrail.State
+	TrailSHA256 string
 }
 
 // Options are the choices a record is made with, besides its files.
@@ -109,7 +121,8 @@ func Record(files Files, o Options) (*record.Record, error) {
 // candidates), the draw folder (drawfolder.Open, against the plan), the
 // labeled worksheet and, with double labeling, the labeled second
 // worksheet (against the draw's, drawfolder.Folder.CheckSecond) and the
-// adjudications. Errors are *inputerr.Error values naming the file.
+// adjudications; with a label trail, the worksheets derived from it
+// (readTrail). Errors are *inputerr.Error values naming the file.
 func Read(f Files) (*Inputs, error) {
 	p, fp, err := plan.LoadForJudging(f.Plan)
 	if err != nil {
@@ -119,8 +132,20 @@ func Read(f Files) (*Inputs, error) {
 	if in.Folder, err = drawfolder.Open(f.Draw, fp, p.CandidateNames()); err != nil {
 		return nil, err
 	}
-	if in.Labels, err = drawfolder.ReadLabels(f.Labels); err != nil {
+	if f.Trail != "" {
+		if err := readTrail(in, f); err != nil {
+			return nil, err
+		}
+	} else if in.Labels, err = drawfolder.ReadLabels(f.Labels); err != nil {
 		return nil, err
+	}
+	if in.Second != nil {
+		if f.Adjudications != "" {
+			if err := readAdjudications(in, f.Adjudications); err != nil {
+				return nil, err
+			}
+		}
+		return in, nil
 	}
 	if f.Second == "" {
 		if f.Adjudications != "" {
@@ -135,16 +160,76 @@ func Read(f Files) (*Inputs, error) {
 		return nil, err
 	}
 	if f.Adjudications != "" {
-		data, err := os.ReadFile(f.Adjudications)
-		if err != nil {
-			return nil, inputerr.FromPath(err)
-		}
-		if in.Adjudications, err = agreement.ParseAdjudications(data, f.Adjudications, p.Classes); err != nil {
+		if err := readAdjudications(in, f.Adjudications); err != nil {
 			return nil, err
 		}
-		in.AdjudicationFile, in.AdjudicationSHA256 = f.Adjudications, record.SHA256(data)
 	}
 	return in, nil
+}
+
+// readAdjudications reads the adjudication file into in.
+func readAdjudications(in *Inputs, path string) error {
+	data, err := inputfile.ReadFile(path, "adjudication file", inputfile.TableLimit)
+	if err != nil {
+		return err
+	}
+	if in.Adjudications, err = agreement.ParseAdjudications(data, path, in.Plan.Classes); err != nil {
+		return err
+	}
+	in.AdjudicationFile, in.AdjudicationSHA256 = path, record.SHA256(data)
+	return nil
+}
+
+// ErrNotDerived is the cause of the refusal of a labeled worksheet given
+// beside a label trail that is not the worksheet the trail gives.
+var ErrNotDerived = errors.New("not the worksheet the label trail gives")
+
+// readTrail reads the label trail, checks its chain and that it belongs
+// to the draw (labeltrail.Read, labeltrail.Replay), and derives the
+// labeled worksheet from it and, when the trail holds second labels, the
+// second worksheet. A worksheet file given beside the trail must have the
+// derived bytes; it is then the one read, so that refusals name its
+// lines; a derived worksheet names the trail and the line of each item's
+// last event.
+func readTrail(in *Inputs, f Files) error {
+	t, err := labeltrail.Read(f.Trail)
+	if err != nil {
+		return err
+	}
+	d, err := labeltrail.DrawOf(in.Folder, in.Plan.Classes)
+	if err != nil {
+		return err
+	}
+	st, err := labeltrail.Replay(t, d)
+	if err != nil {
+		return err
+	}
+	in.Trail, in.TrailSHA256 = st, t.SHA256
+	derive := func(sheet, given string) (*drawfolder.Labels, error) {
+		derived, err := st.Labels(sheet)
+		if err != nil || given == "" {
+			return derived, err
+		}
+		l, err := drawfolder.ReadLabels(given)
+		if err != nil {
+			return nil, err
+		}
+		if !bytes.Equal(l.Bytes, derived.Bytes) {
+			return nil, inputerr.At(given, 0, "", "%w %s (%s)", ErrNotDerived, f.Trail, sheet).
+				WithHint("the worksheet was edited after labeling; use the trail alone, or derive the worksheet from it again")
+		}
+		return l, nil
+	}
+	if in.Labels, err = derive(drawfolder.WorksheetFile, f.Labels); err != nil {
+		return err
+	}
+	if !st.HasEvents(drawfolder.WorksheetSecondFile) {
+		return nil
+	}
+	if in.Second, err = derive(drawfolder.WorksheetSecondFile, f.Second); err != nil {
+		return err
+	}
+	return in.Folder.CheckSecond(in.Second)
 }
 
 // Assemble checks the inputs and builds the record. Errors from the intake
@@ -201,6 +286,10 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 		lq.SecondWorksheet, lq.Adjudications = record.SHA256(in.Second.Bytes), in.AdjudicationSHA256
 		rec.LabelQuality = lq
 	}
+	if in.Trail != nil {
+		rec.Fingerprints.Trail = in.TrailSHA256
+		rec.LabelTrail = trailSummary(in.Trail.Summary())
+	}
 	res, err := judge(p, checked, o.Bound)
 	if err != nil {
 		return nil, err
@@ -243,6 +332,15 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 		return nil, err
 	}
 	return rec, nil
+}
+
+// trailSummary is what the record says about the label trail.
+func trailSummary(s labeltrail.Summary) *record.LabelTrail {
+	t := &record.LabelTrail{Labelers: s.Labelers, Events: s.Events, Changed: s.Changed}
+	if s.Events > 0 {
+		t.FirstLabel, t.LastLabel = labeltrail.FormatTime(s.First), labeltrail.FormatTime(s.Last)
+	}
+	return t
 }
 
 // checkRevision returns the revision number (0 reads as 1) after checking

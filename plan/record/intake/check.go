@@ -63,7 +63,7 @@ func Check(p *plan.File, planFP string, f *drawfolder.Folder, l *drawfolder.Labe
 		strata[i] = verdict.Stratum{Label: s.Label, Population: s.Population}
 	}
 	index := f.StratumIndex
-	if err := compareRows(f, l); err != nil {
+	if err := f.CheckLabels(l); err != nil {
 		return nil, err
 	}
 	res := &Result{Fingerprints: record.Fingerprints{
@@ -82,66 +82,6 @@ func Check(p *plan.File, planFP string, f *drawfolder.Folder, l *drawfolder.Labe
 		res.Deviations.Notes = append(res.Deviations.Notes, fmt.Sprintf("%s in the draw folder was labeled in place; with its labels removed it is the file the draw wrote", drawfolder.WorksheetFile))
 	}
 	return res, nil
-}
-
-// compareRows checks that the labeled worksheet has the same columns, the
-// same items and record ids in the same order, and the same shown values
-// as the draw's worksheet and ledger, and lists what differs.
-func compareRows(f *drawfolder.Folder, l *drawfolder.Labels) error {
-	wshow, lshow := drawfolder.ShownColumns(f.WorksheetHeader), l.Shown()
-	if strings.Join(wshow, "\x00") != strings.Join(lshow, "\x00") {
-		return &inputerr.Error{File: l.Path, Line: 1,
-			Msg:  fmt.Sprintf("the shown columns are %s, but the draw's worksheet has %s", list(lshow), list(wshow)),
-			Hint: "label a copy of the worksheet.csv written by probity draw without adding, removing or renaming columns"}
-	}
-	byID := map[string]int{}
-	for i, r := range f.Ledger {
-		byID[r.RecordID] = i
-	}
-	seen := map[string]bool{}
-	var added, altered []string
-	for i, r := range l.Rows {
-		li, ok := byID[r.RecordID]
-		if !ok {
-			added = append(added, fmt.Sprintf("line %d (item %d, record_id %q)", r.Line, r.Item, r.RecordID))
-			continue
-		}
-		seen[r.RecordID] = true
-		lr := f.Ledger[li]
-		switch {
-		case lr.Item != r.Item:
-			altered = append(altered, fmt.Sprintf("line %d: record_id %q has item %d, the ledger item %d", r.Line, r.RecordID, r.Item, lr.Item))
-		case li < len(f.Worksheet) && strings.Join(f.Worksheet[li].Show, "\x00") != strings.Join(r.Show, "\x00"):
-			altered = append(altered, fmt.Sprintf("line %d: item %d's shown values differ from the draw's worksheet", r.Line, r.Item))
-		case i != li:
-			altered = append(altered, fmt.Sprintf("line %d: item %d is out of order (the ledger has it at row %d)", r.Line, r.Item, li+1))
-		}
-	}
-	var missing []string
-	for _, r := range f.Ledger {
-		if !seen[r.RecordID] {
-			missing = append(missing, fmt.Sprintf("item %d (record_id %q)", r.Item, r.RecordID))
-		}
-	}
-	if len(added)+len(missing)+len(altered) == 0 {
-		if len(f.Worksheet) != len(f.Ledger) {
-			return &inputerr.Error{File: f.Path(drawfolder.WorksheetFile), Msg: fmt.Sprintf("%d rows where the ledger has %d", len(f.Worksheet), len(f.Ledger))}
-		}
-		return nil
-	}
-	var parts []string
-	if len(missing) > 0 {
-		parts = append(parts, fmt.Sprintf("%d missing: %s", len(missing), first(missing)))
-	}
-	if len(added) > 0 {
-		parts = append(parts, fmt.Sprintf("%d added: %s", len(added), first(added)))
-	}
-	if len(altered) > 0 {
-		parts = append(parts, fmt.Sprintf("%d altered: %s", len(altered), first(altered)))
-	}
-	return &inputerr.Error{File: l.Path,
-		Msg:  "rows differ from the ledger — " + strings.Join(parts, "; "),
-		Hint: "label every row of the draw's worksheet.csv in place, without adding, removing, sorting or editing rows"}
 }
 
 func first(s []string) string {

@@ -110,18 +110,24 @@ func TestRowDifferencesAreListed(t *testing.T) {
 		edit func([]drawfolder.WorksheetRow) []drawfolder.WorksheetRow
 		want string
 	}{
-		"removed row": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { return append(r[:3:3], r[4:]...) }, `1 missing: item 4 (record_id`},
+		// One deleted row is that row, not every row after it (issue 16,
+		// item 10).
+		"removed row": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { return append(r[:3:3], r[4:]...) },
+			`rows differ from the draw's worksheet — a row is missing: item 4 (record_id "a0396", line 5 of the draw's worksheet)` + "\nhint"},
 		"added row": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
 			return append(r, drawfolder.WorksheetRow{Item: 99, RecordID: "zz", Show: []string{"x"}, Label: "ok"})
-		}, `1 added: line 35 (item 99, record_id "zz")`},
-		"edited id": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[0].RecordID = "other"; return r }, "1 missing: item 1"},
+		}, `line 35: record_id "zz" (item 99) is not in this draw`},
+		"edited id": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[0].RecordID = "other"; return r }, `a row is missing: item 1 (record_id "a0264", line 2 of the draw's worksheet); line 2: record_id "other" (item 1) is not in this draw`},
+		// A reformatted shown value names its column and both values
+		// (issue 16, item 11).
 		"edited shown value": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[2].Show = []string{"changed"}; return r },
-			"1 altered: line 4: item 3's shown values differ"},
-		"sorted rows": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[0], r[1] = r[1], r[0]; return r }, "out of order"},
+			`line 4: item 3's text is "changed", the draw's worksheet has "text a0363"` + "\nhint: a spreadsheet may have reformatted the value"},
+		"sorted rows": {func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[0], r[1] = r[1], r[0]; return r },
+			"line 3: item 1 is out of order: the draw's worksheet has it before item 2 (on line 2)"},
 	}
 	for name, c := range cases {
 		_, err := fx.check(t, c.edit(fx.labeled()), Options{})
-		if err == nil || !strings.Contains(err.Error(), c.want) || !strings.Contains(err.Error(), "labels.csv") {
+		if err == nil || !strings.Contains(err.Error()+"\nhint: "+inputerr.HintOf(err), c.want) || !strings.Contains(err.Error(), "labels.csv") {
 			t.Errorf("%s: got %v, want %q", name, err, c.want)
 		}
 	}
@@ -155,7 +161,7 @@ func TestFingerprintMismatchesAreRefused(t *testing.T) {
 	// The worksheet labeled in place is recognised as the draw's.
 	wp := filepath.Join(fx.drawDir(), "worksheet.csv")
 	wf, _ := os.Create(wp)
-	drawfolder.WriteWorksheet(wf, []string{"text"}, fx.labeled())
+	drawfolder.WriteDrawWorksheet(wf, drawfolder.ManifestDrawID(fx.folder.Manifest), []string{"text"}, fx.labeled())
 	wf.Close()
 	f, err = drawfolder.Open(fx.drawDir(), fx.planFP, []string{"m1", "m2"})
 	if err != nil || !f.LabeledInPlace || f.WorksheetSHA256 != fx.folder.Manifest.Files["worksheet.csv"] {

@@ -17,7 +17,6 @@ import (
 	"crypto/ed25519"
 	"errors"
 	"io/fs"
-	"os"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -25,6 +24,7 @@ import (
 
 	"probity/pdfreport"
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/personname"
 	"probity/plan/record"
 	"probity/plan/record/signature"
@@ -94,9 +94,9 @@ func Sign(r Request) (*Result, error) {
 		return inputerr.At(file, 0, "", format, args...).Wrap(sentinel)
 	}
 	jsonPath := filepath.Join(r.Dir, record.JSONFile)
-	js, err := os.ReadFile(jsonPath)
+	js, err := inputfile.ReadFile(jsonPath, "record", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.FromPath(err)
+		return nil, err
 	}
 	rec, err := record.Decode(js)
 	if err != nil {
@@ -116,7 +116,7 @@ func Sign(r Request) (*Result, error) {
 		return nil, err
 	}
 	sigPath := filepath.Join(r.Dir, signature.SignaturesFile)
-	previous, err := os.ReadFile(sigPath)
+	previous, err := inputfile.ReadFile(sigPath, "signatures file", inputfile.SmallLimit)
 	var chain []signature.Manifestation
 	switch {
 	case errors.Is(err, fs.ErrNotExist):
@@ -154,9 +154,9 @@ func Sign(r Request) (*Result, error) {
 		return nil, refuse(ErrWording, jsonPath, "the record was made with %s (wording digest %s…); the wording given has digest %s…", made, short(rec.Wording.Digest), short(set.Fingerprint()))
 	}
 	pdfPath := filepath.Join(r.Dir, record.PDFFile)
-	pdf, err := os.ReadFile(pdfPath)
+	pdf, err := inputfile.ReadFile(pdfPath, "record PDF", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.FromPath(err)
+		return nil, err
 	}
 	shown := signature.Shown(chain)
 	paper := ""
@@ -233,7 +233,7 @@ func Sign(r Request) (*Result, error) {
 // be intact. It returns nil when the record has no seal.
 func readSeal(dir string, rec *record.Record, js []byte) ([]byte, error) {
 	path := filepath.Join(dir, signature.FileName)
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "seal", inputfile.SmallLimit)
 	if errors.Is(err, fs.ErrNotExist) {
 		if rec.SigningKey != "" {
 			return nil, inputerr.At(path, 0, "", "is missing, but record.json says the record was sealed with %s", rec.SigningKey).Wrap(ErrNotSignable)

@@ -1,11 +1,10 @@
 package verification
 
 import (
-	"errors"
-	"os"
 	"path/filepath"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 )
 
 // Authenticate checks a record.json for a use that reads its numbers only
@@ -16,9 +15,9 @@ import (
 // not checked. The record is authenticated when the report has no failed
 // check; the error is for a file that cannot be read.
 func Authenticate(jsonPath string, trust Trust, names Names) (*Report, error) {
-	js, err := os.ReadFile(jsonPath)
+	js, err := inputfile.ReadFile(jsonPath, "record", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.Errorf("cannot read %s: %v", jsonPath, errors.Unwrap(err)).Wrap(err)
+		return nil, inputerr.Errorf("cannot read %s: %s", jsonPath, messageOf(err)).Wrap(err)
 	}
 	rep := &Report{}
 	rec := checkRecord(rep, jsonPath, js)

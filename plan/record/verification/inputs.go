@@ -4,11 +4,11 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
-	"os"
 	"path/filepath"
 	"strings"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/verdict"
@@ -20,19 +20,28 @@ import (
 // all given, and draws the sample again when the log is given.
 func checkInputs(rep *Report, in Input, rec *record.Record) error {
 	f, n := in.Files, in.Names
-	if f.Plan == "" && f.Draw == "" && f.Labels == "" {
-		rep.add(CheckJudgement, Skipped, "inputs: pass %s, %s and %s to recompute the judgement", n.plan(), n.draw(), n.labels())
+	labels := n.labels()
+	if rec.Fingerprints.Trail != "" {
+		labels = n.trail()
+	}
+	if f.Plan == "" && f.Draw == "" && f.Labels == "" && f.Trail == "" {
+		rep.add(CheckJudgement, Skipped, "inputs: pass %s, %s and %s to recompute the judgement", n.plan(), n.draw(), labels)
 		return nil
 	}
 	if err := checkFingerprints(rep, in, rec); err != nil {
 		return err
 	}
-	if f.Plan != "" && f.Draw != "" && f.Labels != "" {
+	switch {
+	case f.Plan == "" || f.Draw == "" || f.Labels == "" && f.Trail == "":
+		rep.add(CheckJudgement, Skipped, "judgement not recomputed: it needs all of %s, %s and %s", n.plan(), n.draw(), labels)
+	case rec.Fingerprints.Trail != "" && f.Trail == "":
+		rep.add(CheckJudgement, Skipped, "judgement not recomputed: the record's labels were derived from a label trail; pass it with %s", n.trail())
+	case rec.Fingerprints.Trail == "" && f.Labels == "":
+		rep.add(CheckJudgement, Skipped, "judgement not recomputed: the record was judged on a labeled worksheet; pass it with %s", n.labels())
+	default:
 		if err := recompute(rep, in, rec); err != nil {
 			return err
 		}
-	} else {
-		rep.add(CheckJudgement, Skipped, "judgement not recomputed: it needs all of %s, %s and %s", n.plan(), n.draw(), n.labels())
 	}
 	if in.Log != "" {
 		return redraw(rep, in)
@@ -80,6 +89,17 @@ func checkFingerprints(rep *Report, in Input, rec *record.Record) error {
 		}
 		same("labels fingerprint", f.Labels, h, fp.Labels)
 	}
+	if f.Trail != "" {
+		h, err := fileHash(f.Trail)
+		if err != nil {
+			return err
+		}
+		if fp.Trail == "" {
+			rep.add(CheckFingerprint, Failed, "%s: the record's labels were not derived from a label trail, but %s was given", f.Trail, in.Names.trail())
+		} else {
+			same("label trail fingerprint", f.Trail, h, fp.Trail)
+		}
+	}
 	if f.Second == "" {
 		return nil
 	}
@@ -108,9 +128,9 @@ func checkFingerprints(rep *Report, in Input, rec *record.Record) error {
 
 // fileHash is the SHA-256 of a file's bytes.
 func fileHash(path string) (string, error) {
-	data, err := os.ReadFile(path)
+	data, err := inputfile.ReadFile(path, "file", inputfile.TableLimit)
 	if err != nil {
-		return "", inputerr.Errorf("cannot read %s: %v", path, errors.Unwrap(err)).WithHint("check the path").Wrap(err)
+		return "", err
 	}
 	return record.SHA256(data), nil
 }
@@ -118,8 +138,9 @@ func fileHash(path string) (string, error) {
 // recompute builds the record again from its inputs with the stored
 // record's own options (date, use, bound, sign-off, signing key, the
 // treatment of incomplete labeling and of double labeling), through
-// assemble.Record as the record command does, and compares it with the
-// stored record field by field.
+// assemble.Record as the record command does — with a label trail, the
+// worksheets are derived from it again and its chain checked — and
+// compares it with the stored record field by field.
 func recompute(rep *Report, in Input, rec *record.Record) error {
 	files := in.Files
 	o := assemble.Options{
@@ -127,8 +148,11 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 		Use: rec.Use, Date: rec.Date, Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
 		Revision: rec.Revision, Supersedes: rec.Supersedes, Demonstration: rec.Demonstration, Templates: in.Templates,
 	}
+	if rec.Fingerprints.Trail == "" {
+		files.Trail = ""
+	}
 	if lq := rec.LabelQuality; lq != nil {
-		if files.Second == "" {
+		if files.Second == "" && files.Trail == "" {
 			rep.add(CheckJudgement, Skipped, "judgement not recomputed: the record was judged on double labels; pass %s (and %s) as well", in.Names.second(), in.Names.adjudications())
 			return nil
 		}
@@ -164,4 +188,13 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	}
 	rep.add(CheckJudgement, Failed, "%s differs from the judgement recomputed from the inputs: %s", record.JSONFile, strings.Join(listed, "; "))
 	return nil
+}
+
+// messageOf is an input error's message without its file, line and
+// field, or err's text.
+func messageOf(err error) string {
+	if e, ok := inputerr.As(err); ok {
+		return e.Msg
+	}
+	return err.Error()
 }

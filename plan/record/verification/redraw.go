@@ -33,8 +33,12 @@ func redraw(rep *Report, in Input) error {
 		return inputerr.Errorf("cannot read %s %s: %v", in.Names.log(), in.Log, errors.Unwrap(err)).WithHint("pass the log the sample was drawn from").Wrap(err)
 	}
 	defer f.Close()
-	di.Plan, di.PlanFingerprint, di.LogPath, di.Log, di.ToolVersion = p, planFP, in.Log, f, m.ToolVersion
-	want, err := sampling.Draw(di)
+	di.Plan, di.PlanFingerprint, di.LogPath, di.Log, di.ToolVersion, di.MaxLine = p, planFP, in.Log, f, m.ToolVersion, in.MaxLine
+	want, err := sampling.Redraw(m, di)
+	if errors.Is(err, sampling.ErrNotTheLog) {
+		rep.add(CheckSample, Failed, "%s: %s", in.Log, messageOf(err))
+		return nil
+	}
 	if err != nil {
 		if inputerr.Is(err) {
 			rep.add(CheckSample, Failed, "drawing the sample again from %s: %v", in.Log, inputerr.InFile(err, mpath))
@@ -47,7 +51,11 @@ func redraw(rep *Report, in Input) error {
 		return err
 	}
 	if len(cmp.Differences) == 0 {
-		rep.add(CheckSample, OK, "sample drawn again from %s: the draw folder holds exactly the %d items and %d spares chance picked", in.Log, cmp.Items, cmp.Spares)
+		notes := ""
+		if len(cmp.Notes) > 0 {
+			notes = " (" + strings.Join(cmp.Notes, "; ") + ")"
+		}
+		rep.add(CheckSample, OK, "sample drawn again from %s: the draw folder holds exactly the %d items and %d spares chance picked%s", in.Log, cmp.Items, cmp.Spares, notes)
 		return nil
 	}
 	rep.add(CheckSample, Failed, "the draw folder is not what chance picked from %s: %s", in.Log, strings.Join(cmp.Differences, "; "))

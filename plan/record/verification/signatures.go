@@ -4,12 +4,12 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
-	"os"
 	"path/filepath"
 	"slices"
 	"strings"
 	"time"
 
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/signature"
 )
@@ -60,7 +60,7 @@ func authenticate(rep *Report, dir string, trust Trust, names Names, rec *record
 		return a
 	}
 	peoplePath := filepath.Join(dir, signature.SignaturesFile)
-	peopleData, peopleErr := os.ReadFile(peoplePath)
+	peopleData, peopleErr := inputfile.ReadFile(peoplePath, "signatures file", inputfile.SmallLimit)
 	hasPeople := peopleErr == nil
 	if hasPeople {
 		ms, err := signature.ParseSignatures(peopleData, peoplePath)
@@ -70,7 +70,7 @@ func authenticate(rep *Report, dir string, trust Trust, names Names, rec *record
 			a.people = ms
 		}
 	} else if !errors.Is(peopleErr, fs.ErrNotExist) {
-		a.fail(rep, CheckPeople, "%s cannot be read: %v", peoplePath, errors.Unwrap(peopleErr))
+		a.fail(rep, CheckPeople, "%s cannot be read: %s", peoplePath, messageOf(peopleErr))
 	}
 	checkSeal(rep, a, dir, trust, names, rec, js, pdf, hasPeople)
 	checkPeople(rep, a, peoplePath, trust, names, rec, js)
@@ -80,7 +80,7 @@ func authenticate(rep *Report, dir string, trust Trust, names Names, rec *record
 // checkSeal checks record.sig.
 func checkSeal(rep *Report, a *auth, dir string, trust Trust, names Names, rec *record.Record, js, pdf []byte, hasPeople bool) {
 	sigPath := filepath.Join(dir, signature.FileName)
-	data, err := os.ReadFile(sigPath)
+	data, err := inputfile.ReadFile(sigPath, "seal", inputfile.SmallLimit)
 	if errors.Is(err, fs.ErrNotExist) {
 		switch {
 		case rec.SigningKey != "":
@@ -91,7 +91,7 @@ func checkSeal(rep *Report, a *auth, dir string, trust Trust, names Names, rec *
 		return
 	}
 	if err != nil {
-		a.fail(rep, CheckSignature, "%s cannot be read: %v", sigPath, errors.Unwrap(err))
+		a.fail(rep, CheckSignature, "%s cannot be read: %s", sigPath, messageOf(err))
 		return
 	}
 	sig, err := signature.Parse(data, sigPath)

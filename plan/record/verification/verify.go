@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"probity/plan/inputerr"
+	"probity/plan/inputfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/record/signature"
@@ -107,6 +108,7 @@ type Names struct {
 	Templates               string
 	Plan, Draw, Labels, Log string
 	Second, Adjudications   string
+	Trail                   string
 }
 
 // or returns name, or words when name is empty.
@@ -126,6 +128,7 @@ func (n Names) labels() string        { return or(n.Labels, "the labels") }
 func (n Names) log() string           { return or(n.Log, "the log") }
 func (n Names) second() string        { return or(n.Second, "the second worksheet") }
 func (n Names) adjudications() string { return or(n.Adjudications, "the adjudications") }
+func (n Names) trail() string         { return or(n.Trail, "the label trail") }
 
 // Input is the record folder and whatever inputs are given.
 type Input struct {
@@ -143,6 +146,8 @@ type Input struct {
 	// needs Files.Plan and Files.Draw.
 	Files assemble.Files
 	Log   string
+	// MaxLine bounds a line of the log (0: the log reader's default).
+	MaxLine int64
 	// ToolVersion is this probity's version: a record.pdf made by another
 	// version may lay the record out differently, so when it is not the
 	// rendering of record.json it is authenticated by the signature over
@@ -193,15 +198,15 @@ func Verify(in Input) (*Report, error) {
 	}
 	rep := &Report{}
 	jsonPath := filepath.Join(in.Dir, record.JSONFile)
-	js, err := os.ReadFile(jsonPath)
+	js, err := inputfile.ReadFile(jsonPath, "record", inputfile.TableLimit)
 	if err != nil {
-		return nil, inputerr.Errorf("cannot read %s: %v", jsonPath, errors.Unwrap(err)).Wrap(errors.Join(ErrNoRecord, err))
+		return nil, inputerr.Errorf("cannot read %s: %s", jsonPath, messageOf(err)).Wrap(errors.Join(ErrNoRecord, err))
 	}
 	rec := checkRecord(rep, jsonPath, js)
 	pdfPath := filepath.Join(in.Dir, record.PDFFile)
-	pdf, pdfErr := os.ReadFile(pdfPath)
+	pdf, pdfErr := inputfile.ReadFile(pdfPath, "record PDF", inputfile.TableLimit)
 	if pdfErr != nil {
-		rep.add(CheckRendering, Failed, "%s is missing or unreadable: %v", pdfPath, errors.Unwrap(pdfErr))
+		rep.add(CheckRendering, Failed, "%s is missing or unreadable: %s", pdfPath, messageOf(pdfErr))
 		pdf = nil
 	}
 	a := authenticate(rep, in.Dir, in.Trust, in.Names, rec, js, pdf)
