@@ -14,10 +14,10 @@ import (
 	"testing"
 	"time"
 
-	"probity/internal/golden"
-	"probity/internal/needs"
 	"probity/plan"
 	"probity/plan/record"
+	"probity/plan/testkit/golden"
+	"probity/plan/testkit/needs"
 	"probity/templates"
 )
 

@@ -6,7 +6,7 @@ import (
 	"os/exec"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // runScipy runs a Python program with Debian's interpreter, feeding it in as

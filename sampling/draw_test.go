@@ -15,7 +15,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 )

@@ -12,8 +12,8 @@ import (
 	"testing"
 	"time"
 
-	"probity/internal/needs"
 	"probity/plan/record"
+	"probity/plan/testkit/needs"
 	"probity/sampling/demolog"
 	"probity/sampling/drawfolder"
 )

@@ -6,7 +6,7 @@ import (
 	"path/filepath"
 	"testing"
 
-	"probity/internal/golden"
+	"probity/plan/testkit/golden"
 )
 
 // TestDrawGolden locks a fixed-seed draw of a fixed log: the worksheets,

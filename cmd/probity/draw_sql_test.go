@@ -11,7 +11,7 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/pgtest"
+	"probity/plan/testkit/pgtest"
 	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 )
@@ -21,7 +21,7 @@ const (
 	sqlOtherPlan = "../../testdata/sql/plan-other-seed.yaml" // same but another seed
 )
 
-// testPG runs psql against the test server of probity/internal/pgtest (a
+// testPG runs psql against the test server of probity/plan/testkit/pgtest (a
 // throw-away cluster, or the server PROBITY_TEST_PGHOST names); tests skip
 // without PostgreSQL, and fail when CI is set.
 type testPG struct{ *pgtest.Server }

@@ -20,8 +20,8 @@ import (
 	"github.com/chromedp/chromedp"
 	"github.com/chromedp/chromedp/kb"
 
-	"probity/internal/needs"
 	"probity/plan"
+	"probity/plan/testkit/needs"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/labeltrail"

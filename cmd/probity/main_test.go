@@ -3,7 +3,7 @@ package main
 import (
 	"testing"
 
-	"probity/internal/pgtest"
+	"probity/plan/testkit/pgtest"
 )
 
 // TestMain stops the throw-away PostgreSQL cluster the draw --sql tests may

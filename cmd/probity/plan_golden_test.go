@@ -4,7 +4,7 @@ import (
 	"path/filepath"
 	"testing"
 
-	"probity/internal/golden"
+	"probity/plan/testkit/golden"
 )
 
 // The reports for a few fixed inputs, compared byte for byte with

@@ -10,9 +10,9 @@ import (
 	"testing"
 	"time"
 
-	"probity/internal/golden"
 	"probity/plan"
 	"probity/plan/sequential"
+	"probity/plan/testkit/golden"
 	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 )

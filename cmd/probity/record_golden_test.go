@@ -5,9 +5,9 @@ import (
 	"path/filepath"
 	"testing"
 
-	"probity/internal/golden"
 	"probity/plan/record"
 	"probity/plan/record/verification"
+	"probity/plan/testkit/golden"
 )
 
 // TestRecordGolden locks record.json's layout and numbers for the fixture

@@ -8,8 +8,8 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/needs"
 	"probity/plan/record"
+	"probity/plan/testkit/needs"
 	"probity/sampling/drawfolder"
 )
 

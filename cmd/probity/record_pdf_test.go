@@ -9,7 +9,7 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // pdfText extracts the text of a PDF with pdftotext (poppler-utils), and

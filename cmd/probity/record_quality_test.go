@@ -11,9 +11,9 @@ import (
 	"testing"
 	"time"
 
-	"probity/internal/needs"
 	"probity/plan"
 	"probity/plan/record"
+	"probity/plan/testkit/needs"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"

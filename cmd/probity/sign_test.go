@@ -10,9 +10,9 @@ import (
 	"testing"
 	"time"
 
-	"probity/internal/needs"
 	"probity/plan/record"
 	"probity/plan/record/signature"
+	"probity/plan/testkit/needs"
 	"probity/sampling/demolog"
 )
 

@@ -14,11 +14,11 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/golden"
-	"probity/internal/needs"
 	"probity/plan"
 	"probity/plan/record"
 	"probity/plan/record/signature"
+	"probity/plan/testkit/golden"
+	"probity/plan/testkit/needs"
 	trendpkg "probity/plan/trend"
 )
 

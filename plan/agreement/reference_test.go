@@ -9,7 +9,7 @@ import (
 	"path/filepath"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // python runs Debian's /usr/bin/python3 on a script in testdata/agreement

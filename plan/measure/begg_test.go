@@ -6,7 +6,7 @@ import (
 	"os/exec"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // The verification-bias example: hepatic scintigraphy for liver cancer in

@@ -6,7 +6,7 @@ import (
 	"os/exec"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // runPython runs a Python program file with Debian's interpreter (which

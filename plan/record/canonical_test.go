@@ -8,8 +8,8 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/needs"
 	"probity/plan"
+	"probity/plan/testkit/needs"
 )
 
 func fixture() *Record {

@@ -11,8 +11,8 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
-	"probity/internal/needs"
 	"probity/plan"
+	"probity/plan/testkit/needs"
 )
 
 // Curtailment leaves the fixed plan's OC unchanged: the dynamic programme

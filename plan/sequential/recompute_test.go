@@ -10,9 +10,9 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/golden"
-	"probity/internal/needs"
 	"probity/plan"
+	"probity/plan/testkit/golden"
+	"probity/plan/testkit/needs"
 )
 
 // recomputePy recomputes P(accept) and the ASN of a rule given as the two

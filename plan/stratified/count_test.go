@@ -9,8 +9,8 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/needs"
 	"probity/plan"
+	"probity/plan/testkit/needs"
 )
 
 // runScipy runs a Python program with Debian's interpreter, feeding it in

@@ -11,7 +11,7 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // TestFisherExactPublished checks worked examples whose values are printed

@@ -5,9 +5,9 @@ import (
 	"path/filepath"
 	"testing"
 
-	"probity/internal/golden"
 	"probity/plan/record"
 	"probity/plan/record/signature"
+	"probity/plan/testkit/golden"
 )
 
 // monthlyDir holds the year of records used by the command tests, the

@@ -5,7 +5,7 @@ import (
 	"os/exec"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // reference runs a script with a reference tool (Debian's /usr/bin/python3

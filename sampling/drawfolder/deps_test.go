@@ -5,7 +5,7 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // goList runs `go list -deps -f FORMAT PKG…` in the module and returns its

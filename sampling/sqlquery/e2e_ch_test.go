@@ -14,8 +14,8 @@ import (
 	"testing"
 	"time"
 
-	"probity/internal/needs"
 	"probity/plan"
+	"probity/plan/testkit/needs"
 	"probity/sampling"
 	"probity/sampling/sqlquery/chcluster"
 )

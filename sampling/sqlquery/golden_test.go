@@ -5,8 +5,8 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/golden"
 	"probity/plan"
+	"probity/plan/testkit/golden"
 	"probity/sampling"
 )
 

@@ -3,7 +3,7 @@ package sqlquery
 import (
 	"testing"
 
-	"probity/internal/pgtest"
+	"probity/plan/testkit/pgtest"
 )
 
 // TestMain stops the throw-away PostgreSQL cluster the tests may have

@@ -11,11 +11,11 @@ import (
 	"sync"
 	"testing"
 
-	"probity/internal/pgtest"
+	"probity/plan/testkit/pgtest"
 )
 
 // pgServer is a PostgreSQL server reached through psql on a Unix socket:
-// the throw-away cluster of probity/internal/pgtest, or the server
+// the throw-away cluster of probity/plan/testkit/pgtest, or the server
 // PROBITY_TEST_PGHOST names.
 type pgServer struct {
 	psql string

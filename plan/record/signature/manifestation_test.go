@@ -11,8 +11,8 @@ import (
 	"testing"
 	"time"
 
-	"probity/internal/needs"
 	"probity/plan/record"
+	"probity/plan/testkit/needs"
 )
 
 // keyFrom makes a key pair from a fixed byte.

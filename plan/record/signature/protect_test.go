@@ -11,7 +11,7 @@ import (
 
 	"golang.org/x/crypto/ssh"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 func TestProtectedKeyRoundTrip(t *testing.T) {

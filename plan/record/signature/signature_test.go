@@ -10,7 +10,7 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // fixedRandom is a deterministic stream for key generation in tests.

@@ -5,7 +5,7 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // TestNothingBelowTheCommandImportsSigning: signing renders the PDF

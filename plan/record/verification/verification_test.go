@@ -8,9 +8,9 @@ import (
 	"strings"
 	"testing"
 
-	"probity/internal/needs"
 	"probity/plan/inputerr"
 	"probity/plan/record"
+	"probity/plan/testkit/needs"
 )
 
 // The whole of Verify runs in the verify command's tests on records made

@@ -21,7 +21,7 @@ import (
 	"testing"
 	"time"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // Name is the cluster's name in the servers' remote_servers section, as a
@@ -46,7 +46,7 @@ type Server struct {
 
 // Binaries returns the paths of clickhouse-server and clickhouse-client,
 // failing the test under CI and skipping it otherwise when one is missing
-// (probity/internal/needs).
+// (probity/plan/testkit/needs).
 func Binaries(t testing.TB) (server, client string) {
 	t.Helper()
 	return needs.Program(t, "clickhouse-server"), needs.Program(t, "clickhouse-client")

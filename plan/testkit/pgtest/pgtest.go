@@ -9,7 +9,9 @@
 // with the socket in that folder and no TCP listener (as the postgres user,
 // through runuser, when the tests run as root). Main stops it and removes
 // the folder when the test binary ends. With neither, the tests skip, and
-// fail under CI (see probity/internal/needs).
+// fail under CI (see probity/plan/testkit/needs).
+//
+// It serves tests only (testkit): probity itself never imports it.
 package pgtest
 
 import (
@@ -25,7 +27,7 @@ import (
 	"sync"
 	"testing"
 
-	"probity/internal/needs"
+	"probity/plan/testkit/needs"
 )
 
 // Server is a PostgreSQL server the tests reach with psql.

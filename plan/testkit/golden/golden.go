@@ -1,6 +1,7 @@
 // Package golden compares what a test produced with a golden file in
 // testdata, and rewrites the golden file instead when the test binary runs
-// with -update.
+// with -update. It serves tests only (testkit): probity itself never
+// imports it.
 //
 // Every package with golden files uses this one flag, so the recipe after
 // a deliberate change is the same everywhere:

@@ -8,6 +8,8 @@
 // the CI environment variable is set, so CI cannot pass without the
 // cross-checks. Either way the message names the Debian package that
 // provides the tool.
+//
+// It serves tests only (testkit): probity itself never imports it.
 package needs
 
 import (

@@ -104,7 +104,7 @@ func TestCompareUpdates(t *testing.T) {
 	if !CompareString(t, path, "new\n") {
 		t.Error("the file just written differs")
 	}
-	if got := rerun(t); got != "go test ./internal/golden -run '^TestCompareUpdates$' -update" {
+	if got := rerun(t); got != "go test ./plan/testkit/golden -run '^TestCompareUpdates$' -update" {
 		t.Errorf("rerun = %q", got)
 	}
 }
