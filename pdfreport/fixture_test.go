@@ -5,6 +5,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/chrono"
 	"probity/plan/record"
 	"probity/templates"
 )
@@ -124,11 +125,16 @@ func fixtureRecord(use string) *record.Record {
 		{ScoreColumn: "urgency_score", Threshold: ptr(0.35)},
 	}
 	rec := &record.Record{
-		Format:        record.Format,
-		ToolVersion:   "0.4.0-test",
-		RecordID:      "3f9c2a71be04d5e6f708192a3b4c5d6e",
-		Revision:      1,
-		Date:          "2026-11-30",
+		Format:      record.Format,
+		ToolVersion: "0.4.0-test",
+		RecordID:    "3f9c2a71be04d5e6f708192a3b4c5d6e",
+		Revision:    1,
+		Date:        "2026-11-30",
+		Chronology: &chrono.Chronology{
+			PlanCreated: chrono.FromClock(time.Date(2026, 9, 24, 13, 5, 12, 0, time.UTC)),
+			Drawn:       chrono.FromClock(time.Date(2026, 11, 2, 8, 41, 7, 0, time.UTC)),
+			Issued:      chrono.Supplied(time.Date(2026, 11, 30, 16, 20, 0, 0, time.UTC)),
+		},
 		Period:        "2026-10",
 		System:        "Ward triage classifier",
 		SystemVersion: "3.x",

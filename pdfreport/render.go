@@ -65,9 +65,9 @@ func Render(rec *record.Record, opts Options) ([]byte, error) {
 			return nil, err
 		}
 	}
-	date, err := time.Parse("2006-01-02", rec.Date)
+	date, err := issueTime(rec)
 	if err != nil {
-		return nil, fmt.Errorf("%w: date %q is not YYYY-MM-DD", ErrRecord, rec.Date)
+		return nil, err
 	}
 	if err := check(rec); err != nil {
 		return nil, err
@@ -94,6 +94,20 @@ func Render(rec *record.Record, opts Options) ([]byte, error) {
 		return nil, fmt.Errorf("internal error: page count changed between passes (%d, %d)", first.pages, second.pages)
 	}
 	return second.bytes, nil
+}
+
+// issueTime is when the record was issued, the PDF's creation date: the
+// chronology's issue time, or, for a record made before records were
+// timed, the start of its date.
+func issueTime(rec *record.Record) (time.Time, error) {
+	date, err := time.Parse("2006-01-02", rec.Date)
+	if err != nil {
+		return time.Time{}, fmt.Errorf("%w: date %q is not YYYY-MM-DD", ErrRecord, rec.Date)
+	}
+	if c := rec.Chronology; c != nil && !c.Issued.IsZero() {
+		return c.Issued.Time.UTC(), nil
+	}
+	return date, nil
 }
 
 // check refuses a Record whose tables cannot be drawn consistently.

@@ -449,7 +449,7 @@ func TestPaperAndMetadata(t *testing.T) {
 		}
 		info := string(out)
 		for _, want := range []string{tc.want, "Producer:        probity 0.4.0-test",
-			"CreationDate:    2026-11-30T00:00:00", "ModDate:         2026-11-30T00:00:00",
+			"CreationDate:    2026-11-30T16:20:00", "ModDate:         2026-11-30T16:20:00",
 			"Title:           Acceptance record 3f9c2a71be04"} {
 			if !strings.Contains(info, want) {
 				t.Errorf("paper %q: pdfinfo lacks %q:\n%s", tc.paper, want, info)

@@ -3,6 +3,7 @@ package pdfreport
 import (
 	"strings"
 
+	"probity/plan/chrono"
 	"probity/plan/record"
 )
 
@@ -45,7 +46,7 @@ func (d *doc) titleBlock(c *content) {
 		cols: []column{{w: 17}, {w: 36}, {w: 15}, {w: 32}},
 		rows: [][]cell{
 			{{text: "Record id", bold: true, fill: &headFill}, {text: rec.RecordID, mono: true},
-				{text: "Date", bold: true, fill: &headFill}, {text: rec.Date}},
+				{text: "Issued", bold: true, fill: &headFill}, {text: issuedText(rec)}},
 			{{text: "Revision", bold: true, fill: &headFill}, {text: issue},
 				{text: "Wording", bold: true, fill: &headFill}, wording},
 			{{text: "Period", bold: true, fill: &headFill}, {text: period},
@@ -261,4 +262,37 @@ func boundText(cand record.Candidate, withConfidence bool) string {
 		return pctUp(cand.UpperBound) + " (" + confidence(cand.BoundConfidence) + ")"
 	}
 	return pctUp(cand.UpperBound)
+}
+
+// issuedText is when the record was issued, for the title block: "2026-12-01
+// 09:30:00 UTC", followed by "(operator)" when the operator supplied the
+// time rather than the clock (the chronology on the last page says it in
+// full); a record made before records were timed shows its date.
+func issuedText(rec *record.Record) string {
+	c := rec.Chronology
+	if c == nil || c.Issued.IsZero() {
+		return rec.Date
+	}
+	t := c.Issued.Time.UTC().Format("2006-01-02 15:04:05") + " UTC"
+	if c.Issued.Source != chrono.SourceClock {
+		t += " (" + shortSource(c.Issued.Source) + ")"
+	}
+	return t
+}
+
+// shortSource names a time's source in two words at most.
+func shortSource(s chrono.Source) string {
+	if s == chrono.SourceOperator {
+		return "operator"
+	}
+	return "source not stated"
+}
+
+// stampText writes a time of the chronology for the page: "2026-12-01
+// 09:30:00 UTC (system clock)", "… (supplied by the operator)".
+func stampText(s chrono.Stamp) string {
+	if s.IsZero() {
+		return "not stated"
+	}
+	return s.Time.UTC().Format("2006-01-02 15:04:05") + " UTC (" + s.Source.Describe() + ")"
 }

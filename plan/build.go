@@ -2,9 +2,11 @@ package plan
 
 import (
 	"fmt"
-	"probity/plan/inputerr"
 	"strconv"
 	"time"
+
+	"probity/plan/chrono"
+	"probity/plan/inputerr"
 )
 
 // Meta is what a plan file records besides its sizing: the tool, the time,
@@ -14,7 +16,9 @@ type Meta struct {
 	// ToolVersion is the probity version writing the plan.
 	ToolVersion string
 	// Created is when the plan was made; it is stored in UTC to the second.
-	Created time.Time
+	// CreatedFrom says where it came from (the clock, or the operator).
+	Created     time.Time
+	CreatedFrom chrono.Source
 	// Seed is the selection seed, used exactly as written (non-empty).
 	Seed string
 	// System and SystemVersion name the classifier (optional).
@@ -24,6 +28,8 @@ type Meta struct {
 	// Candidates are declared in testing order; when present their number
 	// is M and must agree with Inputs.CandidateCount.
 	Candidates []Candidate
+	// TimeColumn is the log's time column, when declared (File.TimeColumn).
+	TimeColumn string
 }
 
 // Build sizes the plan for the inputs (see Size) and assembles the plan
@@ -39,7 +45,8 @@ func Build(in Inputs, m Meta) (*File, error) {
 	f := &File{
 		Format:        FileFormat,
 		ToolVersion:   m.ToolVersion,
-		Created:       m.Created.UTC().Truncate(time.Second),
+		Created:       chrono.Second(m.Created),
+		CreatedFrom:   m.CreatedFrom,
 		System:        m.System,
 		SystemVersion: m.SystemVersion,
 		Seed:          m.Seed,
@@ -48,6 +55,7 @@ func Build(in Inputs, m Meta) (*File, error) {
 		Comparison:    cmp,
 		Classes:       m.Classes,
 		Candidates:    m.Candidates,
+		TimeColumn:    m.TimeColumn,
 	}
 	if err := f.validate(); err != nil {
 		return nil, inputerr.Errorf("%w", err)

@@ -6,11 +6,17 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
-	"probity/plan/inputerr"
-	"probity/plan/inputfile"
+	"io"
+	"reflect"
+	"regexp"
+	"strconv"
+	"strings"
 	"time"
 
 	"gopkg.in/yaml.v3"
+
+	"probity/plan/chrono"
+	"probity/plan/inputerr"
 )
 
 // FileFormat is the version of the plan file layout written by this code.
@@ -25,8 +31,12 @@ type File struct {
 	Format int `yaml:"format"`
 	// ToolVersion is the probity version that wrote the plan.
 	ToolVersion string `yaml:"tool_version"`
-	// Created is when the plan was made (UTC).
-	Created time.Time `yaml:"created"`
+	// Created is when the plan was made (UTC, to the second), and
+	// CreatedFrom where that time came from: the system clock, or the
+	// operator who supplied it (unset in plans made before times had
+	// sources).
+	Created     time.Time     `yaml:"created"`
+	CreatedFrom chrono.Source `yaml:"created_from,omitempty"`
 	// System and SystemVersion name the classifier under audit (optional).
 	System        string `yaml:"system,omitempty"`
 	SystemVersion string `yaml:"system_version,omitempty"`
@@ -48,6 +58,10 @@ type File struct {
 	// declared (the testing order under fixed-sequence). Empty for a
 	// sizing-only plan.
 	Candidates []Candidate `yaml:"candidates,omitempty"`
+	// TimeColumn is the log column that dates each decision, declared so
+	// that every draw reads it and records the log's completeness (days
+	// of the period without a row); "" when not declared.
+	TimeColumn string `yaml:"time_column,omitempty"`
 	// Sequential holds the boundaries of a sequential design (nil for a
 	// fixed (n, c) plan).
 	Sequential *SequentialRule `yaml:"sequential,omitempty"`
@@ -172,42 +186,122 @@ func (f *File) Marshal() ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
-// Parse decodes a plan file. name is used in error messages, which are
-// *inputerr.Error wrapping ErrPlanFile. Unknown keys
-// are refused, so a typo in a hand-edited plan is not silently ignored.
-func Parse(data []byte, name string) (*File, error) {
+// Decode reads a plan file's one YAML document into a File and indexes it
+// as a Source (the line of every key, the text of every value). It
+// refuses what cannot be a plan before anything looks at its content: a
+// plan's JSON report (ErrJSONReport), an empty file, a second document, anchors and aliases, a key the plan has
+// no field for (a typo in a hand-edited plan is not silently ignored), a
+// value of the wrong type and a setting that is not one of its names —
+// each an input error naming the file, the line and the field, wrapping
+// ErrPlanFile.
+//
+// Decode does not check the plan's content: planfile.Load, the loader
+// every command uses, runs Decode, then File.Check and the check of the
+// sequential section.
+func Decode(data []byte, name string) (*File, *Source, error) {
 	if err := checkNotReport(data, name); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
+	src := &Source{Name: name}
 	dec := yaml.NewDecoder(bytes.NewReader(data))
-	dec.KnownFields(true)
+	var doc yaml.Node
+	if err := dec.Decode(&doc); err != nil {
+		if errors.Is(err, io.EOF) {
+			return nil, nil, src.Errorf("", "the file is empty")
+		}
+		return nil, nil, syntaxError(src, err)
+	}
+	var extra yaml.Node
+	if err := dec.Decode(&extra); !errors.Is(err, io.EOF) {
+		line := extra.Line
+		if err != nil {
+			return nil, nil, syntaxError(src, err)
+		}
+		e := src.Errorf("", "a second YAML document follows the plan (line %d): a plan file holds exactly one", line)
+		e.Line = line
+		return nil, nil, e
+	}
+	src = newSource(name, &doc)
+	if len(doc.Content) != 1 || doc.Content[0].Kind != yaml.MappingNode {
+		e := src.Errorf("", "the document is not a plan (a mapping of keys)")
+		e.Line = doc.Line
+		return nil, nil, e
+	}
+	root := doc.Content[0]
+	if line := aliasLine(root); line > 0 {
+		e := src.Errorf(src.FieldAt(line), "anchors and aliases are not used in plan files")
+		e.Line = line
+		return nil, nil, e
+	}
+	if k := unknownKey("", root, reflect.TypeOf(File{})); k != "" {
+		return nil, nil, src.Errorf(k, "is not a key of a plan file")
+	}
+	// every key is known (above), so the tree decodes as yaml.v3's
+	// KnownFields would have it, without parsing the file again
 	var f File
-	if err := dec.Decode(&f); err != nil {
-		return nil, planFileError(name, fileKeyError(err))
+	if err := root.Decode(&f); err != nil {
+		return nil, nil, decodeError(src, err)
 	}
-	if err := f.validate(); err != nil {
-		return nil, planFileError(name, err)
-	}
-	return &f, nil
+	return &f, src, nil
 }
 
-// planFileError is the input error about a plan file's content: it names
-// the file and wraps ErrPlanFile.
-func planFileError(name string, err error) error {
-	return inputerr.At(name, 0, "", "%w: %v", ErrPlanFile, err).WithHint("use the plan file written by probity plan, unedited")
+// aliasLine is the line of the first anchor or alias under n, 0 when none.
+func aliasLine(n *yaml.Node) int {
+	if n.Kind == yaml.AliasNode || n.Anchor != "" {
+		return n.Line
+	}
+	for _, c := range n.Content {
+		if l := aliasLine(c); l > 0 {
+			return l
+		}
+	}
+	return 0
 }
 
-// Load reads and parses a plan file and returns it with its fingerprint.
-func Load(path string) (*File, string, error) {
-	data, err := inputfile.ReadFile(path, "plan file", inputfile.SmallLimit)
-	if err != nil {
-		return nil, "", err
+// yamlLinePrefix matches the "line N: " that yaml.v3 puts before each of
+// its messages; the number is moved into the error's line.
+var yamlLinePrefix = regexp.MustCompile(`^(?:yaml: )?line (\d+): `)
+
+// syntaxError is the input error for YAML that does not parse.
+func syntaxError(src *Source, err error) error {
+	e := src.Errorf("", "not a valid YAML document: %s", strings.TrimPrefix(err.Error(), "yaml: "))
+	if m := yamlLinePrefix.FindStringSubmatch(err.Error()); m != nil {
+		e.Line, _ = strconv.Atoi(m[1])
+		e.Msg = "not a valid YAML document: " + err.Error()[len(m[0]):]
 	}
-	f, err := Parse(data, path)
-	if err != nil {
-		return nil, "", err
+	return e
+}
+
+// decodeError is the input error for a value the File cannot hold: a
+// setting that is not one of its names (an input error from
+// UnmarshalText, located by its key) or a value of the wrong type (the
+// first of yaml.v3's messages, located by its line).
+func decodeError(src *Source, err error) error {
+	if ie, ok := inputerr.As(err); ok && ie.Field != "" {
+		field := "inputs." + ie.Field
+		switch ie.Field {
+		case modelSpelling.field:
+			field = "rule." + ie.Field
+		case "source":
+			field = "created_from"
+		}
+		return src.Errorf(field, "%s", ie.Msg)
 	}
-	return f, Fingerprint(data), nil
+	var te *yaml.TypeError
+	if errors.As(err, &te) && len(te.Errors) > 0 {
+		msg := te.Errors[0]
+		line := 0
+		if m := yamlLinePrefix.FindStringSubmatch(msg); m != nil {
+			line, _ = strconv.Atoi(m[1])
+			msg = msg[len(m[0]):]
+		}
+		e := src.Errorf(src.FieldAt(line), "%s", msg)
+		if line > 0 {
+			e.Line = line
+		}
+		return e
+	}
+	return src.Errorf("", "%v", err)
 }
 
 // Fingerprint is the lowercase hex SHA-256 of a plan file's bytes.
@@ -228,87 +322,4 @@ func (f *File) CandidateNames() []string {
 		names[i] = c.Name
 	}
 	return names
-}
-
-// LoadForJudging is Load for a plan a labeled sample is judged under: a
-// sizing-only plan, which declares no candidates, is an input error.
-func LoadForJudging(path string) (*File, string, error) {
-	f, fp, err := Load(path)
-	if err != nil {
-		return nil, "", err
-	}
-	if f.IsSizingOnly() {
-		return nil, "", inputerr.Errorf("%s: the plan declares no candidates, so there is nothing to judge", path).WithHint("use the plan the sample was drawn from")
-	}
-	return f, fp, nil
-}
-
-// validate checks the structural invariants a later step relies on.
-func (f *File) validate() error {
-	if f.Format != FileFormat {
-		return fmt.Errorf("format %d is not supported (this probity reads format %d)", f.Format, FileFormat)
-	}
-	if f.Seed == "" {
-		return errors.New("seed is empty")
-	}
-	in := f.Inputs
-	if !(in.Ceiling > 0 && in.Ceiling < 1) {
-		return fmt.Errorf("inputs.ceiling %v is outside (0, 1)", in.Ceiling)
-	}
-	if !(in.Confidence > 0 && in.Confidence < 1) {
-		return fmt.Errorf("inputs.confidence %v is outside (0, 1)", in.Confidence)
-	}
-	if in.CandidateCount < 1 {
-		return fmt.Errorf("inputs.candidates %d is below 1", in.CandidateCount)
-	}
-	if len(f.Candidates) > 0 && len(f.Candidates) != in.CandidateCount {
-		return fmt.Errorf("inputs.candidates is %d but %d candidates are declared", in.CandidateCount, len(f.Candidates))
-	}
-	if p0 := in.Anticipated; p0 != nil && !(*p0 >= 0 && *p0 < in.Ceiling) {
-		return fmt.Errorf("inputs.anticipated %v is outside [0, ceiling)", *p0)
-	}
-	if f.Rule.SampleSize < 1 {
-		return fmt.Errorf("rule.sample_size %d is below 1", f.Rule.SampleSize)
-	}
-	if f.Rule.AcceptanceNumber < 0 || f.Rule.AcceptanceNumber >= f.Rule.SampleSize {
-		return fmt.Errorf("rule.acceptance_number %d is outside [0, %d)", f.Rule.AcceptanceNumber, f.Rule.SampleSize)
-	}
-	seen := map[string]bool{}
-	for i, c := range f.Candidates {
-		if c.Name == "" {
-			return fmt.Errorf("candidates[%d].name is empty", i)
-		}
-		if seen[c.Name] {
-			return fmt.Errorf("candidates[%d].name %q is declared twice", i, c.Name)
-		}
-		seen[c.Name] = true
-		byColumn := c.Column != ""
-		byScore := c.ScoreColumn != "" || c.Threshold != nil
-		if byColumn == byScore {
-			return fmt.Errorf("candidates[%d] (%s) must set either column or score_column with threshold", i, c.Name)
-		}
-		if byScore && (c.ScoreColumn == "" || c.Threshold == nil || c.Positive == "" || c.Negative == "") {
-			return fmt.Errorf("candidates[%d] (%s) needs score_column, threshold, positive and negative", i, c.Name)
-		}
-	}
-	if len(f.Candidates) > 0 && len(f.Classes) < 2 {
-		return errors.New("classes must list at least two labels when candidates are declared")
-	}
-	return nil
-}
-
-// fileKeyError rephrases a setting refused while decoding (an input error
-// from UnmarshalText) with its key in the file: `inputs.method "exakt":
-// must be one of exact, hoeffding, kl`. A setting left empty decodes as
-// unset and is left to the reader's default.
-func fileKeyError(err error) error {
-	ie, ok := inputerr.As(err)
-	if !ok || ie.Field == "" {
-		return err
-	}
-	section := "inputs"
-	if ie.Field == modelSpelling.field {
-		section = "rule"
-	}
-	return fmt.Errorf("%s.%s %s", section, ie.Field, ie.Msg)
 }

@@ -3,8 +3,8 @@ package plan
 import (
 	"bytes"
 	"errors"
+	"fmt"
 	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 	"time"
@@ -40,7 +40,7 @@ func TestPlanFileRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	g, err := Parse(data, "plan.yaml")
+	g, err := parse(data, "plan.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -58,49 +58,62 @@ func TestPlanFileRoundTrip(t *testing.T) {
 	if want := time.Date(2026, 11, 30, 12, 0, 0, 0, time.UTC); !g.Created.Equal(want) {
 		t.Errorf("created %v, want %v (UTC, to the second)", g.Created, want)
 	}
-	path := filepath.Join(t.TempDir(), "plan.yaml")
-	if err := os.WriteFile(path, data, 0o644); err != nil {
-		t.Fatal(err)
-	}
-	_, fp, err := Load(path)
-	if err != nil || fp != Fingerprint(data) || len(fp) != 64 {
-		t.Errorf("Load: fingerprint %q, %v", fp, err)
+	if fp := Fingerprint(data); len(fp) != 64 {
+		t.Errorf("fingerprint %q", fp)
 	}
 	if c := f.PerCandidateConfidence(); c != 1-0.05/2 && c != 1-(1-0.95)/2 {
 		t.Errorf("per-candidate confidence %v", c)
 	}
 }
 
-func TestParseRefusesBadPlans(t *testing.T) {
+// parse is what the plan package checks of a file: Decode, then Check
+// (planfile.Parse adds the sequential section's check).
+func parse(data []byte, name string) (*File, error) {
+	f, src, err := Decode(data, name)
+	if err != nil {
+		return nil, err
+	}
+	return f, f.Check(src)
+}
+
+// Each edit is refused with the file, the line of the edited key and the
+// field: "p.yaml line L, field F: message".
+func TestCheckRefusesBadPlans(t *testing.T) {
 	data, err := examplePlan(t).Marshal()
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, tc := range []struct{ old, new, want string }{
-		{"method: exact", "method: exakt", `inputs.method "exakt": must be one of`},
-		{"multiplicity: bonferroni", "multiplicity: sidak", `inputs.multiplicity "sidak": must be one of bonferroni, holm, fixed-sequence`},
-		{"model: hypergeometric", "model: poisson", `rule.model "poisson": must be one of binomial, hypergeometric, hoeffding, kl`},
-		{"ceiling: 0.02", "ceiling: 2", "inputs.ceiling 2 is outside (0, 1)"},
-		{"seed: 00112233445566778899aabbccddeeff", "seed: \"\"", "seed is empty"},
-		{"format: 1", "format: 9", "format 9 is not supported"},
-		{"  candidates: 2", "  candidates: 3", "inputs.candidates is 3 but 2 candidates are declared"},
-		{"require: all", "requires: all", "field requires not found"},
-		{"name: model-a", "name: score>=0.7", "declared twice"},
+	for _, tc := range []struct{ old, new, field, want string }{
+		{"method: exact", "method: exakt", "inputs.method", `"exakt": must be one of`},
+		{"multiplicity: bonferroni", "multiplicity: sidak", "inputs.multiplicity", `"sidak": must be one of bonferroni, holm, fixed-sequence`},
+		{"model: hypergeometric", "model: poisson", "rule.model", `"poisson": must be one of binomial, hypergeometric, hoeffding, kl`},
+		{"model: hypergeometric", "model: binomial", "rule.model", `states "binomial", but the inputs give "hypergeometric"`},
+		{"ceiling: 0.02", "ceiling: 2", "inputs.ceiling", "2 is outside (0, 1)"},
+		{"seed: 00112233445566778899aabbccddeeff", "seed: \"\"", "seed", "is empty"},
+		{"format: 1", "format: 9", "format", "9 is not supported"},
+		{"  candidates: 2", "  candidates: 3", "inputs.candidates", "is 3 but 2 candidates are declared"},
+		{"require: all", "requires: all", "inputs.requires", "is not a key of a plan file"},
+		{"name: model-a", "name: score>=0.7", "candidates[1].name", "declared twice"},
+		{"sample_size: 1459", "sample_size: abc", "rule.sample_size", "cannot unmarshal !!str `abc` into int"},
+		{"created: 2026-11-30T12:00:00Z", "created: 0001-01-01T00:00:00Z", "created", "no creation time"},
 	} {
 		bad := strings.Replace(string(data), tc.old, tc.new, 1)
 		if bad == string(data) {
 			t.Fatalf("edit %q not applied", tc.old)
 		}
-		_, err := Parse([]byte(bad), "p.yaml")
-		if err == nil || !errors.Is(err, ErrPlanFile) || !strings.Contains(err.Error(), tc.want) || !strings.HasPrefix(err.Error(), "p.yaml: ") {
-			t.Errorf("%q → %q: error %v, want one containing %q", tc.old, tc.new, err, tc.want)
+		line := strings.Count(bad[:strings.LastIndex(bad, tc.new)], "\n") + 1
+		_, err := parse([]byte(bad), "p.yaml")
+		prefix := fmt.Sprintf("p.yaml line %d, field %s: ", line, tc.field)
+		if err == nil || !errors.Is(err, ErrPlanFile) || !strings.Contains(err.Error(), tc.want) || !strings.HasPrefix(err.Error(), prefix) {
+			t.Errorf("%q → %q: error %v, want %q…%q", tc.old, tc.new, err, prefix, tc.want)
 		}
 	}
 }
 
-// FuzzParse: the loader never panics, and whatever it accepts re-encodes
-// to a file it accepts again, identically.
-func FuzzParse(f *testing.F) {
+// FuzzDecode: Decode and Check never panic, and whatever they accept
+// re-encodes to a file they accept again, identically. (planfile's
+// FuzzParse adds the sequential section and what a plan is used for.)
+func FuzzDecode(f *testing.F) {
 	data, err := examplePlan(f).Marshal()
 	if err != nil {
 		f.Fatal(err)
@@ -114,7 +127,7 @@ func FuzzParse(f *testing.F) {
 		}
 	}
 	f.Fuzz(func(t *testing.T, b []byte) {
-		g, err := Parse(b, "fuzz.yaml")
+		g, err := parse(b, "fuzz.yaml")
 		if err != nil {
 			return
 		}
@@ -122,7 +135,7 @@ func FuzzParse(f *testing.F) {
 		if err != nil {
 			t.Fatalf("accepted plan does not encode: %v", err)
 		}
-		h, err := Parse(out, "again.yaml")
+		h, err := parse(out, "again.yaml")
 		if err != nil {
 			t.Fatalf("re-encoded plan refused: %v\n%s", err, out)
 		}

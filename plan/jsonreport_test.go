@@ -13,7 +13,7 @@ import (
 // plan file written in JSON syntax (YAML reads it) is not taken for one.
 func TestJSONReportRefused(t *testing.T) {
 	report := `{"sample_size": 45, "acceptance_number": 0, "plan_file": "", "fingerprint": ""}`
-	_, err := Parse([]byte(report), "plan.json")
+	_, _, err := Decode([]byte(report), "plan.json")
 	if !errors.Is(err, ErrJSONReport) || !errors.Is(err, ErrPlanFile) || err.Error() != "plan.json: this is a plan's JSON report, not the plan file" {
 		t.Fatalf("report: %v", err)
 	}
@@ -30,7 +30,7 @@ func TestJSONReportRefused(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := Parse(js, "plan.json"); err != nil && strings.Contains(err.Error(), "JSON report") {
+	if _, _, err := Decode(js, "plan.json"); err != nil && strings.Contains(err.Error(), "JSON report") {
 		t.Fatalf("a plan file in JSON syntax taken for a report: %v", err)
 	}
 }

@@ -3,6 +3,8 @@ package sampling
 import (
 	"errors"
 	"fmt"
+
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/sampling/drawfolder"
 )
@@ -38,6 +40,15 @@ func DrawInputFromManifest(m *drawfolder.Manifest) (DrawInput, error) {
 			return in, &inputerr.Error{Field: "where", Msg: err.Error(), Err: err}
 		}
 		in.Where = append(in.Where, f)
+	}
+	if c := m.Completeness; c != nil {
+		in.TimeColumn = c.TimeColumn
+		if c.RangeOf == chrono.RangeDeclared {
+			var ok bool
+			if in.Days, ok = chrono.ParseDayRange(c.From + "/" + c.To); !ok {
+				return in, &inputerr.Error{Field: "completeness.from", Msg: fmt.Sprintf("%q to %q is not a range of days", c.From, c.To)}
+			}
+		}
 	}
 	if in.Alloc.Rule == Neyman {
 		in.Alloc.Anticipated = map[string]float64{}

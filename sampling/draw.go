@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"probity/plan"
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/sampling/drawfolder"
 )
@@ -40,6 +41,13 @@ type DrawInput struct {
 	Double int
 	// Dedupe keeps the first row of a repeated id.
 	Dedupe bool
+	// TimeColumn, if set, is the log's time column: every row in scope
+	// must hold a time there, and the manifest records the log's
+	// completeness over Days — a declared range, or (zero) the period's
+	// days when the period is written YYYY-MM or YYYY-MM-DD, or else the
+	// days from the first row to the last.
+	TimeColumn string
+	Days       chrono.DayRange
 	// MaxLine bounds the bytes of a line of the log (0: DefaultMaxLine).
 	MaxLine     int64
 	ToolVersion string
@@ -108,7 +116,7 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	res, err := Scan(in.Log, ScanSpec{
 		Name: name, Format: in.Format, Seed: selection, IDColumn: in.IDColumn,
 		StrataColumns: in.StrataColumns, Bands: in.Bands, Where: in.Where, Keep: keep, KeepRoles: roles,
-		Capacity: n + in.Alloc.Spare + capacityMargin, Dedupe: in.Dedupe, MaxLine: in.MaxLine,
+		Capacity: n + in.Alloc.Spare + capacityMargin, Dedupe: in.Dedupe, TimeColumn: in.TimeColumn, MaxLine: in.MaxLine,
 		Workers: in.Workers, ChunkSize: in.ChunkSize, Progress: in.Progress,
 	})
 	if err != nil {
@@ -203,7 +211,23 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	f.Manifest = buildManifest(in, res, alloc, selection)
 	f.Manifest.SampleSize = len(sample)
 	f.Manifest.Spares = len(spares)
+	if res.Times != nil {
+		f.Manifest.Completeness = res.Times.Completeness(in.TimeColumn, CompletenessDays(in.Period, in.Days))
+	}
 	return f, nil
+}
+
+// CompletenessDays is the range of days a draw's completeness is checked
+// over: the declared range when set, else the period's days when its label
+// is a month or a day (chrono.PeriodDays), else none (the rows' own days).
+func CompletenessDays(period string, declared chrono.DayRange) chrono.DayRange {
+	if !declared.From.IsZero() {
+		return declared
+	}
+	if r, ok := chrono.PeriodDays(period); ok {
+		return r
+	}
+	return chrono.DayRange{}
 }
 
 func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, selection string) *drawfolder.Manifest {

@@ -3,9 +3,11 @@ package sampling
 import (
 	"bytes"
 	"fmt"
-	"probity/plan/inputerr"
 	"sort"
 	"strings"
+
+	"probity/plan/chrono"
+	"probity/plan/inputerr"
 )
 
 // merge combines the workers' counts and heaps into the result: per
@@ -13,9 +15,15 @@ import (
 // then the repeat events whose key is among the kept rows.
 func (s *scanner) merge(workers []*worker) (*ScanResult, error) {
 	res := &ScanResult{}
+	if s.timeSlot >= 0 {
+		res.Times = &chrono.DayCounter{}
+	}
 	labels := map[string]bool{}
 	for _, w := range workers {
 		res.Rows += w.rows
+		if res.Times != nil {
+			res.Times.Merge(&w.times)
+		}
 		for l := range w.strata {
 			labels[l] = true
 		}

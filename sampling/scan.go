@@ -4,11 +4,13 @@ import (
 	"bytes"
 	"errors"
 	"io"
-	"probity/plan/inputerr"
 	"runtime"
 	"sort"
 	"sync"
 	"sync/atomic"
+
+	"probity/plan/chrono"
+	"probity/plan/inputerr"
 )
 
 // ScanSpec says what Scan reads from a log and how it selects.
@@ -27,6 +29,10 @@ type ScanSpec struct {
 	Bands         []Band
 	// Where keeps only the rows matching every filter (the scope).
 	Where []Filter
+	// TimeColumn, if set, is read on every row in scope as a time
+	// (chrono.ParseTimestamp; a value that is not one is an error naming
+	// its line), and the result holds the rows per day (ScanResult.Times).
+	TimeColumn string
 	// Keep lists the columns whose values are kept for selected rows;
 	// KeepRoles, if set, names their roles in messages ("shown",
 	// "candidate NAME").
@@ -111,6 +117,9 @@ type ScanResult struct {
 	Strata  []StratumScan
 	// Duplicates are the repeated ids detected, by line.
 	Duplicates []Duplicate
+	// Times counts the rows in scope by the day of their TimeColumn (nil
+	// without one).
+	Times *chrono.DayCounter
 }
 
 // ErrDuplicateIDs is wrapped by the error for repeated ids without Dedupe.
@@ -192,6 +201,7 @@ type scanner struct {
 	filters           []compiledFilter
 	keepSlots         []int
 	bandLabels        [][]string
+	timeSlot          int   // the TimeColumn's slot, −1 without one
 	dataLine          int64 // line number of the first data line
 
 	errSeq atomic.Int64 // lowest chunk seq that failed
@@ -477,6 +487,12 @@ func (s *scanner) compile() error {
 		}
 		s.filters = append(s.filters, cf)
 	}
+	s.timeSlot = -1
+	if s.spec.TimeColumn != "" {
+		if s.timeSlot, err = slot(s.spec.TimeColumn, "time"); err != nil {
+			return err
+		}
+	}
 	defer s.splitNeeds()
 	for i, c := range s.spec.Keep {
 		role := "kept"
@@ -500,6 +516,9 @@ func (s *scanner) splitNeeds() {
 	}
 	for _, sl := range s.bandSlots {
 		hot[sl] = true
+	}
+	if s.timeSlot >= 0 {
+		hot[s.timeSlot] = true
 	}
 	for _, f := range s.filters {
 		hot[f.slot] = true

@@ -8,6 +8,7 @@ import (
 	"unicode/utf8"
 	"unsafe"
 
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/sampling/delimscan"
 )
@@ -44,6 +45,7 @@ type worker struct {
 	// keepQuoted reads the kept columns of a kept record holding quotes.
 	keepQuoted fieldSplitter
 	rows       int64
+	times      chrono.DayCounter
 	dups       []dupEvent
 	seq        int64
 	// tooMany is set once the distinct ids overflowed (reported once).
@@ -243,6 +245,16 @@ func (w *worker) classify(line int64, nf int) (*wstratum, *inputerr.Error) {
 		if _, ok := f.set[string(w.vals[f.slot])]; !ok {
 			return nil, nil
 		}
+	}
+	if s.timeSlot >= 0 {
+		v := w.vals[s.timeSlot]
+		sec, ok := chrono.ParseTimestamp(v)
+		if !ok {
+			e := inputErrorf(name, int(line), s.spec.TimeColumn, "the time %q is not a date or time", v)
+			e.Hint = "write times as RFC 3339 (2026-11-30T23:59:07Z), YYYY-MM-DD HH:MM:SS (read as UTC), YYYY-MM-DD or Unix seconds"
+			return nil, e
+		}
+		w.times.Add(sec)
 	}
 	st := w.single
 	var packed uint64

@@ -15,8 +15,8 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/planfile"
 	"probity/sampling/demolog"
 	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
@@ -141,7 +141,7 @@ func runDemo(d deps, o *demoOptions) error {
 	planRun, err := step("plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--producer-risk", "0.10",
 		"--thresholds", "defect_score:0.35,0.50,0.65", "--positive", demolog.Defect, "--negative", demolog.Sound,
 		"--require", "any", "--system", sc.System, "--system-version", sc.SystemVersion,
-		"--seed", demolog.PlanSeed, "--out", planPath)
+		"--seed", demolog.PlanSeed, "--time-column", demolog.TimeColumn, "--date", demoTime(demolog.PlanCreated), "--out", planPath)
 	if err != nil {
 		return err
 	}
@@ -284,7 +284,7 @@ func runDemoMonth(m demolog.Scenario, base string, step func(...string) (demoRun
 	if err := writeDemoFile(filepath.Join(base, res.logPath), m.WriteLogGzip); err != nil {
 		return res, err
 	}
-	drawArgs := []string{"draw", "--plan", "plan.yaml", "--log", res.logPath, "--out", res.drawDir, "--period", m.Month,
+	drawArgs := []string{"draw", "--plan", "plan.yaml", "--log", res.logPath, "--out", res.drawDir, "--period", m.Month, "--date", demoTime(m.Drawn()),
 		"--strata", "section", "--spare", "2", "--show", "scan_ref,inspected_on,weld_type", "--quiet"}
 	if latest {
 		drawArgs = append(drawArgs, "--double", strconv.Itoa(demoDouble))
@@ -292,12 +292,8 @@ func runDemoMonth(m demolog.Scenario, base string, step func(...string) (demoRun
 	if _, err := step(drawArgs...); err != nil {
 		return res, err
 	}
-	// The latest month is labeled and recorded at the scenario's clock,
-	// the month before a month earlier.
-	date := demolog.Clock.Format("2006-01-02")
-	if !latest {
-		date = demolog.Clock.AddDate(0, -1, 0).Format("2006-01-02")
-	}
+	// The latest month is labeled on the page from the scenario's clock
+	// on, and issued (m.Issued) once labeling is done.
 	if err := demoLabelMonth(m, base, &res, latest, demolog.Clock); err != nil {
 		return res, err
 	}
@@ -327,7 +323,7 @@ func runDemoMonth(m demolog.Scenario, base string, step func(...string) (demoRun
 		labels = []string{"--trail", res.trailPath}
 	}
 	recordArgs := append(append([]string{"record", "--plan", "plan.yaml", "--draw", res.drawDir}, labels...), "--out", res.recDir,
-		"--use", "safety", "--signoff", "signoff.yaml", "--sign-key", keyPath, "--date", date)
+		"--use", "safety", "--signoff", "signoff.yaml", "--sign-key", keyPath, "--date", demoTime(m.Issued()))
 	if res.adjudicatedPath != "" {
 		recordArgs = append(recordArgs, "--adjudicated", res.adjudicatedPath)
 	}
@@ -335,6 +331,10 @@ func runDemoMonth(m demolog.Scenario, base string, step func(...string) (demoRun
 	res.record, err = step(recordArgs...)
 	return res, err
 }
+
+// demoTime writes a scenario time as the demo passes it to --date, so the
+// artifacts are the same on every run (and say the time was supplied).
+func demoTime(t time.Time) string { return t.UTC().Format(time.RFC3339) }
 
 // demoLabelMonth labels a month's draw from the scenario's hidden truth:
 // the first labeler's labels (demolog.Scenario.Label, with the items of
@@ -460,7 +460,7 @@ func demoPartial(base, drawDir, path string, labeled []drawfolder.WorksheetRow, 
 // openDemoDraw opens a draw folder of the demo against the demo's plan,
 // as record and progress open it.
 func openDemoDraw(base, drawDir string) (*drawfolder.Folder, error) {
-	p, fp, err := plan.LoadForJudging(filepath.Join(base, demoPlan))
+	p, fp, err := planfile.LoadForJudging(filepath.Join(base, demoPlan))
 	if err != nil {
 		return nil, err
 	}

@@ -12,7 +12,9 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/plan"
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
+	"probity/plan/planfile"
 	"probity/plan/trend"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
@@ -38,6 +40,9 @@ type drawOptions struct {
 	dedupe      string
 	double      int
 	period      string
+	date        string
+	timeColumn  string
+	days        string
 	force       bool
 	quiet       bool
 	maxLine     string
@@ -144,6 +149,9 @@ Labels written into the worksheets since the draw are not differences.
 	fl.StringVar(&opts.dedupe, "dedupe", "", "with `first`: keep the first row of a repeated record id instead of refusing")
 	fl.IntVar(&opts.double, "double", 0, "the first `k` items get a second, independent label (worksheet-second.csv)")
 	fl.StringVar(&opts.period, "period", "", "draw a fresh sample for period `LABEL` (e.g. 2026-11) with the period seed")
+	fl.StringVar(&opts.date, "date", "", dateFlagUsage("the sample is drawn"))
+	fl.StringVar(&opts.timeColumn, "time-column", "", "the log `COLUMN` that dates each decision: record the first and last time and the days without rows (default: the plan's time_column)")
+	fl.StringVar(&opts.days, "days", "", "the days the log should cover, `FROM/TO` (YYYY-MM-DD, both included), for --time-column (default: the --period's month)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty output folder")
 	fl.BoolVarP(&opts.quiet, "quiet", "q", false, "no progress bar")
 	fl.StringVar(&opts.maxLine, "max-line", "", maxLineHelp)
@@ -158,6 +166,14 @@ func (o *drawOptions) validate() error {
 	}
 	if o.logPath == "" {
 		return inputerr.Errorf("--log is required").WithHint("give the prediction log, e.g. --log predictions.csv.gz (- reads stdin)")
+	}
+	if err := parseDateFlag(o.date); err != nil {
+		return err
+	}
+	if o.days != "" {
+		if _, ok := chrono.ParseDayRange(o.days); !ok {
+			return inputerr.Errorf("--days %q is not a range of days FROM/TO", o.days).WithHint("for example --days 2026-11-01/2026-11-30 (both days included)")
+		}
 	}
 	if o.maxLine != "" {
 		n, err := parseSize("--max-line", o.maxLine)
@@ -249,7 +265,7 @@ func checkPeriodFlag(p string) error {
 
 // loadDrawPlan loads the plan and refuses a sizing-only one.
 func loadDrawPlan(path string) (*plan.File, string, error) {
-	p, fp, err := plan.Load(path)
+	p, fp, err := planfile.Load(path)
 	if err != nil {
 		return nil, "", err
 	}
@@ -314,7 +330,13 @@ func runDraw(d deps, o *drawOptions) error {
 	if err := safewrite.CheckFolder(o.out, o.force); err != nil {
 		return drawError(err)
 	}
+	timeColumn, err := drawTimeColumn(o, p)
+	if err != nil {
+		return err
+	}
+	days, _ := chrono.ParseDayRange(o.days)
 	in := sampling.DrawInput{
+		TimeColumn: timeColumn, Days: days,
 		Plan: p, PlanFingerprint: fp, LogPath: d.given(o.logPath), Format: o.format, Period: o.period,
 		IDColumn: o.id, StrataColumns: o.strata, Bands: o.parsedBands, Where: o.parsedWhere, Show: o.show,
 		Alloc:  sampling.AllocOptions{Rule: o.allocation, MinPerStratum: o.minPer, Spare: o.spare},
@@ -333,15 +355,58 @@ func runDraw(d deps, o *drawOptions) error {
 			in.NeymanSource = "band " + o.parsedBands[0].String() + " (p_h = min(m, 1 − m) at the interval midpoint m)"
 		}
 	}
+	drawn, err := drawTime(d, o, p)
+	if err != nil {
+		return err
+	}
 	f, err := drawFromLog(d, o, &in)
 	if err != nil {
 		return drawError(err)
 	}
+	f.Manifest.Drawn = &drawn
 	if err := drawfolder.Write(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: o.inputs()}); err != nil {
 		return drawError(err)
 	}
 	writeDrawSummary(d.stdout, o.out, f)
+	if c := f.Manifest.Completeness; c != nil && !c.Complete() {
+		fmt.Fprintf(d.stderr, "probity: warning: the log does not cover days %s to %s: %s without rows, %s dated outside them; the record will say so on page 1\n",
+			c.From, c.To, plural(c.EmptyDayCount, "day"), plural(int(c.RowsBefore+c.RowsAfter), "row"))
+	}
 	return nil
+}
+
+// drawTimeColumn is the log's time column: --time-column, or the one the
+// plan declares (the two must agree when both are given); "" when neither
+// names one. --days needs one.
+func drawTimeColumn(o *drawOptions, p *plan.File) (string, error) {
+	col := o.timeColumn
+	switch {
+	case col != "" && p.TimeColumn != "" && col != p.TimeColumn:
+		return "", inputerr.Errorf("--time-column %s is not the time column %s the plan declares (%s)", col, p.TimeColumn, o.planPath).
+			WithHint("leave --time-column out to use the plan's")
+	case col == "":
+		col = p.TimeColumn
+	}
+	if o.days != "" && col == "" {
+		return "", inputerr.Errorf("--days needs a time column to check the days against").WithHint("name the log's time column with --time-column COLUMN")
+	}
+	return col, nil
+}
+
+// drawTime is the time of the draw (the clock's, or --date's), refused
+// when it is before the plan was made: a sample is drawn from a plan
+// fixed before it.
+func drawTime(d deps, o *drawOptions, p *plan.File) (chrono.Stamp, error) {
+	drawn := stepTime(d, o.date)
+	created := chrono.Stamp{Time: chrono.Second(p.Created), Source: p.CreatedFrom}
+	if !drawn.Time.Before(created.Time) {
+		return drawn, nil
+	}
+	e := inputerr.Errorf("the chronology is broken: the sample would be drawn at %s, before its plan was made (%s, in %s)", drawn, created, o.planPath)
+	if o.date != "" {
+		return drawn, e.WithHint("give the true time of the draw with --date, or leave it out to take the time from the clock")
+	}
+	return drawn, e.WithHint("the plan states a creation time after this machine's clock: check the clock, and that the plan is the one made for this audit")
 }
 
 // inputs are the files the draw reads, which its output never replaces.
@@ -413,6 +478,22 @@ func writeDrawSummary(w io.Writer, dir string, f *drawfolder.Content) {
 		fmt.Fprintf(w, "repeated ids: %s dropped (--dedupe first)\n", countOf(m.DuplicatesDropped, "later row", "later rows"))
 	}
 	fmt.Fprintf(w, "log sha256: %s (%d bytes)\n", m.Log.SHA256, m.Log.Bytes)
+	if m.Drawn != nil {
+		fmt.Fprintf(w, "drawn at %s\n", m.Drawn)
+	}
+	if c := m.Completeness; c != nil {
+		fmt.Fprintf(w, "times (%s): %d rows from %s to %s\n", c.TimeColumn, c.Rows, chrono.Format(c.First), chrono.Format(c.Last))
+		fmt.Fprintf(w, "days %s to %s (%d, %s): ", c.From, c.To, c.Days, c.RangeOf)
+		if c.EmptyDayCount == 0 {
+			fmt.Fprint(w, "every day has rows")
+		} else {
+			fmt.Fprintf(w, "%d without rows: %s", c.EmptyDayCount, strings.Join(c.EmptyDays, ", "))
+		}
+		if c.RowsBefore+c.RowsAfter > 0 {
+			fmt.Fprintf(w, "; %d rows dated before and %d after", c.RowsBefore, c.RowsAfter)
+		}
+		fmt.Fprintln(w)
+	}
 	fmt.Fprintf(w, "give %s to the labelers; keep %s and %s\n",
 		filepath.Join(dir, drawfolder.WorksheetFile), filepath.Join(dir, drawfolder.LedgerFile), filepath.Join(dir, drawfolder.ManifestFile))
 }
@@ -518,3 +599,11 @@ func (b *drawProgressBar) finish() {
 }
 
 func megabytes(n int64) string { return fmt.Sprintf("%.0f MB", float64(n)/1e6) }
+
+// plural is "1 day", "2 days".
+func plural(n int, word string) string {
+	if n == 1 {
+		return "1 " + word
+	}
+	return fmt.Sprintf("%d %ss", n, word)
+}

@@ -9,6 +9,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
@@ -118,7 +119,7 @@ func (so *drawSQLOptions) validate(c *cobra.Command, o *drawOptions) error {
 		return inputerr.Errorf("--plan is required").WithHint("give the plan file made by 'probity plan', e.g. --plan plan.yaml")
 	}
 	mode := "--sql"
-	refused := []string{"log", "check", "format", "dedupe", "anticipated"}
+	refused := []string{"log", "check", "format", "dedupe", "anticipated", "time-column", "days"}
 	if so.dialect != "" {
 		refused = append(refused, "out", "force")
 	} else {
@@ -170,6 +171,8 @@ func drawSQLConflictHint(name, mode string) string {
 		return "a draw inside the engine refuses repeated ids; remove them in a view, or draw from an export with --dedupe first"
 	case name == "anticipated":
 		return "neyman allocation cannot run inside the engine"
+	case name == "time-column" || name == "days":
+		return "the days without rows are counted from a log file; draw from an export with --log to check them"
 	default:
 		return "--sql prints the query to stdout; the folder is written by --selected RESULT --out DIR"
 	}
@@ -179,6 +182,9 @@ func drawSQLConflictHint(name, mode string) string {
 func drawSpec(d deps, o *drawOptions, so *drawSQLOptions, planPath string) (*sqlquery.Spec, error) {
 	p, fp, err := loadDrawPlan(planPath)
 	if err != nil {
+		return nil, err
+	}
+	if err := refuseTimeColumnInEngine(p, planPath); err != nil {
 		return nil, err
 	}
 	s := &sqlquery.Spec{
@@ -302,11 +308,25 @@ func runDrawSelectionSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOp
 	return nil
 }
 
+// refuseTimeColumnInEngine refuses a plan that declares a time column for
+// a draw inside a database: the days without rows are counted from a log
+// file, and a plan that asks for them must not be drawn without.
+func refuseTimeColumnInEngine(p *plan.File, planPath string) error {
+	if p.TimeColumn == "" {
+		return nil
+	}
+	return inputerr.Errorf("%s declares the time column %s, whose days without rows a draw inside a database does not count", planPath, p.TimeColumn).
+		WithHint("export the table and draw from the log file with --log")
+}
+
 // runDrawSelected imports a query's result into the draw folder (with
 // --counts, a two-step selection checked against its counts).
 func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOptions) error {
 	p, fp, err := loadDrawPlan(o.planPath)
 	if err != nil {
+		return err
+	}
+	if err := refuseTimeColumnInEngine(p, o.planPath); err != nil {
 		return err
 	}
 	if err := safewrite.CheckFolder(o.out, o.force); err != nil {
@@ -327,10 +347,15 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 	if err := checkResultFlags(so.selected, c, o, so, res.Spec); err != nil {
 		return err
 	}
+	drawn, err := drawTime(d, o, p)
+	if err != nil {
+		return err
+	}
 	f, err := res.Folder(d.version)
 	if err != nil {
 		return drawError(err)
 	}
+	f.Manifest.Drawn = &drawn
 	if err := drawfolder.Write(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: []string{o.planPath, so.selected, so.counts}}); err != nil {
 		return drawError(err)
 	}

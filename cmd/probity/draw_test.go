@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/planfile"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
@@ -21,7 +22,8 @@ const drawPlan = "../../testdata/draw/plan.yaml"
 
 func runDrawCmd(t *testing.T, stdin []byte, args ...string) (int, string, string) {
 	t.Helper()
-	return runTest(t, append([]string{"draw"}, args...), withStdin(bytes.NewReader(stdin)), withVersion("test"))
+	return runTest(t, append([]string{"draw"}, args...), withStdin(bytes.NewReader(stdin)), withVersion("test"),
+		atTime(time.Date(2026, 12, 1, 7, 15, 0, 0, time.UTC)))
 }
 
 func writeGenLog(t *testing.T, dir, name string, c loggen.Config) string {
@@ -235,11 +237,15 @@ func TestDrawBadInput(t *testing.T) {
 func TestDrawPopulationPlan(t *testing.T) {
 	t.Parallel()
 	dir := t.TempDir()
-	p, _, err := plan.Load(drawPlan)
+	p, _, err := planfile.Load(drawPlan)
 	if err != nil {
 		t.Fatal(err)
 	}
+	// a lot plan for the same inputs, sized as probity plan --population would
 	p.Inputs.Population = 5000
+	if p.Rule, p.Comparison, err = plan.Size(p.Inputs); err != nil {
+		t.Fatal(err)
+	}
 	b, _ := p.Marshal()
 	pp := filepath.Join(dir, "lot.yaml")
 	os.WriteFile(pp, b, 0o644)
@@ -271,7 +277,7 @@ func TestDrawProgressBarOnlyOnTerminal(t *testing.T) {
 	zw := gzip.NewWriter(&gzb)
 	loggen.Write(zw, loggen.Config{Rows: 2000, Seed: 3})
 	zw.Close()
-	tick := time.Unix(0, 0)
+	tick := time.Date(2026, 12, 1, 7, 0, 0, 0, time.UTC)
 	d, _, errb := newTestDeps(withStdin(bytes.NewReader(gzb.Bytes())), withVersion("test"), onTerminal(),
 		withClock(func() time.Time { tick = tick.Add(time.Second); return tick }))
 	// stdin has no known size: the bar appears once 64 MB are read, so

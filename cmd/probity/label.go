@@ -13,8 +13,8 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/planfile"
 	"probity/sampling/drawfolder"
 	"probity/sampling/labelserver"
 	"probity/sampling/labeltrail"
@@ -140,7 +140,7 @@ type labelSetup struct {
 // and builds the server. The label command and the demo both label
 // through it.
 func openLabeling(s labelSetup) (*labeling, error) {
-	p, fp, err := plan.LoadForJudging(s.planPath)
+	p, fp, err := planfile.LoadForJudging(s.planPath)
 	if err != nil {
 		return nil, err
 	}
@@ -248,7 +248,9 @@ func writeLabelBanner(w io.Writer, o *labelOptions, l *labeling, host string, po
 	}
 	fmt.Fprintf(w, "labeling %s (plan %s); trail %s, %s\n", o.drawDir, o.planPath, l.trail.Path(), state)
 	for _, sh := range l.server.Sheets() {
-		fmt.Fprintf(w, "  %s (%s, %d items): http://%s%s\n", sh.Title, sh.Name, sh.Items, net.JoinHostPort(host, strconv.Itoa(port)), sh.Path)
+		// the address on a line of its own: it stays whole in a
+		// 100-column console
+		fmt.Fprintf(w, "  %s (%s, %d items):\n    http://%s%s\n", sh.Title, sh.Name, sh.Items, net.JoinHostPort(host, strconv.Itoa(port)), sh.Path)
 	}
 	if len(l.server.Sheets()) > 1 {
 		fmt.Fprintf(w, "give the second address only to the second labeler: the labels of one worksheet never show on the other\n")

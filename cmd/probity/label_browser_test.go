@@ -21,6 +21,7 @@ import (
 	"github.com/chromedp/chromedp/kb"
 
 	"probity/plan"
+	"probity/plan/chrono"
 	"probity/plan/testkit/needs"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
@@ -136,6 +137,8 @@ func newBrowserFixture(t *testing.T) *browserFixture {
 	if err != nil {
 		t.Fatal(err)
 	}
+	drawn := chrono.FromClock(time.Date(2026, 11, 30, 15, 0, 0, 0, time.UTC))
+	folder.Manifest.Drawn = &drawn
 	fx.draw = filepath.Join(fx.dir, "draw")
 	if err := drawfolder.Write(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)

@@ -49,8 +49,7 @@ type labelRun struct {
 // reading of the clock advances it by a second.
 var labelStart = time.Date(2026, 12, 1, 10, 0, 0, 0, time.UTC)
 
-// bannerAddress finds a worksheet's address in label's output (on the
-// next line when the output is fitted to the console's width).
+// bannerAddress finds a worksheet's address in label's output.
 var bannerAddress = regexp.MustCompile(`\((worksheet[a-z-]*\.csv), \d+ items\):\s+(http://\S+)`)
 
 // startLabel runs probity label with args until its addresses are
@@ -208,6 +207,12 @@ func sameRecordBesidesTrail(t *testing.T, fromTrail, fromWorksheet map[string]an
 	}
 	delete(fromTrail, "label_trail")
 	delete(fromTrail["fingerprints"].(map[string]any), "trail")
+	// the trail also dates the labeling, in the chronology
+	if c, ok := fromTrail["chronology"].(map[string]any); !ok || c["labeled"] == nil {
+		t.Errorf("the record from the trail does not date the labeling: %v", fromTrail["chronology"])
+	} else {
+		delete(c, "labeled")
+	}
 	delete(fromTrail, "record_id")
 	delete(fromWorksheet, "record_id")
 	for k := range fromWorksheet {

@@ -28,6 +28,8 @@ type planOptions struct {
 	classes, thresholds                   string
 	positive, negative                    string
 	system, systemVersion                 string
+	date                                  string
+	timeColumn                            string
 
 	// set by validate
 	in          plan.Inputs
@@ -121,6 +123,8 @@ tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.negative, "negative", "", "the negative `LABEL` (with --thresholds)")
 	fl.StringVar(&o.system, "system", "", "the `NAME` of the classifier under audit")
 	fl.StringVar(&o.systemVersion, "system-version", "", "the `VERSION` of the classifier under audit")
+	fl.StringVar(&o.date, "date", "", dateFlagUsage("the plan was made"))
+	fl.StringVar(&o.timeColumn, "time-column", "", "the log `COLUMN` that dates each decision: every draw reads it and records the days of the period without rows")
 	return cmd
 }
 
@@ -146,6 +150,12 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	changed := cmd.Flags().Changed
 	if o.budget != "" {
 		return o.validateBudget(changed)
+	}
+	if err := parseDateFlag(o.date); err != nil {
+		return err
+	}
+	if strings.TrimSpace(o.timeColumn) != o.timeColumn {
+		return inputerr.Errorf("--time-column %q has leading or trailing spaces", o.timeColumn)
 	}
 	if o.ceiling == "" {
 		return inputerr.Errorf("--ceiling is required: the error rate that must not be exceeded").WithHint("e.g. --ceiling 0.02 for 2%")
@@ -398,10 +408,11 @@ func runPlan(d deps, o *planOptions) error {
 		}
 		seed = hex.EncodeToString(b[:])
 	}
+	created := stepTime(d, o.date)
 	f, err := plan.Build(o.in, plan.Meta{
-		ToolVersion: d.version, Created: d.now(), Seed: seed,
+		ToolVersion: d.version, Created: created.Time, CreatedFrom: created.Source, Seed: seed,
 		System: o.system, SystemVersion: o.systemVersion,
-		Classes: o.classesList, Candidates: o.declared,
+		Classes: o.classesList, Candidates: o.declared, TimeColumn: o.timeColumn,
 	})
 	if err != nil {
 		return planInputError(err)

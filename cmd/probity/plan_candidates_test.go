@@ -5,7 +5,7 @@ import (
 	"strings"
 	"testing"
 
-	"probity/plan"
+	"probity/plan/planfile"
 )
 
 // TestMixedCandidates (issue 16, item 18): label-column and threshold
@@ -20,7 +20,7 @@ func TestMixedCandidates(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
 	}
-	f, _, err := plan.Load(out)
+	f, _, err := planfile.Load(out)
 	if err != nil {
 		t.Fatal(err)
 	}

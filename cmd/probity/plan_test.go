@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/planfile"
 )
 
 // planRandom is the plan tests' random stream, bytes 0x00, 0x01, …, 0x3f
@@ -99,7 +100,7 @@ func TestPlanOutFile(t *testing.T) {
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
 	}
-	f, fp, err := plan.Load(path)
+	f, fp, err := planfile.Load(path)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -130,7 +131,7 @@ func TestPlanOutFile(t *testing.T) {
 		t.Errorf("overwrite without --force: exit %d, stderr %q", code, errOut)
 	}
 	code, _, _ = runPlanCmd(t, "--ceiling", "0.03", "--confidence", "0.95", "--out", path, "--force")
-	if g, _, err := plan.Load(path); code != exitOK || err != nil || g.Inputs.Ceiling != 0.03 {
+	if g, _, err := planfile.Load(path); code != exitOK || err != nil || g.Inputs.Ceiling != 0.03 {
 		t.Errorf("--force: exit %d, %v", code, err)
 	}
 	// --seed is used exactly as written
@@ -138,7 +139,7 @@ func TestPlanOutFile(t *testing.T) {
 	if code, _, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--seed", "audit-2026-11", "--out", seeded); code != exitOK {
 		t.Fatalf("--seed: exit %d %s", code, errOut)
 	}
-	if g, _, _ := plan.Load(seeded); g.Seed != "audit-2026-11" {
+	if g, _, _ := planfile.Load(seeded); g.Seed != "audit-2026-11" {
 		t.Errorf("seed %q", g.Seed)
 	}
 	if entries, _ := os.ReadDir(dir); len(entries) != 2 {

@@ -11,6 +11,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/planfile"
 	"probity/plan/progress"
 	"probity/plan/sequential"
 	"probity/sampling/drawfolder"
@@ -98,14 +99,9 @@ type progressCandidateJS struct {
 }
 
 func runProgress(d deps, opts *progressOptions) error {
-	p, fingerprint, err := plan.LoadForJudging(opts.planPath)
+	p, fingerprint, err := planfile.LoadForJudging(opts.planPath)
 	if err != nil {
 		return err
-	}
-	if p.Sequential != nil {
-		if err := sequential.Validate(p.Sequential); err != nil {
-			return inputerr.Errorf("%s: sequential: %v", opts.planPath, err).WithHint("the boundaries were edited by hand; use the plan file probity plan wrote")
-		}
 	}
 	f, err := drawfolder.Open(opts.drawDir, fingerprint, p.CandidateNames())
 	if err != nil {

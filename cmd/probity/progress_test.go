@@ -272,7 +272,7 @@ func TestProgressBadInput(t *testing.T) {
 	broken, _ := f.Marshal()
 	os.WriteFile(sq.plan, broken, 0o644)
 	code, _, errs = runProgressCmd(t, "--plan", sq.plan, "--draw", sq.draw, "--labels", sq.label(t, 5, nil))
-	if code != exitBadInput || !strings.Contains(errs, "plan.yaml: sequential: ") || !strings.Contains(errs, "the boundaries must meet") {
+	if code != exitBadInput || !strings.Contains(errs, "plan.yaml line 41, field sequential.accept_if_errors_at_most[169]: ") || !strings.Contains(errs, "the boundaries must meet") {
 		t.Errorf("broken boundaries: exit %d, %q", code, errs)
 	}
 	// an unknown label

@@ -5,12 +5,12 @@ import (
 	"errors"
 	"fmt"
 	"strings"
-	"time"
 
 	"github.com/spf13/cobra"
 
 	"probity/pdfreport"
 	"probity/plan/agreement"
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/plan/inputfile"
 	"probity/plan/record"
@@ -52,7 +52,7 @@ type recordOptions struct {
 func newRecordCommand(d deps) *cobra.Command {
 	opts := &recordOptions{}
 	cmd := &cobra.Command{
-		Use:   "record --plan PLAN.yaml --draw DIR (--labels|--trail FILE) --out RECDIR",
+		Use:   "record --plan PLAN.yaml --draw DIR (--labels FILE | --trail FILE) --out RECDIR",
 		Short: "Judge the candidates from the labels and write the acceptance record",
 		Long: `record checks the labeled worksheet against the plan and the draw folder,
 judges every candidate and writes the acceptance record into RECDIR:
@@ -130,7 +130,7 @@ zero-width or direction-overriding characters.
 	fl.StringVar(&opts.use, "use", "general", "declared `USE`: "+strings.Join(templates.Uses(), ", "))
 	fl.StringVar(&opts.signKey, "sign-key", "", "the operator's private `KEY` from probity keygen; writes record.sig, the operator's seal")
 	fl.BoolVar(&opts.allowIncomplete, "allow-incomplete", false, "count unlabeled and unsure items as errors for every candidate instead of refusing")
-	fl.StringVar(&opts.date, "date", "", "the record's `DATE`, YYYY-MM-DD (default: today, UTC)")
+	fl.StringVar(&opts.date, "date", "", dateFlagUsage("the record is issued"))
 	fl.StringVar(&opts.paper, "paper", "a4", "`PAPER` size of record.pdf: a4 or letter")
 	fl.StringVar(&opts.templatesDir, "templates", "", "folder `DIR` of wording files overriding the built-in ones")
 	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "`BOUND` for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
@@ -160,10 +160,8 @@ func (o *recordOptions) validate() error {
 	if !oneOf(o.paper, []string{"a4", "letter"}) {
 		return inputerr.Errorf("--paper %q is not a4 or letter", o.paper)
 	}
-	if o.date != "" {
-		if _, err := time.Parse("2006-01-02", o.date); err != nil {
-			return inputerr.Errorf("--date %q is not a date in the form YYYY-MM-DD", o.date).WithHint("for example --date 2026-03-31")
-		}
+	if err := parseDateFlag(o.date); err != nil {
+		return err
 	}
 	if o.supersedes != "" && !record.IsID(o.supersedes) {
 		return inputerr.Errorf("--supersedes %q is not a record id (%d lowercase hex digits)", o.supersedes, record.IDLength).
@@ -228,14 +226,10 @@ func runRecord(d deps, o *recordOptions) error {
 	if err != nil {
 		return err
 	}
-	date := o.date
-	if date == "" {
-		date = d.now().UTC().Format("2006-01-02")
-	}
 	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated, Trail: o.trail}
 	rec, err := assemble.Record(files, assemble.Options{
 		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
-		Bound: o.unequal, Use: o.use, Date: date, Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
+		Bound: o.unequal, Use: o.use, Issued: stepTime(d, o.date), Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
 		Revision: o.revision, Supersedes: o.supersedes, Demonstration: signature.IsDemoKey(keyFP),
 	})
 	if err != nil {
@@ -273,8 +267,17 @@ func recordHints(err error, o *recordOptions) error {
 			return inputerr.SetHint(err, inputerr.HintOf(err)+" and pass --adjudicated FILE, "+fix)
 		}
 		return inputerr.SetHint(err, inputerr.HintOf(err)+", "+fix)
+	case errors.Is(err, assemble.ErrChronology) && o.date != "" && issuedTooEarly(err):
+		return inputerr.SetHint(err, "--date "+o.date+" is not a time this record can be issued at: a record is issued after its sample was drawn and labeled; leave --date out to take the time from the clock")
 	}
 	return err
+}
+
+// issuedTooEarly reports whether a broken chronology is the record's issue
+// time (not the draw's).
+func issuedTooEarly(err error) bool {
+	var oe *chrono.OrderError
+	return errors.As(err, &oe) && (oe.Step == "issued" || oe.Step == "labeled last")
 }
 
 // renderRecord encodes record.json, lays out record.pdf and, with a key,

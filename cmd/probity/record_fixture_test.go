@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/chrono"
 	"probity/plan/sequential"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
@@ -56,7 +57,7 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 		in.CandidateCount = 2
 		cands = append(cands, plan.Candidate{Name: "sorter-b", Column: "pred_b"})
 	}
-	f, err := plan.Build(in, plan.Meta{ToolVersion: "test", Created: time.Date(2026, 11, 30, 9, 0, 0, 0, time.UTC),
+	f, err := plan.Build(in, plan.Meta{ToolVersion: "test", Created: time.Date(2026, 11, 30, 9, 0, 0, 0, time.UTC), CreatedFrom: chrono.SourceClock,
 		Seed: "0f1e2d3c4b5a69788796a5b4c3d2e1f0", System: "Parcel sorter", SystemVersion: "2.4",
 		Classes: []string{"ok", "defect"}, Candidates: cands})
 	if err != nil {
@@ -113,6 +114,8 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 	if err != nil {
 		t.Fatal(err)
 	}
+	drawn := chrono.FromClock(time.Date(2026, 11, 30, 15, 0, 0, 0, time.UTC))
+	folder.Manifest.Drawn = &drawn
 	fx.draw = filepath.Join(fx.dir, "draw")
 	if err := drawfolder.Write(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)

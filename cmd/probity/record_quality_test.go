@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/chrono"
 	"probity/plan/record"
 	"probity/plan/testkit/needs"
 	"probity/sampling"
@@ -37,7 +38,7 @@ func newLQFixture(t *testing.T) *lqFixture {
 	fx := &lqFixture{dir: t.TempDir(), truth: map[string]string{}}
 	in := plan.Inputs{Ceiling: 0.1, Confidence: 0.9, CandidateCount: 1, ProducerRisk: 0.1,
 		Method: plan.MethodExact, Multiplicity: plan.Bonferroni, Design: plan.DesignFixed, Require: plan.RequireAll}
-	f, err := plan.Build(in, plan.Meta{ToolVersion: "test", Created: time.Date(2026, 11, 30, 9, 0, 0, 0, time.UTC),
+	f, err := plan.Build(in, plan.Meta{ToolVersion: "test", Created: time.Date(2026, 11, 30, 9, 0, 0, 0, time.UTC), CreatedFrom: chrono.SourceClock,
 		Seed: "a1b2c3d4e5f60718293a4b5c6d7e8f90", System: "Seam inspector", SystemVersion: "1.3",
 		Classes: []string{"defect", "ok"}, Candidates: []plan.Candidate{{Name: "seam-cnn", Column: "pred"}}})
 	if err != nil {
@@ -78,6 +79,8 @@ func newLQFixture(t *testing.T) *lqFixture {
 	if err != nil {
 		t.Fatal(err)
 	}
+	drawn := chrono.FromClock(time.Date(2026, 11, 30, 15, 0, 0, 0, time.UTC))
+	folder.Manifest.Drawn = &drawn
 	fx.draw = filepath.Join(fx.dir, "draw")
 	if err := drawfolder.Write(fx.draw, folder, safewrite.FolderOptions{}); err != nil {
 		t.Fatal(err)

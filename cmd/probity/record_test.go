@@ -141,7 +141,7 @@ func TestRecordBadInputLeavesNothing(t *testing.T) {
 		{"other plan", good, nil, other.planPath,
 			[]string{"manifest.json, field plan_fingerprint: the draw was made from the plan with SHA-256", "hint: pass the plan file the draw was made with"}},
 		{"bad use", good, []string{"--use", "aviation"}, "", []string{`--use "aviation" is not one of general, safety, medical, vehicle, credit, employment`}},
-		{"bad date", good, []string{"--date", "1.12.2026"}, "", []string{`--date "1.12.2026" is not a date in the form YYYY-MM-DD`}},
+		{"bad date", good, []string{"--date", "1.12.2026"}, "", []string{`--date "1.12.2026" is not a time: give YYYY-MM-DD`}},
 		{"bad sign-off", good, []string{"--signoff", writeTemp(t, fx.dir, "signoff.yaml", "approved:\n  name: A\n  when: today\n")}, "", []string{"signoff.yaml line 2, field approved"}},
 		{"missing key", good, []string{"--sign-key", filepath.Join(fx.dir, "nokey")}, "", []string{"cannot read --sign-key", "probity keygen"}},
 	}

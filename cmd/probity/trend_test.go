@@ -293,6 +293,7 @@ func TestTrendBadInput(t *testing.T) {
 		{"lot plan mixed with stream plan", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
 			r.Plan.Model, r.Plan.Population = plan.ModelHypergeometric, 41250
+			trendRisks(r)
 			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
 		}, []string{filepath.Join("april", "record.json") + ": plan.model is hypergeometric here but binomial in " + trendMonth("2026-03") + " (period 2026-03): records of different classes of plan cannot share a trend",
 			"hint: a trend compares audits of one model, method, design, ceiling and confidence"}},
@@ -304,8 +305,15 @@ func TestTrendBadInput(t *testing.T) {
 		{"different ceilings", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
 			r.Plan.Ceiling = 0.03
+			trendRisks(r)
 			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
 		}, []string{"plan.ceiling is 0.03 here but 0.02"}},
+		{"edited rule", func(t *testing.T, dir string) []string {
+			r := trendLoadMonth(t, "2026-04")
+			r.Plan.SampleSize = 60
+			return []string{trendMonth("2026-03"), trendWrite(t, dir, "april.json", r)}
+		}, []string{"april/record.json line 28, field plan.consumer_risk: states 0.01648, but accepting at most 5 errors in 60 gives 0.9987",
+			"hint: the record's rule does not follow from its own inputs"}},
 		{"period shapes", func(t *testing.T, dir string) []string {
 			r := trendLoadMonth(t, "2026-04")
 			r.Period = "2026-4"
@@ -427,7 +435,7 @@ func TestTrendOfRealRecords(t *testing.T) {
 	planPath := at("plan.yaml")
 	if _, e, code := trendRun(t, "plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.005",
 		"--candidate", "router-a=pred_a", "--candidate", "router-b=pred_b", "--classes", "billing,tech,account",
-		"--system", "ticket-router", "--system-version", "4.2", "--seed", "5be1a2c0f77e4c1d9a0b3e6f28d4c7aa", "--out", planPath); code != exitOK {
+		"--system", "ticket-router", "--system-version", "4.2", "--seed", "5be1a2c0f77e4c1d9a0b3e6f28d4c7aa", "--date", "2025-12-15", "--out", planPath); code != exitOK {
 		t.Fatalf("plan: exit %d: %s", code, e)
 	}
 	classes := []string{"billing", "tech", "account"}
@@ -456,7 +464,7 @@ func TestTrendOfRealRecords(t *testing.T) {
 			t.Fatal(err)
 		}
 		drawDir := at("audits", m, "draw")
-		if _, e, code := trendRun(t, "draw", "--plan", planPath, "--log", logPath, "--period", m, "--out", drawDir); code != exitOK {
+		if _, e, code := trendRun(t, "draw", "--plan", planPath, "--log", logPath, "--period", m, "--date", fmt.Sprintf("2026-%02d-01T07:00:00Z", mi+2), "--out", drawDir); code != exitOK {
 			t.Fatalf("draw %s: exit %d: %s", m, code, e)
 		}
 		labels := trendLabel(t, filepath.Join(drawDir, "worksheet.csv"), truth)
@@ -588,4 +596,21 @@ func TestTrendAuthenticatesEveryRecord(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &rep); err != nil || len(rep.Unauthenticated) != 12 || rep.Periods[0].Authenticated {
 		t.Errorf("nothing trusted: every record is unauthenticated: %v %+v", err, rep)
 	}
+}
+
+// trendRisks sets the consumer's and producer's risks of a record's fixed
+// plan to those of its (n, c) under its model, as a record of such a
+// plan would state them.
+func trendRisks(r *record.Record) {
+	p := &r.Plan
+	n, c := p.SampleSize, p.AcceptanceNumber
+	if N := p.Population; N > 0 {
+		p.ConsumerRisk = plan.HypergeometricCDF(c, N, plan.BadLotErrors(N, p.Ceiling), n)
+		pr := plan.HypergeometricSF(c, N, plan.GoodLotErrors(N, *p.Anticipated), n)
+		p.ProducerRisk = &pr
+		return
+	}
+	p.ConsumerRisk = plan.BinomialCDF(c, n, p.Ceiling)
+	pr := plan.BinomialSF(c, n, *p.Anticipated)
+	p.ProducerRisk = &pr
 }

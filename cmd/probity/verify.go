@@ -38,7 +38,7 @@ type verifyOptions struct {
 func newVerifyCommand(d deps) *cobra.Command {
 	opts := &verifyOptions{}
 	cmd := &cobra.Command{
-		Use:   "verify RECDIR [--pub KEY.pub] [--plan FILE] [--draw DIR] [--labels|--trail FILE]",
+		Use:   "verify RECDIR [--pub KEY] [--plan FILE] [--draw DIR] [--labels|--trail FILE]",
 		Short: "Authenticate a record's signatures and recompute it from its inputs",
 		Long: `verify checks an acceptance record folder and prints each check with its
 outcome. It says "verified" (exit 0) only when the record is authenticated

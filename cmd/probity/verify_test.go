@@ -44,7 +44,8 @@ func TestVerifyAllGood(t *testing.T) {
 		"sealed by the trusted key " + pub, "SHA-256 matches the record's plan fingerprint", "labels fingerprint",
 		"judgement recomputed from the inputs: every field of record.json agrees",
 		"record.json authenticated: sealed by the trusted key " + pub, "not yet signed: prepared, reviewed, approved",
-		"sample drawn again from " + fx.logPath, "record.pdf is exactly the rendering of record.json (a4)", "verified: 14 checks passed\n",
+		"chronology in order: plan created 2026-11-30T09:00:00Z (system clock), sample drawn 2026-11-30T15:00:00Z (system clock), record issued 2026-12-01T00:00:00Z (supplied by the operator)",
+		"sample drawn again from " + fx.logPath, "record.pdf is exactly the rendering of record.json (a4)", "verified: 15 checks passed\n",
 	} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("stdout lacks %q:\n%s", want, stdout)
@@ -87,7 +88,7 @@ func TestTamperingIsDetected(t *testing.T) {
 	swapped := copyDir("swapped")
 	other := newRecFixture(t, true, 0)
 	otherRec := filepath.Join(other.dir, "rec")
-	runProbity(t, "record", "--plan", other.planPath, "--draw", other.draw, "--labels", other.labels(t, "l.csv", nil), "--out", otherRec, "--date", "2026-11-02")
+	runProbity(t, "record", "--plan", other.planPath, "--draw", other.draw, "--labels", other.labels(t, "l.csv", nil), "--out", otherRec, "--date", "2026-12-02")
 	writeFile(t, filepath.Join(swapped, "record.pdf"), mustRead(t, filepath.Join(otherRec, "record.pdf")))
 
 	unsignedSwap := filepath.Join(fx.dir, "unsigned-swap")

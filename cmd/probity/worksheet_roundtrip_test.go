@@ -85,7 +85,7 @@ func (a smallAudit) label(t *testing.T, draw, name string, edit func(recs [][]st
 // record runs record and returns its exit code and streams.
 func (a smallAudit) record(t *testing.T, draw, labels string) (int, string, string) {
 	t.Helper()
-	return runProbity(t, "record", "--plan", a.plan, "--draw", draw, "--labels", labels, "--out", filepath.Join(a.dir, "rec-"+filepath.Base(labels)), "--date", "2026-12-01")
+	return runProbity(t, "record", "--plan", a.plan, "--draw", draw, "--labels", labels, "--out", filepath.Join(a.dir, "rec-"+filepath.Base(labels)))
 }
 
 // TestShownColumnsNamedLikeTheWorksheets (issue 16, item 2): a log column

@@ -5,7 +5,10 @@
 // new.
 package record
 
-import "probity/plan"
+import (
+	"probity/plan"
+	"probity/plan/chrono"
+)
 
 // Format is the version of the record.json layout written by this code.
 // Format 2 added the content-covering record id, the revision, the
@@ -42,8 +45,13 @@ type Record struct {
 	// on an invented scenario (sealed with a published demonstration
 	// key); every PDF page says so.
 	Demonstration bool `json:"demonstration"`
-	// Date is the record's date, YYYY-MM-DD (from --date or the clock).
+	// Date is the record's date, YYYY-MM-DD: the day it was issued (UTC).
 	Date string `json:"date"`
+	// Chronology states when the plan was made, the sample drawn and the
+	// record issued, each with where its time came from (the system
+	// clock, or the operator who supplied it); they are in that order.
+	// Nil in records made before records were timed.
+	Chronology *chrono.Chronology `json:"chronology,omitempty"`
 	// Period is the audited period label ("" when none).
 	Period        string `json:"period"`
 	System        string `json:"system"`
@@ -53,9 +61,14 @@ type Record struct {
 	Use  string   `json:"use"`
 	Plan PlanInfo `json:"plan"`
 	// Fingerprints are SHA-256 digests of the inputs.
-	Fingerprints Fingerprints   `json:"fingerprints"`
-	Candidates   []Candidate    `json:"candidates"`
-	Strata       []StratumCount `json:"strata"`
+	Fingerprints Fingerprints `json:"fingerprints"`
+	// Completeness is what the log's time column said about the period
+	// when the sample was drawn (the manifest's): the first and last time
+	// and the days without a row. Nil, and absent, when the draw read no
+	// time column.
+	Completeness *chrono.Completeness `json:"completeness,omitempty"`
+	Candidates   []Candidate          `json:"candidates"`
+	Strata       []StratumCount       `json:"strata"`
 	// OC is the plan's operating-characteristic curve, as plotted.
 	OC         []OCPoint  `json:"oc"`
 	Deviations Deviations `json:"deviations"`
@@ -120,6 +133,9 @@ const (
 	// judged without a measure of label error (no double labeling, or no
 	// doubled item labeled by both).
 	CaveatLabelErrorUnmeasured = "label-error-not-measured"
+	// CaveatIncompletePeriod: the log's time column shows days of the
+	// period without a row, or rows dated outside it (see Completeness).
+	CaveatIncompletePeriod = "incomplete-period"
 )
 
 // Caveat is a finding that changes what a verdict means.

@@ -30,27 +30,29 @@ func newBounds(r *plan.SequentialRule) (*bounds, error) {
 	}
 	T := r.MaxSampleSize
 	if T < 1 {
-		return nil, fmt.Errorf("%w: max_sample_size %d is below 1", ErrDomain, T)
+		return nil, badBound("max_sample_size", "max_sample_size %d is below 1", T)
 	}
-	if len(r.AcceptIfErrorsAtMost) != T || len(r.RejectIfErrorsAtLeast) != T {
-		return nil, fmt.Errorf("%w: accept_if_errors_at_most has %d entries and reject_if_errors_at_least %d; both need max_sample_size = %d",
-			ErrDomain, len(r.AcceptIfErrorsAtMost), len(r.RejectIfErrorsAtLeast), T)
+	if len(r.AcceptIfErrorsAtMost) != T {
+		return nil, badBound(acceptKey, "accept_if_errors_at_most has %d entries; it needs max_sample_size = %d", len(r.AcceptIfErrorsAtMost), T)
+	}
+	if len(r.RejectIfErrorsAtLeast) != T {
+		return nil, badBound(rejectKey, "reject_if_errors_at_least has %d entries; it needs max_sample_size = %d", len(r.RejectIfErrorsAtLeast), T)
 	}
 	b := &bounds{T: T, acc: make([]int, T+1), rej: make([]int, T+1)}
 	b.acc[0], b.rej[0] = -1, never
 	for t := 1; t <= T; t++ {
 		a := r.AcceptIfErrorsAtMost[t-1]
 		if a < -1 || a > t {
-			return nil, fmt.Errorf("%w: accept_if_errors_at_most at t = %d is %d, outside [-1, %d]", ErrDomain, t, a, t)
+			return nil, badBound(at(acceptKey, t), "accept_if_errors_at_most at t = %d is %d, outside [-1, %d]", t, a, t)
 		}
 		rj := never
 		if p := r.RejectIfErrorsAtLeast[t-1]; p != nil {
 			rj = *p
 			if rj < 1 || rj > t {
-				return nil, fmt.Errorf("%w: reject_if_errors_at_least at t = %d is %d, outside [1, %d]", ErrDomain, t, rj, t)
+				return nil, badBound(at(rejectKey, t), "reject_if_errors_at_least at t = %d is %d, outside [1, %d]", t, rj, t)
 			}
 			if rj <= a {
-				return nil, fmt.Errorf("%w: at t = %d the reject boundary %d is not above the accept boundary %d", ErrDomain, t, rj, a)
+				return nil, badBound(at(rejectKey, t), "at t = %d the reject boundary %d is not above the accept boundary %d", t, rj, a)
 			}
 		}
 		b.acc[t], b.rej[t] = a, rj
@@ -58,10 +60,36 @@ func newBounds(r *plan.SequentialRule) (*bounds, error) {
 		b.rmax = max(b.rmax, min(rj, t+1))
 	}
 	if b.acc[T] < 0 || b.rej[T] != b.acc[T]+1 {
-		return nil, fmt.Errorf("%w: at t = max_sample_size = %d the boundaries must meet (reject = accept + 1), got accept %d and reject %s",
-			ErrDomain, T, b.acc[T], fmtBound(b.rej[T]))
+		return nil, badBound(at(acceptKey, T), "at t = max_sample_size = %d the boundaries must meet (reject = accept + 1), got accept %d and reject %s",
+			T, b.acc[T], fmtBound(b.rej[T]))
 	}
 	return b, nil
+}
+
+// The keys of the boundary arrays in the plan file's sequential section.
+const (
+	acceptKey = "accept_if_errors_at_most"
+	rejectKey = "reject_if_errors_at_least"
+)
+
+// at is the key of the boundary at t (1-based) in its array: "key[t−1]".
+func at(key string, t int) string { return fmt.Sprintf("%s[%d]", key, t-1) }
+
+// BoundError is a malformed sequential rule: Key is the key of the plan
+// file's sequential section at fault ("accept_if_errors_at_most[11]").
+// It wraps ErrDomain.
+type BoundError struct {
+	Key string
+	Msg string
+}
+
+func (e *BoundError) Error() string { return ErrDomain.Error() + ": " + e.Msg }
+
+// Unwrap returns ErrDomain.
+func (e *BoundError) Unwrap() error { return ErrDomain }
+
+func badBound(key, format string, args ...any) error {
+	return &BoundError{Key: key, Msg: fmt.Sprintf(format, args...)}
 }
 
 // rule converts bounds back to the plan file's form.

@@ -41,8 +41,14 @@ func TestApplyPlanFile(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	g, err := plan.Parse(data, "plan.yaml")
+	g, src, err := plan.Decode(data, "plan.yaml")
 	if err != nil {
+		t.Fatal(err)
+	}
+	if err := g.Check(src); err != nil {
+		t.Fatal(err)
+	}
+	if err := Check(g, src); err != nil {
 		t.Fatal(err)
 	}
 	if err := Validate(g.Sequential); err != nil {

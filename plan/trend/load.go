@@ -14,6 +14,7 @@ import (
 	"strings"
 	"time"
 
+	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/plan/inputfile"
 	"probity/plan/record"
@@ -232,6 +233,11 @@ func check(r *record.Record, name string, data []byte) error {
 			return bad("plan."+f.key, []any{"plan", f.key}, "empty")
 		}
 	}
+	if err := checkPlanRule(r.Plan, planText(data)); err != nil {
+		e, _ := inputerr.As(err)
+		return &inputerr.Error{Err: errors.Join(ErrNotRecord, plan.ErrPlanFile), File: name, Line: lineOf(data, []any{"plan", e.Field}), Field: "plan." + e.Field,
+			Msg: e.Msg, Hint: "the record's rule does not follow from its own inputs: the record was edited; chart the record.json written by 'probity record'"}
+	}
 	if len(r.Candidates) == 0 {
 		return bad("candidates", []any{"candidates"}, "empty")
 	}
@@ -266,6 +272,27 @@ func check(r *record.Record, name string, data []byte) error {
 		return bad("overall_verdict", []any{"overall_verdict"}, "%q is neither %s nor %s", r.OverallVerdict, record.Accept, record.Reject)
 	}
 	return nil
+}
+
+// checkPlanRule verifies the rule a record states against the inputs it
+// states (plan.CheckStatedRule): a record whose sample size, acceptance
+// number or risks were edited is not charted.
+func checkPlanRule(p record.PlanInfo, text func(string) string) error {
+	in := plan.Inputs{Ceiling: p.Ceiling, Confidence: p.Confidence, CandidateCount: p.CandidateCount, Anticipated: p.Anticipated,
+		Population: p.Population, Method: p.Method, Multiplicity: p.Multiplicity, Design: p.Design, Require: p.Require}
+	r := plan.Rule{Model: p.Model, SampleSize: p.SampleSize, AcceptanceNumber: p.AcceptanceNumber, PerCandidateRisk: p.PerCandidateRisk,
+		ConsumerRisk: p.ConsumerRisk, ProducerRisk: p.ProducerRisk}
+	return plan.CheckStatedRule(in, r, text)
+}
+
+// planText returns the text of a key of the record's plan section, as
+// the file writes it.
+func planText(data []byte) func(string) string {
+	var top struct {
+		Plan map[string]json.RawMessage `json:"plan"`
+	}
+	_ = json.Unmarshal(data, &top) // Decode has read it already
+	return func(key string) string { return string(top.Plan[key]) }
 }
 
 // decodeError turns an encoding/json error into an input error with a line.

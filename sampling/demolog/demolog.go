@@ -99,6 +99,15 @@ type Row struct {
 	Truth string
 }
 
+// InspectionDays: scans are inspected on days 1 to 30 of a month, so a
+// month of 31 days (the demo's October) has a day without rows, which the
+// draw records and the record states on page 1.
+const InspectionDays = 30
+
+// TimeColumn is the log column that dates each decision, which the demo's
+// plan declares.
+const TimeColumn = "inspected_on"
+
 // Header is the log's column list, in order.
 var Header = []string{"record_id", "inspected_on", "section", "weld_type", "scan_ref", "defect_score"}
 
@@ -157,7 +166,7 @@ func (s Scenario) Row(i int) Row {
 	id := s.RecordID(i)
 	return Row{
 		RecordID:    id,
-		InspectedOn: fmt.Sprintf("%s-%02d", s.Month, 1+r.IntN(30)),
+		InspectedOn: fmt.Sprintf("%s-%02d", s.Month, 1+r.IntN(InspectionDays)),
 		Section:     sec.Name,
 		WeldType:    weld,
 		ScanRef:     "scans/" + s.Month + "/" + id + ".ust",

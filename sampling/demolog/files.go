@@ -13,6 +13,36 @@ import (
 // artifact is a function of the scenario alone.
 var Clock = time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC)
 
+// PlanCreated is when the scenario's plan was made: before the first
+// audited month began.
+var PlanCreated = time.Date(2026, 9, 28, 14, 0, 0, 0, time.UTC)
+
+// Drawn is when the month's sample was drawn (the morning after the
+// month's log closed) and Issued when its record was issued: for the
+// latest month, once its labeling on the page — from Clock on, a label
+// every few seconds — is done, before its signers sign (from two hours
+// after Clock). The demo supplies these times to each command, so its
+// artifacts do not depend on the machine's clock; they are recorded as
+// supplied by the operator.
+func (s Scenario) Drawn() time.Time { return s.monthEnd().Add(7 * time.Hour) }
+
+// Issued: see Drawn.
+func (s Scenario) Issued() time.Time {
+	if t := s.monthEnd(); t.Equal(Clock.Truncate(24 * time.Hour)) {
+		return Clock.Add(105 * time.Minute)
+	}
+	return s.monthEnd().AddDate(0, 0, 3).Add(16 * time.Hour)
+}
+
+// monthEnd is 00:00 UTC on the first day after the month.
+func (s Scenario) monthEnd() time.Time {
+	t, err := time.Parse("2006-01", s.Month)
+	if err != nil {
+		return Clock
+	}
+	return t.AddDate(0, 1, 0)
+}
+
 // PlanSeed is the selection seed the demo's plan is made with.
 const PlanSeed = "5ca1ab1e0ddba11c0ffee0fdecade042"
 

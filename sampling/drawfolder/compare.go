@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"probity/plan/chrono"
 	"probity/plan/inputfile"
 )
 
@@ -63,6 +64,9 @@ func Compare(dir string, want *Content) (*Comparison, error) {
 	field("sample_size", got.SampleSize, w.SampleSize)
 	field("spares", got.Spares, w.Spares)
 	field("duplicates_dropped", got.DuplicatesDropped, w.DuplicatesDropped)
+	if a, b := completenessText(got.Completeness), completenessText(w.Completeness); a != b {
+		diff("manifest completeness: the folder has %s, the log gives %s", a, b)
+	}
 	if fmt.Sprint(got.Strata) != fmt.Sprint(w.Strata) {
 		diff("manifest strata: the folder has %s, the log and plan give %s", strataText(got.Strata), strataText(w.Strata))
 	}
@@ -85,6 +89,16 @@ func Compare(dir string, want *Content) (*Comparison, error) {
 		diff("%s is in the folder but the draw doubles no item", WorksheetSecondFile)
 	}
 	return rep, nil
+}
+
+// completenessText states a completeness for a comparison: its column,
+// rows, first and last time, days checked and empty days.
+func completenessText(c *chrono.Completeness) string {
+	if c == nil {
+		return "no time column"
+	}
+	return fmt.Sprintf("time column %s, %d rows from %s to %s, days %s to %s (%s), %d without rows %v, %d rows before and %d after",
+		c.TimeColumn, c.Rows, chrono.Format(c.First), chrono.Format(c.Last), c.From, c.To, c.RangeOf, c.EmptyDayCount, c.EmptyDays, c.RowsBefore, c.RowsAfter)
 }
 
 // SameLog reports whether read, a log just read, is the log a draw

@@ -6,6 +6,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
+
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/plan/inputfile"
 )
@@ -19,6 +21,9 @@ const ManifestFormat = 1
 type Manifest struct {
 	Format      int    `json:"format"`
 	ToolVersion string `json:"tool_version"`
+	// Drawn is when the sample was drawn (UTC, to the second) and where
+	// that time came from; nil in a folder drawn before draws were timed.
+	Drawn *chrono.Stamp `json:"drawn"`
 	// PlanFingerprint is the SHA-256 of the plan file's bytes.
 	PlanFingerprint string `json:"plan_fingerprint"`
 	// Seed is the plan's seed; Period and PeriodSeed are set for a
@@ -60,6 +65,10 @@ type Manifest struct {
 	// repeats): the lot a finite-population plan judges. For a periodic
 	// draw of a --population plan it is the period's lot size.
 	LotSize int64 `json:"lot_size"`
+	// Completeness is what the log's time column says about the period:
+	// the first and last time in scope and the days without a row (nil,
+	// and absent, when the draw read no time column).
+	Completeness *chrono.Completeness `json:"completeness,omitempty"`
 }
 
 // LogInfo describes the prediction log a draw read.

@@ -47,13 +47,17 @@ type Draw struct {
 }
 
 // DrawOf is the Draw of an opened folder: its worksheet and, when the
-// draw doubled items, its worksheet-second.csv.
+// draw doubled items, its worksheet-second.csv; no label may precede the
+// draw time its manifest records.
 func DrawOf(f *drawfolder.Folder, classes []string) (Draw, error) {
 	m := f.Manifest
 	d := Draw{
 		Manifest: drawfolder.SHA256Hex(f.ManifestBytes), Plan: m.PlanFingerprint, SelectionSeed: m.SelectionSeed,
 		Classes: classes, Show: m.ShowColumns,
 		Sheets: map[string][]drawfolder.WorksheetRow{drawfolder.WorksheetFile: f.Worksheet},
+	}
+	if m.Drawn != nil {
+		d.NotBefore = m.Drawn.Time
 	}
 	second := f.Path(drawfolder.WorksheetSecondFile)
 	if _, err := os.Lstat(second); err == nil {

@@ -7,9 +7,11 @@ package loggen
 import (
 	"bufio"
 	"compress/gzip"
+	"fmt"
 	"io"
 	"math/rand/v2"
 	"strconv"
+	"time"
 )
 
 // Config describes a generated log.
@@ -27,7 +29,16 @@ type Config struct {
 	IDPrefix string
 	// Shuffle writes the rows in a random order (ids stay the same set).
 	Shuffle bool
+	// Month, when set (YYYY-MM), adds a last column TimeColumn with an
+	// RFC 3339 time in that month (UTC) on every row; the other columns
+	// are the same as without it. A row whose day is in SkipDays moves to
+	// the next day not skipped, so those days have no row.
+	Month    string
+	SkipDays []int
 }
+
+// TimeColumn is the column Config.Month adds.
+const TimeColumn = "decided_at"
 
 // Regions and Channels are the two category columns; 4 × 3 = 12 strata.
 var (
@@ -56,8 +67,16 @@ func Write(w io.Writer, c Config) error {
 	case "jsonl":
 		sep = 0
 	}
+	times, err := newTimes(c)
+	if err != nil {
+		return err
+	}
 	if sep != 0 {
-		for i, col := range Columns {
+		cols := Columns
+		if times != nil {
+			cols = append(append([]string{}, Columns...), TimeColumn)
+		}
+		for i, col := range cols {
 			if i > 0 {
 				bw.WriteByte(sep)
 			}
@@ -105,6 +124,10 @@ func Write(w io.Writer, c Config) error {
 			line = append(line, b...)
 			line = append(line, `","text":"case `...)
 			line = strconv.AppendInt(line, int64(r.IntN(100000)), 10)
+			if times != nil {
+				line = append(line, `","`+TimeColumn+`":"`...)
+				line = times.append(line, r)
+			}
 			line = append(line, "\"}\n"...)
 		} else {
 			line = append(line, id...)
@@ -121,6 +144,10 @@ func Write(w io.Writer, c Config) error {
 			line = append(line, sep)
 			line = append(line, "note for case "...)
 			line = strconv.AppendInt(line, int64(r.IntN(100000)), 10)
+			if times != nil {
+				line = append(line, sep)
+				line = times.append(line, r)
+			}
 			line = append(line, '\n')
 		}
 		if _, err := bw.Write(line); err != nil {
@@ -134,6 +161,43 @@ func Write(w io.Writer, c Config) error {
 		return zw.Close()
 	}
 	return nil
+}
+
+// monthTimes draws a row's time in a month, skipping some days.
+type monthTimes struct {
+	start time.Time
+	days  int
+	skip  map[int]bool
+}
+
+func newTimes(c Config) (*monthTimes, error) {
+	if c.Month == "" {
+		return nil, nil
+	}
+	start, err := time.Parse("2006-01", c.Month)
+	if err != nil {
+		return nil, fmt.Errorf("month %q is not YYYY-MM", c.Month)
+	}
+	t := &monthTimes{start: start, days: int(start.AddDate(0, 1, 0).Sub(start).Hours() / 24), skip: map[int]bool{}}
+	for _, d := range c.SkipDays {
+		t.skip[d] = true
+	}
+	if len(t.skip) >= t.days {
+		return nil, fmt.Errorf("every day of %s is skipped", c.Month)
+	}
+	return t, nil
+}
+
+// append appends a time drawn from r (after the row's other values, so
+// they do not change).
+func (t *monthTimes) append(b []byte, r *rand.Rand) []byte {
+	sec := r.Int64N(int64(t.days) * 86400)
+	day := int(sec/86400) + 1
+	for t.skip[day] {
+		day = day%t.days + 1
+	}
+	at := t.start.Add(time.Duration(int64(day-1)*86400+sec%86400) * time.Second)
+	return at.AppendFormat(b, time.RFC3339)
 }
 
 // appendPadded appends v zero-padded to 10 digits.

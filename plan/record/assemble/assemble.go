@@ -22,8 +22,10 @@ import (
 
 	"probity/plan"
 	"probity/plan/agreement"
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/plan/inputfile"
+	"probity/plan/planfile"
 	"probity/plan/record"
 	"probity/plan/record/intake"
 	"probity/plan/verdict"
@@ -84,8 +86,10 @@ type Options struct {
 	Bound verdict.UnequalBound
 	// Use is the declared use (templates.Uses()).
 	Use string
-	// Date is the record's date, YYYY-MM-DD.
-	Date string
+	// Issued is when the record is issued: the system clock's time, or
+	// one the operator supplied. The record's date is its day (UTC), and
+	// it must not be before the draw (see chrono.Chronology).
+	Issued chrono.Stamp
 	// Signoff holds what the sign-off file gave, any roles; missing roles
 	// get a blank line, missing meanings the templates' default.
 	Signoff []record.Signoff
@@ -104,7 +108,7 @@ type Options struct {
 }
 
 // ErrInput is wrapped by errors about the assemble inputs themselves (an
-// unknown use, a malformed date).
+// unknown use, no issue time).
 var ErrInput = errors.New("invalid record input")
 
 // Record reads the files (Read) and builds the record from them
@@ -124,7 +128,7 @@ func Record(files Files, o Options) (*record.Record, error) {
 // adjudications; with a label trail, the worksheets derived from it
 // (readTrail). Errors are *inputerr.Error values naming the file.
 func Read(f Files) (*Inputs, error) {
-	p, fp, err := plan.LoadForJudging(f.Plan)
+	p, fp, err := planfile.LoadForJudging(f.Plan)
 	if err != nil {
 		return nil, err
 	}
@@ -238,8 +242,8 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 	if err := checkUse(o.Use); err != nil {
 		return nil, err
 	}
-	if _, err := time.Parse("2006-01-02", o.Date); err != nil {
-		return nil, inputerr.Errorf("%w: date %q is not a date in the form YYYY-MM-DD", ErrInput, o.Date)
+	if o.Issued.IsZero() {
+		return nil, inputerr.Errorf("%w: the record has no issue time", ErrInput)
 	}
 	revision, err := checkRevision(o.Revision, o.Supersedes)
 	if err != nil {
@@ -254,6 +258,10 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 	p := in.Plan
 	if p.IsSizingOnly() {
 		return nil, inputerr.Errorf("%w: the plan declares no candidates, so there is nothing to judge", ErrInput)
+	}
+	times, err := chronology(in, o.Issued)
+	if err != nil {
+		return nil, err
 	}
 	labels := in.Labels
 	var resolved *agreement.Result
@@ -273,7 +281,7 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 	}
 	rec := &record.Record{
 		Format: record.Format, ToolVersion: o.ToolVersion, Revision: revision, Supersedes: o.Supersedes,
-		Demonstration: o.Demonstration, Date: o.Date,
+		Demonstration: o.Demonstration, Date: times.Issued.Time.Format(time.DateOnly), Chronology: times,
 		Period: in.Folder.Manifest.Period, System: p.System, SystemVersion: p.SystemVersion, Use: o.Use,
 		Fingerprints: checked.Fingerprints, SigningKey: o.SigningKey,
 		Wording: record.Wording{Digest: set.Fingerprint(), Replaced: set.Overridden()},
@@ -327,12 +335,55 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 		return nil, err
 	}
 	rec.Caveats = caveats(rec)
+	if rec.Completeness = in.Folder.Manifest.Completeness; rec.Completeness != nil {
+		if cv, ok := completenessCaveat(rec.Completeness); ok {
+			rec.Caveats = append(rec.Caveats, cv)
+		}
+	}
 	rec.Normalize()
 	if rec.RecordID, err = record.ID(rec); err != nil {
 		return nil, err
 	}
 	return rec, nil
 }
+
+// chronology is the record's time line: the plan's creation time (from
+// the plan file), the draw time (from the manifest) and the issue time,
+// refused (an input error naming the three times) unless in that order.
+func chronology(in *Inputs, issued chrono.Stamp) (*chrono.Chronology, error) {
+	c := &chrono.Chronology{PlanCreated: chrono.Stamp{Time: chrono.Second(in.Plan.Created), Source: in.Plan.CreatedFrom}, Issued: issued}
+	if d := in.Folder.Manifest.Drawn; d != nil {
+		c.Drawn = chrono.Stamp{Time: chrono.Second(d.Time), Source: d.Source}
+	}
+	if in.Trail != nil {
+		if s := in.Trail.Summary(); s.Events > 0 {
+			c.Labeled = &chrono.Span{First: chrono.Second(s.First), Last: chrono.Second(s.Last)}
+		}
+	}
+	err := c.Check()
+	var oe *chrono.OrderError
+	if !errors.As(err, &oe) {
+		return c, err
+	}
+	e := &inputerr.Error{Msg: err.Error(), Err: errors.Join(ErrChronology, err),
+		Hint: "a record is issued after its sample was drawn, and the sample drawn after its plan was made: check the times given, and that the plan and the draw folder are this audit's"}
+	switch oe.Step {
+	case "issued", "labeled last":
+	case "labeled":
+		e.Hint = "the label trail records labels given before the sample was drawn: it is not this draw's trail, or the clocks disagree"
+	default:
+		e.File, e.Field = in.Folder.Path(drawfolder.ManifestFile), "drawn"
+		if c.Drawn.IsZero() {
+			e.Hint = "draw the sample again with this version of probity: its manifest records when the sample was drawn"
+		}
+	}
+	return nil, e
+}
+
+// ErrChronology is wrapped by the refusal of a record whose times are out
+// of order (plan created, sample drawn, record issued), so the command
+// can name its option in the hint.
+var ErrChronology = errors.New("chronology out of order")
 
 // trailSummary is what the record says about the label trail.
 func trailSummary(s labeltrail.Summary) *record.LabelTrail {

@@ -6,9 +6,12 @@ import (
 	"io/fs"
 	"path/filepath"
 	"strings"
+	"time"
 
+	"probity/plan/chrono"
 	"probity/plan/inputerr"
 	"probity/plan/inputfile"
+	"probity/plan/planfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
 	"probity/plan/verdict"
@@ -61,7 +64,9 @@ func checkFingerprints(rep *Report, in Input, rec *record.Record) error {
 		}
 	}
 	if f.Plan != "" {
-		h, err := fileHash(f.Plan)
+		// the one loader: an edited plan is bad input, refused before
+		// anything is compared
+		_, h, err := planfile.Load(f.Plan)
 		if err != nil {
 			return err
 		}
@@ -145,7 +150,7 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	files := in.Files
 	o := assemble.Options{
 		AllowIncomplete: rec.Deviations.AllowIncomplete, Bound: verdict.UnequalBoundOf(rec.Method.Bound),
-		Use: rec.Use, Date: rec.Date, Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
+		Use: rec.Use, Issued: issued(rec), Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
 		Revision: rec.Revision, Supersedes: rec.Supersedes, Demonstration: rec.Demonstration, Templates: in.Templates,
 	}
 	if rec.Fingerprints.Trail == "" {
@@ -188,6 +193,17 @@ func recompute(rep *Report, in Input, rec *record.Record) error {
 	}
 	rep.add(CheckJudgement, Failed, "%s differs from the judgement recomputed from the inputs: %s", record.JSONFile, strings.Join(listed, "; "))
 	return nil
+}
+
+// issued is the issue time a record states: its chronology's, or, for a
+// record made before records were timed, the start of its date (UTC) with
+// no source.
+func issued(rec *record.Record) chrono.Stamp {
+	if rec.Chronology != nil {
+		return rec.Chronology.Issued
+	}
+	t, _ := time.Parse(time.DateOnly, rec.Date)
+	return chrono.Stamp{Time: t}
 }
 
 // messageOf is an input error's message without its file, line and

@@ -6,8 +6,8 @@ import (
 	"path/filepath"
 	"strings"
 
-	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/planfile"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 )
@@ -15,7 +15,7 @@ import (
 // redraw draws the sample again from the log, with the plan's seed and the
 // options the manifest records, and compares it with the draw folder.
 func redraw(rep *Report, in Input) error {
-	p, planFP, err := plan.Load(in.Files.Plan)
+	p, planFP, err := planfile.Load(in.Files.Plan)
 	if err != nil {
 		return err
 	}

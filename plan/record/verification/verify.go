@@ -58,6 +58,7 @@ const (
 	CheckFingerprint    = "fingerprint"    // an input's SHA-256 against the record's
 	CheckJudgement      = "judgement"      // the record recomputed from its inputs
 	CheckSample         = "sample"         // the sample drawn again from the log
+	CheckChronology     = "chronology"     // plan created ≤ sample drawn ≤ record issued
 )
 
 // Check is the outcome of one check.
@@ -216,6 +217,7 @@ func Verify(in Input) (*Report, error) {
 	if pdf != nil {
 		checkRendering(rep, in, rec, a, pdf)
 	}
+	checkChronology(rep, jsonPath, rec)
 	a.summarise(rep, in.Names, rec)
 	if err := checkInputs(rep, in, rec); err != nil {
 		return nil, err
@@ -258,4 +260,30 @@ func short12(h string) string {
 		return h[:12]
 	}
 	return h
+}
+
+// checkChronology checks the time line the record states: every time
+// stated, the plan created no later than the sample was drawn, the sample
+// drawn no later than the record was issued, and the record's date the
+// day it was issued. (With the plan and the draw folder given, the
+// recomputation also checks the first two times against them.)
+func checkChronology(rep *Report, jsonPath string, rec *record.Record) {
+	c := rec.Chronology
+	if c == nil {
+		rep.add(CheckChronology, Failed, "%s states no chronology (when the plan was made, the sample drawn and the record issued)", jsonPath)
+		return
+	}
+	if err := c.Check(); err != nil {
+		rep.add(CheckChronology, Failed, "%s: %v", jsonPath, err)
+		return
+	}
+	if d := c.Issued.Time.Format(time.DateOnly); d != rec.Date {
+		rep.add(CheckChronology, Failed, "%s: the date %s is not the day the record was issued (%s)", jsonPath, rec.Date, c.Issued)
+		return
+	}
+	labeled := ""
+	if c.Labeled != nil {
+		labeled = ", labeled " + c.Labeled.String() + " (label trail)"
+	}
+	rep.add(CheckChronology, OK, "chronology in order: plan created %s, sample drawn %s%s, record issued %s", c.PlanCreated, c.Drawn, labeled, c.Issued)
 }
