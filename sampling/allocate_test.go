@@ -4,6 +4,8 @@ import (
 	"errors"
 	"math"
 	"testing"
+
+	"probity/plan/inputerr"
 )
 
 func sizes(a []StratumAllocation) []int {
@@ -180,6 +182,14 @@ func FuzzAllocate(f *testing.F) {
 		opts := AllocOptions{Rule: []string{Proportional, Neyman, Equal}[int(rule)%3], MinPerStratum: int(minK % 12), Spare: int(spare % 9), Anticipated: ant}
 		n := int(n16%2000) + 1
 		got, err := Allocate(strata, n, opts)
+		if opts.Spare > n {
+			// More spares per stratum than the sample size: refused first.
+			var in *inputerr.Error
+			if !errors.As(err, &in) || in.Field != "spare" {
+				t.Fatalf("spare %d > n %d: error %v, want the spare refused", opts.Spare, n, err)
+			}
+			return
+		}
 		if err != nil {
 			if int64(n) > total && !errors.Is(err, ErrSampleTooLarge) {
 				t.Fatalf("n %d > total %d: %v", n, total, err)
