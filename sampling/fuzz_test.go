@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strings"
 	"testing"
+	"unicode/utf8"
 )
 
 // FuzzScan feeds arbitrary bytes to the log reader: it must never panic,
@@ -112,7 +113,8 @@ func FuzzScanQuoteFreeMatchesReference(f *testing.F) {
 				continue
 			}
 			f := strings.Split(l, ",")
-			if len(f) != len(header) || f[idCol] == "" {
+			// ids and stratum values are bytes that must be valid UTF-8
+			if len(f) != len(header) || f[idCol] == "" || !utf8.ValidString(f[idCol]) || !utf8.ValidString(f[gCol]) {
 				badLine = i + 2
 				break
 			}
