@@ -80,6 +80,9 @@ func FuzzScanQuoteFreeMatchesReference(f *testing.F) {
 			return
 		}
 		lines := strings.Split(string(data), "\n")
+		if strings.Contains(strings.TrimSuffix(lines[0], "\r"), "\r") {
+			return // carriage returns alone as line ends have their own tests (layout_test.go)
+		}
 		header := strings.Split(strings.TrimSuffix(lines[0], "\r"), ",")
 		idCol, gCol := -1, -1
 		for i, h := range header {
