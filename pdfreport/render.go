@@ -189,10 +189,15 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 	pdf.SetCreator("probity "+c.rec.ToolVersion, true)
 	pdf.SetTitle(printable("Acceptance record "+c.rec.RecordID+" – "+systemName(c.rec)), true)
 	pdf.SetSubject("Statistical acceptance of a classifier's error rate", true)
-	pdf.AddUTF8FontFromBytes("sans", "", liberationsansregular.TTF)
-	pdf.AddUTF8FontFromBytes("sans", "B", liberationsansbold.TTF)
-	pdf.AddUTF8FontFromBytes("sans", "I", liberationsansitalic.TTF)
-	pdf.AddUTF8FontFromBytes("mono", "", liberationmonoregular.TTF)
+	// Each document gets its own copy of the font files: gofpdf pads the
+	// font's tables in place while it embeds them, so documents made at
+	// the same time would otherwise write to one shared array (a data
+	// race under go test -race, though the padding bytes it writes are
+	// the zeros already there).
+	pdf.AddUTF8FontFromBytes("sans", "", bytes.Clone(liberationsansregular.TTF))
+	pdf.AddUTF8FontFromBytes("sans", "B", bytes.Clone(liberationsansbold.TTF))
+	pdf.AddUTF8FontFromBytes("sans", "I", bytes.Clone(liberationsansitalic.TTF))
+	pdf.AddUTF8FontFromBytes("mono", "", bytes.Clone(liberationmonoregular.TTF))
 	pdf.SetMargins(marginX, marginTop, marginX)
 	pdf.SetAutoPageBreak(false, marginBottom)
 	pdf.SetLineWidth(0.2)

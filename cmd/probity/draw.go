@@ -369,7 +369,7 @@ func runDraw(d deps, o *drawOptions) error {
 	days, _ := chrono.ParseDayRange(o.days)
 	in := sampling.DrawInput{
 		TimeColumn: timeColumn, Days: days,
-		Plan: p, PlanFingerprint: fp, LogPath: o.logPath, Format: o.format, Period: o.period,
+		Plan: p, PlanFingerprint: fp, LogPath: d.given(o.logPath), Format: o.format, Period: o.period,
 		IDColumn: o.id, StrataColumns: o.strata, Bands: o.parsedBands, Where: o.parsedWhere, Show: o.show,
 		Alloc:  o.allocOptions(),
 		Double: o.double, Dedupe: o.dedupe == "first", MaxLine: o.parsedMaxLine, ToolVersion: d.version,

@@ -56,6 +56,8 @@ func loadCHLog(t *testing.T, c *chcluster.Cluster, rows int) {
 // draw from an export of the table, compare, and check the folder with
 // draw --check against the export.
 func TestDrawClickHouse(t *testing.T) {
+	// Not in parallel with the other tests: each ClickHouse test starts a
+	// two-shard cluster, and two at once would compete for ports and memory.
 	c := chcluster.Start(t)
 	loadCHLog(t, c, 30000)
 	dir := t.TempDir()
@@ -171,6 +173,7 @@ func TestDrawClickHouse(t *testing.T) {
 // TestDrawClickHouseLongQuery checks that a selection query longer than
 // ClickHouse parses by default comes with the client flag to run it.
 func TestDrawClickHouseLongQuery(t *testing.T) {
+	t.Parallel()
 	p, fp, err := loadDrawPlan(sqlPlan)
 	if err != nil {
 		t.Fatal(err)

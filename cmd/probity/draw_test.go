@@ -23,11 +23,8 @@ const drawPlan = "../../testdata/draw/plan.yaml"
 
 func runDrawCmd(t *testing.T, stdin []byte, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{stdin: bytes.NewReader(stdin), stdout: &out, stderr: &errb, now: func() time.Time { return time.Date(2026, 12, 1, 7, 15, 0, 0, time.UTC) },
-		random: strings.NewReader(strings.Repeat("x", 64)), version: "test"}
-	code := run(append([]string{"draw"}, args...), d)
-	return code, out.String(), errb.String()
+	return runTest(t, append([]string{"draw"}, args...), withStdin(bytes.NewReader(stdin)), withVersion("test"),
+		atTime(time.Date(2026, 12, 1, 7, 15, 0, 0, time.UTC)))
 }
 
 func writeGenLog(t *testing.T, dir, name string, c loggen.Config) string {
@@ -44,6 +41,7 @@ func writeGenLog(t *testing.T, dir, name string, c loggen.Config) string {
 }
 
 func TestDrawThenCheck(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 6000, Seed: 4})
 	out := filepath.Join(dir, "audit")
@@ -114,6 +112,7 @@ func TestDrawThenCheck(t *testing.T) {
 }
 
 func TestDrawStdinGzipPeriod(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	var b bytes.Buffer
 	loggen.Write(&b, loggen.Config{Rows: 3000, Seed: 6, Gzip: true})
@@ -141,6 +140,7 @@ func TestDrawStdinGzipPeriod(t *testing.T) {
 }
 
 func TestDrawBadInput(t *testing.T) {
+	t.Parallel()
 	var gz bytes.Buffer
 	loggen.Write(&gz, loggen.Config{Rows: 5000, Seed: 1, Gzip: true})
 	truncated := gz.Bytes()[:gz.Len()*2/3]
@@ -238,6 +238,7 @@ func TestDrawBadInput(t *testing.T) {
 }
 
 func TestDrawPopulationPlan(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	p, _, err := planfile.Load(drawPlan)
 	if err != nil {
@@ -273,15 +274,15 @@ func TestDrawPopulationPlan(t *testing.T) {
 }
 
 func TestDrawProgressBarOnlyOnTerminal(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	var gzb bytes.Buffer
 	zw := gzip.NewWriter(&gzb)
 	loggen.Write(zw, loggen.Config{Rows: 2000, Seed: 3})
 	zw.Close()
-	var errb, outb bytes.Buffer
 	tick := time.Date(2026, 12, 1, 7, 0, 0, 0, time.UTC)
-	d := deps{stdin: bytes.NewReader(gzb.Bytes()), stdout: &outb, stderr: &errb, version: "test", stderrIsTerminal: true,
-		now: func() time.Time { tick = tick.Add(time.Second); return tick }}
+	d, _, errb := newTestDeps(withStdin(bytes.NewReader(gzb.Bytes())), withVersion("test"), onTerminal(),
+		withClock(func() time.Time { tick = tick.Add(time.Second); return tick }))
 	// stdin has no known size: the bar appears once 64 MB are read, so
 	// not here; this checks the terminal path runs and leaves stderr clean.
 	code := run([]string{"draw", "--plan", drawPlan, "--log", "-", "--out", filepath.Join(dir, "o")}, d)
@@ -298,6 +299,7 @@ func TestDrawProgressBarOnlyOnTerminal(t *testing.T) {
 }
 
 func TestDrawNeymanAnticipated(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 4000, Seed: 12})
 	ant := filepath.Join(dir, "anticipated.yaml")

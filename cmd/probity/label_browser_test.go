@@ -9,7 +9,6 @@ import (
 	"image/color"
 	"image/png"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"strings"
 	"sync"
@@ -23,6 +22,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/chrono"
+	"probity/plan/testkit/needs"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/labeltrail"
@@ -180,13 +180,7 @@ func writeScan(t *testing.T, path string, seed int) {
 // a machine without one); as root it needs --no-sandbox.
 func newBrowser(t *testing.T, width, height int) (context.Context, context.CancelFunc) {
 	t.Helper()
-	path, err := exec.LookPath("chromium")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("Debian's chromium is required in CI: %v", err)
-		}
-		t.Skipf("chromium is not installed: %v", err)
-	}
+	path := needs.Program(t, "chromium")
 	// A fresh profile, removed at the end (the browser may still be
 	// writing to it as it exits, so not by t.TempDir).
 	profile, err := os.MkdirTemp("", "probity-chromium-")
@@ -361,7 +355,8 @@ func shoot(ctx context.Context, t *testing.T, path string) {
 // other item by its class key. The page loads nothing but the server's
 // own files and raises no error; screenshots at 1280×800 and at a narrow
 // width are kept. Then record on the trail gives the record of the
-// equivalent typed worksheet.
+// equivalent typed worksheet. It runs alone, not in parallel: a real
+// browser's waits should not compete with the other tests for the CPU.
 func TestLabelingInABrowser(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts a browser")

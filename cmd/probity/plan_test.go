@@ -16,29 +16,26 @@ import (
 	"probity/sampling/loggen"
 )
 
-// planCmdDeps is a fresh environment: buffers, a fixed clock and a fixed
-// random stream (bytes 0x00, 0x01, …).
-func planCmdDeps(stdout, stderr *bytes.Buffer) deps {
+// planRandom is the plan tests' random stream, bytes 0x00, 0x01, …, 0x3f
+// (the seed of a plan written without --seed).
+func planRandom() testOption {
 	random := make([]byte, 64)
 	for i := range random {
 		random[i] = byte(i)
 	}
-	return deps{
-		stdin: strings.NewReader(""), stdout: stdout, stderr: stderr,
-		now:     func() time.Time { return time.Date(2026, 11, 30, 9, 15, 42, 123456789, time.FixedZone("x", 3600)) },
-		random:  bytes.NewReader(random),
-		version: "0.1.0-test",
-	}
+	return withRandom(random)
 }
 
+// runPlanCmd runs probity plan with test deps: a clock with a zone and
+// nanoseconds (the plan's date must not depend on them) and planRandom.
 func runPlanCmd(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
-	var stdout, stderr bytes.Buffer
-	code := run(append([]string{"plan"}, args...), planCmdDeps(&stdout, &stderr))
-	return code, stdout.String(), stderr.String()
+	return runTest(t, append([]string{"plan"}, args...),
+		atTime(time.Date(2026, 11, 30, 9, 15, 42, 123456789, time.FixedZone("x", 3600))), planRandom())
 }
 
 func TestPlanIssueExample(t *testing.T) {
+	t.Parallel()
 	code, out, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01")
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
@@ -69,6 +66,7 @@ func TestPlanJSONWithoutEscapes(t *testing.T) {
 }
 
 func TestPlanJSON(t *testing.T) {
+	t.Parallel()
 	code, out, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--json")
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
@@ -108,6 +106,7 @@ func TestPlanJSON(t *testing.T) {
 }
 
 func TestPlanOutFile(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	path := filepath.Join(dir, "plan.yaml")
 	code, out, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01",
@@ -166,6 +165,7 @@ func TestPlanOutFile(t *testing.T) {
 // Bad input: one sentence naming the flag on stderr, exit 2, nothing on
 // stdout and no plan file (nor temporary file) left behind.
 func TestPlanBadInput(t *testing.T) {
+	t.Parallel()
 	for _, tc := range []struct {
 		args []string
 		want string
@@ -219,6 +219,7 @@ func TestPlanBadInput(t *testing.T) {
 }
 
 func TestPlanBudget(t *testing.T) {
+	t.Parallel()
 	code, out, errOut := runPlanCmd(t, "--budget", "500", "--confidence", "0.95", "--ceiling", "0.02")
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
@@ -243,6 +244,7 @@ func TestPlanBudget(t *testing.T) {
 }
 
 func TestPlanPopulationAndMethods(t *testing.T) {
+	t.Parallel()
 	code, out, _ := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--population", "20000")
 	if code != exitOK || !strings.Contains(out, "Label 1,199 decisions drawn at random from the batch of 20,000; accept the model if at most 16") ||
 		!strings.Contains(out, "a batch with 400 or more errors") {

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"strings"
 	"testing"
 	"time"
 
@@ -160,16 +159,11 @@ func writeFile(t *testing.T, path string, data []byte) {
 	}
 }
 
-// runProbity runs the command line through run() with fresh deps: a fixed
-// clock (2026-12-01) and a fixed random stream.
+// runProbity runs the command line through run() with fresh test deps
+// (newTestDeps: a fixed clock, 2026-12-01, and a fixed random stream).
 func runProbity(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb,
-		now:    func() time.Time { return time.Date(2026, 12, 1, 12, 0, 0, 0, time.UTC) },
-		random: bytes.NewReader(bytes.Repeat([]byte{0x5a}, 256)), version: "0.1.0-test"}
-	code := run(args, d)
-	return code, out.String(), errb.String()
+	return runTest(t, args)
 }
 
 // listDir returns the names in dir, or nil when it does not exist.

@@ -4,11 +4,13 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
-	"probity/plan/record"
-	"probity/sampling/drawfolder"
 	"regexp"
 	"strings"
 	"testing"
+
+	"probity/plan/record"
+	"probity/plan/testkit/needs"
+	"probity/sampling/drawfolder"
 )
 
 // flagSpelling matches a command-line flag ("--allow-incomplete") but not a
@@ -24,6 +26,7 @@ var flagSpelling = regexp.MustCompile(`(^|[^-\w])--[a-z][a-z-]*`)
 // and enforced labeler independence, a planned second labeling not done. The flags belong to the command line;
 // the signed artifacts speak of what was decided.
 func TestRecordArtifactsNameNoFlag(t *testing.T) {
+	t.Parallel()
 	type run struct {
 		name string
 		args []string
@@ -90,11 +93,7 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 		run{"second labeling planned, not done", with(), accepted},
 	)
 
-	_, pdfErr := exec.LookPath("pdftotext")
-	if pdfErr != nil && os.Getenv("CI") != "" {
-		t.Fatal("pdftotext (poppler-utils) is needed for this test in CI")
-	}
-	for i, r := range runs {
+	for _, r := range runs {
 		out := filepath.Join(t.TempDir(), "rec")
 		code, stdout, stderr := runProbity(t, append(r.args, "--out", out)...)
 		if !containsInt(r.exit, code) {
@@ -108,19 +107,15 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 		if m := flagSpelling.FindString(string(js)); m != "" {
 			t.Errorf("%s: record.json names the flag %q:\n%s", r.name, m[strings.Index(m, "--"):], js)
 		}
-		if pdfErr != nil {
-			if i == 0 {
-				t.Log("pdftotext not installed: record.pdf not checked")
+		t.Run(r.name+"/record.pdf", func(t *testing.T) {
+			txt, err := exec.Command(needs.Program(t, "pdftotext"), "-layout", filepath.Join(out, record.PDFFile), "-").Output()
+			if err != nil {
+				t.Fatal(err)
 			}
-			continue
-		}
-		txt, err := exec.Command("pdftotext", "-layout", filepath.Join(out, record.PDFFile), "-").Output()
-		if err != nil {
-			t.Fatal(err)
-		}
-		if m := flagSpelling.FindString(string(txt)); m != "" {
-			t.Errorf("%s: record.pdf names the flag %q", r.name, m[strings.Index(m, "--"):])
-		}
+			if m := flagSpelling.FindString(string(txt)); m != "" {
+				t.Errorf("record.pdf names the flag %q", m[strings.Index(m, "--"):])
+			}
+		})
 	}
 }
 

@@ -26,6 +26,7 @@ func readRecord(t *testing.T, dir string) *record.Record {
 }
 
 func TestRecordAcceptedExitsZero(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
@@ -75,6 +76,7 @@ func listDirAll(t *testing.T, dir string) string {
 }
 
 func TestRecordRejectedExitsOneAndStillWrites(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
@@ -92,6 +94,7 @@ func TestRecordRejectedExitsOneAndStillWrites(t *testing.T) {
 }
 
 func TestRecordIsDeterministic(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	var first [2][]byte
@@ -112,6 +115,7 @@ func TestRecordIsDeterministic(t *testing.T) {
 // TestRecordBadInputLeavesNothing: each bad input exits 2 with a one-line
 // message naming the file and what, and no --out folder is left behind.
 func TestRecordBadInputLeavesNothing(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	good := fx.labels(t, "labels.csv", nil)
 	other := newRecFixture(t, false, 0)
@@ -179,6 +183,7 @@ func writeTemp(t *testing.T, dir, name, text string) string {
 }
 
 func TestRecordRefusesNonEmptyOut(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
@@ -201,6 +206,7 @@ func TestRecordRefusesNonEmptyOut(t *testing.T) {
 }
 
 func TestRecordAllowIncompleteCountsErrors(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "partial.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[1].Label = ""; return r })
 	out := filepath.Join(fx.dir, "rec")
@@ -219,6 +225,7 @@ func TestRecordAllowIncompleteCountsErrors(t *testing.T) {
 // sources and counted items; --bound, once the choice of a bound for
 // unequal weights, is refused with a sentence saying why.
 func TestRecordUnequalWeights(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 20)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
@@ -247,6 +254,7 @@ func TestRecordUnequalWeights(t *testing.T) {
 }
 
 func TestRecordJSONPrintsTheRecord(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
