@@ -16,11 +16,11 @@ import (
 // or the other: a path flag left out would be read from the process's
 // folder instead of deps.dir (the demo's steps).
 var notPathFlags = map[string][]string{
-	"plan": {"anticipated", "budget", "candidate", "candidates", "ceiling", "classes", "confidence", "date", "design", "method",
+	"plan": {"allocation", "anticipated", "budget", "candidate", "candidates", "ceiling", "classes", "confidence", "date", "design", "method",
 		"multiplicity", "negative", "population", "positive", "producer-risk", "require", "seed", "system", "system-version",
-		"thresholds", "time-column"},
+		"thresholds", "time-column", "rounding", "stratum-anticipated", "stratum-sizes"},
 	"draw": {"allocation", "band", "date", "days", "dedupe", "format", "id", "period", "show", "max-line", "sql", "strata",
-		"table", "time-column", "where"},
+		"table", "time-column", "where", "rounding"},
 	"record": {"bound", "date", "paper", "use", "supersedes"},
 	"sign":   {"role", "name"},
 	"verify": {"max-line"},
