@@ -60,6 +60,32 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 	if p.Population > 0 {
 		f.Population = numfmt.Count(p.Population)
 	}
+	if r := rec.Method.Rule; r != nil && r.Name == record.RuleStratifiedCount {
+		f.CountRule, f.CountedSize, f.CountAcceptance, f.Thinned = true, r.CountedSize, r.AcceptanceNumber, r.Thinned
+		// the decisions judged (rounded-up shares can exceed the plan's n)
+		judged := 0
+		for _, s := range r.Strata {
+			judged += s.Judged
+		}
+		f.SampleSize = judged
+		for _, s := range r.Strata {
+			if s.Unknown {
+				f.UnknownStrata++
+			}
+		}
+		f.ConsumerRisk, f.CountRiskBound = "", numfmt.ChanceUp(r.ConsumerRiskBound)
+		if r.ProducerRisk != nil {
+			f.ProducerRisk, f.AnticipatedFrom = numfmt.Chance(*r.ProducerRisk), r.AnticipatedFrom
+		}
+	}
+	for _, c := range rec.Candidates {
+		if c.BoundConfidence > 0 && c.BoundConfidence != boundConfidence(rec) {
+			f.StepLevels = true
+		}
+	}
+	if f.StepLevels {
+		f.BoundConfidence = numfmt.Confidence(1 - p.PerCandidateRisk) // the first step's
+	}
 	return f
 }
 

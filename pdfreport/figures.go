@@ -1,10 +1,22 @@
 package pdfreport
 
 import (
+	"strings"
+
 	"github.com/jung-kurt/gofpdf"
 
 	"probity/plan"
+	"probity/plan/numfmt"
+	"probity/plan/record"
 )
+
+// verdictWord is a verdict for running text ("no verdict" when empty).
+func verdictWord(v string) string {
+	if v == "" {
+		return "no verdict"
+	}
+	return v
+}
 
 // ocSection embeds the OC figure with its caption, kept on one page.
 func (d *doc) ocSection(c *content) {
@@ -22,11 +34,23 @@ func (d *doc) ocSection(c *content) {
 		"per-candidate rule (" + rule + "). " +
 		"At the ceiling (red dashed line) its height is the consumer's risk, the chance of accepting a candidate " +
 		"that is exactly at the ceiling."
+	if r := c.rec.Method.Rule; r != nil && r.Name == record.RuleStratifiedCount {
+		caption = "The curve gives, for each true error rate, the probability that a candidate is accepted by the " +
+			"stratified count rule applied to this draw (at most " + itoa(r.AcceptanceNumber) + " errors among the " +
+			itoa(r.CountedSize) + " counted items) when every stratum has that error rate. Errors spread otherwise " +
+			"change the curve; at the ceiling the red dot bounds the chance of acceptance for every spread (the consumer's risk)."
+	}
 	if p.Anticipated != nil {
 		caption += " The green dotted line marks the anticipated error; one minus the curve's height there (green dot) is the producer's risk."
 	}
-	if len(c.rec.Candidates) > 0 {
-		caption += " Triangles on the axis mark each candidate's observed estimate."
+	if marks := estimateMarks(c.rec); len(marks) > 0 {
+		var keys []string
+		for _, m := range marks {
+			cand := c.rec.Candidates[m.number-1]
+			keys = append(keys, itoa(m.number)+" = "+cand.Name+" ("+numfmt.Rate(cand.Estimate)+", "+verdictWord(cand.Verdict)+")")
+		}
+		caption += " The numbered triangles in the strip under the axis are the candidates' observed estimates (errors / " +
+			"labeled), observations on the same scale, not true error rates: " + strings.Join(keys, "; ") + "."
 	}
 	w := d.contentW()
 	h := w * ocHeightMM / ocWidthMM

@@ -49,6 +49,9 @@ type doc struct {
 	// pass itself).
 	totalPages int
 	section    int
+	// placed records where each table row was drawn (for the tests).
+	placed []placement
+	tables int
 }
 
 // contentW is the width between the margins.
@@ -126,14 +129,35 @@ func (d *doc) wrap(text string, w float64) []string {
 	return lines
 }
 
-// breakAt returns where to break a word too long for a line: after the
-// last '-', '_' or '/' that fits, else after as many characters as fit.
+// breakAt returns where to break a word too long for a line: before the
+// last relation operator that fits (">=", "≤", "=", …), so an identifier
+// such as "defect_score>=0.35" breaks only between its name and its
+// condition; else after the last '-', '_' or '/' that fits; else after as
+// many characters as fit.
 func (d *doc) breakAt(word string, w float64) int {
 	cut := d.fit(word, w)
+	if i := lastOperator(word[:cut]); i > 0 {
+		return i
+	}
 	if i := strings.LastIndexAny(word[:cut], "-_/"); i > 0 && i+1 < cut {
 		return i + 1
 	}
 	return cut
+}
+
+// lastOperator is the byte offset of the last relation operator in s that
+// starts an operator run (so ">=" is found at '>', never at '='), or -1.
+func lastOperator(s string) int {
+	isOp := func(r rune) bool { return strings.ContainsRune("<>=!≤≥≠", r) }
+	last, prevOp := -1, false
+	for i, r := range s {
+		op := isOp(r)
+		if op && !prevOp {
+			last = i
+		}
+		prevOp = op
+	}
+	return last
 }
 
 // fit returns the byte length of the longest prefix of s (at least one

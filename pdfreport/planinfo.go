@@ -5,6 +5,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/numfmt"
+	"probity/plan/record"
 )
 
 // kv is one key/value row.
@@ -47,10 +48,20 @@ func (d *doc) planInfo(c *content) {
 	)
 	if p.Design != plan.DesignSequential {
 		use := " (accept when errors ≤ c)"
-		if f.Weighted {
+		if f.CountRule {
+			use = " (for a simple random sample; this draw is judged by the stratified count rule below)"
+		} else if f.Weighted {
 			use = " (for a self-weighting sample; this one is weighted, so the bound decides)"
 		}
 		rows = append(rows, kv("Acceptance number c", itoa(p.AcceptanceNumber)+use))
+	}
+	if r := c.rec.Method.Rule; r != nil && r.Name == record.RuleStratifiedCount {
+		rows = append(rows,
+			kv("Rule applied to this draw", "stratified count rule: accept when at most "+itoa(r.AcceptanceNumber)+" of the "+itoa(r.CountedSize)+" counted items are errors"),
+			kv("Its consumer's risk", "at most "+numfmt.ChanceUp(r.ConsumerRiskBound)+" for a candidate at the ceiling, wherever its errors sit"))
+		if r.ProducerRisk != nil {
+			rows = append(rows, kv("Its producer's risk", numfmt.Chance(*r.ProducerRisk)+" at "+r.AnticipatedFrom))
+		}
 	}
 	atCeiling := "P(accept | error = ceiling) = "
 	if p.Population > 0 {
@@ -75,6 +86,29 @@ func (d *doc) planInfo(c *content) {
 		rows = append(rows, kvMono("Selection seed", p.SelectionSeed))
 	}
 	d.drawTable(&table{title: "The plan", cols: []column{{w: 32}, {w: 68}}, rows: rows, keyFill: true, size: bodySize - 0.5})
+	if f := selectionFormula(c.rec); f != "" {
+		d.note(f)
+	}
+}
+
+// selectionFormula says how the draw computed the selection keys from the
+// seeds and the record ids, as package sampling does (sampling.Key and
+// sampling.PeriodSeed): for a periodic draw the selection seed is
+// sha256hex("<plan seed>:period:<period>"), else the plan seed itself;
+// each row's key is sha256hex("<selection seed>:<record id>").
+func selectionFormula(rec *record.Record) string {
+	p := rec.Plan
+	if p.Seed == "" && p.SelectionSeed == "" {
+		return ""
+	}
+	seed := "the plan seed itself"
+	if p.SelectionSeed != "" && p.SelectionSeed != p.Seed && rec.Period != "" {
+		seed = `the lowercase hex SHA-256 of the UTF-8 bytes "<plan seed>:period:` + rec.Period + `"`
+	}
+	return "How the sample was selected: the selection seed is " + seed + `. Each row of the log has the key ` +
+		`key = lowercase hex SHA-256 of the UTF-8 bytes "<selection seed>:<record id>"; in each stratum the n_h rows ` +
+		"with the smallest keys form the sample and the next ones, in key order, the spares. Anyone holding the log " +
+		"and the plan can recompute every key (for example with sha256sum) and so the whole selection."
 }
 
 // ruleName says which rule the plan uses and, for the exact test, under

@@ -34,6 +34,12 @@ func (d *doc) provenanceSection(c *content) {
 		kvMono("Worksheet", digest(fp.Worksheet)),
 		kvMono("Labels", digest(fp.Labels)),
 	}
+	if q := rec.LabelQuality; q != nil && q.SecondWorksheet != "" {
+		rows = append(rows, kvMono("Second worksheet", q.SecondWorksheet))
+	}
+	if q := rec.LabelQuality; q != nil && q.Adjudications != "" {
+		rows = append(rows, kvMono("Adjudication file", q.Adjudications))
+	}
 	if fp.Trail != "" {
 		rows = append(rows, kvMono("Label trail", fp.Trail))
 	}

@@ -174,6 +174,8 @@ func newContent(rec *record.Record, tpl *templates.Set) (*content, error) {
 type output struct {
 	bytes []byte
 	pages int
+	// placed is where each table row went.
+	placed []placement
 }
 
 // layout runs one pass.
@@ -187,10 +189,15 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 	pdf.SetCreator("probity "+c.rec.ToolVersion, true)
 	pdf.SetTitle(printable("Acceptance record "+c.rec.RecordID+" – "+systemName(c.rec)), true)
 	pdf.SetSubject("Statistical acceptance of a classifier's error rate", true)
-	pdf.AddUTF8FontFromBytes("sans", "", liberationsansregular.TTF)
-	pdf.AddUTF8FontFromBytes("sans", "B", liberationsansbold.TTF)
-	pdf.AddUTF8FontFromBytes("sans", "I", liberationsansitalic.TTF)
-	pdf.AddUTF8FontFromBytes("mono", "", liberationmonoregular.TTF)
+	// Each document gets its own copy of the font files: gofpdf pads the
+	// font's tables in place while it embeds them, so documents made at
+	// the same time would otherwise write to one shared array (a data
+	// race under go test -race, though the padding bytes it writes are
+	// the zeros already there).
+	pdf.AddUTF8FontFromBytes("sans", "", bytes.Clone(liberationsansregular.TTF))
+	pdf.AddUTF8FontFromBytes("sans", "B", bytes.Clone(liberationsansbold.TTF))
+	pdf.AddUTF8FontFromBytes("sans", "I", bytes.Clone(liberationsansitalic.TTF))
+	pdf.AddUTF8FontFromBytes("mono", "", bytes.Clone(liberationmonoregular.TTF))
 	pdf.SetMargins(marginX, marginTop, marginX)
 	pdf.SetAutoPageBreak(false, marginBottom)
 	pdf.SetLineWidth(0.2)
@@ -226,13 +233,13 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 	pages := pdf.PageNo()
 	if total == 0 {
 		// The counting pass needs the layout only, not the file.
-		return output{pages: pages}, nil
+		return output{pages: pages, placed: d.placed}, nil
 	}
 	var buf bytes.Buffer
 	if err := pdf.Output(&buf); err != nil {
 		return output{}, fmt.Errorf("writing the PDF: %w", err)
 	}
-	return output{bytes: buf.Bytes(), pages: pages}, nil
+	return output{bytes: buf.Bytes(), pages: pages, placed: d.placed}, nil
 }
 
 // pageHeader prints the running head on every page after the first.

@@ -3,39 +3,26 @@ package pdfreport
 import (
 	"bytes"
 	"errors"
-	"flag"
+	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 	"time"
 
 	"probity/plan"
 	"probity/plan/numfmt"
 	"probity/plan/record"
+	"probity/plan/testkit/golden"
+	"probity/plan/testkit/needs"
 	"probity/templates"
 )
 
-var update = flag.Bool("update", false, "rewrite the golden files in testdata/pdfreport")
-
 const goldenDir = "../testdata/pdfreport"
-
-// tool returns the path of a poppler-utils program, failing under CI and
-// skipping elsewhere when it is missing.
-func tool(t *testing.T, name string) string {
-	t.Helper()
-	path, err := exec.LookPath(name)
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s (poppler-utils) is required under CI: %v", name, err)
-		}
-		t.Skipf("%s (poppler-utils) not installed", name)
-	}
-	return path
-}
 
 func render(t *testing.T, rec *record.Record, opts Options) []byte {
 	t.Helper()
@@ -49,7 +36,7 @@ func render(t *testing.T, rec *record.Record, opts Options) []byte {
 // pdfText extracts the text of a PDF with pdftotext.
 func pdfText(t *testing.T, pdf []byte, args ...string) string {
 	t.Helper()
-	bin := tool(t, "pdftotext")
+	bin := needs.Program(t, "pdftotext")
 	in := filepath.Join(t.TempDir(), "r.pdf")
 	if err := os.WriteFile(in, pdf, 0o644); err != nil {
 		t.Fatal(err)
@@ -72,7 +59,7 @@ func flat(s string) string { return strings.TrimSpace(spaces.ReplaceAllString(s,
 // pageCount reads the page count with pdfinfo.
 func pageCount(t *testing.T, pdf []byte) int {
 	t.Helper()
-	bin := tool(t, "pdfinfo")
+	bin := needs.Program(t, "pdfinfo")
 	in := filepath.Join(t.TempDir(), "r.pdf")
 	if err := os.WriteFile(in, pdf, 0o644); err != nil {
 		t.Fatal(err)
@@ -96,12 +83,17 @@ func TestTextHasVerdictsBoundsAndCautions(t *testing.T) {
 			pdf := render(t, rec, Options{Paper: "a4"})
 			text := flat(pdfText(t, pdf))
 			layout := strings.Split(pdfText(t, pdf, "-layout"), "\n")
-			for _, c := range rec.Candidates {
-				// The summary row: name, bound, verdict and reason on one line.
+			for i, c := range rec.Candidates {
+				// The summary: the name on its own line, whole, and the
+				// bound, verdict and reason on the next line.
 				row := false
-				for _, l := range layout {
-					if strings.Contains(l, c.Name) && strings.Contains(l, numfmt.RateUp(c.UpperBound)) &&
-						strings.Contains(l, c.Verdict) && strings.Contains(l, c.Reason) {
+				for j, l := range layout[:len(layout)-2] {
+					next := layout[j+1]
+					if strings.TrimSpace(next) == "" {
+						next = layout[j+2]
+					}
+					if strings.Contains(l, "Candidate "+strconv.Itoa(i+1)+": "+c.Name) && strings.Contains(next, numfmt.RateUp(c.UpperBound)) &&
+						strings.Contains(next, c.Verdict) && strings.Contains(next, c.Reason) {
 						row = true
 					}
 				}
@@ -166,7 +158,7 @@ func TestEveryPageCarriesRecordIDAndPageNumber(t *testing.T) {
 }
 
 func TestPdftoppmRendersEveryPage(t *testing.T) {
-	bin := tool(t, "pdftoppm")
+	bin := needs.Program(t, "pdftoppm")
 	for _, tc := range []struct {
 		name string
 		rec  *record.Record
@@ -243,29 +235,6 @@ func TestSameInputsGiveSameBytes(t *testing.T) {
 	}
 }
 
-// golden compares got with a golden file, rewriting it under -update.
-func golden(t *testing.T, name string, got []byte) {
-	t.Helper()
-	path := filepath.Join(goldenDir, name)
-	if *update {
-		if err := os.MkdirAll(goldenDir, 0o755); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(path, got, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return
-	}
-	want, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatalf("%v (run go test ./pdfreport -update to create it)", err)
-	}
-	if !bytes.Equal(got, want) {
-		t.Errorf("%s differs from the golden file (%d bytes, golden %d); inspect it and rerun with -update if the change is intended",
-			name, len(got), len(want))
-	}
-}
-
 func TestGoldenPDFAndText(t *testing.T) {
 	for _, tc := range []struct {
 		name string
@@ -277,8 +246,8 @@ func TestGoldenPDFAndText(t *testing.T) {
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			pdf := render(t, fixtureRecord(tc.use), tc.opts)
-			golden(t, tc.name+".txt", []byte(pdfText(t, pdf, "-layout")))
-			golden(t, tc.name+".pdf", pdf)
+			golden.CompareString(t, filepath.Join(goldenDir, tc.name+".txt"), pdfText(t, pdf, "-layout"))
+			golden.Compare(t, filepath.Join(goldenDir, tc.name+".pdf"), pdf)
 		})
 	}
 }
@@ -473,7 +442,7 @@ func TestNoHeadingEndsAPage(t *testing.T) {
 }
 
 func TestPaperAndMetadata(t *testing.T) {
-	bin := tool(t, "pdfinfo")
+	bin := needs.Program(t, "pdfinfo")
 	for _, tc := range []struct{ paper, want string }{{"a4", "(A4)"}, {"LETTER", "(letter)"}, {"", "(A4)"}} {
 		rec := fixtureRecord("general")
 		in := filepath.Join(t.TempDir(), "r.pdf")
@@ -492,6 +461,65 @@ func TestPaperAndMetadata(t *testing.T) {
 				t.Errorf("paper %q: pdfinfo lacks %q:\n%s", tc.paper, want, info)
 			}
 		}
+	}
+}
+
+// TestRenderConcurrently renders records from four goroutines at once (a
+// long one, one with a label-quality section, names in Icelandic, both
+// paper sizes): each gets the bytes of a render alone, and go test -race
+// finds no write to shared memory (gofpdf pads the embedded fonts' tables
+// in place, so each document needs its own copy of them).
+func TestRenderConcurrently(t *testing.T) {
+	record := func(i int) *record.Record {
+		var r *record.Record
+		switch i % 3 {
+		case 0:
+			r = fixtureRecord("medical")
+		case 1:
+			r = manyRecord()
+		default:
+			r = fixtureRecord("general")
+			r.LabelQuality = fixtureLabelQuality()
+		}
+		if len(r.Signoff) > 0 {
+			r.Signoff[0].Name = "Jörg Þórsson"
+		}
+		return r
+	}
+	paper := func(i int) Options { return Options{Paper: []string{"a4", "letter"}[i%2]} }
+	// Four goroutines render three records each, before any render alone.
+	type job struct{ rec, paper int }
+	got := map[job][]byte{}
+	var mu sync.Mutex
+	var wg sync.WaitGroup
+	errs := make(chan error, 12)
+	for g := 0; g < 4; g++ {
+		wg.Go(func() {
+			for i := 0; i < 3; i++ {
+				j := job{(g + i) % 3, i % 2}
+				pdf, err := Render(record(j.rec), paper(j.paper))
+				if err != nil {
+					errs <- err
+					continue
+				}
+				mu.Lock()
+				if prev, ok := got[j]; ok && !bytes.Equal(prev, pdf) {
+					errs <- fmt.Errorf("record %d on paper %d: two renders at the same time differ", j.rec, j.paper)
+				}
+				got[j] = pdf
+				mu.Unlock()
+			}
+		})
+	}
+	wg.Wait()
+	close(errs)
+	for j, pdf := range got {
+		if !bytes.Equal(pdf, render(t, record(j.rec), paper(j.paper))) {
+			t.Errorf("record %d on paper %d, rendered at the same time as others, differs from its render alone", j.rec, j.paper)
+		}
+	}
+	for err := range errs {
+		t.Error(err)
 	}
 }
 

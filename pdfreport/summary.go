@@ -113,8 +113,9 @@ func (d *doc) summary(c *content) {
 			stopped = true
 		}
 	}
+	// Each candidate's name has a row of its own across the table, so an
+	// identifier never breaks and the Reason column keeps its width.
 	cols := []column{
-		{head: "Candidate", w: 1},
 		{head: "Errors / labeled", fit: true, align: "R"},
 	}
 	if stopped {
@@ -136,9 +137,11 @@ func (d *doc) summary(c *content) {
 	}
 	cols = append(cols, column{head: "Verdict", fit: true, align: "C"}, column{head: "Reason", w: 1})
 	var rows [][]cell
-	for _, cand := range rec.Candidates {
+	var keep []bool
+	for i, cand := range rec.Candidates {
+		rows = append(rows, spanRow(cell{text: "Candidate " + itoa(i+1) + ": " + cand.Name, bold: true}))
+		keep = append(keep, true, false)
 		row := []cell{
-			{text: cand.Name, bold: true},
 			{text: itoa(cand.Errors) + " / " + itoa(cand.Labeled)},
 		}
 		if stopped {
@@ -164,7 +167,7 @@ func (d *doc) summary(c *content) {
 		row = append(row, verdictCell(cand.Verdict), cell{text: cand.Reason})
 		rows = append(rows, row)
 	}
-	d.drawTable(&table{title: "Decision summary", cols: cols, rows: rows, header: true})
+	d.drawTable(&table{title: "Decision summary", cols: cols, rows: rows, header: true, keep: keep})
 	d.note(precisionNote)
 	d.note(pValueNote(holm))
 }

@@ -23,6 +23,8 @@ type cell struct {
 	fill  *rgb // background; nil for the row's default
 	ink   *rgb // text colour; nil for the default
 	align string
+	// span stretches the row's only cell across every column.
+	span bool
 }
 
 // table is a table that breaks across pages with its header repeated.
@@ -42,6 +44,16 @@ type table struct {
 	compact bool
 	// x is the table's offset from the left margin in mm.
 	x float64
+	// keep[i] keeps row i on the same page as row i+1 (a candidate's
+	// name row and its figures); rows kept together form one block, and
+	// blocks are what the page breaks fall between.
+	keep []bool
+}
+
+// spanRow is a row of one cell across the whole table.
+func spanRow(c cell) []cell {
+	c.span = true
+	return []cell{c}
 }
 
 const cellPadX = 1.6
@@ -99,7 +111,7 @@ func (d *doc) widths(t *table) []float64 {
 			w = math.Max(w, d.pdf.GetStringWidth(word))
 		}
 		for _, row := range t.rows {
-			if i < len(row) {
+			if i < len(row) && !row[i].span {
 				d.cellFont(t, row[i], false)
 				w = math.Max(w, d.pdf.GetStringWidth(row[i].text))
 			}
@@ -149,6 +161,7 @@ func (d *doc) layoutRow(t *table, ws []float64, texts []cell, boldAll bool) ([][
 	lh := t.fontSize() * 0.46
 	lines := make([][]string, len(texts))
 	maxLines := 1
+	ws = rowWidths(ws, texts)
 	for i, c := range texts {
 		d.cellFont(t, c, boldAll)
 		lines[i] = d.wrap(c.text, ws[i]-2*cellPadX)
@@ -183,6 +196,7 @@ func (d *doc) drawRow(t *table, ws []float64, cells []cell, lines [][]string, h 
 	lh := t.fontSize() * 0.46
 	x0 := marginX + t.x
 	y := d.pdf.GetY()
+	ws = rowWidths(ws, cells)
 	x := x0
 	for i, c := range cells {
 		f := fill
@@ -201,7 +215,7 @@ func (d *doc) drawRow(t *table, ws []float64, cells []cell, lines [][]string, h 
 		}
 		d.textColour(ink)
 		align := c.align
-		if align == "" {
+		if align == "" && !c.span {
 			align = t.cols[i].align
 		}
 		if align == "" {
@@ -220,8 +234,68 @@ func (d *doc) drawRow(t *table, ws []float64, cells []cell, lines [][]string, h 
 	d.pdf.SetXY(x0, y+h)
 }
 
+// rowWidths is the column widths for one row: the whole table's width
+// for a spanning row, else ws.
+func rowWidths(ws []float64, cells []cell) []float64 {
+	if len(cells) == 1 && cells[0].span {
+		sum := 0.0
+		for _, w := range ws {
+			sum += w
+		}
+		return []float64{sum}
+	}
+	return ws
+}
+
+// blocks groups the table's rows into what a page break may not split:
+// each block is a run of rows joined by keep. It returns the first row
+// of each block and, last, len(t.rows).
+func (t *table) blocks() []int {
+	starts := []int{}
+	for i := range t.rows {
+		if i == 0 || i-1 >= len(t.keep) || !t.keep[i-1] {
+			starts = append(starts, i)
+		}
+	}
+	return append(starts, len(t.rows))
+}
+
+// leadHeight is the height the table needs on the page it starts on: its
+// header and its first two blocks, or the whole table when it has three
+// blocks or fewer, so that no block is left alone on either side of a
+// page break. A title kept with the table asks for this much below it.
+func (d *doc) leadHeight(t *table) float64 {
+	ws := d.widths(t)
+	h := 0.0
+	if t.header {
+		_, h = d.layoutRow(t, ws, t.headerCells(), true)
+	}
+	b := t.blocks()
+	nb := len(b) - 1
+	upto := len(t.rows)
+	if nb > 3 {
+		upto = b[2]
+	}
+	for _, row := range t.rows[:upto] {
+		_, rh := d.layoutRow(t, ws, row, false)
+		h += rh
+	}
+	return h
+}
+
+// placement is where one row of a table was drawn: the layout's own
+// record, read by the tests.
+type placement struct {
+	table string
+	seq   int // the table's number in the document, from 1
+	row   int
+	page  int
+}
+
 // drawTable lays the table out, starting a new page (with the header and
-// a "continued" line) whenever the next row does not fit.
+// a "continued" line) whenever the next block of rows does not fit. No
+// block is left alone on a page: the table starts with two blocks (all of
+// them when it has three or fewer) and the last two blocks go together.
 func (d *doc) drawTable(t *table) {
 	ws := d.widths(t)
 	var headLines [][]string
@@ -234,12 +308,28 @@ func (d *doc) drawTable(t *table) {
 			d.drawRow(t, ws, t.headerCells(), headLines, headH, headFill, true)
 		}
 	}
+	lines := make([][][]string, len(t.rows))
+	hs := make([]float64, len(t.rows))
 	for i, row := range t.rows {
-		lines, h := d.layoutRow(t, ws, row, false)
-		if i == 0 {
-			d.need(headH + h)
+		lines[i], hs[i] = d.layoutRow(t, ws, row, false)
+	}
+	b := t.blocks()
+	nb := len(b) - 1
+	d.tables++
+	blockH := func(k int) float64 {
+		h := 0.0
+		for i := b[k]; i < b[k+1]; i++ {
+			h += hs[i]
+		}
+		return h
+	}
+	for k := 0; k < nb; k++ {
+		switch {
+		case k == 0:
+			d.need(d.leadHeight(t))
 			drawHead()
-		} else if d.need(h) {
+		case k == nb-2 && d.need(blockH(k)+blockH(k+1)),
+			k != nb-2 && d.need(blockH(k)):
 			if t.title != "" {
 				d.paragraph(t.title+" (continued)", "I", smallSize, smallLineH, 0, mutedColour)
 				d.space(0.8)
@@ -247,10 +337,13 @@ func (d *doc) drawTable(t *table) {
 			drawHead()
 		}
 		fill := white
-		if i%2 == 1 {
+		if k%2 == 1 {
 			fill = zebraFill
 		}
-		d.drawRow(t, ws, row, lines, h, fill, false)
+		for i := b[k]; i < b[k+1]; i++ {
+			d.placed = append(d.placed, placement{table: t.title, seq: d.tables, row: i, page: d.pdf.PageNo()})
+			d.drawRow(t, ws, t.rows[i], lines[i], hs[i], fill, false)
+		}
 	}
 	d.space(3)
 }

@@ -117,6 +117,7 @@ func (d *doc) methodSection(c *content) {
 		d.subheading("Method as recorded", 2*lineH)
 		d.body(s)
 	}
+	d.ruleApplied(c)
 	d.subheading("Assumptions", 2*lineH)
 	d.wordingBlocks(d.text(c, templates.Assumptions))
 	for _, a := range m.Assumptions {

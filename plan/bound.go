@@ -22,10 +22,14 @@ const (
 	// self-weighting sample.
 	BoundChernoff
 	// BoundKornGraubard: Clopper–Pearson with the effective sample size on
-	// the stratified estimate; approximate.
+	// the stratified estimate; approximate. Records made before the
+	// stratified count rule rested their verdicts on it; it is read from
+	// them but no longer decides (verdict reports it as a descriptive
+	// figure).
 	BoundKornGraubard
 	// BoundWeightedHoeffding: Hoeffding's inequality on the stratified
-	// estimate; rigorous.
+	// estimate. Read from older records only: the stratified count rule
+	// needs fewer labels in every design measured.
 	BoundWeightedHoeffding
 	// BoundSequential: a sequential plan of an unbounded stream, judged by
 	// its boundaries; the bound is exact for the stopping rule.
@@ -33,12 +37,18 @@ const (
 	// BoundSequentialLot: a sequential plan of a finite lot, judged by its
 	// boundaries; the bound is descriptive only.
 	BoundSequentialLot
+	// BoundStratifiedCount: the stratified count rule (plan/stratified): the
+	// errors among the counted items against a binomial bound at the least
+	// favourable spread of errors over the strata; rigorous for any
+	// allocation.
+	BoundStratifiedCount
 )
 
 var boundSpelling = spelling[Bound]{field: "bound", names: []string{"",
 	"clopper-pearson", "exact-hypergeometric", "hoeffding", "kl",
 	"korn-graubard (approximate)", "weighted-hoeffding",
-	"sequential boundaries (stage-wise exact bound)", "sequential boundaries (bound descriptive)"}}
+	"sequential boundaries (stage-wise exact bound)", "sequential boundaries (bound descriptive)",
+	"stratified-count"}}
 
 // ParseBound returns the bound named s as record.json writes it, or an
 // input error (inputerr.Error) on the field "bound".
@@ -70,6 +80,8 @@ func (b Bound) Title() string {
 		return "Korn–Graubard"
 	case BoundWeightedHoeffding:
 		return "weighted Hoeffding"
+	case BoundStratifiedCount:
+		return "stratified count rule"
 	}
 	return b.String()
 }
@@ -77,11 +89,16 @@ func (b Bound) Title() string {
 // Weighted reports whether the bound is taken on the stratified estimate,
 // each stratum weighted by its share N_h/N (the bounds for a sample whose
 // inclusion weights differ).
-func (b Bound) Weighted() bool { return b == BoundKornGraubard || b == BoundWeightedHoeffding }
+func (b Bound) Weighted() bool {
+	return b == BoundKornGraubard || b == BoundWeightedHoeffding || b == BoundStratifiedCount
+}
 
-// Exact reports whether the bound inverts an exact test, so that its
-// p-value decides (Clopper–Pearson and the exact hypergeometric bound).
-func (b Bound) Exact() bool { return b == BoundClopperPearson || b == BoundExactHypergeometric }
+// Exact reports whether the bound inverts a test whose p-value decides
+// (Clopper–Pearson, the exact hypergeometric bound and the stratified
+// count rule).
+func (b Bound) Exact() bool {
+	return b == BoundClopperPearson || b == BoundExactHypergeometric || b == BoundStratifiedCount
+}
 
 // Approximate reports whether the bound's coverage is only approximately
 // the stated confidence (Korn–Graubard; a sequential lot's descriptive

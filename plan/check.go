@@ -23,7 +23,9 @@ import (
 //   - the design: a sequential section exactly when the design is
 //     sequential, and then its fixed plan for comparison. The boundaries
 //     themselves are checked by plan/sequential (which this package cannot
-//     import); planfile.Parse runs both.
+//     import); planfile.Parse runs both. A plan sized for a stratified
+//     design states the simple random sample it was sized from here, and
+//     its count rule is checked by plan/verdict (CheckStratification).
 //
 // The search costs well under a millisecond for any plan probity makes
 // (BenchmarkCheck), so it is run again rather than trusted. The error is
@@ -67,6 +69,19 @@ func (f *File) Check(src *Source) error {
 	default:
 		if f.Sequential != nil {
 			return src.Errorf("sequential", "a sequential section is given but the design is %s", in.Design)
+		}
+		if f.Stratification != nil {
+			// n, c and the risks are the stratified count rule's on the
+			// planned strata, checked by plan/verdict (CheckStratification,
+			// which planfile.Parse runs); here: the simple random sample
+			// they were sized from.
+			if err := f.checkCommonRule(src, rule); err != nil {
+				return err
+			}
+			if err := checkInt(src, "stratification.simple_random_sample_size", f.Stratification.SimpleRandomSampleSize, rule.SampleSize); err != nil {
+				return err
+			}
+			break
 		}
 		if err := f.checkFixedRule(src, rule); err != nil {
 			return err
@@ -281,6 +296,17 @@ func (f *File) validate() error {
 	}
 	if strings.TrimSpace(f.TimeColumn) != f.TimeColumn {
 		return fieldErr("time_column", "%q has leading or trailing spaces", f.TimeColumn)
+	}
+	if s := f.Stratification; s != nil {
+		if f.Sequential != nil || in.Design == DesignSequential {
+			return fieldErr("stratification", "a sequential plan cannot have a stratification")
+		}
+		if f.Measures != nil {
+			return fieldErr("stratification", "a plan with measures designs its own strata by prediction; it cannot also have a stratification")
+		}
+		if err := s.validate(f.Rule.SampleSize); err != nil {
+			return err
+		}
 	}
 	if err := f.validateCandidates(); err != nil {
 		return err

@@ -65,6 +65,9 @@ type File struct {
 	// Sequential holds the boundaries of a sequential design (nil for a
 	// fixed (n, c) plan).
 	Sequential *SequentialRule `yaml:"sequential,omitempty"`
+	// Stratification is the stratified design the plan was sized for (nil:
+	// sized for a simple random sample).
+	Stratification *Stratification `yaml:"stratification,omitempty"`
 	// Measures, when set, certifies error measures with their own
 	// denominators (fnr, fpr, for, fdr, error) instead of the overall
 	// error alone: the candidates are judged by them.

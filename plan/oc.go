@@ -72,18 +72,20 @@ func (f *File) ocTop() float64 {
 }
 
 // KeyPoints returns the OC at the points a reader checks first: p0 (when
-// given), fractions of the ceiling (¼, ½, ¾, 1, 1½, 2) and, for a finite
-// lot, the errors D0/N and D1/N themselves; sorted, without repeats.
+// given), fractions of the ceiling (¼, ½, ¾, 1, 1½, 2); sorted, without
+// repeats. For a finite lot every point is a whole number of errors D and
+// is reported at D/N, the rate it is computed at: the ceiling at
+// D1 = ⌈ceiling·N⌉ and p0 at D0 = ⌊p0·N⌋, as the stated risks are (see
+// CeilingPoint), the fractions at the nearest whole number.
 func (f *File) KeyPoints() []OCPoint {
 	ceil := f.Inputs.Ceiling
-	es := []float64{0.25 * ceil, 0.5 * ceil, 0.75 * ceil, ceil, 1.5 * ceil, 2 * ceil}
-	if p0 := f.Inputs.Anticipated; p0 != nil {
-		es = append(es, *p0)
+	es := []float64{0.25 * ceil, 0.5 * ceil, 0.75 * ceil, 1.5 * ceil, 2 * ceil, f.CeilingPoint()}
+	if p0, ok := f.AnticipatedPoint(); ok {
+		es = append(es, p0)
 	}
 	if N := f.Inputs.Population; N > 0 {
-		es = append(es, float64(f.Rule.BadLotErrors)/float64(N))
-		if f.Inputs.Anticipated != nil {
-			es = append(es, float64(f.Rule.GoodLotErrors)/float64(N))
+		for i := 0; i < 5; i++ {
+			es[i] = math.Round(snapInteger(es[i]*float64(N))) / float64(N)
 		}
 	}
 	var out []OCPoint
@@ -94,6 +96,42 @@ func (f *File) KeyPoints() []OCPoint {
 		out = append(out, OCPoint{Error: e, AcceptProbability: f.AcceptProbability(e)})
 	}
 	return out
+}
+
+// CeilingPoint is the error rate at which the consumer's risk is stated:
+// the ceiling, or for a finite lot of N decisions D1/N with
+// D1 = ⌈ceiling·N⌉ (BadLotErrors).
+func (f *File) CeilingPoint() float64 {
+	if N := f.Inputs.Population; N > 0 {
+		return float64(BadLotErrors(N, f.Inputs.Ceiling)) / float64(N)
+	}
+	return f.Inputs.Ceiling
+}
+
+// AnticipatedPoint is the error rate at which the producer's risk is
+// stated: p0, or for a finite lot D0/N with D0 = ⌊p0·N⌋ (GoodLotErrors);
+// ok is false without p0.
+func (f *File) AnticipatedPoint() (float64, bool) {
+	p0 := f.Inputs.Anticipated
+	if p0 == nil {
+		return 0, false
+	}
+	if N := f.Inputs.Population; N > 0 {
+		return float64(GoodLotErrors(N, *p0)) / float64(N), true
+	}
+	return *p0, true
+}
+
+// HalfCeilingPoint is the point at which a zero-failure or minimal plan
+// states how often it rejects a good model: exactly half the ceiling, or
+// for a finite lot of N decisions the whole number of errors
+// ⌊ceiling·N/2⌋ at or below half of it, reported at that count's rate.
+func (f *File) HalfCeilingPoint() OCPoint {
+	e := f.Inputs.Ceiling / 2
+	if N := f.Inputs.Population; N > 0 {
+		e = math.Floor(snapInteger(e*float64(N))) / float64(N)
+	}
+	return OCPoint{Error: e, AcceptProbability: f.AcceptProbability(e)}
 }
 
 func sortedUnique(v []float64) []float64 {

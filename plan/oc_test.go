@@ -62,3 +62,58 @@ func TestOCCurveLot(t *testing.T) {
 		t.Errorf("AcceptProbability(1.5) = %v, want NaN", got)
 	}
 }
+
+// Issue 13: the OC rows of a batch plan are computed where the stated risks
+// are — the ceiling at D1 = ⌈ceiling·N⌉, p0 at D0 = ⌊p0·N⌋ — and every row is
+// labeled with the rate it was computed at; "half the ceiling" is exactly
+// half, or for a batch the whole number of errors at or below it. N = 43 and
+// ceiling 10 % make ⌈4.3⌉ = 5 differ from round(4.3) = 4 (common practice, no
+// source: the definitions of D1 and D0 in BadLotErrors and GoodLotErrors).
+func TestKeyPointsLotRounding(t *testing.T) {
+	in := inputs(0.10, 0.90)
+	in.Population = 43
+	in.Anticipated = ptr(0.035) // 1.505 errors → D0 = 1
+	f, err := Build(in, Meta{Seed: "s"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if f.CeilingPoint() != 5.0/43 {
+		t.Errorf("ceiling point %v, want 5/43", f.CeilingPoint())
+	}
+	if p0, ok := f.AnticipatedPoint(); !ok || p0 != 1.0/43 {
+		t.Errorf("anticipated point %v, want 1/43", p0)
+	}
+	var sawCeiling, sawP0 bool
+	for _, p := range f.KeyPoints() {
+		d := p.Error * 43
+		if math.Abs(d-math.Round(d)) > 1e-9 {
+			t.Errorf("row %v is not a whole number of errors in the batch", p.Error)
+		}
+		switch p.Error {
+		case f.CeilingPoint():
+			sawCeiling = true
+			if math.Abs(p.AcceptProbability-f.Rule.ConsumerRisk) > 1e-12 {
+				t.Errorf("ceiling row %v, stated consumer's risk %v", p.AcceptProbability, f.Rule.ConsumerRisk)
+			}
+		case 1.0 / 43:
+			sawP0 = true
+			if math.Abs(1-p.AcceptProbability-*f.Rule.ProducerRisk) > 1e-12 {
+				t.Errorf("anticipated row %v, stated producer's risk %v", 1-p.AcceptProbability, *f.Rule.ProducerRisk)
+			}
+		}
+	}
+	if !sawCeiling || !sawP0 {
+		t.Errorf("rows %+v lack the ceiling or the anticipated point", f.KeyPoints())
+	}
+	half := f.HalfCeilingPoint()
+	if half.Error != 2.0/43 { // ⌊4.3/2⌋ = 2
+		t.Errorf("half the ceiling at %v, want 2/43", half.Error)
+	}
+	stream, err := Build(inputs(0.10, 0.90), Meta{Seed: "s"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if h := stream.HalfCeilingPoint(); h.Error != 0.05 || h.AcceptProbability != BinomialCDF(0, stream.Rule.SampleSize, 0.05) {
+		t.Errorf("half the ceiling of a stream: %+v", h)
+	}
+}

@@ -3,27 +3,18 @@ package plan
 import (
 	"bytes"
 	"encoding/json"
-	"os"
 	"os/exec"
 	"testing"
-)
 
-// debianPython is the interpreter that carries python3-scipy (the python3
-// first on PATH may be another one).
-const debianPython = "/usr/bin/python3"
+	"probity/plan/testkit/needs"
+)
 
 // runScipy runs a Python program with Debian's interpreter, feeding it in as
 // JSON on stdin and decoding its JSON stdout into out. Without scipy the
 // test fails in CI (CI set) and is skipped elsewhere.
 func runScipy(t *testing.T, program string, in, out any) {
 	t.Helper()
-	probe := exec.Command(debianPython, "-c", "import scipy.stats, numpy")
-	if err := probe.Run(); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("scipy is required in CI: %s -c 'import scipy.stats': %v", debianPython, err)
-		}
-		t.Skipf("scipy not available (%v); install python3-scipy", err)
-	}
+	debianPython := needs.PythonModules(t, "scipy", "numpy")
 	data, err := json.Marshal(in)
 	if err != nil {
 		t.Fatal(err)

@@ -70,12 +70,13 @@ type searchResult struct {
 // that keep the consumer's guarantee and, with a p0, the producer's risk.
 //
 // For fixed c the feasible n form an interval [n_c, m_c] (keeps is monotone
-// in n, the producer's risk grows with n), and n_c grows with c, so the
-// smallest feasible n is n_c for the smallest c whose n_c also meets the
-// producer's risk. That c is found by exponential search and bisection over
-// c — the producer's risk at n_c falls as c grows — followed by a check of
-// the few c just below the answer, which catches the small saw-tooth
-// non-monotonicity that integer n_c can cause.
+// in n, the producer's risk grows with n), and n_c does not decrease as c
+// grows, so the smallest feasible n is n_c for the smallest c whose n_c
+// also meets the producer's risk. Feasibility is not monotone in c (integer
+// n_c make the producer's risk at n_c a saw-tooth, with dips that matter for
+// large ceilings), so every c is accounted for: an exponential search and
+// bisection find some feasible c, then firstFeasible walks c upward from 0,
+// skipping only blocks of c it proves infeasible.
 func (f family) search() searchResult {
 	n0, ok := f.smallestN(0)
 	if !ok {
@@ -101,16 +102,16 @@ func (f family) search() searchResult {
 		if !exists {
 			// n_c exceeds the limit from some c in (bad, good] on: find the
 			// largest c whose n_c exists; if even it misses the producer's
-			// risk, no c does.
+			// risk, look below it.
 			last := bad + sort.Search(good-bad, func(i int) bool {
 				_, ok := f.smallestN(bad + 1 + i)
 				return !ok
 			})
 			if last == bad {
-				return searchResult{tooLarge: true}
+				return f.firstFeasible(bad + 1)
 			}
 			if _, meets, _ := feasible(last); !meets {
-				return searchResult{tooLarge: true}
+				return f.firstFeasible(last + 1)
 			}
 			good = last
 			break
@@ -129,14 +130,51 @@ func (f family) search() searchResult {
 			bad = mid
 		}
 	}
-	// saw-tooth guard: look a few c below for an earlier feasible one.
-	const guard = 8
-	best := good
-	for c := good - 1; c >= 0 && c >= best-guard; c-- {
-		if _, meets, exists := feasible(c); exists && meets {
-			best = c
+	return f.firstFeasible(good)
+}
+
+// firstFeasible returns the rule of the smallest c < upto whose n_c meets
+// the producer's risk, else that of upto itself (which the caller found
+// feasible), or tooLarge when upto is not feasible either.
+//
+// It walks c upward from 0. At an infeasible c with smallest size n_c, the
+// producer's risk P(X > c' | n, p0) falls as c' grows and rises with n, and
+// n_{c'} ≥ n_c for c' ≥ c, so every c' ≥ c with P(X > c' | n_c, p0) > β
+// is infeasible too: the walk jumps past the largest such c' (found by
+// bisection). Far below the answer the jumps are long; near it they shrink
+// to single steps, where the saw-tooth lives, so no c is left unexamined.
+func (f family) firstFeasible(upto int) searchResult {
+	for c := 0; c < upto; {
+		n, ok := f.smallestN(c)
+		if !ok {
+			break
 		}
+		if f.producerRisk(c, n) <= f.beta {
+			return searchResult{n: n, c: c}
+		}
+		// largest c' in [c, upto) with producerRisk(c', n) > β
+		lo, hi := c, upto // risk(lo) > β; hi is beyond the block
+		for step := 1; lo+step < hi; step *= 2 {
+			if f.producerRisk(lo+step, n) > f.beta {
+				lo = lo + step
+			} else {
+				hi = lo + step
+				break
+			}
+		}
+		for hi-lo > 1 {
+			mid := lo + (hi-lo)/2
+			if f.producerRisk(mid, n) > f.beta {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+		c = lo + 1
 	}
-	n, _ := f.smallestN(best)
-	return searchResult{n: n, c: best}
+	n, ok := f.smallestN(upto)
+	if !ok || f.producerRisk(upto, n) > f.beta {
+		return searchResult{tooLarge: true}
+	}
+	return searchResult{n: n, c: upto}
 }

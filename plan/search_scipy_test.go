@@ -138,3 +138,97 @@ func TestSearchAgainstScipy(t *testing.T) {
 		}
 	}
 }
+
+// Issue 13's example of a saw-tooth dip the old search missed (it looked
+// only 8 values of c below its bisection's answer and gave (458, 220)):
+// (439, 211) meets both risks. The reference is the scipy scan above
+// (scipy.stats.binom, every n); minimality of n is exact, checked here
+// also by n − 1 with its largest admissible c.
+func TestSearchSawToothExample(t *testing.T) {
+	in := inputs(0.489, 0.618)
+	in.Anticipated = ptr(0.462)
+	in.ProducerRisk = 0.20285431
+	r, _, err := Size(in)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.SampleSize > 439 {
+		t.Fatalf("plan (n %d, c %d): the issue's (439, 211) meets both risks", r.SampleSize, r.AcceptanceNumber)
+	}
+	if r.SampleSize != 439 || r.AcceptanceNumber != 211 {
+		t.Errorf("plan (n %d, c %d), want (439, 211)", r.SampleSize, r.AcceptanceNumber)
+	}
+	for n := 1; n < r.SampleSize; n++ {
+		c := AcceptanceNumberFor(n, in)
+		if c >= 0 && BinomialSF(c, n, 0.462) <= in.ProducerRisk {
+			t.Errorf("n = %d with c = %d meets both risks, below the plan's n = %d", n, c, r.SampleSize)
+		}
+	}
+}
+
+// sawToothCases are parameter sets (ceiling, confidence, p0, producer's
+// risk) where the old search, which looked only 8 values of c below its
+// bisection's answer, missed a smaller plan (found by comparing it with the
+// full walk on 3000 random sets; its answers are in the comments).
+var sawToothCases = [][4]float64{
+	{0.489, 0.618, 0.462, 0.20285431},                                                  // issue 13: old (458, 220)
+	{0.49878692455771934, 0.6753178026060538, 0.4850699274486155, 0.14956066977372548}, // old (3014, 1490)
+	{0.41301989208417733, 0.9131866001112832, 0.4022188957847213, 0.3240435854740028},  // old (6869, 2781)
+	{0.49587772254540463, 0.9299450716623776, 0.485943252178241, 0.1601485069098849},   // old (15497, 7592)
+	{0.32986270763087, 0.8357747332700739, 0.31859502872054885, 0.06387889494991304},   // old (10815, 3519)
+	{0.4933602322274062, 0.7374311667849117, 0.47275408017708503, 0.08330429295272937}, // old (2423, 1179)
+	{0.3408171864770321, 0.691513827588763, 0.33269016319534045, 0.1565841111708598},   // old (7765, 2625)
+}
+
+// The search on large ceilings (0.2 to 0.5) with anticipated errors close
+// to them, where the producer's risk at n_c is a pronounced saw-tooth in
+// c: the saw-tooth cases above and 100 random sets (one in four a finite
+// lot), against the scipy scan over every n (exact agreement required).
+func TestSearchLargeCeilingsAgainstScipy(t *testing.T) {
+	if testing.Short() {
+		t.Skip("about 20 s of CPU; skipped with -short")
+	}
+	var cases []searchCase
+	add := func(in Inputs) {
+		c := searchCase{Ceiling: in.Ceiling, P0: *in.Anticipated, Beta: in.ProducerRisk, Pop: in.Population, Rule: "exact", Alpha: in.PerCandidateRisk(), in: in}
+		cases = append(cases, c)
+	}
+	for _, v := range sawToothCases {
+		in := inputs(v[0], v[1])
+		in.Anticipated, in.ProducerRisk = ptr(v[2]), v[3]
+		add(in)
+	}
+	rng := rand.New(rand.NewPCG(31, 32))
+	for i := 0; i < 100; i++ {
+		in := inputs(0.2+0.3*rng.Float64(), 0.55+0.4*rng.Float64())
+		in.Anticipated = ptr(in.Ceiling * (0.8 + 0.17*rng.Float64()))
+		in.ProducerRisk = 0.05 + 0.3*rng.Float64()
+		if i%4 == 1 {
+			in.Population = int64(2000 + rng.IntN(8000))
+		}
+		add(in)
+	}
+	var refs [][2]int
+	runScipy(t, searchRefProgram, cases, &refs)
+	checked := 0
+	for i, c := range cases {
+		r, _, err := Size(c.in)
+		if refs[i][0] == 0 {
+			if i < len(sawToothCases) {
+				t.Errorf("saw-tooth case %d is beyond the reference's reach", i)
+			}
+			continue
+		}
+		checked++
+		if err != nil {
+			t.Errorf("case %d %+v: %v, reference (n %d, c %d)", i, c, err, refs[i][0], refs[i][1])
+			continue
+		}
+		if r.SampleSize != refs[i][0] || r.AcceptanceNumber != refs[i][1] {
+			t.Errorf("case %d %+v: plan (n %d, c %d), reference (n %d, c %d)", i, c, r.SampleSize, r.AcceptanceNumber, refs[i][0], refs[i][1])
+		}
+	}
+	if checked < 80 {
+		t.Errorf("only %d of %d cases within the reference's reach", checked, len(cases))
+	}
+}

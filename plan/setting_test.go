@@ -59,13 +59,13 @@ func settingCases() []settingCase {
 		{
 			field: "bound", names: []string{"clopper-pearson", "exact-hypergeometric", "hoeffding", "kl",
 				"korn-graubard (approximate)", "weighted-hoeffding",
-				"sequential boundaries (stage-wise exact bound)", "sequential boundaries (bound descriptive)"},
+				"sequential boundaries (stage-wise exact bound)", "sequential boundaries (bound descriptive)", "stratified-count"},
 			values: []fmt.Stringer{BoundClopperPearson, BoundExactHypergeometric, BoundHoeffding, BoundChernoff,
-				BoundKornGraubard, BoundWeightedHoeffding, BoundSequential, BoundSequentialLot},
+				BoundKornGraubard, BoundWeightedHoeffding, BoundSequential, BoundSequentialLot, BoundStratifiedCount},
 			parse: func(s string) (fmt.Stringer, error) { return ParseBound(s) },
 			unset: new(Bound),
 			allowed: "one of clopper-pearson, exact-hypergeometric, hoeffding, kl, korn-graubard (approximate), weighted-hoeffding, " +
-				"sequential boundaries (stage-wise exact bound), sequential boundaries (bound descriptive)",
+				"sequential boundaries (stage-wise exact bound), sequential boundaries (bound descriptive), stratified-count",
 		},
 	}
 }
@@ -252,6 +252,7 @@ func TestBoundProperties(t *testing.T) {
 		{BoundWeightedHoeffding, "weighted Hoeffding", true, false, false},
 		{BoundSequential, "sequential boundaries (stage-wise exact bound)", false, false, false},
 		{BoundSequentialLot, "sequential boundaries (bound descriptive)", false, false, true},
+		{BoundStratifiedCount, "stratified count rule", true, true, false},
 		{BoundUnset, "", false, false, false},
 	} {
 		if tc.b.Title() != tc.title || tc.b.Weighted() != tc.weighted || tc.b.Exact() != tc.exact || tc.b.Approximate() != tc.approximate {

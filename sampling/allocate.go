@@ -21,6 +21,22 @@ const (
 	Equal = "equal"
 )
 
+// Rounding of proportional shares.
+const (
+	// RoundLargestRemainder gives each stratum ⌊share⌋ and the units left
+	// over to the largest remainders, so Σ n_h = n exactly; a stratum whose
+	// share is below one can get no item. The empty name (manifests written
+	// before rounding was recorded) means this.
+	RoundLargestRemainder = "largest-remainder"
+	// RoundUp gives each stratum ⌈n·N_h/N⌉ (at most N_h): no stratum is
+	// sampled below its proportional share and every stratum gets an item,
+	// at the cost of up to one label per stratum beyond n. It is what
+	// keeps the stratified count rule as powerful as the plan's rule for a
+	// simple random sample: the errors cannot hide where fewer items per
+	// decision were drawn (plan/stratified; proportional allocation only).
+	RoundUp = "up"
+)
+
 // StratumCount is one stratum's label and population N_h (rows in scope).
 type StratumCount struct {
 	Label      string
@@ -44,6 +60,13 @@ type AllocOptions struct {
 	// StdDev maps stratum labels to S_h > 0 directly, for Neyman, where a
 	// stratum has no entry in Anticipated.
 	StdDev map[string]float64
+	// Rounding is RoundUp or RoundLargestRemainder ("" is the latter);
+	// RoundUp applies to proportional allocation only.
+	Rounding string
+	// MinIfRoom applies MinPerStratum only when the sample can give every
+	// stratum its minimum (Σ min(k, N_h) ≤ n); otherwise no minimum is
+	// applied (EffectiveMin says which).
+	MinIfRoom bool
 }
 
 // StratumAllocation is the allocation of one stratum.
@@ -73,9 +96,13 @@ var ErrSampleTooLarge = errors.New("the sample is larger than the log")
 // order. Shares are computed in exact rational arithmetic (for Neyman, on
 // the float64 weights N_h·√(p_h(1−p_h)) taken exactly).
 //
-// The result is sorted by label and Σ n_h = n. It is an error when Σ N_h < n
-// (ErrSampleTooLarge), when a label repeats or a population is below 1, or
-// when the minimum per stratum alone exceeds n.
+// Proportional allocation with Rounding RoundUp instead gives every
+// stratum n_h = min(N_h, max(⌈n·N_h/N⌉, k)) (k the minimum per stratum), so
+// Σ n_h is n plus at most one item per stratum (and the minimum's).
+//
+// The result is sorted by label and, except under RoundUp, Σ n_h = n. It is
+// an error when Σ N_h < n (ErrSampleTooLarge), when a label repeats or a
+// population is below 1, or when the minimum per stratum alone exceeds n.
 func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocation, error) {
 	if n < 1 {
 		return nil, inputerr.Errorf("%w: sample size %d is below 1", ErrAllocation, n)
@@ -107,6 +134,35 @@ func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocat
 	}
 	if total < int64(n) {
 		return nil, inputerr.Errorf("%w: the sample needs %d items but the strata hold %d rows", ErrSampleTooLarge, n, total)
+	}
+	if opts.MinPerStratum > 0 {
+		var need int64
+		for _, a := range out {
+			need += min(int64(opts.MinPerStratum), a.Population)
+		}
+		switch {
+		case need <= int64(n):
+		case opts.MinIfRoom:
+			opts.MinPerStratum = 0
+		default:
+			return nil, inputerr.Errorf("%w: a minimum of %d per stratum over %d strata needs more than the sample's %d items", ErrAllocation, opts.MinPerStratum, len(out), n)
+		}
+	}
+	if opts.Rounding != "" && opts.Rounding != RoundUp && opts.Rounding != RoundLargestRemainder {
+		return nil, inputerr.Errorf("%w: unknown rounding %q (%s or %s)", ErrAllocation, opts.Rounding, RoundUp, RoundLargestRemainder)
+	}
+	if rule == Proportional && opts.Rounding == RoundUp {
+		// n_h = min(N_h, max(⌈n·N_h/N⌉, k)), in exact integer arithmetic
+		bn, bN := big.NewInt(int64(n)), big.NewInt(total)
+		for i := range out {
+			q := new(big.Int).Mul(bn, big.NewInt(out[i].Population))
+			q.Add(q, new(big.Int).Sub(bN, big.NewInt(1)))
+			q.Quo(q, bN)
+			v := max(q.Int64(), int64(opts.MinPerStratum))
+			out[i].Sample = int(min(v, out[i].Population))
+		}
+		finish(out, opts)
+		return out, nil
 	}
 	weights := make([]*big.Rat, len(out))
 	for i := range out {
@@ -164,6 +220,12 @@ func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocat
 			break
 		}
 	}
+	finish(out, opts)
+	return out, nil
+}
+
+// finish sets each stratum's spares and weight.
+func finish(out []StratumAllocation, opts AllocOptions) {
 	for i := range out {
 		a := &out[i]
 		a.Spare = int(min(int64(opts.Spare), a.Population-int64(a.Sample)))
@@ -171,7 +233,22 @@ func Allocate(strata []StratumCount, n int, opts AllocOptions) ([]StratumAllocat
 			a.Weight = float64(a.Population) / float64(a.Sample)
 		}
 	}
-	return out, nil
+}
+
+// EffectiveMin is the minimum per stratum Allocate applies under opts: k,
+// or 0 when MinIfRoom is set and the strata cannot all get theirs from n.
+func EffectiveMin(strata []StratumCount, n int, opts AllocOptions) int {
+	if !opts.MinIfRoom || opts.MinPerStratum <= 0 {
+		return opts.MinPerStratum
+	}
+	var need int64
+	for _, s := range strata {
+		need += min(int64(opts.MinPerStratum), s.Population)
+	}
+	if need > int64(n) {
+		return 0
+	}
+	return opts.MinPerStratum
 }
 
 // checkSpare bounds the spares per stratum by the sample size: spares

@@ -3,7 +3,10 @@ package sampling
 import (
 	"errors"
 	"math"
+	"strings"
 	"testing"
+
+	"probity/plan/inputerr"
 )
 
 func sizes(a []StratumAllocation) []int {
@@ -180,6 +183,14 @@ func FuzzAllocate(f *testing.F) {
 		opts := AllocOptions{Rule: []string{Proportional, Neyman, Equal}[int(rule)%3], MinPerStratum: int(minK % 12), Spare: int(spare % 9), Anticipated: ant}
 		n := int(n16%2000) + 1
 		got, err := Allocate(strata, n, opts)
+		if opts.Spare > n {
+			// More spares per stratum than the sample size: refused first.
+			var in *inputerr.Error
+			if !errors.As(err, &in) || in.Field != "spare" {
+				t.Fatalf("spare %d > n %d: error %v, want the spare refused", opts.Spare, n, err)
+			}
+			return
+		}
 		if err != nil {
 			if int64(n) > total && !errors.Is(err, ErrSampleTooLarge) {
 				t.Fatalf("n %d > total %d: %v", n, total, err)
@@ -210,4 +221,101 @@ func FuzzAllocate(f *testing.F) {
 			t.Fatalf("allocations sum to %d, want %d", sum, n)
 		}
 	})
+}
+
+// Rounding proportional shares up: n_h = min(N_h, max(⌈n·N_h/N⌉, k)),
+// computed by hand here (common practice, no source: the definition).
+// 100 items over 1000/600/300/97/3 decisions: shares 50, 30, 15, 4.85,
+// 0.15 → 50, 30, 15, 5, 1 (101 items; largest remainder gives 50, 30, 15,
+// 5, 0 and leaves the smallest stratum empty).
+func TestAllocateRoundUp(t *testing.T) {
+	strata := []StratumCount{{"a", 1000}, {"b", 600}, {"c", 300}, {"d", 97}, {"e", 3}}
+	up, err := Allocate(strata, 100, AllocOptions{Rounding: RoundUp})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := sizes(up); !equalInts(got, []int{50, 30, 15, 5, 1}) {
+		t.Errorf("rounded up: %v", got)
+	}
+	lr, err := Allocate(strata, 100, AllocOptions{Rounding: RoundLargestRemainder})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := sizes(lr); !equalInts(got, []int{50, 30, 15, 5, 0}) {
+		t.Errorf("largest remainder: %v", got)
+	}
+	// with a minimum of 4 (capped at N_h = 3 for e)
+	min4, err := Allocate(strata, 100, AllocOptions{Rounding: RoundUp, MinPerStratum: 4})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := sizes(min4); !equalInts(got, []int{50, 30, 15, 5, 3}) {
+		t.Errorf("rounded up, minimum 4: %v", got)
+	}
+	// rounding up never samples a stratum below its share, on random strata
+	for seed := uint64(0); seed < 200; seed++ {
+		r := seed*2654435761 + 1
+		var st []StratumCount
+		var N int64
+		for h := 0; h < 2+int(r%7); h++ {
+			r = r*6364136223846793005 + 1442695040888963407
+			v := int64(1 + (r>>33)%5000)
+			st = append(st, StratumCount{Label: string(rune('a' + h)), Population: v})
+			N += v
+		}
+		n := int(1 + int64(r>>40)%min(N, 3000))
+		a, err := Allocate(st, n, AllocOptions{Rounding: RoundUp})
+		if err != nil {
+			t.Fatal(err)
+		}
+		total := 0
+		for _, x := range a {
+			total += x.Sample
+			if int64(x.Sample)*N < int64(n)*x.Population || x.Sample < 1 || int64(x.Sample) > x.Population {
+				t.Fatalf("stratum %+v of %v below its share of n = %d", x, st, n)
+			}
+		}
+		if total < n || total > n+len(st)-1 {
+			t.Fatalf("%v, n = %d: %d items", st, n, total)
+		}
+	}
+}
+
+// The default minimum of one per stratum applies only when the sample has
+// room for it; an explicit minimum without room is refused.
+func TestAllocateMinIfRoom(t *testing.T) {
+	strata := []StratumCount{{"a", 1000}, {"b", 20}, {"c", 10}, {"d", 5}}
+	a, err := Allocate(strata, 40, AllocOptions{Rule: Neyman, StdDev: map[string]float64{"a": 0.5, "b": 0.01, "c": 0.01, "d": 0.01}, MinPerStratum: 1, MinIfRoom: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, x := range a {
+		if x.Sample < 1 {
+			t.Errorf("stratum %s got no item with room for one each: %v", x.Label, sizes(a))
+		}
+	}
+	if k := EffectiveMin(strata, 3, AllocOptions{MinPerStratum: 1, MinIfRoom: true}); k != 0 {
+		t.Errorf("3 items over 4 strata: minimum %d applied", k)
+	}
+	if _, err := Allocate(strata, 3, AllocOptions{Rule: Equal, MinPerStratum: 1, MinIfRoom: true}); err != nil {
+		t.Errorf("the default minimum without room: %v", err)
+	}
+	if _, err := Allocate(strata, 3, AllocOptions{Rule: Equal, MinPerStratum: 1}); !errors.Is(err, ErrAllocation) {
+		t.Errorf("an explicit minimum without room: %v", err)
+	}
+	if note := AllocationNote(a, 40, 1, ""); !strings.Contains(note, "at least 1 per stratum") || !strings.Contains(note, "inclusion weights") {
+		t.Errorf("note %q", note)
+	}
+}
+
+func equalInts(a, b []int) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if a[i] != b[i] {
+			return false
+		}
+	}
+	return true
 }

@@ -22,7 +22,7 @@ func DrawInputFromManifest(m *drawfolder.Manifest) (DrawInput, error) {
 		StrataColumns: append([]string{}, m.StrataColumns...),
 		Show:          append([]string{}, m.ShowColumns...),
 		Alloc: AllocOptions{Rule: m.Allocation.Rule, MinPerStratum: m.Allocation.MinPerStratum,
-			Spare: m.Allocation.Spare},
+			Spare: m.Allocation.Spare, Rounding: m.Allocation.Rounding},
 		NeymanSource: m.Allocation.NeymanSource,
 		Double:       m.Double,
 		Dedupe:       m.Dedupe == "first",

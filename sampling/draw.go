@@ -157,9 +157,11 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	}
 	var alloc []StratumAllocation
 	var measuresInfo *drawfolder.MeasuresInfo
+	effMin := 0
 	if opts.Rule == Measures {
 		alloc, measuresInfo, err = allocateMeasures(in, counts)
 	} else {
+		effMin = EffectiveMin(counts, n, opts)
 		alloc, err = Allocate(counts, n, opts)
 	}
 	if err != nil {
@@ -227,6 +229,11 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	f.Ledger = rows
 	f.Manifest = buildManifest(in, res, alloc, selection)
 	f.Manifest.Measures = measuresInfo
+	f.Manifest.Allocation.MinPerStratum = effMin
+	if opts.Rule == Proportional || opts.Rule == "" {
+		f.Manifest.Allocation.Rounding = opts.Rounding
+	}
+	f.Manifest.Allocation.Note = AllocationNote(alloc, n, effMin, f.Manifest.Allocation.Rounding)
 	f.Manifest.SampleSize = len(sample)
 	f.Manifest.Spares = len(spares)
 	if res.Times != nil {
@@ -282,6 +289,53 @@ func buildManifest(in DrawInput, res *ScanResult, alloc []StratumAllocation, sel
 			Spare: a.Spare, Weight: a.Weight, Anticipated: a.Anticipated})
 	}
 	return m
+}
+
+// AllocationNote says what an allocation did to the inclusion weights
+// N_h/n_h: how many items beyond the plan's n rounding shares up took, how
+// many strata a minimum per stratum raised, which strata got no item, and
+// the range of the weights; "" when every weight is the same.
+func AllocationNote(alloc []StratumAllocation, n, minPer int, rounding string) string {
+	var parts []string
+	total, empty := 0, 0
+	lo, hi := 0.0, 0.0
+	for _, a := range alloc {
+		total += a.Sample
+		if a.Sample == 0 {
+			empty++
+			continue
+		}
+		if lo == 0 || a.Weight < lo {
+			lo = a.Weight
+		}
+		hi = max(hi, a.Weight)
+	}
+	if rounding == RoundUp && total > n {
+		parts = append(parts, fmt.Sprintf("proportional shares rounded up: %d items where the plan asks for %d, so that no stratum is sampled below its share", total, n))
+	}
+	if minPer > 0 {
+		raised := 0
+		for _, a := range alloc {
+			if a.Sample == min(minPer, int(min(a.Population, int64(minPer)))) && a.Sample > 0 {
+				raised++
+			}
+		}
+		part := fmt.Sprintf("at least %d per stratum", minPer)
+		if raised > 0 {
+			part += fmt.Sprintf(" (%d at that minimum)", raised)
+		}
+		parts = append(parts, part)
+	}
+	if empty > 0 {
+		parts = append(parts, fmt.Sprintf("%d strata with no item, which the verdict counts as unknown (all their decisions may be errors)", empty))
+	}
+	if hi > lo*(1+1e-12) {
+		parts = append(parts, fmt.Sprintf("inclusion weights N_h/n_h from %.4g to %.4g", lo, hi))
+	}
+	if len(parts) == 0 || hi <= lo*(1+1e-12) && empty == 0 {
+		return ""
+	}
+	return strings.Join(parts, "; ")
 }
 
 func ruleName(r string) string {

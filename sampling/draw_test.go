@@ -7,7 +7,6 @@ import (
 	"encoding/csv"
 	"encoding/hex"
 	"fmt"
-	"os"
 	"os/exec"
 	"sort"
 	"strconv"
@@ -16,6 +15,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"probity/plan/testkit/needs"
 	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 )
@@ -105,13 +105,7 @@ func TestSelectionMatchesIndependentRecomputation(t *testing.T) {
 }
 
 func TestSelectionMatchesPythonHashlib(t *testing.T) {
-	py := "/usr/bin/python3"
-	if _, err := os.Stat(py); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("CI: /usr/bin/python3 is missing")
-		}
-		t.Skip("/usr/bin/python3 not installed")
-	}
+	py := needs.PythonModules(t)
 	log := genLog(t, loggen.Config{Rows: 3000, Seed: 5})
 	p := testPlan("py-seed", 40)
 	f, err := Draw(DrawInput{Plan: p, LogPath: "log.csv", Log: bytes.NewReader(log), StrataColumns: []string{"region"}})

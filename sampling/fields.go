@@ -219,6 +219,9 @@ func (j *jsonFields) parseGeneral(rec []byte) error {
 			if err != nil {
 				return &jsonValueError{name, fmt.Sprintf("key %q: %v", name, err)}
 			}
+			if s == nil {
+				s = raw[1:1] // "" is an empty value, not null (nil), as on the fast path
+			}
 			j.vals[slot] = s
 		case raw[0] == '{' || raw[0] == '[':
 			return &jsonValueError{name, fmt.Sprintf("key %q holds an object or a list, not a value", name)}

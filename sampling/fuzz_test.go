@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strings"
 	"testing"
+	"unicode/utf8"
 )
 
 // FuzzScan feeds arbitrary bytes to the log reader: it must never panic,
@@ -79,6 +80,9 @@ func FuzzScanQuoteFreeMatchesReference(f *testing.F) {
 			return
 		}
 		lines := strings.Split(string(data), "\n")
+		if strings.Contains(strings.TrimSuffix(lines[0], "\r"), "\r") {
+			return // carriage returns alone as line ends have their own tests (layout_test.go)
+		}
 		header := strings.Split(strings.TrimSuffix(lines[0], "\r"), ",")
 		idCol, gCol := -1, -1
 		for i, h := range header {
@@ -112,7 +116,8 @@ func FuzzScanQuoteFreeMatchesReference(f *testing.F) {
 				continue
 			}
 			f := strings.Split(l, ",")
-			if len(f) != len(header) || f[idCol] == "" {
+			// ids and stratum values are bytes that must be valid UTF-8
+			if len(f) != len(header) || f[idCol] == "" || !utf8.ValidString(f[idCol]) || !utf8.ValidString(f[gCol]) {
 				badLine = i + 2
 				break
 			}

@@ -62,6 +62,24 @@ type Fields struct {
 	// AllowIncomplete is true when missing or unsure labels were counted
 	// as errors.
 	AllowIncomplete bool
+	// CountRule is true when the verdicts rest on the stratified count
+	// rule: a candidate passes with at most CountAcceptance errors among
+	// CountedSize counted items (Thinned: a sub-sample of some strata);
+	// UnknownStrata strata had no item. CountRiskBound is the rule's bound
+	// on the chance of accepting at the ceiling, wherever the errors sit,
+	// and AnticipatedFrom says at which errors per stratum ProducerRisk is
+	// computed ("" under the plan's rule).
+	CountRule       bool
+	CountedSize     int
+	CountAcceptance int
+	Thinned         bool
+	UnknownStrata   int
+	CountRiskBound  string
+	AnticipatedFrom string
+	// StepLevels is true when candidates were tested at different risks
+	// (the steps of Holm's procedure), each bound at its own step's
+	// confidence.
+	StepLevels bool
 }
 
 // sampleFields is a fully set Fields used to check templates at load time.
@@ -74,5 +92,7 @@ func sampleFields() Fields {
 		Multiplicity: "Bonferroni", MultiplicityRule: "holm", Require: "all", Model: "binomial", Rule: "exact",
 		Sequential: true, SampleSize: 100, AcceptanceNumber: 1, Population: "1000",
 		Bound: "Clopper–Pearson", Approximate: true, Weighted: true, Stratified: true, AllowIncomplete: true,
+		CountRule: true, CountedSize: 90, CountAcceptance: 1, Thinned: true, UnknownStrata: 1, CountRiskBound: "4 %",
+		AnticipatedFrom: "the plan's anticipated error in every stratum", StepLevels: true,
 	}
 }

@@ -89,6 +89,7 @@ func expectRefused(t *testing.T, name string, args []string, want ...string) {
 // TestAttackResignedWithAnotherKey: the numbers edited, the id recomputed,
 // the PDF rendered again and everything sealed with the forger's own key.
 func TestAttackResignedWithAnotherKey(t *testing.T) {
+	t.Parallel()
 	fx, rec, _, pub := signedRecord(t)
 	forged := copyRecordDir(t, rec, filepath.Join(fx.dir, "forged"))
 	forge(t, forged, acceptAll, true, keyFrom(0x66))
@@ -103,6 +104,7 @@ func TestAttackResignedWithAnotherKey(t *testing.T) {
 // number edited, the tool version set to an older one (which used to
 // switch the PDF comparison off) and the id recomputed; the PDF kept.
 func TestAttackStrippedSealEditedNumberOlderVersion(t *testing.T) {
+	t.Parallel()
 	fx, rec, _, pub := signedRecord(t)
 	stripped := copyRecordDir(t, rec, filepath.Join(fx.dir, "stripped"))
 	os.Remove(filepath.Join(stripped, signature.FileName))
@@ -122,6 +124,7 @@ func TestAttackStrippedSealEditedNumberOlderVersion(t *testing.T) {
 // TestAttackMadeUpRecordID: a record_id that is not the digest of the
 // record, in an unsigned record and in one sealed by the forger.
 func TestAttackMadeUpRecordID(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	rec := filepath.Join(fx.dir, "rec")
@@ -141,6 +144,7 @@ func TestAttackMadeUpRecordID(t *testing.T) {
 // key is marked a demonstration on every page and never verifies, even
 // when its key is passed as trusted.
 func TestDemoKeyNeverAuthenticates(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	pub, priv, _ := signature.GenerateKey(demolog.ThrowAwayKeySource())
@@ -171,6 +175,7 @@ func TestDemoKeyNeverAuthenticates(t *testing.T) {
 // TestDemoKeysArePublished: the keys the demo makes are the ones the
 // signature package recognises as published.
 func TestDemoKeysArePublished(t *testing.T) {
+	t.Parallel()
 	pub, _, _ := signature.GenerateKey(demolog.ThrowAwayKeySource())
 	if !signature.IsDemoKey(signature.Fingerprint(pub)) {
 		t.Errorf("the demo's sealing key is not recognised")
@@ -191,6 +196,7 @@ func TestDemoKeysArePublished(t *testing.T) {
 // safety deferral is refused by record (exit 2, naming the file and what is
 // missing, nothing written) and by verify.
 func TestGuttedTemplatesRefused(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	for file, c := range map[string]struct{ text, want string }{

@@ -11,6 +11,7 @@ import (
 // that is a link to /dev/zero is refused at once, naming it; before,
 // verify read such a record.json forever.
 func TestWholeFilesAreBounded(t *testing.T) {
+	t.Parallel()
 	if _, err := os.Stat("/dev/zero"); err != nil {
 		t.Skip("no /dev/zero")
 	}

@@ -18,6 +18,7 @@ import (
 // --date, and each artifact says which: plan.yaml (created_from),
 // manifest.json (drawn) and record.json (chronology).
 func TestTimesFromTheClockOrTheOperator(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	p := filepath.Join(dir, "plan.yaml")
 	if code, _, stderr := runProbity(t, "plan", "--ceiling", "0.05", "--confidence", "0.9", "--candidate", "a=model_a", "--candidate", "b=model_b",
@@ -63,6 +64,7 @@ func TestTimesFromTheClockOrTheOperator(t *testing.T) {
 // A draw dated before its plan was made is refused: exit 2, naming both
 // times, and no folder is left.
 func TestDrawBeforeThePlanRefused(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 800, Seed: 3})
 	out := filepath.Join(dir, "out")
@@ -80,6 +82,7 @@ func TestDrawBeforeThePlanRefused(t *testing.T) {
 // (exit 2, the three times named, nothing written), where it used to issue
 // a record dated before its own plan.
 func TestBackDatedRecordRefused(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	rec := filepath.Join(fx.dir, "rec")
@@ -116,6 +119,7 @@ func TestBackDatedRecordRefused(t *testing.T) {
 // canonical form, so only the check of the times can catch it), and one
 // whose draw time no longer matches the draw folder's.
 func TestVerifyChecksTheChronology(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	rec := filepath.Join(fx.dir, "rec")
@@ -156,6 +160,7 @@ func TestVerifyChecksTheChronology(t *testing.T) {
 // before the last label on its trail fails the chronology, naming the
 // labeling span.
 func TestLabelsOutsideTheChronologyRefused(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	early := startLabelAt(t, time.Date(2026, 11, 30, 14, 0, 0, 0, time.UTC), fx.draw, "--plan", fx.planPath)
 	c, err := labelserver.Open(nil, early.addr[drawfolder.WorksheetFile])
@@ -178,6 +183,7 @@ func TestLabelsOutsideTheChronologyRefused(t *testing.T) {
 // --date before it, the chronology names the labeling span; from the clock
 // (after it) the record states the span and the PDF prints it.
 func TestRecordBeforeItsLabelsRefused(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	r := startLabel(t, fx.draw, "--plan", fx.planPath)
 	trailSession(t, fx, r.addr[drawfolder.WorksheetFile])

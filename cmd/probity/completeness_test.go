@@ -16,6 +16,7 @@ import (
 // states it and carries it on page 1 as a caveat, verify recomputes it and
 // draw --check finds the same.
 func TestCompletenessEndToEnd(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	p := filepath.Join(dir, "plan.yaml")
 	if code, _, stderr := runProbity(t, "plan", "--ceiling", "0.05", "--confidence", "0.9", "--candidate", "a=model_a", "--candidate", "b=model_b",
@@ -102,6 +103,7 @@ func TestCompletenessEndToEnd(t *testing.T) {
 
 // The options that go with a time column, refused when they cannot apply.
 func TestTimeColumnOptionsRefused(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	p := filepath.Join(dir, "plan.yaml")
 	if code, _, stderr := runProbity(t, "plan", "--ceiling", "0.05", "--confidence", "0.9", "--candidate", "a=model_a",

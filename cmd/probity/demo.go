@@ -122,26 +122,25 @@ func runDemo(d deps, o *demoOptions) error {
 		return err
 	}
 	defer release()
-	// The steps run inside DIR with relative paths, as a user would type
-	// them: the command log can be replayed there, and the artifacts (which
-	// record the paths they were given) do not depend on where DIR is.
-	back, err := os.Getwd()
+	// The steps run inside DIR with paths relative to it, as a user would
+	// type them there (each command takes them from DIR, deps.dir): the
+	// command log can be replayed there, and the artifacts (which record
+	// the paths they were given) do not depend on where DIR is. base is
+	// DIR for the demo's own files, shown is DIR as the user named it.
+	base, err := filepath.Abs(o.out)
 	if err != nil {
 		return err
 	}
-	if err := os.Chdir(o.out); err != nil {
-		return inputerr.FromPath(err)
-	}
-	defer os.Chdir(back)
+	in := func(p string) string { return filepath.Join(base, p) }
 	shown := func(p string) string { return filepath.Join(o.out, p) }
 	var cmdlog bytes.Buffer
 	fmt.Fprintf(&cmdlog, "probity demo — %s\n%s: %s %s.\nEverything here is invented.\n\n", version, sc.Organisation, sc.System, sc.Description)
 
-	if err := writeDemoFile("signoff.yaml", func(w io.Writer) error { _, err := io.WriteString(w, demoSignoff); return err }); err != nil {
+	if err := writeDemoFile(in("signoff.yaml"), func(w io.Writer) error { _, err := io.WriteString(w, demoSignoff); return err }); err != nil {
 		return err
 	}
 	step := func(args ...string) (demoRun, error) {
-		r := runDemoStep(d, &cmdlog, demolog.Clock, args)
+		r := runDemoStep(d, base, &cmdlog, demolog.Clock, args)
 		if r.code == exitBadInput || r.code == exitInternal {
 			return r, &internalError{msg: fmt.Sprintf("demo step 'probity %s' failed (exit %d): %s", strings.Join(args, " "), r.code, firstLine(r.stderr))}
 		}
@@ -156,7 +155,7 @@ func runDemo(d deps, o *demoOptions) error {
 	if err != nil {
 		return err
 	}
-	if err := os.MkdirAll(filepath.Dir(keyPath), 0o700); err != nil {
+	if err := os.MkdirAll(in(filepath.Dir(keyPath)), 0o700); err != nil {
 		return err
 	}
 	fingerprints := map[string]string{}
@@ -166,7 +165,7 @@ func runDemo(d deps, o *demoOptions) error {
 		if s.role != "operator" {
 			keyDeps.random = demolog.SignerKeySource(s.role)
 		}
-		r := runDemoStep(keyDeps, &cmdlog, demolog.Clock, []string{"keygen", "--out", s.key})
+		r := runDemoStep(keyDeps, base, &cmdlog, demolog.Clock, []string{"keygen", "--out", s.key})
 		if r.code != exitOK {
 			return &internalError{msg: "demo step keygen failed: " + firstLine(r.stderr)}
 		}
@@ -176,7 +175,7 @@ func runDemo(d deps, o *demoOptions) error {
 			}
 		}
 	}
-	if err := writeDemoFile(demoSignersFile, func(w io.Writer) error {
+	if err := writeDemoFile(in(demoSignersFile), func(w io.Writer) error {
 		fmt.Fprintln(w, "# Who signs the demo's records, in which role, with which key (invented people).")
 		fmt.Fprintln(w, "signers:")
 		for _, s := range demoSigners {
@@ -193,7 +192,7 @@ func runDemo(d deps, o *demoOptions) error {
 	var recDirs []string
 	var last demoMonth
 	for i, m := range months {
-		res, err := runDemoMonth(m, step, &cmdlog, keyPath, i == len(months)-1)
+		res, err := runDemoMonth(m, base, step, &cmdlog, keyPath, i == len(months)-1)
 		if err != nil {
 			return err
 		}
@@ -213,13 +212,13 @@ func runDemo(d deps, o *demoOptions) error {
 	// apart, after it was issued; the approver has not signed yet.
 	for i, s := range demoSigners[:2] {
 		at := demolog.Clock.Add(time.Duration(2+3*i) * time.Hour)
-		r := runDemoStep(d, &cmdlog, at, []string{"sign", last.recDir, "--role", s.role, "--key", s.key, "--signers", demoSignersFile})
+		r := runDemoStep(d, base, &cmdlog, at, []string{"sign", last.recDir, "--role", s.role, "--key", s.key, "--signers", demoSignersFile})
 		if r.code != exitOK {
 			return &internalError{msg: "demo step sign failed: " + firstLine(r.stderr)}
 		}
 		fmt.Fprintf(w, "            signed  %s by %s, %s UTC\n", s.role, s.name, at.Format("2006-01-02 15:04"))
 	}
-	ver := runDemoStep(d, &cmdlog, demolog.Clock.Add(24*time.Hour), []string{"verify", last.recDir, "--signers", demoSignersFile,
+	ver := runDemoStep(d, base, &cmdlog, demolog.Clock.Add(24*time.Hour), []string{"verify", last.recDir, "--signers", demoSignersFile,
 		"--plan", planPath, "--draw", last.drawDir, "--trail", last.trailPath, "--adjudicated", last.adjudicatedPath, "--log", last.logPath})
 	if ver.code == exitBadInput || ver.code == exitInternal {
 		return &internalError{msg: fmt.Sprintf("demo step verify failed (exit %d): %s", ver.code, firstLine(ver.stderr))}
@@ -228,7 +227,7 @@ func runDemo(d deps, o *demoOptions) error {
 	if err != nil {
 		return err
 	}
-	if err := writeDemoFile("commands.txt", func(w io.Writer) error { _, err := w.Write(cmdlog.Bytes()); return err }); err != nil {
+	if err := writeDemoFile(in("commands.txt"), func(w io.Writer) error { _, err := w.Write(cmdlog.Bytes()); return err }); err != nil {
 		return err
 	}
 	other := demoOtherFailures(ver.stdout)
@@ -285,14 +284,14 @@ var demoSecondWrongAt = []int{9, 41}
 // the hidden truth and issues its signed record. For the latest month it
 // also asks `progress` about the first 400 labels, as an operator would
 // midway through labeling.
-func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmdlog *bytes.Buffer, keyPath string, latest bool) (demoMonth, error) {
+func runDemoMonth(m demolog.Scenario, base string, step func(...string) (demoRun, error), cmdlog *bytes.Buffer, keyPath string, latest bool) (demoMonth, error) {
 	res := demoMonth{
 		logPath:    "prediction-log-" + m.Month + ".csv.gz",
 		drawDir:    "draw-" + m.Month,
 		labelsPath: filepath.Join("labels-"+m.Month, "worksheet-labeled.csv"),
 		recDir:     "record-" + m.Month,
 	}
-	if err := writeDemoFile(res.logPath, m.WriteLogGzip); err != nil {
+	if err := writeDemoFile(filepath.Join(base, res.logPath), m.WriteLogGzip); err != nil {
 		return res, err
 	}
 	drawArgs := []string{"draw", "--plan", "plan.yaml", "--log", res.logPath, "--out", res.drawDir, "--period", m.Month, "--date", demoTime(m.Drawn()),
@@ -305,7 +304,7 @@ func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmd
 	}
 	// The latest month is labeled on the page from the scenario's clock
 	// on, and issued (m.Issued) once labeling is done.
-	if err := demoLabelMonth(m, &res, latest, demolog.Clock); err != nil {
+	if err := demoLabelMonth(m, base, &res, latest, demolog.Clock); err != nil {
 		return res, err
 	}
 	if latest {
@@ -322,7 +321,7 @@ func runDemoMonth(m demolog.Scenario, step func(...string) (demoRun, error), cmd
 	fmt.Fprintln(cmdlog)
 	if latest {
 		partial := filepath.Join("labels-"+m.Month, "worksheet-first-400.csv")
-		if err := demoPartial(res.drawDir, partial, res.firstRows, 400); err != nil {
+		if err := demoPartial(base, res.drawDir, partial, res.firstRows, 400); err != nil {
 			return res, err
 		}
 		if _, err := step("progress", "--plan", "plan.yaml", "--draw", res.drawDir, "--labels", partial); err != nil {
@@ -356,8 +355,8 @@ func demoTime(t time.Time) string { return t.UTC().Format(time.RFC3339) }
 // worksheet, as in a spreadsheet (both ways stay open to a user). It
 // writes the labeled worksheets and the adjudication of every
 // disagreement.
-func demoLabelMonth(m demolog.Scenario, res *demoMonth, latest bool, start time.Time) error {
-	f, err := openDemoDraw(res.drawDir)
+func demoLabelMonth(m demolog.Scenario, base string, res *demoMonth, latest bool, start time.Time) error {
+	f, err := openDemoDraw(base, res.drawDir)
 	if err != nil {
 		return err
 	}
@@ -378,24 +377,24 @@ func demoLabelMonth(m demolog.Scenario, res *demoMonth, latest bool, start time.
 		}
 	}
 	if !latest {
-		return writeDemoFile(res.labelsPath, func(w io.Writer) error { return drawfolder.WriteWorksheet(w, f.Manifest.ShowColumns, first) })
+		return writeDemoFile(filepath.Join(base, res.labelsPath), func(w io.Writer) error { return drawfolder.WriteWorksheet(w, f.Manifest.ShowColumns, first) })
 	}
-	firstOut, secondOut, err := demoLabelThroughPage(res.drawDir, first, second, start)
+	firstOut, secondOut, err := demoLabelThroughPage(base, res.drawDir, first, second, start)
 	if err != nil {
 		return err
 	}
 	res.trailPath = demoTrail(res.drawDir)
-	if err := writeDemoFile(res.labelsPath, func(w io.Writer) error { _, err := w.Write(firstOut); return err }); err != nil {
+	if err := writeDemoFile(filepath.Join(base, res.labelsPath), func(w io.Writer) error { _, err := w.Write(firstOut); return err }); err != nil {
 		return err
 	}
 	dir := filepath.Dir(res.labelsPath)
 	res.secondPath = filepath.Join(dir, "worksheet-second-labeled.csv")
 	res.adjudicatedPath = filepath.Join(dir, "adjudication.csv")
 	res.doubled = len(second)
-	if err := writeDemoFile(res.secondPath, func(w io.Writer) error { _, err := w.Write(secondOut); return err }); err != nil {
+	if err := writeDemoFile(filepath.Join(base, res.secondPath), func(w io.Writer) error { _, err := w.Write(secondOut); return err }); err != nil {
 		return err
 	}
-	return writeDemoFile(res.adjudicatedPath, func(w io.Writer) error {
+	return writeDemoFile(filepath.Join(base, res.adjudicatedPath), func(w io.Writer) error {
 		n, err := m.WriteAdjudications(w, first, second)
 		res.adjudicated = n
 		return err
@@ -426,10 +425,13 @@ func demoTrendFlags(out string) string {
 	return strings.Join(flags, "; ")
 }
 
-// runDemoStep runs one probity command line in a fresh command tree with
-// the scenario's clock at now, no terminal and no environment, and captured
-// streams, and appends it to the command log.
-func runDemoStep(d deps, cmdlog *bytes.Buffer, now time.Time, args []string) demoRun {
+// runDemoStep runs one probity command line inside the folder base (its
+// relative paths are taken from there) in a fresh command tree with the
+// scenario's clock at now, no terminal and no environment, and captured
+// streams, and appends it to the command log. The paths the command prints
+// under base are shown relative to it, as the same command line typed
+// inside base prints them.
+func runDemoStep(d deps, base string, cmdlog *bytes.Buffer, now time.Time, args []string) demoRun {
 	var out, errb bytes.Buffer
 	sub := d
 	sub.stdin = strings.NewReader("")
@@ -438,20 +440,23 @@ func runDemoStep(d deps, cmdlog *bytes.Buffer, now time.Time, args []string) dem
 	sub.getenv, sub.readPassword = nil, nil
 	sub.stderrIsTerminal, sub.stdoutIsTerminal = false, false
 	sub.width = 0 // the demo reads its steps' output whole
+	sub.dir = base
 	code := run(args, sub)
-	fmt.Fprintf(cmdlog, "$ probity %s\n%s", quoteArgs(args), out.String())
-	if errb.Len() > 0 {
-		fmt.Fprintf(cmdlog, "[stderr]\n%s", errb.String())
+	inBase := func(s string) string { return strings.ReplaceAll(s, base+string(filepath.Separator), "") }
+	r := demoRun{args: args, stdout: inBase(out.String()), stderr: inBase(errb.String()), code: code}
+	fmt.Fprintf(cmdlog, "$ probity %s\n%s", quoteArgs(args), r.stdout)
+	if r.stderr != "" {
+		fmt.Fprintf(cmdlog, "[stderr]\n%s", r.stderr)
 	}
 	fmt.Fprintf(cmdlog, "[exit %d]\n\n", code)
-	return demoRun{args: args, stdout: out.String(), stderr: errb.String(), code: code}
+	return r
 }
 
 // demoPartial writes the first labeler's worksheet as it stood midway:
 // only the first prefix items keep their labels, as when labeling from the
 // top.
-func demoPartial(drawDir, path string, labeled []drawfolder.WorksheetRow, prefix int) error {
-	f, err := openDemoDraw(drawDir)
+func demoPartial(base, drawDir, path string, labeled []drawfolder.WorksheetRow, prefix int) error {
+	f, err := openDemoDraw(base, drawDir)
 	if err != nil {
 		return err
 	}
@@ -459,17 +464,17 @@ func demoPartial(drawDir, path string, labeled []drawfolder.WorksheetRow, prefix
 	for i := prefix; i < len(rows); i++ {
 		rows[i].Label, rows[i].Note, rows[i].Labeler = "", "", ""
 	}
-	return writeDemoFile(path, func(w io.Writer) error { return drawfolder.WriteWorksheet(w, f.Manifest.ShowColumns, rows) })
+	return writeDemoFile(filepath.Join(base, path), func(w io.Writer) error { return drawfolder.WriteWorksheet(w, f.Manifest.ShowColumns, rows) })
 }
 
 // openDemoDraw opens a draw folder of the demo against the demo's plan,
 // as record and progress open it.
-func openDemoDraw(drawDir string) (*drawfolder.Folder, error) {
-	p, fp, err := planfile.LoadForJudging(demoPlan)
+func openDemoDraw(base, drawDir string) (*drawfolder.Folder, error) {
+	p, fp, err := planfile.LoadForJudging(filepath.Join(base, demoPlan))
 	if err != nil {
 		return nil, err
 	}
-	return drawfolder.Open(drawDir, fp, p.CandidateNames())
+	return drawfolder.Open(filepath.Join(base, drawDir), fp, p.CandidateNames())
 }
 
 // demoArtifact matches the names the demo writes at the top of its folder.

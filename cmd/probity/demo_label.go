@@ -27,9 +27,10 @@ const demoLabelAddress = "http://labeling.invalid"
 // worksheet's sequence giving the labels of first (items marked unsure
 // and the spares the page then offers included); with second, the second
 // labeler (demolog.SecondLabeler) labels the doubled items on the second
-// worksheet's own address. The trail appears in the draw folder; the
-// labeled worksheets derived from it are returned.
-func demoLabelThroughPage(drawDir string, first, second []drawfolder.WorksheetRow, start time.Time) (firstOut, secondOut []byte, err error) {
+// worksheet's own address. drawDir is taken from the demo's folder base.
+// The trail appears in the draw folder; the labeled worksheets derived from
+// it are returned.
+func demoLabelThroughPage(base, drawDir string, first, second []drawfolder.WorksheetRow, start time.Time) (firstOut, secondOut []byte, err error) {
 	tick := start
 	now := func() time.Time {
 		t := tick
@@ -38,7 +39,7 @@ func demoLabelThroughPage(drawDir string, first, second []drawfolder.WorksheetRo
 	}
 	// The access tokens never leave this process: a fixed stream keeps
 	// the demo free of randomness.
-	l, err := openLabeling(labelSetup{planPath: demoPlan, drawDir: drawDir, now: now, random: rand.NewChaCha8([32]byte{'d', 'e', 'm', 'o'})})
+	l, err := openLabeling(labelSetup{planPath: filepath.Join(base, demoPlan), drawDir: filepath.Join(base, drawDir), now: now, random: rand.NewChaCha8([32]byte{'d', 'e', 'm', 'o'})})
 	if err != nil {
 		return nil, nil, err
 	}

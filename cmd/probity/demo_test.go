@@ -14,22 +14,15 @@ import (
 	"time"
 
 	"probity/plan/record"
+	"probity/plan/testkit/needs"
 	"probity/sampling/demolog"
 	"probity/sampling/drawfolder"
 )
 
-// demoDeps returns deps for a demo run whose clock is deliberately not the
-// scenario's: the demo must not depend on the machine's date.
-func demoDeps(stdout, stderr *bytes.Buffer) deps {
-	return deps{
-		stdin:   strings.NewReader(""),
-		stdout:  stdout,
-		stderr:  stderr,
-		now:     func() time.Time { return time.Date(2031, 7, 4, 12, 0, 0, 0, time.UTC) },
-		random:  strings.NewReader(""), // the demo must not need randomness
-		version: "test",
-	}
-}
+// demoTestOptions are the test deps of a demo run: a clock deliberately not
+// the scenario's (the demo must not depend on the machine's date) and no
+// random bytes (the demo must not need randomness).
+var demoTestOptions = []testOption{atTime(time.Date(2031, 7, 4, 12, 0, 0, 0, time.UTC)), withRandom(nil), withVersion("test")}
 
 func sha256File(t *testing.T, path string) string {
 	t.Helper()
@@ -48,17 +41,17 @@ func sha256File(t *testing.T, path string) string {
 // the PDF carries the safety cautions. A second run into another folder
 // must give byte-identical artifacts.
 func TestDemoEndToEnd(t *testing.T) {
+	t.Parallel()
 	runOnce := func(dir string) {
-		var out, errb bytes.Buffer
-		code := run([]string{"demo", "--out", dir}, demoDeps(&out, &errb))
+		code, out, errOut := runTest(t, []string{"demo", "--out", dir}, demoTestOptions...)
 		if code != exitOK {
-			t.Fatalf("demo exit %d\nstdout:\n%s\nstderr:\n%s", code, out.String(), errb.String())
+			t.Fatalf("demo exit %d\nstdout:\n%s\nstderr:\n%s", code, out, errOut)
 		}
 		for _, want := range []string{"invented", "record-2026-11/record.pdf (overall ACCEPT, exit 0)",
 			"signed  prepared by Maren Tøllefsen, 2026-12-01 11:30 UTC", "signed  reviewed by Dr. Ilse Brandvold-Achebe, 2026-12-01 14:30 UTC",
 			"every check passed but authentication, as it must: the demo's keys are published (exit 1)", "trend.png", "charted as unauthenticated"} {
-			if !strings.Contains(out.String(), want) {
-				t.Errorf("demo output lacks %q:\n%s", want, out.String())
+			if !strings.Contains(out, want) {
+				t.Errorf("demo output lacks %q:\n%s", want, out)
 			}
 		}
 	}
@@ -177,18 +170,17 @@ func TestDemoEndToEnd(t *testing.T) {
 	// An independent verify run on the artifacts: every check passes but
 	// the authentication, which fails on the published keys alone, even
 	// with the demo's key passed as trusted.
-	var out, errb bytes.Buffer
 	rd := filepath.Join(a, "record-2026-11")
-	code := run([]string{"verify", rd, "--pub", filepath.Join(a, "keys", "demo-signing-key.pub"), "--signers", filepath.Join(a, "signers.yaml"),
+	code, out, errOut := runTest(t, []string{"verify", rd, "--pub", filepath.Join(a, "keys", "demo-signing-key.pub"), "--signers", filepath.Join(a, "signers.yaml"),
 		"--plan", filepath.Join(a, "plan.yaml"), "--draw", filepath.Join(a, "draw-2026-11"),
 		"--labels", filepath.Join(a, "labels-2026-11", "worksheet-labeled.csv"),
 		"--second", filepath.Join(a, "labels-2026-11", "worksheet-second-labeled.csv"),
 		"--adjudicated", filepath.Join(a, "labels-2026-11", "adjudication.csv"),
-		"--trail", filepath.Join(a, "draw-2026-11", "label-trail.jsonl")}, demoDeps(&out, &errb))
-	if code != exitRejected || !strings.Contains(out.String(), "judgement recomputed") || !strings.Contains(out.String(), "and its 2 signatures") ||
-		!strings.Contains(out.String(), "label trail fingerprint") ||
-		len(demoOtherFailures(out.String())) != 0 || strings.Count(out.String(), "published demonstration key") != 3 {
-		t.Fatalf("verify exit %d:\n%s\n%s", code, out.String(), errb.String())
+		"--trail", filepath.Join(a, "draw-2026-11", "label-trail.jsonl")}, demoTestOptions...)
+	if code != exitRejected || !strings.Contains(out, "judgement recomputed") || !strings.Contains(out, "and its 2 signatures") ||
+		!strings.Contains(out, "label trail fingerprint") ||
+		len(demoOtherFailures(out)) != 0 || strings.Count(out, "published demonstration key") != 3 {
+		t.Fatalf("verify exit %d:\n%s\n%s", code, out, errOut)
 	}
 
 	// The command log shows the monthly steps: progress midway and the trend.
@@ -202,8 +194,8 @@ func TestDemoEndToEnd(t *testing.T) {
 		}
 	}
 
-	if _, err := exec.LookPath("pdftotext"); err == nil {
-		txt, err := exec.Command("pdftotext", "-layout", filepath.Join(rd, "record.pdf"), "-").Output()
+	t.Run("record.pdf", func(t *testing.T) {
+		txt, err := exec.Command(needs.Program(t, "pdftotext"), "-layout", filepath.Join(rd, "record.pdf"), "-").Output()
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -213,9 +205,7 @@ func TestDemoEndToEnd(t *testing.T) {
 				t.Errorf("record.pdf text lacks %q", want)
 			}
 		}
-	} else if os.Getenv("CI") != "" {
-		t.Fatal("pdftotext (poppler-utils) is required in CI")
-	}
+	})
 
 	// Reproducible: a second run elsewhere gives the same bytes.
 	b := filepath.Join(t.TempDir(), "demo-b")
@@ -229,17 +219,18 @@ func TestDemoEndToEnd(t *testing.T) {
 
 // TestDemoRefusesNonEmptyFolder: bad usage exits 2 and touches nothing.
 func TestDemoRefusesNonEmptyFolder(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	keep := filepath.Join(dir, "notes.txt")
 	if err := os.WriteFile(keep, []byte("mine"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	var out, errb bytes.Buffer
-	if code := run([]string{"demo", "--out", dir}, demoDeps(&out, &errb)); code != exitBadInput {
-		t.Fatalf("exit %d, want 2; stderr %s", code, errb.String())
+	code, _, errOut := runTest(t, []string{"demo", "--out", dir}, demoTestOptions...)
+	if code != exitBadInput {
+		t.Fatalf("exit %d, want 2; stderr %s", code, errOut)
 	}
-	if !strings.Contains(errb.String(), "is not empty") || !strings.Contains(errb.String(), "hint: ") {
-		t.Errorf("stderr %q", errb.String())
+	if !strings.Contains(errOut, "is not empty") || !strings.Contains(errOut, "hint: ") {
+		t.Errorf("stderr %q", errOut)
 	}
 	entries, _ := os.ReadDir(dir)
 	if len(entries) != 1 {

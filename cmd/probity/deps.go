@@ -26,6 +26,9 @@ type deps struct {
 	stdoutIsTerminal bool
 	// version is the tool version written into every artifact.
 	version string
+	// dir is the folder relative paths on the command line are taken from
+	// (see takePathsFrom); empty for the process's working directory.
+	dir string
 	// width, when above 0, is the number of columns people's output is
 	// fitted into (lines broken at spaces; see fitWriter).
 	width int

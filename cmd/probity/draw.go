@@ -24,29 +24,34 @@ import (
 
 // drawOptions are the flags of probity draw.
 type drawOptions struct {
-	planPath    string
-	logPath     string
-	out         string
-	check       string
-	format      string
-	id          string
-	strata      []string
-	bands       []string
-	show        []string
-	where       []string
-	allocation  string
-	minPer      int
-	anticipated string
-	spare       int
-	dedupe      string
-	double      int
-	period      string
-	date        string
-	timeColumn  string
-	days        string
-	force       bool
-	quiet       bool
-	maxLine     string
+	planPath   string
+	logPath    string
+	out        string
+	check      string
+	format     string
+	id         string
+	strata     []string
+	bands      []string
+	show       []string
+	where      []string
+	allocation string
+	minPer     int
+	minPerSet  bool
+	rounding   string
+	// allocationSet and roundingSet record whether the flags were given
+	// (a plan sized for a stratified design supplies the defaults).
+	allocationSet, roundingSet bool
+	anticipated                string
+	spare                      int
+	dedupe                     string
+	double                     int
+	period                     string
+	date                       string
+	timeColumn                 string
+	days                       string
+	force                      bool
+	quiet                      bool
+	maxLine                    string
 
 	parsedBands   []sampling.Band
 	parsedMaxLine int64
@@ -82,13 +87,27 @@ the values of the --strata columns joined with | in the order given, then the
 [0,0.5), [0.5,0.9) and [0.9,1].
 
 The plan's n is allocated across strata --allocation proportional (the
-default; largest remainder, ties by stratum label in byte order), neyman
-(n_h ∝ N_h·√(p_h(1−p_h)), p_h from --anticipated FILE, a CSV with columns
-stratum,anticipated_error or a YAML mapping, or derived from the first band as
-min(m, 1−m) at the interval midpoint m) or equal. A stratum smaller than its
-share is taken whole and the rest shared again. --min-per-stratum k raises
-small strata to k; the inclusion weights N_h/n_h are then unequal and
-recorded.
+default), neyman (n_h ∝ N_h·√(p_h(1−p_h)), p_h from --anticipated FILE, a CSV
+with columns stratum,anticipated_error or a YAML mapping, or derived from the
+first band as min(m, 1−m) at the interval midpoint m) or equal. Proportional
+shares are rounded up (--rounding up, the default): every stratum gets
+⌈n·N_h/N⌉ items, so none is sampled below its share and every stratum gets an
+item, at the cost of at most one label per stratum beyond n;
+--rounding largest-remainder keeps exactly n (ties by stratum label in byte
+order). Neyman and equal shares are rounded by largest remainder, and a
+stratum smaller than its share is taken whole and the rest shared again.
+Every stratum gets at least --min-per-stratum k items (default 1 when the
+sample has room for one per stratum; --min-per-stratum 0 lets a stratum get
+none). A stratum with no item counts as unknown in the verdict: all of its
+decisions may be errors.
+
+Unless the allocation is exactly proportional, the verdict rests on the
+stratified count rule (see probity record --help), which keeps the plan's
+consumer's risk under any allocation; draw prints that rule — its acceptance
+number, the items it counts, and the producer's risk it gives at the
+anticipated error — before any label is given. A sequential plan needs a
+draw without strata: its boundaries count errors down the worksheet, and
+only an unstratified worksheet has every prefix a simple random sample.
 
 DIR receives, each written to a temporary name and renamed:
   worksheet.csv         for the labelers: item, record_id, the --show columns,
@@ -123,6 +142,11 @@ Labels written into the worksheets since the draw are not differences.
   probity draw --check audit-2026-11 --plan plan.yaml --log predictions.csv.gz`,
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
+			opts.minPerSet = cmd.Flags().Changed("min-per-stratum")
+			opts.allocationSet, opts.roundingSet = cmd.Flags().Changed("allocation"), cmd.Flags().Changed("rounding")
+			if cmd.Flags().Changed("rounding") && opts.allocation != sampling.Proportional {
+				return inputerr.Errorf("--rounding applies to --allocation proportional only").WithHint("drop --rounding")
+			}
 			return opts.validate()
 		},
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -144,7 +168,8 @@ Labels written into the worksheets since the draw are not differences.
 	fl.StringSliceVar(&opts.show, "show", nil, "columns the labelers see in the worksheet (`COL,...`)")
 	fl.StringArrayVar(&opts.where, "where", nil, "draw only from rows whose COLUMN holds one of the values: `COLUMN=V1,V2` (repeatable)")
 	fl.StringVar(&opts.allocation, "allocation", sampling.Proportional, "how n is divided among strata: `RULE` is proportional, neyman or equal")
-	fl.IntVar(&opts.minPer, "min-per-stratum", 0, "at least `k` items from every stratum (weights become unequal)")
+	fl.IntVar(&opts.minPer, "min-per-stratum", 1, "at least `k` items from every stratum (default 1 when the sample has room; 0 leaves strata that get no share empty, counted as unknown)")
+	fl.StringVar(&opts.rounding, "rounding", sampling.RoundUp, "proportional shares rounded `up` (no stratum below its share; up to one item per stratum beyond n) or largest-remainder (exactly n)")
 	fl.StringVar(&opts.anticipated, "anticipated", "", "anticipated error per stratum for neyman: CSV (stratum,anticipated_error) or YAML `FILE`")
 	fl.IntVar(&opts.spare, "spare", 0, "`k` spare items per stratum, next in key order, to replace items that cannot be labeled")
 	fl.StringVar(&opts.dedupe, "dedupe", "", "with `first`: keep the first row of a repeated record id instead of refusing")
@@ -203,9 +228,6 @@ func (o *drawOptions) validate() error {
 			return inputerr.Errorf("--anticipated is only used by --allocation neyman").WithHint("add --allocation neyman, or drop --anticipated")
 		}
 	case sampling.Neyman:
-		if o.anticipated == "" && len(o.bands) == 0 {
-			return inputerr.Errorf("--allocation neyman needs the anticipated error of each stratum").WithHint("give --anticipated FILE (CSV stratum,anticipated_error or YAML), or stratify by a score band (--band score=0.5,0.9) to derive it")
-		}
 	default:
 		return inputerr.Errorf("--allocation %s is not proportional, neyman or equal", o.allocation).WithHint("the default is proportional")
 	}
@@ -216,6 +238,9 @@ func (o *drawOptions) validate() error {
 		if v.n < 0 {
 			return inputerr.Errorf("%s %d is negative", v.name, v.n)
 		}
+	}
+	if o.rounding != sampling.RoundUp && o.rounding != sampling.RoundLargestRemainder {
+		return inputerr.Errorf("--rounding %s is not %s or %s", o.rounding, sampling.RoundUp, sampling.RoundLargestRemainder).WithHint("the default, up, keeps every stratum at or above its proportional share")
 	}
 	if o.dedupe != "" && o.dedupe != "first" {
 		return inputerr.Errorf("--dedupe %s is not supported", o.dedupe).WithHint("--dedupe first keeps the first row of each repeated id")
@@ -328,6 +353,12 @@ func runDraw(d deps, o *drawOptions) error {
 	if err != nil {
 		return err
 	}
+	if err := refuseStratifiedSequential(p, o); err != nil {
+		return err
+	}
+	if err := o.planDesign(p); err != nil {
+		return err
+	}
 	if err := safewrite.CheckFolder(o.out, o.force); err != nil {
 		return drawError(err)
 	}
@@ -338,16 +369,19 @@ func runDraw(d deps, o *drawOptions) error {
 	days, _ := chrono.ParseDayRange(o.days)
 	in := sampling.DrawInput{
 		TimeColumn: timeColumn, Days: days,
-		Plan: p, PlanFingerprint: fp, LogPath: o.logPath, Format: o.format, Period: o.period,
+		Plan: p, PlanFingerprint: fp, LogPath: d.given(o.logPath), Format: o.format, Period: o.period,
 		IDColumn: o.id, StrataColumns: o.strata, Bands: o.parsedBands, Where: o.parsedWhere, Show: o.show,
-		Alloc:  sampling.AllocOptions{Rule: o.allocation, MinPerStratum: o.minPer, Spare: o.spare},
+		Alloc:  o.allocOptions(),
 		Double: o.double, Dedupe: o.dedupe == "first", MaxLine: o.parsedMaxLine, ToolVersion: d.version,
 	}
 	if err := addDrawMeasures(o, &in); err != nil {
 		return err
 	}
 	if o.allocation == sampling.Neyman {
-		if o.anticipated != "" {
+		if st := p.Stratification; st != nil && o.anticipated == "" && len(o.bands) == 0 {
+			in.Alloc.Anticipated = st.Rates()
+			in.NeymanSource = "the plan's stratification"
+		} else if o.anticipated != "" {
 			a, err := sampling.ReadAnticipated(o.anticipated)
 			if err != nil {
 				return drawError(err)
@@ -376,7 +410,58 @@ func runDraw(d deps, o *drawOptions) error {
 		fmt.Fprintf(d.stderr, "probity: warning: the log does not cover days %s to %s: %s without rows, %s dated outside them; the record will say so on page 1\n",
 			c.From, c.To, plural(c.EmptyDayCount, "day"), plural(int(c.RowsBefore+c.RowsAfter), "row"))
 	}
+	return writeDrawRule(d.stdout, p, f.Manifest)
+}
+
+// allocOptions are the allocation flags: the default minimum of one per
+// stratum applies only when the sample has room for it; an explicit
+// --min-per-stratum always does.
+func (o *drawOptions) allocOptions() sampling.AllocOptions {
+	a := sampling.AllocOptions{Rule: o.allocation, MinPerStratum: o.minPer, MinIfRoom: !o.minPerSet, Spare: o.spare}
+	if o.allocation == sampling.Proportional {
+		a.Rounding = o.rounding
+	}
+	return a
+}
+
+// planDesign takes the allocation from a plan sized for a stratified
+// design when the flags do not give it, and refuses a different one: the
+// plan's n and risks hold for its own allocation.
+func (o *drawOptions) planDesign(p *plan.File) error {
+	st := p.Stratification
+	if st == nil {
+		if o.allocation == sampling.Neyman && o.anticipated == "" && len(o.bands) == 0 {
+			return inputerr.Errorf("--allocation neyman needs the anticipated error of each stratum").WithHint("give --anticipated FILE (CSV stratum,anticipated_error or YAML), or stratify by a score band (--band score=0.5,0.9) to derive it")
+		}
+		return nil
+	}
+	if o.allocationSet && o.allocation != st.Allocation {
+		return inputerr.Errorf("--allocation %s differs from the plan's %s allocation, for which its sample size and risks were computed", o.allocation, st.Allocation).
+			WithHint("drop --allocation, or plan again with --allocation " + o.allocation)
+	}
+	o.allocation = st.Allocation
+	if !o.minPerSet {
+		o.minPer = st.MinPerStratum
+	}
+	if !o.roundingSet && st.Rounding != "" {
+		o.rounding = st.Rounding
+	}
+	if len(o.strata)+len(o.bands) == 0 {
+		return inputerr.Errorf("the plan was sized for a stratified draw (%d strata), but no --strata or --band is given", len(st.Strata)).
+			WithHint("stratify the draw as planned, e.g. --strata COLUMN")
+	}
 	return nil
+}
+
+// refuseStratifiedSequential refuses to draw a sequential plan with strata:
+// its boundaries count errors down the worksheet, and a prefix of a
+// stratified worksheet is not a simple random sample of the population.
+func refuseStratifiedSequential(p *plan.File, o *drawOptions) error {
+	if p.Sequential == nil || len(o.strata)+len(o.bands) == 0 {
+		return nil
+	}
+	return inputerr.Errorf("the plan is sequential, and a sequential plan cannot be drawn with --strata or --band: its boundaries count errors down the worksheet, and only an unstratified worksheet has every prefix a simple random sample").
+		WithHint("drop --strata and --band, or make a fixed plan (probity plan --design fixed) for a stratified draw")
 }
 
 // drawTimeColumn is the log's time column: --time-column, or the one the

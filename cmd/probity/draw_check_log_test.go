@@ -18,6 +18,7 @@ import (
 // "the draw folder is not what chance picked"): the manifest fingerprints
 // the decompressed content too.
 func TestCheckAgainstAnotherLog(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	jsonl := writeGenLog(t, dir, "log.jsonl.gz", loggen.Config{Rows: 3000, Seed: 21, Format: "jsonl", Gzip: true})
 	tsv := writeGenLog(t, dir, "log.tsv.gz", loggen.Config{Rows: 3000, Seed: 21, Format: "tsv", Gzip: true})

@@ -56,6 +56,8 @@ func loadCHLog(t *testing.T, c *chcluster.Cluster, rows int) {
 // draw from an export of the table, compare, and check the folder with
 // draw --check against the export.
 func TestDrawClickHouse(t *testing.T) {
+	// Not in parallel with the other tests: each ClickHouse test starts a
+	// two-shard cluster, and two at once would compete for ports and memory.
 	c := chcluster.Start(t)
 	loadCHLog(t, c, 30000)
 	dir := t.TempDir()
@@ -85,8 +87,9 @@ func TestDrawClickHouse(t *testing.T) {
 		t.Errorf("the seed is not a backslash-escaped literal in the selection query")
 	}
 	// The same, with the draw's flags repeated, prints the same query.
-	if code, again, _ := runDrawCmd(t, nil, append([]string{"--plan", sqlPlan, "--sql", "clickhouse", "--table", "default.predictions", "--counts", counts, "-q"}, flags...)...); code != exitOK || again != selectionQuery {
-		t.Errorf("with the flags repeated: exit %d, same query %v", code, again == selectionQuery)
+	if code, again, errOut := runDrawCmd(t, nil, append([]string{"--plan", sqlPlan, "--sql", "clickhouse", "--table", "default.predictions", "--counts", counts, "-q"}, flags...)...); code != exitOK || again != selectionQuery {
+		again += errOut
+		t.Errorf("with the flags repeated: exit %d, same query %v: %s", code, again == selectionQuery, again)
 	}
 	selected := filepath.Join(dir, "selected.csv")
 	if err := os.WriteFile(selected, c.MustQuery(t, selectionQuery, nil), 0o644); err != nil {
@@ -99,7 +102,7 @@ func TestDrawClickHouse(t *testing.T) {
 		t.Fatalf("--counts --selected: exit %d: %s", code, stderr)
 	}
 	countsData, _ := os.ReadFile(counts)
-	for _, want := range []string{"drew 400 items", "(null)|web", "drawn inside clickhouse from table default.predictions (the log above is the query's result); query sha256 " + drawfolder.SHA256Hex([]byte(selectionQuery)),
+	for _, want := range []string{"drew 410 items", "(null)|web", "drawn inside clickhouse from table default.predictions (the log above is the query's result); query sha256 " + drawfolder.SHA256Hex([]byte(selectionQuery)),
 		"allocated from the counts in " + counts + " (sha256 " + drawfolder.SHA256Hex(countsData) + ")"} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("--selected output lacks %q:\n%s", want, stdout)
@@ -170,6 +173,7 @@ func TestDrawClickHouse(t *testing.T) {
 // TestDrawClickHouseLongQuery checks that a selection query longer than
 // ClickHouse parses by default comes with the client flag to run it.
 func TestDrawClickHouseLongQuery(t *testing.T) {
+	t.Parallel()
 	p, fp, err := loadDrawPlan(sqlPlan)
 	if err != nil {
 		t.Fatal(err)

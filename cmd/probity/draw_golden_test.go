@@ -2,21 +2,21 @@ package main
 
 import (
 	"bytes"
-	"flag"
 	"os"
 	"path/filepath"
 	"testing"
-)
 
-var updateDrawGolden = flag.Bool("update-draw", false, "rewrite the draw golden files in testdata/draw/golden")
+	"probity/plan/testkit/golden"
+)
 
 // TestDrawGolden locks a fixed-seed draw of a fixed log: the worksheets,
 // ledger, manifest and summary must not change without a deliberate
-// -update-draw (a regression guard for the selection, allocation,
+// -update (a regression guard for the selection, allocation,
 // ordering and number formatting; the selection itself is checked
 // independently in sampling's tests).
 func TestDrawGolden(t *testing.T) {
-	golden := "../../testdata/draw/golden"
+	t.Parallel()
+	goldenDir := "../../testdata/draw/golden"
 	out := filepath.Join(t.TempDir(), "draw")
 	code, stdout, stderr := runDrawCmd(t, nil, "--plan", drawPlan, "--log", "../../testdata/draw/log-small.csv", "--out", out,
 		"--strata", "channel", "--band", "score=0.5,0.9", "--show", "text", "--spare", "1", "--double", "12", "--min-per-stratum", "40")
@@ -32,20 +32,6 @@ func TestDrawGolden(t *testing.T) {
 		files[name] = b
 	}
 	for name, got := range files {
-		path := filepath.Join(golden, name)
-		if *updateDrawGolden {
-			os.MkdirAll(golden, 0o755)
-			if err := os.WriteFile(path, got, 0o644); err != nil {
-				t.Fatal(err)
-			}
-			continue
-		}
-		want, err := os.ReadFile(path)
-		if err != nil {
-			t.Fatalf("%v (run go test ./cmd/probity -run TestDrawGolden -update-draw)", err)
-		}
-		if !bytes.Equal(got, want) {
-			t.Errorf("%s differs from %s", name, path)
-		}
+		golden.Compare(t, filepath.Join(goldenDir, name), got)
 	}
 }

@@ -42,6 +42,7 @@ func writeLog(t *testing.T, name, content string) string {
 // not valid UTF-8 is refused with its line in CSV, TSV and JSON Lines
 // alike (JSON Lines used to rewrite it to U+FFFD).
 func TestDrawRefusesIDsNotUTF8(t *testing.T) {
+	t.Parallel()
 	logs := map[string]string{
 		"log.csv":   "record_id,model_a,score\nr1,ok,0.1\nr\xe92,ok,0.2\n",
 		"log.tsv":   "record_id\tmodel_a\tscore\nr1\tok\t0.1\nr\xe92\tok\t0.2\n",
@@ -64,6 +65,7 @@ func TestDrawRefusesIDsNotUTF8(t *testing.T) {
 // line over the limit and spares beyond the sample are refused before
 // memory grows with them; --max-line raises the limit.
 func TestDrawBoundsMemory(t *testing.T) {
+	t.Parallel()
 	long := writeLog(t, "long.csv", "record_id,model_a,score,text\nr1,ok,0.1,"+strings.Repeat("x", 2<<20)+"\n")
 	refusedDraw(t, nil, []string{
 		"probity: " + long + " line 2: the line is longer than 1 MiB",
@@ -90,6 +92,7 @@ func TestDrawBoundsMemory(t *testing.T) {
 // --json given as --plan is refused in one line saying what it is (before:
 // 26 lines of Go type names).
 func TestPlanJSONIsNotAPlanFile(t *testing.T) {
+	t.Parallel()
 	code, report, stderr := runProbity(t, "plan", "--ceiling", "0.05", "--confidence", "0.9", "--candidate", "a=model_a", "--classes", "ok,fraud", "--json")
 	if code != exitOK {
 		t.Fatal(stderr)
@@ -106,6 +109,7 @@ func TestPlanJSONIsNotAPlanFile(t *testing.T) {
 // which exists but takes no new folders, says so (it used to say that
 // /proc does not exist, then only "no such file or directory").
 func TestOutInAFolderThatTakesNoFiles(t *testing.T) {
+	t.Parallel()
 	if err := os.Mkdir("/proc/probity-test", 0o755); err == nil || !os.IsNotExist(err) {
 		os.Remove("/proc/probity-test")
 		t.Skip("no /proc that refuses new folders here")
@@ -121,6 +125,7 @@ func TestOutInAFolderThatTakesNoFiles(t *testing.T) {
 // TestPluralForms (issue 16, item 18): counts of one take the singular
 // ("in 1 strata" and "at most 1 errors" before).
 func TestPluralForms(t *testing.T) {
+	t.Parallel()
 	log := writeGenLog(t, t.TempDir(), "log.csv", loggen.Config{Rows: 2000, Seed: 14})
 	out := filepath.Join(t.TempDir(), "draw")
 	code, stdout, stderr := runDrawCmd(t, nil, "--plan", drawPlan, "--log", log, "--out", out, "--spare", "1")
@@ -136,6 +141,7 @@ func TestPluralForms(t *testing.T) {
 // TestBudgetRefusesWhatItIgnores (issue 16, item 18): with --budget every
 // flag that only shapes a plan is refused rather than silently ignored.
 func TestBudgetRefusesWhatItIgnores(t *testing.T) {
+	t.Parallel()
 	for _, f := range [][]string{{"--producer-risk", "0.2"}, {"--require", "any"}, {"--seed", "abc"}, {"--system", "x"}, {"--classes", "a,b"}} {
 		code, stdout, stderr := runProbity(t, append([]string{"plan", "--budget", "100", "--confidence", "0.9"}, f...)...)
 		want := "probity: " + f[0] + " has no effect with --budget, which makes no plan\nhint: drop --budget to make a plan\n"
@@ -149,6 +155,7 @@ func TestBudgetRefusesWhatItIgnores(t *testing.T) {
 // break says so (it said "leading or trailing spaces"), and a label a
 // trend could not line up is refused before drawing.
 func TestPeriodWithALineBreak(t *testing.T) {
+	t.Parallel()
 	log := writeGenLog(t, t.TempDir(), "log.csv", loggen.Config{Rows: 1000, Seed: 15})
 	for period, want := range map[string]string{
 		"2026-11\n": `probity: --period "2026-11\n" holds a line break`,

@@ -85,6 +85,8 @@ func hookDrawSQL(d deps, cmd *cobra.Command, o *drawOptions) {
   probity draw --plan plan.yaml --counts counts.csv --selected selected.csv --out audit-2026-11`
 	pre, run := cmd.PreRunE, cmd.RunE
 	cmd.PreRunE = func(c *cobra.Command, args []string) error {
+		o.minPerSet = c.Flags().Changed("min-per-stratum")
+		o.allocationSet, o.roundingSet = c.Flags().Changed("allocation"), c.Flags().Changed("rounding")
 		if so.dialect == "" && so.selected == "" {
 			if so.table != "" {
 				return inputerr.Errorf("--table is only used with --sql").WithHint("add --sql postgres, duckdb or clickhouse to print the drawing query")
@@ -190,12 +192,30 @@ func drawSpec(d deps, o *drawOptions, so *drawSQLOptions, planPath string) (*sql
 	if err := refuseTimeColumnInEngine(p, planPath); err != nil {
 		return nil, err
 	}
+	if err := refuseStratifiedSequential(p, o); err != nil {
+		return nil, err
+	}
+	if err := o.planDesign(p); err != nil {
+		return nil, err
+	}
+	// Inside the engine the minimum is what --min-per-stratum says: the
+	// default of one per stratum is left to the rounding (proportional
+	// shares rounded up give every stratum an item; equal shares do when
+	// the sample has room), since the query cannot know the strata first.
+	minPer := 0
+	if o.minPerSet {
+		minPer = o.minPer
+	}
+	rounding := ""
+	if o.allocation == sampling.Proportional {
+		rounding = o.rounding
+	}
 	s := &sqlquery.Spec{
 		Format: sqlquery.QueryFormat, ToolVersion: d.version, Dialect: sqlquery.Dialect(so.dialect),
 		PlanFingerprint: fp, Seed: p.Seed, Period: o.period, SelectionSeed: p.Seed,
 		Table: so.table, IDColumn: o.id, Strata: o.strata, Show: o.show,
 		Candidates: p.Candidates, SampleSize: p.Rule.SampleSize,
-		Allocation: o.allocation, MinPerStratum: o.minPer, Spare: o.spare, Double: o.double,
+		Allocation: o.allocation, MinPerStratum: minPer, Spare: o.spare, Double: o.double, Rounding: rounding,
 	}
 	if o.period != "" {
 		s.SelectionSeed = sampling.PeriodSeed(p.Seed, o.period)
@@ -367,7 +387,7 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 	if res.Counts != nil {
 		fmt.Fprintf(d.stdout, "allocated from the counts in %s (sha256 %s)\n", res.Counts.Path, res.Counts.SHA256)
 	}
-	return nil
+	return writeDrawRule(d.stdout, p, f.Manifest)
 }
 
 // checkResultFlags refuses a draw setting given with --selected (or with
@@ -404,6 +424,7 @@ func checkResultFlags(file string, c *cobra.Command, o *drawOptions, so *drawSQL
 		{"show", strings.Join(o.show, ","), strings.Join(s.Show, ",")},
 		{"allocation", o.allocation, s.Allocation},
 		{"min-per-stratum", strconv.Itoa(o.minPer), strconv.Itoa(s.MinPerStratum)},
+		{"rounding", o.rounding, s.Rounding},
 		{"spare", strconv.Itoa(o.spare), strconv.Itoa(s.Spare)},
 		{"double", strconv.Itoa(o.double), strconv.Itoa(s.Double)},
 		{"period", o.period, s.Period},

@@ -11,6 +11,7 @@ import (
 	"strings"
 	"testing"
 
+	"probity/plan/testkit/pgtest"
 	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
 )
@@ -20,39 +21,28 @@ const (
 	sqlOtherPlan = "../../testdata/sql/plan-other-seed.yaml" // same but another seed
 )
 
-// testPG runs psql against the test server of .ci/run
-// (PROBITY_TEST_PGHOST, PROBITY_TEST_PGUSER); tests skip without it, and
-// fail when CI is set.
-type testPG struct{ host, user string }
+// testPG runs psql against the test server of probity/plan/testkit/pgtest (a
+// throw-away cluster, or the server PROBITY_TEST_PGHOST names); tests skip
+// without PostgreSQL, and fail when CI is set.
+type testPG struct{ *pgtest.Server }
 
 func needTestPG(t *testing.T) *testPG {
 	t.Helper()
-	host := os.Getenv("PROBITY_TEST_PGHOST")
-	if _, err := exec.LookPath("psql"); host == "" || err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("PostgreSQL is not configured (PROBITY_TEST_PGHOST unset or psql missing)")
-		}
-		t.Skip("PostgreSQL is not configured (PROBITY_TEST_PGHOST unset or psql missing)")
-	}
-	user := os.Getenv("PROBITY_TEST_PGUSER")
-	if user == "" {
-		user = "postgres"
-	}
-	return &testPG{host: host, user: user}
+	return &testPG{pgtest.Need(t)}
 }
 
 // psql runs one statement (-c) or, with script true, a script on stdin;
 // stdin feeds COPY … FROM STDIN.
 func (pg *testPG) psql(t *testing.T, sql string, stdin []byte, script bool, args ...string) []byte {
 	t.Helper()
-	argv := append([]string{"-h", pg.host, "-U", pg.user, "-X", "-q", "-v", "ON_ERROR_STOP=1", "-d", "postgres"}, args...)
+	argv := append(append(pg.Args("postgres"), "-X", "-q", "-v", "ON_ERROR_STOP=1"), args...)
 	if script {
 		argv = append(argv, "-f", "-")
 		stdin = []byte(sql)
 	} else {
 		argv = append(argv, "-c", sql)
 	}
-	cmd := exec.Command("psql", argv...)
+	cmd := exec.Command(pg.Psql, argv...)
 	cmd.Stdin = bytes.NewReader(stdin)
 	var out, errb bytes.Buffer
 	cmd.Stdout, cmd.Stderr = &out, &errb
@@ -87,6 +77,7 @@ func (pg *testPG) loadLogTable(t *testing.T, rows int) string {
 // would: print the query, run it with psql, import the result; then draw
 // from an export of the same table and check the folder against it.
 func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
+	t.Parallel()
 	pg := needTestPG(t)
 	table := pg.loadLogTable(t, 30000)
 	dir := t.TempDir()
@@ -113,7 +104,8 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("--selected: exit %d: %s", code, stderr)
 	}
-	for _, want := range []string{"drew 400 items", "(null)|web", "drawn inside postgres from table " + table + " (the log above is the query's result); query sha256 " + querySHA} {
+	// 400 planned; proportional shares rounded up over the 15 strata add 10.
+	for _, want := range []string{"drew 410 items", "(null)|web", "drawn inside postgres from table " + table + " (the log above is the query's result); query sha256 " + querySHA} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("--selected output lacks %q:\n%s", want, stdout)
 		}
@@ -245,6 +237,7 @@ func TestDrawSQLMatchesDrawFromExport(t *testing.T) {
 // TestDrawSQLFlags checks the flag combinations refused before anything is
 // read or printed.
 func TestDrawSQLFlags(t *testing.T) {
+	t.Parallel()
 	cases := []struct {
 		args []string
 		want string

@@ -13,6 +13,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/planfile"
+	"probity/plan/sequential"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/loggen"
@@ -22,11 +23,8 @@ const drawPlan = "../../testdata/draw/plan.yaml"
 
 func runDrawCmd(t *testing.T, stdin []byte, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{stdin: bytes.NewReader(stdin), stdout: &out, stderr: &errb, now: func() time.Time { return time.Date(2026, 12, 1, 7, 15, 0, 0, time.UTC) },
-		random: strings.NewReader(strings.Repeat("x", 64)), version: "test"}
-	code := run(append([]string{"draw"}, args...), d)
-	return code, out.String(), errb.String()
+	return runTest(t, append([]string{"draw"}, args...), withStdin(bytes.NewReader(stdin)), withVersion("test"),
+		atTime(time.Date(2026, 12, 1, 7, 15, 0, 0, time.UTC)))
 }
 
 func writeGenLog(t *testing.T, dir, name string, c loggen.Config) string {
@@ -43,6 +41,7 @@ func writeGenLog(t *testing.T, dir, name string, c loggen.Config) string {
 }
 
 func TestDrawThenCheck(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 6000, Seed: 4})
 	out := filepath.Join(dir, "audit")
@@ -51,7 +50,9 @@ func TestDrawThenCheck(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	for _, want := range []string{"drew 581 items and 24 spares from 6000 rows in scope (6000 read) in 12 strata", "doubled: items 1–30 also in worksheet-second.csv", "east|app"} {
+	// 12 strata, shares rounded up: 6 items beyond the plan's 581.
+	for _, want := range []string{"drew 587 items and 24 spares from 6000 rows in scope (6000 read) in 12 strata", "doubled: items 1–30 also in worksheet-second.csv", "east|app",
+		"allocation note: proportional shares rounded up: 587 items where the plan asks for 581", "verdict: the stratified count rule"} {
 		if !strings.Contains(stdout, want) {
 			t.Errorf("stdout lacks %q:\n%s", want, stdout)
 		}
@@ -111,6 +112,7 @@ func TestDrawThenCheck(t *testing.T) {
 }
 
 func TestDrawStdinGzipPeriod(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	var b bytes.Buffer
 	loggen.Write(&b, loggen.Config{Rows: 3000, Seed: 6, Gzip: true})
@@ -138,6 +140,7 @@ func TestDrawStdinGzipPeriod(t *testing.T) {
 }
 
 func TestDrawBadInput(t *testing.T) {
+	t.Parallel()
 	var gz bytes.Buffer
 	loggen.Write(&gz, loggen.Config{Rows: 5000, Seed: 1, Gzip: true})
 	truncated := gz.Bytes()[:gz.Len()*2/3]
@@ -235,6 +238,7 @@ func TestDrawBadInput(t *testing.T) {
 }
 
 func TestDrawPopulationPlan(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	p, _, err := planfile.Load(drawPlan)
 	if err != nil {
@@ -270,15 +274,15 @@ func TestDrawPopulationPlan(t *testing.T) {
 }
 
 func TestDrawProgressBarOnlyOnTerminal(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	var gzb bytes.Buffer
 	zw := gzip.NewWriter(&gzb)
 	loggen.Write(zw, loggen.Config{Rows: 2000, Seed: 3})
 	zw.Close()
-	var errb, outb bytes.Buffer
 	tick := time.Date(2026, 12, 1, 7, 0, 0, 0, time.UTC)
-	d := deps{stdin: bytes.NewReader(gzb.Bytes()), stdout: &outb, stderr: &errb, version: "test", stderrIsTerminal: true,
-		now: func() time.Time { tick = tick.Add(time.Second); return tick }}
+	d, _, errb := newTestDeps(withStdin(bytes.NewReader(gzb.Bytes())), withVersion("test"), onTerminal(),
+		withClock(func() time.Time { tick = tick.Add(time.Second); return tick }))
 	// stdin has no known size: the bar appears once 64 MB are read, so
 	// not here; this checks the terminal path runs and leaves stderr clean.
 	code := run([]string{"draw", "--plan", drawPlan, "--log", "-", "--out", filepath.Join(dir, "o")}, d)
@@ -295,6 +299,7 @@ func TestDrawProgressBarOnlyOnTerminal(t *testing.T) {
 }
 
 func TestDrawNeymanAnticipated(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 4000, Seed: 12})
 	ant := filepath.Join(dir, "anticipated.yaml")
@@ -324,5 +329,70 @@ func TestDrawNeymanAnticipated(t *testing.T) {
 	}
 	if _, err := os.Stat(out2); !os.IsNotExist(err) {
 		t.Fatal("output left behind")
+	}
+}
+
+// Issue 13: before any label, draw says which rule will judge the sample,
+// warns of strata left without an item (they count as unknown), and
+// refuses to draw a sequential plan with strata.
+func TestDrawStatesTheRuleBeforeLabeling(t *testing.T) {
+	dir := t.TempDir()
+	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 6000, Seed: 4})
+	// largest remainder, no minimum, and score bands thin enough to get no item
+	out := filepath.Join(dir, "gaps")
+	code, stdout, stderr := runDrawCmd(t, nil, "--plan", drawPlan, "--log", log, "--out", out, "--strata", "region,channel",
+		"--band", "score=0.001,0.002,0.003", "--rounding", "largest-remainder", "--min-per-stratum", "0")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	for _, want := range []string{"got no item", "counts all of", "verdict: the stratified count rule", "consumer's risk: at most", "producer's risk:"} {
+		if !strings.Contains(stdout, want) {
+			t.Errorf("stdout lacks %q:\n%s", want, stdout)
+		}
+	}
+	m, _, err := drawfolder.ReadManifest(filepath.Join(out, drawfolder.ManifestFile))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m.Allocation.Rounding != sampling.RoundLargestRemainder || m.Allocation.MinPerStratum != 0 || !strings.Contains(m.Allocation.Note, "with no item") {
+		t.Errorf("manifest allocation %+v", m.Allocation)
+	}
+	// the default: every stratum gets an item
+	out = filepath.Join(dir, "default")
+	code, stdout, stderr = runDrawCmd(t, nil, "--plan", drawPlan, "--log", log, "--out", out, "--strata", "region,channel", "--band", "score=0.001,0.002,0.003")
+	if code != exitOK || strings.Contains(stdout, "got no item") || !strings.Contains(stdout, "proportional shares rounded up") {
+		t.Errorf("default draw: exit %d\n%s%s", code, stdout, stderr)
+	}
+
+	// a sequential plan with strata is refused, before the log is read
+	p, _, err := planfile.Load(drawPlan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	in := p.Inputs
+	in.Design = plan.DesignSequential
+	seq, err := plan.Build(in, plan.Meta{ToolVersion: p.ToolVersion, Created: p.Created, CreatedFrom: p.CreatedFrom, Seed: p.Seed,
+		Classes: p.Classes, Candidates: p.Candidates})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := sequential.Apply(seq, 0); err != nil {
+		t.Fatal(err)
+	}
+	data, err := seq.Marshal()
+	if err != nil {
+		t.Fatal(err)
+	}
+	seqPlan := filepath.Join(dir, "seq.yaml")
+	if err := os.WriteFile(seqPlan, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out = filepath.Join(dir, "seq")
+	code, _, stderr = runDrawCmd(t, nil, "--plan", seqPlan, "--log", log, "--out", out, "--strata", "region")
+	if code != exitBadInput || !strings.Contains(stderr, "a sequential plan cannot be drawn with --strata or --band") || !strings.Contains(stderr, "hint:") {
+		t.Errorf("sequential with strata: exit %d: %s", code, stderr)
+	}
+	if _, err := os.Stat(out); !os.IsNotExist(err) {
+		t.Errorf("a refused draw left %s behind", out)
 	}
 }

@@ -5,7 +5,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-	"time"
 	"unicode/utf8"
 )
 
@@ -13,6 +12,7 @@ import (
 // (a dash that joins a reason is kept with it), short lines and machine
 // output pass unchanged, and no word is lost.
 func TestFitWriter(t *testing.T) {
+	t.Parallel()
 	long := "  model-b  REJECT  61/1712 errors, estimate 0.0356, upper bound 0.0464 — 61 errors > c = 22 in n = 1712"
 	in := "short line\n" + long + "\n" + strings.Repeat("word ", 50) + "\nno end"
 	var b bytes.Buffer
@@ -45,6 +45,7 @@ func TestFitWriter(t *testing.T) {
 // for people fits 100 columns (progress lines reached 206): the demo's
 // summary, a plan with three candidates, and progress on a worksheet.
 func TestConsoleFits100Columns(t *testing.T) {
+	t.Parallel()
 	check := func(what, out string) {
 		t.Helper()
 		for i, l := range strings.Split(out, "\n") {
@@ -55,24 +56,20 @@ func TestConsoleFits100Columns(t *testing.T) {
 	}
 	runWide := func(args ...string) string {
 		t.Helper()
-		var out, errb bytes.Buffer
-		d := deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, now: func() time.Time { return time.Unix(0, 0) },
-			random: strings.NewReader(strings.Repeat("x", 64)), version: "test", width: consoleWidth}
-		if code := run(args, d); code != exitOK && code != exitRejected {
-			t.Fatalf("%v: exit %d: %s", args, code, errb.String())
+		code, out, errOut := runTest(t, args, withWidth(consoleWidth))
+		if code != exitOK && code != exitRejected {
+			t.Fatalf("%v: exit %d: %s", args, code, errOut)
 		}
-		return out.String()
+		return out
 	}
 	check("plan", runWide("plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01",
 		"--thresholds", "defect_score:0.35,0.50,0.65", "--positive", "defect", "--negative", "sound", "--require", "any"))
 	pf := progressFixture(t, false)
 	check("progress", runWide("progress", "--plan", pf.plan, "--draw", pf.draw, "--labels", pf.label(t, 40, nil)))
 	demo := filepath.Join(t.TempDir(), "demo")
-	var out, errb bytes.Buffer
-	d := demoDeps(&out, &errb)
-	d.width = consoleWidth
-	if code := run([]string{"demo", "--out", demo}, d); code != exitOK {
-		t.Fatalf("demo: exit %d %s", code, errb.String())
+	code, out, errOut := runTest(t, []string{"demo", "--out", demo}, append(demoTestOptions, withWidth(consoleWidth))...)
+	if code != exitOK {
+		t.Fatalf("demo: exit %d %s", code, errOut)
 	}
-	check("demo", out.String())
+	check("demo", out)
 }

@@ -10,6 +10,7 @@ import (
 // flag's value (no bare "string" or "int"), shows no stray backtick, fits
 // 100 columns, and lists only the exit codes the command can return.
 func TestHelpReads(t *testing.T) {
+	t.Parallel()
 	bareType := regexp.MustCompile(`--[a-z-]+ (string|int|float64|stringArray|strings|uint)\b`)
 	returnsOne := map[string]bool{"draw": true, "record": true, "verify": true, "trend": true, "demo": true}
 	for _, c := range []string{"plan", "draw", "record", "sign", "progress", "verify", "trend", "keygen", "demo"} {

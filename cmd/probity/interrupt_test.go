@@ -105,6 +105,7 @@ func interruptInputs(t *testing.T) string {
 // missing parents), neither the folder, nor its parents, nor a temporary;
 // over an earlier draw (--force), the earlier files byte for byte.
 func TestInterruptDuringDrawWrite(t *testing.T) {
+	t.Parallel()
 	if testing.Short() {
 		t.Skip("starts probity processes")
 	}
@@ -159,6 +160,7 @@ func TestInterruptDuringDrawWrite(t *testing.T) {
 // into the same place removes them, since their process is gone, and
 // succeeds — into a new folder and into an existing empty one.
 func TestKilledDrawThenRerun(t *testing.T) {
+	t.Parallel()
 	if testing.Short() {
 		t.Skip("starts probity processes")
 	}

@@ -10,6 +10,7 @@ import (
 )
 
 func TestKeygenWritesAPairAndNeverOverwrites(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	name := filepath.Join(dir, "audit-key")
 	code, stdout, stderr := runProbity(t, "keygen", "--out", name)

@@ -9,7 +9,6 @@ import (
 	"image/color"
 	"image/png"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"strings"
 	"sync"
@@ -23,6 +22,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/chrono"
+	"probity/plan/testkit/needs"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/labeltrail"
@@ -84,8 +84,9 @@ func labelSecondInBrowser(ctx context.Context, t *testing.T, fx *browserFixture,
 }
 
 // newBrowserFixture plans (ceiling 0.15, confidence 0.90: a sample of a
-// few dozen) and draws with one spare per stratum; every scan is a real
-// PNG in the media folder.
+// few dozen) and draws as the command does by default (shares rounded up:
+// 8 of each yard's 200, exactly proportional, so the plan's c judges it)
+// with one spare per stratum; every scan is a real PNG in the media folder.
 func newBrowserFixture(t *testing.T) *browserFixture {
 	t.Helper()
 	fx := &recFixture{dir: t.TempDir(), truth: map[string]string{}, show: []string{"scan", "remark"}}
@@ -133,7 +134,7 @@ func newBrowserFixture(t *testing.T) *browserFixture {
 	defer log.Close()
 	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: "log.csv", Log: log,
 		Format: "csv", IDColumn: "record_id", StrataColumns: []string{"yard"}, Show: fx.show,
-		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 1}, Double: 3, ToolVersion: "test"})
+		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Rounding: sampling.RoundUp, MinPerStratum: 1, MinIfRoom: true, Spare: 1}, Double: 3, ToolVersion: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -179,13 +180,7 @@ func writeScan(t *testing.T, path string, seed int) {
 // a machine without one); as root it needs --no-sandbox.
 func newBrowser(t *testing.T, width, height int) (context.Context, context.CancelFunc) {
 	t.Helper()
-	path, err := exec.LookPath("chromium")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("Debian's chromium is required in CI: %v", err)
-		}
-		t.Skipf("chromium is not installed: %v", err)
-	}
+	path := needs.Program(t, "chromium")
 	// A fresh profile, removed at the end (the browser may still be
 	// writing to it as it exits, so not by t.TempDir).
 	profile, err := os.MkdirTemp("", "probity-chromium-")
@@ -360,7 +355,8 @@ func shoot(ctx context.Context, t *testing.T, path string) {
 // other item by its class key. The page loads nothing but the server's
 // own files and raises no error; screenshots at 1280×800 and at a narrow
 // width are kept. Then record on the trail gives the record of the
-// equivalent typed worksheet.
+// equivalent typed worksheet. It runs alone, not in parallel: a real
+// browser's waits should not compete with the other tests for the CPU.
 func TestLabelingInABrowser(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts a browser")

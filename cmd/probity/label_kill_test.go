@@ -35,6 +35,7 @@ func TestLabelHelper(t *testing.T) {
 // it again: every event the server confirmed is in the trail, the trail's
 // chain holds, and labeling goes on where it stopped.
 func TestKillNineLosesNothing(t *testing.T) {
+	t.Parallel()
 	if testing.Short() {
 		t.Skip("starts a probity process")
 	}

@@ -65,14 +65,13 @@ func startLabelAt(t *testing.T, start time.Time, args ...string) *labelRun {
 	r := &labelRun{out: &syncBuffer{}, err: &syncBuffer{}, stop: make(chan struct{}), done: make(chan int, 1), addr: map[string]string{}}
 	var mu sync.Mutex
 	tick := start
-	d := deps{stdin: strings.NewReader(""), stdout: r.out, stderr: r.err, version: "0.1.0-test", stop: r.stop,
-		random: rand.NewChaCha8([32]byte{0x3c}),
-		now: func() time.Time {
+	d, _, _ := newTestDeps(withOutput(r.out, r.err), withStop(r.stop), withRandomFrom(rand.NewChaCha8([32]byte{0x3c})),
+		withClock(func() time.Time {
 			mu.Lock()
 			defer mu.Unlock()
 			tick = tick.Add(time.Second)
 			return tick
-		}}
+		}))
 	go func() { r.done <- run(append([]string{"label"}, args...), d) }()
 	deadline := time.After(30 * time.Second)
 	for {
@@ -232,6 +231,7 @@ func sameRecordBesidesTrail(t *testing.T, fromTrail, fromWorksheet map[string]an
 // would have typed: the same record but for the trail's statement; verify
 // recomputes it from the trail.
 func TestRecordOnTheTrailIsTheRecordOfItsWorksheet(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	r := startLabel(t, fx.draw, "--plan", fx.planPath)
 	if len(r.addr) != 1 || r.addr[drawfolder.WorksheetFile] == "" || !strings.HasPrefix(r.addr[drawfolder.WorksheetFile], "http://127.0.0.1:") {
@@ -312,6 +312,7 @@ func TestRecordOnTheTrailIsTheRecordOfItsWorksheet(t *testing.T) {
 // TestLabelResumesWhereLabelingStopped: stopping and starting label again
 // keeps every label, and the page resumes at the first unlabeled item.
 func TestLabelResumesWhereLabelingStopped(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	r := startLabel(t, fx.draw, "--plan", fx.planPath)
 	c := labelClient(t, r.addr[drawfolder.WorksheetFile], "Jo Example")
@@ -336,6 +337,7 @@ func TestLabelResumesWhereLabelingStopped(t *testing.T) {
 // was written) is refused by label, record and verify naming the line,
 // and label --drop-incomplete removes it and goes on.
 func TestATruncatedTrailIsReported(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	r := startLabel(t, fx.draw, "--plan", fx.planPath)
 	c := labelClient(t, r.addr[drawfolder.WorksheetFile], "Jo Example")
@@ -353,10 +355,9 @@ func TestATruncatedTrailIsReported(t *testing.T) {
 	if code != exitBadInput || !strings.Contains(stderr, "label-trail.jsonl line 4") || !strings.Contains(stderr, "cut short") {
 		t.Errorf("record on a cut trail: %d\n%s", code, stderr)
 	}
-	var out, errb syncBuffer
-	code = run([]string{"label", fx.draw, "--plan", fx.planPath}, deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, now: time.Now, random: strings.NewReader(strings.Repeat("x", 256))})
-	if code != exitBadInput || !strings.Contains(errb.String(), "line 4") || !strings.Contains(errb.String(), "--drop-incomplete") {
-		t.Errorf("label on a cut trail: %d\n%s", code, errb.String())
+	code, _, stderr = runTest(t, []string{"label", fx.draw, "--plan", fx.planPath})
+	if code != exitBadInput || !strings.Contains(stderr, "line 4") || !strings.Contains(stderr, "--drop-incomplete") {
+		t.Errorf("label on a cut trail: %d\n%s", code, stderr)
 	}
 	if got, _ := os.ReadFile(trail); !bytes.Equal(got, cut) {
 		t.Error("a refused label run changed the trail")
@@ -379,6 +380,7 @@ func TestATruncatedTrailIsReported(t *testing.T) {
 // TestABrokenChainIsRefusedWithItsLine: an edited label in the trail
 // breaks the chain at the line after it; record names that line.
 func TestABrokenChainIsRefusedWithItsLine(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	r := startLabel(t, fx.draw, "--plan", fx.planPath)
 	c := labelClient(t, r.addr[drawfolder.WorksheetFile], "Jo Example")
@@ -404,6 +406,7 @@ func TestABrokenChainIsRefusedWithItsLine(t *testing.T) {
 // TestLabelRefusesBadInputBeforeServing: usage errors and a draw of
 // another plan exit 2 and leave no trail behind.
 func TestLabelRefusesBadInputBeforeServing(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	other := newRecFixture(t, true, 0)
 	for _, c := range []struct {
@@ -417,10 +420,9 @@ func TestLabelRefusesBadInputBeforeServing(t *testing.T) {
 		{[]string{fx.draw, "--plan", other.planPath}, "plan"},
 		{[]string{"--plan", fx.planPath}, "exactly one draw folder"},
 	} {
-		var out, errb syncBuffer
-		code := run(append([]string{"label"}, c.args...), deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, now: time.Now, random: strings.NewReader(strings.Repeat("x", 256))})
-		if code != exitBadInput || !strings.Contains(errb.String(), c.want) {
-			t.Errorf("label %v: exit %d\n%s", c.args, code, errb.String())
+		code, _, stderr := runTest(t, append([]string{"label"}, c.args...))
+		if code != exitBadInput || !strings.Contains(stderr, c.want) {
+			t.Errorf("label %v: exit %d\n%s", c.args, code, stderr)
 		}
 		if _, err := os.Stat(filepath.Join(fx.draw, labeltrail.FileName)); err == nil {
 			t.Fatalf("label %v left a trail", c.args)
@@ -431,6 +433,7 @@ func TestLabelRefusesBadInputBeforeServing(t *testing.T) {
 // TestLabelWarnsOffTheLoopbackInterface: serving on every interface
 // needs --bind and is warned about.
 func TestLabelWarnsOffTheLoopbackInterface(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	r := startLabel(t, fx.draw, "--plan", fx.planPath, "--bind", "0.0.0.0")
 	defer r.close()
@@ -439,10 +442,9 @@ func TestLabelWarnsOffTheLoopbackInterface(t *testing.T) {
 	}
 	// A second server on the same draw is refused: one process appends
 	// to a trail.
-	var out, errb syncBuffer
-	code := run([]string{"label", fx.draw, "--plan", fx.planPath}, deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, now: time.Now, random: strings.NewReader(strings.Repeat("x", 256))})
-	if code != exitBadInput || !strings.Contains(errb.String(), "is open for writing in another process") || !strings.Contains(errb.String(), "hint: ") {
-		t.Errorf("a second server on the draw: %d\n%s", code, errb.String())
+	code, _, stderr := runTest(t, []string{"label", fx.draw, "--plan", fx.planPath})
+	if code != exitBadInput || !strings.Contains(stderr, "is open for writing in another process") || !strings.Contains(stderr, "hint: ") {
+		t.Errorf("a second server on the draw: %d\n%s", code, stderr)
 	}
 	fx2 := newRecFixture(t, false, 0)
 	r2 := startLabel(t, fx2.draw, "--plan", fx2.planPath, "--port", "0")

@@ -15,6 +15,7 @@ import (
 // TestOutputNeverReplacesAnInput: a command refuses an output path that is
 // one of its inputs, with or without --force, and leaves it as it was.
 func TestOutputNeverReplacesAnInput(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	// The log is named like a file of the draw folder it is drawn into.
 	log := writeGenLog(t, dir, "ledger.csv", loggen.Config{Rows: 3000, Seed: 9})
@@ -36,6 +37,7 @@ func TestOutputNeverReplacesAnInput(t *testing.T) {
 // refused (exit 2) and the record's files keep their bytes, whether or not
 // the folder is among the records read; the PNG is not written either.
 func TestTrendChartNeverReplacesARecord(t *testing.T) {
+	t.Parallel()
 	root := t.TempDir()
 	months := filepath.Join(root, "monthly")
 	entries, err := os.ReadDir(trendMonthly)
@@ -75,6 +77,7 @@ func TestTrendChartNeverReplacesARecord(t *testing.T) {
 // TestKeygenAndTrendCreateMissingFolders: like draw and record, keygen and
 // trend --chart create the folders their output goes into.
 func TestKeygenAndTrendCreateMissingFolders(t *testing.T) {
+	t.Parallel()
 	root := t.TempDir()
 	key := filepath.Join(root, "keys", "2026", "audit-key")
 	if code, _, stderr := runProbity(t, "keygen", "--out", key); code != exitOK {
@@ -103,6 +106,7 @@ func TestKeygenAndTrendCreateMissingFolders(t *testing.T) {
 // manifest that cannot be used is reported against the manifest's file and
 // key, never as a flag the user did not pass.
 func TestRedrawNamesTheManifestNotAFlag(t *testing.T) {
+	t.Parallel()
 	log := writeGenLog(t, t.TempDir(), "log.csv", loggen.Config{Rows: 3000, Seed: 9})
 	out := filepath.Join(t.TempDir(), "draw")
 	if code, _, stderr := runDrawCmd(t, nil, "--plan", drawPlan, "--log", log, "--out", out); code != exitOK {

@@ -18,6 +18,7 @@ import (
 // and what it is, and leaves it as it was; the same holds for a file of a
 // folder a draw or a record replaces with --force.
 func TestForceNeverReplacesWhatIsNotARegularFile(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	fifo := filepath.Join(dir, "plan-fifo.yaml")
 	if err := syscall.Mkfifo(fifo, 0o644); err != nil {

@@ -32,6 +32,9 @@ type planOptions struct {
 	date                                  string
 	timeColumn                            string
 
+	// strata holds the design flags (plan_strata.go).
+	strata planStrataOptions
+
 	// set by validate
 	in          plan.Inputs
 	budgetN     int
@@ -73,6 +76,16 @@ p0)²) is smaller, but passes a model at p0 only about half the time.)
 
 --budget n answers the inverse question: with n labels and 0, 1, 2, …
 errors, the lowest ceiling that can be certified.
+
+--stratum-sizes LABEL=N,... sizes the plan for the stratified draw it will
+be judged from (sizes, or shares that sum to 1): with --allocation
+proportional (shares rounded up, or --rounding largest-remainder), equal or
+neyman (with --stratum-anticipated LABEL=P,...), and --min-per-stratum k
+(default 1 when the sample has room), n is the smallest sample for which the
+stratified count rule — the rule record applies to any allocation that is not
+exactly proportional — keeps the producer's risk at the anticipated error of
+every stratum (--anticipated, or --stratum-anticipated). The consumer's risk
+holds wherever the errors sit. The draw then uses the plan's allocation.
 
 Candidates may be declared now, before any label is seen: --candidate
 NAME=COLUMN (repeatable; the log column holding that model's predicted label,
@@ -129,6 +142,7 @@ tool version; its SHA-256 identifies the plan later.
 	addMeasureFlags(fl, &o.measures) // plan_measure.go
 	fl.StringVar(&o.date, "date", "", dateFlagUsage("the plan was made"))
 	fl.StringVar(&o.timeColumn, "time-column", "", "the log `COLUMN` that dates each decision: every draw reads it and records the days of the period without rows")
+	addPlanStrataFlags(cmd, &o.strata)
 	return cmd
 }
 
@@ -227,6 +241,9 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	if err := in.Validate(); err != nil {
 		return planInputError(err)
 	}
+	if err := o.strata.validate(cmd, in); err != nil {
+		return err
+	}
 	if o.seed != "" && (strings.TrimSpace(o.seed) != o.seed || len(o.seed) > 256 || strings.ContainsAny(o.seed, "\n\r\t")) {
 		return inputerr.Errorf("--seed must be one line of at most 256 characters without surrounding spaces")
 	}
@@ -247,7 +264,8 @@ func (o *planOptions) validateBudget(changed func(string) bool) error {
 	// is refused: none may be silently ignored. (--ceiling is used: it
 	// says how many errors the budget allows at that ceiling.)
 	for _, f := range []string{"out", "force", "anticipated", "producer-risk", "candidate", "classes", "thresholds",
-		"positive", "negative", "design", "method", "require", "seed", "system", "system-version"} {
+		"positive", "negative", "design", "method", "require", "seed", "system", "system-version",
+		"stratum-sizes", "allocation", "min-per-stratum", "rounding", "stratum-anticipated"} {
 		if changed(f) {
 			return inputerr.Errorf("--%s has no effect with --budget, which makes no plan", f).WithHint("drop --budget to make a plan")
 		}
@@ -431,6 +449,9 @@ func runPlan(d deps, o *planOptions) error {
 	if err := applyDesign(f); err != nil {
 		return err
 	}
+	if err := applyStrata(f, &o.strata); err != nil {
+		return err
+	}
 	if err := applyMeasures(f, o); err != nil {
 		return err
 	}
@@ -446,12 +467,12 @@ func runPlan(d deps, o *planOptions) error {
 		fingerprint = plan.Fingerprint(data)
 	}
 	if o.json {
-		return writePlanJSON(d.stdout, f, o.out, fingerprint)
+		return writePlanJSON(d.stdout, f, o.out, fingerprint, &o.strata)
 	}
 	if f.Measures != nil {
 		return writeMeasuresReport(d.stdout, f, o.out, fingerprint)
 	}
-	return writePlanReport(d.stdout, f, o.out, fingerprint)
+	return writePlanReport(d.stdout, f, o.out, fingerprint, &o.strata)
 }
 
 // applyDesign is the hook for the plan's design: fixed keeps the

@@ -12,6 +12,7 @@ import (
 // candidates are declared in one plan (before, "use either --candidate or
 // --thresholds, not both"); the thresholds' labels must be classes.
 func TestMixedCandidates(t *testing.T) {
+	t.Parallel()
 	out := filepath.Join(t.TempDir(), "plan.yaml")
 	code, stdout, stderr := runProbity(t, "plan", "--ceiling", "0.05", "--confidence", "0.9",
 		"--candidate", "model-a=model_a", "--thresholds", "score:0.5,0.7", "--positive", "fraud", "--negative", "ok",

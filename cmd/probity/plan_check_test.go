@@ -41,6 +41,7 @@ func editPlan(t *testing.T, src, dir, name, old, new string) (string, int) {
 // load, draw accepted every one of them (and the last two then stopped
 // record with an internal error).
 func TestDrawRefusesEditedPlans(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 3000, Seed: 4})
 	for i, tc := range []struct{ name, old, new, field string }{
@@ -112,6 +113,7 @@ func drawUnchecked(t *testing.T, fx *recFixture, planPath, name string) string {
 // nothing written) where it used to sign "ACCEPT 20/60 errors"; progress
 // and verify refuse the plan too.
 func TestEditedPlanRefusedByRecordProgressVerify(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	n := fx.file.Rule.SampleSize
 	edited, line := editPlan(t, fx.planPath, fx.dir, "edited.yaml", fmt.Sprintf("sample_size: %d", n), "sample_size: 60")

@@ -1,18 +1,17 @@
 package main
 
 import (
-	"flag"
-	"os"
 	"path/filepath"
 	"testing"
+
+	"probity/plan/testkit/golden"
 )
 
-var updatePlan = flag.Bool("update-plan", false, "rewrite testdata/plan golden files from the current output")
-
 // The reports for a few fixed inputs, compared byte for byte with
-// testdata/plan (go test ./cmd/probity -run PlanGolden -update-plan
+// testdata/plan (go test ./cmd/probity -run PlanGolden -update
 // rewrites them after a deliberate change).
 func TestPlanGolden(t *testing.T) {
+	t.Parallel()
 	for _, tc := range []struct {
 		name string
 		args []string
@@ -28,22 +27,6 @@ func TestPlanGolden(t *testing.T) {
 		if code != exitOK || errOut != "" {
 			t.Fatalf("%s: exit %d, stderr %q", tc.name, code, errOut)
 		}
-		path := filepath.Join("..", "..", "testdata", "plan", tc.name)
-		if *updatePlan {
-			if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-				t.Fatal(err)
-			}
-			if err := os.WriteFile(path, []byte(out), 0o644); err != nil {
-				t.Fatal(err)
-			}
-			continue
-		}
-		want, err := os.ReadFile(path)
-		if err != nil {
-			t.Fatalf("%v (run with -update-plan to create it)", err)
-		}
-		if out != string(want) {
-			t.Errorf("%s differs from the golden file:\n--- got\n%s\n--- want\n%s", tc.name, out, want)
-		}
+		golden.CompareString(t, filepath.Join("..", "..", "testdata", "plan", tc.name), out)
 	}
 }

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"path/filepath"
 	"strconv"
 
@@ -31,43 +32,53 @@ func writePlanFile(path string, data []byte, force bool) error {
 // planJSON is the object `probity plan --json` prints; field order is the
 // key order.
 type planJSON struct {
-	SampleSize             int                 `json:"sample_size"`
-	AcceptanceNumber       int                 `json:"acceptance_number"`
-	ConsumerRisk           float64             `json:"consumer_risk"`
-	ProducerRisk           *float64            `json:"producer_risk"`
-	PerCandidateRisk       float64             `json:"per_candidate_risk"`
-	PerCandidateConfidence float64             `json:"per_candidate_confidence"`
-	Method                 plan.Method         `json:"method"`
-	Model                  plan.Model          `json:"model"`
-	Multiplicity           plan.Multiplicity   `json:"multiplicity"`
-	Design                 plan.Design         `json:"design"`
-	Require                plan.Require        `json:"require"`
-	Ceiling                float64             `json:"ceiling"`
-	Confidence             float64             `json:"confidence"`
-	Candidates             int                 `json:"candidates"`
-	Anticipated            *float64            `json:"anticipated"`
-	ProducerRiskAllowed    float64             `json:"producer_risk_allowed"`
-	Population             *int64              `json:"population"`
-	BadLotErrors           *int64              `json:"bad_lot_errors"`
-	GoodLotErrors          *int64              `json:"good_lot_errors"`
-	RejectAtHalfCeiling    *float64            `json:"reject_at_half_ceiling"`
-	Comparison             map[string]*int64   `json:"comparison"`
-	OC                     []plan.OCPoint      `json:"oc"`
-	CandidateNames         []string            `json:"candidate_names"`
-	Seed                   string              `json:"seed"`
-	PlanFile               *string             `json:"plan_file"`
-	Fingerprint            *string             `json:"fingerprint"`
-	Sequential             *planSequentialJSON `json:"sequential"`
-	Measures               *plan.Measures      `json:"measures,omitempty"`
+	SampleSize             int                  `json:"sample_size"`
+	AcceptanceNumber       int                  `json:"acceptance_number"`
+	ConsumerRisk           float64              `json:"consumer_risk"`
+	ProducerRisk           *float64             `json:"producer_risk"`
+	PerCandidateRisk       float64              `json:"per_candidate_risk"`
+	PerCandidateConfidence float64              `json:"per_candidate_confidence"`
+	Method                 plan.Method          `json:"method"`
+	Model                  plan.Model           `json:"model"`
+	Multiplicity           plan.Multiplicity    `json:"multiplicity"`
+	Design                 plan.Design          `json:"design"`
+	Require                plan.Require         `json:"require"`
+	Ceiling                float64              `json:"ceiling"`
+	Confidence             float64              `json:"confidence"`
+	Candidates             int                  `json:"candidates"`
+	Anticipated            *float64             `json:"anticipated"`
+	ProducerRiskAllowed    float64              `json:"producer_risk_allowed"`
+	Population             *int64               `json:"population"`
+	BadLotErrors           *int64               `json:"bad_lot_errors"`
+	GoodLotErrors          *int64               `json:"good_lot_errors"`
+	RejectAtHalfCeiling    *float64             `json:"reject_at_half_ceiling"`
+	Comparison             map[string]*int64    `json:"comparison"`
+	OC                     []plan.OCPoint       `json:"oc"`
+	CandidateNames         []string             `json:"candidate_names"`
+	Seed                   string               `json:"seed"`
+	PlanFile               *string              `json:"plan_file"`
+	Fingerprint            *string              `json:"fingerprint"`
+	Sequential             *planSequentialJSON  `json:"sequential"`
+	Stratification         *plan.Stratification `json:"stratification,omitempty"`
+	Measures               *plan.Measures       `json:"measures,omitempty"`
 }
 
 // planOC is the plan's OC curve: 21 points, exact; for a sequential design
 // the sequential rule's acceptance probabilities at the same errors.
-func planOC(f *plan.File) ([]plan.OCPoint, error) {
+func planOC(f *plan.File, so *planStrataOptions) ([]plan.OCPoint, error) {
 	oc := f.OC(21)
 	errs := make([]float64, len(oc))
 	for i, p := range oc {
 		errs[i] = p.Error
+	}
+	if st, ok, err := strataOC(so, errs); ok {
+		if err != nil {
+			return nil, err
+		}
+		for i := range oc {
+			oc[i].AcceptProbability = st[i]
+		}
+		return oc, nil
 	}
 	seq, ok, err := sequentialOC(f, errs)
 	if err != nil {
@@ -81,7 +92,7 @@ func planOC(f *plan.File) ([]plan.OCPoint, error) {
 	return oc, nil
 }
 
-func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
+func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string, so *planStrataOptions) error {
 	r, in := f.Rule, f.Inputs
 	j := planJSON{
 		SampleSize: r.SampleSize, AcceptanceNumber: r.AcceptanceNumber,
@@ -91,7 +102,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
 		Ceiling: in.Ceiling, Confidence: in.Confidence, Candidates: in.CandidateCount,
 		Anticipated: in.Anticipated, ProducerRiskAllowed: in.ProducerRisk,
 		Comparison: map[string]*int64{}, Seed: f.Seed, CandidateNames: []string{},
-		Sequential: sequentialPlanJSON(f), Measures: f.Measures,
+		Sequential: sequentialPlanJSON(f), Stratification: f.Stratification, Measures: f.Measures,
 	}
 	if in.Population > 0 {
 		pop, d1 := in.Population, r.BadLotErrors
@@ -102,7 +113,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
 		}
 	}
 	if in.Anticipated == nil && f.Sequential == nil {
-		v := 1 - f.AcceptProbability(in.Ceiling/2)
+		v := 1 - f.HalfCeilingPoint().AcceptProbability
 		j.RejectAtHalfCeiling = &v
 	}
 	for _, row := range f.Comparison {
@@ -113,7 +124,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string) error {
 			j.Comparison[row.Rule] = nil
 		}
 	}
-	oc, err := planOC(f)
+	oc, err := planOC(f, so)
 	if err != nil {
 		return err
 	}
@@ -139,7 +150,7 @@ var ruleTitles = map[string]string{
 	plan.RuleChebyshev:           "Chebyshev (for comparison only)",
 }
 
-func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
+func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string, so *planStrataOptions) error {
 	r, in := f.Rule, f.Inputs
 	m := in.CandidateCount
 	who := "the model"
@@ -150,7 +161,13 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if in.Population > 0 {
 		from = fmt.Sprintf("drawn at random from the batch of %s", numfmt.Count(in.Population))
 	}
-	if f.Sequential != nil {
+	if st := f.Stratification; st != nil {
+		counted := 0
+		for _, k := range st.Counted {
+			counted += k
+		}
+		fmt.Fprintf(w, "Label %d decisions drawn at random from the strata below; accept %s if at most %d of the %d counted items are errors.\n", r.SampleSize, who, r.AcceptanceNumber, counted)
+	} else if f.Sequential != nil {
 		fmt.Fprintf(w, "Label decisions %s one at a time, at most %d; stop at the first boundary reached (below).\n", from, r.SampleSize)
 	} else if r.AcceptanceNumber == 0 {
 		fmt.Fprintf(w, "Label %s %s; accept %s if none of them is an error.\n", decisions(r.SampleSize), from, who)
@@ -161,6 +178,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 		fmt.Fprintln(w)
 		writeSequentialSummary(w, f)
 	}
+	writeStrataReport(w, f, so)
 	if m > 1 {
 		req := "every candidate must be accepted for the audit to pass"
 		if in.Require == plan.RequireAny {
@@ -171,7 +189,7 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 		case plan.Bonferroni:
 			fmt.Fprintf(w, "Bonferroni: each candidate is held to risk %s = (1 − %s)/%d.\n", numfmt.Chance(r.PerCandidateRisk), numfmt.Confidence(in.Confidence), m)
 		case plan.Holm:
-			fmt.Fprintf(w, "Holm: sized as Bonferroni (risk %s per candidate at the first step); judging steps down and accepts more often.\n", numfmt.Chance(r.PerCandidateRisk))
+			fmt.Fprintf(w, "Holm: sized as Bonferroni (its first step tests each candidate at %s); later steps test at larger risks, up to %s.\n", numfmt.Chance(r.PerCandidateRisk), numfmt.Chance(1-in.Confidence))
 		case plan.FixedSequence:
 			fmt.Fprintf(w, "Fixed sequence: candidates are tested in the declared order at the full risk %s, stopping at the first rejected.\n", numfmt.Chance(r.PerCandidateRisk))
 		}
@@ -194,7 +212,13 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if in.Multiplicity.EffectiveCandidates(m) > 1 {
 		allowed = fmt.Sprintf("allowed %s per candidate, so %s confidence for all %d together", numfmt.Chance(r.PerCandidateRisk), numfmt.Confidence(in.Confidence), m)
 	}
-	fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (%s).\n", bad, numfmt.Chance(r.ConsumerRisk), allowed)
+	if in.Multiplicity == plan.Holm && m > 1 {
+		fmt.Fprintf(w, "  consumer's risk: Holm's step-down keeps the chance that any candidate at or above the ceiling passes at most %s (%s confidence for all %d together).\n", numfmt.Chance(1-in.Confidence), numfmt.Confidence(in.Confidence), m)
+		fmt.Fprintf(w, "    Its first step tests each candidate at %s (this rule's exact risk there: %s); later steps test at up to %s,\n", numfmt.Chance(r.PerCandidateRisk), numfmt.Chance(r.ConsumerRisk), numfmt.Chance(1-in.Confidence))
+		fmt.Fprintf(w, "    so one candidate on its own may pass with probability up to %s when the others pass.\n", numfmt.Chance(1-in.Confidence))
+	} else {
+		fmt.Fprintf(w, "  consumer's risk: %s passes with probability at most %s (%s).\n", bad, numfmt.Chance(r.ConsumerRisk), allowed)
+	}
 	if in.Anticipated != nil {
 		good := fmt.Sprintf("a model whose true error is the anticipated %s", numfmt.Setting(*in.Anticipated))
 		if in.Population > 0 {
@@ -202,13 +226,18 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 		}
 		fmt.Fprintf(w, "  producer's risk: %s fails with probability %s (allowed %s).\n", good, numfmt.Chance(*r.ProducerRisk), numfmt.Chance(in.ProducerRisk))
 	} else if f.Sequential == nil {
-		half := 1 - f.AcceptProbability(in.Ceiling/2)
+		half := f.HalfCeilingPoint()
 		if r.AcceptanceNumber == 0 {
 			fmt.Fprintf(w, "  No anticipated error was given, so this is the zero-failure plan: a single error rejects.\n")
 		} else {
 			fmt.Fprintf(w, "  No anticipated error was given: this is the smallest plan any count can pass.\n")
 		}
-		fmt.Fprintf(w, "  A model whose true error is half the ceiling (%s) would be rejected %s of the time;\n", numfmt.Setting(in.Ceiling/2), numfmt.Chance(half))
+		if N := in.Population; N > 0 {
+			d := int64(math.Round(half.Error * float64(N)))
+			fmt.Fprintf(w, "  A batch with %s errors (%s, half the ceiling rounded down to a whole error) would be rejected %s of the time;\n", numfmt.Count(d), numfmt.Rate(half.Error), numfmt.Chance(1-half.AcceptProbability))
+		} else {
+			fmt.Fprintf(w, "  A model whose true error is half the ceiling (%s) would be rejected %s of the time;\n", numfmt.Setting(half.Error), numfmt.Chance(1-half.AcceptProbability))
+		}
 		fmt.Fprintf(w, "  give --anticipated to size a plan that passes a good model more reliably.\n")
 	}
 
@@ -217,6 +246,9 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	base := int64(r.SampleSize)
 	if f.Sequential != nil {
 		base = int64(f.Sequential.FixedSampleSize)
+	}
+	if st := f.Stratification; st != nil {
+		base = int64(st.SimpleRandomSampleSize)
 	}
 	mine := in.Method.ComparisonRule(in.Population)
 	for _, row := range f.Comparison {
@@ -230,6 +262,9 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 			note, ref := "", "this plan"
 			if f.Sequential != nil {
 				ref = "the fixed plan"
+			}
+			if f.Stratification != nil {
+				ref = "a simple random sample"
 			}
 			if row.Rule == mine {
 				note = "  (" + ref + ")"
@@ -256,6 +291,12 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	if err != nil {
 		return err
 	}
+	if st, ok, err := strataOC(so, errs); ok {
+		if err != nil {
+			return err
+		}
+		seq, isSeq = st, true
+	}
 	fmt.Fprintf(w, "  %-12s %s\n", "true error", "passes")
 	for i, p := range kp {
 		a := p.AcceptProbability
@@ -263,13 +304,22 @@ func writePlanReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 			a = seq[i]
 		}
 		mark := ""
+		p0, hasP0 := f.AnticipatedPoint()
 		switch {
-		case p.Error == in.Ceiling:
+		case p.Error == f.CeilingPoint():
 			mark = "  ceiling"
-		case in.Anticipated != nil && p.Error == *in.Anticipated:
+		case hasP0 && p.Error == p0:
 			mark = "  anticipated"
 		}
-		fmt.Fprintf(w, "  %-12s %s%s\n", numfmt.Setting(p.Error), numfmt.Chance(a), mark)
+		rate := numfmt.Setting(p.Error)
+		if N := in.Population; N > 0 {
+			// a batch's rows are at whole error counts D/N
+			rate = numfmt.Rate(p.Error)
+			if mark != "" {
+				mark += fmt.Sprintf(" (%s in the batch)", errorCount(int64(math.Round(p.Error*float64(N)))))
+			}
+		}
+		fmt.Fprintf(w, "  %-12s %s%s\n", rate, numfmt.Chance(a), mark)
 	}
 	if out != "" {
 		fmt.Fprintln(w)
@@ -365,4 +415,12 @@ func decisions(n int) string {
 		return "1 decision"
 	}
 	return strconv.Itoa(n) + " decisions"
+}
+
+// errorCount is "1 error" or "k errors".
+func errorCount(k int64) string {
+	if k == 1 {
+		return "1 error"
+	}
+	return strconv.FormatInt(k, 10) + " errors"
 }

@@ -65,13 +65,13 @@ func sequentialPlanJSON(f *plan.File) *planSequentialJSON {
 }
 
 // sequentialOC is the exact probability of acceptance of a sequential
-// plan at each error rate (binomial), for the plan's OC table; ok is false
+// plan at each error rate (hypergeometric for a lot), for the plan's OC table; ok is false
 // for a fixed plan.
 func sequentialOC(f *plan.File, errs []float64) ([]float64, bool, error) {
 	if f.Sequential == nil {
 		return nil, false, nil
 	}
-	oc, err := sequential.OC(f.Sequential, errs)
+	oc, err := sequential.PlanOC(f, errs)
 	if err != nil {
 		return nil, true, &internalError{msg: "sequential OC: " + err.Error()}
 	}

@@ -28,6 +28,7 @@ func planSeqExample(t *testing.T, anticipated bool) *plan.File {
 // The example: ASN at p0 and at the ceiling beside the fixed n =
 // 1271, and the pinned --json keys.
 func TestPlanSequentialOutput(t *testing.T) {
+	t.Parallel()
 	f := planSeqExample(t, true)
 	if err := applySequentialDesign(f); err != nil {
 		t.Fatal(err)
@@ -72,6 +73,7 @@ func TestPlanSequentialOutput(t *testing.T) {
 }
 
 func TestPlanSequentialNeedsAnticipated(t *testing.T) {
+	t.Parallel()
 	err := applySequentialDesign(planSeqExample(t, false))
 	var buf bytes.Buffer
 	if code := reportError(&buf, err); code != exitBadInput || !strings.Contains(buf.String(), "--design sequential needs --anticipated") || !strings.Contains(buf.String(), "hint: add --anticipated") {

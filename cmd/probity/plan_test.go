@@ -3,6 +3,8 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -11,31 +13,29 @@ import (
 
 	"probity/plan"
 	"probity/plan/planfile"
+	"probity/sampling/loggen"
 )
 
-// planCmdDeps is a fresh environment: buffers, a fixed clock and a fixed
-// random stream (bytes 0x00, 0x01, …).
-func planCmdDeps(stdout, stderr *bytes.Buffer) deps {
+// planRandom is the plan tests' random stream, bytes 0x00, 0x01, …, 0x3f
+// (the seed of a plan written without --seed).
+func planRandom() testOption {
 	random := make([]byte, 64)
 	for i := range random {
 		random[i] = byte(i)
 	}
-	return deps{
-		stdin: strings.NewReader(""), stdout: stdout, stderr: stderr,
-		now:     func() time.Time { return time.Date(2026, 11, 30, 9, 15, 42, 123456789, time.FixedZone("x", 3600)) },
-		random:  bytes.NewReader(random),
-		version: "0.1.0-test",
-	}
+	return withRandom(random)
 }
 
+// runPlanCmd runs probity plan with test deps: a clock with a zone and
+// nanoseconds (the plan's date must not depend on them) and planRandom.
 func runPlanCmd(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
-	var stdout, stderr bytes.Buffer
-	code := run(append([]string{"plan"}, args...), planCmdDeps(&stdout, &stderr))
-	return code, stdout.String(), stderr.String()
+	return runTest(t, append([]string{"plan"}, args...),
+		atTime(time.Date(2026, 11, 30, 9, 15, 42, 123456789, time.FixedZone("x", 3600))), planRandom())
 }
 
 func TestPlanIssueExample(t *testing.T) {
+	t.Parallel()
 	code, out, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01")
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
@@ -66,6 +66,7 @@ func TestPlanJSONWithoutEscapes(t *testing.T) {
 }
 
 func TestPlanJSON(t *testing.T) {
+	t.Parallel()
 	code, out, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--json")
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
@@ -105,6 +106,7 @@ func TestPlanJSON(t *testing.T) {
 }
 
 func TestPlanOutFile(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	path := filepath.Join(dir, "plan.yaml")
 	code, out, errOut := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01",
@@ -163,6 +165,7 @@ func TestPlanOutFile(t *testing.T) {
 // Bad input: one sentence naming the flag on stderr, exit 2, nothing on
 // stdout and no plan file (nor temporary file) left behind.
 func TestPlanBadInput(t *testing.T) {
+	t.Parallel()
 	for _, tc := range []struct {
 		args []string
 		want string
@@ -216,6 +219,7 @@ func TestPlanBadInput(t *testing.T) {
 }
 
 func TestPlanBudget(t *testing.T) {
+	t.Parallel()
 	code, out, errOut := runPlanCmd(t, "--budget", "500", "--confidence", "0.95", "--ceiling", "0.02")
 	if code != exitOK || errOut != "" {
 		t.Fatalf("exit %d, stderr %q", code, errOut)
@@ -240,6 +244,7 @@ func TestPlanBudget(t *testing.T) {
 }
 
 func TestPlanPopulationAndMethods(t *testing.T) {
+	t.Parallel()
 	code, out, _ := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--population", "20000")
 	if code != exitOK || !strings.Contains(out, "Label 1,199 decisions drawn at random from the batch of 20,000; accept the model if at most 16") ||
 		!strings.Contains(out, "a batch with 400 or more errors") {
@@ -260,6 +265,137 @@ func TestPlanPopulationAndMethods(t *testing.T) {
 		}
 		if j.Model != m || int64(j.N) != j.Comparison[m] || j.N <= 1271 {
 			t.Errorf("--method %s: n %d, model %s, comparison %v", m, j.N, j.Model, j.Comparison)
+		}
+	}
+}
+
+// Issue 13: a plan can be sized for the stratified design the draw will
+// make — the strata, the allocation, the minimum per stratum — with the
+// producer's risk of the stratified count rule; the plan file records the
+// design and the draw follows its allocation (and refuses another).
+func TestPlanStratifiedDesign(t *testing.T) {
+	dir := t.TempDir()
+	planPath := filepath.Join(dir, "plan.yaml")
+	code, out, errOut := runPlanCmd(t, "--ceiling", "0.05", "--confidence", "0.9", "--anticipated", "0.02",
+		"--stratum-sizes", "north=3000,south=2000,east=600,west=400", "--allocation", "equal",
+		"--candidate", "a=model_a", "--classes", "fraud,ok", "--out", planPath)
+	if code != exitOK || errOut != "" {
+		t.Fatalf("exit %d\n%s%s", code, out, errOut)
+	}
+	for _, want := range []string{"Stratified design (equal, at least 1 per stratum), judged by the stratified count rule",
+		"counted items", "a simple random sample would need"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+	p, _, err := planfile.Load(planPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st := p.Stratification
+	if st == nil || st.Allocation != "equal" || len(st.Strata) != 4 || st.Strata[0].Label != "east" || p.Rule.ProducerRisk == nil || *p.Rule.ProducerRisk > 0.1 ||
+		p.Rule.SampleSize <= st.SimpleRandomSampleSize {
+		t.Fatalf("plan %+v, stratification %+v", p.Rule, st)
+	}
+	// an edited design is refused on load (verdict.CheckStratification)
+	data, err := os.ReadFile(planPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range []struct{ from, to, field string }{
+		{fmt.Sprintf("acceptance_number: %d\n", p.Rule.AcceptanceNumber), fmt.Sprintf("acceptance_number: %d\n", p.Rule.AcceptanceNumber+1), "rule.acceptance_number"},
+		{fmt.Sprintf("counted: [%d,", st.Counted[0]), fmt.Sprintf("counted: [%d,", st.Counted[0]-1), "stratification.counted"},
+		{fmt.Sprintf("simple_random_sample_size: %d", st.SimpleRandomSampleSize), fmt.Sprintf("simple_random_sample_size: %d", st.SimpleRandomSampleSize+1), "stratification.simple_random_sample_size"},
+		{"allocation: equal", "allocation: random", "stratification.allocation"},
+	} {
+		edited := strings.Replace(string(data), e.from, e.to, 1)
+		if edited == string(data) {
+			t.Fatalf("%q is not in the plan file:\n%s", e.from, data)
+		}
+		path := filepath.Join(dir, "edited.yaml")
+		writeFile(t, path, []byte(edited))
+		if _, _, err := planfile.Load(path); err == nil || !strings.Contains(err.Error(), "field "+e.field) {
+			t.Errorf("%s edited: %v", e.field, err)
+		}
+	}
+	// a zero-failure plan for strata loads as written
+	zf := filepath.Join(dir, "zf.yaml")
+	if code, out, errOut := runPlanCmd(t, "--ceiling", "0.05", "--confidence", "0.9", "--stratum-sizes", "north=3000,south=2000,east=600,west=400",
+		"--allocation", "equal", "--candidate", "a=model_a", "--classes", "fraud,ok", "--out", zf); code != exitOK {
+		t.Fatalf("zero-failure: exit %d\n%s%s", code, out, errOut)
+	}
+	if _, _, err := planfile.Load(zf); err != nil {
+		t.Errorf("zero-failure plan for strata: %v", err)
+	}
+	// the draw takes the plan's allocation, and refuses another
+	log := writeGenLog(t, dir, "log.csv", loggen.Config{Rows: 6000, Seed: 4})
+	drawDir := filepath.Join(dir, "draw")
+	code, stdout, stderr := runDrawCmd(t, nil, "--plan", planPath, "--log", log, "--out", drawDir, "--strata", "region")
+	if code != exitOK || !strings.Contains(stdout, "allocation: equal") || !strings.Contains(stdout, "verdict: the stratified count rule") {
+		t.Fatalf("draw: exit %d\n%s%s", code, stdout, stderr)
+	}
+	code, _, stderr = runDrawCmd(t, nil, "--plan", planPath, "--log", log, "--out", filepath.Join(dir, "other"), "--strata", "region", "--allocation", "proportional")
+	if code != exitBadInput || !strings.Contains(stderr, "differs from the plan's equal allocation") {
+		t.Errorf("another allocation: exit %d: %s", code, stderr)
+	}
+	// design flags without strata, and strata with a sequential design, are refused
+	if code, _, stderr := runPlanCmd(t, "--ceiling", "0.05", "--confidence", "0.9", "--allocation", "equal"); code != exitBadInput || !strings.Contains(stderr, "--stratum-sizes") {
+		t.Errorf("--allocation alone: exit %d: %s", code, stderr)
+	}
+	if code, _, stderr := runPlanCmd(t, "--ceiling", "0.05", "--confidence", "0.9", "--anticipated", "0.02", "--design", "sequential", "--stratum-sizes", "a=10,b=20"); code != exitBadInput || !strings.Contains(stderr, "sequential") {
+		t.Errorf("sequential with strata: exit %d: %s", code, stderr)
+	}
+}
+
+// Issue 13 item 8: a sequential plan on a batch prints its OC curve from
+// the hypergeometric model its stated risks use, so the ceiling row is the
+// stated consumer's risk (never above the allowed risk) and 1 − the
+// anticipated row is the stated producer's risk — also where ceiling·N is
+// not a whole number (40 033: ⌈800.66⌉ = 801 errors, ⌊400.33⌋ = 400).
+func TestPlanSequentialBatchOC(t *testing.T) {
+	for _, N := range []string{"40000", "40033"} {
+		code, stdout, stderr := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01",
+			"--design", "sequential", "--population", N, "--json")
+		if code != exitOK {
+			t.Fatalf("population %s: exit %d: %s", N, code, stderr)
+		}
+		var out struct {
+			ConsumerRisk     float64 `json:"consumer_risk"`
+			ProducerRisk     float64 `json:"producer_risk"`
+			PerCandidateRisk float64 `json:"per_candidate_risk"`
+			Population       int64   `json:"population"`
+			BadLotErrors     int64   `json:"bad_lot_errors"`
+			GoodLotErrors    int64   `json:"good_lot_errors"`
+			OC               []struct {
+				Error  float64 `json:"error"`
+				Accept float64 `json:"accept_probability"`
+			} `json:"oc"`
+		}
+		if err := json.Unmarshal([]byte(stdout), &out); err != nil {
+			t.Fatal(err)
+		}
+		at := func(d int64) (float64, bool) {
+			for _, r := range out.OC {
+				if r.Error == float64(d)/float64(out.Population) {
+					return r.Accept, true
+				}
+			}
+			return 0, false
+		}
+		bad, ok1 := at(out.BadLotErrors)
+		good, ok0 := at(out.GoodLotErrors)
+		if !ok1 || !ok0 {
+			t.Fatalf("population %s: no OC row at %d or %d errors: %+v", N, out.BadLotErrors, out.GoodLotErrors, out.OC)
+		}
+		if bad > out.PerCandidateRisk || math.Abs(bad-out.ConsumerRisk) > 1e-12 {
+			t.Errorf("population %s: OC at the ceiling (%d errors) %v; stated consumer's risk %v, allowed %v", N, out.BadLotErrors, bad, out.ConsumerRisk, out.PerCandidateRisk)
+		}
+		if math.Abs(1-good-out.ProducerRisk) > 1e-12 {
+			t.Errorf("population %s: 1 − OC at %d errors %v; stated producer's risk %v", N, out.GoodLotErrors, 1-good, out.ProducerRisk)
+		}
+		_, human, _ := runPlanCmd(t, "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--design", "sequential", "--population", N)
+		if want := fmt.Sprintf("ceiling (%d errors in the batch)", out.BadLotErrors); !strings.Contains(human, want) {
+			t.Errorf("population %s: the OC table lacks %q:\n%s", N, want, human)
 		}
 	}
 }

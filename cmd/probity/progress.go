@@ -13,6 +13,7 @@ import (
 	"probity/plan/inputerr"
 	"probity/plan/planfile"
 	"probity/plan/progress"
+	"probity/plan/record"
 	"probity/plan/sequential"
 	"probity/sampling/drawfolder"
 )
@@ -111,7 +112,8 @@ func runProgress(d deps, opts *progressOptions) error {
 	if err != nil {
 		return err
 	}
-	res, err := progress.Assess(progress.Input{Plan: p, Ledger: f.Ledger, Worksheet: l.Rows, WorksheetName: l.Path})
+	res, err := progress.Assess(progress.Input{Plan: p, Ledger: f.Ledger, Worksheet: l.Rows, WorksheetName: l.Path,
+		Strata: f.Manifest.Strata, Rates: f.Manifest.AnticipatedRates()})
 	if err != nil {
 		return err
 	}
@@ -142,9 +144,13 @@ func progressStatus(d sequential.Decision) string {
 
 // writeProgress prints the human-readable assessment.
 func writeProgress(w io.Writer, p *plan.File, res *progress.Result) {
-	if res.Design == plan.DesignSequential {
+	switch {
+	case res.Design == plan.DesignSequential:
 		fmt.Fprintf(w, "Sequential plan: at most %d labels; each candidate stops at its boundaries.\n", res.SampleSize)
-	} else {
+	case res.Rule == record.RuleStratifiedCount:
+		fmt.Fprintf(w, "Fixed plan judged by the stratified count rule (the allocation is not exactly proportional): %d labels, accept with at most %s among the %d counted items; stopping early only when every completion gives the same verdict.\n",
+			res.SampleSize, countOf(*res.AcceptanceNumber, "error", "errors"), res.CountedSize)
+	default:
 		fmt.Fprintf(w, "Fixed plan: %d labels, accept with at most %s; stopping early by exact curtailment (no change to either risk).\n",
 			res.SampleSize, countOf(*res.AcceptanceNumber, "error", "errors"))
 	}

@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"flag"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -13,6 +12,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/sequential"
+	"probity/plan/testkit/golden"
 	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
 )
@@ -107,11 +107,7 @@ func (pf progressFiles) label(t *testing.T, k int, edit func(rows []drawfolder.W
 
 func runProgressCmd(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb, now: func() time.Time { return time.Unix(0, 0) },
-		random: strings.NewReader(strings.Repeat("x", 64)), version: "test"}
-	code := run(append([]string{"progress"}, args...), d)
-	return code, out.String(), errb.String()
+	return runTest(t, append([]string{"progress"}, args...))
 }
 
 func dirEntries(t *testing.T, dir string) []string {
@@ -125,6 +121,7 @@ func dirEntries(t *testing.T, dir string) []string {
 }
 
 func TestProgressFixedPlan(t *testing.T) {
+	t.Parallel()
 	pf := progressFixture(t, false)
 	// c+1 model-b errors come at item 4(c+1)
 	k := 4*(pf.c+1) + 3
@@ -156,6 +153,7 @@ func TestProgressFixedPlan(t *testing.T) {
 }
 
 func TestProgressJSON(t *testing.T) {
+	t.Parallel()
 	pf := progressFixture(t, false)
 	labels := pf.label(t, pf.n-pf.c, func(rows []drawfolder.WorksheetRow) {})
 	code, out, errs := runProgressCmd(t, "--plan", pf.plan, "--draw", pf.draw, "--labels", labels, "--json")
@@ -194,6 +192,7 @@ func TestProgressJSON(t *testing.T) {
 }
 
 func TestProgressSequentialPlan(t *testing.T) {
+	t.Parallel()
 	pf := progressFixture(t, true)
 	r, err := sequential.NewRule(pf.file.Sequential)
 	if err != nil {
@@ -223,6 +222,7 @@ func TestProgressSequentialPlan(t *testing.T) {
 }
 
 func TestProgressBadInput(t *testing.T) {
+	t.Parallel()
 	pf := progressFixture(t, false)
 	gap := pf.label(t, 10, func(rows []drawfolder.WorksheetRow) { rows[4].Label = "" })
 	cases := []struct {
@@ -283,34 +283,17 @@ func TestProgressBadInput(t *testing.T) {
 	}
 }
 
-var updateProgress = flag.Bool("update-progress", false, "rewrite testdata/progress golden files from the current output")
-
 // progressGolden compares got with testdata/progress/NAME (rewritten with
-// -update-progress).
+// -update).
 func progressGolden(t *testing.T, name, got string) {
 	t.Helper()
-	path := filepath.Join("..", "..", "testdata", "progress", name)
-	if *updateProgress {
-		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return
-	}
-	want, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatalf("%v (run go test ./cmd/probity -run ProgressGolden -update-progress)", err)
-	}
-	if got != string(want) {
-		t.Errorf("output differs from %s (run with -update-progress to accept):\n--- got\n%s\n--- want\n%s", path, got, want)
-	}
+	golden.CompareString(t, filepath.Join("..", "..", "testdata", "progress", name), got)
 }
 
 // Golden outputs for a fixed and a sequential plan, human and --json
 // (temp paths replaced by DIR).
 func TestProgressGolden(t *testing.T) {
+	t.Parallel()
 	for _, seq := range []bool{false, true} {
 		pf := progressFixture(t, seq)
 		labels := pf.label(t, 30, func(rows []drawfolder.WorksheetRow) { rows[2].Label = drawfolder.Unsure })

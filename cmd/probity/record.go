@@ -18,7 +18,6 @@ import (
 	"probity/plan/record/assemble"
 	"probity/plan/record/intake"
 	"probity/plan/record/signature"
-	"probity/plan/verdict"
 	"probity/templates"
 )
 
@@ -37,7 +36,6 @@ type recordOptions struct {
 	paper           string
 	templatesDir    string
 	bound           string
-	unequal         verdict.UnequalBound
 	force           bool
 	json            bool
 	// supersedes is the id of the record this one replaces, revision its
@@ -90,10 +88,15 @@ trail must be the one the trail gives, byte for byte.
 
 A self-weighting sample is judged by the plan's rule (accept when errors ≤ c),
 with the exact Clopper–Pearson bound (or the exact hypergeometric bound for a
-finite lot). When the strata's inclusion weights are unequal the error is
-estimated stratum by stratum (weighted by N_h/N) and bounded by Korn–Graubard
-(default; approximate) or, with --bound weighted-hoeffding, by the weighted
-Hoeffding bound (rigorous, wider). A sequential plan is labeled from the top
+finite lot). A stratified sample is judged by the plan's rule only when its
+allocation is exactly proportional; any other allocation (rounded shares,
+equal, Neyman, a minimum per stratum, strata left without an item) is judged
+by the stratified count rule, which keeps the stated risk wherever the errors
+sit: at most c errors among the counted items, c set at the least favourable
+spread of errors over the strata (Hoeffding 1956), a stratum without items
+counting as unknown. The record names the rule applied and why; the error is
+estimated stratum by stratum (weighted by N_h/N), with the Korn–Graubard bound
+as a descriptive figure. A sequential plan is labeled from the top
 of the worksheet without gaps and each candidate is judged by the plan's
 boundaries where they decide (probity progress says when to stop); items
 below that point may stay blank.
@@ -134,7 +137,8 @@ zero-width or direction-overriding characters.
 	fl.StringVar(&opts.date, "date", "", dateFlagUsage("the record is issued"))
 	fl.StringVar(&opts.paper, "paper", "a4", "`PAPER` size of record.pdf: a4 or letter")
 	fl.StringVar(&opts.templatesDir, "templates", "", "folder `DIR` of wording files overriding the built-in ones")
-	fl.StringVar(&opts.bound, "bound", verdict.KornGraubard.String(), "`BOUND` for unequal weights: korn-graubard (approximate) or weighted-hoeffding (rigorous)")
+	fl.StringVar(&opts.bound, "bound", "", "no longer used (`BOUND`): stratified samples are judged by the stratified count rule")
+	fl.MarkHidden("bound")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty --out folder, replacing the record files")
 	fl.BoolVar(&opts.json, "json", false, "print record.json to stdout instead of the summary")
 	fl.StringVar(&opts.supersedes, "supersedes", "", "the `RECORD_ID` of the record this one replaces (a revision)")
@@ -164,6 +168,10 @@ func (o *recordOptions) validate() error {
 	if err := parseDateFlag(o.date); err != nil {
 		return err
 	}
+	if o.bound != "" {
+		return inputerr.Errorf("--bound is no longer an option: a stratified sample is judged by the stratified count rule, which keeps the stated risk under any allocation (the Korn–Graubard bound is reported beside it as a descriptive figure)").
+			WithHint("drop --bound")
+	}
 	if o.supersedes != "" && !record.IsID(o.supersedes) {
 		return inputerr.Errorf("--supersedes %q is not a record id (%d lowercase hex digits)", o.supersedes, record.IDLength).
 			WithHint("copy the record_id of the superseded record's record.json")
@@ -180,11 +188,6 @@ func (o *recordOptions) validate() error {
 	case o.revision > 1 && o.supersedes == "":
 		return inputerr.Errorf("--revision %d needs --supersedes", o.revision).WithHint("name the record this revision replaces: --supersedes RECORD_ID")
 	}
-	u, err := verdict.ParseUnequalBound(o.bound)
-	if err != nil {
-		return inputerr.Errorf("--bound %q is not %s or %s", o.bound, verdict.KornGraubard, verdict.WeightedHoeffding)
-	}
-	o.unequal = u
 	return o.quality.validate(o.trail != "")
 }
 
@@ -233,7 +236,7 @@ func runRecord(d deps, o *recordOptions) error {
 	files := assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.quality.second, Adjudications: o.quality.adjudicated, Trail: o.trail}
 	rec, err := assemble.Record(files, assemble.Options{
 		AllowIncomplete: o.allowIncomplete, AllowUnadjudicated: o.quality.allowUnadjudicated, Strict: o.quality.strict,
-		Bound: o.unequal, Use: o.use, Issued: stepTime(d, o.date), Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
+		Use: o.use, Issued: stepTime(d, o.date), Signoff: signoff, Templates: set, ToolVersion: d.version, SigningKey: keyFP,
 		Revision: o.revision, Supersedes: o.supersedes, Demonstration: signature.IsDemoKey(keyFP),
 	})
 	if err != nil {

@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
-	"strings"
 	"testing"
 	"time"
 
@@ -46,7 +45,7 @@ func newRecFixture(t *testing.T, both bool, minPer int) *recFixture {
 }
 
 // buildRecFixture is newRecFixture; with seq the plan is sequential
-// (sequential.Apply on the same inputs).
+// (sequential.Apply on the same inputs) and the draw has one stratum.
 func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture {
 	t.Helper()
 	fx := &recFixture{dir: t.TempDir(), truth: map[string]string{}, show: []string{"parcel"}}
@@ -109,9 +108,13 @@ func buildRecFixture(t *testing.T, both bool, minPer int, seq bool) *recFixture 
 		t.Fatal(err)
 	}
 	defer log.Close()
+	strata := []string{"depot"}
+	if seq {
+		strata = nil // a sequential plan needs one stratum
+	}
 	folder, err := sampling.Draw(sampling.DrawInput{Plan: f, PlanFingerprint: plan.Fingerprint(data), LogPath: "log.csv", Log: log,
-		Format: "csv", IDColumn: "record_id", StrataColumns: []string{"depot"}, Show: fx.show,
-		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 2, MinPerStratum: minPer}, ToolVersion: "test"})
+		Format: "csv", IDColumn: "record_id", StrataColumns: strata, Show: fx.show,
+		Alloc: sampling.AllocOptions{Rule: sampling.Proportional, Spare: 2, MinPerStratum: minPer, Rounding: sampling.RoundUp}, ToolVersion: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -156,16 +159,11 @@ func writeFile(t *testing.T, path string, data []byte) {
 	}
 }
 
-// runProbity runs the command line through run() with fresh deps: a fixed
-// clock (2026-12-01) and a fixed random stream.
+// runProbity runs the command line through run() with fresh test deps
+// (newTestDeps: a fixed clock, 2026-12-01, and a fixed random stream).
 func runProbity(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb,
-		now:    func() time.Time { return time.Date(2026, 12, 1, 12, 0, 0, 0, time.UTC) },
-		random: bytes.NewReader(bytes.Repeat([]byte{0x5a}, 256)), version: "0.1.0-test"}
-	code := run(args, d)
-	return code, out.String(), errb.String()
+	return runTest(t, args)
 }
 
 // listDir returns the names in dir, or nil when it does not exist.

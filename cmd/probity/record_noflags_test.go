@@ -4,11 +4,13 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
-	"probity/plan/record"
-	"probity/sampling/drawfolder"
 	"regexp"
 	"strings"
 	"testing"
+
+	"probity/plan/record"
+	"probity/plan/testkit/needs"
+	"probity/sampling/drawfolder"
 )
 
 // flagSpelling matches a command-line flag ("--allow-incomplete") but not a
@@ -19,11 +21,12 @@ var flagSpelling = regexp.MustCompile(`(^|[^-\w])--[a-z][a-z-]*`)
 // never spell a command-line flag, in every deviation and label-quality
 // state the fixtures reach: complete labels, spares used, unlabeled and
 // unsure items counted as errors, a sequential prefix with an unsure item,
-// unequal weights under both bounds, adjudicated and unadjudicated
+// unequal weights under the stratified count rule, adjudicated and unadjudicated
 // disagreements, unsure double labels, the same labeler twice (a warning)
 // and enforced labeler independence, a planned second labeling not done. The flags belong to the command line;
 // the signed artifacts speak of what was decided.
 func TestRecordArtifactsNameNoFlag(t *testing.T) {
+	t.Parallel()
 	type run struct {
 		name string
 		args []string
@@ -63,10 +66,8 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 		})), "--allow-incomplete", "--use", "safety"), accepted},
 	)
 	weighted := newRecFixture(t, false, 40)
-	for _, bound := range []string{"korn-graubard", "weighted-hoeffding"} {
-		runs = append(runs, run{"unequal weights " + bound, []string{"record", "--plan", weighted.planPath, "--draw", weighted.draw,
-			"--labels", weighted.labels(t, "w-"+bound+".csv", nil), "--bound", bound, "--date", "2026-12-01"}, accepted})
-	}
+	runs = append(runs, run{"unequal weights", []string{"record", "--plan", weighted.planPath, "--draw", weighted.draw,
+		"--labels", weighted.labels(t, "w.csv", nil), "--date", "2026-12-01"}, accepted})
 	seq := buildRecFixture(t, false, 0, true)
 	runs = append(runs, run{"sequential prefix", []string{"record", "--plan", seq.planPath, "--draw", seq.draw,
 		"--labels", seq.labels(t, "seq.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow {
@@ -92,11 +93,7 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 		run{"second labeling planned, not done", with(), accepted},
 	)
 
-	_, pdfErr := exec.LookPath("pdftotext")
-	if pdfErr != nil && os.Getenv("CI") != "" {
-		t.Fatal("pdftotext (poppler-utils) is needed for this test in CI")
-	}
-	for i, r := range runs {
+	for _, r := range runs {
 		out := filepath.Join(t.TempDir(), "rec")
 		code, stdout, stderr := runProbity(t, append(r.args, "--out", out)...)
 		if !containsInt(r.exit, code) {
@@ -110,19 +107,15 @@ func TestRecordArtifactsNameNoFlag(t *testing.T) {
 		if m := flagSpelling.FindString(string(js)); m != "" {
 			t.Errorf("%s: record.json names the flag %q:\n%s", r.name, m[strings.Index(m, "--"):], js)
 		}
-		if pdfErr != nil {
-			if i == 0 {
-				t.Log("pdftotext not installed: record.pdf not checked")
+		t.Run(r.name+"/record.pdf", func(t *testing.T) {
+			txt, err := exec.Command(needs.Program(t, "pdftotext"), "-layout", filepath.Join(out, record.PDFFile), "-").Output()
+			if err != nil {
+				t.Fatal(err)
 			}
-			continue
-		}
-		txt, err := exec.Command("pdftotext", "-layout", filepath.Join(out, record.PDFFile), "-").Output()
-		if err != nil {
-			t.Fatal(err)
-		}
-		if m := flagSpelling.FindString(string(txt)); m != "" {
-			t.Errorf("%s: record.pdf names the flag %q", r.name, m[strings.Index(m, "--"):])
-		}
+			if m := flagSpelling.FindString(string(txt)); m != "" {
+				t.Errorf("record.pdf names the flag %q", m[strings.Index(m, "--"):])
+			}
+		})
 	}
 }
 

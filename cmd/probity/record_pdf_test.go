@@ -8,25 +8,20 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"probity/plan/testkit/needs"
 )
 
 // pdfText extracts the text of a PDF with pdftotext (poppler-utils), and
 // checks that pdftoppm renders every page.
 func pdfText(t *testing.T, path string) string {
 	t.Helper()
-	for _, tool := range []string{"pdftotext", "pdftoppm"} {
-		if _, err := exec.LookPath(tool); err != nil {
-			if os.Getenv("CI") != "" {
-				t.Fatalf("%s is needed for this test in CI", tool)
-			}
-			t.Skipf("%s not installed", tool)
-		}
-	}
-	out, err := exec.Command("pdftotext", "-layout", path, "-").Output()
+	pdftotext, pdftoppm := needs.Program(t, "pdftotext"), needs.Program(t, "pdftoppm")
+	out, err := exec.Command(pdftotext, "-layout", path, "-").Output()
 	if err != nil {
 		t.Fatalf("pdftotext %s: %v", path, err)
 	}
-	if err := exec.Command("pdftoppm", "-png", "-r", "30", path, filepath.Join(t.TempDir(), "page")).Run(); err != nil {
+	if err := exec.Command(pdftoppm, "-png", "-r", "30", path, filepath.Join(t.TempDir(), "page")).Run(); err != nil {
 		t.Fatalf("pdftoppm %s: %v", path, err)
 	}
 	return string(out)
@@ -37,6 +32,7 @@ func pdfText(t *testing.T, path string) string {
 // use, the sign-off names (UTF-8) and the signing key; --templates
 // overrides a caution and a broken override is refused naming the file.
 func TestRecordPDFShowsVerdictsAndCautions(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	key := filepath.Join(fx.dir, "key")

@@ -15,6 +15,7 @@ import (
 	"probity/plan"
 	"probity/plan/chrono"
 	"probity/plan/record"
+	"probity/plan/testkit/needs"
 	"probity/sampling"
 	"probity/sampling/drawfolder"
 	"probity/sampling/safewrite"
@@ -142,12 +143,7 @@ func lqWrite(t *testing.T, path string, data []byte) {
 
 func lqRun(t *testing.T, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb,
-		now:    func() time.Time { return time.Date(2026, 12, 1, 12, 0, 0, 0, time.UTC) },
-		random: bytes.NewReader(bytes.Repeat([]byte{0x3c}, 256)), version: "0.1.0-test"}
-	code := run(args, d)
-	return code, out.String(), errb.String()
+	return runTest(t, args)
 }
 
 func lqRecord(t *testing.T, path string) *record.Record {
@@ -170,6 +166,7 @@ func lqRecord(t *testing.T, path string) *record.Record {
 // REJECT (c = 0); unadjudicated under --allow-unadjudicated, counted as an
 // error: REJECT; unadjudicated without it: refused, nothing written.
 func TestRecordJudgesOnTheAdjudicatedLabel(t *testing.T) {
+	t.Parallel()
 	fx := newLQFixture(t)
 	item1 := fx.ledger[0]
 	if !item1.Double {
@@ -240,6 +237,7 @@ func TestRecordJudgesOnTheAdjudicatedLabel(t *testing.T) {
 // error and is rejected); the second labeler is right and the adjudication
 // agrees with the second: the record accepts.
 func TestRecordAdjudicationOverridesTheFirstLabel(t *testing.T) {
+	t.Parallel()
 	fx := newLQFixture(t)
 	truth := fx.truth[fx.ledger[1].RecordID]
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []drawfolder.WorksheetRow) { rows[1].Label = other(truth) })
@@ -260,14 +258,7 @@ func TestRecordAdjudicationOverridesTheFirstLabel(t *testing.T) {
 	}
 	// record.pdf carries the Label quality section (text by pdftotext,
 	// poppler-utils).
-	tool, err := exec.LookPath("pdftotext")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("pdftotext is missing under CI")
-		}
-		t.Skip("pdftotext not installed")
-	}
-	txt, err := exec.Command(tool, filepath.Join(dir, "record.pdf"), "-").Output()
+	txt, err := exec.Command(needs.Program(t, "pdftotext"), filepath.Join(dir, "record.pdf"), "-").Output()
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -281,6 +272,7 @@ func TestRecordAdjudicationOverridesTheFirstLabel(t *testing.T) {
 }
 
 func TestRecordLabelQualityBadInput(t *testing.T) {
+	t.Parallel()
 	fx := newLQFixture(t)
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", nil)
 	second := fx.write(t, "labeled-second.csv", fx.second, "bea", nil)
@@ -368,6 +360,7 @@ func lqList(dir string) []string {
 // id (which also fingerprints the second worksheet) and by the deviation
 // the single-label record states (the planned second labeling missing).
 func TestRecordFullAgreementChangesNothing(t *testing.T) {
+	t.Parallel()
 	fx := newLQFixture(t)
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", func(rows []drawfolder.WorksheetRow) {
 		rows[7].Label = other(rows[7].Label) // one error by the candidate, outside the doubled items

@@ -11,6 +11,7 @@ import (
 // are checked; a safety use without double labeling says on page 1 that
 // label error was not measured.
 func TestRecordRevisionAndCaveats(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	first := filepath.Join(fx.dir, "rec-1")

@@ -15,6 +15,7 @@ import (
 // boundaries decide on the worksheet labeled from the top; the verdict and
 // stopping point agree with sequential.Judge run here on the same items.
 func TestRecordSequentialPlan(t *testing.T) {
+	t.Parallel()
 	fx := buildRecFixture(t, true, 0, true)
 	// Decide where each candidate stops, independently of record.
 	var errsA, errsB []bool

@@ -26,6 +26,7 @@ func readRecord(t *testing.T, dir string) *record.Record {
 }
 
 func TestRecordAcceptedExitsZero(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
@@ -42,7 +43,7 @@ func TestRecordAcceptedExitsZero(t *testing.T) {
 		t.Errorf("record folder holds %s", got)
 	}
 	r := readRecord(t, out)
-	if r.OverallVerdict != record.Accept || r.Date != "2026-12-01" || r.System != "Parcel sorter" || len(r.Strata) != 3 || len(r.OC) == 0 || r.Method.Bound != plan.BoundClopperPearson {
+	if r.OverallVerdict != record.Accept || r.Date != "2026-12-01" || r.System != "Parcel sorter" || len(r.Strata) != 3 || len(r.OC) == 0 || r.Method.Bound != plan.BoundStratifiedCount {
 		t.Errorf("record: %+v", r)
 	}
 	if id, _ := record.ID(r); r.Fingerprints.Labels != record.SHA256(mustRead(t, labels)) || r.RecordID != id {
@@ -75,6 +76,7 @@ func listDirAll(t *testing.T, dir string) string {
 }
 
 func TestRecordRejectedExitsOneAndStillWrites(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
@@ -92,6 +94,7 @@ func TestRecordRejectedExitsOneAndStillWrites(t *testing.T) {
 }
 
 func TestRecordIsDeterministic(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	var first [2][]byte
@@ -112,6 +115,7 @@ func TestRecordIsDeterministic(t *testing.T) {
 // TestRecordBadInputLeavesNothing: each bad input exits 2 with a one-line
 // message naming the file and what, and no --out folder is left behind.
 func TestRecordBadInputLeavesNothing(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	good := fx.labels(t, "labels.csv", nil)
 	other := newRecFixture(t, false, 0)
@@ -179,6 +183,7 @@ func writeTemp(t *testing.T, dir, name, text string) string {
 }
 
 func TestRecordRefusesNonEmptyOut(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")
@@ -201,6 +206,7 @@ func TestRecordRefusesNonEmptyOut(t *testing.T) {
 }
 
 func TestRecordAllowIncompleteCountsErrors(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "partial.csv", func(r []drawfolder.WorksheetRow) []drawfolder.WorksheetRow { r[1].Label = ""; return r })
 	out := filepath.Join(fx.dir, "rec")
@@ -214,23 +220,41 @@ func TestRecordAllowIncompleteCountsErrors(t *testing.T) {
 	}
 }
 
+// TestRecordUnequalWeights: a draw with a minimum per stratum is judged by
+// the stratified count rule, which the record names with its reason,
+// sources and counted items; --bound, once the choice of a bound for
+// unequal weights, is refused with a sentence saying why.
 func TestRecordUnequalWeights(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 20)
 	labels := fx.labels(t, "labels.csv", nil)
-	for _, c := range []struct{ flag, bound string }{{"korn-graubard", "korn-graubard (approximate)"}, {"weighted-hoeffding", "weighted-hoeffding"}} {
-		out := filepath.Join(fx.dir, "rec-"+c.flag)
-		code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", out, "--bound", c.flag)
-		if code != exitOK && code != exitRejected {
-			t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
-		}
-		r := readRecord(t, out)
-		if r.Method.Bound.String() != c.bound || r.Method.Approximate != (c.flag == "korn-graubard") || !strings.Contains(r.Method.Statement, "N_h/N") {
-			t.Errorf("%s: method %+v", c.flag, r.Method)
-		}
+	out := filepath.Join(fx.dir, "rec")
+	code, stdout, stderr := runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", out)
+	if code != exitOK && code != exitRejected {
+		t.Fatalf("exit %d\n%s%s", code, stdout, stderr)
+	}
+	r := readRecord(t, out)
+	rule := r.Method.Rule
+	if r.Method.Bound != plan.BoundStratifiedCount || r.Method.Approximate || rule == nil || rule.Name != record.RuleStratifiedCount ||
+		!strings.Contains(r.Method.Statement, "N_h/N") || !strings.Contains(rule.Reason, "keeps the risk whatever the allocation") || len(rule.Sources) != 3 {
+		t.Fatalf("method %+v, rule %+v", r.Method, rule)
+	}
+	counted := 0
+	for _, s := range rule.Strata {
+		counted += s.Counted
+	}
+	c := r.Candidates[0]
+	if counted != rule.CountedSize || c.CountedErrors == nil || c.KornGraubardUpper == nil || !strings.Contains(c.Reason, "counted items") {
+		t.Errorf("rule %+v, candidate %+v", rule, c)
+	}
+	code, _, stderr = runProbity(t, "record", "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--out", filepath.Join(fx.dir, "rec2"), "--bound", "weighted-hoeffding")
+	if code != exitBadInput || !strings.Contains(stderr, "--bound is no longer an option") {
+		t.Errorf("--bound: exit %d: %s", code, stderr)
 	}
 }
 
 func TestRecordJSONPrintsTheRecord(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, false, 0)
 	labels := fx.labels(t, "labels.csv", nil)
 	out := filepath.Join(fx.dir, "rec")

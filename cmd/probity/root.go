@@ -52,6 +52,9 @@ signed acceptance record.
 		Version:       d.version,
 		SilenceErrors: true,
 		SilenceUsage:  true,
+		PersistentPreRunE: func(cmd *cobra.Command, args []string) error {
+			return takePathsFrom(d.dir, cmd, args)
+		},
 	}
 	root.SetOut(d.stdout)
 	root.SetErr(d.stderr)

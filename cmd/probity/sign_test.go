@@ -12,6 +12,7 @@ import (
 
 	"probity/plan/record"
 	"probity/plan/record/signature"
+	"probity/plan/testkit/needs"
 	"probity/sampling/demolog"
 )
 
@@ -19,12 +20,7 @@ import (
 // environment of its own.
 func runProbityWith(t *testing.T, now time.Time, env map[string]string, args ...string) (int, string, string) {
 	t.Helper()
-	var out, errb bytes.Buffer
-	d := deps{stdin: strings.NewReader(""), stdout: &out, stderr: &errb,
-		now: func() time.Time { return now }, random: bytes.NewReader(bytes.Repeat([]byte{0x5a}, 256)), version: "0.1.0-test",
-		getenv: func(k string) string { return env[k] }}
-	code := run(args, d)
-	return code, out.String(), errb.String()
+	return runTest(t, args, atTime(now), withEnv(env))
 }
 
 // writeKey writes a private key (protected when pass is not empty) and its
@@ -97,6 +93,7 @@ func newSignedByPeople(t *testing.T) *signedByPeople {
 var signTime = time.Date(2026, 12, 1, 12, 0, 0, 0, time.UTC)
 
 func TestSignChainVerifyAndPDF(t *testing.T) {
+	t.Parallel()
 	s := newSignedByPeople(t)
 	code, stdout, stderr := runProbityWith(t, signTime, nil, "sign", s.rec, "--role", "prepared", "--key", s.prepKey, "--signers", s.signers)
 	if code != exitOK || !strings.Contains(stdout, "as prepared: Dana Exämple, 2026-12-01 12:00:00 UTC, key "+fpOf(keyFrom(0x32))) ||
@@ -185,6 +182,7 @@ func TestSignChainVerifyAndPDF(t *testing.T) {
 }
 
 func TestSignRefusals(t *testing.T) {
+	t.Parallel()
 	s := newSignedByPeople(t)
 	if code, _, stderr := runProbityWith(t, signTime, nil, "sign", s.rec, "--role", "prepared", "--key", s.prepKey); code != exitOK {
 		t.Fatal(stderr)
@@ -240,13 +238,9 @@ func TestSignRefusals(t *testing.T) {
 // exact bytes the README documents, and the key's SHA-256 is the
 // fingerprint the signers file lists.
 func TestREADMERecipeVerifiesSignature(t *testing.T) {
+	t.Parallel()
 	for _, tool := range []string{"sh", "awk", "base64", "openssl", "sha256sum"} {
-		if _, err := exec.LookPath(tool); err != nil {
-			if os.Getenv("CI") != "" {
-				t.Fatalf("%s is needed for this test in CI", tool)
-			}
-			t.Skipf("%s not installed", tool)
-		}
+		needs.Program(t, tool)
 	}
 	s := newSignedByPeople(t)
 	for i, role := range []string{"prepared", "reviewed"} {

@@ -5,7 +5,6 @@ import (
 	"crypto/ed25519"
 	"encoding/csv"
 	"encoding/json"
-	"flag"
 	"fmt"
 	"image/png"
 	"os"
@@ -14,15 +13,14 @@ import (
 	"slices"
 	"strings"
 	"testing"
-	"time"
 
 	"probity/plan"
 	"probity/plan/record"
 	"probity/plan/record/signature"
+	"probity/plan/testkit/golden"
+	"probity/plan/testkit/needs"
 	trendpkg "probity/plan/trend"
 )
-
-var updateTrend = flag.Bool("update-trend", false, "rewrite testdata/trend/golden from the current output")
 
 // trendMonthly is the year of records the tests read (written by
 // go test ./plan/trend -run TestMonthlyFixtures -update).
@@ -32,8 +30,9 @@ const trendMonthly = "../../testdata/trend/monthly"
 const trendFixtureSeal = "../../testdata/trend/fixture-seal.pub"
 
 // trendRun runs probity with args and returns stdout, stderr and the exit
-// code, with a fixed clock and version. A trend given no trust input
-// trusts the key the monthly fixtures are sealed with.
+// code, with test deps whose version is a release's (it is printed in the
+// chart's PDF). A trend given no trust input trusts the key the monthly
+// fixtures are sealed with.
 func trendRun(t *testing.T, args ...string) (string, string, int) {
 	t.Helper()
 	if len(args) > 0 && args[0] == "trend" && !slices.ContainsFunc(args, func(a string) bool {
@@ -41,46 +40,22 @@ func trendRun(t *testing.T, args ...string) (string, string, int) {
 	}) {
 		args = append(args, "--pub", trendFixtureSeal)
 	}
-	var out, errb bytes.Buffer
-	d := deps{
-		stdin:   strings.NewReader(""),
-		stdout:  &out,
-		stderr:  &errb,
-		now:     func() time.Time { return time.Date(2027, 1, 5, 9, 0, 0, 0, time.UTC) },
-		random:  bytes.NewReader(make([]byte, 1024)),
-		version: "0.1.0",
-	}
-	code := run(args, d)
-	return out.String(), errb.String(), code
+	code, stdout, stderr := runTest(t, args, withVersion("0.1.0"))
+	return stdout, stderr, code
 }
 
 // trendMonth returns the path of one month's record in the fixtures.
 func trendMonth(m string) string { return filepath.Join(trendMonthly, m, "record.json") }
 
 // trendGolden compares got with testdata/trend/golden/name (or rewrites it
-// with -update-trend).
+// with -update).
 func trendGolden(t *testing.T, name, got string) {
 	t.Helper()
-	path := filepath.Join("../../testdata/trend/golden", name)
-	if *updateTrend {
-		if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return
-	}
-	want, err := os.ReadFile(path)
-	if err != nil {
-		t.Fatalf("%v (run go test ./cmd/probity -run Trend -update-trend)", err)
-	}
-	if got != string(want) {
-		t.Errorf("output differs from %s (run with -update-trend to accept):\n--- got\n%s\n--- want\n%s", path, got, want)
-	}
+	golden.CompareString(t, filepath.Join("../../testdata/trend/golden", name), got)
 }
 
 func TestTrendYearRejectsLatest(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	prefix := filepath.Join(dir, "trend")
 	out, errOut, code := trendRun(t, "trend", trendMonthly, "--chart", prefix)
@@ -124,8 +99,9 @@ func TestTrendYearRejectsLatest(t *testing.T) {
 	}
 	// And the bytes are the golden ones (pure-Go rasterising and a fixed
 	// date make them the same on every machine).
-	trendGolden(t, "year.pdf.sha256", record.SHA256(pdfData)+"\n")
-	trendGolden(t, "year.png.sha256", record.SHA256(pngData)+"\n")
+	// The images themselves are kept, so a reviewer can look at a change.
+	golden.Compare(t, "../../testdata/trend/golden/year.pdf", pdfData)
+	golden.Compare(t, "../../testdata/trend/golden/year.png", pngData)
 	entries, _ := os.ReadDir(dir)
 	if len(entries) != 4 {
 		t.Errorf("chart folder holds %d files, want the 2 PNGs and 2 PDFs (no temporary files)", len(entries))
@@ -135,15 +111,8 @@ func TestTrendYearRejectsLatest(t *testing.T) {
 
 // trendPDFText compares the PDF's extracted text with the golden text.
 func trendPDFText(t *testing.T, path string) {
-	tool, err := exec.LookPath("pdftotext")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("reference tool pdftotext (poppler-utils) is missing")
-		}
-		t.Log("pdftotext is missing: PDF text not checked")
-		return
-	}
-	txt, err := exec.Command(tool, "-layout", path, "-").Output()
+	t.Helper()
+	txt, err := exec.Command(needs.Program(t, "pdftotext"), "-layout", path, "-").Output()
 	if err != nil {
 		t.Fatalf("pdftotext: %v", err)
 	}
@@ -157,6 +126,7 @@ func trendPDFText(t *testing.T, path string) {
 }
 
 func TestTrendElevenMonthsAccepts(t *testing.T) {
+	t.Parallel()
 	args := []string{"trend", "--json"}
 	for _, m := range []string{"2026-11", "2026-03", "2026-01", "2026-02", "2026-04", "2026-05", "2026-06", "2026-07", "2026-08", "2026-09", "2026-10"} {
 		args = append(args, trendMonth(m))
@@ -208,6 +178,7 @@ func TestTrendElevenMonthsAccepts(t *testing.T) {
 }
 
 func TestTrendBaselineAndAlpha(t *testing.T) {
+	t.Parallel()
 	out, _, code := trendRun(t, "trend", trendMonthly, "--baseline", "2026-06", "--alpha", "0.01")
 	if code != exitRejected {
 		t.Fatalf("exit %d", code)
@@ -262,6 +233,7 @@ func trendLoadMonth(t *testing.T, m string) *record.Record {
 }
 
 func TestTrendWarnsAboutPlansAndCandidates(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	jan := trendLoadMonth(t, "2026-01")
 	feb := trendLoadMonth(t, "2026-02")
@@ -289,6 +261,7 @@ type trendBad struct {
 }
 
 func TestTrendBadInput(t *testing.T) {
+	t.Parallel()
 	cases := []trendBad{
 		{"no arguments", func(t *testing.T, dir string) []string { return nil },
 			[]string{"probity: trend needs at least one record.json or folder of records\nhint: "}},
@@ -393,6 +366,7 @@ func TestTrendBadInput(t *testing.T) {
 }
 
 func TestTrendOptionsValidate(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	good := []trendOptions{
 		{alpha: 0.05, pub: []string{"k.pub"}}, {alpha: 0.5, signers: "s.yaml"}, {alpha: 1e-6, chart: filepath.Join(dir, "x"), allowUnauthenticated: true},
@@ -415,7 +389,8 @@ func TestTrendOptionsValidate(t *testing.T) {
 		}
 	}
 	// Flags parse into the options.
-	cmd := newTrendCommand(deps{})
+	d, _, _ := newTestDeps()
+	cmd := newTrendCommand(d)
 	if err := cmd.ParseFlags([]string{"--baseline", "2026-02", "--alpha", "0.1", "--chart", "c/t", "--json"}); err != nil {
 		t.Fatal(err)
 	}
@@ -427,6 +402,7 @@ func TestTrendOptionsValidate(t *testing.T) {
 }
 
 func TestTrendFolderSkipsOtherJSON(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	for _, m := range []string{"2026-01", "2026-02"} {
 		os.MkdirAll(filepath.Join(dir, m, "draw"), 0o755)
@@ -453,6 +429,7 @@ func TestTrendFolderSkipsOtherJSON(t *testing.T) {
 // 2026-01 and one in every 40 rows in 2026-02, so 2026-02 is rejected and
 // flagged, with the p-value of Fisher's test on the recorded counts.
 func TestTrendOfRealRecords(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	at := func(p ...string) string { return filepath.Join(append([]string{dir}, p...)...) }
 	planPath := at("plan.yaml")
@@ -571,6 +548,7 @@ func trendLabel(t *testing.T, worksheet string, truth map[string]string) []byte 
 // used to be charted), as is a trend with nothing to trust; with
 // --allow-unauthenticated it is charted and every output says so.
 func TestTrendAuthenticatesEveryRecord(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	months := filepath.Join(dir, "monthly")
 	entries, _ := os.ReadDir(trendMonthly)

@@ -16,6 +16,7 @@ import (
 // record judges it with the same unsure items replaced by the same spares.
 // A class in the wrong case is refused by both.
 func TestUnsureReadsTheSameInProgressAndRecord(t *testing.T) {
+	t.Parallel()
 	fx := newRecFixture(t, true, 0)
 	// The first two sample items are marked unsure, and the first spare of
 	// each one's stratum is labeled in its place.

@@ -14,6 +14,7 @@ import (
 // --second the recomputation is skipped and said so; and two records made
 // from different adjudications get different record ids.
 func TestVerifyRecomputesDoubleLabeledRecord(t *testing.T) {
+	t.Parallel()
 	fx := newLQFixture(t)
 	truth := fx.truth[fx.ledger[0].RecordID]
 	first := fx.write(t, "labeled.csv", fx.worksheet, "ana", nil)

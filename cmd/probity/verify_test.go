@@ -33,6 +33,7 @@ func signedRecord(t *testing.T) (fx *recFixture, rec, labels, pub string) {
 }
 
 func TestVerifyAllGood(t *testing.T) {
+	t.Parallel()
 	fx, rec, labels, pub := signedRecord(t)
 	code, stdout, stderr := runProbity(t, "verify", rec, "--pub", pub, "--plan", fx.planPath, "--draw", fx.draw, "--labels", labels, "--log", fx.logPath)
 	if code != exitOK || stderr != "" {
@@ -63,6 +64,7 @@ func TestVerifyAllGood(t *testing.T) {
 // record.json, a swapped PDF and another key — each detected, naming the
 // file and what.
 func TestTamperingIsDetected(t *testing.T) {
+	t.Parallel()
 	fx, rec, _, pub := signedRecord(t)
 	copyDir := func(name string) string {
 		dst := filepath.Join(fx.dir, name)
@@ -147,6 +149,7 @@ func TestTamperingIsDetected(t *testing.T) {
 }
 
 func TestVerifyUsage(t *testing.T) {
+	t.Parallel()
 	dir := t.TempDir()
 	cases := []struct {
 		args []string

@@ -94,6 +94,7 @@ func (a smallAudit) record(t *testing.T, draw, labels string) (int, string, stri
 // wrote a header naming note twice, and record refused it after the
 // labeling was done).
 func TestShownColumnsNamedLikeTheWorksheets(t *testing.T) {
+	t.Parallel()
 	a := newSmallAudit(t, "record_id,model_a,note,label,item", func(i int) string {
 		return fmt.Sprintf("r%02d,ok,note %d,tag %d,%d", i, i, i, i)
 	})
@@ -113,6 +114,7 @@ func TestShownColumnsNamedLikeTheWorksheets(t *testing.T) {
 // taken back whether the spreadsheet kept the apostrophes or saved the
 // values as plain text.
 func TestFormulasInTheLog(t *testing.T) {
+	t.Parallel()
 	texts := []string{`=HYPERLINK("http://invalid.example/x","open")`, "@SUM(1+1)", "+1+2", "-3-4", "\tcmd", "'quoted", "-5", "plain"}
 	a := newSmallAudit(t, "record_id,model_a,text", func(i int) string {
 		id := fmt.Sprintf("r%02d", i)
@@ -170,6 +172,7 @@ func TestFormulasInTheLog(t *testing.T) {
 // TestWorksheetOfAnotherDraw (issue 16, item 10): the labeled worksheet
 // of another period's draw is refused saying which draw it belongs to.
 func TestWorksheetOfAnotherDraw(t *testing.T) {
+	t.Parallel()
 	a := newSmallAudit(t, "record_id,model_a", func(i int) string { return fmt.Sprintf("r%02d,ok", i) })
 	oct, nov := a.draw(t, "oct", "--period", "2026-10"), a.draw(t, "nov", "--period", "2026-11")
 	labels := a.label(t, oct, "october.csv", nil)
@@ -185,6 +188,7 @@ func TestWorksheetOfAnotherDraw(t *testing.T) {
 // spreadsheet reformatted is named with its column and both values, and a
 // labeled worksheet saved with ';' between fields is named as such.
 func TestShownValueReformatted(t *testing.T) {
+	t.Parallel()
 	a := newSmallAudit(t, "record_id,model_a,date", func(i int) string { return fmt.Sprintf("r%02d,ok,2026-11-%02d", i, i%28+1) })
 	draw := a.draw(t, "draw", "--show", "date")
 	var was string

@@ -91,8 +91,10 @@ func PDF(t *trend.Trend, info PageInfo) ([]byte, error) {
 	pdf.SetProducer("probity "+info.ToolVersion, true)
 	pdf.SetCreator("probity "+info.ToolVersion, true)
 	pdf.SetTitle("Trend of acceptance records, "+t.Periods[0].Label+" to "+t.Latest.Label, true)
-	pdf.AddUTF8FontFromBytes("sans", "", liberationsansregular.TTF)
-	pdf.AddUTF8FontFromBytes("sans", "B", liberationsansbold.TTF)
+	// Its own copy of the fonts, as in pdfreport: gofpdf pads their tables
+	// in place, which would race between pages made at the same time.
+	pdf.AddUTF8FontFromBytes("sans", "", bytes.Clone(liberationsansregular.TTF))
+	pdf.AddUTF8FontFromBytes("sans", "B", bytes.Clone(liberationsansbold.TTF))
 	pdf.SetMargins(pageMargin, pageMargin, pageMargin)
 	pdf.SetAutoPageBreak(false, pageMargin)
 	pdf.SetLineWidth(0.2)

@@ -5,10 +5,11 @@ import (
 	"encoding/json"
 	"math"
 	"math/rand/v2"
-	"os"
 	"os/exec"
 	"path/filepath"
 	"testing"
+
+	"probity/plan/testkit/needs"
 )
 
 // python runs Debian's /usr/bin/python3 on a script in testdata/agreement
@@ -16,19 +17,7 @@ import (
 // modules are missing, and skips it otherwise.
 func python(t *testing.T, script string, stdin []byte) []byte {
 	t.Helper()
-	const interp = "/usr/bin/python3"
-	missing := func(why string) {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("reference tool missing under CI: %s", why)
-		}
-		t.Skipf("reference tool missing: %s", why)
-	}
-	if _, err := os.Stat(interp); err != nil {
-		missing(interp + " not found")
-	}
-	if out, err := exec.Command(interp, "-c", "import numpy, scipy, statsmodels").CombinedOutput(); err != nil {
-		missing("python3-statsmodels: " + string(out))
-	}
+	interp := needs.PythonModules(t, "numpy", "scipy", "statsmodels")
 	cmd := exec.Command(interp, filepath.Join("..", "..", "testdata", "agreement", script))
 	cmd.Stdin = bytes.NewReader(stdin)
 	var stderr bytes.Buffer

@@ -3,10 +3,10 @@ package measure
 import (
 	"encoding/json"
 	"math"
-	"os"
 	"os/exec"
-	"strings"
 	"testing"
+
+	"probity/plan/testkit/needs"
 )
 
 // The verification-bias example: hepatic scintigraphy for liver cancer in
@@ -137,23 +137,15 @@ cat(sprintf('{"FNR": %.17g, "FPR": %.17g}', a, b))`, &ref)
 }
 
 // rscript runs an R script and decodes the JSON it prints. Without Rscript
-// or the survey package the test fails in CI and skips elsewhere.
+// or the survey package the test fails in CI and skips elsewhere
+// (needs.RPackages).
 func rscript(t *testing.T, script string, out any) {
 	t.Helper()
-	if _, err := exec.LookPath("Rscript"); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("Rscript is needed for this test in CI")
-		}
-		t.Skip("Rscript not installed")
-	}
-	data, err := exec.Command("Rscript", "-e", script).Output()
+	data, err := exec.Command(needs.RPackages(t, "survey"), "-e", script).Output()
 	if err != nil {
 		msg := ""
 		if ee, ok := err.(*exec.ExitError); ok {
 			msg = string(ee.Stderr)
-		}
-		if os.Getenv("CI") == "" && strings.Contains(msg, "there is no package called") {
-			t.Skipf("R lacks a package: %s", msg)
 		}
 		t.Fatalf("Rscript failed: %v\n%s", err, msg)
 	}

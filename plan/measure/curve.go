@@ -217,19 +217,6 @@ func (cv *curve) best(upTo int) rec {
 	return out
 }
 
-// record returns the i-th record (0-based), scanning no further than
-// m = limit for it.
-func (cv *curve) record(i, limit int) (rec, bool) {
-	limit = int(min(int64(limit), cv.scan.total))
-	for len(cv.recs) <= i && cv.scanned() < limit {
-		cv.extend(cv.scanned() + 1)
-	}
-	if len(cv.recs) <= i {
-		return rec{}, false
-	}
-	return cv.recs[i], true
-}
-
 // hopeless reports that no sub-sample can pass with power target: the
 // anticipated events are at least some test's D, so that test's own
 // guarantee caps the power at its level.

@@ -3,30 +3,24 @@ package measure
 import (
 	"bytes"
 	"encoding/json"
-	"os"
 	"os/exec"
 	"testing"
+
+	"probity/plan/testkit/needs"
 )
 
-// debianPython is the interpreter that carries python3-scipy.
-const debianPython = "/usr/bin/python3"
-
-// runPython runs a Python program file (with Debian's interpreter, which has
-// scipy) on the JSON of in and decodes its JSON output into out. Without
-// scipy the test fails in CI (CI set) and is skipped elsewhere.
+// runPython runs a Python program file with Debian's interpreter (which
+// has scipy) on the JSON of in and decodes its JSON output into out.
+// Without scipy the test fails in CI (CI set) and is skipped elsewhere
+// (needs.PythonModules).
 func runPython(t *testing.T, file string, in, out any) {
 	t.Helper()
-	if err := exec.Command(debianPython, "-c", "import scipy.stats").Run(); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("scipy is required in CI: %s -c 'import scipy.stats': %v", debianPython, err)
-		}
-		t.Skipf("scipy not available (%v); install python3-scipy", err)
-	}
+	python := needs.PythonModules(t, "numpy", "scipy")
 	data, err := json.Marshal(in)
 	if err != nil {
 		t.Fatal(err)
 	}
-	cmd := exec.Command(debianPython, file)
+	cmd := exec.Command(python, file)
 	cmd.Stdin = bytes.NewReader(data)
 	var stdout, stderr bytes.Buffer
 	cmd.Stdout, cmd.Stderr = &stdout, &stderr

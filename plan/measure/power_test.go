@@ -31,13 +31,11 @@ import (
 // Without it, TestProductBeatsIntersectionUnion checks the first row.
 
 type powerCase struct {
-	name        string
-	m           Measure
-	Np, Nn      int64 // predicted positive and negative
-	posP, posN  int64 // true positives among them
-	ceiling     float64
-	numerator   [2]int64 // N_a, anticipated A
-	denominator [2]int64 // N_b, anticipated complement events
+	name       string
+	m          Measure
+	Np, Nn     int64 // predicted positive and negative
+	posP, posN int64 // true positives among them
+	ceiling    float64
 }
 
 var powerCases = []powerCase{

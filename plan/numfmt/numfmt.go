@@ -138,7 +138,16 @@ func Confidence(c float64) string {
 // Chance(0.016561) = "1.656 %", Chance(0.27) = "27 %". Below 0.0001 % it
 // takes an exponent, "3e-9 %"; a chance that four figures would round to
 // 100 % without being certain is "over 99.99 %".
-func Chance(p float64) string {
+func Chance(p float64) string { return chance(p, false) }
+
+// ChanceUp writes a risk stated as "at most" as Chance does, rounded up
+// at the fourth significant figure so the printed bound is never below
+// the computed one: ChanceUp(0.0165012) = "1.651 %", ChanceUp(0.0165) =
+// "1.65 %" (float noise below 1e-9 relative is not rounded up).
+func ChanceUp(p float64) string { return chance(p, true) }
+
+// chance is Chance, and with up ChanceUp.
+func chance(p float64, up bool) string {
 	if bad(p) {
 		return NotANumber
 	}
@@ -147,8 +156,17 @@ func Chance(p float64) string {
 	case v == 0:
 		return "0 %"
 	case v < 0:
-		return "-" + Chance(-p)
-	case v < 1e-4:
+		return "-" + chance(-p, up)
+	}
+	if up {
+		scale := math.Pow(10, 3-math.Floor(math.Log10(v)))
+		u, exact := snapped(v * scale)
+		if !exact {
+			u = math.Ceil(u)
+		}
+		v = u / scale
+	}
+	if v < 1e-4 {
 		return exponent(strconv.FormatFloat(v, 'g', 4, 64)) + " %"
 	}
 	r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'g', 4, 64), 64)

@@ -26,6 +26,10 @@ func TestFormats(t *testing.T) {
 		// The demo's November bound for defect_score>=0.50 (issue 16:
 		// the trend showed 1.194 %, the PDF 1.195 %).
 		{"rateUp demo", RateUp(0.011944), "1.195 %"},
+		{"chanceUp", ChanceUp(0.0165012), "1.651 %"},
+		{"chanceUp exact stays", ChanceUp(0.0165), "1.65 %"},
+		{"chanceUp demo count-rule bound", ChanceUp(0.0164986126450777), "1.65 %"},
+		{"chanceUp large", ChanceUp(0.0995001), "9.951 %"},
 		{"rateDown", RateDown(0.0213999), "2.139 %"},
 		{"rateDown one", RateDown(1), "100.000 %"},
 		{"rateDown a sixtieth", RateDown(1.0 / 60), "1.666 %"},
@@ -96,6 +100,9 @@ func TestBoundsNeverTighter(t *testing.T) {
 		x := float64(i) * 0.0000499 / 1.0001
 		if up := parse(RateUp(x)); up < x*(1-noise) {
 			t.Fatalf("RateUp(%v) = %s is below it", x, RateUp(x))
+		}
+		if up := parse(ChanceUp(x)); up < x*(1-noise) {
+			t.Fatalf("ChanceUp(%v) = %s is below it", x, ChanceUp(x))
 		}
 		if down := parse(RateDown(x)); down > x*(1+noise) {
 			t.Fatalf("RateDown(%v) = %s is above it", x, RateDown(x))

@@ -5,9 +5,11 @@
 // Parse decodes the one YAML document (plan.Decode: known keys only, the
 // right types, each error located by line and field), checks the
 // structure, recomputes the rule, the risks and the comparison from the
-// inputs (plan.File.Check) and verifies any sequential boundaries
-// (sequential.Check) and plans the measures again from their inputs
-// (measure.Recheck). An edited plan — a sample size, an acceptance
+// inputs (plan.File.Check), verifies any sequential boundaries
+// (sequential.Check), for a plan sized for a stratified design its count
+// rule on the planned strata (verdict.CheckStratification), and plans the
+// measures again from their inputs (measure.Recheck). An edited plan — a
+// sample size, an acceptance
 // number, a ceiling or a risk changed by hand, a class repeated, a
 // threshold that is not a number, a design without its section — is an
 // input error naming the file, the line and the field; no plan file
@@ -22,6 +24,7 @@ import (
 	"probity/plan/inputfile"
 	"probity/plan/measure"
 	"probity/plan/sequential"
+	"probity/plan/verdict"
 )
 
 // Parse decodes and checks a plan file's bytes; name is the file as the
@@ -35,6 +38,9 @@ func Parse(data []byte, name string) (*plan.File, error) {
 		return nil, err
 	}
 	if err := sequential.Check(f, src); err != nil {
+		return nil, err
+	}
+	if err := verdict.CheckStratification(f, src); err != nil {
 		return nil, err
 	}
 	if err := measure.Recheck(f); err != nil {

@@ -57,7 +57,7 @@ func prefix(in Input) ([]item, int, error) {
 			return nil, 0, &inputerr.Error{File: name, Line: w.Line,
 				Msg: fmt.Sprintf("the ledger holds %d predictions for item %d but the plan has %d candidates", len(l.Predictions), w.Item, len(in.Plan.Candidates))}
 		}
-		items = append(items, item{label: label, preds: l.Predictions, itemNo: l.Item})
+		items = append(items, item{label: label, preds: l.Predictions, stratum: l.Stratum, itemNo: l.Item})
 	}
 	return items, spares, nil
 }
@@ -102,7 +102,7 @@ func replaceBySpares(in Input, items []item) (replaced, unused int, err error) {
 			continue
 		}
 		i := inPrefix[st.Item]
-		items[i].label, items[i].preds = labels[st.Spare], preds[st.Spare]
+		items[i].label, items[i].preds, items[i].replaced = labels[st.Spare], preds[st.Spare], true
 		replaced++
 	}
 	return replaced, len(use.Unused), nil

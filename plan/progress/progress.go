@@ -19,6 +19,13 @@ type Input struct {
 	Worksheet []drawfolder.WorksheetRow
 	// WorksheetName names the labels file in messages.
 	WorksheetName string
+	// Strata are the draw's strata (manifest.json), from which the rule
+	// the record will apply is worked out (verdict.Choose); nil judges the
+	// ledger as one simple random sample.
+	Strata []drawfolder.StratumInfo
+	// Rates are the anticipated error rates per stratum the draw recorded
+	// (nil: the plan's), as the record takes them.
+	Rates []float64
 }
 
 // Candidate is one candidate's state.
@@ -56,6 +63,11 @@ type Result struct {
 	Design           plan.Design `json:"design"`
 	SampleSize       int         `json:"sample_size"`
 	AcceptanceNumber *int        `json:"acceptance_number"`
+	// Rule names the rule the record will apply (record.RulePlan,
+	// RuleStratifiedCount or RuleSequential); under the stratified count
+	// rule AcceptanceNumber is its c and CountedSize the items it counts.
+	Rule        string `json:"rule"`
+	CountedSize int    `json:"counted_size,omitempty"`
 	// Labeled is the labeled prefix of the sample (spares excluded);
 	// SparesLabeled counts labeled spare items, which progress ignores.
 	Labeled       int         `json:"labeled"`
@@ -77,12 +89,19 @@ func Assess(in Input) (*Result, error) {
 	if p == nil || p.IsSizingOnly() {
 		return nil, inputerr.Errorf("the plan declares no candidates, so there is nothing to judge").WithHint("use the plan the sample was drawn from")
 	}
-	rules, res, err := rulesFor(p)
+	items, spares, err := prefix(in)
 	if err != nil {
 		return nil, err
 	}
-	items, spares, err := prefix(in)
+	count, err := countRuleFor(in)
 	if err != nil {
+		return nil, err
+	}
+	var rules []candRules
+	var res *Result
+	if count != nil {
+		res = count.result(p)
+	} else if rules, res, err = rulesFor(p); err != nil {
 		return nil, err
 	}
 	res.Labeled = len(items)
@@ -116,12 +135,16 @@ func Assess(in Input) (*Result, error) {
 	}
 	switch {
 	case unsure > 0 && seq:
-		res.Notes = append(res.Notes, fmt.Sprintf("%s unsure: the record refuses an unsure item of a sequential plan, or counts it as an error for every candidate when incomplete labeling is allowed, and so does progress", countOf(unsure, "item is", "items are")))
+		res.Notes = append(res.Notes, fmt.Sprintf("%s unsure: the record refuses an unsure item of a sequential plan, or counts it as an error for every candidate when incomplete labeling is allowed; progress stops only when the decision holds whether it is relabeled as an error, as correct or left unsure", countOf(unsure, "item is", "items are")))
 	case unsure > 0:
 		res.Notes = append(res.Notes, fmt.Sprintf("%s unsure and not replaced yet: the record judges the spare the draw's rule gives %s, so until it is labeled %s as an error toward acceptance and as correct toward rejection", countOf(unsure, "item is", "items are"), map[bool]string{true: "it", false: "each"}[unsure == 1], map[bool]string{true: "it counts", false: "each counts"}[unsure == 1]))
 	}
 	for ci, c := range p.Candidates {
-		res.Candidates = append(res.Candidates, judge(c.Name, ci, items, rules[ci], seq))
+		if count != nil {
+			res.Candidates = append(res.Candidates, count.judge(c.Name, ci, items))
+		} else {
+			res.Candidates = append(res.Candidates, judge(c.Name, ci, items, rules[ci]))
+		}
 	}
 	if p.Inputs.Multiplicity == plan.FixedSequence {
 		chainFixedSequence(res.Candidates)
@@ -135,37 +158,58 @@ func Assess(in Input) (*Result, error) {
 
 // item is one labeled item of the prefix.
 type item struct {
-	label  string
-	preds  []string
-	itemNo int
+	label   string
+	preds   []string
+	stratum string
+	itemNo  int
+	// replaced is set when label and preds are those of the spare that
+	// replaces this unsure item (the record judges the spare after the
+	// stratum's sample items, not in this item's place).
+	replaced bool
 }
 
-// judge walks one candidate's prefix through its rules: the pessimistic
-// path (unsure = error) decides acceptance, the optimistic one (unsure =
-// correct) rejection; under a sequential plan (asError) an unsure item is
-// an error on both paths, as the record counts it.
-func judge(name string, ci int, items []item, r candRules, asError bool) Candidate {
+// judge walks one candidate's prefix through its rules. The record decides
+// at the first boundary the errors reach, so each resolution of the unsure
+// items is a path; the pessimistic one (unsure = error) is at or above
+// every other at every label, the optimistic one (unsure = correct) at or
+// below. A stop is announced only when both extreme paths, each walked
+// through both boundaries, reach the same decision (then every path between
+// them does: a path below the pessimistic one cannot cross the rejection
+// boundary before it, nor stay above the acceptance boundary after it).
+// An unsure item of a sequential plan, which the record counts as an error
+// (or refuses) while it stays unsure, may still be relabeled either way, so
+// it is walked both ways too: the pessimistic path is the record's count.
+func judge(name string, ci int, items []item, r candRules) Candidate {
 	c := Candidate{Name: name, Decision: sequential.Continue}
 	lo, hi := 0, 0
+	hiDec, loDec := sequential.Continue, sequential.Continue
 	for t, it := range items {
 		switch {
 		case it.label == drawfolder.Unsure:
 			hi++
-			if asError {
-				lo++
-			}
 			c.Unsure++
 		case it.preds[ci] != it.label:
 			lo++
 			hi++
 			c.Errors++
 		}
-		if r.accept.At(t+1, hi) == sequential.Accept {
+		if hiDec == sequential.Continue {
+			hiDec = firstBoundary(r, t+1, hi)
+		}
+		if loDec == sequential.Continue {
+			loDec = firstBoundary(r, t+1, lo)
+		}
+		if hiDec == sequential.Accept {
 			c.Decision, c.StoppedAt = sequential.Accept, t+1
 			break
 		}
-		if r.reject.At(t+1, lo) == sequential.Reject {
+		if loDec == sequential.Reject {
 			c.Decision, c.StoppedAt = sequential.Reject, t+1
+			break
+		}
+		if hiDec != sequential.Continue && loDec != sequential.Continue {
+			// the extreme paths disagree: only how the unsure items
+			// resolve can decide; wait for them
 			break
 		}
 	}
@@ -196,6 +240,20 @@ func judge(name string, ci int, items []item, r candRules, asError bool) Candida
 		c.Reason = fmt.Sprintf("%s in %d labels%s: not decided yet", countOf(c.Errors, "error", "errors"), t, unsureNote(c.Unsure))
 	}
 	return c
+}
+
+// firstBoundary is the decision at t labels with e errors: acceptance by
+// the accept rule, rejection by the reject rule (they differ only under
+// Holm, where acceptance is at the first step's c and rejection beyond the
+// last step's).
+func firstBoundary(r candRules, t, e int) sequential.Decision {
+	if r.accept.At(t, e) == sequential.Accept {
+		return sequential.Accept
+	}
+	if r.reject.At(t, e) == sequential.Reject {
+		return sequential.Reject
+	}
+	return sequential.Continue
 }
 
 // unsureNote is the unsure items beside the errors (never among them).

@@ -5,6 +5,7 @@ import (
 
 	"probity/plan"
 	"probity/plan/inputerr"
+	"probity/plan/record"
 	"probity/plan/sequential"
 )
 
@@ -29,13 +30,13 @@ type candRules struct {
 // designed at the per-candidate risk δ/M', so Holm is judged as
 // Bonferroni).
 func rulesFor(p *plan.File) ([]candRules, *Result, error) {
-	res := &Result{Design: p.Inputs.Design}
+	res := &Result{Design: p.Inputs.Design, Rule: record.RulePlan}
 	if res.Design == plan.DesignUnset {
 		res.Design = plan.DesignFixed
 	}
 	var out candRules
 	if p.Sequential != nil {
-		res.Design = plan.DesignSequential
+		res.Design, res.Rule = plan.DesignSequential, record.RuleSequential
 		r, err := sequential.NewRule(p.Sequential)
 		if err != nil {
 			return nil, nil, inputerr.Errorf("the plan's sequential rule is not valid: %w", err)

@@ -88,6 +88,16 @@ func (r *Record) Normalize() {
 	if r.Method.Assumptions == nil {
 		r.Method.Assumptions = []string{}
 	}
+	if ar := r.Method.Rule; ar != nil {
+		c := *ar
+		if c.Sources == nil {
+			c.Sources = []string{}
+		}
+		if c.Strata == nil {
+			c.Strata = []CountedStratum{}
+		}
+		r.Method.Rule = &c
+	}
 	if r.Wording.Replaced == nil {
 		r.Wording.Replaced = []string{}
 	}

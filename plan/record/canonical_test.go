@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"probity/plan"
+	"probity/plan/testkit/needs"
 )
 
 func fixture() *Record {
@@ -148,12 +149,7 @@ func TestID(t *testing.T) {
 // (sed, sha256sum), independently of this package.
 func TestIDShellRecipe(t *testing.T) {
 	for _, tool := range []string{"sh", "sed", "sha256sum", "cut"} {
-		if _, err := exec.LookPath(tool); err != nil {
-			if os.Getenv("CI") != "" {
-				t.Fatalf("%s is needed for this test in CI", tool)
-			}
-			t.Skipf("%s not installed", tool)
-		}
+		needs.Program(t, tool)
 	}
 	r := fixture()
 	r.LabelQuality = &LabelQuality{Disagreements: []Disagreement{{Item: 3, RecordID: "w00311"}}}

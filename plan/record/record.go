@@ -235,6 +235,15 @@ type Candidate struct {
 	// StoppedAt is, for a sequential plan, the number of labels at which
 	// the boundaries decided (0 for a fixed plan).
 	StoppedAt int `json:"stopped_at"`
+	// CountedErrors is, under the stratified count rule, the errors among
+	// the counted items (Method.Rule.Strata), which the verdict rests on;
+	// nil under the other rules (absent from record.json).
+	CountedErrors *int `json:"counted_errors,omitempty"`
+	// KornGraubardUpper is, under the stratified count rule, the
+	// Korn–Graubard bound on the stratified estimate at BoundConfidence: a
+	// descriptive figure (approximate, and an empty stratum is left out of
+	// it) that the verdict does not rest on; nil under the other rules.
+	KornGraubardUpper *float64 `json:"korn_graubard_upper,omitempty"`
 }
 
 // Confusion is a confusion matrix: Counts[i][j] is how many items labeled
@@ -312,6 +321,70 @@ type MethodInfo struct {
 	Approximate bool       `json:"approximate"`
 	Statement   string     `json:"statement"`
 	Assumptions []string   `json:"assumptions"`
+	// Rule is the rule the verdicts rest on and why it applies (nil, and
+	// absent, in records made before it was written).
+	Rule *AppliedRule `json:"rule,omitempty"`
+}
+
+// Rule names in AppliedRule.Name.
+const (
+	// RulePlan: the plan's own rule — its (n, c) or its exact bound — on a
+	// sample that is a simple random sample or an exactly proportional
+	// stratified one.
+	RulePlan = "plan"
+	// RuleStratifiedCount: the stratified count rule (package
+	// plan/stratified), for any other allocation.
+	RuleStratifiedCount = "stratified-count"
+	// RuleSequential: the plan's sequential boundaries on a simple random
+	// sample labeled from the top.
+	RuleSequential = "sequential"
+)
+
+// AppliedRule is the rule a record's verdicts rest on, fixed by the plan
+// and the draw before any label was seen.
+type AppliedRule struct {
+	// Name is RulePlan, RuleStratifiedCount or RuleSequential.
+	Name string `json:"name"`
+	// Reason says why this rule applies to this draw.
+	Reason string `json:"reason"`
+	// Sources are the published results the rule rests on.
+	Sources []string `json:"sources"`
+	// The stratified count rule at the per-candidate risk (zero under the
+	// other rules): a candidate passes when at most AcceptanceNumber of the
+	// CountedSize counted items are errors. BadLotErrors is D* =
+	// ⌈ceiling·N⌉ and LeastFavourableMean the expected number of counted
+	// errors when D* errors sit where they are least likely to be found;
+	// ConsumerRiskBound is the binomial bound on the chance of acceptance
+	// at any spread of D* or more errors (at most the per-candidate risk).
+	CountedSize         int     `json:"counted_size"`
+	AcceptanceNumber    int     `json:"acceptance_number"`
+	BadLotErrors        int64   `json:"bad_lot_errors"`
+	LeastFavourableMean float64 `json:"least_favourable_mean"`
+	ConsumerRiskBound   float64 `json:"consumer_risk_bound"`
+	// ProducerRisk is the chance that a candidate with the anticipated
+	// errors per stratum (AnticipatedFrom says which) is rejected under
+	// this rule; nil when the plan's own rule applies (the plan states it).
+	ProducerRisk    *float64 `json:"producer_risk"`
+	AnticipatedFrom string   `json:"anticipated_from"`
+	// Thinned is set when some strata count fewer items than they hold
+	// (a sub-sample closer to proportional, fixed before labeling).
+	Thinned bool `json:"thinned"`
+	// Strata lists, per stratum in the record's order, how many of its
+	// judged items count (empty under the plan's own rule).
+	Strata []CountedStratum `json:"strata"`
+}
+
+// CountedStratum is one stratum under the stratified count rule: of its
+// Judged items (in worksheet order, spares that replaced items last) the
+// first Counted count, the last of them being worksheet item LastItem (0
+// when none counts). Unknown is set for a stratum with no item: all of its
+// decisions may be errors.
+type CountedStratum struct {
+	Label    string `json:"label"`
+	Judged   int    `json:"judged"`
+	Counted  int    `json:"counted"`
+	LastItem int    `json:"last_item"`
+	Unknown  bool   `json:"unknown"`
 }
 
 // Signoff is one line of the sign-off block.

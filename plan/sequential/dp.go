@@ -120,3 +120,35 @@ func OC(r *plan.SequentialRule, ps []float64) ([]float64, error) {
 	}
 	return out, nil
 }
+
+// PlanOC returns the exact probability that the sequential plan of f
+// accepts at each error rate in errs, under the plan's own model: binomial
+// for an unbounded stream, and for a finite lot of N decisions the
+// hypergeometric model with D = round(e·N) errors (the model the plan's
+// stated risks use, so the curve and the risks agree; give the rates as
+// D/N, as plan.File.KeyPoints and OC do).
+func PlanOC(f *plan.File, errs []float64) ([]float64, error) {
+	if f.Sequential == nil {
+		return nil, fmt.Errorf("%w: the plan has no sequential rule", ErrDomain)
+	}
+	N := f.Inputs.Population
+	if N <= 0 {
+		return OC(f.Sequential, errs)
+	}
+	b, err := newBounds(f.Sequential)
+	if err != nil {
+		return nil, err
+	}
+	out := make([]float64, len(errs))
+	for i, e := range errs {
+		if !(e >= 0 && e <= 1) {
+			return nil, fmt.Errorf("%w: error rate %v is outside [0, 1]", ErrDomain, e)
+		}
+		m := Hypergeometric{N: N, D: int64(math.Round(e * float64(N)))}
+		if err := checkModel(m); err != nil {
+			return nil, err
+		}
+		out[i] = b.evaluate(m).Accept
+	}
+	return out, nil
+}

@@ -4,7 +4,6 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
-	"os"
 	"os/exec"
 	"strconv"
 	"strings"
@@ -13,6 +12,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"probity/plan"
+	"probity/plan/testkit/needs"
 )
 
 // Curtailment leaves the fixed plan's OC unchanged: the dynamic programme
@@ -100,7 +100,7 @@ func hyperPMF(N, D, n, x int64) float64 {
 // equals scipy.stats.binom.cdf and scipy.stats.hypergeom.cdf, relative
 // tolerance 1e-9.
 func TestCurtailmentAgainstScipy(t *testing.T) {
-	py := "/usr/bin/python3"
+	py := needs.PythonModules(t, "scipy")
 	script := `import sys
 from scipy.stats import binom, hypergeom
 for line in sys.stdin:
@@ -110,12 +110,6 @@ for line in sys.stdin:
     else:
         print(repr(float(hypergeom.cdf(int(d), int(a), int(b), int(c)))))
 `
-	if _, err := os.Stat(py); err != nil || exec.Command(py, "-c", "import scipy").Run() != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("scipy (Debian python3-scipy) is required in CI")
-		}
-		t.Skip("scipy not available")
-	}
 	type q struct {
 		kind string
 		n, c int

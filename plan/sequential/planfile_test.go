@@ -102,3 +102,32 @@ func TestApplyFiniteLot(t *testing.T) {
 	}
 	t.Logf("lot 30000: fixed n %d, T %d, ASN %.0f / %.0f", n, f.Rule.SampleSize, d.ASNAtAnticipated, d.ASNAtCeiling)
 }
+
+// Issue 13: a sequential plan on a batch prints its OC from the
+// hypergeometric model, so the ceiling and anticipated rows agree with the
+// stated risks (the binomial OC at the ceiling could exceed the allowed
+// risk). 40 000 · 2 % = 800 = D1, ⌊40 000 · 1 %⌋ = 400 = D0.
+func TestPlanOCFiniteLotAgreesWithRisks(t *testing.T) {
+	in := exampleInputs(plan.DesignSequential)
+	in.Population = 40000
+	f, err := plan.Build(in, plan.Meta{ToolVersion: "test", Created: time.Unix(0, 0), Seed: "ab"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Apply(f, 0); err != nil {
+		t.Fatal(err)
+	}
+	p0, _ := f.AnticipatedPoint()
+	oc, err := PlanOC(f, []float64{f.CeilingPoint(), p0})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(oc[0]-f.Rule.ConsumerRisk) > 1e-12 || oc[0] > f.Rule.PerCandidateRisk {
+		t.Errorf("OC at the ceiling %v, stated consumer's risk %v (allowed %v)", oc[0], f.Rule.ConsumerRisk, f.Rule.PerCandidateRisk)
+	}
+	if math.Abs(1-oc[1]-*f.Rule.ProducerRisk) > 1e-12 {
+		t.Errorf("1 − OC at p0 %v, stated producer's risk %v", 1-oc[1], *f.Rule.ProducerRisk)
+	}
+	stream, _ := OC(f.Sequential, []float64{f.CeilingPoint()})
+	t.Logf("batch of 40000: OC at the ceiling %.5f hypergeometric, %.5f binomial; stated %.5f", oc[0], stream[0], f.Rule.ConsumerRisk)
+}

@@ -2,7 +2,6 @@ package sequential
 
 import (
 	"encoding/json"
-	"flag"
 	"math"
 	"os"
 	"os/exec"
@@ -12,9 +11,9 @@ import (
 	"testing"
 
 	"probity/plan"
+	"probity/plan/testkit/golden"
+	"probity/plan/testkit/needs"
 )
-
-var updateSequential = flag.Bool("update-sequential", false, "rewrite testdata/sequential/example-rule.json")
 
 // recomputePy recomputes P(accept) and the ASN of a rule given as the two
 // boundary arrays, by a plain forward recursion over (t, e) written
@@ -66,25 +65,12 @@ func TestExampleRuleRecomputedIndependently(t *testing.T) {
 		t.Fatal(err)
 	}
 	got = append(got, '\n')
-	if *updateSequential {
-		if err := os.WriteFile(path, got, 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
+	golden.Compare(t, path, got)
 	want, err := os.ReadFile(path)
 	if err != nil {
-		t.Fatalf("%v (run with -update-sequential)", err)
+		t.Fatal(err)
 	}
-	if string(got) != string(want) {
-		t.Errorf("the example plan's boundaries differ from %s (run with -update-sequential to accept)", path)
-	}
-	py := "/usr/bin/python3"
-	if _, err := os.Stat(py); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("Debian's /usr/bin/python3 is required in CI")
-		}
-		t.Skip("no /usr/bin/python3")
-	}
+	py := needs.PythonModules(t)
 	out, err := exec.Command(py, "-c", recomputePy, path, "0.01", "0.02").Output()
 	if err != nil {
 		t.Fatal(err)

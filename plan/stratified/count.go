@@ -267,3 +267,13 @@ func (r *CountRule) Judge(errs []int) (Verdict, error) {
 	v.Upper = float64(v.UpperErrors) / float64(N)
 	return v, nil
 }
+
+// ConsumerRiskBound is Hoeffding's bound on the chance that the rule
+// accepts when the population holds D* or more errors, however spread:
+// P(Bin(m, μ*/m) ≤ c), at most 1 − Confidence; 0 when no count passes.
+func (r *CountRule) ConsumerRiskBound() float64 {
+	if r.Accept < 0 {
+		return 0
+	}
+	return tailBound(r.Accept, r.CountedSize(), r.LeastMean)
+}

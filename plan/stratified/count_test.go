@@ -5,28 +5,20 @@ import (
 	"encoding/json"
 	"errors"
 	"math"
-	"os"
 	"os/exec"
 	"strings"
 	"testing"
 
 	"probity/plan"
+	"probity/plan/testkit/needs"
 )
-
-// debianPython is the interpreter that carries python3-scipy.
-const debianPython = "/usr/bin/python3"
 
 // runScipy runs a Python program with Debian's interpreter, feeding it in
 // as JSON and decoding its JSON output. Without scipy the test fails in CI
 // (CI set) and is skipped elsewhere.
 func runScipy(t *testing.T, program string, in, out any) {
 	t.Helper()
-	if err := exec.Command(debianPython, "-c", "import scipy.stats").Run(); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("scipy is required in CI: %s -c 'import scipy.stats': %v", debianPython, err)
-		}
-		t.Skipf("scipy not available (%v); install python3-scipy", err)
-	}
+	debianPython := needs.PythonModules(t, "scipy")
 	data, err := json.Marshal(in)
 	if err != nil {
 		t.Fatal(err)

@@ -6,11 +6,12 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"os"
 	"os/exec"
 	"strconv"
 	"strings"
 	"testing"
+
+	"probity/plan/testkit/needs"
 )
 
 // TestFisherExactPublished checks worked examples whose values are printed
@@ -115,13 +116,7 @@ func binomialDraw(r *rand.Rand, n int, p float64) int {
 // alternatives, with scipy.stats.fisher_exact (scipy 1.10, Debian's
 // /usr/bin/python3) to a relative tolerance of 1e-9 (p-values above 1e-300).
 func TestFisherExactAgainstScipy(t *testing.T) {
-	py := "/usr/bin/python3"
-	if _, err := os.Stat(py); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("reference tool %s is missing: %v", py, err)
-		}
-		t.Skipf("reference tool %s is missing", py)
-	}
+	py := needs.PythonModules(t, "scipy")
 	tables := referenceTables()
 	var in bytes.Buffer
 	for _, tb := range tables {
@@ -142,9 +137,6 @@ for line in sys.stdin:
 	cmd.Stderr = &stderr
 	out, err := cmd.Output()
 	if err != nil {
-		if os.Getenv("CI") == "" && strings.Contains(stderr.String(), "No module named") {
-			t.Skipf("scipy is not installed: %s", stderr.String())
-		}
 		t.Fatalf("scipy reference failed: %v\n%s", err, stderr.String())
 	}
 	lines := strings.Split(strings.TrimSpace(string(out)), "\n")
@@ -188,13 +180,7 @@ for line in sys.stdin:
 // tails are accurate to a few units in the last place, where the older
 // log-gamma sum was off by up to about 1e-12.
 func TestFisherExactAgainstExactArithmetic(t *testing.T) {
-	py := "/usr/bin/python3"
-	if _, err := os.Stat(py); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("reference tool %s is missing: %v", py, err)
-		}
-		t.Skipf("reference tool %s is missing", py)
-	}
+	py := needs.PythonModules(t)
 	tables := referenceTables()
 	var in bytes.Buffer
 	for _, tb := range tables {

@@ -1,18 +1,14 @@
 package trend
 
 import (
-	"bytes"
 	"crypto/ed25519"
-	"flag"
-	"os"
 	"path/filepath"
 	"testing"
 
 	"probity/plan/record"
 	"probity/plan/record/signature"
+	"probity/plan/testkit/golden"
 )
-
-var update = flag.Bool("update", false, "rewrite testdata/trend/monthly from the scenario in records_test.go")
 
 // monthlyDir holds the year of records used by the command tests, the
 // chart tests and the README walkthrough: one folder per month, as
@@ -43,22 +39,7 @@ func TestMonthlyFixtures(t *testing.T) {
 		files[filepath.Join(monthlyDir, r.Period, signature.FileName)] = seal.Marshal()
 	}
 	for path, data := range files {
-		if *update {
-			if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-				t.Fatal(err)
-			}
-			if err := os.WriteFile(path, data, 0o644); err != nil {
-				t.Fatal(err)
-			}
-			continue
-		}
-		got, err := os.ReadFile(path)
-		if err != nil {
-			t.Fatalf("%v (run go test ./plan/trend -run TestMonthlyFixtures -update)", err)
-		}
-		if !bytes.Equal(got, data) {
-			t.Errorf("%s differs from the scenario (run with -update)", path)
-		}
+		golden.Compare(t, path, data)
 	}
 	l, err := Load([]string{monthlyDir})
 	if err != nil {

@@ -22,6 +22,8 @@ var ErrInput = errors.New("invalid judgement input")
 // Item is one judged decision of the sample.
 type Item struct {
 	RecordID string
+	// Item is the item's number in the worksheet (0 when not known).
+	Item int
 	// Stratum is the index of the item's stratum in Input.Design.Strata.
 	Stratum int
 	// Label is the true label; ignored when Missing.
@@ -38,10 +40,15 @@ type Input struct {
 	Plan *plan.File
 	// Design's n_h must equal the number of Items in each stratum.
 	Design Design
-	Items  []Item
-	// UnequalBound is the bound used when the weights are unequal
-	// (KornGraubard unless set).
-	UnequalBound UnequalBound
+	// Items are in worksheet order: within a stratum the items of the
+	// sample in key order, then the spares that replaced some of them, in
+	// key order (the order the counted items of the count rule are taken
+	// in).
+	Items []Item
+	// Rates are the anticipated error rates per stratum (Design order), fixed
+	// before labeling, at which the count rule's counted sub-sample is
+	// chosen; nil takes the plan's (see Choose).
+	Rates []float64
 }
 
 // Result is the judgement of every candidate.
@@ -51,9 +58,8 @@ type Result struct {
 	// Overall is record.Accept when the candidates the plan requires
 	// (Inputs.Require: all or any) are accepted.
 	Overall string
-	// SelfWeighting reports whether the sample was judged as a simple
-	// random sample (see Design.SelfWeighting).
-	SelfWeighting bool
+	// Applied is the rule the verdicts rest on.
+	Applied *Applied
 	// Notes are facts about the judgement a reviewer should read (e.g. a
 	// stratum with no sampled item).
 	Notes []string
@@ -64,9 +70,15 @@ type judgeMethod struct {
 	bound plan.Bound
 	// ruleApplies: the plan's (n, c) rule decides at the plan's level.
 	ruleApplies bool
+	// meanAtCeiling is n·D*/N for a stratified sample judged by the plan's
+	// rule: the binomial comparison behind the shortcut holds for counts up
+	// to meanAtCeiling − 1 (0 for a single stratum: no limit).
+	meanAtCeiling float64
+	// count is the applied count rule (bound BoundStratifiedCount).
+	count *Applied
 }
 
-// Judge judges every candidate of in.Plan.
+// Judge judges every candidate of in.Plan under the rule Choose picks.
 func Judge(in Input) (*Result, error) {
 	p := in.Plan
 	if p == nil || p.IsSizingOnly() {
@@ -93,29 +105,33 @@ func Judge(in Input) (*Result, error) {
 			return nil, inputerr.Errorf("%w: stratum %q has %d items but n_h = %d", ErrInput, s.Label, counts[h], s.Sample)
 		}
 	}
-	unequal := in.UnequalBound
-	if unequal != KornGraubard && unequal != WeightedHoeffding {
-		return nil, inputerr.Errorf("%w: bound %q is not %s or %s", ErrInput, unequal, KornGraubard, WeightedHoeffding)
-	}
-
-	res := &Result{SelfWeighting: in.Design.SelfWeighting()}
-	n := len(in.Items)
-	lot := int64(0)
-	for _, s := range in.Design.Strata {
-		lot += s.Population
-		if s.Sample == 0 {
-			res.Notes = append(res.Notes, fmt.Sprintf("stratum %q (N_h = %d) has no item in the sample; the judgement speaks for the other strata only", s.Label, s.Population))
-		}
-	}
-	m, err := chooseMethod(p, res.SelfWeighting, n, lot, unequal)
+	applied, err := Choose(p, in.Design, in.Rates)
 	if err != nil {
 		return nil, err
 	}
-	level := p.Rule.PerCandidateRisk
-	if !(level > 0 && level < 1) {
-		return nil, inputerr.Errorf("%w: rule.per_candidate_risk %v is outside (0, 1)", ErrInput, level)
+	res := &Result{Applied: applied}
+	n := len(in.Items)
+	lot := in.Design.Population()
+	for _, s := range in.Design.Strata {
+		if s.Sample == 0 {
+			res.Notes = append(res.Notes, fmt.Sprintf("stratum %q (N_h = %d) has no item in the sample: the verdict counts all of its decisions as possible errors", s.Label, s.Population))
+		}
 	}
-	if !m.ruleApplies && res.SelfWeighting && n != p.Rule.SampleSize {
+	var m judgeMethod
+	if applied.Kind == CountRule {
+		m = judgeMethod{bound: plan.BoundStratifiedCount, count: applied}
+	} else {
+		if m, err = chooseMethod(p, n, lot); err != nil {
+			return nil, err
+		}
+		if len(in.Design.Strata) > 1 {
+			// The shortcut proved the plan's c; other levels (Holm's later
+			// steps) use the binomial comparison within its range.
+			m.meanAtCeiling = float64(n) * float64(plan.BadLotErrors(lot, p.Inputs.Ceiling)) / float64(lot)
+		}
+	}
+	level := p.Rule.PerCandidateRisk
+	if !m.ruleApplies && m.count == nil && n != p.Rule.SampleSize {
 		res.Notes = append(res.Notes, fmt.Sprintf("%d items were judged where the plan asks for n = %d; the verdict follows the p-value, not the plan's c", n, p.Rule.SampleSize))
 	}
 
@@ -148,6 +164,14 @@ func Judge(in Input) (*Result, error) {
 			rc.Verdict = record.Reject
 		}
 		if !d.NotReached {
+			// The bound at the level the candidate was tested at (a later
+			// step of Holm's procedure tests at a larger risk), so that the
+			// bound, the verdict and the reason agree.
+			if d.Level > 0 && math.Abs(d.Level-level) > 1e-9*level {
+				if err := tests[ci].boundAt(rc, 1-d.Level); err != nil {
+					return nil, fmt.Errorf("candidate %s: %w", rc.Name, err)
+				}
+			}
 			rc.Reason = reason(rc, m, p, n, level, d)
 			if !d.Accepted && firstFail == "" && p.Inputs.Multiplicity == plan.FixedSequence {
 				firstFail = rc.Name
@@ -171,15 +195,33 @@ func Judge(in Input) (*Result, error) {
 	}
 	res.Overall = overall(p.Inputs.Require, res.Candidates)
 	res.Method = methodInfo(p, m, n, level, res)
+	res.Method.Rule = applied.Record(p, lastCounted(in, applied))
 	return res, nil
 }
 
-// chooseMethod picks the bound and whether the plan's (n, c) rule decides.
-func chooseMethod(p *plan.File, selfWeighting bool, n int, lot int64, unequal UnequalBound) (judgeMethod, error) {
-	sameN := n == p.Rule.SampleSize
-	if !selfWeighting {
-		return judgeMethod{bound: unequal.Bound()}, nil
+// lastCounted is, under the count rule, the worksheet item of the last
+// counted item of each stratum (0 when none counts); nil otherwise.
+func lastCounted(in Input, a *Applied) []int {
+	if a.Kind != CountRule {
+		return nil
 	}
+	out := make([]int, len(in.Design.Strata))
+	seen := make([]int, len(in.Design.Strata))
+	for _, it := range in.Items {
+		h := it.Stratum
+		if seen[h] < a.Count.Counted[h] {
+			seen[h]++
+			out[h] = it.Item
+		}
+	}
+	return out
+}
+
+// chooseMethod picks the bound of the plan's rule for a simple random
+// sample (or an exactly proportional one), and whether the plan's (n, c)
+// decides.
+func chooseMethod(p *plan.File, n int, lot int64) (judgeMethod, error) {
+	sameN := n == p.Rule.SampleSize
 	switch p.Rule.Model {
 	case plan.ModelBinomial, plan.ModelUnset:
 		return judgeMethod{bound: plan.BoundClopperPearson, ruleApplies: sameN}, nil
@@ -200,20 +242,32 @@ func judgeCandidate(in Input, ci int, m judgeMethod, level float64, lot int64) (
 	c := p.Candidates[ci]
 	rc := record.Candidate{Name: c.Name, Column: c.Column, ScoreColumn: c.ScoreColumn, Threshold: c.Threshold}
 	perStratum := make([]int, len(in.Design.Strata))
+	var counted, seen []int // the count rule's errors among the counted items
+	if m.count != nil {
+		counted, seen = make([]int, len(perStratum)), make([]int, len(perStratum))
+	}
 	var labels, preds []string
 	for _, it := range in.Items {
 		rc.Labeled++
+		wrong := it.Missing || it.Predictions[ci] != it.Label
 		if it.Missing {
 			rc.Missing++
-			rc.Errors++
-			perStratum[it.Stratum]++
-			continue
+		} else {
+			labels = append(labels, it.Label)
+			preds = append(preds, it.Predictions[ci])
 		}
-		labels = append(labels, it.Label)
-		preds = append(preds, it.Predictions[ci])
-		if it.Predictions[ci] != it.Label {
+		if wrong {
 			rc.Errors++
 			perStratum[it.Stratum]++
+		}
+		if m.count != nil {
+			h := it.Stratum
+			if seen[h] < m.count.Count.Counted[h] {
+				seen[h]++
+				if wrong {
+					counted[h]++
+				}
+			}
 		}
 	}
 	rc.Confusion = Confusion(p.Classes, labels, preds)
@@ -232,37 +286,57 @@ func judgeCandidate(in Input, ci int, m judgeMethod, level float64, lot int64) (
 	x, n := rc.Errors, rc.Labeled
 	ceiling := p.Inputs.Ceiling
 	conf := 1 - level
-	rc.BoundConfidence = conf
 	var t Test
-	var upperAt func(conf float64) float64
+	var upperAt func(conf float64) (float64, error)
+	exactUpper := func(f func(float64) float64) func(float64) (float64, error) {
+		return func(cf float64) (float64, error) { return f(cf), nil }
+	}
 	switch m.bound {
 	case plan.BoundClopperPearson:
 		rc.Estimate = float64(x) / float64(n)
 		t.PValue = plan.BinomialPValueAtLeast(x, n, ceiling)
-		upperAt = func(cf float64) float64 { return plan.ClopperPearsonUpper(x, n, cf) }
+		upperAt = exactUpper(func(cf float64) float64 { return plan.ClopperPearsonUpper(x, n, cf) })
 	case plan.BoundExactHypergeometric:
 		rc.Estimate = float64(x) / float64(n)
 		t.PValue = plan.HypergeometricPValueAtLeast(x, n, lot, ceiling)
-		upperAt = func(cf float64) float64 { return plan.HypergeometricUpper(x, n, lot, cf) }
+		upperAt = exactUpper(func(cf float64) float64 { return plan.HypergeometricUpper(x, n, lot, cf) })
 	case plan.BoundHoeffding:
 		rc.Estimate = float64(x) / float64(n)
 		e := Estimate{Rate: rc.Estimate, SumW2n: 1 / float64(n)}
 		t.PValue = WeightedHoeffdingPValue(e, ceiling)
-		upperAt = func(cf float64) float64 { return WeightedHoeffdingUpper(e, cf) }
+		upperAt = exactUpper(func(cf float64) float64 { return WeightedHoeffdingUpper(e, cf) })
 	case plan.BoundChernoff:
 		rc.Estimate = float64(x) / float64(n)
 		t.PValue = ChernoffPValue(x, n, ceiling)
-		upperAt = func(cf float64) float64 { return ChernoffUpper(x, n, cf) }
-	case plan.BoundWeightedHoeffding:
+		upperAt = exactUpper(func(cf float64) float64 { return ChernoffUpper(x, n, cf) })
+	case plan.BoundStratifiedCount:
 		rc.Estimate = est.Rate
-		t.PValue = WeightedHoeffdingPValue(est, ceiling)
-		upperAt = func(cf float64) float64 { return WeightedHoeffdingUpper(est, cf) }
-	case plan.BoundKornGraubard:
-		rc.Estimate = est.Rate
-		upperAt = func(cf float64) float64 { return KornGraubardUpper(est, n, cf) }
-		t.PValue = boundPValue(upperAt, ceiling)
+		s := 0
+		for _, v := range counted {
+			s += v
+		}
+		rc.CountedErrors = &s
+		v, err := m.count.Count.Judge(counted)
+		if err != nil {
+			return rc, Test{}, inputerr.Errorf("%w: %v", ErrInput, err)
+		}
+		t.PValue = v.PValue
+		upperAt = func(cf float64) (float64, error) {
+			r, err := m.count.RuleAt(cf)
+			if err != nil {
+				return math.NaN(), err
+			}
+			v, err := r.Judge(counted)
+			return v.Upper, err
+		}
+		t.kornGraubard = func(cf float64) float64 { return KornGraubardUpper(est, n, cf) }
+	default:
+		return rc, Test{}, inputerr.Errorf("%w: no judgement for bound %q", ErrInput, m.bound)
 	}
-	rc.UpperBound = upperAt(conf)
+	t.upper = upperAt
+	if err := t.boundAt(&rc, conf); err != nil {
+		return rc, Test{}, err
+	}
 	rc.PValue = t.PValue
 	if math.IsNaN(rc.UpperBound) || math.IsNaN(t.PValue) {
 		return rc, Test{}, inputerr.Errorf("%w: the %s bound is undefined for %d errors in %d", ErrInput, m.bound, x, n)
@@ -274,44 +348,53 @@ func judgeCandidate(in Input, ci int, m judgeMethod, level float64, lot int64) (
 		if m.ruleApplies && lv <= level*(1+1e-9) {
 			return byRule
 		}
+		if m.meanAtCeiling > 0 && float64(x) > m.meanAtCeiling-1 {
+			return byRule // beyond the binomial comparison's range
+		}
 		if exact {
 			return byRule || t.PValue <= lv
 		}
-		return byRule || upperAt(1-lv) < ceiling
+		u, err := upperAt(1 - lv)
+		return byRule || (err == nil && u < ceiling)
 	}
 	return rc, t, nil
 }
 
-// boundPValue is the smallest α at which the bound at 1 − α is below the
-// ceiling — the α with upperAt(1 − α) = ceiling — found by bisection on
-// log α over [1e-300, 1/2] (the bound falls as α grows). When the bound at
-// confidence 1/2 is not below the ceiling the p-value is reported as 1
-// (the data give no evidence that the error is under the ceiling).
-func boundPValue(upperAt func(float64) float64, ceiling float64) float64 {
-	if !(upperAt(0.5) < ceiling) {
-		return 1
+// boundAt sets the candidate's upper bound (and, under the count rule, the
+// descriptive Korn–Graubard bound) at confidence cf.
+func (t *Test) boundAt(rc *record.Candidate, cf float64) error {
+	u, err := t.upper(cf)
+	if err != nil {
+		return inputerr.Errorf("%w: %v", ErrInput, err)
 	}
-	lo, hi := math.Log(1e-300), math.Log(0.5)
-	if upperAt(1-math.Exp(lo)) < ceiling {
-		return math.Exp(lo)
+	rc.UpperBound, rc.BoundConfidence = u, cf
+	if t.kornGraubard != nil {
+		kg := t.kornGraubard(cf)
+		rc.KornGraubardUpper = &kg
 	}
-	for i := 0; i < 200 && hi-lo > 1e-12; i++ {
-		mid := (lo + hi) / 2
-		if upperAt(1-math.Exp(mid)) < ceiling {
-			hi = mid
-		} else {
-			lo = mid
-		}
-	}
-	return math.Exp(hi)
+	return nil
 }
 
 func reason(rc *record.Candidate, m judgeMethod, p *plan.File, n int, level float64, d Decision) string {
 	var s string
+	atPlan := d.Level <= level*(1+1e-9)
 	switch {
+	case m.count != nil && atPlan:
+		cmp := "≤"
+		if !d.Accepted {
+			cmp = ">"
+		}
+		r := m.count.Count
+		s = fmt.Sprintf("%s among the %d counted items %s c = %d (stratified count rule)", errorsText(*rc.CountedErrors), r.CountedSize(), cmp, r.Accept)
+	case m.count != nil:
+		cmp := "≤"
+		if !d.Accepted {
+			cmp = ">"
+		}
+		s = fmt.Sprintf("%s among the %d counted items, p-value %s %s level %s (stratified count rule)", errorsText(*rc.CountedErrors), m.count.Count.CountedSize(), numfmt.PValue(rc.PValue), cmp, numfmt.PValue(d.Level))
 	case m.ruleApplies && rc.Errors <= p.Rule.AcceptanceNumber:
 		s = fmt.Sprintf("%s ≤ c = %d in n = %d", errorsText(rc.Errors), p.Rule.AcceptanceNumber, n)
-	case m.ruleApplies && d.Level <= level*(1+1e-9):
+	case m.ruleApplies && atPlan:
 		s = fmt.Sprintf("%s > c = %d in n = %d", errorsText(rc.Errors), p.Rule.AcceptanceNumber, n)
 	default:
 		cmp := "<"
@@ -353,57 +436,4 @@ func overall(require plan.Require, cands []record.Candidate) string {
 		return record.Accept
 	}
 	return record.Reject
-}
-
-// UnequalBound is the bound Judge uses when the strata's inclusion weights
-// differ. Its names are those of the record command's option.
-type UnequalBound int
-
-// Bounds for samples with unequal inclusion weights.
-const (
-	// KornGraubard is the default (the zero value): Clopper–Pearson with
-	// the effective sample size (approximate).
-	KornGraubard UnequalBound = iota
-	// WeightedHoeffding is rigorous but wider.
-	WeightedHoeffding
-)
-
-// ParseUnequalBound returns the bound named s ("korn-graubard" or
-// "weighted-hoeffding").
-func ParseUnequalBound(s string) (UnequalBound, error) {
-	for _, u := range []UnequalBound{KornGraubard, WeightedHoeffding} {
-		if s == u.String() {
-			return u, nil
-		}
-	}
-	return 0, fmt.Errorf("%w: bound %q is not %s or %s", ErrInput, s, KornGraubard, WeightedHoeffding)
-}
-
-// String is the option's name.
-func (u UnequalBound) String() string {
-	switch u {
-	case KornGraubard:
-		return "korn-graubard"
-	case WeightedHoeffding:
-		return "weighted-hoeffding"
-	}
-	return fmt.Sprintf("UnequalBound(%d)", int(u))
-}
-
-// Bound is the record's name of the bound the option selects.
-func (u UnequalBound) Bound() plan.Bound {
-	if u == WeightedHoeffding {
-		return plan.BoundWeightedHoeffding
-	}
-	return plan.BoundKornGraubard
-}
-
-// UnequalBoundOf is the option under which a judgement with bound b was
-// made (KornGraubard unless b is the weighted Hoeffding bound), so that a
-// record can be judged again the same way.
-func UnequalBoundOf(b plan.Bound) UnequalBound {
-	if b == plan.BoundWeightedHoeffding {
-		return WeightedHoeffding
-	}
-	return KornGraubard
 }

@@ -73,8 +73,8 @@ func TestVerdictAgreesWithPlanC(t *testing.T) {
 			if (cand.PValue <= level) != (x <= c) {
 				t.Fatalf("n=%d c=%d x=%d: p-value %v vs level %v disagrees with the rule", tc.n, c, x, cand.PValue, level)
 			}
-			if r.Method.Bound != plan.BoundClopperPearson || !r.SelfWeighting {
-				t.Fatalf("bound %s, self-weighting %v", r.Method.Bound, r.SelfWeighting)
+			if r.Method.Bound != plan.BoundClopperPearson || r.Applied.Kind != PlanRule || r.Method.Rule.Name != record.RulePlan {
+				t.Fatalf("bound %s, rule %+v", r.Method.Bound, r.Method.Rule)
 			}
 		}
 		// The far end as well: all errors.
@@ -206,9 +206,6 @@ print(json.dumps(dict(Est=est,Var=var,Lo=lo,Hi=hi)))`, &want)
 	if !close(e.Rate, want.Est, 1e-12) || !close(e.Variance, want.Var, 1e-12) {
 		t.Errorf("estimate %.17g var %.17g; numpy %.17g %.17g", e.Rate, e.Variance, want.Est, want.Var)
 	}
-	if d.SelfWeighting() {
-		t.Fatalf("unequal weights judged self-weighting")
-	}
 	p := testPlan(180, 3, 0.08, 0.95, 1, plan.Bonferroni)
 	items := itemsWithErrors(d, [][]int{x})
 	r := judge(t, Input{Plan: p, Design: d, Items: items})
@@ -224,8 +221,11 @@ print(json.dumps(dict(Est=est,Var=var,Lo=lo,Hi=hi)))`, &want)
 	if c.Strata[2].Errors != 0 || c.Strata[2].Lower != 0 {
 		t.Errorf("stratum with no errors: %+v", c.Strata[2])
 	}
-	if r.Method.Bound != plan.BoundKornGraubard || !r.Method.Approximate {
-		t.Errorf("unequal weights judged with %s (approximate %v)", r.Method.Bound, r.Method.Approximate)
+	if r.Method.Bound != plan.BoundStratifiedCount || r.Method.Approximate || r.Method.Rule.Name != record.RuleStratifiedCount {
+		t.Errorf("unequal weights judged with %s (approximate %v), rule %+v", r.Method.Bound, r.Method.Approximate, r.Method.Rule)
+	}
+	if c.KornGraubardUpper == nil || c.CountedErrors == nil {
+		t.Errorf("the count rule reports the counted errors and the descriptive Korn–Graubard bound: %+v", c)
 	}
 }
 
@@ -245,26 +245,5 @@ func TestSequentialPlanRefused(t *testing.T) {
 	_, err := Judge(Input{Plan: p, Design: d, Items: itemsWithErrors(d, [][]int{{0}})})
 	if !errors.Is(err, ErrSequential) {
 		t.Errorf("got %v, want ErrSequential", err)
-	}
-}
-
-// TestUnequalBound: the option's names are those of the record command,
-// each selects its bound, and a record's bound gives back its option.
-func TestUnequalBound(t *testing.T) {
-	for _, tc := range []struct {
-		name  string
-		u     UnequalBound
-		bound plan.Bound
-	}{{"korn-graubard", KornGraubard, plan.BoundKornGraubard}, {"weighted-hoeffding", WeightedHoeffding, plan.BoundWeightedHoeffding}} {
-		u, err := ParseUnequalBound(tc.name)
-		if err != nil || u != tc.u || u.String() != tc.name || u.Bound() != tc.bound || UnequalBoundOf(tc.bound) != tc.u {
-			t.Errorf("%s: parsed %v, %v; bound %q", tc.name, u, err, u.Bound())
-		}
-	}
-	if _, err := ParseUnequalBound("korn-graubard (approximate)"); !errors.Is(err, ErrInput) {
-		t.Errorf("record spelling accepted as the option: %v", err)
-	}
-	if UnequalBoundOf(plan.BoundClopperPearson) != KornGraubard {
-		t.Error("a self-weighting record's option is not the default")
 	}
 }

@@ -15,6 +15,13 @@ import (
 type Test struct {
 	PValue float64
 	Accept func(level float64) bool
+
+	// upper is the candidate's upper bound at a confidence, and
+	// kornGraubard its descriptive Korn–Graubard bound (nil when not
+	// reported); Judge reports both at the level the candidate was tested
+	// at.
+	upper        func(confidence float64) (float64, error)
+	kornGraubard func(confidence float64) float64
 }
 
 // Decision is the multiplicity decision for one candidate.

@@ -98,8 +98,20 @@ func TestJudgeMultiplicityReasons(t *testing.T) {
 	if r.Candidates[0].Verdict != record.Accept || r.Candidates[1].Verdict != record.Accept {
 		t.Errorf("holm: %+v", r.Candidates)
 	}
-	if r.Candidates[1].Reason == "" || !containsStr(r.Candidates[1].Reason, "Holm step 2") {
+	if r.Candidates[1].Reason == "" || !containsStr(r.Candidates[1].Reason, "Holm step 2") || !containsStr(r.Candidates[1].Reason, "≤ level 0.05") {
 		t.Errorf("holm reason %q", r.Candidates[1].Reason)
+	}
+	// Issue 13: the Holm-accepted candidate's bound is at the level of the
+	// step that accepted it (0.05 here), below the ceiling, not at the
+	// first step's 0.025 (where it lies above it).
+	if h := r.Candidates[1]; h.BoundConfidence != 0.95 || !(h.UpperBound < 0.03) {
+		t.Errorf("holm step 2: bound %v at confidence %v", h.UpperBound, h.BoundConfidence)
+	}
+	if u := plan.ClopperPearsonUpper(c1, n, 0.975); !(u >= 0.03) {
+		t.Fatalf("test needs the first step's bound above the ceiling: %v", u)
+	}
+	if r.Candidates[0].BoundConfidence != 0.975 {
+		t.Errorf("holm step 1: bound at confidence %v", r.Candidates[0].BoundConfidence)
 	}
 	// Bonferroni with the same data rejects the second.
 	p.Inputs.Multiplicity = plan.Bonferroni

@@ -2,10 +2,10 @@ package verdict
 
 import (
 	"encoding/json"
-	"os"
 	"os/exec"
-	"strings"
 	"testing"
+
+	"probity/plan/testkit/needs"
 )
 
 // reference runs a script with a reference tool (Debian's /usr/bin/python3
@@ -14,21 +14,12 @@ import (
 // and skip it elsewhere.
 func reference(t *testing.T, tool string, args []string, script string, out any) {
 	t.Helper()
-	if _, err := exec.LookPath(tool); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is needed for this test in CI", tool)
-		}
-		t.Skipf("%s not installed", tool)
-	}
 	cmd := exec.Command(tool, append(args, script)...)
 	data, err := cmd.Output()
 	if err != nil {
 		msg := ""
 		if ee, ok := err.(*exec.ExitError); ok {
 			msg = string(ee.Stderr)
-		}
-		if os.Getenv("CI") == "" && (tool == "Rscript" && strings.Contains(msg, "there is no package called") || tool != "Rscript" && strings.Contains(msg, "No module named")) {
-			t.Skipf("%s lacks a module: %s", tool, msg)
 		}
 		t.Fatalf("%s failed: %v\n%s", tool, err, msg)
 	}
@@ -38,9 +29,11 @@ func reference(t *testing.T, tool string, args []string, script string, out any)
 }
 
 func python(t *testing.T, script string, out any) {
-	reference(t, "/usr/bin/python3", []string{"-c"}, script, out)
+	t.Helper()
+	reference(t, needs.PythonModules(t, "scipy", "statsmodels"), []string{"-c"}, script, out)
 }
 
 func rscript(t *testing.T, script string, out any) {
-	reference(t, "Rscript", []string{"-e"}, script, out)
+	t.Helper()
+	reference(t, needs.RPackages(t, "survey"), []string{"-e"}, script, out)
 }

@@ -41,6 +41,10 @@ func JudgeSequential(in Input) (*Result, error) {
 	if err := in.Design.validate(); err != nil {
 		return nil, err
 	}
+	if len(in.Design.Strata) > 1 {
+		return nil, inputerr.Errorf("%w: the draw has %d strata, and a prefix of a stratified worksheet is not a simple random sample of the population, which the boundaries need", ErrStratifiedSequential, len(in.Design.Strata)).
+			WithHint("draw the sequential plan without strata, or judge this draw under a fixed plan")
+	}
 	res := &Result{}
 	level := p.Rule.PerCandidateRisk
 	firstFail := ""
@@ -93,7 +97,10 @@ func JudgeSequential(in Input) (*Result, error) {
 		boundText = "The upper bounds and p-values are Clopper–Pearson values at the stopping point, shown for description only: they ignore the stopping rule."
 		bound = plan.BoundSequentialLot
 	}
-	res.Method = record.MethodInfo{Bound: bound, Approximate: bound.Approximate()}
+	res.Method = record.MethodInfo{Bound: bound, Approximate: bound.Approximate(), Rule: &record.AppliedRule{
+		Name: record.RuleSequential, Sources: []string{}, Strata: []record.CountedStratum{},
+		Reason: "one stratum: every prefix of the worksheet is a simple random sample, which the plan's sequential boundaries are computed for",
+	}}
 	res.Method.Statement = fmt.Sprintf(
 		"Each candidate is judged by the plan's sequential boundaries, labeling from the top of the worksheet until its errors reach the acceptance or the rejection boundary (at most %d labels); the boundaries keep the false-accept risk at or below %s per candidate. %s",
 		rule.MaxSampleSize(), numfmt.Chance(level), boundText)

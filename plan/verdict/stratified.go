@@ -61,26 +61,6 @@ func (d Design) covered() float64 {
 	return N
 }
 
-// SelfWeighting reports whether the sample can be judged as a simple
-// random sample: every sampled stratum's n_h is within one item of its
-// proportional share n·N_h/N (equal inclusion weights N_h/n_h up to the
-// rounding of a proportional allocation). A stratum with N_h > 0 and n_h =
-// 0 also counts when its share is below one item; the caller notes it.
-func (d Design) SelfWeighting() bool {
-	n := float64(d.SampleSize())
-	N := 0.0
-	for _, s := range d.Strata {
-		N += float64(s.Population)
-	}
-	for _, s := range d.Strata {
-		share := n * float64(s.Population) / N
-		if math.Abs(float64(s.Sample)-share) >= 1 {
-			return false
-		}
-	}
-	return true
-}
-
 // MaxWeightSpread is max_h w_h / min_h w_h − 1 over the sampled strata,
 // with w_h = N_h/n_h: 0 for exactly equal inclusion weights.
 func (d Design) MaxWeightSpread() float64 {
@@ -152,4 +132,13 @@ func (d Design) Stratified(errors []int) (Estimate, error) {
 	}
 	e.Rate = math.Min(math.Max(e.Rate, 0), 1)
 	return e, nil
+}
+
+// Population is N = Σ N_h.
+func (d Design) Population() int64 {
+	var n int64
+	for _, s := range d.Strata {
+		n += s.Population
+	}
+	return n
 }

@@ -1,10 +1,11 @@
 package drawfolder
 
 import (
-	"os"
 	"os/exec"
 	"strings"
 	"testing"
+
+	"probity/plan/testkit/needs"
 )
 
 // goList runs `go list -deps -f FORMAT PKG…` in the module and returns its
@@ -12,13 +13,7 @@ import (
 // under CI and is skipped otherwise.
 func goList(t *testing.T, format string, pkgs ...string) []string {
 	t.Helper()
-	goCmd, err := exec.LookPath("go")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("the go command is needed to list dependencies: %v", err)
-		}
-		t.Skipf("the go command is not on PATH: %v", err)
-	}
+	goCmd := needs.Program(t, "go")
 	cmd := exec.Command(goCmd, append([]string{"list", "-deps", "-f", format}, pkgs...)...)
 	var stderr strings.Builder
 	cmd.Stderr = &stderr

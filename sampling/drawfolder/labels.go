@@ -26,6 +26,12 @@ func ReadLabels(path string) (*Labels, error) {
 	if err != nil {
 		return nil, err
 	}
+	return ParseLabels(data, path)
+}
+
+// ParseLabels reads a labeled worksheet from its bytes; path names it in
+// messages.
+func ParseLabels(data []byte, path string) (*Labels, error) {
 	t, err := ParseCSVTable(data, path)
 	if err != nil {
 		return nil, err

@@ -91,11 +91,21 @@ type LogInfo struct {
 
 // AllocationInfo records the allocation rule and its parameters.
 type AllocationInfo struct {
-	Rule          string `json:"rule"` // proportional, neyman or equal
-	MinPerStratum int    `json:"min_per_stratum"`
-	Spare         int    `json:"spare"`
+	Rule string `json:"rule"` // proportional, neyman or equal
+	// MinPerStratum is the minimum per stratum applied (0 when none was,
+	// including a default minimum the sample had no room for).
+	MinPerStratum int `json:"min_per_stratum"`
+	Spare         int `json:"spare"`
 	// NeymanSource names the anticipated-error file or band for neyman.
 	NeymanSource string `json:"neyman_source,omitempty"`
+	// Rounding is how proportional shares were rounded: "up" (every
+	// stratum at least its share ⌈n·N_h/N⌉) or "largest-remainder"; empty
+	// in manifests written before it was recorded (largest remainder).
+	Rounding string `json:"rounding,omitempty"`
+	// Note says what the allocation did to the inclusion weights N_h/n_h
+	// (shares rounded up, strata raised to the minimum, strata left without
+	// an item), in words; empty when the weights are equal.
+	Note string `json:"note,omitempty"`
 }
 
 // StratumInfo is one stratum's line in the manifest.
@@ -219,4 +229,18 @@ func lineAt(data []byte, off int64) int {
 		off = 0
 	}
 	return bytes.Count(data[:off], []byte("\n")) + 1
+}
+
+// AnticipatedRates are the anticipated error rates per stratum the draw
+// recorded (its Neyman allocation's), in the order of Strata, or nil when
+// it recorded none (a judgement then takes the plan's).
+func (m *Manifest) AnticipatedRates() []float64 {
+	var out []float64
+	for _, s := range m.Strata {
+		if s.Anticipated <= 0 {
+			return nil
+		}
+		out = append(out, s.Anticipated)
+	}
+	return out
 }

@@ -3,6 +3,7 @@ package drawfolder
 import (
 	"bytes"
 	"fmt"
+	"os"
 	"path/filepath"
 
 	"probity/plan/inputerr"
@@ -53,10 +54,41 @@ func (f *Folder) Path(name string) string { return filepath.Join(f.Dir, name) }
 // the demo) opens it here. Errors are *inputerr.Error values naming the
 // file, and the line and field where there is one.
 func Open(dir, planFP string, candidates []string) (*Folder, error) {
+	return open(dir, planFP, candidates, inputfile.ReadFile)
+}
+
+// OpenContent is Open on a draw that was made but not written: its files
+// are rendered in memory (Content.Render) and read back through the same
+// checks, so a judgement of them is the judgement of the folder the draw
+// would write (Dir is empty). Simulations of the whole audit use it.
+func OpenContent(c *Content, planFP string, candidates []string) (*Folder, error) {
+	files, err := c.Render()
+	if err != nil {
+		return nil, err
+	}
+	byName := map[string][]byte{}
+	for _, f := range files {
+		byName[f.Name] = f.Data
+	}
+	return open("", planFP, candidates, func(name, _ string, _ int64) ([]byte, error) {
+		data, ok := byName[filepath.Base(name)]
+		if !ok {
+			return nil, inputerr.FromPath(&os.PathError{Op: "open", Path: name, Err: os.ErrNotExist})
+		}
+		return data, nil
+	})
+}
+
+// open is Open reading the folder's files with read (inputfile.ReadFile's
+// signature: the file's path, what it is, and its size bound).
+func open(dir, planFP string, candidates []string, read func(path, what string, limit int64) ([]byte, error)) (*Folder, error) {
 	f := &Folder{Dir: dir}
 	var err error
 	mpath := f.Path(ManifestFile)
-	if f.Manifest, f.ManifestBytes, err = ReadManifest(mpath); err != nil {
+	if f.ManifestBytes, err = read(mpath, "manifest", inputfile.SmallLimit); err != nil {
+		return nil, err
+	}
+	if f.Manifest, err = ParseManifest(f.ManifestBytes, mpath); err != nil {
 		return nil, err
 	}
 	if err := f.CheckPlan(planFP); err != nil {
@@ -66,7 +98,7 @@ func Open(dir, planFP string, candidates []string) (*Folder, error) {
 		return nil, err
 	}
 	lpath := f.Path(LedgerFile)
-	if f.LedgerBytes, err = inputfile.ReadFile(lpath, "ledger", inputfile.TableLimit); err != nil {
+	if f.LedgerBytes, err = read(lpath, "ledger", inputfile.TableLimit); err != nil {
 		return nil, err
 	}
 	if err := f.matchManifest(lpath, LedgerFile, f.LedgerBytes); err != nil {
@@ -83,7 +115,7 @@ func Open(dir, planFP string, candidates []string) (*Folder, error) {
 		return nil, err
 	}
 	wpath := f.Path(WorksheetFile)
-	if f.WorksheetBytes, err = inputfile.ReadFile(wpath, "worksheet", inputfile.TableLimit); err != nil {
+	if f.WorksheetBytes, err = read(wpath, "worksheet", inputfile.TableLimit); err != nil {
 		return nil, err
 	}
 	if t, err = ParseCSVTable(f.WorksheetBytes, wpath); err != nil {

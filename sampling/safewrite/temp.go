@@ -89,8 +89,3 @@ func sweep(dir string) []Leftover {
 	}
 	return left
 }
-
-// isTemp reports whether name is a temporary's name (of any version).
-func isTemp(name string) bool {
-	return tempName.MatchString(name) || olderTempName.MatchString(name)
-}

@@ -3,6 +3,8 @@ package sqlquery
 import (
 	"strconv"
 	"strings"
+
+	"probity/sampling"
 )
 
 // Allocation rules the query can compute. Neyman allocation is not among
@@ -46,6 +48,9 @@ func allocationCTEs(s *Spec) (string, error) {
 	}
 	if s.SampleSize < 1 || s.MinPerStratum < 0 || s.Spare < 0 {
 		return "", specError("", "sample size %d, minimum %d, spares %d", s.SampleSize, s.MinPerStratum, s.Spare)
+	}
+	if s.roundingName() == sampling.RoundUp {
+		return roundUpCTEs(s), nil
 	}
 	num := d.exactInt()
 	n := "CAST(" + strconv.Itoa(s.SampleSize) + " AS " + num + ")"
@@ -110,4 +115,36 @@ alloc AS (
   WHERE done
 ),
 `), nil
+}
+
+// roundingName is the rounding the allocation uses: sampling.RoundUp for a
+// proportional allocation that asks for it, else "" (largest remainder).
+func (s *Spec) roundingName() string {
+	if (s.Allocation == ruleProportional || s.Allocation == "") && s.Rounding == sampling.RoundUp {
+		return sampling.RoundUp
+	}
+	return ""
+}
+
+// roundUpCTEs is the allocation CTE of proportional shares rounded up, as
+// sampling.Allocate computes it: n_h = min(N_h, max(⌈n·N_h/N⌉, k)), with
+// ⌈a/b⌉ = ⌊(a + b − 1)/b⌋ on exact integers.
+func roundUpCTEs(s *Spec) string {
+	d := s.Dialect
+	num := d.exactInt()
+	n := "CAST(" + strconv.Itoa(s.SampleSize) + " AS " + num + ")"
+	k := "CAST(" + strconv.Itoa(s.MinPerStratum) + " AS " + num + ")"
+	spare := "CAST(" + strconv.Itoa(s.Spare) + " AS " + num + ")"
+	share := d.exactDiv(n+" * CAST(n_pop AS "+num+") + t.total - 1", "t.total")
+	return `alloc_up AS (
+  SELECT stratum, CAST(n_pop AS ` + num + `) AS n_pop,
+    LEAST(CAST(n_pop AS ` + num + `), GREATEST(` + share + `, ` + k + `)) AS n_sample
+  FROM counts, (SELECT CAST(sum(n_pop) AS ` + num + `) AS total FROM counts) AS t
+),
+alloc AS (
+  SELECT stratum, CAST(n_pop AS bigint) AS n_pop, CAST(n_sample AS bigint) AS n_sample,
+    CAST(LEAST(` + spare + `, n_pop - n_sample) AS bigint) AS n_spare
+  FROM alloc_up
+),
+`
 }

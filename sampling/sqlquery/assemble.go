@@ -84,7 +84,7 @@ func (res *Result) manifest(toolVersion string, sample, spares int) *drawfolder.
 		Bands:         append([]string(nil), s.Bands...),
 		Where:         append([]string(nil), s.Where...),
 		ShowColumns:   append([]string{}, s.Show...),
-		Allocation:    drawfolder.AllocationInfo{Rule: ruleName(s.Allocation), MinPerStratum: s.MinPerStratum, Spare: s.Spare},
+		Allocation:    drawfolder.AllocationInfo{Rule: ruleName(s.Allocation), MinPerStratum: s.MinPerStratum, Spare: s.Spare, Rounding: s.roundingName()},
 		Double:        s.Double,
 		LotSize:       res.InScope,
 		SampleSize:    sample,
@@ -102,6 +102,7 @@ func (res *Result) manifest(toolVersion string, sample, spares int) *drawfolder.
 		m.Strata = append(m.Strata, drawfolder.StratumInfo{Label: a.Label, Population: a.Population, Sample: a.Sample,
 			Spare: a.Spare, Weight: a.Weight})
 	}
+	m.Allocation.Note = sampling.AllocationNote(res.Strata, s.SampleSize, s.MinPerStratum, s.roundingName())
 	return m
 }
 

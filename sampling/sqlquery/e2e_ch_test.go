@@ -15,6 +15,7 @@ import (
 	"time"
 
 	"probity/plan"
+	"probity/plan/testkit/needs"
 	"probity/sampling"
 	"probity/sampling/sqlquery/chcluster"
 )
@@ -293,13 +294,7 @@ func TestClickHouseMatchesFileDraw(t *testing.T) {
 // keys, which must be the rows of the result in the same order.
 func pythonRecompute(t *testing.T, logPath string, s *Spec, res *Result) {
 	t.Helper()
-	const py = "/usr/bin/python3"
-	if _, err := os.Stat(py); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("%s is needed for this test in CI", py)
-		}
-		t.Skipf("%s not installed", py)
-	}
+	py := needs.PythonModules(t)
 	type band struct {
 		Column string    `json:"column"`
 		Edges  []float64 `json:"edges"`

@@ -1,17 +1,14 @@
 package sqlquery
 
 import (
-	"flag"
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"probity/plan"
+	"probity/plan/testkit/golden"
 	"probity/sampling"
 )
-
-var update = flag.Bool("update", false, "rewrite the golden queries in testdata/sql")
 
 // TestQueryGolden pins the query text for each dialect. The import
 // rebuilds the query from a result's first row and records its SHA-256,
@@ -48,18 +45,8 @@ func TestQueryGolden(t *testing.T) {
 				t.Errorf("the %s%s query sets skip_unavailable_shards to something other than 0", d, suffix)
 			}
 			path := filepath.Join("..", "..", "testdata", "sql", "query-"+string(d)+suffix+".sql")
-			if *update {
-				if err := os.WriteFile(path, []byte(q), 0o644); err != nil {
-					t.Fatal(err)
-				}
-				continue
-			}
-			want, err := os.ReadFile(path)
-			if err != nil {
-				t.Fatalf("%v (run go test -update to create it)", err)
-			}
-			if string(want) != q {
-				t.Errorf("the %s%s query changed; bump QueryFormat if the change is intended, then go test -run Golden -update", d, suffix)
+			if !golden.CompareString(t, path, q) {
+				t.Errorf("the %s%s query changed: bump QueryFormat if the change is intended", d, suffix)
 			}
 		}
 	}

@@ -6,16 +6,17 @@ import (
 	"encoding/hex"
 	"fmt"
 	"io"
-	"os"
 	"os/exec"
 	"strings"
 	"sync"
 	"testing"
+
+	"probity/plan/testkit/pgtest"
 )
 
-// pgServer is a PostgreSQL server reached through psql on a Unix socket
-// (PROBITY_TEST_PGHOST, the socket directory, and PROBITY_TEST_PGUSER, set
-// by .ci/run for a throw-away cluster).
+// pgServer is a PostgreSQL server reached through psql on a Unix socket:
+// the throw-away cluster of probity/plan/testkit/pgtest, or the server
+// PROBITY_TEST_PGHOST names.
 type pgServer struct {
 	psql string
 	host string
@@ -23,24 +24,13 @@ type pgServer struct {
 	db   string
 }
 
-// needPostgres returns the test server, or skips the test when none is
-// configured — failing instead when CI is set, so CI cannot pass without it.
+// needPostgres returns the test server, or skips the test when PostgreSQL
+// is not installed — failing instead when CI is set, so CI cannot pass
+// without it.
 func needPostgres(t testing.TB) *pgServer {
 	t.Helper()
-	host := os.Getenv("PROBITY_TEST_PGHOST")
-	user := os.Getenv("PROBITY_TEST_PGUSER")
-	psql, err := exec.LookPath("psql")
-	if host == "" || err != nil {
-		msg := "PostgreSQL is not configured (PROBITY_TEST_PGHOST unset or psql missing)"
-		if os.Getenv("CI") != "" {
-			t.Fatal(msg)
-		}
-		t.Skip(msg)
-	}
-	if user == "" {
-		user = "postgres"
-	}
-	srv := &pgServer{psql: psql, host: host, user: user, db: "postgres"}
+	pg := pgtest.Need(t)
+	srv := &pgServer{psql: pg.Psql, host: pg.Host, user: pg.User, db: "postgres"}
 	testDBOnce.Do(func() { testDBErr = srv.createTestDB() })
 	if testDBErr != nil {
 		t.Fatal(testDBErr)

@@ -60,6 +60,9 @@ type Spec struct {
 	Allocation    string `json:"allocation"`
 	MinPerStratum int    `json:"min_per_stratum"`
 	Spare         int    `json:"spare"`
+	// Rounding of proportional shares: sampling.RoundUp or
+	// sampling.RoundLargestRemainder ("" is the latter).
+	Rounding string `json:"rounding,omitempty"`
 	// Double is --double k: the first k sample items get a second label.
 	Double int `json:"double"`
 }

@@ -53,7 +53,7 @@ func allocateCounts(t *resultTable, s *Spec, counts []sampling.StratumCount, inS
 	if inScope > tableRows {
 		return nil, t.rowError(0, colStratumSize, "the table has %d rows but %d are in scope", tableRows, inScope)
 	}
-	alloc, err := sampling.Allocate(counts, s.SampleSize, sampling.AllocOptions{Rule: s.Allocation, MinPerStratum: s.MinPerStratum, Spare: s.Spare})
+	alloc, err := sampling.Allocate(counts, s.SampleSize, sampling.AllocOptions{Rule: s.Allocation, MinPerStratum: s.MinPerStratum, Spare: s.Spare, Rounding: s.Rounding})
 	if err != nil {
 		e := &inputerr.Error{File: t.name, Msg: err.Error(), Err: err}
 		if errors.Is(err, sampling.ErrSampleTooLarge) {

@@ -81,9 +81,6 @@ type Options struct {
 	// agreement.Input).
 	AllowUnadjudicated bool
 	Strict             bool
-	// Bound is the bound for unequal weights (verdict.KornGraubard unless
-	// set).
-	Bound verdict.UnequalBound
 	// Use is the declared use (templates.Uses()).
 	Use string
 	// Issued is when the record is issued: the system clock's time, or
@@ -298,7 +295,7 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 		rec.Fingerprints.Trail = in.TrailSHA256
 		rec.LabelTrail = trailSummary(in.Trail.Summary())
 	}
-	res, err := judge(p, checked, o.Bound)
+	res, err := judge(p, checked, in.Folder.Manifest)
 	if err != nil {
 		return nil, err
 	}
@@ -310,12 +307,8 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 	if err := judgeMeasures(rec, p, in.Folder.Manifest, checked); err != nil {
 		return nil, err
 	}
-	if res.SelfWeighting && !rec.Method.Bound.Weighted() {
-		if s := checked.Design.MaxWeightSpread(); s > 1e-12 {
-			rec.Method.Assumptions = append(rec.Method.Assumptions, fmt.Sprintf(
-				"The strata's inclusion weights N_h/n_h differ by at most %s %% through the rounding of the proportional allocation; the sample is judged as a simple random sample.",
-				strings.TrimSuffix(fmt.Sprintf("%.2f", 100*s), ".00")))
-		}
+	if w := weightsNote(in.Folder.Manifest, checked.Design); w != "" {
+		rec.Method.Assumptions = append(rec.Method.Assumptions, w)
 	}
 	rec.Deviations = checked.Deviations
 	if in.Second == nil {
@@ -335,6 +328,16 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 	} else {
 		for _, pt := range p.OC(OCPoints) {
 			rec.OC = append(rec.OC, record.OCPoint{Error: pt.Error, AcceptProbability: pt.AcceptProbability})
+		}
+		if a := res.Applied; a != nil && a.Kind == verdict.CountRule {
+			// the curve of the rule actually applied, on the same grid
+			errs := make([]float64, len(rec.OC))
+			for i, pt := range rec.OC {
+				errs[i] = pt.Error
+			}
+			if rec.OC, err = a.OC(errs); err != nil {
+				return nil, err
+			}
 		}
 	}
 	if rec.Signoff, err = signoff(o.Signoff, set, rec); err != nil {
@@ -443,13 +446,33 @@ func checkUse(use string) error {
 	return inputerr.Errorf("%w: use %q is not one of %s", ErrInput, use, strings.Join(templates.Uses(), ", "))
 }
 
-// judge runs the verdict package on the checked items.
-func judge(p *plan.File, c *intake.Result, bound verdict.UnequalBound) (*verdict.Result, error) {
-	in := verdict.Input{Plan: p, Design: c.Design, Items: c.Items, UnequalBound: bound}
+// judge runs the verdict package on the checked items, with the
+// anticipated errors per stratum the draw recorded (Neyman allocation).
+func judge(p *plan.File, c *intake.Result, m *drawfolder.Manifest) (*verdict.Result, error) {
+	in := verdict.Input{Plan: p, Design: c.Design, Items: c.Items, Rates: m.AnticipatedRates()}
 	if p.Sequential != nil {
 		return verdict.JudgeSequential(in)
 	}
 	return verdict.Judge(in)
+}
+
+// weightsNote says what the allocation did to the inclusion weights
+// N_h/n_h, when they differ: through the rounding of proportional shares,
+// a minimum per stratum or another allocation rule.
+func weightsNote(m *drawfolder.Manifest, d verdict.Design) string {
+	s := d.MaxWeightSpread()
+	if s <= 1e-12 {
+		return ""
+	}
+	why := "the " + m.Allocation.Rule + " allocation"
+	if m.Allocation.Rule == "proportional" || m.Allocation.Rule == "" {
+		why = "the rounding of the proportional allocation"
+	}
+	if m.Allocation.MinPerStratum > 0 {
+		why += fmt.Sprintf(" and the minimum of %d per stratum", m.Allocation.MinPerStratum)
+	}
+	return fmt.Sprintf("The strata's inclusion weights N_h/n_h differ by up to %s %% through %s; the estimate weights each stratum by N_h/N, and the verdict uses a rule that holds whatever the weights (see the method).",
+		strings.TrimSuffix(fmt.Sprintf("%.2f", 100*s), ".00"), why)
 }
 
 // ocTop is the right end of a sequential plan's OC curve: three times the

@@ -91,13 +91,6 @@ func first(s []string) string {
 	return strings.Join(s[:maxListed], ", ") + fmt.Sprintf(" and %d more", len(s)-maxListed)
 }
 
-func list(s []string) string {
-	if len(s) == 0 {
-		return "(none)"
-	}
-	return strings.Join(s, ", ")
-}
-
 // judgeable checks the labels and the use of spares, and builds the items.
 func (res *Result) judgeable(p *plan.File, f *drawfolder.Folder, l *drawfolder.Labels, strata []verdict.Stratum, index map[string]int, opts Options) error {
 	// Labels by ledger row (compareRows established a 1:1 match in order).
@@ -220,7 +213,7 @@ func (res *Result) judgeable(p *plan.File, f *drawfolder.Folder, l *drawfolder.L
 
 func (res *Result) add(row int, lr drawfolder.LedgerRow, label string, h int, missing bool) {
 	res.order = append(res.order, row)
-	res.Items = append(res.Items, verdict.Item{RecordID: lr.RecordID, Stratum: h, Label: label, Missing: missing,
+	res.Items = append(res.Items, verdict.Item{RecordID: lr.RecordID, Item: lr.Item, Stratum: h, Label: label, Missing: missing,
 		Predictions: append([]string(nil), lr.Predictions...)})
 }
 

@@ -18,11 +18,10 @@ import (
 // strata of the log with 2 spares each. Items are in key order with the
 // spares after the sample.
 type drawFixture struct {
-	dir      string
-	plan     *plan.File
-	planFP   string
-	folder   *drawfolder.Content
-	labelsAt string
+	dir    string
+	plan   *plan.File
+	planFP string
+	folder *drawfolder.Content
 }
 
 func newDrawFixture(t *testing.T) *drawFixture {

@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"probity/plan/record"
+	"probity/plan/testkit/needs"
 )
 
 // keyFrom makes a key pair from a fixed byte.
@@ -135,12 +136,7 @@ func TestParseSignaturesNamesTheLine(t *testing.T) {
 // the signatures file carries (the DER prefix of an Ed25519
 // SubjectPublicKeyInfo, RFC 8410, then the 32 bytes).
 func TestOpenSSLVerifiesManifestation(t *testing.T) {
-	if _, err := exec.LookPath("openssl"); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("openssl is needed for this test in CI")
-		}
-		t.Skip("openssl not installed")
-	}
+	openssl := needs.Program(t, "openssl")
 	b := Binding{RecordJSON: []byte("{}\n"), RecordID: testID, Seal: []byte("seal")}
 	ms := chainOf(t, b, "prepared", "reviewed")
 	dir := t.TempDir()
@@ -152,14 +148,14 @@ func TestOpenSSLVerifiesManifestation(t *testing.T) {
 		return p
 	}
 	der := append([]byte{0x30, 0x2a, 0x30, 0x05, 0x06, 0x03, 0x2b, 0x65, 0x70, 0x03, 0x21, 0x00}, ms[1].PublicKey...)
-	out, err := exec.Command("openssl", "pkeyutl", "-verify", "-pubin", "-keyform", "DER", "-inkey", write("pub.der", der),
+	out, err := exec.Command(openssl, "pkeyutl", "-verify", "-pubin", "-keyform", "DER", "-inkey", write("pub.der", der),
 		"-rawin", "-in", write("msg", ms[1].Message()), "-sigfile", write("sig", ms[1].Signature)).CombinedOutput()
 	if err != nil || !strings.Contains(string(out), "Signature Verified Successfully") {
 		t.Errorf("openssl did not verify the signature: %v\n%s", err, out)
 	}
 	// One byte of the message changed: OpenSSL refuses it too.
 	msg := bytes.Replace(ms[1].Message(), []byte("role: reviewed"), []byte("role: approved"), 1)
-	out, err = exec.Command("openssl", "pkeyutl", "-verify", "-pubin", "-keyform", "DER", "-inkey", filepath.Join(dir, "pub.der"),
+	out, err = exec.Command(openssl, "pkeyutl", "-verify", "-pubin", "-keyform", "DER", "-inkey", filepath.Join(dir, "pub.der"),
 		"-rawin", "-in", write("msg2", msg), "-sigfile", filepath.Join(dir, "sig")).CombinedOutput()
 	if err == nil || strings.Contains(string(out), "Signature Verified Successfully") {
 		t.Errorf("openssl verified an altered message:\n%s", out)

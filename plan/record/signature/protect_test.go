@@ -10,6 +10,8 @@ import (
 	"testing"
 
 	"golang.org/x/crypto/ssh"
+
+	"probity/plan/testkit/needs"
 )
 
 func TestProtectedKeyRoundTrip(t *testing.T) {
@@ -51,12 +53,7 @@ func TestProtectedKeyRoundTrip(t *testing.T) {
 // independent of golang.org/x/crypto) opens the protected key with the
 // passphrase and derives the same public key, and refuses a wrong one.
 func TestSSHKeygenReadsProtectedKey(t *testing.T) {
-	if _, err := exec.LookPath("ssh-keygen"); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("ssh-keygen is needed for this test in CI")
-		}
-		t.Skip("ssh-keygen not installed")
-	}
+	sshKeygen := needs.Program(t, "ssh-keygen")
 	priv := keyFrom(6)
 	data, err := MarshalProtected(priv, []byte("correct horse battery"))
 	if err != nil {
@@ -66,7 +63,7 @@ func TestSSHKeygenReadsProtectedKey(t *testing.T) {
 	if err := os.WriteFile(path, data, 0o600); err != nil {
 		t.Fatal(err)
 	}
-	out, err := exec.Command("ssh-keygen", "-y", "-P", "correct horse battery", "-f", path).CombinedOutput()
+	out, err := exec.Command(sshKeygen, "-y", "-P", "correct horse battery", "-f", path).CombinedOutput()
 	if err != nil {
 		t.Fatalf("ssh-keygen: %v\n%s", err, out)
 	}
@@ -74,7 +71,7 @@ func TestSSHKeygenReadsProtectedKey(t *testing.T) {
 	if want := strings.TrimSpace(string(ssh.MarshalAuthorizedKey(sshPub))); !strings.HasPrefix(strings.TrimSpace(string(out)), want) {
 		t.Errorf("ssh-keygen derives %s, want %s", out, want)
 	}
-	if out, err := exec.Command("ssh-keygen", "-y", "-P", "wrong horse battery", "-f", path).CombinedOutput(); err == nil {
+	if out, err := exec.Command(sshKeygen, "-y", "-P", "wrong horse battery", "-f", path).CombinedOutput(); err == nil {
 		t.Errorf("ssh-keygen opened the key with a wrong passphrase:\n%s", out)
 	}
 }

@@ -9,6 +9,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"probity/plan/testkit/needs"
 )
 
 // fixedRandom is a deterministic stream for key generation in tests.
@@ -123,12 +125,7 @@ func TestParseErrorsNameTheLine(t *testing.T) {
 // independent implementation: OpenSSL's pkeyutl (Ed25519 over the raw
 // message of Message).
 func TestOpenSSLVerifiesSignature(t *testing.T) {
-	if _, err := exec.LookPath("openssl"); err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatal("openssl is needed for this test in CI")
-		}
-		t.Skip("openssl not installed")
-	}
+	openssl := needs.Program(t, "openssl")
 	pub, priv, _ := GenerateKey(fixedRandom())
 	dir := t.TempDir()
 	pubPEM, _ := MarshalPublic(pub)
@@ -145,12 +142,12 @@ func TestOpenSSLVerifiesSignature(t *testing.T) {
 	pubPath, privPath := write("k.pub", pubPEM), write("k", privPEM)
 	msg := write("msg", Message("record.json", data))
 	sig := write("sig", s.Files[0].Signature)
-	out, err := exec.Command("openssl", "pkeyutl", "-verify", "-pubin", "-inkey", pubPath, "-rawin", "-in", msg, "-sigfile", sig).CombinedOutput()
+	out, err := exec.Command(openssl, "pkeyutl", "-verify", "-pubin", "-inkey", pubPath, "-rawin", "-in", msg, "-sigfile", sig).CombinedOutput()
 	if err != nil || !strings.Contains(string(out), "Signature Verified Successfully") {
 		t.Errorf("openssl did not verify the signature: %v\n%s", err, out)
 	}
 	// And OpenSSL reads the private key file and derives the same public key.
-	out, err = exec.Command("openssl", "pkey", "-in", privPath, "-pubout").CombinedOutput()
+	out, err = exec.Command(openssl, "pkey", "-in", privPath, "-pubout").CombinedOutput()
 	if err != nil || string(out) != string(pubPEM) {
 		t.Errorf("openssl derives another public key: %v\n%s\nwant\n%s", err, out, pubPEM)
 	}

@@ -1,22 +1,17 @@
 package signing
 
 import (
-	"os"
 	"os/exec"
 	"strings"
 	"testing"
+
+	"probity/plan/testkit/needs"
 )
 
 // TestNothingBelowTheCommandImportsSigning: signing renders the PDF
 // (pdfreport); no package but the command may depend on it.
 func TestNothingBelowTheCommandImportsSigning(t *testing.T) {
-	goCmd, err := exec.LookPath("go")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("the go command is needed to list dependencies: %v", err)
-		}
-		t.Skipf("the go command is not on PATH: %v", err)
-	}
+	goCmd := needs.Program(t, "go")
 	const self = "probity/plan/record/signing"
 	out, err := exec.Command(goCmd, "list", "-f", `{{.ImportPath}}{{range .Deps}} {{.}}{{end}}`, "probity/...").Output()
 	if err != nil {

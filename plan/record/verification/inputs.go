@@ -14,7 +14,6 @@ import (
 	"probity/plan/planfile"
 	"probity/plan/record"
 	"probity/plan/record/assemble"
-	"probity/plan/verdict"
 	"probity/sampling/drawfolder"
 )
 
@@ -141,7 +140,7 @@ func fileHash(path string) (string, error) {
 }
 
 // recompute builds the record again from its inputs with the stored
-// record's own options (date, use, bound, sign-off, signing key, the
+// record's own options (date, use, sign-off, signing key, the
 // treatment of incomplete labeling and of double labeling), through
 // assemble.Record as the record command does — with a label trail, the
 // worksheets are derived from it again and its chain checked — and
@@ -149,8 +148,8 @@ func fileHash(path string) (string, error) {
 func recompute(rep *Report, in Input, rec *record.Record) error {
 	files := in.Files
 	o := assemble.Options{
-		AllowIncomplete: rec.Deviations.AllowIncomplete, Bound: verdict.UnequalBoundOf(rec.Method.Bound),
-		Use: rec.Use, Issued: issued(rec), Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
+		AllowIncomplete: rec.Deviations.AllowIncomplete,
+		Use:             rec.Use, Issued: issued(rec), Signoff: rec.Signoff, ToolVersion: rec.ToolVersion, SigningKey: rec.SigningKey,
 		Revision: rec.Revision, Supersedes: rec.Supersedes, Demonstration: rec.Demonstration, Templates: in.Templates,
 	}
 	if rec.Fingerprints.Trail == "" {

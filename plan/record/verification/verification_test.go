@@ -10,6 +10,7 @@ import (
 
 	"probity/plan/inputerr"
 	"probity/plan/record"
+	"probity/plan/testkit/needs"
 )
 
 // The whole of Verify runs in the verify command's tests on records made
@@ -90,13 +91,7 @@ func TestDiffShowsNoJSONEscapes(t *testing.T) {
 // pdfreport, plan, plan/record and sampling; none of them, nor any other
 // package but the command, may depend on it.
 func TestNothingBelowTheCommandImportsVerification(t *testing.T) {
-	goCmd, err := exec.LookPath("go")
-	if err != nil {
-		if os.Getenv("CI") != "" {
-			t.Fatalf("the go command is needed to list dependencies: %v", err)
-		}
-		t.Skipf("the go command is not on PATH: %v", err)
-	}
+	goCmd := needs.Program(t, "go")
 	const self = "probity/plan/record/verification"
 	out, err := exec.Command(goCmd, "list", "-f", `{{.ImportPath}}{{range .Deps}} {{.}}{{end}}`, "probity/...").Output()
 	if err != nil {

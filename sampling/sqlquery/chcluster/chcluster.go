@@ -20,6 +20,8 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"probity/plan/testkit/needs"
 )
 
 // Name is the cluster's name in the servers' remote_servers section, as a
@@ -43,26 +45,11 @@ type Server struct {
 }
 
 // Binaries returns the paths of clickhouse-server and clickhouse-client,
-// failing the test under CI and skipping it otherwise when one is missing.
+// failing the test under CI and skipping it otherwise when one is missing
+// (probity/plan/testkit/needs).
 func Binaries(t testing.TB) (server, client string) {
 	t.Helper()
-	server, err := exec.LookPath("clickhouse-server")
-	if err != nil {
-		// Debian installs the server in /usr/sbin, which a non-root PATH
-		// may lack.
-		if _, serr := os.Stat("/usr/sbin/clickhouse-server"); serr == nil {
-			server, err = "/usr/sbin/clickhouse-server", nil
-		}
-	}
-	client, cerr := exec.LookPath("clickhouse-client")
-	if err != nil || cerr != nil {
-		msg := "clickhouse-server or clickhouse-client is not installed (Debian: apt-get install clickhouse-server clickhouse-client)"
-		if os.Getenv("CI") != "" {
-			t.Fatal(msg)
-		}
-		t.Skip(msg)
-	}
-	return server, client
+	return needs.Program(t, "clickhouse-server"), needs.Program(t, "clickhouse-client")
 }
 
 // Start starts two servers in a temporary folder and waits until both

@@ -1,0 +1,11 @@
+package main
+
+import (
+	"testing"
+
+	"probity/plan/testkit/pgtest"
+)
+
+// TestMain stops the throw-away PostgreSQL cluster the draw --sql tests may
+// have started.
+func TestMain(m *testing.M) { pgtest.Main(m) }
