@@ -14,8 +14,8 @@ func addDrawMeasures(o *drawOptions, in *sampling.DrawInput) error {
 	if in.Plan.Measures == nil {
 		return nil
 	}
-	if o.allocation != sampling.Proportional || o.minPer > 0 {
-		return inputerr.Errorf("--allocation and --min-per-stratum do not apply to a plan with measures: its design decides each stratum's labels")
+	if o.allocationSet || o.minPerSet || o.roundingSet {
+		return inputerr.Errorf("--allocation, --rounding and --min-per-stratum do not apply to a plan with measures: its design decides each stratum's labels")
 	}
 	return flagNames(sampling.AddPredictionStrata(in), map[string]string{"strata_columns": "--strata", "bands": "--band"})
 }
