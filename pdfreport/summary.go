@@ -27,8 +27,13 @@ func (d *doc) titleBlock(c *content) {
 	if n == 1 {
 		what = "one candidate"
 	}
-	d.paragraph("Statistical acceptance of "+what+" against an error ceiling of "+c.fields.Ceiling+
-		" at "+c.fields.Confidence+" confidence.", "", bodySize+1, lineH+0.4, 0, inkColour)
+	intro := "Statistical acceptance of " + what + " against an error ceiling of " + c.fields.Ceiling +
+		" at " + c.fields.Confidence + " confidence."
+	if hasMeasures(rec) {
+		intro = "Statistical acceptance of " + what + " on error measures for the positive class " + positiveClass(rec) +
+			" (" + c.fields.Ceiling + "), at " + c.fields.Confidence + " confidence for all claims together."
+	}
+	d.paragraph(intro, "", bodySize+1, lineH+0.4, 0, inkColour)
 	d.space(2.5)
 	period := rec.Period
 	if period == "" {
@@ -206,6 +211,16 @@ func (d *doc) verdictBanner(c *content) {
 		word = "NO VERDICT"
 	}
 	detail := itoa(accepted) + " of " + itoa(len(rec.Candidates)) + " candidates accepted; " + rec.Plan.Require.Title() + "."
+	label := "OVERALL VERDICT"
+	if s := rec.ReleaseStatement(); s != "" {
+		// the decision signed is the release
+		label = "RELEASE DECISION"
+		detail = strings.ToUpper(s[:1]) + s[1:] + ". " + itoa(accepted) + " of " + itoa(len(rec.Candidates)) +
+			" candidates accepted on every measure claimed for them."
+	} else if hasMeasures(rec) {
+		detail = itoa(accepted) + " of " + itoa(len(rec.Candidates)) + " candidates accepted on every measure claimed for them; " +
+			rec.Plan.Require.Title() + "."
+	}
 	if len(rec.Caveats) > 0 && word == record.Accept {
 		detail += " Qualified: see below."
 		word = "ACCEPT, QUALIFIED"
@@ -218,7 +233,7 @@ func (d *doc) verdictBanner(c *content) {
 	d.textColour(white)
 	d.font("", smallSize)
 	d.pdf.SetXY(marginX+4, y+2)
-	d.pdf.CellFormat(50, 3.5, "OVERALL VERDICT", "", 0, "L", false, 0, "")
+	d.pdf.CellFormat(50, 3.5, label, "", 0, "L", false, 0, "")
 	// The word in 17 pt, or smaller when it is long ("ACCEPT, QUALIFIED").
 	size := 17.0
 	for d.font("B", size); size > 10 && d.pdf.GetStringWidth(word) > 62; d.font("B", size) {

@@ -201,9 +201,6 @@ func oneOf(v string, list []string) bool {
 }
 
 func runRecord(d deps, o *recordOptions) error {
-	if err := refuseMeasuresRecord(o.planPath); err != nil {
-		return err
-	}
 	if err := checkOutWritable(o.out, o.force); err != nil {
 		return err
 	}
@@ -240,7 +237,7 @@ func runRecord(d deps, o *recordOptions) error {
 		Revision: o.revision, Supersedes: o.supersedes, Demonstration: signature.IsDemoKey(keyFP),
 	})
 	if err != nil {
-		return recordHints(err, o)
+		return noMissMeasureHint(recordHints(err, o), o.use)
 	}
 	out, err := renderRecord(rec, o.paper, set, priv)
 	if err != nil {
@@ -313,16 +310,21 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 	if rec.Supersedes != "" {
 		fmt.Fprintf(w, "revision %d, superseding record %s\n", rec.Revision, rec.Supersedes)
 	}
-	fmt.Fprintf(w, "ceiling %s, confidence %s, %s\n", numfmt.Setting(rec.Plan.Ceiling), numfmt.Confidence(rec.Plan.Confidence), rec.Method.Bound)
-	width := 4
-	for _, c := range rec.Candidates {
-		width = max(width, len([]rune(c.Name)))
+	if len(rec.Measures) > 0 {
+		fmt.Fprintf(w, "confidence %s for all claims together\n", numfmt.Confidence(rec.Plan.Confidence))
+		writeMeasuresSummary(d, rec)
+	} else {
+		fmt.Fprintf(w, "ceiling %s, confidence %s, %s\n", numfmt.Setting(rec.Plan.Ceiling), numfmt.Confidence(rec.Plan.Confidence), rec.Method.Bound)
+		width := 4
+		for _, c := range rec.Candidates {
+			width = max(width, len([]rune(c.Name)))
+		}
+		for _, c := range rec.Candidates {
+			fmt.Fprintf(w, "  %-*s  %s  %s/%s errors, estimate %s, upper bound %s — %s\n", width, c.Name, c.Verdict, numfmt.Count(c.Errors), numfmt.Count(c.Labeled),
+				numfmt.Rate(c.Estimate), numfmt.RateUp(c.UpperBound), c.Reason)
+		}
+		fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
 	}
-	for _, c := range rec.Candidates {
-		fmt.Fprintf(w, "  %-*s  %s  %s/%s errors, estimate %s, upper bound %s — %s\n", width, c.Name, c.Verdict, numfmt.Count(c.Errors), numfmt.Count(c.Labeled),
-			numfmt.Rate(c.Estimate), numfmt.RateUp(c.UpperBound), c.Reason)
-	}
-	fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
 	if t := rec.LabelTrail; t != nil {
 		fmt.Fprintf(w, "labels from the trail: %d events by %s, %s to %s, %d changed\n", t.Events, strings.Join(t.Labelers, ", "), t.FirstLabel, t.LastLabel, t.Changed)
 	}
