@@ -141,7 +141,7 @@ func (d *doc) measuresSummary(c *content) {
 		conf = "at the confidence of the step that tested it (" + numfmt.Confidence(1-lo) + " to " + numfmt.Confidence(1-hi) + ")"
 	}
 	d.note("Each upper bound is one-sided, " + conf + ", and rounded up; a claim is accepted when its bound is below its ceiling, " +
-		"and a candidate when all its claims are. Rates are taken for " + positiveClass(rec) + " against every other class; " +
+		"and a candidate when all its claims are. Rates are taken for " + positiveClass(rec) + " against " + otherWords(negativeClass(rec)) + "; " +
 		"estimates weight each stratum by its size. The labeled counts behind each claim are under the results by measure.")
 }
 
@@ -293,15 +293,7 @@ func (d *doc) estimatedConfusion(c *content) {
 		return
 	}
 	pos := positiveClass(rec)
-	neg := "other"
-	if len(rec.Candidates) > 0 {
-		if cl := rec.Candidates[0].Confusion.Classes; len(cl) == 2 && slices.Contains(cl, pos) {
-			neg = cl[0]
-			if neg == pos {
-				neg = cl[1]
-			}
-		}
-	}
+	neg := negativeClass(rec)
 	d.subheading("Estimated confusion in the population", 3*lineH)
 	prev := "Estimated prevalence of " + pos + ": " + numfmt.Rate(rec.EstimatedConfusion[0].Prevalence)
 	if p := rec.MeasurePlan; p != nil && p.Prevalence > 0 {
@@ -377,6 +369,21 @@ func (d *doc) measuresPlanInfo(c *content) {
 	if s := selectionFormula(rec); s != "" {
 		d.note(s)
 	}
+}
+
+// negativeClass is the other class of a binary plan, or "other" (every
+// class but the positive one).
+func negativeClass(rec *record.Record) string {
+	pos := positiveClass(rec)
+	if len(rec.Candidates) > 0 {
+		if cl := rec.Candidates[0].Confusion.Classes; len(cl) == 2 && slices.Contains(cl, pos) {
+			if cl[0] == pos {
+				return cl[1]
+			}
+			return cl[0]
+		}
+	}
+	return "other"
 }
 
 // otherWords names the negative side of the one-vs-rest matrices: the

@@ -215,11 +215,9 @@ func (d *doc) verdictBanner(c *content) {
 	if s := rec.ReleaseStatement(); s != "" {
 		// the decision signed is the release
 		label = "RELEASE DECISION"
-		detail = strings.ToUpper(s[:1]) + s[1:] + ". " + itoa(accepted) + " of " + itoa(len(rec.Candidates)) +
-			" candidates accepted on every measure claimed for them."
+		detail = strings.ToUpper(s[:1]) + s[1:] + ". " + acceptedText(accepted, len(rec.Candidates)) + "."
 	} else if hasMeasures(rec) {
-		detail = itoa(accepted) + " of " + itoa(len(rec.Candidates)) + " candidates accepted on every measure claimed for them; " +
-			rec.Plan.Require.Title() + "."
+		detail = acceptedText(accepted, len(rec.Candidates)) + "; " + rec.Plan.Require.Title() + "."
 	}
 	if len(rec.Caveats) > 0 && word == record.Accept {
 		detail += " Qualified: see below."
@@ -315,4 +313,17 @@ func stampText(s chrono.Stamp) string {
 		return "not stated"
 	}
 	return s.Time.UTC().Format("2006-01-02 15:04:05") + " UTC (" + s.Source.Describe() + ")"
+}
+
+// acceptedText says how many candidates a record of measures accepts:
+// "1 of 3 candidates accepted on every measure claimed for them", or for
+// one candidate whether it is.
+func acceptedText(accepted, n int) string {
+	if n == 1 {
+		if accepted == 1 {
+			return "The candidate is accepted on every measure claimed for it"
+		}
+		return "The candidate is not accepted on every measure claimed for it"
+	}
+	return itoa(accepted) + " of " + itoa(n) + " candidates accepted on every measure claimed for them"
 }

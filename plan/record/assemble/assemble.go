@@ -57,8 +57,8 @@ type Inputs struct {
 	Plan     *plan.File
 	PlanFile string
 	PlanFP   string
-	Folder *drawfolder.Folder
-	Labels *drawfolder.Labels
+	Folder   *drawfolder.Folder
+	Labels   *drawfolder.Labels
 	// Second is the labeled second worksheet (nil without double
 	// labeling), Adjudications the rows of the adjudication file (whose
 	// name and SHA-256 are AdjudicationFile and AdjudicationSHA256; empty
