@@ -32,11 +32,11 @@ func writeMeasuresSummary(d deps, rec *record.Record) {
 		cw, mw = max(cw, len([]rune(m.Candidate))), max(mw, len(m.Measure))
 		lo, hi = min(lo, m.Level), max(hi, m.Level)
 	}
-	conf := "at " + numfmt.Confidence(1-lo)
+	conf := "one-sided at " + numfmt.Confidence(1-lo)
 	if lo != hi {
 		conf = "at each claim's confidence"
 	}
-	fmt.Fprintf(w, "measures for the positive class %q (upper bounds one-sided %s, rounded up):\n", positiveOf(rec), conf)
+	fmt.Fprintf(w, "measures for the positive class %q, upper bounds %s, rounded up:\n", positiveOf(rec), conf)
 	fmt.Fprintf(w, "  %-*s  %-*s  %8s  %9s  %11s  %s\n", cw, "candidate", mw, "measure", "ceiling", "estimate", "upper bound", "verdict")
 	for _, m := range rec.Measures {
 		est := "undefined"

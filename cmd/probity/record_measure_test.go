@@ -160,7 +160,7 @@ func TestRecordOfMeasures(t *testing.T) {
 		t.Errorf("fnr estimate %.3f, bound %.3f; true %.3f", *fnr.Estimate, fnr.UpperBound, truth)
 	}
 	for _, want := range []string{
-		`measures for the positive class "pos" (upper bounds one-sided at 97.5 %, rounded up):`,
+		`measures for the positive class "pos", upper bounds one-sided at 97.5 %, rounded up:`,
 		"released: score>=0.5 (the accepted candidate with the lowest estimated fnr)",
 		"overall: ACCEPT",
 	} {
