@@ -155,7 +155,7 @@ func (d *doc) noMissMeasureBox(c *content) {
 	}
 	d.subheading("Deviation from what a "+c.use+" use needs", 2*lineH)
 	d.font("", bodySize)
-	text := "A " + c.use + " use needs a claim on missed " + positiveClass(c.rec) + " (the false-negative rate or the false omission rate); " +
+	text := "A " + c.use + " use needs a claim on the misses of the positive class " + positiveClass(c.rec) + " (the false-negative rate or the false omission rate); " +
 		"this plan claims neither and states why: \u201c" + r + "\u201d"
 	for _, l := range d.wrap(text, d.contentW()-5) {
 		d.need(lineH)

@@ -173,7 +173,7 @@ func (d *doc) deviationsSection(c *content) {
 		d.bullet(s)
 	}
 	if r := strings.TrimSpace(dev.NoMissMeasure); r != "" {
-		d.bullet("No claim on missed " + positiveClass(c.rec) + " (false-negative or false omission rate), which a " + c.use +
+		d.bullet("No claim on the misses of the positive class " + positiveClass(c.rec) + " (false-negative or false omission rate), which a " + c.use +
 			" use needs; the plan states why: \u201c" + r + "\u201d (shown on page 1).")
 	}
 	for _, n := range dev.Notes {

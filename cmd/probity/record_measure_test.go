@@ -289,7 +289,7 @@ func TestSafetyUseNeedsAMissMeasure(t *testing.T) {
 		t.Fatalf("record --use safety: exit %d, want 2\n%s%s", code, stdout, stderr)
 	}
 	lines := strings.Split(strings.TrimSpace(stderr), "\n")
-	want := "probity: " + fx.planPath + ": a safety use needs a claim on missed pos (fnr or for), and the plan claims only error"
+	want := "probity: " + fx.planPath + ": a safety use needs a claim on the misses of the positive class pos (fnr or for), and the plan claims only error"
 	if len(lines) != 2 || lines[0] != want || !strings.HasPrefix(lines[1], "hint: plan again with --measure fnr:CEILING") {
 		t.Errorf("stderr %q, want %q and a hint", stderr, want)
 	}
@@ -318,9 +318,9 @@ func TestSafetyUseNeedsAMissMeasure(t *testing.T) {
 	}
 }
 
-// TestMeasuresPDFPages renders every page of a record of measures as an
-// image (pdftoppm), for a look at the layout: the pages are kept under
-// PROBITY_PAGES when it names a folder.
+// TestMeasuresPDFPages renders every page of a record of all five
+// measures as an image (pdftoppm, at the resolution the layout was looked
+// at) and finds each measure's table.
 func TestMeasuresPDFPages(t *testing.T) {
 	t.Parallel()
 	pdftoppm := needs.Program(t, "pdftoppm")
@@ -330,12 +330,12 @@ func TestMeasuresPDFPages(t *testing.T) {
 	if code != exitOK && code != exitRejected {
 		t.Fatalf("record: exit %d\n%s%s", code, stdout, stderr)
 	}
-	dir := os.Getenv("PROBITY_PAGES")
-	if dir == "" {
-		dir = t.TempDir()
-	}
+	dir := t.TempDir()
 	if err := exec.Command(pdftoppm, "-png", "-r", "80", filepath.Join(out, record.PDFFile), filepath.Join(dir, "measures")).Run(); err != nil {
 		t.Fatal(err)
+	}
+	if pages := listDir(t, dir); len(pages) < 5 {
+		t.Errorf("pdftoppm rendered %d pages", len(pages))
 	}
 	text := pdfText(t, filepath.Join(out, record.PDFFile))
 	for _, want := range []string{"False-positive rate (false-alarm rate), fpr", "False omission rate, for", "False discovery rate, fdr",

@@ -93,6 +93,6 @@ func missMeasure(p *plan.File, planFile, use string) (string, error) {
 	if r := strings.TrimSpace(p.Measures.NoMissMeasureReason); r != "" {
 		return r, nil
 	}
-	return "", inputerr.At(planFile, 0, "", "a %s use needs a claim on missed %s (fnr or for), and the plan claims only %s",
+	return "", inputerr.At(planFile, 0, "", "a %s use needs a claim on the misses of the positive class %s (fnr or for), and the plan claims only %s",
 		use, p.Measures.Positive, strings.Join(claimed, ", ")).Wrap(ErrNoMissMeasure)
 }
