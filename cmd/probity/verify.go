@@ -64,7 +64,9 @@ and every check it ran passed:
   - with --plan, --draw, --labels: each input's SHA-256 is the one the
     record holds; given all three, the judgement is recomputed and compared
     with record.json field by field (a record judged on double labels also
-    needs --second and, if it had one, --adjudicated);
+    needs --second and, if it had one, --adjudicated); for a plan with
+    measures every claim (counts, estimate, bound, verdict), the estimated
+    confusion matrices and the released candidate are recomputed too;
   - with --trail (a record made from a label trail): the trail's SHA-256
     is the record's, its hash chain holds, it belongs to the draw, and the
     labeled worksheets derived from it again give the same judgement;
@@ -123,9 +125,6 @@ authenticates, so verify exits 1 on a demo record whatever is trusted.
 }
 
 func runVerify(d deps, o *verifyOptions) error {
-	if err := refuseMeasuresRecord(o.planPath); err != nil {
-		return err
-	}
 	in := verification.Input{
 		Dir:          o.dir,
 		Files:        assemble.Files{Plan: o.planPath, Draw: o.drawDir, Labels: o.labels, Second: o.second, Adjudications: o.adjudicated, Trail: o.trail},

@@ -2,6 +2,7 @@ package record
 
 import (
 	"encoding/json"
+	"strings"
 )
 
 // MeasureVerdict is the judgement of one claim of a plan with measures: a
@@ -41,6 +42,17 @@ type EstimatedConfusion struct {
 	Prevalence float64 `json:"prevalence"`
 }
 
+// MeasurePlan is what a plan with measures declared before any label
+// that the record states beside the claims.
+type MeasurePlan struct {
+	// Positive is the positive (critical) class: the rates are
+	// one-vs-rest for it.
+	Positive string `json:"positive"`
+	// Prevalence is the share of true positives the plan anticipated
+	// (EstimatedConfusion holds the estimated one).
+	Prevalence float64 `json:"prevalence"`
+}
+
 // Released names the candidate a plan's release rule picks; it is written
 // as the candidate's name, or null when none qualifies.
 type Released struct {
@@ -71,4 +83,31 @@ func (r *Record) fixReleased() {
 	if r.ReleaseRule != "" && r.Released == nil {
 		r.Released = &Released{}
 	}
+}
+
+// ReleaseRuleText says a release rule in words: "the accepted candidate
+// with the lowest estimated fnr" for best:fnr, "the candidate NAME, when
+// accepted" for a candidate's name, "" for no rule.
+func ReleaseRuleText(rule string) string {
+	if m, ok := strings.CutPrefix(rule, "best:"); ok {
+		return "the accepted candidate with the lowest estimated " + m
+	}
+	if rule == "" {
+		return ""
+	}
+	return "the candidate " + rule + ", when accepted"
+}
+
+// ReleaseStatement says what the record releases, for page 1 and the
+// console: "released: NAME (RULE)", or "no candidate qualifies for
+// release (RULE)"; "" when the plan declared no release rule.
+func (r *Record) ReleaseStatement() string {
+	if r.ReleaseRule == "" {
+		return ""
+	}
+	rule := ReleaseRuleText(r.ReleaseRule)
+	if r.Released == nil || r.Released.Candidate == "" {
+		return "no candidate qualifies for release (" + rule + ")"
+	}
+	return "released: " + r.Released.Candidate + " (" + rule + ")"
 }

@@ -1,11 +1,18 @@
 package assemble
 
 import (
+	"errors"
+	"slices"
+	"strings"
+
 	"probity/plan"
+	"probity/plan/inputerr"
+	"probity/plan/measure"
 	"probity/plan/record"
 	"probity/plan/record/claims"
 	"probity/plan/record/intake"
 	"probity/sampling/drawfolder"
+	"probity/templates"
 )
 
 // judgeMeasures judges a plan's measures (plan/record/claims) and puts
@@ -24,6 +31,7 @@ func judgeMeasures(rec *record.Record, p *plan.File, m *drawfolder.Manifest, che
 		return err
 	}
 	rec.Measures, rec.EstimatedConfusion = res.Measures, res.Confusions
+	rec.MeasurePlan = &record.MeasurePlan{Positive: p.Measures.Positive, Prevalence: p.Measures.Prevalence}
 	anyAccepted, allAccepted := false, true
 	for j := range rec.Candidates {
 		c := &rec.Candidates[j]
@@ -52,4 +60,39 @@ func judgeMeasures(rec *record.Record, p *plan.File, m *drawfolder.Manifest, che
 	}
 	rec.Method.Assumptions = append(rec.Method.Assumptions, res.Notes...)
 	return nil
+}
+
+// ErrNoMissMeasure is the cause of the refusal of a safety, medical or
+// vehicle use for a plan with measures that claims no measure on missed
+// positives and states no reason why.
+var ErrNoMissMeasure = errors.New("no claim on missed positives")
+
+// missMeasure checks that a plan with measures judged for a safety,
+// medical or vehicle use (templates.SafetyRelevant) claims a measure on
+// missed positives — the false-negative rate or the false omission rate
+// (measure.Measure.Critical) — or states why not: that reason is then a
+// deviation of the record, returned. Without either it refuses, naming
+// the plan file (planFile) and the measures it lacks.
+func missMeasure(p *plan.File, planFile, use string) (string, error) {
+	if p.Measures == nil || !templates.SafetyRelevant(use) {
+		return "", nil
+	}
+	var claimed []string
+	for _, c := range p.Measures.Claims {
+		m, err := measure.ParseMeasure(c.Measure)
+		if err != nil {
+			return "", err
+		}
+		if m.Critical() {
+			return "", nil
+		}
+		if !slices.Contains(claimed, c.Measure) {
+			claimed = append(claimed, c.Measure)
+		}
+	}
+	if r := strings.TrimSpace(p.Measures.NoMissMeasureReason); r != "" {
+		return r, nil
+	}
+	return "", inputerr.At(planFile, 0, "", "a %s use needs a claim on the misses of the positive class %s (fnr or for), and the plan claims only %s",
+		use, p.Measures.Positive, strings.Join(claimed, ", ")).Wrap(ErrNoMissMeasure)
 }
