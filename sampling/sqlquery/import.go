@@ -77,8 +77,8 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	if err != nil {
 		return nil, err
 	}
-	if spec.Dialect.TwoStep() || countsSHA != "" {
-		return nil, t.rowError(0, colDetail, "a %s selection is checked against the counts it was made from", spec.Dialect).
+	if spec.TwoStep() || countsSHA != "" {
+		return nil, t.rowError(0, colDetail, "the selection of %s is checked against the counts it was made from", drawKind(spec)).
 			WithHint("import it together with the counts file its selection query was printed from")
 	}
 	res.Spec = spec
@@ -98,7 +98,7 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	if err := checkLot(t, p, res.Spec, res.InScope); err != nil {
 		return nil, err
 	}
-	if err := res.checkStrata(t); err != nil {
+	if err := res.checkStrata(t, p); err != nil {
 		return nil, err
 	}
 	if err := res.checkItems(t); err != nil {

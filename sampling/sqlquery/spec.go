@@ -7,6 +7,7 @@ import (
 	"fmt"
 
 	"probity/plan"
+	"probity/sampling"
 )
 
 // QueryFormat is the version of the query layout and of its result file.
@@ -56,7 +57,10 @@ type Spec struct {
 	Candidates []plan.Candidate `json:"-"`
 	// SampleSize is the plan's n.
 	SampleSize int `json:"sample_size"`
-	// Allocation is the rule: "proportional" or "equal".
+	// Allocation is the rule: "proportional" or "equal", or
+	// sampling.Measures for a plan with measures (the strata and bands
+	// then end with the plan's prediction strata, as
+	// sampling.AddPredictionStrata adds them).
 	Allocation    string `json:"allocation"`
 	MinPerStratum int    `json:"min_per_stratum"`
 	Spare         int    `json:"spare"`
@@ -65,6 +69,14 @@ type Spec struct {
 	Rounding string `json:"rounding,omitempty"`
 	// Double is --double k: the first k sample items get a second label.
 	Double int `json:"double"`
+}
+
+// TwoStep reports whether the draw runs as two queries, the stratum
+// counts and then the selection: always in ClickHouse, and in every
+// dialect for a plan with measures, whose design probity sizes on the
+// counted strata (sampling.AllocateMeasures), which no query can.
+func (s *Spec) TwoStep() bool {
+	return s.Dialect.TwoStep() || s.Allocation == sampling.Measures
 }
 
 // valueColumns is what the result carries besides keys and strata:
