@@ -78,7 +78,11 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 		return nil, err
 	}
 	if spec.TwoStep() || countsSHA != "" {
-		return nil, t.rowError(0, colDetail, "the selection of %s is checked against the counts it was made from", drawKind(spec)).
+		what := "a " + string(spec.Dialect) + " selection"
+		if spec.Allocation == sampling.Measures {
+			what = "the selection of a plan with measures"
+		}
+		return nil, t.rowError(0, colDetail, "%s is checked against the counts it was made from", what).
 			WithHint("import it together with the counts file its selection query was printed from")
 	}
 	res.Spec = spec

@@ -42,16 +42,16 @@ func ResultHeader(values int) []string {
 // function of s.
 func Query(s *Spec) (string, error) {
 	if s.TwoStep() {
-		return "", specError("dialect", "%s draws in two steps, a counts query and a selection query", drawKind(s))
+		return "", specError("dialect", "%s draws in two steps, a counts query and a selection query", twoStepName(s))
 	}
 	return sqlQuery(s, stepOne, nil)
 }
 
-// drawKind names a two-step draw for a message: the dialect, or a draw
-// for a plan with measures.
-func drawKind(s *Spec) string {
+// twoStepName names what draws in two steps, for a message: the dialect,
+// or a plan with measures.
+func twoStepName(s *Spec) string {
 	if s.Allocation == sampling.Measures {
-		return "a draw for a plan with measures"
+		return "a plan with measures"
 	}
 	return string(s.Dialect)
 }
