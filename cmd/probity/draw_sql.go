@@ -62,7 +62,16 @@ The import checks the selection against the counts (the table counted again
 must give the same strata) and the manifest records the counts file's
 SHA-256. Both queries end with FORMAT CSVWithNames, which writes ids exactly.
 Never set skip_unavailable_shards (the queries pin it to 0): a shard that does
-not answer must fail the query, not drop its rows.`
+not answer must fail the query, not drop its rows.
+
+A plan with measures draws in the same two steps in every dialect: its
+strata are the user's crossed with the candidates' predictions (as in a draw
+from a file), and its design is sized again on the counted strata, which
+only probity can do. --sql postgres --table NAME then prints the counts
+query; --sql postgres --counts counts.csv the selection query, which holds
+each stratum's n_h; --counts counts.csv --selected selected.csv --out DIR
+imports it, and the manifest holds the same measures block as a draw from
+a file.`
 
 // hookDrawSQL adds --sql, --table and --selected to the draw command and
 // routes the command to the SQL paths when they are given; otherwise the
@@ -221,7 +230,7 @@ func drawSpec(d deps, o *drawOptions, so *drawSQLOptions, planPath string) (*sql
 		Format: sqlquery.QueryFormat, ToolVersion: d.version, Dialect: sqlquery.Dialect(so.dialect),
 		PlanFingerprint: fp, Seed: p.Seed, Period: o.period, SelectionSeed: p.Seed,
 		Table: so.table, IDColumn: o.id, Strata: strata, Show: o.show,
-		Candidates: p.Candidates, SampleSize: p.Rule.SampleSize,
+		Candidates: p.Candidates, SampleSize: sqlquery.SampleSize(p),
 		Allocation: rule, MinPerStratum: minPer, Spare: o.spare, Double: o.double, Rounding: rounding,
 	}
 	if o.period != "" {

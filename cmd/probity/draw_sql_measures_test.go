@@ -49,7 +49,7 @@ var measuresDrawCases = []struct {
 	flags []string
 }{
 	{"threshold", []string{"--spare", "1"}},
-	{"threshold", []string{"--strata", "region", "--spare", "1", "--show", "text"}},
+	{"threshold", []string{"--strata", "region", "--spare", "1", "--show", "text", "--double", "20"}},
 	{"label-column", []string{"--spare", "2"}},
 	{"label-column", []string{"--strata", "region,channel", "--spare", "1"}},
 }

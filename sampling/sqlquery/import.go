@@ -174,8 +174,8 @@ func checkDrawRow(t *resultTable, p *plan.File, fingerprint string) (*Spec, stri
 	if d.SelectionSeed != want {
 		return nil, "", t.rowError(0, colDetail, "the selection seed %q does not follow from the plan's seed and period %q (expected %q)", d.SelectionSeed, d.Period, want)
 	}
-	if d.SampleSize != p.Rule.SampleSize {
-		return nil, "", t.rowError(0, colDetail, "the result was made for a sample of %d, but the plan's is %d", d.SampleSize, p.Rule.SampleSize)
+	if n := SampleSize(p); d.SampleSize != n {
+		return nil, "", t.rowError(0, colDetail, "the result was made for a sample of %d, but the plan's is %d", d.SampleSize, n)
 	}
 	s := d.Spec
 	s.Candidates = p.Candidates

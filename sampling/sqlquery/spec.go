@@ -55,7 +55,7 @@ type Spec struct {
 	// Candidates are the plan's candidates, in plan order (their columns
 	// are carried into the result for the ledger's predictions).
 	Candidates []plan.Candidate `json:"-"`
-	// SampleSize is the plan's n.
+	// SampleSize is the plan's n (see SampleSize).
 	SampleSize int `json:"sample_size"`
 	// Allocation is the rule: "proportional" or "equal", or
 	// sampling.Measures for a plan with measures (the strata and bands
@@ -69,6 +69,16 @@ type Spec struct {
 	Rounding string `json:"rounding,omitempty"`
 	// Double is --double k: the first k sample items get a second label.
 	Double int `json:"double"`
+}
+
+// SampleSize is the sample a draw of p allocates, as the draw from a file
+// takes it: the plan's n, or for a plan with measures the total of its
+// planned design (the design is sized again on the counted strata).
+func SampleSize(p *plan.File) int {
+	if p.Measures != nil {
+		return p.Measures.Design.Total
+	}
+	return p.Rule.SampleSize
 }
 
 // TwoStep reports whether the draw runs as two queries, the stratum
