@@ -200,3 +200,34 @@ func TestDrawSQLMeasuresClickHouse(t *testing.T) {
 		})
 	}
 }
+
+// TestDrawSQLMeasuresRefused: a draw inside a database of a plan with
+// measures refuses what the draw from a file refuses (an allocation flag,
+// a user's stratum or band on the candidates' predictions), and the
+// one-query dialects take --counts only for such a plan; nothing is
+// printed.
+func TestDrawSQLMeasuresRefused(t *testing.T) {
+	t.Parallel()
+	plans := measuresPlans(t)
+	cases := []struct {
+		plan string
+		args []string
+		want string
+	}{
+		{"threshold", []string{"--sql", "postgres", "--table", "t", "--allocation", "equal"}, "--allocation, --rounding and --min-per-stratum do not apply to a plan with measures"},
+		{"threshold", []string{"--sql", "duckdb", "--table", "t", "--min-per-stratum", "2"}, "--allocation, --rounding and --min-per-stratum do not apply to a plan with measures"},
+		{"threshold", []string{"--sql", "clickhouse", "--table", "t", "--band", "score=0.3"}, "--band score is the candidates' score, which the plan's measures band at the thresholds already"},
+		{"label-column", []string{"--sql", "postgres", "--table", "t", "--strata", "region,model_b"}, "--strata model_b holds a candidate's prediction, which the plan's measures stratify by already"},
+		{"", []string{"--sql", "postgres", "--table", "t", "--counts", "c.csv"}, "--counts cannot be used with --sql postgres"},
+	}
+	for _, tc := range cases {
+		planPath := sqlPlan
+		if tc.plan != "" {
+			planPath = plans[tc.plan]
+		}
+		code, stdout, stderr := runDrawCmd(t, nil, append([]string{"--plan", planPath}, tc.args...)...)
+		if code != exitBadInput || stdout != "" || !strings.Contains(stderr, tc.want) {
+			t.Errorf("%v: exit %d, stdout %d bytes, stderr:\n%s\nwant exit 2 with %q", tc.args, code, len(stdout), stderr, tc.want)
+		}
+	}
+}
