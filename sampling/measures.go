@@ -108,6 +108,16 @@ func measureStrata(in DrawInput, counts []StratumCount) ([][]bool, error) {
 	return out, nil
 }
 
+// AllocateMeasures is the allocation of a plan with measures for strata
+// counted elsewhere (a draw inside a database): strata and bands are the
+// draw's, the plan's prediction strata included (as AddPredictionStrata
+// adds them), counts the strata sorted by label. It is the file draw's own
+// allocation (allocateMeasures), so both give the same design.
+func AllocateMeasures(p *plan.File, strata []string, bands []Band, spare int, counts []StratumCount) ([]StratumAllocation, *drawfolder.MeasuresInfo, error) {
+	in := DrawInput{Plan: p, StrataColumns: strata, Bands: bands, Alloc: AllocOptions{Rule: Measures, Spare: spare}}
+	return allocateMeasures(in, counts)
+}
+
 // allocateMeasures sizes the plan's design on the log's actual strata
 // and allocates it: n_h is the design's, the spares follow.
 func allocateMeasures(in DrawInput, counts []StratumCount) ([]StratumAllocation, *drawfolder.MeasuresInfo, error) {

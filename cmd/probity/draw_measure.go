@@ -1,7 +1,6 @@
 package main
 
 import (
-	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/sampling"
 )
@@ -18,14 +17,4 @@ func addDrawMeasures(o *drawOptions, in *sampling.DrawInput) error {
 		return inputerr.Errorf("--allocation, --rounding and --min-per-stratum do not apply to a plan with measures: its design decides each stratum's labels")
 	}
 	return flagNames(sampling.AddPredictionStrata(in), map[string]string{"strata_columns": "--strata", "bands": "--band"})
-}
-
-// refuseSQLMeasures refuses a draw inside a database for a plan with
-// measures: the queries do not yet stratify by the candidates' predictions
-// with the design's allocation.
-func refuseSQLMeasures(p *plan.File) error {
-	if p.Measures == nil {
-		return nil
-	}
-	return inputerr.Errorf("a plan with measures cannot yet be drawn inside a database").WithHint("export the table and draw from the file: probity draw --plan PLAN --log EXPORT.csv --out DIR")
 }
