@@ -537,11 +537,11 @@ func drawFromLog(d deps, o *drawOptions, in *sampling.DrawInput, m ...*drawfolde
 // writeDrawSummary prints what was drawn.
 func writeDrawSummary(w io.Writer, dir string, f *drawfolder.Content) {
 	m := f.Manifest
-	fmt.Fprintf(w, "drew %s %s", numfmt.Count(m.SampleSize), map[bool]string{true: "item", false: "items"}[m.SampleSize == 1])
+	fmt.Fprintf(w, "drew %s", countOf(m.SampleSize, "item", "items"))
 	if m.Spares > 0 {
-		fmt.Fprintf(w, " and %s %s", numfmt.Count(m.Spares), map[bool]string{true: "spare", false: "spares"}[m.Spares == 1])
+		fmt.Fprintf(w, " and %s", countOf(m.Spares, "spare", "spares"))
 	}
-	fmt.Fprintf(w, " from %s in scope (%s read) in %s into %s\n", numfmt.Count(m.LotSize)+map[bool]string{true: " row", false: " rows"}[m.LotSize == 1], numfmt.Count(m.Log.Rows), countOf(len(m.Strata), "stratum", "strata"), dir)
+	fmt.Fprintf(w, " from %s in scope (%d read) in %s into %s\n", count(m.LotSize, "row", "rows"), m.Log.Rows, countOf(len(m.Strata), "stratum", "strata"), dir)
 	fmt.Fprintf(w, "allocation: %s", m.Allocation.Rule)
 	if m.Allocation.MinPerStratum > 0 {
 		fmt.Fprintf(w, ", at least %d per stratum", m.Allocation.MinPerStratum)
