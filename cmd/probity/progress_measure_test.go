@@ -100,9 +100,34 @@ func TestDrawAndProgressMeasures(t *testing.T) {
 	if strings.Contains(drawOut, "stratified count rule") || strings.Contains(drawOut, "the plan's c =") {
 		t.Errorf("draw prints the base plan's count rule for a plan with measures:\n%s", drawOut)
 	}
+	// --json: the same tests, as one object
+	code, stdout, stderr := runTest(t, []string{"draw", "--plan", planPath, "--log", filepath.Join(dir, "log.csv"), "--out", filepath.Join(dir, "draw2"),
+		"--strata", "section", "-q", "--json"})
+	if code != exitOK {
+		t.Fatalf("draw --json: exit %d: %s", code, stderr)
+	}
+	var dj struct {
+		SampleSize int `json:"sample_size"`
+		Measures   struct {
+			Labels int `json:"labels"`
+			Claims []struct {
+				Measure      string `json:"measure"`
+				Counted      int    `json:"counted"`
+				AcceptEvents int    `json:"accept_events"`
+				AcceptOther  *int   `json:"accept_other"`
+			} `json:"claims"`
+		} `json:"measures"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &dj); err != nil {
+		t.Fatalf("draw --json: %v:\n%s", err, stdout)
+	}
+	if len(dj.Measures.Claims) != 2 || dj.Measures.Labels != dj.SampleSize || dj.Measures.Claims[0].AcceptOther == nil || dj.Measures.Claims[1].AcceptOther != nil ||
+		!strings.Contains(drawOut, fmt.Sprintf("%d wrong", dj.Measures.Claims[1].AcceptEvents)) {
+		t.Errorf("draw --json: %s", stdout)
+	}
 	labels := filepath.Join(dir, "labels.csv")
 	labelTop(t, drawDir, labels, 50, truth)
-	code, stdout, stderr := runTest(t, []string{"progress", "--plan", planPath, "--draw", drawDir, "--labels", labels})
+	code, stdout, stderr = runTest(t, []string{"progress", "--plan", planPath, "--draw", drawDir, "--labels", labels})
 	if code != exitOK {
 		t.Fatalf("progress: exit %d: %s", code, stderr)
 	}
