@@ -16,6 +16,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/planfile"
 	"probity/sampling/demolog"
 	"probity/sampling/drawfolder"
@@ -198,8 +199,8 @@ func runDemo(d deps, o *demoOptions) error {
 		}
 		recDirs = append(recDirs, res.recDir)
 		last = res
-		fmt.Fprintf(w, "  %s   log     %s (%d decisions)\n", m.Month, shown(res.logPath), m.Rows)
-		fmt.Fprintf(w, "            sample  %s/ (%d items labeled; %d unsure replaced by spares)\n", shown(res.drawDir), res.labeled, res.unsure)
+		fmt.Fprintf(w, "  %s   log     %s (%s decisions)\n", m.Month, shown(res.logPath), numfmt.Count(m.Rows))
+		fmt.Fprintf(w, "            sample  %s/ (%s items labeled; %d unsure replaced by spares)\n", shown(res.drawDir), numfmt.Count(res.labeled), res.unsure)
 		if res.doubled > 0 {
 			fmt.Fprintf(w, "            double  %d items labeled twice, %d disagreements adjudicated (%s)\n", res.doubled, res.adjudicated, shown(res.adjudicatedPath))
 		}

@@ -471,8 +471,14 @@ func weightsNote(m *drawfolder.Manifest, d verdict.Design) string {
 	if m.Allocation.MinPerStratum > 0 {
 		why += fmt.Sprintf(" and the minimum of %d per stratum", m.Allocation.MinPerStratum)
 	}
-	return fmt.Sprintf("The strata's inclusion weights N_h/n_h differ by up to %s %% through %s; the estimate weights each stratum by N_h/N, and the verdict uses a rule that holds whatever the weights (see the method).",
-		strings.TrimSuffix(fmt.Sprintf("%.2f", 100*s), ".00"), why)
+	// below twice the smallest the difference reads as a percentage; above
+	// it, as a factor ("up to 2853.85 % apart" read as a misprint)
+	spread := strings.TrimSuffix(fmt.Sprintf("%.2f", 100*s), ".00") + " % above the smallest"
+	if s >= 1 {
+		spread = strings.TrimSuffix(fmt.Sprintf("%.2f", 1+s), ".00") + " times the smallest"
+	}
+	return fmt.Sprintf("The strata's inclusion weights N_h/n_h differ through %s: the largest is %s. The estimate weights each stratum by N_h/N, and the verdict uses a rule that holds whatever the weights (see the method).",
+		why, spread)
 }
 
 // ocTop is the right end of a sequential plan's OC curve: three times the
