@@ -29,6 +29,9 @@ func writeDrawRule(w io.Writer, p *plan.File, m *drawfolder.Manifest) error {
 	if m.Allocation.Note != "" {
 		fmt.Fprintf(w, "allocation note: %s\n", m.Allocation.Note)
 	}
+	if p.Measures != nil && m.Measures != nil {
+		return writeDrawMeasures(w, p, m)
+	}
 	a, err := drawRule(p, m)
 	if err != nil {
 		return err

@@ -26,7 +26,7 @@ var notPathFlags = map[string][]string{
 	"sign":   {"role", "name"},
 	"verify": {"max-line"},
 	"label":  {"bind"},
-	"trend":  {"baseline"},
+	"trend":  {"baseline", "measure", "candidate"},
 }
 
 func TestEveryStringFlagIsKnownAsAPathOrNot(t *testing.T) {

@@ -142,32 +142,25 @@ func Judge(p *plan.File, m *drawfolder.Manifest, items []verdict.Item) (*Result,
 			return nil, fmt.Errorf("judging %s of %s: %w", cd.Measure, p.Candidates[cd.Candidate].Name, err)
 		}
 	}
-	switch p.Inputs.Multiplicity {
-	case plan.Holm:
+	pv := make([]float64, K)
+	for i, v := range vs {
+		pv[i] = v.PValue
+	}
+	if p.Inputs.Multiplicity == plan.Holm {
+		// each claim's bound at the level of its step
 		order := make([]int, K)
 		for i := range order {
 			order[i] = i
 		}
-		sort.SliceStable(order, func(a, b int) bool { return vs[order[a]].PValue < vs[order[b]].PValue })
-		stopped := false
+		sort.SliceStable(order, func(a, b int) bool { return pv[order[a]] < pv[order[b]] })
 		for step, i := range order {
-			lv := delta / float64(K-step)
-			v, err := designs[i].Judge(pop, s, lv)
-			if err != nil {
+			if vs[i], err = designs[i].Judge(pop, s, delta/float64(K-step)); err != nil {
 				return nil, err
 			}
-			if stopped || !v.Accepted {
-				stopped = true
-				v.Accepted = false
-			}
-			vs[i] = v
 		}
-	case plan.FixedSequence:
-		for i := range vs {
-			if i > 0 && !vs[i-1].Accepted {
-				vs[i].Accepted = false
-			}
-		}
+	}
+	for i, ok := range Family(p.Inputs.Multiplicity, delta, pv) {
+		vs[i].Accepted = ok
 	}
 	res := &Result{Accepted: make([]bool, len(p.Candidates)), ReleaseRule: p.Measures.Release}
 	for j := range res.Accepted {
