@@ -108,8 +108,9 @@ func measureStrata(in DrawInput, counts []StratumCount) ([][]bool, error) {
 	return out, nil
 }
 
-// allocateMeasures sizes the plan's design on the log's actual strata
-// and allocates it: n_h is the design's, the spares follow.
+// allocateMeasures carries the plan's design to the log's actual strata
+// (measure.NewPeriodDesign) and allocates it: n_h is the design's, the
+// spares follow.
 func allocateMeasures(in DrawInput, counts []StratumCount) ([]StratumAllocation, *drawfolder.MeasuresInfo, error) {
 	flagged, err := measureStrata(in, counts)
 	if err != nil {
@@ -134,6 +135,9 @@ func allocateMeasures(in DrawInput, counts []StratumCount) ([]StratumAllocation,
 		out[i] = a
 	}
 	info := &drawfolder.MeasuresInfo{Positive: in.Plan.Measures.Positive, Flagged: flagged, Uniform: pd.Uniform, Level: roundRisk(pd.Level)}
+	if d := pd.Departure; d != nil {
+		info.Departure = &drawfolder.MeasuresDeparture{Cell: d.Cell, LogShare: roundRisk(d.Log), PlanShare: roundRisk(d.Plan)}
+	}
 	for i, cd := range pd.Claims {
 		info.Claims = append(info.Claims, drawfolder.MeasureClaimInfo{Candidate: in.Plan.Candidates[cd.Candidate].Name,
 			Measure: cd.Measure.String(), Ceiling: cd.Ceiling, Counted: cd.Counted, Floor: cd.Floor, BAccept: cd.BAccept,

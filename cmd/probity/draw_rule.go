@@ -29,6 +29,11 @@ func writeDrawRule(w io.Writer, p *plan.File, m *drawfolder.Manifest) error {
 	if m.Allocation.Note != "" {
 		fmt.Fprintf(w, "allocation note: %s\n", m.Allocation.Note)
 	}
+	if m.Measures != nil && m.Measures.Departure != nil {
+		d := m.Measures.Departure
+		fmt.Fprintf(w, "note: this log's %s holds %s of decisions where the plan assumed %s: the plan's design was sized for other shares (plan again with anticipated values that fit this log)\n",
+			d.Cell, numfmt.Chance(d.LogShare), numfmt.Chance(d.PlanShare))
+	}
 	a, err := drawRule(p, m)
 	if err != nil {
 		return err

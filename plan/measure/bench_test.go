@@ -132,9 +132,33 @@ func BenchmarkPeriodDesignDemo(b *testing.B) {
 	}
 	f.Measures = m
 	strata, flagged := demoNovember()
+	var pd *PeriodDesign
 	for b.Loop() {
-		if _, err := NewPeriodDesign(f, strata, flagged); err != nil {
+		if pd, err = NewPeriodDesign(f, strata, flagged); err != nil {
 			b.Fatal(err)
 		}
 	}
+	b.ReportMetric(float64(m.Design.Total), "plan-labels")
+	b.ReportMetric(float64(sum(pd.Sample)), "draw-labels")
+}
+
+// BenchmarkPeriodDesignDemoRealistic is BenchmarkPeriodDesignDemo with
+// anticipated values near the November log's true ones (one per
+// threshold).
+func BenchmarkPeriodDesignDemoRealistic(b *testing.B) {
+	spec, f := demoSpec("fnr:0.035,0.11,0.25", "error:0.032,0.007,0.008")
+	m, err := BuildPlan(spec)
+	if err != nil {
+		b.Fatal(err)
+	}
+	f.Measures = m
+	strata, flagged := demoNovember()
+	var pd *PeriodDesign
+	for b.Loop() {
+		if pd, err = NewPeriodDesign(f, strata, flagged); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(m.Design.Total), "plan-labels")
+	b.ReportMetric(float64(sum(pd.Sample)), "draw-labels")
 }
