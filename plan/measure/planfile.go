@@ -678,7 +678,7 @@ func recheck(f *plan.File) string {
 			name   string
 			// the design's planned claims meet β; the uniform comparison's
 			// risks are recomputed and shown as they are
-			bound  bool
+			bound bool
 		}{{mc.Design, sample, mc.ProducerRisk, ".design", !mc.Unplanned}, {mc.Uniform, uni, mc.UniformProducerRisk, ".uniform", false}} {
 			cd := ClaimDesign{Claim: c, Counted: x.stored.Counted, Floor: x.stored.Floor, BAccept: x.stored.BAccept}
 			if len(cd.Counted) != len(sample) {
