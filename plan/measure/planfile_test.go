@@ -187,8 +187,8 @@ func TestBandCompositionRefusals(t *testing.T) {
 		anticipated []string
 		want        string
 	}{
-		{[]string{"fnr:0.10,0.05,0.25", "error:0.03,0.01,0.01"}, "miss fewer positives"},     // fnr falls as the threshold rises
-		{[]string{"fnr:0.04,0.10,0.25", "fpr:0.03,0.04,0.001"}, "raise more false alarms"},   // fpr rises with the threshold
+		{[]string{"fnr:0.10,0.05,0.25", "error:0.03,0.01,0.01"}, "miss fewer positives"},    // fnr falls as the threshold rises
+		{[]string{"fnr:0.04,0.10,0.25", "fpr:0.03,0.04,0.001"}, "raise more false alarms"},  // fpr rises with the threshold
 		{[]string{"fnr:0.04,0.10,0.25", "error:0.01,0.02,0.03"}, "raise more false alarms"}, // error rising faster than the misses
 	} {
 		spec := Spec{Candidates: threeThresholds(), Positive: "d", Prevalence: 0.03, Decisions: 100000, Anticipated: c.anticipated,
