@@ -20,7 +20,7 @@ type Measures struct {
 	// Prevalence is the anticipated share of true positives in the log.
 	Prevalence float64 `yaml:"prevalence" json:"prevalence"`
 	// Decisions is the number of decisions a period is assumed to hold
-	// when the plan is made; draw sizes the design again on the log's
+	// when the plan is made; draw carries the design to the log's
 	// actual strata.
 	Decisions int64 `yaml:"decisions" json:"decisions"`
 	// Claims is the family, in declared order: every measure for every

@@ -107,3 +107,9 @@ func measuresPlan(b *testing.B, anticipated ...string) []byte {
 // BenchmarkParseMeasures loads the measures plan with one anticipated fnr
 // and error for every threshold.
 func BenchmarkParseMeasures(b *testing.B) { benchParse(b, measuresPlan(b, "fnr:0.10", "error:0.01")) }
+
+// BenchmarkParseMeasuresRealistic loads the measures plan with one
+// anticipated fnr and error per threshold, near the demo's November log.
+func BenchmarkParseMeasuresRealistic(b *testing.B) {
+	benchParse(b, measuresPlan(b, "fnr:0.035,0.11,0.25", "error:0.032,0.007,0.008"))
+}
