@@ -605,8 +605,7 @@ func stripClaims(cs []plan.MeasureClaim) []plan.MeasureClaim {
 // labels, and each cell's labels are the most any claim counts there (at
 // least one); each claim's exact producer's risk, on the design and on the
 // uniform sample, recomputed (ClaimDesign.AcceptProbability) equals the
-// stored one and, for a planned claim on the design, is at most β (the
-// uniform comparison's risks are shown as they are); the uniform sample
+// stored one and, for a planned claim, is at most β; the uniform sample
 // is a proportional allocation; the design is no larger than it; and the
 // totals and the saving add up. A plan edited by hand fails one of these
 // and is refused, naming the first field that differs. The search's
@@ -676,10 +675,10 @@ func recheck(f *plan.File) string {
 			labels []int
 			risk   float64
 			name   string
-			// the design's planned claims meet β; the uniform comparison's
-			// risks are recomputed and shown as they are
+			// the planned claims meet β, on the design and on the uniform
+			// comparison
 			bound bool
-		}{{mc.Design, sample, mc.ProducerRisk, ".design", !mc.Unplanned}, {mc.Uniform, uni, mc.UniformProducerRisk, ".uniform", false}} {
+		}{{mc.Design, sample, mc.ProducerRisk, ".design", !mc.Unplanned}, {mc.Uniform, uni, mc.UniformProducerRisk, ".uniform", !mc.Unplanned}} {
 			cd := ClaimDesign{Claim: c, Counted: x.stored.Counted, Floor: x.stored.Floor, BAccept: x.stored.BAccept}
 			if len(cd.Counted) != len(sample) {
 				return field + x.name
