@@ -108,9 +108,8 @@ func measureStrata(in DrawInput, counts []StratumCount) ([][]bool, error) {
 	return out, nil
 }
 
-// allocateMeasures carries the plan's design to the log's actual strata
-// (measure.NewPeriodDesign) and allocates it: n_h is the design's, the
-// spares follow.
+// allocateMeasures sizes the plan's design on the log's actual strata
+// and allocates it: n_h is the design's, the spares follow.
 func allocateMeasures(in DrawInput, counts []StratumCount) ([]StratumAllocation, *drawfolder.MeasuresInfo, error) {
 	flagged, err := measureStrata(in, counts)
 	if err != nil {
