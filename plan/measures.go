@@ -20,7 +20,7 @@ type Measures struct {
 	// Prevalence is the anticipated share of true positives in the log.
 	Prevalence float64 `yaml:"prevalence" json:"prevalence"`
 	// Decisions is the number of decisions a period is assumed to hold
-	// when the plan is made; draw sizes the design again on the log's
+	// when the plan is made; draw carries the design to the log's
 	// actual strata.
 	Decisions int64 `yaml:"decisions" json:"decisions"`
 	// Claims is the family, in declared order: every measure for every
@@ -37,6 +37,10 @@ type Measures struct {
 	// critical error type (fnr, for); a safety use needs either such a
 	// measure or this reason.
 	NoMissMeasureReason string `yaml:"no_miss_measure_reason,omitempty" json:"no_miss_measure_reason,omitempty"`
+	// Assumes states how the cells' anticipated composition follows from
+	// the anticipated values (nested thresholds; label-column candidates
+	// independent given the truth).
+	Assumes string `yaml:"assumes,omitempty" json:"assumes,omitempty"`
 	// Cells are the strata the plan sizes on: the decisions every candidate
 	// predicts alike, with their anticipated shares and positives.
 	Cells []MeasureCell `yaml:"cells" json:"cells"`
@@ -54,6 +58,27 @@ type MeasureClaim struct {
 	// ProducerRisk is the exact chance the claim is rejected at the
 	// anticipated composition, under the design.
 	ProducerRisk float64 `yaml:"producer_risk" json:"producer_risk"`
+	// Unplanned is true when the anticipated value is at or above the
+	// ceiling: the claim is judged on what the design labels for the
+	// others and is expected to be rejected.
+	Unplanned bool `yaml:"unplanned,omitempty" json:"unplanned,omitempty"`
+	// Design is how the claim is judged on the plan's cells, and Uniform
+	// how it is judged on the uniform sample, with UniformProducerRisk
+	// its exact chance of rejection there: what plan/measure rechecks a
+	// loaded plan by, and what draw carries to a log's strata.
+	Design              MeasureClaimDesign `yaml:"design" json:"design"`
+	Uniform             MeasureClaimDesign `yaml:"uniform" json:"uniform"`
+	UniformProducerRisk float64            `yaml:"uniform_producer_risk" json:"uniform_producer_risk"`
+}
+
+// MeasureClaimDesign is how a claim is judged on a labeled sample of the
+// plan's cells: the labeled items of each cell it counts (in cell order)
+// and, for a ratio (fnr, fpr), its floor b₀ and the acceptance number c_B
+// of its denominator's side (0 for a proportion).
+type MeasureClaimDesign struct {
+	Counted []int `yaml:"counted,flow" json:"counted"`
+	Floor   int64 `yaml:"floor,omitempty" json:"floor,omitempty"`
+	BAccept int   `yaml:"b_accept,omitempty" json:"b_accept,omitempty"`
 }
 
 // MeasureCell is one stratum of the plan's design: the decisions every

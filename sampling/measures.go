@@ -144,6 +144,9 @@ func allocateMeasures(in DrawInput, counts []StratumCount) ([]StratumAllocation,
 		out[i] = a
 	}
 	info := &drawfolder.MeasuresInfo{Positive: in.Plan.Measures.Positive, Flagged: flagged, Uniform: pd.Uniform, Level: roundRisk(pd.Level)}
+	if d := pd.Departure; d != nil {
+		info.Departure = &drawfolder.MeasuresDeparture{Cell: d.Cell, LogShare: roundRisk(d.Log), PlanShare: roundRisk(d.Plan)}
+	}
 	for i, cd := range pd.Claims {
 		info.Claims = append(info.Claims, drawfolder.MeasureClaimInfo{Candidate: in.Plan.Candidates[cd.Candidate].Name,
 			Measure: cd.Measure.String(), Ceiling: cd.Ceiling, Counted: cd.Counted, Floor: cd.Floor, BAccept: cd.BAccept,

@@ -120,7 +120,7 @@ tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.ceiling, "ceiling", "", "the error rate `P` that must not be exceeded, in (0, 1)")
 	fl.StringVar(&o.confidence, "confidence", "", "the confidence `C` = 1 − δ, in (0, 1), e.g. 0.95")
 	fl.StringVar(&o.candidates, "candidates", "1", "`M`, the number of models or thresholds judged on the same sample")
-	fl.StringArrayVar(&o.anticipated, "anticipated", nil, "`P0`, the error a good model is expected to have (below the ceiling); with --measure also NAME:VALUE (repeatable)")
+	fl.StringArrayVar(&o.anticipated, "anticipated", nil, "`P0`, the error a good model is expected to have (below the ceiling); with --measure also NAME:VALUE for every candidate, or NAME:V1,V2,… one per candidate in declared order (repeatable; with --prevalence two measures fix each candidate's confusion matrix, e.g. fnr and error)")
 	fl.StringVar(&o.producerRisk, "producer-risk", "0.10", "`RISK`: the largest allowed chance of rejecting a model whose error is p0")
 	fl.StringVar(&o.population, "population", "", "`N`, when the audit covers one batch of N decisions (hypergeometric)")
 	fl.StringVar(&o.method, "method", plan.MethodExact.String(), "the decision `RULE`: exact, hoeffding or kl")

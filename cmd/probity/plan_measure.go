@@ -206,9 +206,17 @@ func writeMeasuresReport(w io.Writer, f *plan.File, out, fingerprint string) err
 		wn = max(wn, len([]rune(c.Candidate)))
 	}
 	fmt.Fprintf(w, "  %-*s  %-7s  %8s  %11s  %14s\n", wn, "candidate", "measure", "ceiling", "anticipated", "producer risk")
+	unplanned := 0
 	for _, c := range m.Claims {
-		fmt.Fprintf(w, "  %-*s  %-7s  %8s  %11s  %14s\n", wn, c.Candidate, c.Measure, strconv.FormatFloat(c.Ceiling, 'g', -1, 64),
-			strconv.FormatFloat(c.Anticipated, 'g', 4, 64), numfmt.Chance(c.ProducerRisk))
+		note := ""
+		if c.Unplanned {
+			note, unplanned = "  expected to fail: not planned", unplanned+1
+		}
+		fmt.Fprintf(w, "  %-*s  %-7s  %8s  %11s  %14s%s\n", wn, c.Candidate, c.Measure, strconv.FormatFloat(c.Ceiling, 'g', -1, 64),
+			strconv.FormatFloat(c.Anticipated, 'g', 4, 64), numfmt.Chance(c.ProducerRisk), note)
+	}
+	if unplanned > 0 {
+		fmt.Fprintf(w, "  (a claim anticipated at or above its ceiling is judged on the labels the others need, keeping its risk; it is expected to be rejected)\n")
 	}
 	fmt.Fprintf(w, "\nDesign across the strata every candidate predicts alike (anticipated):\n")
 	wl := len("stratum")
@@ -220,7 +228,15 @@ func writeMeasuresReport(w io.Writer, f *plan.File, out, fingerprint string) err
 		fmt.Fprintf(w, "  %-*s  %10d  %10d  %7d  %8d\n", wl, c.Label, c.Decisions, c.Positives, c.Sample, c.Uniform)
 	}
 	fmt.Fprintf(w, "  %-*s  %10s  %10s  %7d  %8d\n", wl, "total", "", "", m.Design.Total, m.Design.Uniform)
-	fmt.Fprintf(w, "draw sizes the design again on the log's actual strata (the strata above, crossed with --strata).\n")
+	fmt.Fprintf(w, "anticipated: %s, prevalence %s; assumes %s\n", strings.Join(m.Anticipated, " "), strconv.FormatFloat(m.Prevalence, 'g', -1, 64), m.Assumes)
+	for _, c := range m.Cells {
+		if float64(c.Decisions) < 0.0001*float64(m.Decisions) && len(f.Candidates) > 1 && f.Candidates[0].ScoreColumn != "" {
+			fmt.Fprintf(w, "note: the anticipated values leave %s (almost) empty, as equal values for every threshold do; a log whose bands are not empty will need other labels than these\n", c.Label)
+			fmt.Fprintf(w, "hint: give one value per threshold, in declared order, e.g. --anticipated fnr:V1,V2,… --anticipated error:V1,V2,…\n")
+			break
+		}
+	}
+	fmt.Fprintf(w, "draw carries this design to the log's actual strata (crossed with --strata), adding labels only where a claim's power there needs them.\n")
 	switch r := m.Release; {
 	case r == "":
 		fmt.Fprintf(w, "release: none declared (the record names no candidate for release)\n")

@@ -1,8 +1,8 @@
 package measure
 
 import (
-	"errors"
-	"slices"
+	"fmt"
+	"math"
 	"sort"
 
 	"probity/plan"
@@ -11,8 +11,8 @@ import (
 // PeriodDesign is a plan's design on a period's actual strata: the labels
 // per stratum and how every claim is judged on them. draw allocates by
 // Sample; record, verify and progress judge by Claims. It is a function
-// of the plan and the strata alone (PeriodProblem, Search), so every
-// command rebuilds the same design from the manifest.
+// of the plan and the strata alone (NewPeriodDesign), so every command
+// rebuilds the same design from the manifest.
 type PeriodDesign struct {
 	Problem Problem
 	// Sample[h] is n_h.
@@ -25,8 +25,9 @@ type PeriodDesign struct {
 	// each still counts every item the design labels on its sides, with
 	// its consumer's risk kept by construction.
 	Unplanned []int
-	// Uniform is the labels a proportional sample would need for the
-	// planned claims (searched on the cells, split as the design is);
+	// Uniform is the labels of the plan's uniform comparison (the
+	// smallest proportional sample meeting the same claims on the plan's
+	// cells) allocated in proportion to the period's strata;
 	// UniformSample its allocation.
 	Uniform       int
 	UniformSample []int
@@ -35,6 +36,10 @@ type PeriodDesign struct {
 	// ProducerRisk[i] is claim i's exact chance of rejection at the
 	// anticipated composition, with the counted items of Claims[i].
 	ProducerRisk []float64
+	// Departure, when set, is the cell of the log whose share of the
+	// decisions departs most from what the plan assumed: the plan's
+	// design was sized for other shares.
+	Departure *Departure
 }
 
 // Value is a claim's value at a composition of binary labels (Wrong nil).
@@ -77,71 +82,69 @@ func (c countsMatrix) value(m Measure) float64 {
 	return 0
 }
 
-// NewPeriodDesign sizes the plan's design on a period's strata (see
-// PeriodProblem): the design is searched on the prediction cells — the
-// strata merged where every candidate predicts alike (Coarsen) — and each
-// cell's labels are split over its strata in proportion to their sizes,
-// rounding up (ProportionalCounts); each claim counts on each side the
-// sub-sample it counted on the cells, spread the same way.
+// NewPeriodDesign carries the plan's design to a period's strata (see
+// PeriodProblem): the draw keeps the plan. Each planned claim counts, on
+// each of its sides, as many items as the plan's design counts on the
+// side's cells (measures.claims[].design), now spread in proportion over
+// the side's strata of the period (ProportionalCounts), with the plan's
+// floor at the same share of the side's anticipated denominator part and
+// the plan's c_B; a stratum's labels are the most any claim counts there.
+// No design is searched again.
 //
 // Why that keeps every claim's risk: a claim's test keeps its consumer's
 // risk for any counted items fixed before labeling (the count rule of
 // plan/stratified and the ratio's product bound hold for every
 // allocation), so only its power changes. That is computed again,
 // exactly, on the period's strata (ClaimDesign.AcceptProbability at the
-// anticipated composition); a claim that misses the producer's risk
-// counts more of its numerator's side — first the labels the others
-// already drew, then the fewest more — until it meets it.
+// anticipated composition); a claim that misses the producer's risk —
+// the user's strata move a side from the hypergeometric test to the count
+// rule, or the log's strata are not the sizes the plan assumed — counts
+// more of its sides (meetOnStrata): first the labels the others already
+// drew, then the fewest more.
 //
-// Claims the period's anticipated composition puts at or above their
-// ceiling, or that no design meets alone, are left out of the search and
-// judged on what the design labels (Unplanned).
+// Claims the plan did not plan (anticipated at or above their ceiling),
+// or that the period's anticipated composition puts at or above their
+// ceiling, are judged on what the design labels (Unplanned). The uniform
+// comparison is the plan's: its sample size allocated in proportion to
+// the period's strata. Departure says where the log's cells differ from
+// the shares the plan assumed.
 func NewPeriodDesign(f *plan.File, strata []Stratum, flagged [][]bool) (*PeriodDesign, error) {
 	pr, err := PeriodProblem(f, strata, flagged)
 	if err != nil {
 		return nil, err
 	}
-	cellPop, cellComp, cellOf, err := Coarsen(pr.Population, pr.Anticipated)
+	planPr, cl, _, _, err := SpecOf(f).problem()
 	if err != nil {
 		return nil, err
 	}
-	cells := pr
-	cells.Population, cells.Anticipated = cellPop, cellComp
-	cells.cache = map[cacheKey]*claimPlan{}
-	cd, err := designOnCells(cells)
-	if err != nil {
-		return nil, err
+	if len(f.Measures.Claims) != len(pr.Claims) {
+		return nil, fmt.Errorf("%w: the plan lists %d claims with designs, its family has %d", plan.ErrMeasures, len(f.Measures.Claims), len(pr.Claims))
 	}
-	pd := &PeriodDesign{Problem: pr, Unplanned: cd.unplanned, Level: cells.Level()}
-	members := make([][]int, len(cellPop.Strata))
-	for h, c := range cellOf {
-		members[c] = append(members[c], h)
+	cellOf := make([]int, len(strata))
+	for h := range strata {
+		cellOf[h] = cl.Cell(flagged[h])
 	}
-	pd.Sample = splitCells(pr.Population, members, cd.sample, pr.MinPerStratum)
-	pd.UniformSample = splitCells(pr.Population, members, cd.uniform, pr.MinPerStratum)
-	if cd.uniform != nil {
-		pd.Uniform = sum(pd.UniformSample)
+	pd := &PeriodDesign{Problem: pr, Level: pr.Level(), Departure: departure(f.Measures.Cells, strata, cellOf)}
+	pd.Sample = make([]int, len(strata))
+	for h, s := range strata {
+		pd.Sample[h] = int(min(int64(pr.MinPerStratum), s.Population))
 	}
 	pd.Claims = make([]ClaimDesign, len(pr.Claims))
 	pd.ProducerRisk = make([]float64, len(pr.Claims))
 	target := 1 - pr.ProducerRisk
 	for i, c := range pr.Claims {
-		if slices.Contains(pd.Unplanned, i) {
+		mc := f.Measures.Claims[i]
+		d, ma, mb, ok := carryClaim(planPr, pr, c, mc.Design)
+		if mc.Unplanned || !ok || c.Value(pr.Population, pr.Anticipated) >= c.Ceiling {
+			pd.Unplanned = append(pd.Unplanned, i)
 			continue
 		}
-		d := cd.claims[i]
-		ac, bc := c.sides(cellPop)
-		ma := maxProportional(cellPop, ac.strata, d.Counted)
-		mb := 0
-		if c.Measure.Ratio() {
-			mb = maxProportional(cellPop, bc.strata, d.Counted)
-		}
-		cdf, power, err := pr.meetOnStrata(d, ma, mb, pd.Sample, pd.Level, target)
+		cd, power, err := pr.meetOnStrata(d, ma, mb, pd.Sample, pd.Level, target)
 		if err != nil {
 			return nil, err
 		}
-		raise(pd.Sample, cdf.Counted)
-		pd.Claims[i], pd.ProducerRisk[i] = cdf, 1-power
+		raise(pd.Sample, cd.Counted)
+		pd.Claims[i], pd.ProducerRisk[i] = cd, 1-power
 	}
 	for _, i := range pd.Unplanned {
 		pd.Claims[i] = fallbackDesign(pr, pr.Claims[i], pd.Sample)
@@ -151,88 +154,112 @@ func NewPeriodDesign(f *plan.File, strata []Stratum, flagged [][]bool) (*PeriodD
 		}
 		pd.ProducerRisk[i] = 1 - power
 	}
+	all := make([]int, len(strata))
+	for h := range all {
+		all[h] = h
+	}
+	pd.UniformSample = ProportionalCounts(pr.Population, all, int(min(int64(f.Measures.Design.Uniform), pr.total())))
+	for h, s := range strata {
+		pd.UniformSample[h] = max(pd.UniformSample[h], int(min(int64(pr.MinPerStratum), s.Population)))
+	}
+	pd.Uniform = sum(pd.UniformSample)
 	return pd, nil
 }
 
-// cellDesign is a design searched on the prediction cells.
-type cellDesign struct {
-	sample    []int
-	claims    []ClaimDesign // nil entries for the unplanned
-	unplanned []int
-	uniform   []int // nil when no claim is planned
+// total is the decisions of every stratum.
+func (p Population) total() int64 {
+	var n int64
+	for _, s := range p.Strata {
+		n += s.Population
+	}
+	return n
 }
 
-// designOnCells searches the cells' design for the claims the anticipated
-// composition puts below their ceiling; when no design meets them all,
-// the claims no design meets alone are judged on what the others' design
-// labels. The level stays the family's: the unplanned claims share δ.
-// Each claim's curves are built once (the problem's cache), however many
-// searches ask for them.
-func designOnCells(cells Problem) (cellDesign, error) {
-	all := cells.Claims
-	cd := cellDesign{claims: make([]ClaimDesign, len(all)), sample: make([]int, len(cells.Strata))}
-	for h, s := range cells.Strata {
-		cd.sample[h] = int(min(int64(cells.MinPerStratum), s.Population))
-	}
-	var planned []int
-	for i, c := range all {
-		if c.Value(cells.Population, cells.Anticipated) >= c.Ceiling {
-			cd.unplanned = append(cd.unplanned, i)
-		} else {
-			planned = append(planned, i)
-		}
-	}
-	search := func(idx []int) (*Plan, error) {
-		sub := cells
-		sub.family = len(all)
-		sub.Claims = nil
-		for _, i := range idx {
-			sub.Claims = append(sub.Claims, all[i])
-		}
-		return Search(sub)
-	}
-	if len(planned) == 0 {
-		return cd, nil
-	}
-	res, err := search(planned)
-	if errors.Is(err, ErrInfeasible) {
-		var keep []int
-		for _, i := range planned {
-			if _, err := search([]int{i}); errors.Is(err, ErrInfeasible) {
-				cd.unplanned = append(cd.unplanned, i)
-			} else {
-				keep = append(keep, i)
+// carryClaim is the plan's design of a claim on its cells (planPr)
+// carried to the period's strata (pr): the items counted on each side's
+// cells (ma, and mb for a ratio), and for a ratio the floor at the plan's
+// share of the side's anticipated denominator part — lowered, when the
+// period's anticipated numerator is already at the ceiling there, to the
+// nearest of the search's margins at which it is not — and the plan's
+// c_B. ok is false when the period's anticipated composition leaves the
+// ratio no denominator part.
+func carryClaim(planPr, pr Problem, c Claim, stored plan.MeasureClaimDesign) (d ClaimDesign, ma, mb int, ok bool) {
+	d = ClaimDesign{Claim: c, BAccept: stored.BAccept}
+	a, b := c.sides(pr.Population)
+	pa, pb := c.sides(planPr.Population)
+	counted := func(sd side) int {
+		m := 0
+		for _, h := range sd.strata {
+			if h < len(stored.Counted) {
+				m += stored.Counted[h]
 			}
 		}
-		sort.Ints(cd.unplanned)
-		if planned = keep; len(planned) == 0 {
-			return cd, nil
+		return m
+	}
+	ma = int(min(int64(counted(pa)), a.population(pr.Population)))
+	if !c.Measure.Ratio() {
+		return d, ma, 0, len(a.strata) > 0
+	}
+	mb = int(min(int64(counted(pb)), b.population(pr.Population)))
+	part := func(p Problem, sd side) int64 {
+		n := sd.population(p.Population)
+		for _, e := range sd.counts(p.Population, p.Anticipated) {
+			n -= e
 		}
-		res, err = search(planned)
+		return n
 	}
-	if err != nil {
-		return cellDesign{}, err
+	planB, B := part(planPr, pb), part(pr, b)
+	var A int64
+	for _, e := range a.counts(pr.Population, pr.Anticipated) {
+		A += e
 	}
-	cd.sample, cd.uniform = res.Design.Sample, res.Uniform.Sample
-	for k, i := range planned {
-		cd.claims[i] = res.Design.Claims[k].ClaimDesign
+	if len(a.strata) == 0 || len(b.strata) == 0 || planB < 1 || B < 1 {
+		return d, 0, 0, false
 	}
-	return cd, nil
+	share := float64(stored.Floor) / float64(planB)
+	d.Floor = max(1, int64(math.Floor(share*float64(B))))
+	for k := len(floorMargins) - 1; k >= 0 && A >= ratioBadCount(d.Floor, c.Ceiling); k-- {
+		if q := floorMargins[k]; 1-q > share {
+			d.Floor = max(1, int64(math.Floor((1-q)*float64(B))))
+		}
+	}
+	return d, ma, mb, A < ratioBadCount(d.Floor, c.Ceiling)
 }
 
-// splitCells spreads each cell's labels over its strata in proportion to
-// their sizes, rounding up (⌈n_c·N_h/N_c⌉, never above N_h), with at
-// least min(minimum, N_h) in each; nil for nil.
-func splitCells(p Population, members [][]int, cellSample []int, minimum int) []int {
-	if cellSample == nil {
-		return nil
+// Departure is the cell of a period whose share of the decisions departs
+// most from the share the plan assumed for it, when some cell's does by
+// more than a quarter and by at least 0.1 percentage points.
+type Departure struct {
+	// Cell is the cell's label in the plan (a score band, a pattern of
+	// predictions).
+	Cell string
+	// Log and Plan are the cell's share of the decisions in the period
+	// and as the plan assumed it.
+	Log, Plan float64
+}
+
+// departure compares the period's cells with the plan's (nil when they
+// agree within the tolerance).
+func departure(cells []plan.MeasureCell, strata []Stratum, cellOf []int) *Departure {
+	logN := make([]float64, len(cells))
+	var total, planTotal float64
+	for h, s := range strata {
+		if c := cellOf[h]; c >= 0 && c < len(cells) {
+			logN[c] += float64(s.Population)
+		}
+		total += float64(s.Population)
 	}
-	out := make([]int, len(p.Strata))
-	for c, hs := range members {
-		proportional(p, hs, cellSample[c], out)
+	for _, c := range cells {
+		planTotal += float64(c.Decisions)
 	}
-	for h, s := range p.Strata {
-		out[h] = max(out[h], int(min(int64(minimum), s.Population)))
+	var out *Departure
+	worst := 0.0
+	for i, c := range cells {
+		l, p := logN[i]/total, float64(c.Decisions)/planTotal
+		diff := math.Abs(l - p)
+		if diff >= 0.001 && (l > 1.25*p || l < p/1.25) && diff > worst {
+			out, worst = &Departure{Cell: c.Label, Log: l, Plan: p}, diff
+		}
 	}
 	return out
 }

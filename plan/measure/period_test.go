@@ -1,7 +1,9 @@
 package measure
 
 import (
+	"fmt"
 	"math"
+	"slices"
 	"testing"
 
 	"probity/plan"
@@ -103,5 +105,63 @@ func TestRatioPowerIsAcceptProbability(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// TestPeriodDesignKeepsThePlan: on a log whose bands hold what the plan
+// anticipated, split over four user strata (45, 30, 20 and 5 % of each
+// band), the draw's labels are within 1.25 times the plan's — the user
+// strata move each side from the hypergeometric test to the count rule,
+// which costs a little power — every planned claim meets the producer's
+// risk, the expected failures stay unplanned, and the log is not reported
+// as departing from the plan. A plan whose equal values for every
+// threshold leave the middle bands empty is reported as departing on the
+// demo's November log.
+func TestPeriodDesignKeepsThePlan(t *testing.T) {
+	spec, f := demoSpec("fnr:0.035,0.11,0.25", "error:0.032,0.007,0.008")
+	m, err := BuildPlan(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.Measures = m
+	var strata []Stratum
+	var flagged [][]bool
+	for u, share := range []float64{0.45, 0.30, 0.20, 0.05} {
+		for i, c := range m.Cells {
+			strata = append(strata, Stratum{Label: fmt.Sprintf("%d|%s", u, c.Label), Population: int64(math.Round(share * float64(c.Decisions)))})
+			flagged = append(flagged, []bool{i >= 1, i >= 2, i >= 3})
+		}
+	}
+	pd, err := NewPeriodDesign(f, strata, flagged)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r := float64(sum(pd.Sample)) / float64(m.Design.Total); r < 1 || r > 1.25 {
+		t.Errorf("the draw labels %d, the plan %d: ratio %.3f, want within [1, 1.25]", sum(pd.Sample), m.Design.Total, r)
+	}
+	if pd.Departure != nil {
+		t.Errorf("a log with the plan's shares departs: %+v", *pd.Departure)
+	}
+	for i, c := range m.Claims {
+		unplanned := slices.Contains(pd.Unplanned, i)
+		if unplanned != c.Unplanned {
+			t.Errorf("claim %d (%s of %s): unplanned %v on the log, %v in the plan", i, c.Measure, c.Candidate, unplanned, c.Unplanned)
+		}
+		if !unplanned && pd.ProducerRisk[i] > 0.1 {
+			t.Errorf("claim %d (%s of %s): producer's risk %v on the log", i, c.Measure, c.Candidate, pd.ProducerRisk[i])
+		}
+	}
+
+	spec, f = demoSpec("fnr:0.10", "error:0.01")
+	if f.Measures, err = BuildPlan(spec); err != nil {
+		t.Fatal(err)
+	}
+	nov, novFlagged := demoNovember()
+	pd, err = NewPeriodDesign(f, nov, novFlagged)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d := pd.Departure; d == nil || d.Cell != "0.35<=defect_score<0.5" || d.Log < 0.02 || d.Plan > 0.0001 {
+		t.Errorf("departure %+v, want the band 0.35<=defect_score<0.5 at about 2.9 %% of the log against almost none in the plan", d)
 	}
 }

@@ -266,47 +266,79 @@ func (cl Cells) Cell(flagged []bool) int {
 
 func fmtFloat(v float64) string { return strconv.FormatFloat(v, 'f', -1, 64) }
 
+// The assumptions a plan states for its cells' anticipated composition
+// (plan.Measures.Assumes).
+const (
+	assumesThresholds = "nested thresholds: each score band holds the difference of the decisions, and of the true positives, " +
+		"that the thresholds at its two ends flag (FN_j = fnr_j·P and FP_j from the other anticipated value, per threshold)"
+	assumesLabelColumns = "label-column candidates predict independently of one another given the truth " +
+		"(each pattern of predictions holds P·Π sensitivities and (N − P)·Π false-alarm rates)"
+)
+
 // cellShares returns each cell's anticipated share of the decisions and
 // of true positives: nested sets for thresholds (each threshold's flagged
 // set holds the higher ones'), and for label-column candidates their
-// predictions independent given the truth (an assumption the plan states).
-func cellShares(cl Cells, cands []plan.Candidate, an []Anticipation, pi float64) (share, pos []float64, err error) {
+// predictions independent given the truth (an assumption the plan
+// states). Thresholds whose anticipated values no nested composition
+// satisfies — a higher threshold catching more true positives (a lower
+// fnr) or raising more false alarms (a higher fpr) than a lower one — are
+// refused, naming the values given.
+func cellShares(cl Cells, cands []plan.Candidate, an []Anticipation, pi float64, given []string) (share, pos []float64, err error) {
 	k := len(cands)
 	share, pos = make([]float64, len(cl.Labels)), make([]float64, len(cl.Labels))
 	if cl.Thresholds {
-		// flagged share and true positives of the set "≥ the cell's lower
-		// threshold", from the candidate with that threshold
-		setShare := func(i int) (float64, float64) {
-			if i == 0 {
-				return 1, pi
+		// one candidate per distinct threshold, in increasing order; equal
+		// thresholds must agree
+		order := make([]int, 0, k)
+		for j := range cands {
+			dup := false
+			for _, l := range order {
+				if *cands[j].Threshold == *cands[l].Threshold {
+					dup = true
+					if math.Abs(an[j].TP-an[l].TP) > 1e-9 || math.Abs(an[j].FP-an[l].FP) > 1e-9 {
+						return nil, nil, &inputerr.Error{Field: "anticipated", Msg: fmt.Sprintf("%s gives candidates %s and %s, which have the same threshold, different values",
+							strings.Join(given, " "), cands[l].Name, cands[j].Name), Hint: "give the same value for candidates with the same threshold"}
+					}
+				}
 			}
-			if i == len(cl.Labels) {
+			if !dup {
+				order = append(order, j)
+			}
+		}
+		sort.SliceStable(order, func(a, b int) bool { return *cands[order[a]].Threshold < *cands[order[b]].Threshold })
+		const tol = 1e-9
+		for x := 1; x < len(order); x++ {
+			lo, hi := order[x-1], order[x]
+			tl, th := fmtFloat(*cands[lo].Threshold), fmtFloat(*cands[hi].Threshold)
+			hint := "give one value per candidate in declared order (NAME:V1,V2,…), with fnr not decreasing and fpr not increasing as the threshold rises"
+			if an[hi].TP > an[lo].TP+tol {
+				return nil, nil, &inputerr.Error{Field: "anticipated", Hint: hint, Msg: fmt.Sprintf(
+					"%s make the threshold %s miss fewer positives than the lower threshold %s (fnr %.4g against %.4g): a higher threshold flags a subset of what a lower one flags, so its fnr cannot be lower",
+					strings.Join(given, " "), th, tl, an[hi].Value(FNR, pi), an[lo].Value(FNR, pi))}
+			}
+			if an[hi].FP > an[lo].FP+tol {
+				return nil, nil, &inputerr.Error{Field: "anticipated", Hint: hint, Msg: fmt.Sprintf(
+					"%s make the threshold %s raise more false alarms than the lower threshold %s (fpr %.4g against %.4g): a higher threshold flags a subset of what a lower one flags, so its fpr cannot be higher",
+					strings.Join(given, " "), th, tl, an[hi].Value(FPR, pi), an[lo].Value(FPR, pi))}
+			}
+		}
+		// the cell above threshold x−1 and below threshold x holds the
+		// difference of their flagged sets (cell 0: everything below the
+		// lowest threshold)
+		set := func(x int) (float64, float64) {
+			switch {
+			case x == 0:
+				return 1, pi
+			case x > len(order):
 				return 0, 0
 			}
-			for j := range cands {
-				if cl.Flagged[i][j] && (i == 0 || !cl.Flagged[i-1][j]) {
-					return an[j].TP + an[j].FP, an[j].TP
-				}
-			}
-			return 0, 0
-		}
-		// candidates with equal thresholds must agree
-		for j := range cands {
-			for l := range cands {
-				if *cands[j].Threshold == *cands[l].Threshold && (math.Abs(an[j].TP-an[l].TP) > 1e-9 || math.Abs(an[j].FP-an[l].FP) > 1e-9) {
-					return nil, nil, fmt.Errorf("candidates %s and %s have the same threshold but different anticipated values", cands[j].Name, cands[l].Name)
-				}
-			}
+			a := an[order[x-1]]
+			return a.TP + a.FP, a.TP
 		}
 		for i := range cl.Labels {
-			s0, p0 := setShare(i)
-			s1, p1 := setShare(i + 1)
-			share[i], pos[i] = s0-s1, p0-p1
-			const tol = 1e-9
-			if share[i] < -tol || pos[i] < -tol || pos[i] > share[i]+tol {
-				return nil, nil, fmt.Errorf("the anticipated values do not fit nested thresholds: the cell %s would hold %.4g of the decisions with %.4g true positives (a higher threshold must flag fewer decisions and fewer true positives)", cl.Labels[i], share[i], pos[i])
-			}
-			share[i], pos[i] = max(share[i], 0), min(max(pos[i], 0), max(share[i], 0))
+			s0, p0 := set(i)
+			s1, p1 := set(i + 1)
+			share[i], pos[i] = max(s0-s1, 0), min(max(p0-p1, 0), max(s0-s1, 0))
 		}
 		return share, pos, nil
 	}
@@ -350,9 +382,9 @@ func (s Spec) problem() (Problem, Cells, []Anticipation, []int64, error) {
 			return fail(&inputerr.Error{Field: "anticipated", Msg: fmt.Sprintf("candidate %s: %v", c.Name, err)})
 		}
 	}
-	share, pos, err := cellShares(cl, s.Candidates, an, s.Prevalence)
+	share, pos, err := cellShares(cl, s.Candidates, an, s.Prevalence, s.Anticipated)
 	if err != nil {
-		return fail(&inputerr.Error{Field: "anticipated", Msg: err.Error()})
+		return fail(err)
 	}
 	var pr Problem
 	counts := make([]int64, len(cl.Labels))
@@ -395,9 +427,17 @@ func (s Spec) claims() ([]Claim, error) {
 }
 
 // BuildPlan sizes the design for the spec and returns the plan file's
-// measures section: the cells with their anticipated shares, the design
-// and the uniform sample for the same risks, and each claim with its
-// anticipated value and exact producer's risk.
+// measures section: the cells with their anticipated shares (and what
+// that composition assumes), the design and the uniform sample for the
+// same risks, and each claim with its anticipated value, how it is judged
+// on the design and on the uniform sample, and its exact producer's risk
+// on each. A claim anticipated at or above its ceiling — a threshold
+// expected to miss too much, say — is not planned (Unplanned): the design
+// is sized for the others, it keeps its consumer's risk at its share of δ
+// and is judged on the largest proportional sub-samples of what the
+// design labels (it is expected to be rejected); at least one claim must
+// be planned. A cell's labels are the most any claim counts there (at
+// least one).
 func BuildPlan(s Spec) (*plan.Measures, error) {
 	if err := checkRelease(s); err != nil {
 		return nil, err
@@ -406,23 +446,60 @@ func BuildPlan(s Spec) (*plan.Measures, error) {
 	if err != nil {
 		return nil, err
 	}
+	var planned, unplanned []int
 	for i, c := range pr.Claims {
-		if v := an[c.Candidate].Value(c.Measure, s.Prevalence); v >= c.Ceiling {
-			return nil, &inputerr.Error{Field: "measure", Msg: fmt.Sprintf("the anticipated %s of %s is %.4g, not below its ceiling %v: no plan can accept it reliably", c.Measure, s.Candidates[c.Candidate].Name, v, s.Claims[i].Ceiling)}
+		if c.Value(pr.Population, pr.Anticipated) >= c.Ceiling {
+			unplanned = append(unplanned, i)
+		} else {
+			planned = append(planned, i)
 		}
 	}
-	res, err := Search(pr)
+	if len(planned) == 0 {
+		c := pr.Claims[0]
+		return nil, &inputerr.Error{Field: "measure", Msg: fmt.Sprintf("every claim is anticipated at or above its ceiling (the %s of %s at %.4g against %v): no plan can accept any of them reliably",
+			c.Measure, s.Candidates[c.Candidate].Name, an[c.Candidate].Value(c.Measure, s.Prevalence), c.Ceiling), Hint: "raise the ceilings, or anticipate values below them"}
+	}
+	sub := pr
+	sub.family = len(pr.Claims)
+	sub.Claims = nil
+	for _, i := range planned {
+		sub.Claims = append(sub.Claims, pr.Claims[i])
+	}
+	res, err := Search(sub)
 	if err != nil {
 		return nil, &inputerr.Error{Field: "measure", Msg: err.Error(), Err: err}
 	}
+	design, uniform := make([]ClaimDesign, len(pr.Claims)), make([]ClaimDesign, len(pr.Claims))
+	for k, i := range planned {
+		design[i], uniform[i] = res.Design.Claims[k].ClaimDesign, res.Uniform.Claims[k].ClaimDesign
+	}
+	for _, i := range unplanned {
+		design[i] = fallbackDesign(pr, pr.Claims[i], res.Design.Sample)
+		uniform[i] = fallbackDesign(pr, pr.Claims[i], res.Uniform.Sample)
+	}
+	sample := countedSample(pr, design)
+	total, uTotal := sum(sample), sum(res.Uniform.Sample)
+	level := pr.Level()
 	m := &plan.Measures{
-		Positive: s.Positive, Prevalence: s.Prevalence, Decisions: s.Decisions,
+		Positive: s.Positive, Prevalence: s.Prevalence, Decisions: s.Decisions, Assumes: assumes(cl),
 		Anticipated: append([]string(nil), s.Anticipated...), Release: s.Release, NoMissMeasureReason: s.NoMissMeasureReason,
-		Design: plan.MeasureDesign{Family: len(pr.Claims), Level: pr.Level(), Total: res.Design.Total, Uniform: res.Uniform.Total, Saving: res.Saving},
+		Design: plan.MeasureDesign{Family: len(pr.Claims), Level: level, Total: total, Uniform: uTotal, Saving: float64(uTotal) / float64(total)},
 	}
 	for i, c := range pr.Claims {
+		risk, err := producerRisk(pr, design[i], level)
+		if err != nil {
+			return nil, err
+		}
+		if !slices.Contains(unplanned, i) && risk > pr.ProducerRisk+1e-9 {
+			return nil, fmt.Errorf("%w: the search's design of %s has a producer's risk of %v, above %v", ErrInfeasible, c.name(pr.Population), risk, pr.ProducerRisk)
+		}
+		uRisk, err := producerRisk(pr, uniform[i], level)
+		if err != nil {
+			return nil, err
+		}
 		m.Claims = append(m.Claims, plan.MeasureClaim{Candidate: s.Candidates[c.Candidate].Name, Measure: c.Measure.String(), Ceiling: c.Ceiling,
-			Anticipated: round6(an[c.Candidate].Value(c.Measure, s.Prevalence)), ProducerRisk: round6(res.Design.Claims[i].ProducerRisk)})
+			Anticipated: round6(an[c.Candidate].Value(c.Measure, s.Prevalence)), ProducerRisk: risk, Unplanned: slices.Contains(unplanned, i),
+			Design: storedDesign(design[i]), Uniform: storedDesign(uniform[i]), UniformProducerRisk: uRisk})
 	}
 	for i, st := range pr.Strata {
 		var flagged []string
@@ -432,9 +509,45 @@ func BuildPlan(s Spec) (*plan.Measures, error) {
 			}
 		}
 		m.Cells = append(m.Cells, plan.MeasureCell{Label: st.Label, Flagged: flagged, Decisions: st.Population, Positives: pos[i],
-			Sample: res.Design.Sample[i], Uniform: res.Uniform.Sample[i]})
+			Sample: sample[i], Uniform: res.Uniform.Sample[i]})
 	}
 	return m, nil
+}
+
+// assumes is what the cells' anticipated composition assumes.
+func assumes(cl Cells) string {
+	if cl.Thresholds {
+		return assumesThresholds
+	}
+	return assumesLabelColumns
+}
+
+// countedSample is the labels per stratum a set of claim designs needs:
+// the most any claim counts there, and at least the problem's minimum.
+func countedSample(pr Problem, claims []ClaimDesign) []int {
+	out := make([]int, len(pr.Strata))
+	for h, st := range pr.Strata {
+		out[h] = int(min(int64(pr.MinPerStratum), st.Population))
+		for _, cd := range claims {
+			out[h] = max(out[h], cd.Counted[h])
+		}
+	}
+	return out
+}
+
+// producerRisk is the claim's exact chance of rejection at the
+// anticipated composition, to six significant digits.
+func producerRisk(pr Problem, cd ClaimDesign, level float64) (float64, error) {
+	pw, err := cd.AcceptProbability(pr.Population, pr.Anticipated, level)
+	if err != nil {
+		return 0, err
+	}
+	return round6(1 - pw), nil
+}
+
+// storedDesign is a claim design as the plan file keeps it.
+func storedDesign(cd ClaimDesign) plan.MeasureClaimDesign {
+	return plan.MeasureClaimDesign{Counted: append([]int(nil), cd.Counted...), Floor: cd.Floor, BAccept: cd.BAccept}
 }
 
 // round6 keeps six significant digits, so the plan file reads well and
@@ -481,47 +594,134 @@ func stripClaims(cs []plan.MeasureClaim) []plan.MeasureClaim {
 	return out
 }
 
-// Recheck rebuilds a plan file's measures from its inputs and reports the
-// first field that differs: a plan whose design or risks were edited by
-// hand is refused, as the rest of the rule is. A plan without measures
-// passes.
+// Recheck verifies a plan file's measures against their inputs without
+// searching again: the cells' anticipated composition is rebuilt from the
+// anticipated values (cheap), and every stored claim design is judged as
+// it stands. Each claim keeps its consumer's risk by construction,
+// whatever its counted items, floor and c_B (its test is calibrated to
+// them at its level, ClaimDesign.Judge), so what is checked is the rest:
+// the level is the family's share of δ; each claim's anticipated value
+// and whether it is planned; each claim's counted items fit the cells'
+// labels, and each cell's labels are the most any claim counts there (at
+// least one); each claim's exact producer's risk, on the design and on the
+// uniform sample, recomputed (ClaimDesign.AcceptProbability) equals the
+// stored one and, for a planned claim, is at most β; the uniform sample
+// is a proportional allocation; the design is no larger than it; and the
+// totals and the saving add up. A plan edited by hand fails one of these
+// and is refused, naming the first field that differs. The search's
+// minimality is not rechecked: the plan's risks do not rest on it. A plan
+// without measures passes.
 func Recheck(f *plan.File) error {
 	if f.Measures == nil {
 		return nil
 	}
-	got, err := BuildPlan(SpecOf(f))
-	if err != nil {
-		return fmt.Errorf("%w: the measures cannot be planned again from their inputs: %v", plan.ErrMeasures, err)
-	}
-	if d := diffMeasures(f.Measures, got); d != "" {
-		return fmt.Errorf("%w: %s is not what the inputs give (planned again: %s)", plan.ErrMeasures, d, "the file was edited")
+	if field := recheck(f); field != "" {
+		return fmt.Errorf("%w: %s is not what the inputs give (the file was edited)", plan.ErrMeasures, field)
 	}
 	return nil
 }
 
-// diffMeasures names the first field of the measures that differs.
-func diffMeasures(a, b *plan.Measures) string {
-	if a.Design != b.Design {
-		return "measures.design"
+// recheck names the first field of the measures that its inputs do not
+// give, or "" when there is none.
+func recheck(f *plan.File) string {
+	m := f.Measures
+	s := SpecOf(f)
+	if checkRelease(s) != nil {
+		return "measures.release"
 	}
-	if len(a.Claims) != len(b.Claims) {
-		return "measures.claims"
+	pr, cl, an, pos, err := s.problem()
+	if err != nil {
+		return "measures (" + err.Error() + ")"
 	}
-	for i := range a.Claims {
-		if a.Claims[i] != b.Claims[i] {
-			return fmt.Sprintf("measures.claims[%d]", i)
-		}
+	if m.Assumes != assumes(cl) {
+		return "measures.assumes"
 	}
-	if len(a.Cells) != len(b.Cells) {
+	if len(m.Cells) != len(pr.Strata) {
 		return "measures.cells"
 	}
-	for i := range a.Cells {
-		x, y := a.Cells[i], b.Cells[i]
-		if x.Label != y.Label || !slices.Equal(x.Flagged, y.Flagged) || x.Decisions != y.Decisions || x.Positives != y.Positives || x.Sample != y.Sample || x.Uniform != y.Uniform {
+	sample, uni := make([]int, len(m.Cells)), make([]int, len(m.Cells))
+	for i, c := range m.Cells {
+		var flagged []string
+		for j, fl := range cl.Flagged[i] {
+			if fl {
+				flagged = append(flagged, s.Candidates[j].Name)
+			}
+		}
+		if c.Label != pr.Strata[i].Label || !slices.Equal(c.Flagged, flagged) || c.Decisions != pr.Strata[i].Population || c.Positives != pos[i] ||
+			c.Sample < 0 || int64(c.Sample) > c.Decisions || c.Uniform < 0 || int64(c.Uniform) > c.Decisions {
 			return fmt.Sprintf("measures.cells[%d]", i)
 		}
+		sample[i], uni[i] = c.Sample, c.Uniform
+	}
+	level := pr.Level()
+	d := m.Design
+	if d.Family != len(pr.Claims) || d.Level != level || d.Total != sum(sample) || d.Uniform != sum(uni) || d.Total > d.Uniform ||
+		d.Saving != float64(d.Uniform)/float64(d.Total) || !isUniform(pr, uni) {
+		return "measures.design"
+	}
+	if len(m.Claims) != len(pr.Claims) {
+		return "measures.claims"
+	}
+	designs := make([]ClaimDesign, len(pr.Claims))
+	for i, c := range pr.Claims {
+		mc := m.Claims[i]
+		field := fmt.Sprintf("measures.claims[%d]", i)
+		if mc.Anticipated != round6(an[c.Candidate].Value(c.Measure, s.Prevalence)) ||
+			mc.Unplanned != (c.Value(pr.Population, pr.Anticipated) >= c.Ceiling) {
+			return field
+		}
+		for _, x := range []struct {
+			stored plan.MeasureClaimDesign
+			labels []int
+			risk   float64
+			name   string
+			// the planned claims meet β, on the design and on the uniform
+			// comparison
+			bound bool
+		}{{mc.Design, sample, mc.ProducerRisk, ".design", !mc.Unplanned}, {mc.Uniform, uni, mc.UniformProducerRisk, ".uniform", !mc.Unplanned}} {
+			cd := ClaimDesign{Claim: c, Counted: x.stored.Counted, Floor: x.stored.Floor, BAccept: x.stored.BAccept}
+			if len(cd.Counted) != len(sample) {
+				return field + x.name
+			}
+			for h, k := range cd.Counted {
+				if k < 0 || k > x.labels[h] {
+					return field + x.name
+				}
+			}
+			pw, err := cd.AcceptProbability(pr.Population, pr.Anticipated, level)
+			if err != nil || round6(1-pw) != x.risk || (x.bound && 1-pw > pr.ProducerRisk+1e-9) {
+				return field + x.name
+			}
+		}
+		designs[i] = ClaimDesign{Claim: c, Counted: mc.Design.Counted}
+	}
+	if !slices.Equal(countedSample(pr, designs), sample) {
+		return "measures.cells[].sample"
 	}
 	return ""
+}
+
+// isUniform reports whether the sample is the problem's proportional
+// allocation of some size: ProportionalCounts over every stratum, and at
+// least the minimum per stratum (the smallest size reaching its total,
+// found by bisection, must give it).
+func isUniform(pr Problem, sample []int) bool {
+	all := make([]int, len(pr.Strata))
+	var N int64
+	for h, st := range pr.Strata {
+		all[h] = h
+		N += st.Population
+	}
+	alloc := func(n int) []int {
+		v := ProportionalCounts(pr.Population, all, n)
+		for h, st := range pr.Strata {
+			v[h] = max(v[h], int(min(int64(pr.MinPerStratum), st.Population)))
+		}
+		return v
+	}
+	want := sum(sample)
+	n := sort.Search(int(N)+1, func(n int) bool { return sum(alloc(n)) >= want })
+	return n <= int(N) && slices.Equal(alloc(n), sample)
 }
 
 // PeriodProblem is the plan's problem on a period's actual strata: the

@@ -7,8 +7,9 @@
 // structure, recomputes the rule, the risks and the comparison from the
 // inputs (plan.File.Check), verifies any sequential boundaries
 // (sequential.Check), for a plan sized for a stratified design its count
-// rule on the planned strata (verdict.CheckStratification), and plans the
-// measures again from their inputs (measure.Recheck). An edited plan — a
+// rule on the planned strata (verdict.CheckStratification), and verifies
+// the measures' stored designs against their inputs (measure.Recheck:
+// every risk recomputed exactly, no search run again). An edited plan — a
 // sample size, an acceptance
 // number, a ceiling or a risk changed by hand, a class repeated, a
 // threshold that is not a number, a design without its section — is an

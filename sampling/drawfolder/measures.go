@@ -16,6 +16,18 @@ type MeasuresInfo struct {
 	Uniform int `json:"uniform"`
 	// Level is α, each claim's share of the family's risk δ.
 	Level float64 `json:"level"`
+	// Departure, when set, is the cell of the log whose share of the
+	// decisions departs most from the share the plan assumed (by more
+	// than a quarter): the plan's design was sized for other shares.
+	Departure *MeasuresDeparture `json:"departure,omitempty"`
+}
+
+// MeasuresDeparture is a cell of the log (a score band, a pattern of
+// predictions) whose share of the decisions is not what the plan assumed.
+type MeasuresDeparture struct {
+	Cell      string  `json:"cell"`
+	LogShare  float64 `json:"log_share"`
+	PlanShare float64 `json:"plan_share"`
 }
 
 // MeasureClaimInfo is one claim's design.
