@@ -196,9 +196,13 @@ func applyMeasures(f *plan.File, o *planOptions) error {
 // across the cells and the uniform sample for the same risks.
 func writeMeasuresReport(w io.Writer, f *plan.File, out, fingerprint string) error {
 	m := f.Measures
-	fmt.Fprintf(w, "Label %s, stratified by the candidates' predictions; a uniform sample would need %s (%.1f× as many).\n",
-		decisions(m.Design.Total), decisions(m.Design.Uniform), m.Design.Saving)
-	fmt.Fprintf(w, "\nClaims (positive class %q, prevalence %s, %s decisions a period assumed):\n", m.Positive, numfmt.Rate(m.Prevalence), strconv.FormatInt(m.Decisions, 10))
+	saving := fmt.Sprintf("%.2f", m.Design.Saving)
+	if m.Design.Saving >= 10 {
+		saving = fmt.Sprintf("%.1f", m.Design.Saving)
+	}
+	fmt.Fprintf(w, "Label %s decisions, stratified by the candidates' predictions; a uniform sample would need %s (%s× as many).\n",
+		numfmt.Count(m.Design.Total), numfmt.Count(m.Design.Uniform), saving)
+	fmt.Fprintf(w, "\nClaims (positive class %q, prevalence %s, %s decisions a period assumed):\n", m.Positive, numfmt.Rate(m.Prevalence), numfmt.Count(m.Decisions))
 	fmt.Fprintf(w, "  a candidate whose measure is at or above its ceiling is accepted with probability at most %s\n", numfmt.Chance(m.Design.Level))
 	fmt.Fprintf(w, "  (%s over the family of %d (measure, candidate) claims: δ = %s)\n", f.Inputs.Multiplicity.Title(), m.Design.Family, numfmt.Chance(1-f.Inputs.Confidence))
 	wn := len("candidate")
@@ -225,9 +229,9 @@ func writeMeasuresReport(w io.Writer, f *plan.File, out, fingerprint string) err
 	}
 	fmt.Fprintf(w, "  %-*s  %10s  %10s  %7s  %8s\n", wl, "stratum", "decisions", "positives", "labels", "uniform")
 	for _, c := range m.Cells {
-		fmt.Fprintf(w, "  %-*s  %10d  %10d  %7d  %8d\n", wl, c.Label, c.Decisions, c.Positives, c.Sample, c.Uniform)
+		fmt.Fprintf(w, "  %-*s  %10s  %10s  %7s  %8s\n", wl, c.Label, numfmt.Count(c.Decisions), numfmt.Count(c.Positives), numfmt.Count(c.Sample), numfmt.Count(c.Uniform))
 	}
-	fmt.Fprintf(w, "  %-*s  %10s  %10s  %7d  %8d\n", wl, "total", "", "", m.Design.Total, m.Design.Uniform)
+	fmt.Fprintf(w, "  %-*s  %10s  %10s  %7s  %8s\n", wl, "total", "", "", numfmt.Count(m.Design.Total), numfmt.Count(m.Design.Uniform))
 	fmt.Fprintf(w, "anticipated: %s, prevalence %s; assumes %s\n", strings.Join(m.Anticipated, " "), strconv.FormatFloat(m.Prevalence, 'g', -1, 64), m.Assumes)
 	for _, c := range m.Cells {
 		if float64(c.Decisions) < 0.0001*float64(m.Decisions) && len(f.Candidates) > 1 && f.Candidates[0].ScoreColumn != "" {

@@ -88,10 +88,15 @@ func measureCaveats(rec *record.Record, eps float64) []record.Caveat {
 			continue
 		}
 		text := fmt.Sprintf("%s of %s is accepted with an upper bound of %s against the ceiling %s, but on the doubled items a single labeler "+
-			"was wrong on at least %s of items; %s are an estimated %s of the decisions, so wrong labels of that share, falling among them, "+
-			"could move %s by about %s, more than the margin of %s. The stated false-accept risk holds only if the reference labels are better than the doubled items show.",
-			m.Measure, m.Candidate, numfmt.RateUp(m.UpperBound), numfmt.Setting(m.Ceiling), numfmt.RateDown(eps), group, numfmt.Rate(share),
-			m.Measure, numfmt.RateDown(shift), numfmt.RateDown(math.Max(0, m.Ceiling-m.UpperBound)))
+			"was wrong on at least %s of items", m.Measure, m.Candidate, numfmt.RateUp(m.UpperBound), numfmt.Setting(m.Ceiling), numfmt.RateDown(eps))
+		if share < 1 {
+			text += fmt.Sprintf("; %s are an estimated %s of the decisions, so wrong labels of that share, falling among them, could move %s by about %s",
+				group, numfmt.Rate(share), m.Measure, numfmt.RateDown(shift))
+		} else {
+			text += fmt.Sprintf(", and wrong labels of that share can move %s by as much", m.Measure)
+		}
+		text += fmt.Sprintf(", more than the margin of %s. The stated false-accept risk holds only if the reference labels are better than the doubled items show.",
+			numfmt.RateDown(math.Max(0, m.Ceiling-m.UpperBound)))
 		out = append(out, record.Caveat{Kind: record.CaveatLabelErrorMargin, Candidate: m.Candidate, Text: text})
 	}
 	return out
