@@ -48,7 +48,7 @@ func writeMeasuresSummary(d deps, rec *record.Record) {
 			line += " (" + numfmt.Confidence(1-m.Level) + ")"
 		}
 		if !m.Planned {
-			line += " (design not sized for it)"
+			line += " (not planned)"
 		}
 		fmt.Fprintln(w, line)
 	}
