@@ -21,6 +21,10 @@ func (d *doc) confusionSection(c *content) {
 	}
 	d.note("Rows are the labels given by the labelers, columns the candidate's predictions. The diagonal (green) " +
 		"counts correct decisions; shaded red cells off the diagonal count errors.")
+	if hasMeasures(c.rec) {
+		d.note("These are the labeled items as drawn: the strata were sampled at different rates, so the counts are not " +
+			"the population's shares; the estimated confusion in the population follows.")
+	}
 	half := (d.contentW() - matrixGap) / 2
 	var pending *matrix // a narrow matrix waiting for a partner
 	for _, cand := range c.rec.Candidates {
@@ -43,6 +47,7 @@ func (d *doc) confusionSection(c *content) {
 	if pending != nil {
 		d.matrixRow(pending, nil)
 	}
+	d.estimatedConfusion(c)
 }
 
 // matrix is one candidate's confusion matrix, laid out as a table (nil

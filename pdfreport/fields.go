@@ -86,6 +86,9 @@ func fieldsOf(rec *record.Record, use string) templates.Fields {
 	if f.StepLevels {
 		f.BoundConfidence = numfmt.Confidence(1 - p.PerCandidateRisk) // the first step's
 	}
+	if hasMeasures(rec) {
+		measureFields(&f, rec)
+	}
 	return f
 }
 
@@ -99,4 +102,33 @@ func boundConfidence(rec *record.Record) float64 {
 		}
 	}
 	return 1 - rec.Plan.PerCandidateRisk
+}
+
+// measureFields sets the fields of a record of measures: the claims'
+// ceilings, their number, each claim's risk and confidence (the first
+// step's under Holm), the labels drawn and the release. The overall
+// error's count rule does not decide here, so its fields are cleared.
+func measureFields(f *templates.Fields, rec *record.Record) {
+	f.Measures, f.Claims, f.Positive = true, len(rec.Measures), positiveClass(rec)
+	f.Ceiling = ceilingsText(rec)
+	lo, hi := claimLevels(rec)
+	f.PerCandidateRisk, f.BoundConfidence, f.StepLevels = numfmt.Chance(lo), numfmt.Confidence(1-lo), hi != lo
+	f.Multiplicity = ""
+	if f.Claims > 1 {
+		f.Multiplicity = rec.Plan.Multiplicity.Title()
+	}
+	f.CountRule, f.CountRiskBound, f.AnticipatedFrom, f.ConsumerRisk, f.ProducerRisk, f.Anticipated = false, "", "", "", "", ""
+	f.Weighted, f.Sequential = true, false
+	f.SampleSize = 0
+	for _, s := range rec.Strata {
+		f.SampleSize += s.Sample
+	}
+	if rec.ReleaseRule != "" {
+		f.ReleaseRule = record.ReleaseRuleText(rec.ReleaseRule)
+		if rec.Released != nil && rec.Released.Candidate != "" {
+			f.Released = rec.Released.Candidate
+		} else {
+			f.NoRelease = true
+		}
+	}
 }

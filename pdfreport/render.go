@@ -160,7 +160,7 @@ type content struct {
 func newContent(rec *record.Record, tpl *templates.Set) (*content, error) {
 	use, _ := useOf(rec)
 	c := &content{rec: rec, tpl: tpl, fields: fieldsOf(rec, use), use: use}
-	if len(rec.OC) > 0 {
+	if len(rec.OC) > 0 && !hasMeasures(rec) {
 		png, err := ocFigure(rec)
 		if err != nil {
 			return nil, err
@@ -208,7 +208,7 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 		pdf.RegisterImageOptionsReader("oc-curve", gofpdf.ImageOptions{ImageType: "PNG"}, bytes.NewReader(c.oc))
 	}
 	pdf.AddPage()
-	for _, section := range []func(*content){
+	sections := []func(*content){
 		d.titleBlock,
 		d.summary,
 		d.conformity,
@@ -224,7 +224,30 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 		d.scopeSection,
 		d.provenanceSection,
 		d.signoffSection,
-	} {
+	}
+	if hasMeasures(c.rec) {
+		// The verdicts rest on the claims: their summary, plan and results
+		// replace the overall error's table, plan and operating
+		// characteristic.
+		sections = []func(*content){
+			d.titleBlock,
+			d.measuresSummary,
+			d.conformity,
+			d.cautions,
+			d.measuresPlanInfo,
+			d.measuresSection,
+			d.strataSection,
+			d.confusionSection,
+			d.labelQualitySection,
+			d.labelTrailSection,
+			d.methodSection,
+			d.deviationsSection,
+			d.scopeSection,
+			d.provenanceSection,
+			d.signoffSection,
+		}
+	}
+	for _, section := range sections {
 		section(c)
 		if err := pdf.Error(); err != nil {
 			return output{}, fmt.Errorf("laying out the PDF: %w", err)

@@ -27,8 +27,13 @@ func (d *doc) titleBlock(c *content) {
 	if n == 1 {
 		what = "one candidate"
 	}
-	d.paragraph("Statistical acceptance of "+what+" against an error ceiling of "+c.fields.Ceiling+
-		" at "+c.fields.Confidence+" confidence.", "", bodySize+1, lineH+0.4, 0, inkColour)
+	intro := "Statistical acceptance of " + what + " against an error ceiling of " + c.fields.Ceiling +
+		" at " + c.fields.Confidence + " confidence."
+	if hasMeasures(rec) {
+		intro = "Statistical acceptance of " + what + " on error measures for the positive class " + positiveClass(rec) +
+			" (" + c.fields.Ceiling + "), at " + c.fields.Confidence + " confidence for all claims together."
+	}
+	d.paragraph(intro, "", bodySize+1, lineH+0.4, 0, inkColour)
 	d.space(2.5)
 	period := rec.Period
 	if period == "" {
@@ -206,6 +211,14 @@ func (d *doc) verdictBanner(c *content) {
 		word = "NO VERDICT"
 	}
 	detail := itoa(accepted) + " of " + itoa(len(rec.Candidates)) + " candidates accepted; " + rec.Plan.Require.Title() + "."
+	label := "OVERALL VERDICT"
+	if s := rec.ReleaseStatement(); s != "" {
+		// the decision signed is the release
+		label = "RELEASE DECISION"
+		detail = strings.ToUpper(s[:1]) + s[1:] + ". " + acceptedText(accepted, len(rec.Candidates)) + "."
+	} else if hasMeasures(rec) {
+		detail = acceptedText(accepted, len(rec.Candidates)) + "; " + rec.Plan.Require.Title() + "."
+	}
 	if len(rec.Caveats) > 0 && word == record.Accept {
 		detail += " Qualified: see below."
 		word = "ACCEPT, QUALIFIED"
@@ -218,7 +231,7 @@ func (d *doc) verdictBanner(c *content) {
 	d.textColour(white)
 	d.font("", smallSize)
 	d.pdf.SetXY(marginX+4, y+2)
-	d.pdf.CellFormat(50, 3.5, "OVERALL VERDICT", "", 0, "L", false, 0, "")
+	d.pdf.CellFormat(50, 3.5, label, "", 0, "L", false, 0, "")
 	// The word in 17 pt, or smaller when it is long ("ACCEPT, QUALIFIED").
 	size := 17.0
 	for d.font("B", size); size > 10 && d.pdf.GetStringWidth(word) > 62; d.font("B", size) {
@@ -300,4 +313,17 @@ func stampText(s chrono.Stamp) string {
 		return "not stated"
 	}
 	return s.Time.UTC().Format("2006-01-02 15:04:05") + " UTC (" + s.Source.Describe() + ")"
+}
+
+// acceptedText says how many candidates a record of measures accepts:
+// "1 of 3 candidates accepted on every measure claimed for them", or for
+// one candidate whether it is.
+func acceptedText(accepted, n int) string {
+	if n == 1 {
+		if accepted == 1 {
+			return "The candidate is accepted on every measure claimed for it"
+		}
+		return "The candidate is not accepted on every measure claimed for it"
+	}
+	return itoa(accepted) + " of " + itoa(n) + " candidates accepted on every measure claimed for them"
 }

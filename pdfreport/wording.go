@@ -31,6 +31,10 @@ func (d *doc) conformity(c *content) {
 	if len(c.rec.Candidates) == 0 {
 		return
 	}
+	if hasMeasures(c.rec) {
+		d.measuresFindings(c)
+		return
+	}
 	d.subheading("Findings", 2*lineH)
 	for _, cand := range c.rec.Candidates {
 		finding := "does not conform"
@@ -113,11 +117,15 @@ func (d *doc) methodSection(c *content) {
 	d.heading("Method and assumptions")
 	d.wordingBlocks(d.text(c, templates.Method))
 	m := c.rec.Method
-	if s := strings.TrimSpace(m.Statement); s != "" {
+	// With measures the verdicts rest on the claims (the wording above),
+	// not on the overall error's rule the record also states.
+	if s := strings.TrimSpace(m.Statement); s != "" && !hasMeasures(c.rec) {
 		d.subheading("Method as recorded", 2*lineH)
 		d.body(s)
 	}
-	d.ruleApplied(c)
+	if !hasMeasures(c.rec) {
+		d.ruleApplied(c)
+	}
 	d.subheading("Assumptions", 2*lineH)
 	d.wordingBlocks(d.text(c, templates.Assumptions))
 	for _, a := range m.Assumptions {
@@ -133,7 +141,7 @@ func (d *doc) deviationsSection(c *content) {
 	d.heading("Deviations from the plan")
 	dev := c.rec.Deviations
 	if len(dev.SparesUsed) == 0 && len(dev.Unlabeled) == 0 && len(dev.Unsure) == 0 && len(dev.SparesUnused) == 0 &&
-		!dev.AllowIncomplete && len(dev.Notes) == 0 && dev.DoubleNotLabeled == 0 {
+		!dev.AllowIncomplete && len(dev.Notes) == 0 && dev.DoubleNotLabeled == 0 && dev.NoMissMeasure == "" {
 		d.wordingBlocks(d.text(c, templates.DeviationsNone))
 		return
 	}
@@ -163,6 +171,10 @@ func (d *doc) deviationsSection(c *content) {
 	}
 	if s := dev.DoubleNotLabeledText(); s != "" {
 		d.bullet(s)
+	}
+	if r := strings.TrimSpace(dev.NoMissMeasure); r != "" {
+		d.bullet("No claim on the misses of the positive class " + positiveClass(c.rec) + " (false-negative or false omission rate), which a " + c.use +
+			" use needs; the plan states why: \u201c" + r + "\u201d (shown on page 1).")
 	}
 	for _, n := range dev.Notes {
 		if strings.TrimSpace(n) != "" {

@@ -301,11 +301,25 @@ func (f *File) validate() error {
 		if f.Sequential != nil || in.Design == DesignSequential {
 			return fieldErr("stratification", "a sequential plan cannot have a stratification")
 		}
+		if f.Measures != nil {
+			return fieldErr("stratification", "a plan with measures designs its own strata by prediction; it cannot also have a stratification")
+		}
 		if err := s.validate(f.Rule.SampleSize); err != nil {
 			return err
 		}
 	}
-	return f.validateCandidates()
+	if err := f.validateCandidates(); err != nil {
+		return err
+	}
+	if f.Measures != nil {
+		if len(f.Candidates) == 0 {
+			return fieldErr("measures", "need declared candidates")
+		}
+		if err := f.Measures.validate(f); err != nil {
+			return fmt.Errorf("%w: %v", ErrMeasures, err)
+		}
+	}
+	return nil
 }
 
 // validateClasses: every class is a label a labeler can write — not

@@ -68,6 +68,10 @@ type File struct {
 	// Stratification is the stratified design the plan was sized for (nil:
 	// sized for a simple random sample).
 	Stratification *Stratification `yaml:"stratification,omitempty"`
+	// Measures, when set, certifies error measures with their own
+	// denominators (fnr, fpr, for, fdr, error) instead of the overall
+	// error alone: the candidates are judged by them.
+	Measures *Measures `yaml:"measures,omitempty"`
 }
 
 // Inputs are the requirements a plan is made from.

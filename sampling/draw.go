@@ -78,6 +78,14 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 		in.IDColumn = "record_id"
 	}
 	n := p.Rule.SampleSize
+	capacity := n + in.Alloc.Spare + capacityMargin
+	if p.Measures != nil {
+		// the design is sized again on the log's strata: room for eight
+		// times the planned labels in any stratum (allocateMeasures says
+		// when that is not enough)
+		n = p.Measures.Design.Total
+		capacity = 8*n + in.Alloc.Spare + capacityMargin
+	}
 	if in.Double < 0 || in.Double > n {
 		return nil, &inputerr.Error{Field: "double", Msg: fmt.Sprintf("%d: must be between 0 and the sample size %d", in.Double, n)}
 	}
@@ -116,7 +124,7 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	res, err := Scan(in.Log, ScanSpec{
 		Name: name, Format: in.Format, Seed: selection, IDColumn: in.IDColumn,
 		StrataColumns: in.StrataColumns, Bands: in.Bands, Where: in.Where, Keep: keep, KeepRoles: roles,
-		Capacity: n + in.Alloc.Spare + capacityMargin, Dedupe: in.Dedupe, TimeColumn: in.TimeColumn, MaxLine: in.MaxLine,
+		Capacity: capacity, Dedupe: in.Dedupe, TimeColumn: in.TimeColumn, MaxLine: in.MaxLine,
 		Workers: in.Workers, ChunkSize: in.ChunkSize, Progress: in.Progress,
 	})
 	if err != nil {
@@ -147,8 +155,15 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 			return nil, err
 		}
 	}
-	effMin := EffectiveMin(counts, n, opts)
-	alloc, err := Allocate(counts, n, opts)
+	var alloc []StratumAllocation
+	var measuresInfo *drawfolder.MeasuresInfo
+	effMin := 0
+	if opts.Rule == Measures {
+		alloc, measuresInfo, err = allocateMeasures(in, counts)
+	} else {
+		effMin = EffectiveMin(counts, n, opts)
+		alloc, err = Allocate(counts, n, opts)
+	}
 	if err != nil {
 		if errors.Is(err, ErrSampleTooLarge) {
 			e := inputErrorf(name, 0, "", "the plan needs a sample of %d but only %d rows are in scope", n, res.InScope)
@@ -167,6 +182,9 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 			return nil, fmt.Errorf("internal: strata out of order (%q, %q)", st.Label, a.Label)
 		}
 		need := a.Sample + a.Spare
+		if need > len(st.Rows) && int64(len(st.Rows)) == min(st.Count, int64(capacity)) && st.Count > int64(capacity) {
+			return nil, inputerr.Errorf("stratum %q needs %d rows, more than the %d the draw keeps for a plan of %d labels", a.Label, need, capacity, n).WithHint("the log's strata differ much from what the plan anticipated: plan again with its shares")
+		}
 		if need > len(st.Rows) {
 			return nil, inputerr.Errorf("%w: stratum %q needs %d rows but only %d could be kept: too many ids repeat across strata", ErrDuplicateIDs, a.Label, need, len(st.Rows))
 		}
@@ -210,6 +228,7 @@ func Draw(in DrawInput) (*drawfolder.Content, error) {
 	}
 	f.Ledger = rows
 	f.Manifest = buildManifest(in, res, alloc, selection)
+	f.Manifest.Measures = measuresInfo
 	f.Manifest.Allocation.MinPerStratum = effMin
 	if opts.Rule == Proportional || opts.Rule == "" {
 		f.Manifest.Allocation.Rounding = opts.Rounding

@@ -80,6 +80,20 @@ type Fields struct {
 	// (the steps of Holm's procedure), each bound at its own step's
 	// confidence.
 	StepLevels bool
+	// Measures is true for a record of error measures with their own
+	// denominators: every (measure, candidate) claim has its own ceiling
+	// (Ceiling then lists them), Claims is their number and Positive the
+	// positive (critical) class the rates are taken for; PerCandidateRisk
+	// and BoundConfidence are each claim's risk and confidence.
+	Measures bool
+	Claims   int
+	Positive string
+	// ReleaseRule says in words which candidate the plan declared for
+	// release ("" when none); Released names the candidate the rule picks
+	// ("" when it picks none: NoRelease).
+	ReleaseRule string
+	Released    string
+	NoRelease   bool
 }
 
 // sampleFields is a fully set Fields used to check templates at load time.
@@ -94,5 +108,7 @@ func sampleFields() Fields {
 		Bound: "Clopper–Pearson", Approximate: true, Weighted: true, Stratified: true, AllowIncomplete: true,
 		CountRule: true, CountedSize: 90, CountAcceptance: 1, Thinned: true, UnknownStrata: 1, CountRiskBound: "4 %",
 		AnticipatedFrom: "the plan's anticipated error in every stratum", StepLevels: true,
+		Measures: true, Claims: 6, Positive: "positive", ReleaseRule: "the accepted candidate with the lowest estimated fnr",
+		Released: "candidate", NoRelease: true,
 	}
 }

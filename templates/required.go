@@ -30,6 +30,7 @@ func decisionRuleCases() map[string]Fields {
 		f.SampleSize, f.AcceptanceNumber = markSampleSize, markAcceptance
 		f.Sequential, f.Weighted, f.Candidates, f.MultiplicityRule = false, false, 1, "bonferroni"
 		f.CountRule, f.StepLevels = false, false
+		f.Measures, f.Claims, f.ReleaseRule, f.Released, f.NoRelease = false, 0, "", "", false
 		return f
 	}
 	fixed := base()
@@ -46,6 +47,10 @@ func decisionRuleCases() map[string]Fields {
 		f.Candidates, f.MultiplicityRule = 3, m
 		out["three candidates under "+m] = f
 	}
+	measures := base()
+	measures.Weighted, measures.Measures, measures.Claims, measures.Candidates = true, true, 6, 3
+	measures.ReleaseRule, measures.Released = "the accepted candidate with the lowest estimated fnr", "candidate"
+	out["with measures: six claims on three candidates"] = measures
 	steps := base()
 	steps.Candidates, steps.MultiplicityRule, steps.StepLevels = 3, "holm", true
 	out["three candidates under holm, bounds at each step's confidence"] = steps

@@ -16,6 +16,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"probity/plan/inputerr"
+	"probity/plan/numfmt"
 	"probity/plan/planfile"
 	"probity/sampling/demolog"
 	"probity/sampling/drawfolder"
@@ -84,7 +85,7 @@ const demoUnsureCount = 3
 const demoSignoff = `prepared:
   name: Maren Tøllefsen
   title: Inspection data lead, track assets
-  date: 2026-12-01
+  date: 2026-12-02
 reviewed:
   name: Dr. Ilse Brandvold-Achebe
   title: Model-risk reviewer
@@ -148,9 +149,16 @@ func runDemo(d deps, o *demoOptions) error {
 	}
 
 	const planPath, keyPath = demoPlan, "keys/demo-signing-key"
-	planRun, err := step("plan", "--ceiling", "0.02", "--confidence", "0.95", "--anticipated", "0.01", "--producer-risk", "0.10",
+	// A missed defect can lead to a rail break: the plan certifies the miss
+	// rate (fnr) of each threshold beside its overall error, and releases
+	// the accepted threshold that misses least. The anticipated values
+	// are the validation figures the scenario's operator had (near the
+	// log's true values, sampling/demolog).
+	planRun, err := step("plan", "--measure", "fnr:0.20", "--measure", "error:0.02", "--confidence", "0.95", "--producer-risk", "0.10",
+		"--anticipated", "fnr:0.035,0.11,0.25", "--anticipated", "error:0.032,0.007,0.008", "--prevalence", "0.03", "--decisions", "240000",
+		"--release", "best:fnr",
 		"--thresholds", "defect_score:0.35,0.50,0.65", "--positive", demolog.Defect, "--negative", demolog.Sound,
-		"--require", "any", "--system", sc.System, "--system-version", sc.SystemVersion,
+		"--system", sc.System, "--system-version", sc.SystemVersion,
 		"--seed", demolog.PlanSeed, "--time-column", demolog.TimeColumn, "--date", demoTime(demolog.PlanCreated), "--out", planPath)
 	if err != nil {
 		return err
@@ -198,27 +206,28 @@ func runDemo(d deps, o *demoOptions) error {
 		}
 		recDirs = append(recDirs, res.recDir)
 		last = res
-		fmt.Fprintf(w, "  %s   log     %s (%d decisions)\n", m.Month, shown(res.logPath), m.Rows)
-		fmt.Fprintf(w, "            sample  %s/ (%d items labeled; %d unsure replaced by spares)\n", shown(res.drawDir), res.labeled, res.unsure)
+		fmt.Fprintf(w, "  %s   log     %s (%s decisions)\n", m.Month, shown(res.logPath), numfmt.Count(m.Rows))
+		fmt.Fprintf(w, "            sample  %s/ (%s items labeled; %d unsure replaced by spares)\n", shown(res.drawDir), numfmt.Count(res.labeled), res.unsure)
 		if res.doubled > 0 {
 			fmt.Fprintf(w, "            double  %d items labeled twice, %d disagreements adjudicated (%s)\n", res.doubled, res.adjudicated, shown(res.adjudicatedPath))
 		}
 		fmt.Fprintf(w, "            record  %s (%s, exit %d)\n", shown(filepath.Join(res.recDir, "record.pdf")), demoOverall(res.record.stdout), res.record.code)
 	}
-	for _, l := range indentedLines(last.record.stdout, 6)[1:] {
+	for _, l := range demoRecordSummary(last.record.stdout) {
 		fmt.Fprintf(w, "            %s\n", l)
 	}
-	// The preparer and the reviewer sign the November record, an hour
-	// apart, after it was issued; the approver has not signed yet.
+	// The preparer and the reviewer sign the November record the morning
+	// after it was issued, three hours apart; the approver has not signed
+	// yet.
 	for i, s := range demoSigners[:2] {
-		at := demolog.Clock.Add(time.Duration(2+3*i) * time.Hour)
+		at := demolog.Clock.Add(time.Duration(24+2+3*i) * time.Hour)
 		r := runDemoStep(d, base, &cmdlog, at, []string{"sign", last.recDir, "--role", s.role, "--key", s.key, "--signers", demoSignersFile})
 		if r.code != exitOK {
 			return &internalError{msg: "demo step sign failed: " + firstLine(r.stderr)}
 		}
 		fmt.Fprintf(w, "            signed  %s by %s, %s UTC\n", s.role, s.name, at.Format("2006-01-02 15:04"))
 	}
-	ver := runDemoStep(d, base, &cmdlog, demolog.Clock.Add(24*time.Hour), []string{"verify", last.recDir, "--signers", demoSignersFile,
+	ver := runDemoStep(d, base, &cmdlog, demolog.Clock.Add(48*time.Hour), []string{"verify", last.recDir, "--signers", demoSignersFile,
 		"--plan", planPath, "--draw", last.drawDir, "--trail", last.trailPath, "--adjudicated", last.adjudicatedPath, "--log", last.logPath})
 	if ver.code == exitBadInput || ver.code == exitInternal {
 		return &internalError{msg: fmt.Sprintf("demo step verify failed (exit %d): %s", ver.code, firstLine(ver.stderr))}
@@ -404,11 +413,37 @@ func demoLabelMonth(m demolog.Scenario, base string, res *demoMonth, latest bool
 // demoOverall picks the overall verdict out of record's output.
 func demoOverall(out string) string {
 	for _, l := range strings.Split(out, "\n") {
+		if v, ok := strings.CutPrefix(l, "released: "); ok && v != "" {
+			return "released " + strings.Fields(v)[0]
+		}
+	}
+	for _, l := range strings.Split(out, "\n") {
 		if v, ok := strings.CutPrefix(l, "overall: "); ok && v != "" {
 			return "overall " + strings.Fields(v)[0]
 		}
 	}
 	return "no verdict printed"
+}
+
+// demoRecordSummary is what the demo repeats of the latest record's
+// console: its claims by measure and the release, or else its first
+// lines.
+func demoRecordSummary(out string) []string {
+	lines := strings.Split(strings.TrimRight(out, "\n"), "\n")
+	start := slices.IndexFunc(lines, func(l string) bool { return strings.HasPrefix(l, "measures for ") })
+	if start < 0 {
+		return indentedLines(out, 6)[1:]
+	}
+	var keep []string
+	for _, l := range lines[start:] {
+		if strings.HasPrefix(l, "  ") || strings.HasPrefix(l, "measures for ") || strings.HasPrefix(l, "released: ") {
+			keep = append(keep, l)
+		}
+		if strings.HasPrefix(l, "released: ") {
+			break
+		}
+	}
+	return keep
 }
 
 // demoTrendFlags picks the flag lines out of trend's output.
@@ -420,6 +455,11 @@ func demoTrendFlags(out string) string {
 		}
 	}
 	if len(flags) == 0 {
+		for _, l := range strings.Split(out, "\n") {
+			if v, ok := strings.CutPrefix(l, "measure: "); ok {
+				return "charted " + strings.Fields(v)[0] + " month by month"
+			}
+		}
 		return "no month flagged against the baseline"
 	}
 	return strings.Join(flags, "; ")

@@ -47,8 +47,9 @@ func TestDemoEndToEnd(t *testing.T) {
 		if code != exitOK {
 			t.Fatalf("demo exit %d\nstdout:\n%s\nstderr:\n%s", code, out, errOut)
 		}
-		for _, want := range []string{"invented", "record-2026-11/record.pdf (overall ACCEPT, exit 0)",
-			"signed  prepared by Maren Tøllefsen, 2026-12-01 11:30 UTC", "signed  reviewed by Dr. Ilse Brandvold-Achebe, 2026-12-01 14:30 UTC",
+		for _, want := range []string{"invented", "record-2026-11/record.pdf (released defect_score>=0.50, exit 0)",
+			"signed  prepared by Maren Tøllefsen, 2026-12-02 11:30 UTC", "signed  reviewed by Dr. Ilse Brandvold-Achebe, 2026-12-02 14:30 UTC",
+			"released: defect_score>=0.50 (the accepted candidate with the lowest estimated fnr)",
 			"every check passed but authentication, as it must: the demo's keys are published (exit 1)", "trend.png", "charted as unauthenticated"} {
 			if !strings.Contains(out, want) {
 				t.Errorf("demo output lacks %q:\n%s", want, out)
@@ -78,7 +79,7 @@ func TestDemoEndToEnd(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if m.Period != "2026-11" || m.SampleSize < 1000 || len(m.Strata) != 4 {
+	if m.Period != "2026-11" || m.SampleSize < 5000 || len(m.Strata) != 16 || m.Measures == nil {
 		t.Fatalf("manifest period %q, n %d, %d strata", m.Period, m.SampleSize, len(m.Strata))
 	}
 	for _, f := range []string{drawfolder.WorksheetFile, drawfolder.LedgerFile} {
@@ -110,15 +111,17 @@ func TestDemoEndToEnd(t *testing.T) {
 	for _, c := range rec.Candidates {
 		verdicts[c.Name] = c.Verdict
 	}
-	if len(rec.Candidates) != 3 || rec.OverallVerdict != record.Accept {
-		t.Fatalf("want 3 candidates and an overall ACCEPT (require any), got %d, %s: %v", len(rec.Candidates), rec.OverallVerdict, verdicts)
+	if len(rec.Candidates) != 3 || rec.OverallVerdict != record.Accept || rec.Released == nil || rec.Released.Candidate != "defect_score>=0.50" {
+		t.Fatalf("want 3 candidates, an overall ACCEPT and defect_score>=0.50 released, got %d, %s, %v: %v", len(rec.Candidates), rec.OverallVerdict, rec.Released, verdicts)
 	}
-	// The scenario's true error rates in November (sampling/demolog): 3.1 %
-	// at 0.35, 0.67 % at 0.50, 0.80 % at 0.65, against a 2 % ceiling.
+	// The scenario's true values in November (sampling/demolog): miss
+	// rates 3.5 %, 10.9 %, 25.2 % and errors 3.1 %, 0.67 %, 0.80 % at
+	// 0.35, 0.50, 0.65, against ceilings of 20 % and 2 %: only 0.50 meets
+	// both, so the release rule (best:fnr) picks it.
 	for name, v := range verdicts {
-		want := record.Accept
-		if strings.Contains(name, "0.35") {
-			want = record.Reject
+		want := record.Reject
+		if strings.Contains(name, "0.50") {
+			want = record.Accept
 		}
 		if v != want {
 			t.Errorf("candidate %s: verdict %s, want %s", name, v, want)
@@ -163,8 +166,17 @@ func TestDemoEndToEnd(t *testing.T) {
 		t.Errorf("the unsure items are at items %v in October and %v in November", oct, nov)
 	}
 
-	if !rec.Demonstration || len(rec.Caveats) != 2 {
-		t.Errorf("the November record: demonstration %v, caveats %+v (want the two accepted thresholds qualified by label error)", rec.Demonstration, rec.Caveats)
+	// The label error the doubled items show (2 of 60) qualifies the
+	// accepted claims whose margin it can consume: both miss rates (the
+	// positives are 3 % of decisions) and both overall errors.
+	caveated := map[string]bool{}
+	for _, c := range rec.Caveats {
+		if c.Kind == record.CaveatLabelErrorMargin {
+			caveated[strings.Fields(c.Text)[0]+" "+c.Candidate] = true
+		}
+	}
+	if !rec.Demonstration || len(rec.Caveats) != 4 || !caveated["fnr defect_score>=0.50"] || !caveated["error defect_score>=0.50"] {
+		t.Errorf("the November record: demonstration %v, caveats %+v", rec.Demonstration, rec.Caveats)
 	}
 
 	// An independent verify run on the artifacts: every check passes but
@@ -200,7 +212,7 @@ func TestDemoEndToEnd(t *testing.T) {
 			t.Fatal(err)
 		}
 		for _, want := range []string{"ACCEPT", "REJECT", "safety case", "licensed", "Label quality", "Gwet's AC1",
-			"Signed electronically by Maren Tøllefsen on 2026-12-01 11:30:00 UTC", "NOT SIGNED", "DEMONSTRATION — the scenario"} {
+			"Signed electronically by Maren Tøllefsen on 2026-12-02 11:30:00 UTC", "Released", "defect_score>=0.50", "fnr", "NOT SIGNED", "DEMONSTRATION — the scenario"} {
 			if !bytes.Contains(txt, []byte(want)) {
 				t.Errorf("record.pdf text lacks %q", want)
 			}

@@ -24,10 +24,12 @@ import (
 
 // drawOptions are the flags of probity draw.
 type drawOptions struct {
-	planPath   string
-	logPath    string
-	out        string
-	check      string
+	planPath string
+	logPath  string
+	out      string
+	check    string
+	// json prints the draw as one JSON object instead of the summary.
+	json       bool
 	format     string
 	id         string
 	strata     []string
@@ -144,6 +146,9 @@ Labels written into the worksheets since the draw are not differences.
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			opts.minPerSet = cmd.Flags().Changed("min-per-stratum")
 			opts.allocationSet, opts.roundingSet = cmd.Flags().Changed("allocation"), cmd.Flags().Changed("rounding")
+			if opts.json && (opts.check != "" || cmd.Flags().Changed("sql") || cmd.Flags().Changed("selected")) {
+				return inputerr.Errorf("--json applies to a draw from a log file").WithHint("drop --json")
+			}
 			if cmd.Flags().Changed("rounding") && opts.allocation != sampling.Proportional {
 				return inputerr.Errorf("--rounding applies to --allocation proportional only").WithHint("drop --rounding")
 			}
@@ -179,6 +184,7 @@ Labels written into the worksheets since the draw are not differences.
 	fl.StringVar(&opts.timeColumn, "time-column", "", "the log `COLUMN` that dates each decision: record the first and last time and the days without rows (default: the plan's time_column)")
 	fl.StringVar(&opts.days, "days", "", "the days the log should cover, `FROM/TO` (YYYY-MM-DD, both included), for --time-column (default: the --period's month)")
 	fl.BoolVar(&opts.force, "force", false, "write into a non-empty output folder")
+	fl.BoolVar(&opts.json, "json", false, "print one JSON object (the strata and, for a plan with measures, each claim's test) instead of the summary")
 	fl.BoolVarP(&opts.quiet, "quiet", "q", false, "no progress bar")
 	fl.StringVar(&opts.maxLine, "max-line", "", maxLineHelp)
 	hookDrawSQL(d, cmd, opts) // --sql, --table, --selected: draw_sql.go
@@ -374,6 +380,9 @@ func runDraw(d deps, o *drawOptions) error {
 		Alloc:  o.allocOptions(),
 		Double: o.double, Dedupe: o.dedupe == "first", MaxLine: o.parsedMaxLine, ToolVersion: d.version,
 	}
+	if err := addDrawMeasures(o, &in); err != nil {
+		return err
+	}
 	if o.allocation == sampling.Neyman {
 		if st := p.Stratification; st != nil && o.anticipated == "" && len(o.bands) == 0 {
 			in.Alloc.Anticipated = st.Rates()
@@ -402,11 +411,14 @@ func runDraw(d deps, o *drawOptions) error {
 	if err := drawfolder.Write(o.out, f, safewrite.FolderOptions{Replace: o.force, Protected: o.inputs()}); err != nil {
 		return drawError(err)
 	}
-	writeDrawSummary(d.stdout, o.out, f)
 	if c := f.Manifest.Completeness; c != nil && !c.Complete() {
-		fmt.Fprintf(d.stderr, "probity: warning: the log does not cover days %s to %s: %s without rows, %s dated outside them; the record will say so on page 1\n",
+		defer fmt.Fprintf(d.stderr, "probity: warning: the log does not cover days %s to %s: %s without rows, %s dated outside them; the record will say so on page 1\n",
 			c.From, c.To, plural(c.EmptyDayCount, "day"), plural(int(c.RowsBefore+c.RowsAfter), "row"))
 	}
+	if o.json {
+		return writeDrawJSON(d.stdout, o.out, p, f.Manifest)
+	}
+	writeDrawSummary(d.stdout, o.out, f)
 	return writeDrawRule(d.stdout, p, f.Manifest)
 }
 

@@ -26,8 +26,16 @@ func drawRule(p *plan.File, m *drawfolder.Manifest) (*verdict.Applied, error) {
 // an item, and under the stratified count rule its acceptance number, the
 // items it counts and its producer's risk at the anticipated errors.
 func writeDrawRule(w io.Writer, p *plan.File, m *drawfolder.Manifest) error {
+	if m.Measures != nil && m.Measures.Departure != nil {
+		d := m.Measures.Departure
+		fmt.Fprintf(w, "note: this log's %s holds %s of decisions where the plan assumed %s: the plan's design was sized for other shares (plan again with anticipated values that fit this log)\n",
+			d.Cell, numfmt.Chance(d.LogShare), numfmt.Chance(d.PlanShare))
+	}
 	if m.Allocation.Note != "" {
 		fmt.Fprintf(w, "allocation note: %s\n", m.Allocation.Note)
+	}
+	if p.Measures != nil && m.Measures != nil {
+		return writeDrawMeasures(w, p, m)
 	}
 	a, err := drawRule(p, m)
 	if err != nil {

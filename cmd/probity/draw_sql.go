@@ -62,7 +62,16 @@ The import checks the selection against the counts (the table counted again
 must give the same strata) and the manifest records the counts file's
 SHA-256. Both queries end with FORMAT CSVWithNames, which writes ids exactly.
 Never set skip_unavailable_shards (the queries pin it to 0): a shard that does
-not answer must fail the query, not drop its rows.`
+not answer must fail the query, not drop its rows.
+
+A plan with measures draws in the same two steps in every dialect: its
+strata are the user's crossed with the candidates' predictions (as in a draw
+from a file), and its design is sized again on the counted strata, which
+only probity can do. --sql postgres --table NAME then prints the counts
+query; --sql postgres --counts counts.csv the selection query, which holds
+each stratum's n_h; --counts counts.csv --selected selected.csv --out DIR
+imports it, and the manifest holds the same measures block as a draw from
+a file.`
 
 // hookDrawSQL adds --sql, --table and --selected to the draw command and
 // routes the command to the SQL paths when they are given; otherwise the
@@ -144,13 +153,8 @@ func (so *drawSQLOptions) validate(c *cobra.Command, o *drawOptions) error {
 		}
 		return nil
 	}
-	dialect, err := sqlquery.ParseDialect(so.dialect)
-	if err != nil {
+	if _, err := sqlquery.ParseDialect(so.dialect); err != nil {
 		return inputerr.Errorf("--sql: %v", err).WithHint("e.g. --sql postgres")
-	}
-	if so.counts != "" && !dialect.TwoStep() {
-		return inputerr.Errorf("--counts cannot be used with --sql %s", dialect).
-			WithHint("--sql " + string(dialect) + " prints one query that counts and selects; --counts is for --sql clickhouse")
 	}
 	if so.table == "" && so.counts == "" {
 		return inputerr.Errorf("--sql needs --table").WithHint("name the table or view holding the prediction log, e.g. --table analytics.predictions")
@@ -207,22 +211,33 @@ func drawSpec(d deps, o *drawOptions, so *drawSQLOptions, planPath string) (*sql
 	if o.allocation == sampling.Proportional {
 		rounding = o.rounding
 	}
-	s := &sqlquery.Spec{
-		Format: sqlquery.QueryFormat, ToolVersion: d.version, Dialect: sqlquery.Dialect(so.dialect),
-		PlanFingerprint: fp, Seed: p.Seed, Period: o.period, SelectionSeed: p.Seed,
-		Table: so.table, IDColumn: o.id, Strata: o.strata, Show: o.show,
-		Candidates: p.Candidates, SampleSize: p.Rule.SampleSize,
-		Allocation: o.allocation, MinPerStratum: minPer, Spare: o.spare, Double: o.double, Rounding: rounding,
-	}
-	if o.period != "" {
-		s.SelectionSeed = sampling.PeriodSeed(p.Seed, o.period)
-	}
+	var bands []sampling.Band
 	for _, b := range o.bands {
 		pb, err := sampling.ParseBand(b)
 		if err != nil {
 			return nil, inputerr.Errorf("--band: %v", err).WithHint("e.g. --band score=0.5,0.9")
 		}
-		s.Bands = append(s.Bands, pb.String())
+		bands = append(bands, pb)
+	}
+	strata, bands, rule, err := sqlStrata(o, p, bands)
+	if err != nil {
+		return nil, err
+	}
+	if rule == sampling.Measures {
+		minPer, rounding = 0, ""
+	}
+	s := &sqlquery.Spec{
+		Format: sqlquery.QueryFormat, ToolVersion: d.version, Dialect: sqlquery.Dialect(so.dialect),
+		PlanFingerprint: fp, Seed: p.Seed, Period: o.period, SelectionSeed: p.Seed,
+		Table: so.table, IDColumn: o.id, Strata: strata, Show: o.show,
+		Candidates: p.Candidates, SampleSize: sqlquery.SampleSize(p),
+		Allocation: rule, MinPerStratum: minPer, Spare: o.spare, Double: o.double, Rounding: rounding,
+	}
+	if o.period != "" {
+		s.SelectionSeed = sampling.PeriodSeed(p.Seed, o.period)
+	}
+	for _, b := range bands {
+		s.Bands = append(s.Bands, b.String())
 	}
 	for _, w := range o.where {
 		pf, err := sampling.ParseFilter(w)
@@ -232,6 +247,18 @@ func drawSpec(d deps, o *drawOptions, so *drawSQLOptions, planPath string) (*sql
 		s.Where = append(s.Where, pf.String())
 	}
 	return s, nil
+}
+
+// sqlStrata returns the strata columns, bands and allocation rule of a
+// draw inside a database: the flags', and for a plan with measures the
+// plan's prediction strata after them, added as the draw from a file adds
+// them (addDrawMeasures).
+func sqlStrata(o *drawOptions, p *plan.File, bands []sampling.Band) ([]string, []sampling.Band, string, error) {
+	in := sampling.DrawInput{Plan: p, StrataColumns: append([]string(nil), o.strata...), Bands: bands, Alloc: sampling.AllocOptions{Rule: o.allocation}}
+	if err := addDrawMeasures(o, &in); err != nil {
+		return nil, nil, "", err
+	}
+	return in.StrataColumns, in.Bands, in.Alloc.Rule, nil
 }
 
 // sqlFlags names the flag of each setting of a query's Spec, by its JSON
@@ -251,7 +278,7 @@ func runDrawSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOptions) er
 	if err != nil {
 		return err
 	}
-	if s.Dialect.TwoStep() {
+	if s.TwoStep() {
 		return printCountsQuery(d, o, s)
 	}
 	q, err := sqlquery.Query(s)
@@ -277,7 +304,7 @@ func printCountsQuery(d deps, o *drawOptions, s *sqlquery.Spec) error {
 	if _, err := io.WriteString(d.stdout, q); err != nil {
 		return err
 	}
-	noteQuerySize(d, q)
+	noteQuerySize(d, s.Dialect, q)
 	if !o.quiet {
 		fmt.Fprintf(d.stderr, "probity: counts query (step 1 of 2) for %s on %s, sha256 %s\n", s.Dialect, s.Table, drawfolder.SHA256Hex([]byte(q)))
 		fmt.Fprintf(d.stderr, "probity: run it, save the result as CSV with a header, then: probity draw --plan %s --sql %s --counts COUNTS.csv > selection.sql\n", o.planPath, s.Dialect)
@@ -287,8 +314,8 @@ func printCountsQuery(d deps, o *drawOptions, s *sqlquery.Spec) error {
 
 // noteQuerySize warns when a ClickHouse query is longer than the server
 // parses by default.
-func noteQuerySize(d deps, q string) {
-	if len(q) > sqlquery.ClickHouseMaxQuerySize {
+func noteQuerySize(d deps, dialect sqlquery.Dialect, q string) {
+	if dialect == sqlquery.ClickHouse && len(q) > sqlquery.ClickHouseMaxQuerySize {
 		fmt.Fprintf(d.stderr, "probity: the query is %d bytes, more than ClickHouse parses by default (max_query_size %d)\nhint: run it with clickhouse-client --max_query_size=%d\n",
 			len(q), sqlquery.ClickHouseMaxQuerySize, len(q)+1)
 	}
@@ -301,11 +328,15 @@ func runDrawSelectionSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOp
 	if err != nil {
 		return err
 	}
+	if dialect := sqlquery.Dialect(so.dialect); !dialect.TwoStep() && p.Measures == nil {
+		return inputerr.Errorf("--counts cannot be used with --sql %s", dialect).
+			WithHint("--sql " + string(dialect) + " prints one query that counts and selects; --counts is for --sql clickhouse, or for a plan with measures")
+	}
 	counts, err := sqlquery.ReadCounts(so.counts, d.stdin, p, fp)
 	if err != nil {
 		return drawError(err)
 	}
-	if err := checkResultFlags(so.counts, c, o, so, counts.Spec); err != nil {
+	if err := checkResultFlags(so.counts, c, o, so, p, counts.Spec); err != nil {
 		return err
 	}
 	q, err := sqlquery.SelectionQuery(counts)
@@ -315,7 +346,7 @@ func runDrawSelectionSQL(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOp
 	if _, err := io.WriteString(d.stdout, q); err != nil {
 		return err
 	}
-	noteQuerySize(d, q)
+	noteQuerySize(d, counts.Spec.Dialect, q)
 	if !o.quiet {
 		n, spares := 0, 0
 		for _, a := range counts.Strata {
@@ -364,7 +395,7 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 	} else if res, err = sqlquery.Import(so.selected, d.stdin, p, fp); err != nil {
 		return drawError(err)
 	}
-	if err := checkResultFlags(so.selected, c, o, so, res.Spec); err != nil {
+	if err := checkResultFlags(so.selected, c, o, so, p, res.Spec); err != nil {
 		return err
 	}
 	drawn, err := drawTime(d, o, p)
@@ -391,13 +422,29 @@ func runDrawSelected(d deps, c *cobra.Command, o *drawOptions, so *drawSQLOption
 // --counts) that differs from the one the result file was made with: the
 // result carries its settings, and a differing flag means the wrong result
 // or the wrong command line.
-func checkResultFlags(file string, c *cobra.Command, o *drawOptions, so *drawSQLOptions, s *sqlquery.Spec) error {
+func checkResultFlags(file string, c *cobra.Command, o *drawOptions, so *drawSQLOptions, p *plan.File, s *sqlquery.Spec) error {
+	var parsed []sampling.Band
 	bands := make([]string, len(o.bands))
 	for i, b := range o.bands {
-		if pb, err := sampling.ParseBand(b); err == nil {
-			bands[i] = pb.String()
-		} else {
+		pb, err := sampling.ParseBand(b)
+		if err != nil {
 			bands[i] = b
+			continue
+		}
+		parsed = append(parsed, pb)
+	}
+	strata := o.strata
+	rule := o.allocation
+	if len(parsed) == len(o.bands) {
+		// for a plan with measures, the flags' strata and bands with the
+		// prediction strata after them, as the query was printed
+		var err error
+		if strata, parsed, rule, err = sqlStrata(o, p, parsed); err != nil {
+			return err
+		}
+		bands = make([]string, len(parsed))
+		for i, b := range parsed {
+			bands[i] = b.String()
 		}
 	}
 	where := make([]string, len(o.where))
@@ -415,11 +462,11 @@ func checkResultFlags(file string, c *cobra.Command, o *drawOptions, so *drawSQL
 		{"sql", so.dialect, string(s.Dialect)},
 		{"table", so.table, s.Table},
 		{"id", o.id, s.IDColumn},
-		{"strata", strings.Join(o.strata, ","), strings.Join(s.Strata, ",")},
+		{"strata", strings.Join(strata, ","), strings.Join(s.Strata, ",")},
 		{"band", strings.Join(bands, " "), strings.Join(s.Bands, " ")},
 		{"where", strings.Join(where, " "), strings.Join(s.Where, " ")},
 		{"show", strings.Join(o.show, ","), strings.Join(s.Show, ",")},
-		{"allocation", o.allocation, s.Allocation},
+		{"allocation", rule, s.Allocation},
 		{"min-per-stratum", strconv.Itoa(o.minPer), strconv.Itoa(s.MinPerStratum)},
 		{"rounding", o.rounding, s.Rounding},
 		{"spare", strconv.Itoa(o.spare), strconv.Itoa(s.Spare)},

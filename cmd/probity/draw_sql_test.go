@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"probity/plan/testkit/pgtest"
 	"probity/sampling/drawfolder"
@@ -270,5 +271,39 @@ func TestDrawSQLFlags(t *testing.T) {
 		if code != exitBadInput || !strings.Contains(stderr, c.want) || stdout != "" {
 			t.Errorf("%v: exit %d, stdout %q, stderr:\n%s\nwant exit 2 and %q", c.args, code, stdout, stderr, c.want)
 		}
+	}
+}
+
+// TestDrawSQLQueryNotFitted: on a console 100 columns wide (deps.width),
+// the printed query passes unchanged, as --json output does: the fitting
+// of people's output must not break a query's literals at their spaces
+// (the seed, the draw description, a band's pattern), which would make it
+// another query than the one the import rebuilds.
+func TestDrawSQLQueryNotFitted(t *testing.T) {
+	t.Parallel()
+	args := []string{"draw", "--plan", sqlPlan, "--sql", "postgres", "--table", "t", "--band", "score=0.5", "-q"}
+	code, narrow, stderr := runTest(t, args, withVersion("test"), atTime(time.Date(2026, 12, 1, 7, 15, 0, 0, time.UTC)))
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	code, wide, stderr := runTest(t, args, withVersion("test"), atTime(time.Date(2026, 12, 1, 7, 15, 0, 0, time.UTC)), withWidth(consoleWidth))
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if wide != narrow {
+		t.Errorf("the query printed on a 100-column console differs from the query itself")
+	}
+	long := false
+	for _, l := range strings.Split(wide, "\n") {
+		long = long || len(l) > consoleWidth
+	}
+	if !long {
+		t.Errorf("the query has no line over %d columns; the test no longer tests the fitting", consoleWidth)
+	}
+	planArgs := []string{"plan", "--ceiling", "0.05", "--confidence", "0.95", "--anticipated", "0.01", "--thresholds", "score:0.35,0.5", "--positive", "fraud", "--negative", "ok", "--json"}
+	_, jsonNarrow, _ := runTest(t, planArgs, withVersion("test"), atTime(time.Date(2026, 12, 1, 7, 15, 0, 0, time.UTC)), withRandom(bytes.Repeat([]byte{7}, 64)))
+	_, jsonWide, _ := runTest(t, planArgs, withVersion("test"), atTime(time.Date(2026, 12, 1, 7, 15, 0, 0, time.UTC)), withRandom(bytes.Repeat([]byte{7}, 64)), withWidth(consoleWidth))
+	if jsonNarrow == "" || jsonWide != jsonNarrow {
+		t.Errorf("plan --json on a 100-column console differs from its output elsewhere")
 	}
 }

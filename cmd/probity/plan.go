@@ -18,7 +18,8 @@ import (
 // planOptions are the flags of probity plan. Numbers are read as strings
 // so a malformed one gets a sentence naming its flag.
 type planOptions struct {
-	ceiling, confidence, candidates, anticipated, producerRisk, population, budget string
+	ceiling, confidence, candidates, producerRisk, population, budget string
+	anticipated                                                       []string
 
 	method, multiplicity, design, require string
 	out                                   string
@@ -41,6 +42,8 @@ type planOptions struct {
 	mSet        bool
 	declared    []plan.Candidate
 	classesList []string
+
+	measures measureOptions // plan_measure.go
 }
 
 // newPlanCommand builds `probity plan`.
@@ -117,7 +120,7 @@ tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.ceiling, "ceiling", "", "the error rate `P` that must not be exceeded, in (0, 1)")
 	fl.StringVar(&o.confidence, "confidence", "", "the confidence `C` = 1 − δ, in (0, 1), e.g. 0.95")
 	fl.StringVar(&o.candidates, "candidates", "1", "`M`, the number of models or thresholds judged on the same sample")
-	fl.StringVar(&o.anticipated, "anticipated", "", "`P0`, the error a good model is expected to have (below the ceiling)")
+	fl.StringArrayVar(&o.anticipated, "anticipated", nil, "`P0`, the error a good model is expected to have (below the ceiling); with --measure also NAME:VALUE for every candidate, or NAME:V1,V2,… one per candidate in declared order (repeatable; with --prevalence two measures fix each candidate's confusion matrix, e.g. fnr and error)")
 	fl.StringVar(&o.producerRisk, "producer-risk", "0.10", "`RISK`: the largest allowed chance of rejecting a model whose error is p0")
 	fl.StringVar(&o.population, "population", "", "`N`, when the audit covers one batch of N decisions (hypergeometric)")
 	fl.StringVar(&o.method, "method", plan.MethodExact.String(), "the decision `RULE`: exact, hoeffding or kl")
@@ -136,6 +139,7 @@ tool version; its SHA-256 identifies the plan later.
 	fl.StringVar(&o.negative, "negative", "", "the negative `LABEL` (with --thresholds)")
 	fl.StringVar(&o.system, "system", "", "the `NAME` of the classifier under audit")
 	fl.StringVar(&o.systemVersion, "system-version", "", "the `VERSION` of the classifier under audit")
+	addMeasureFlags(fl, &o.measures) // plan_measure.go
 	fl.StringVar(&o.date, "date", "", dateFlagUsage("the plan was made"))
 	fl.StringVar(&o.timeColumn, "time-column", "", "the log `COLUMN` that dates each decision: every draw reads it and records the days of the period without rows")
 	addPlanStrataFlags(cmd, &o.strata)
@@ -164,6 +168,9 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	changed := cmd.Flags().Changed
 	if o.budget != "" {
 		return o.validateBudget(changed)
+	}
+	if err := o.measures.validate(o, changed); err != nil {
+		return err
 	}
 	if err := parseDateFlag(o.date); err != nil {
 		return err
@@ -197,11 +204,9 @@ func (o *planOptions) validate(cmd *cobra.Command) error {
 	}
 	in.CandidateCount = int(m)
 	o.mSet = changed("candidates")
-	if o.anticipated != "" {
-		p0, err := parseNumber("anticipated", o.anticipated)
-		if err != nil {
-			return err
-		}
+	if p0, ok, err := o.legacyAnticipated(); err != nil {
+		return err
+	} else if ok {
 		in.Anticipated = &p0
 	}
 	if o.population != "" {
@@ -383,6 +388,9 @@ func (o *planOptions) parseCandidates() error {
 				return err
 			}
 		}
+	case o.negative == "" && o.positive != "" && o.measures.declared():
+		// the positive (critical) class of the measures, checked below
+		// against --classes
 	case o.positive != "" || o.negative != "":
 		return inputerr.Errorf("--positive and --negative go with --thresholds; with --candidate list the labels in --classes")
 	}
@@ -399,6 +407,9 @@ func (o *planOptions) parseCandidates() error {
 		}
 		if len(o.classesList) < 2 {
 			return inputerr.Errorf("--classes %q: list at least two labels", o.classes)
+		}
+		if o.thresholds == "" && o.positive != "" && !slices.Contains(o.classesList, o.positive) {
+			return inputerr.Errorf("--positive %q is not among --classes %q", o.positive, o.classes)
 		}
 		if o.thresholds != "" {
 			for _, l := range []string{o.positive, o.negative} {
@@ -441,6 +452,9 @@ func runPlan(d deps, o *planOptions) error {
 	if err := applyStrata(f, &o.strata); err != nil {
 		return err
 	}
+	if err := applyMeasures(f, o); err != nil {
+		return err
+	}
 	var fingerprint string
 	if o.out != "" {
 		data, err := f.Marshal()
@@ -454,6 +468,9 @@ func runPlan(d deps, o *planOptions) error {
 	}
 	if o.json {
 		return writePlanJSON(d.stdout, f, o.out, fingerprint, &o.strata)
+	}
+	if f.Measures != nil {
+		return writeMeasuresReport(d.stdout, f, o.out, fingerprint)
 	}
 	return writePlanReport(d.stdout, f, o.out, fingerprint, &o.strata)
 }

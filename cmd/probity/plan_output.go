@@ -60,6 +60,7 @@ type planJSON struct {
 	Fingerprint            *string              `json:"fingerprint"`
 	Sequential             *planSequentialJSON  `json:"sequential"`
 	Stratification         *plan.Stratification `json:"stratification,omitempty"`
+	Measures               *plan.Measures       `json:"measures,omitempty"`
 }
 
 // planOC is the plan's OC curve: 21 points, exact; for a sequential design
@@ -101,7 +102,7 @@ func writePlanJSON(w io.Writer, f *plan.File, out, fingerprint string, so *planS
 		Ceiling: in.Ceiling, Confidence: in.Confidence, Candidates: in.CandidateCount,
 		Anticipated: in.Anticipated, ProducerRiskAllowed: in.ProducerRisk,
 		Comparison: map[string]*int64{}, Seed: f.Seed, CandidateNames: []string{},
-		Sequential: sequentialPlanJSON(f), Stratification: f.Stratification,
+		Sequential: sequentialPlanJSON(f), Stratification: f.Stratification, Measures: f.Measures,
 	}
 	if in.Population > 0 {
 		pop, d1 := in.Population, r.BadLotErrors

@@ -57,6 +57,12 @@ plan (probity plan --design sequential) stops at its own boundaries.
 Items labeled "unsure" count as errors toward acceptance and as correct
 toward rejection. Spare items are ignored.
 
+A plan with measures (probity plan --measure) is assessed claim by claim:
+each (measure, candidate) claim counts the items the draw fixed for it, and
+is decided only when every completion of its remaining counted labels gives
+the same verdict under the plan's multiplicity ("cannot pass" or "cannot
+fail whatever the remaining labels"); an unsure item counts as not labeled.
+
 ` + labelCellHelp + `
 
 ` + exitHelp("the worksheet was assessed, whatever the decision", "", false),
@@ -112,8 +118,12 @@ func runProgress(d deps, opts *progressOptions) error {
 	if err != nil {
 		return err
 	}
-	res, err := progress.Assess(progress.Input{Plan: p, Ledger: f.Ledger, Worksheet: l.Rows, WorksheetName: l.Path,
-		Strata: f.Manifest.Strata, Rates: f.Manifest.AnticipatedRates()})
+	in := progress.Input{Plan: p, Ledger: f.Ledger, Worksheet: l.Rows, WorksheetName: l.Path,
+		Strata: f.Manifest.Strata, Rates: f.Manifest.AnticipatedRates()}
+	if p.Measures != nil {
+		return runProgressMeasures(d, opts, fingerprint, in, f.Manifest)
+	}
+	res, err := progress.Assess(in)
 	if err != nil {
 		return err
 	}

@@ -101,6 +101,18 @@ of the worksheet without gaps and each candidate is judged by the plan's
 boundaries where they decide (probity progress says when to stop); items
 below that point may stay blank.
 
+A plan with error measures (plan --measure) is judged claim by claim: each
+measure of each candidate against its own ceiling, by the exact test the
+draw's design fixed before any label, under the plan's multiplicity over
+the family of claims; a candidate is accepted when all its claims are. The
+record shows every claim (labeled counts, estimate, one-sided upper bound,
+verdict), each candidate's estimated confusion in the population, and names
+the candidate the plan's release rule picks (--release): "released" is null,
+and record exits 1, when none qualifies. With --use safety, medical or
+vehicle such a plan must claim the miss rate (fnr) or the false omission
+rate (for), or state why not (plan --no-miss-measure-reason), which the
+record shows on page 1 as a deviation.
+
 The sign-off file names who is to prepare, review and approve the record
 and what each signature means; each key is optional. Its names and dates
 are printed as the intended signers, not as signatures: every role reads
@@ -114,8 +126,8 @@ zero-width or direction-overriding characters.
 
 ` + passphraseHelp + `
 
-` + exitHelp("the audit passes: every candidate the plan requires is accepted (the\nrecord is written)",
-			"the audit is rejected (the record is written)", true),
+` + exitHelp("the audit passes: every candidate the plan requires is accepted, or with\nmeasures the release rule names a candidate (the record is written)",
+			"the audit is rejected, or with measures no candidate qualifies for release\n(the record is written)", true),
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			return opts.validate()
@@ -237,7 +249,7 @@ func runRecord(d deps, o *recordOptions) error {
 		Revision: o.revision, Supersedes: o.supersedes, Demonstration: signature.IsDemoKey(keyFP),
 	})
 	if err != nil {
-		return recordHints(err, o)
+		return noMissMeasureHint(recordHints(err, o), o.use)
 	}
 	out, err := renderRecord(rec, o.paper, set, priv)
 	if err != nil {
@@ -310,16 +322,21 @@ func writeRecordSummary(d deps, o *recordOptions, rec *record.Record, files []na
 	if rec.Supersedes != "" {
 		fmt.Fprintf(w, "revision %d, superseding record %s\n", rec.Revision, rec.Supersedes)
 	}
-	fmt.Fprintf(w, "ceiling %s, confidence %s, %s\n", numfmt.Setting(rec.Plan.Ceiling), numfmt.Confidence(rec.Plan.Confidence), rec.Method.Bound)
-	width := 4
-	for _, c := range rec.Candidates {
-		width = max(width, len([]rune(c.Name)))
+	if len(rec.Measures) > 0 {
+		fmt.Fprintf(w, "confidence %s for all claims together\n", numfmt.Confidence(rec.Plan.Confidence))
+		writeMeasuresSummary(d, rec)
+	} else {
+		fmt.Fprintf(w, "ceiling %s, confidence %s, %s\n", numfmt.Setting(rec.Plan.Ceiling), numfmt.Confidence(rec.Plan.Confidence), rec.Method.Bound)
+		width := 4
+		for _, c := range rec.Candidates {
+			width = max(width, len([]rune(c.Name)))
+		}
+		for _, c := range rec.Candidates {
+			fmt.Fprintf(w, "  %-*s  %s  %s/%s errors, estimate %s, upper bound %s — %s\n", width, c.Name, c.Verdict, numfmt.Count(c.Errors), numfmt.Count(c.Labeled),
+				numfmt.Rate(c.Estimate), numfmt.RateUp(c.UpperBound), c.Reason)
+		}
+		fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
 	}
-	for _, c := range rec.Candidates {
-		fmt.Fprintf(w, "  %-*s  %s  %s/%s errors, estimate %s, upper bound %s — %s\n", width, c.Name, c.Verdict, numfmt.Count(c.Errors), numfmt.Count(c.Labeled),
-			numfmt.Rate(c.Estimate), numfmt.RateUp(c.UpperBound), c.Reason)
-	}
-	fmt.Fprintf(w, "overall: %s (%s)\n", rec.OverallVerdict, rec.Plan.Require.Title())
 	if t := rec.LabelTrail; t != nil {
 		fmt.Fprintf(w, "labels from the trail: %d events by %s, %s to %s, %d changed\n", t.Events, strings.Join(t.Labelers, ", "), t.FirstLabel, t.LastLabel, t.Changed)
 	}

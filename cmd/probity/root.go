@@ -27,7 +27,14 @@ func run(args []string, d deps) (code int) {
 	}
 	root := newRootCommand(d)
 	if fit != nil {
-		root.PersistentPreRun = func(c *cobra.Command, args []string) { fit.raw = machineOutput(c) }
+		// cobra runs a command's nearest PersistentPreRunE and skips a
+		// PersistentPreRun beside it, so the machine-output switch goes
+		// inside the root's hook.
+		pre := root.PersistentPreRunE
+		root.PersistentPreRunE = func(c *cobra.Command, args []string) error {
+			fit.raw = machineOutput(c)
+			return pre(c, args)
+		}
 	}
 	// An unknown command is cobra's to find and the user's to fix.
 	if _, _, err := root.Find(args); err != nil {

@@ -29,6 +29,9 @@ type trendOptions struct {
 	alpha    float64
 	chart    string
 	json     bool
+	// measure and candidate choose what a trend of records with measures
+	// charts.
+	measure, candidate string
 	// pub, signers and allowUnauthenticated say what the records are
 	// authenticated against, or that they may be charted without.
 	pub                  []string
@@ -75,6 +78,14 @@ record, the "unauthenticated" list of --json, and a red line on the chart.
 estimate and upper bound of every period against the ceiling) and PREFIX.pdf
 (one page: the chart above a table of every period).
 
+Records with measures (plans made with --measure) chart one measure's claim
+per period instead: its counted items and events, the weighted estimate, the
+one-sided upper bound and the claim's ceiling, for --measure (default: the
+first measure claimed) and --candidate (default: the candidate the latest
+record released, else every candidate), with the released candidate of each
+period. Their periods are not compared with a baseline (the estimates are
+weighted over strata sampled at different rates).
+
 ` + exitHelp("the latest period's record does not reject, and every record is authenticated",
 			"the latest period's record rejects (overall verdict REJECT), or a record cannot be\nauthenticated (without --allow-unauthenticated)", true),
 		Args: func(cmd *cobra.Command, args []string) error {
@@ -94,6 +105,8 @@ estimate and upper bound of every period against the ceiling) and PREFIX.pdf
 	fl := cmd.Flags()
 	fl.StringVar(&opts.baseline, "baseline", "", "the `PERIOD` every other period is compared with (default: the first)")
 	fl.Float64Var(&opts.alpha, "alpha", 0.05, "significance `LEVEL` of each one-sided comparison with the baseline, in (0, 0.5]")
+	fl.StringVar(&opts.measure, "measure", "", "for records with measures: the `NAME` charted, error, fnr, fpr, for or fdr (default: the first claimed)")
+	fl.StringVar(&opts.candidate, "candidate", "", "for records with measures: the candidate `NAME` charted (default: the latest record's released one, else all)")
 	fl.StringVar(&opts.chart, "chart", "", "write the chart to `PREFIX`.png and a one-page PREFIX.pdf")
 	fl.BoolVar(&opts.json, "json", false, "print one JSON object (stable keys) instead of the tables")
 	fl.StringArrayVar(&opts.pub, "pub", nil, "a public `KEY.pub` trusted to seal records; repeatable")
@@ -150,9 +163,9 @@ func runTrend(d deps, o *trendOptions) error {
 	if err := authenticateTrend(d, o, loaded); err != nil {
 		return err
 	}
-	t, err := trend.Build(loaded.Entries, trend.Options{Baseline: o.baseline, Alpha: o.alpha})
+	t, err := trend.Build(loaded.Entries, trend.Options{Baseline: o.baseline, Alpha: o.alpha, Measure: o.measure, Candidate: o.candidate})
 	if err != nil {
-		return trendInputError(err)
+		return trendInputError(flagNames(err, map[string]string{"measure": "--measure", "candidate": "--candidate"}))
 	}
 	if len(loaded.Skipped) > 0 {
 		what := "JSON files that are not records"
@@ -297,6 +310,10 @@ func trendShortList(xs []string, n int) string {
 // printTrend writes the human-readable trend: a heading, one table per
 // candidate and the latest verdict.
 func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
+	if t.Measure != nil {
+		printMeasureTrend(w, t, files)
+		return
+	}
 	c := t.Class
 	head := fmt.Sprintf("Trend of %s, %s to %s", countOf(len(t.Periods), "record", "records"), t.Periods[0].Label, t.Latest.Label)
 	if sys := strings.TrimSpace(t.System + " " + t.SystemVersion); sys != "" {

@@ -64,7 +64,9 @@ and every check it ran passed:
   - with --plan, --draw, --labels: each input's SHA-256 is the one the
     record holds; given all three, the judgement is recomputed and compared
     with record.json field by field (a record judged on double labels also
-    needs --second and, if it had one, --adjudicated);
+    needs --second and, if it had one, --adjudicated); for a plan with
+    measures every claim (counts, estimate, bound, verdict), the estimated
+    confusion matrices and the released candidate are recomputed too;
   - with --trail (a record made from a label trail): the trail's SHA-256
     is the record's, its hash chain holds, it belongs to the draw, and the
     labeled worksheets derived from it again give the same judgement;

@@ -18,14 +18,15 @@ import (
 var notPathFlags = map[string][]string{
 	"plan": {"allocation", "anticipated", "budget", "candidate", "candidates", "ceiling", "classes", "confidence", "date", "design", "method",
 		"multiplicity", "negative", "population", "positive", "producer-risk", "require", "seed", "system", "system-version",
-		"thresholds", "time-column", "rounding", "stratum-anticipated", "stratum-sizes"},
+		"thresholds", "time-column", "rounding", "stratum-anticipated", "stratum-sizes",
+		"decisions", "measure", "no-miss-measure-reason", "prevalence", "release"},
 	"draw": {"allocation", "band", "date", "days", "dedupe", "format", "id", "period", "show", "max-line", "sql", "strata",
 		"table", "time-column", "where", "rounding"},
 	"record": {"bound", "date", "paper", "use", "supersedes"},
 	"sign":   {"role", "name"},
 	"verify": {"max-line"},
 	"label":  {"bind"},
-	"trend":  {"baseline"},
+	"trend":  {"baseline", "measure", "candidate"},
 }
 
 func TestEveryStringFlagIsKnownAsAPathOrNot(t *testing.T) {

@@ -138,7 +138,7 @@ func drawChart(t *trend.Trend, dc draw.Canvas) error {
 		p.Draw(canvases[i][0])
 		data := p.DataCanvas(canvases[i][0])
 		left = data.Min.X
-		panelTitle(canvases[i][0], data.Min.X, s, t.Alpha)
+		panelTitle(canvases[i][0], data.Min.X, s, t)
 	}
 	drawHeader(t, header, left)
 	return nil
@@ -171,7 +171,7 @@ func panel(t *trend.Trend, s trend.Series, ymax float64, bottom bool) (*plot.Plo
 		ax.LineStyle.Color = mutedCol
 		ax.Tick.LineStyle.Color = mutedCol
 	}
-	p.Y.Label.Text = "error rate"
+	p.Y.Label.Text = t.Quantity()
 	p.Y.Tick.Marker = percentTicks{}
 	ticks := make([]plot.Tick, n)
 	for i, per := range t.Periods {
@@ -277,7 +277,8 @@ func panel(t *trend.Trend, s trend.Series, ymax float64, bottom bool) (*plot.Plo
 }
 
 // panelTitle writes the candidate's name and its flags above its panel.
-func panelTitle(c draw.Canvas, left vg.Length, s trend.Series, alpha float64) {
+func panelTitle(c draw.Canvas, left vg.Length, s trend.Series, t *trend.Trend) {
+	alpha := t.Alpha
 	y := c.Max.Y + 3
 	name := style(sansBold(10), inkCol)
 	c.FillText(name, vg.Point{X: left, Y: y}, s.Name)
@@ -285,6 +286,8 @@ func panelTitle(c draw.Canvas, left vg.Length, s trend.Series, alpha float64) {
 	var note string
 	col := mutedCol
 	switch {
+	case t.Measure != nil:
+		note = "each period's claim on " + t.Measure.Measure + "; no comparison between periods"
 	case !s.Tested:
 		note = "not in the baseline period: not tested"
 	case len(s.Flagged) > 0:
@@ -300,6 +303,9 @@ func panelTitle(c draw.Canvas, left vg.Length, s trend.Series, alpha float64) {
 func drawHeader(t *trend.Trend, c draw.Canvas, left vg.Length) {
 	first, last := t.Periods[0].Label, t.Latest.Label
 	title := fmt.Sprintf("Error per period against the ceiling, %s to %s", first, last)
+	if t.Measure != nil {
+		title = fmt.Sprintf("%s — %s — per period against the ceiling, %s to %s", t.Measure.Measure, t.Measure.Title, first, last)
+	}
 	tsty := style(sansBold(11.5), inkCol)
 	c.FillText(tsty, vg.Point{X: left, Y: c.Max.Y - 16}, title)
 	if n := len(t.Unauthenticated); n > 0 {
@@ -322,8 +328,10 @@ func drawHeader(t *trend.Trend, c draw.Canvas, left vg.Length) {
 	entry(est, "estimate")
 	entry(&plotter.Line{LineStyle: draw.LineStyle{Color: boundCol, Width: 2}}, "upper bound ("+boundLabel(t)+")")
 	entry(&plotter.Line{LineStyle: draw.LineStyle{Color: ceilingCol, Width: 1.4, Dashes: []vg.Length{6, 3}}}, "ceiling "+numfmt.Setting(t.Class.Ceiling))
-	entry(&plotter.Scatter{GlyphStyle: draw.GlyphStyle{Shape: thickRing{width: 1.4}, Color: flagCol, Radius: 4}},
-		"higher than "+t.Baseline+" (Fisher, one-sided)")
+	if t.Measure == nil {
+		entry(&plotter.Scatter{GlyphStyle: draw.GlyphStyle{Shape: thickRing{width: 1.4}, Color: flagCol, Radius: 4}},
+			"higher than "+t.Baseline+" (Fisher, one-sided)")
+	}
 	entry(&plotter.Line{LineStyle: draw.LineStyle{Color: rejectCol, Width: 2}}, "rejected")
 }
 

@@ -171,10 +171,16 @@ func (p *page) header(t *trend.Trend) {
 	c := t.Class
 	p.line(fmt.Sprintf("%d periods, %s to %s · %s model, %s method, %s design · ceiling %s at %s confidence",
 		len(t.Periods), t.Periods[0].Label, t.Latest.Label, c.Model, c.Method, c.Design, numfmt.Setting(c.Ceiling), numfmt.Confidence(c.Confidence)), 4.4)
-	p.line(fmt.Sprintf("Baseline %s · a period is flagged ↑ when Fisher's exact test (one-sided: error higher than the baseline's) gives p ≤ %s;",
-		t.Baseline, numfmt.Number(t.Alpha)), 4.4)
-	p.line(fmt.Sprintf("each of the %d comparisons per candidate is at that level (not adjusted for their number), whether or not the period passed.",
-		len(t.Periods)-1), 4.4)
+	if m := t.Measure; m != nil {
+		p.line(fitText(p.pdf, fmt.Sprintf("Measure %s, ceiling %s: each period's claim as its record judged it; periods are not compared (weighted estimates).",
+			m.Measure, numfmt.Setting(m.Ceiling)), p.w), 4.4)
+		p.line(fitText(p.pdf, "Released: "+releasedList(t), p.w), 4.4)
+	} else {
+		p.line(fmt.Sprintf("Baseline %s · a period is flagged ↑ when Fisher's exact test (one-sided: error higher than the baseline's) gives p ≤ %s;",
+			t.Baseline, numfmt.Number(t.Alpha)), 4.4)
+		p.line(fmt.Sprintf("each of the %d comparisons per candidate is at that level (not adjusted for their number), whether or not the period passed.",
+			len(t.Periods)-1), 4.4)
+	}
 	p.pdf.Ln(1)
 	col := accept
 	if t.Latest.OverallVerdict == record.Reject {
@@ -187,6 +193,20 @@ func (p *page) header(t *trend.Trend) {
 		p.line(fitText(p.pdf, fmt.Sprintf("UNAUTHENTICATED records charted (marked *): %d of %d, not authenticated by their signatures or not checked: %s",
 			len(t.Unauthenticated), len(t.Periods), strings.Join(t.Unauthenticated, ", ")), p.w), 4.8)
 	}
+}
+
+// releasedList is each period's released candidate ("none" when the
+// release rule released none), fitted to the page by the caller's width.
+func releasedList(t *trend.Trend) string {
+	var out []string
+	for i, per := range t.Periods {
+		name := t.Measure.Released[i]
+		if name == "" {
+			name = "none"
+		}
+		out = append(out, per.Label+" "+name)
+	}
+	return strings.Join(out, " · ")
 }
 
 // shortID is the first 12 digits of a record id.
@@ -287,6 +307,10 @@ func (p *page) table(t *trend.Trend, candW, size, rowH float64) {
 	pdf.Line(p.x, y, p.x+p.w, y)
 	p.font("", 7, muted)
 	pdf.Ln(0.8)
+	if t.Measure != nil {
+		p.line(fmt.Sprintf("%s: events/counted items of the claim, upper: its one-sided upper confidence bound; red bold: the claim was rejected. Ceiling %s.", t.Quantity(), numfmt.Setting(t.Class.Ceiling)), 3.6)
+		return
+	}
 	p.line(fmt.Sprintf("upper: one-sided upper confidence bound of the record; red bold: that candidate was rejected (its errors exceeded the plan's acceptance number). Ceiling %s.", numfmt.Setting(t.Class.Ceiling)), 3.6)
 }
 

@@ -1,6 +1,7 @@
 package measure
 
 import (
+	"fmt"
 	"testing"
 
 	"probity/plan"
@@ -79,4 +80,85 @@ func BenchmarkJudgeRatio(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
+}
+
+// demoSpec is the demo's weld-scan plan with measures: three thresholds,
+// fnr below 0.20 and error below 0.02 for each, 240 000 decisions at 3 %
+// prevalence, with the anticipated values given.
+func demoSpec(anticipated ...string) (Spec, *plan.File) {
+	th := func(v float64) *float64 { return &v }
+	var cands []plan.Candidate
+	for _, t := range []float64{0.35, 0.50, 0.65} {
+		cands = append(cands, plan.Candidate{Name: "defect_score>=" + fmtFloat(t), ScoreColumn: "defect_score", Threshold: th(t), Positive: "defect", Negative: "sound"})
+	}
+	spec := Spec{Candidates: cands, Positive: "defect", Prevalence: 0.03, Decisions: 240000, Anticipated: anticipated,
+		Confidence: 0.95, ProducerRisk: 0.1, Multiplicity: plan.Bonferroni, Release: "best:fnr"}
+	for _, m := range []string{"fnr", "error"} {
+		for _, c := range cands {
+			ceiling := 0.2
+			if m == "error" {
+				ceiling = 0.02
+			}
+			spec.Claims = append(spec.Claims, plan.MeasureClaim{Candidate: c.Name, Measure: m, Ceiling: ceiling})
+		}
+	}
+	f := &plan.File{Candidates: cands, Inputs: plan.Inputs{Confidence: 0.95, ProducerRisk: 0.1, Multiplicity: plan.Bonferroni}}
+	return spec, f
+}
+
+// demoNovember is the demo's November log drawn with --strata section:
+// four sections crossed with the four score bands (manifest.json's
+// strata).
+func demoNovember() ([]Stratum, [][]bool) {
+	sizes := [][4]int64{{41437, 1349, 426, 1345}, {101771, 3080, 762, 2087}, {79171, 2411, 686, 1822}, {3310, 123, 42, 178}}
+	var strata []Stratum
+	var flagged [][]bool
+	for u, row := range sizes {
+		for i, n := range row {
+			strata = append(strata, Stratum{Label: fmt.Sprintf("%d|%d", u, i), Population: n})
+			flagged = append(flagged, []bool{i >= 1, i >= 2, i >= 3})
+		}
+	}
+	return strata, flagged
+}
+
+// BenchmarkPeriodDesignDemo sizes the demo's plan on its November log's
+// sixteen strata (what draw does).
+func BenchmarkPeriodDesignDemo(b *testing.B) {
+	spec, f := demoSpec("fnr:0.10", "error:0.01")
+	m, err := BuildPlan(spec)
+	if err != nil {
+		b.Fatal(err)
+	}
+	f.Measures = m
+	strata, flagged := demoNovember()
+	var pd *PeriodDesign
+	for b.Loop() {
+		if pd, err = NewPeriodDesign(f, strata, flagged); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(m.Design.Total), "plan-labels")
+	b.ReportMetric(float64(sum(pd.Sample)), "draw-labels")
+}
+
+// BenchmarkPeriodDesignDemoRealistic is BenchmarkPeriodDesignDemo with
+// anticipated values near the November log's true ones (one per
+// threshold).
+func BenchmarkPeriodDesignDemoRealistic(b *testing.B) {
+	spec, f := demoSpec("fnr:0.035,0.11,0.25", "error:0.032,0.007,0.008")
+	m, err := BuildPlan(spec)
+	if err != nil {
+		b.Fatal(err)
+	}
+	f.Measures = m
+	strata, flagged := demoNovember()
+	var pd *PeriodDesign
+	for b.Loop() {
+		if pd, err = NewPeriodDesign(f, strata, flagged); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(m.Design.Total), "plan-labels")
+	b.ReportMetric(float64(sum(pd.Sample)), "draw-labels")
 }

@@ -121,17 +121,59 @@
 // The uniform comparison is the smallest proportional allocation meeting
 // the same claims; a design is never larger.
 //
+// # What a plan anticipates, and what the draw keeps
+//
+// A plan sizes its design on the cells every candidate predicts alike,
+// at the composition it anticipates: the prevalence and, per candidate,
+// two anticipated measures (--anticipated NAME:V for every candidate, or
+// NAME:V1,V2,… one per candidate) fix its confusion matrix, since every
+// measure is linear in its true and false positives. For thresholds on
+// one score the bands follow by difference, nested: FN_j = fnr_j·P and
+// FP_j from the other value, and a band between two thresholds holds the
+// difference of what they flag. Values that no nested composition
+// satisfies — a higher threshold with a lower fnr or a higher fpr than a
+// lower one — are refused, naming them. Equal values for every threshold
+// leave the bands between them empty, which the plan says. Label-column
+// candidates are taken to predict independently given the truth. The
+// plan file states the assumption (measures.assumes) and the cells.
+//
+// A claim anticipated at or above its ceiling (a threshold expected to
+// miss too much) is an expected failure: the design is sized for the
+// others and it is judged on what they label, keeping its consumer's risk
+// at its share of δ.
+//
+// The plan file keeps every claim's design on the cells (its counted
+// items, floor and c_B) and on the uniform sample, with their exact
+// producer's risks. Recheck verifies them when the plan is loaded without
+// searching again: each risk is recomputed exactly, each count checked
+// against the labels and the composition against the inputs, so an
+// edited plan passes only if it is again a valid plan with the risks it
+// states. NewPeriodDesign carries them to a period's strata — the
+// user's strata crossed with the cells, of the log's actual sizes —
+// counting as many items per side, adding labels only where a claim's
+// exact power on those strata falls short (meetOnStrata). On a log whose
+// bands hold what the plan anticipated, the draw labels what the plan
+// said (the demo's weld scans, three thresholds, fnr and error: the plan
+// 7 077, the November draw with four user strata 7 092, the October draw
+// 7 086); when the bands differ by more than a quarter, Departure names
+// the band.
+//
 // # Cost
 //
 // On one core of the development machine (bench_test.go): the label-column
 // plan with all five measures, about 0.5 s; the same at 10 000 000
 // decisions, about 1 s; three threshold candidates with all five measures
 // each (fifteen claims, 35 000 labels), about 5 s; judging a ratio claim,
-// about 0.3 ms.
+// about 0.3 ms. Carrying the demo's plan to its November log's sixteen
+// strata (BenchmarkPeriodDesignDemoRealistic), about 3 s; rechecking a
+// plan when it is loaded, about a millisecond (plan/planfile's
+// BenchmarkParseMeasures).
 //
 // # Entry points
 //
-// Search plans (Problem → Plan: Design and Uniform); ClaimDesign.Judge
+// BuildPlan and Recheck make and verify a plan file's measures;
+// NewPeriodDesign carries them to a period's strata; Search plans
+// (Problem → Plan: Design and Uniform); ClaimDesign.Judge
 // judges one claim at any level (its PValue and the verdict at a level are
 // what a multiplicity procedure needs: accepted at level α exactly when
 // PValue ≤ α); ClaimDesign.AcceptProbability is a claim's exact operating

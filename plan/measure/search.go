@@ -32,6 +32,21 @@ type Problem struct {
 	// MinPerStratum labels at least this many items in every stratum
 	// (capped at N_h), so that every stratum's rate has labels.
 	MinPerStratum int
+
+	// family, when set, is the size of the family δ is shared over, when
+	// the problem sizes only some of its claims (the others are judged
+	// too, on what the design labels).
+	family int
+	// cache, when set, keeps each claim's curves across searches of the
+	// same population and composition.
+	cache map[cacheKey]*claimPlan
+}
+
+// cacheKey names a claim's curves: they depend on the claim and its level
+// alone once the population and the composition are fixed.
+type cacheKey struct {
+	Claim
+	alpha float64
 }
 
 // Design is a labeled sample and how each claim is judged on it.
@@ -113,7 +128,11 @@ func (pr Problem) Validate() error {
 // Level is α, each claim's share of the family-wise risk δ = 1 −
 // Confidence under the multiplicity rule.
 func (pr Problem) Level() float64 {
-	return pr.Multiplicity.PerCandidateRisk(1-pr.Confidence, len(pr.Claims))
+	k := len(pr.Claims)
+	if pr.family > 0 {
+		k = pr.family
+	}
+	return pr.Multiplicity.PerCandidateRisk(1-pr.Confidence, k)
 }
 
 // claimPlan is the search's view of one claim: its sides, its curves and
@@ -176,7 +195,7 @@ func Search(pr Problem) (*Plan, error) {
 	plans := make([]*claimPlan, len(pr.Claims))
 	var ratios []*claimPlan
 	for i, c := range pr.Claims {
-		cp, err := newClaimPlan(pr, c, alpha)
+		cp, err := pr.claimPlan(c, alpha)
 		if err != nil {
 			return nil, err
 		}
@@ -195,18 +214,31 @@ func Search(pr Problem) (*Plan, error) {
 	}
 	// An incumbent: each ratio with its numerator at power √(1 − β) and
 	// the denominator side's first record completing it, given the base.
-	// Its total bounds every sub-sample an optimal design can count.
+	// Its total bounds every sub-sample an optimal design can count. The
+	// floors are tried in the order their numerators reach √(1 − β) at the
+	// probes m = 64·2^i, and each is scanned only as far as could still
+	// beat the best point so far (a point counting m items on a side adds
+	// at least m − Σ cur labels): a floor whose numerator barely reaches
+	// the power would otherwise be scanned to the end of its side.
 	cur := append([]int(nil), base...)
 	half := math.Sqrt(target)
 	for _, cp := range ratios {
 		best, bestCost := point{}, math.MaxInt
-		for f := range cp.floors {
-			ra, okA := cp.ca[f].first(half, int(cp.ca[f].scan.total))
+		for _, f := range cp.floorOrder(half) {
+			limit := int(cp.ca[f].scan.total)
+			if bestCost < math.MaxInt {
+				limit = min(limit, bestCost+sum(cur))
+			}
+			ra, okA := cp.ca[f].first(half, limit)
 			if !okA {
 				continue
 			}
 			cb := cp.bCurve(pr.Population, f, ra)
-			rb, okB := cb.first(target/ra.power, int(cb.scan.total))
+			limitB := int(cb.scan.total)
+			if bestCost < math.MaxInt {
+				limitB = min(limitB, bestCost+sum(cur))
+			}
+			rb, okB := cb.first(target/ra.power, limitB)
 			if !okB {
 				continue
 			}
@@ -237,6 +269,24 @@ func Search(pr Problem) (*Plan, error) {
 		design = uniform
 	}
 	return &Plan{Design: design, Uniform: uniform, Saving: float64(uniform.Total) / float64(design.Total)}, nil
+}
+
+// claimPlan is the claim's curves, from the problem's cache when it has
+// one (curves extend as a search asks; what was scanned stays valid).
+func (pr Problem) claimPlan(c Claim, alpha float64) (*claimPlan, error) {
+	if pr.cache == nil {
+		return newClaimPlan(pr, c, alpha)
+	}
+	k := cacheKey{c, alpha}
+	if cp, ok := pr.cache[k]; ok {
+		return cp, nil
+	}
+	cp, err := newClaimPlan(pr, c, alpha)
+	if err != nil {
+		return nil, err
+	}
+	pr.cache[k] = cp
+	return cp, nil
 }
 
 // newClaimPlan sets up a claim's curves.
@@ -297,6 +347,30 @@ func newClaimPlan(pr Problem, c Claim, alpha float64) (*claimPlan, error) {
 
 func (cp *claimPlan) infeasible(pr Problem, why string) error {
 	return fmt.Errorf("%w: %s cannot reach a producer's risk of %v %s", ErrInfeasible, cp.name(pr.Population), pr.ProducerRisk, why)
+}
+
+// floorOrder lists the ratio's floors by the first probe m = 64·2^i at
+// which the numerator's power reaches the target (floors that reach it at
+// no probe last, in their own order).
+func (cp *claimPlan) floorOrder(target float64) []int {
+	at := make([]int, len(cp.floors))
+	order := make([]int, len(cp.floors))
+	for f, ca := range cp.ca {
+		order[f], at[f] = f, math.MaxInt
+		total := int(ca.scan.total)
+		for probe := 64; ; probe *= 2 {
+			probe = min(probe, total)
+			if ca.probe(probe) >= target {
+				at[f] = probe
+				break
+			}
+			if probe == total {
+				break
+			}
+		}
+	}
+	sort.SliceStable(order, func(i, j int) bool { return at[order[i]] < at[order[j]] })
+	return order
 }
 
 // point is the frontier point of floor f with records ra (numerator

@@ -6,8 +6,11 @@
 // right types, each error located by line and field), checks the
 // structure, recomputes the rule, the risks and the comparison from the
 // inputs (plan.File.Check), verifies any sequential boundaries
-// (sequential.Check) and, for a plan sized for a stratified design, its
-// count rule on the planned strata (verdict.CheckStratification). An edited plan — a sample size, an acceptance
+// (sequential.Check), for a plan sized for a stratified design its count
+// rule on the planned strata (verdict.CheckStratification), and verifies
+// the measures' stored designs against their inputs (measure.Recheck:
+// every risk recomputed exactly, no search run again). An edited plan — a
+// sample size, an acceptance
 // number, a ceiling or a risk changed by hand, a class repeated, a
 // threshold that is not a number, a design without its section — is an
 // input error naming the file, the line and the field; no plan file
@@ -20,6 +23,7 @@ import (
 	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/plan/inputfile"
+	"probity/plan/measure"
 	"probity/plan/sequential"
 	"probity/plan/verdict"
 )
@@ -39,6 +43,9 @@ func Parse(data []byte, name string) (*plan.File, error) {
 	}
 	if err := verdict.CheckStratification(f, src); err != nil {
 		return nil, err
+	}
+	if err := measure.Recheck(f); err != nil {
+		return nil, inputerr.Errorf("%s: %v", name, err).WithHint("use the plan file written by probity plan, unedited")
 	}
 	return f, nil
 }

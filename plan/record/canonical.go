@@ -43,6 +43,7 @@ func Decode(data []byte) (*Record, error) {
 	if dec.More() {
 		return nil, errors.New("trailing data after the record object")
 	}
+	r.fixReleased()
 	return &r, nil
 }
 

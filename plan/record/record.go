@@ -97,6 +97,19 @@ type Record struct {
 	// LabelTrail is what the labeling's audit trail says (nil, and absent
 	// from record.json, when the labels came from worksheets alone).
 	LabelTrail *LabelTrail `json:"label_trail,omitempty"`
+	// Measures are the claims of a plan with measures, judged by
+	// plan/measure (the candidates' verdicts follow from them), with each
+	// candidate's estimated confusion matrix.
+	Measures           []MeasureVerdict     `json:"measures,omitempty"`
+	EstimatedConfusion []EstimatedConfusion `json:"estimated_confusion,omitempty"`
+	// ReleaseRule is the plan's release rule (a candidate, or
+	// best:MEASURE); Released the candidate it picks, null when none
+	// qualifies (the record then rejects).
+	ReleaseRule string    `json:"release_rule,omitempty"`
+	Released    *Released `json:"released,omitempty"`
+	// MeasurePlan is what the plan with measures declared that the record
+	// states beside the claims (nil, and absent, without measures).
+	MeasurePlan *MeasurePlan `json:"measure_plan,omitempty"`
 }
 
 // LabelTrail summarises the audit trail the labels were derived from
@@ -282,6 +295,11 @@ type Deviations struct {
 	// was made without second labels: the planned measure of label error
 	// was not taken. 0, and absent, otherwise.
 	DoubleNotLabeled int `json:"double_not_labeled,omitempty"`
+	// NoMissMeasure is the plan's reason for claiming no measure on
+	// missed positives (fnr, for) in a record of a safety, medical or
+	// vehicle use, which needs one ("", and absent, otherwise): a
+	// deviation stated on page 1.
+	NoMissMeasure string `json:"no_miss_measure,omitempty"`
 }
 
 // SpareReplacement is a sample item marked unsure and the spare judged in

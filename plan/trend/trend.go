@@ -24,6 +24,10 @@ type Options struct {
 	// Alpha is the level of each comparison, in (0, 1): a period is flagged
 	// when its p-value is at most Alpha.
 	Alpha float64
+	// Measure and Candidate choose, for records with measures, the measure
+	// charted and its candidate (see MeasureTrend; "" takes the defaults).
+	// Records without measures refuse either.
+	Measure, Candidate string
 }
 
 // Trend is the audits of several periods side by side. Its JSON form is the
@@ -53,6 +57,9 @@ type Trend struct {
 	// Unauthenticated lists, in period order, the periods whose records
 	// are charted without having been authenticated.
 	Unauthenticated []string `json:"unauthenticated"`
+	// Measure is set when the records judged measures: the series are one
+	// measure's claims (nil for records of the overall error alone).
+	Measure *MeasureTrend `json:"measure,omitempty"`
 }
 
 // Period is one record on the trend.
@@ -240,6 +247,16 @@ func Build(entries []Entry, opts Options) (*Trend, error) {
 	}
 	t.Baseline = labels[base]
 
+	if hasMeasures(latest) || opts.Measure != "" || opts.Candidate != "" {
+		if !hasMeasures(latest) {
+			return nil, &inputerr.Error{Field: "measure", Msg: "the records hold no measures: only the overall error can be charted"}
+		}
+		if err := measureSeries(t, es, opts); err != nil {
+			return nil, err
+		}
+		t.Warnings = append(t.Warnings, planWarnings(t.Periods)...)
+		return t, nil
+	}
 	names := candidateOrder(es)
 	for _, name := range names {
 		s, err := series(name, es, base, t.Class.Ceiling, opts.Alpha)

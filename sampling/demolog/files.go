@@ -20,8 +20,8 @@ var PlanCreated = time.Date(2026, 9, 28, 14, 0, 0, 0, time.UTC)
 // Drawn is when the month's sample was drawn (the morning after the
 // month's log closed) and Issued when its record was issued: for the
 // latest month, once its labeling on the page — from Clock on, a label
-// every few seconds — is done, before its signers sign (from two hours
-// after Clock). The demo supplies these times to each command, so its
+// every few seconds, some seven thousand of them — is done, the same
+// afternoon, before its signers sign (the next morning). The demo supplies these times to each command, so its
 // artifacts do not depend on the machine's clock; they are recorded as
 // supplied by the operator.
 func (s Scenario) Drawn() time.Time { return s.monthEnd().Add(7 * time.Hour) }
@@ -29,7 +29,7 @@ func (s Scenario) Drawn() time.Time { return s.monthEnd().Add(7 * time.Hour) }
 // Issued: see Drawn.
 func (s Scenario) Issued() time.Time {
 	if t := s.monthEnd(); t.Equal(Clock.Truncate(24 * time.Hour)) {
-		return Clock.Add(105 * time.Minute)
+		return Clock.Add(7 * time.Hour)
 	}
 	return s.monthEnd().AddDate(0, 0, 3).Add(16 * time.Hour)
 }

@@ -65,6 +65,9 @@ type Manifest struct {
 	// repeats): the lot a finite-population plan judges. For a periodic
 	// draw of a --population plan it is the period's lot size.
 	LotSize int64 `json:"lot_size"`
+	// Measures is set for a plan with measures (allocation rule
+	// "measures"): each claim's design on these strata.
+	Measures *MeasuresInfo `json:"measures,omitempty"`
 	// Completeness is what the log's time column says about the period:
 	// the first and last time in scope and the days without a row (nil,
 	// and absent, when the draw read no time column).

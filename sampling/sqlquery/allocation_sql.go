@@ -148,3 +148,33 @@ alloc AS (
 ),
 `
 }
+
+// givenAllocationCTEs is the allocation of a two-step draw's selection
+// query (PostgreSQL, DuckDB): n_h and spares as probity computed them from
+// the counts file, written as literals, joined to the strata counted
+// again, so that alloc(stratum, n_pop, n_sample, n_spare) holds the
+// recount (a stratum the counts file lacks gets no rows, and the import
+// refuses it).
+func givenAllocationCTEs(d Dialect, counts *Counts) (string, error) {
+	var b strings.Builder
+	b.WriteString("given (stratum, n_sample, n_spare) AS (\n  VALUES")
+	for i, a := range counts.Strata {
+		lit, err := d.QuoteLiteral(a.Label)
+		if err != nil {
+			return "", specError("", "stratum %q: %w", a.Label, err)
+		}
+		if i > 0 {
+			b.WriteString(",")
+		}
+		b.WriteString("\n    (CAST(" + lit + " AS " + d.textType() + "), CAST(" + strconv.Itoa(a.Sample) + " AS bigint), CAST(" + strconv.Itoa(a.Spare) + " AS bigint))")
+	}
+	b.WriteString("\n),\n")
+	b.WriteString(`alloc AS (
+  SELECT c.stratum, CAST(c.n_pop AS bigint) AS n_pop, CAST(COALESCE(g.n_sample, 0) AS bigint) AS n_sample,
+    CAST(COALESCE(g.n_spare, 0) AS bigint) AS n_spare
+  FROM counts AS c
+  LEFT JOIN given AS g ON c.stratum = ` + d.binaryText("g.stratum") + `
+),
+`)
+	return b.String(), nil
+}

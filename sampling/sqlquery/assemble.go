@@ -93,6 +93,7 @@ func (res *Result) manifest(toolVersion string, sample, spares int) *drawfolder.
 	}
 	if c := res.Counts; c != nil {
 		m.Engine.CountsSHA256, m.Engine.CountsQuerySHA256 = c.SHA256, c.QuerySHA256
+		m.Measures = c.Measures
 	}
 	if s.Period != "" {
 		m.Period = s.Period

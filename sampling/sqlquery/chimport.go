@@ -35,6 +35,9 @@ type Counts struct {
 	InScope   int64
 	// Strata is the allocation, sorted by label.
 	Strata []sampling.StratumAllocation
+	// Measures is, for a plan with measures, the design sized on these
+	// strata (the manifest's measures block); nil otherwise.
+	Measures *drawfolder.MeasuresInfo
 }
 
 // ReadCounts reads and checks the result of a ClickHouse counts query.
@@ -57,7 +60,7 @@ func ReadCounts(path string, stdin io.Reader, p *plan.File, fingerprint string) 
 	if err != nil {
 		return nil, err
 	}
-	if !spec.Dialect.TwoStep() || countsSHA != "" {
+	if !spec.TwoStep() || countsSHA != "" {
 		return nil, t.rowError(0, colDetail, "the counts row describes a %s draw, which has no counts query", spec.Dialect)
 	}
 	c := &Counts{Path: path, SHA256: drawfolder.SHA256Hex(data), Bytes: int64(len(data)), Spec: spec}
@@ -73,7 +76,7 @@ func ReadCounts(path string, stdin io.Reader, p *plan.File, fingerprint string) 
 	}
 	for i, row := range t.rows {
 		switch row[colKind] {
-		case KindInScope, KindEmptyIDs, KindRepeatedRows, KindBadValue, KindStratum:
+		case KindInScope, KindEmptyIDs, KindRepeatedRows, KindDuplicateIDs, KindDuplicateID, KindBadValue, KindStratum:
 		case KindCounts:
 			if i > 0 {
 				return nil, t.rowError(i, colKind, "a second counts row; the file holds more than one result")
@@ -92,7 +95,7 @@ func ReadCounts(path string, stdin io.Reader, p *plan.File, fingerprint string) 
 	if err != nil {
 		return nil, err
 	}
-	if c.Strata, err = allocateCounts(t, spec, counts, c.InScope, c.TableRows); err != nil {
+	if c.Strata, c.Measures, err = allocateCounts(t, p, spec, counts, c.InScope, c.TableRows); err != nil {
 		return nil, err
 	}
 	return c, nil

@@ -293,7 +293,16 @@ func (c *chQuery) emptyValues(named bool) string {
 // Repeated ids are counted as count() − uniqExact(id): uniqExact keeps a
 // 128-bit hash of each id, so a collision could only report a repeat that
 // is not there, never hide one; it is far lighter than grouping by id.
+//
+// For PostgreSQL and DuckDB (a plan with measures) it is the one query's
+// checks and counts without the allocation and the selection.
 func CountsQuery(s *Spec) (string, error) {
+	if s.Dialect != ClickHouse {
+		if !s.TwoStep() {
+			return "", specError("dialect", "%s draws with one query", s.Dialect)
+		}
+		return sqlQuery(s, stepCounts, nil)
+	}
 	c, err := newCHQuery(s)
 	if err != nil {
 		return "", err
@@ -376,8 +385,19 @@ func selectionGroups(alloc []sampling.StratumAllocation) [][]sampling.StratumAll
 // arraySlice: this version has no window functions). Rows are ordered by
 // the raw SHA-256 bytes; only the selected keys are written as lowercase
 // hex. The text is a pure function of the counts.
+//
+// For PostgreSQL and DuckDB (a plan with measures) it is the one query
+// with the allocation written as literals from the counts (see
+// givenAllocationCTEs), the strata counted again and the rows ranked by
+// key, without the table's checks the counts query made.
 func SelectionQuery(counts *Counts) (string, error) {
 	s := counts.Spec
+	if s.Dialect != ClickHouse {
+		if !s.TwoStep() {
+			return "", specError("dialect", "%s draws with one query", s.Dialect)
+		}
+		return sqlQuery(s, stepSelection, counts)
+	}
 	c, err := newCHQuery(s)
 	if err != nil {
 		return "", err

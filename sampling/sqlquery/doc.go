@@ -13,6 +13,15 @@
 // (on every shard of a Distributed table, then across shards), and
 // ImportSelection checks that result against the counts file as well.
 //
+// A plan with measures draws in the same two steps in every dialect
+// (Spec.TwoStep): its strata end with the candidates' predictions, and its
+// design is sized again on the counted strata by
+// sampling.AllocateMeasures, the file draw's own allocation, which no query
+// can compute. For PostgreSQL and DuckDB the counts query is the one
+// query's checks and counts, and the selection query the one query with
+// the allocation written in as literals; the manifest gets the design's
+// measures block, as a draw from a file does.
+//
 // Identifiers are always quoted and every string the user supplies reaches
 // the query as a literal it cannot break out of, so a table or column name
 // with quotes, backslashes, spaces or SQL keywords is safe.

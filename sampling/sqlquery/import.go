@@ -77,8 +77,12 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	if err != nil {
 		return nil, err
 	}
-	if spec.Dialect.TwoStep() || countsSHA != "" {
-		return nil, t.rowError(0, colDetail, "a %s selection is checked against the counts it was made from", spec.Dialect).
+	if spec.TwoStep() || countsSHA != "" {
+		what := "a " + string(spec.Dialect) + " selection"
+		if spec.Allocation == sampling.Measures {
+			what = "the selection of a plan with measures"
+		}
+		return nil, t.rowError(0, colDetail, "%s is checked against the counts it was made from", what).
 			WithHint("import it together with the counts file its selection query was printed from")
 	}
 	res.Spec = spec
@@ -98,7 +102,7 @@ func Import(path string, stdin io.Reader, p *plan.File, fingerprint string) (*Re
 	if err := checkLot(t, p, res.Spec, res.InScope); err != nil {
 		return nil, err
 	}
-	if err := res.checkStrata(t); err != nil {
+	if err := res.checkStrata(t, p); err != nil {
 		return nil, err
 	}
 	if err := res.checkItems(t); err != nil {
@@ -170,8 +174,8 @@ func checkDrawRow(t *resultTable, p *plan.File, fingerprint string) (*Spec, stri
 	if d.SelectionSeed != want {
 		return nil, "", t.rowError(0, colDetail, "the selection seed %q does not follow from the plan's seed and period %q (expected %q)", d.SelectionSeed, d.Period, want)
 	}
-	if d.SampleSize != p.Rule.SampleSize {
-		return nil, "", t.rowError(0, colDetail, "the result was made for a sample of %d, but the plan's is %d", d.SampleSize, p.Rule.SampleSize)
+	if n := SampleSize(p); d.SampleSize != n {
+		return nil, "", t.rowError(0, colDetail, "the result was made for a sample of %d, but the plan's is %d", d.SampleSize, n)
 	}
 	s := d.Spec
 	s.Candidates = p.Candidates

@@ -41,15 +41,50 @@ func ResultHeader(values int) []string {
 // HEADER, or DuckDB's COPY), is what Import reads. The text is a pure
 // function of s.
 func Query(s *Spec) (string, error) {
-	if s.Dialect.TwoStep() {
-		return "", specError("dialect", "%s draws in two steps, a counts query and a selection query", s.Dialect)
+	if s.TwoStep() {
+		return "", specError("dialect", "%s draws in two steps, a counts query and a selection query", twoStepName(s))
 	}
+	return sqlQuery(s, stepOne, nil)
+}
+
+// twoStepName names what draws in two steps, for a message: the dialect,
+// or a plan with measures.
+func twoStepName(s *Spec) string {
+	if s.Allocation == sampling.Measures {
+		return "a plan with measures"
+	}
+	return string(s.Dialect)
+}
+
+// queryStep says which query sqlQuery writes.
+type queryStep int
+
+const (
+	// stepOne is the one query that counts, allocates and selects.
+	stepOne queryStep = iota
+	// stepCounts is the first query of a two-step draw: the checks of
+	// the table and the stratum counts, nothing selected.
+	stepCounts
+	// stepSelection is the second: the allocation computed by probity
+	// from the counts file, the strata counted again, the rows selected.
+	stepSelection
+)
+
+// sqlQuery writes a PostgreSQL or DuckDB query: the one query of a draw
+// (stepOne), or either query of a two-step draw (a plan with measures,
+// whose allocation is computed by probity from the counts: see
+// CountsQuery and SelectionQuery). counts is set for stepSelection.
+func sqlQuery(s *Spec, step queryStep, counts *Counts) (string, error) {
 	q, err := newQuoter(s)
 	if err != nil {
 		return "", err
 	}
 	d := s.Dialect
-	detail, err := s.MarshalDetail()
+	countsSHA := ""
+	if counts != nil {
+		countsSHA = counts.SHA256
+	}
+	detail, err := s.marshalDetail(countsSHA)
 	if err != nil {
 		return "", err
 	}
@@ -65,7 +100,13 @@ func Query(s *Spec) (string, error) {
 	if err != nil {
 		return "", err
 	}
-	alloc, err := allocationCTEs(s)
+	var alloc string
+	switch step {
+	case stepOne:
+		alloc, err = allocationCTEs(s)
+	case stepSelection:
+		alloc, err = givenAllocationCTEs(d, counts)
+	}
 	if err != nil {
 		return "", err
 	}
@@ -74,10 +115,24 @@ func Query(s *Spec) (string, error) {
 
 	var b strings.Builder
 	w := func(format string, args ...any) { fmt.Fprintf(&b, format, args...) }
-	w("-- probity draw query, format %d, written by probity %s for %s.\n", QueryFormat, oneLine(s.ToolVersion), d)
-	w("-- plan %s, selection seed %s.\n", oneLine(s.PlanFingerprint), oneLine(s.SelectionSeed))
-	w("-- Save the result as CSV with a header and import it with\n")
-	w("--   probity draw --plan PLAN --selected RESULT.csv --out DIR\n")
+	switch step {
+	case stepOne:
+		w("-- probity draw query, format %d, written by probity %s for %s.\n", QueryFormat, oneLine(s.ToolVersion), d)
+		w("-- plan %s, selection seed %s.\n", oneLine(s.PlanFingerprint), oneLine(s.SelectionSeed))
+		w("-- Save the result as CSV with a header and import it with\n")
+		w("--   probity draw --plan PLAN --selected RESULT.csv --out DIR\n")
+	case stepCounts:
+		w("-- probity counts query (step 1 of 2), format %d, written by probity %s for %s.\n", QueryFormat, oneLine(s.ToolVersion), d)
+		w("-- plan %s, selection seed %s.\n", oneLine(s.PlanFingerprint), oneLine(s.SelectionSeed))
+		w("-- Save the result as CSV with a header and print the selection query with\n")
+		w("--   probity draw --plan PLAN --sql %s --counts counts.csv > selection.sql\n", d)
+	case stepSelection:
+		w("-- probity selection query (step 2 of 2), format %d, written by probity %s for %s.\n", QueryFormat, oneLine(s.ToolVersion), d)
+		w("-- plan %s, selection seed %s.\n", oneLine(s.PlanFingerprint), oneLine(s.SelectionSeed))
+		w("-- counts file sha256 %s: %d strata, %d rows in scope of %d.\n", counts.SHA256, len(counts.Strata), counts.InScope, counts.TableRows)
+		w("-- Save the result as CSV with a header and import it with\n")
+		w("--   probity draw --plan PLAN --counts counts.csv --selected RESULT.csv --out DIR\n")
+	}
 	w("-- The import rebuilds this text from the result's first row; an edited\n")
 	w("-- query gives a result whose manifest names a query that was not run.\n")
 	w("WITH RECURSIVE\n")
@@ -91,9 +146,8 @@ func Query(s *Spec) (string, error) {
 		w(",\n    r.v%d", i+1)
 	}
 	w("\n  FROM (\n    SELECT %s AS record_id", d.binaryText(d.text("t."+q.id)))
-	for i, c := range q.rawColumns() {
+	for _, c := range q.rawColumns() {
 		w(",\n      %s AS %s", d.binaryText(q.valueText(c)), q.raw[c])
-		_ = i
 	}
 	for i, b := range q.bands {
 		w(",\n      %s AS b%d", q.bandNumber(b), i+1)
@@ -103,37 +157,55 @@ func Query(s *Spec) (string, error) {
 	}
 	w("\n    FROM %s AS t\n    OFFSET 0\n  ) AS r\n),\n", q.table)
 	w("src AS (\n  SELECT * FROM base WHERE in_scope\n),\n")
-	w("keyed AS (\n  SELECT s.*, %s AS k\n  FROM src AS s\n),\n", d.keyExpr(seedLit, "s.record_id"))
+	if step != stepCounts {
+		w("keyed AS (\n  SELECT s.*, %s AS k\n  FROM src AS s\n),\n", d.keyExpr(seedLit, "s.record_id"))
+	}
 	w("counts AS (\n  SELECT stratum, count(*) AS n_pop\n  FROM src\n  GROUP BY stratum\n),\n")
 	b.WriteString(alloc)
-	// ranked sorts the rows in scope by stratum and key with their values:
-	// one sort, and no join back to the table, whose plan would depend on
-	// the planner's row estimates.
-	w("ranked AS (\n  SELECT y.*, row_number() OVER (PARTITION BY y.stratum ORDER BY y.k) AS rnk\n  FROM keyed AS y\n),\n")
-	w("dups AS (\n  SELECT record_id, count(*) AS n\n  FROM src\n  WHERE record_id <> ''\n  GROUP BY record_id\n  HAVING count(*) > 1\n),\n")
-	w("bads AS (\n  SELECT bad, count(*) AS n, min(record_id%s) AS first_id\n  FROM src\n  WHERE bad IS NOT NULL\n  GROUP BY bad\n),\n", d.byteOrder())
+	if step != stepCounts {
+		// ranked sorts the rows in scope by stratum and key with their
+		// values: one sort, and no join back to the table, whose plan
+		// would depend on the planner's row estimates.
+		w("ranked AS (\n  SELECT y.*, row_number() OVER (PARTITION BY y.stratum ORDER BY y.k) AS rnk\n  FROM keyed AS y\n),\n")
+	}
+	if step != stepSelection {
+		w("dups AS (\n  SELECT record_id, count(*) AS n\n  FROM src\n  WHERE record_id <> ''\n  GROUP BY record_id\n  HAVING count(*) > 1\n),\n")
+		w("bads AS (\n  SELECT bad, count(*) AS n, min(record_id%s) AS first_id\n  FROM src\n  WHERE bad IS NOT NULL\n  GROUP BY bad\n),\n", d.byteOrder())
+	}
 	w("tally AS (\n  SELECT count(*) AS n_all, sum(CASE WHEN in_scope THEN 1 ELSE 0 END) AS n_scope,\n")
 	w("    sum(CASE WHEN record_id IS NULL OR record_id = '' THEN 1 ELSE 0 END) AS n_empty\n  FROM base\n),\n")
 	// out: every result row with a section number and a sort key.
 	nulls := func(n int) string { return strings.Repeat(", NULL", n) }
 	w("out AS (\n")
-	w("  SELECT 1 AS sec, CAST(NULL AS %s) AS sk, '%s' AS kind, CAST(NULL AS %s) AS record_id, CAST(NULL AS %s) AS stratum,\n", txt, KindDraw, txt, txt)
-	w("    CAST((SELECT n_all FROM tally) AS bigint) AS stratum_size,\n")
-	w("    CAST((SELECT COALESCE(sum(n_sample), 0) FROM alloc) AS bigint) AS stratum_sample,\n")
-	w("    CAST((SELECT COALESCE(sum(n_spare), 0) FROM alloc) AS bigint) AS stratum_spare,\n")
-	w("    CAST(NULL AS bigint) AS stratum_rank, CAST(NULL AS %s) AS key, CAST(%s AS %s) AS detail%s\n", txt, detailLit, txt, valueNulls(len(values), txt))
-	w("  UNION ALL\n  SELECT 2, NULL, '%s', NULL, NULL, CAST(COALESCE((SELECT n_scope FROM tally), 0) AS bigint), NULL, NULL, NULL, NULL, NULL%s\n", KindInScope, nulls(len(values)))
-	w("  UNION ALL\n  SELECT 3, NULL, '%s', NULL, NULL, CAST(COALESCE((SELECT n_empty FROM tally), 0) AS bigint), NULL, NULL, NULL, NULL, NULL%s\n", KindEmptyIDs, nulls(len(values)))
-	w("  UNION ALL\n  SELECT 4, NULL, '%s', NULL, NULL, (SELECT count(*) FROM dups), NULL, NULL, NULL, NULL, NULL%s\n", KindDuplicateIDs, nulls(len(values)))
-	w("  UNION ALL\n  SELECT 5, e.record_id, '%s', e.record_id, NULL, e.n, NULL, NULL, NULL, NULL, NULL%s\n", KindDuplicateID, nulls(len(values)))
-	w("  FROM (SELECT record_id, n FROM dups ORDER BY record_id%s LIMIT %d) AS e\n", d.byteOrder(), maxDuplicateExamples)
-	w("  UNION ALL\n  SELECT 6, x.bad, '%s', x.first_id, NULL, x.n, NULL, NULL, NULL, NULL, x.bad%s\n  FROM bads AS x\n", KindBadValue, nulls(len(values)))
-	w("  UNION ALL\n  SELECT 7, a.stratum, '%s', NULL, a.stratum, a.n_pop, a.n_sample, a.n_spare, NULL, NULL, NULL%s\n  FROM alloc AS a\n", KindStratum, nulls(len(values)))
-	w("  UNION ALL\n  SELECT 8, %s, '%s', r.record_id, r.stratum, a.n_pop, a.n_sample, a.n_spare, r.rnk, %s, NULL", d.hex("r.k"), KindItem, d.hex("r.k"))
-	for i := range values {
-		w(", r.v%d", i+1)
+	first := KindDraw
+	sums := "    CAST((SELECT COALESCE(sum(n_sample), 0) FROM alloc) AS bigint) AS stratum_sample,\n" +
+		"    CAST((SELECT COALESCE(sum(n_spare), 0) FROM alloc) AS bigint) AS stratum_spare,\n"
+	if step == stepCounts {
+		first = KindCounts
+		sums = "    CAST(NULL AS bigint) AS stratum_sample, CAST(NULL AS bigint) AS stratum_spare,\n"
 	}
-	w("\n  FROM ranked AS r\n  JOIN alloc AS a ON a.stratum = r.stratum\n  WHERE r.rnk <= a.n_sample + a.n_spare\n)\n")
+	w("  SELECT 1 AS sec, CAST(NULL AS %s) AS sk, '%s' AS kind, CAST(NULL AS %s) AS record_id, CAST(NULL AS %s) AS stratum,\n", txt, first, txt, txt)
+	w("    CAST((SELECT n_all FROM tally) AS bigint) AS stratum_size,\n")
+	b.WriteString(sums)
+	w("    CAST(NULL AS bigint) AS stratum_rank, CAST(NULL AS %s) AS key, CAST(%s AS %s) AS detail%s\n", txt, detailLit, txt, valueNulls(len(values), txt))
+	if step != stepSelection {
+		w("  UNION ALL\n  SELECT 2, NULL, '%s', NULL, NULL, CAST(COALESCE((SELECT n_scope FROM tally), 0) AS bigint), NULL, NULL, NULL, NULL, NULL%s\n", KindInScope, nulls(len(values)))
+		w("  UNION ALL\n  SELECT 3, NULL, '%s', NULL, NULL, CAST(COALESCE((SELECT n_empty FROM tally), 0) AS bigint), NULL, NULL, NULL, NULL, NULL%s\n", KindEmptyIDs, nulls(len(values)))
+		w("  UNION ALL\n  SELECT 4, NULL, '%s', NULL, NULL, (SELECT count(*) FROM dups), NULL, NULL, NULL, NULL, NULL%s\n", KindDuplicateIDs, nulls(len(values)))
+		w("  UNION ALL\n  SELECT 5, e.record_id, '%s', e.record_id, NULL, e.n, NULL, NULL, NULL, NULL, NULL%s\n", KindDuplicateID, nulls(len(values)))
+		w("  FROM (SELECT record_id, n FROM dups ORDER BY record_id%s LIMIT %d) AS e\n", d.byteOrder(), maxDuplicateExamples)
+		w("  UNION ALL\n  SELECT 6, x.bad, '%s', x.first_id, NULL, x.n, NULL, NULL, NULL, NULL, x.bad%s\n  FROM bads AS x\n", KindBadValue, nulls(len(values)))
+	}
+	if step == stepCounts {
+		w("  UNION ALL\n  SELECT 7, c.stratum, '%s', NULL, c.stratum, c.n_pop, NULL, NULL, NULL, NULL, NULL%s\n  FROM counts AS c\n)\n", KindStratum, nulls(len(values)))
+	} else {
+		w("  UNION ALL\n  SELECT 7, a.stratum, '%s', NULL, a.stratum, a.n_pop, a.n_sample, a.n_spare, NULL, NULL, NULL%s\n  FROM alloc AS a\n", KindStratum, nulls(len(values)))
+		w("  UNION ALL\n  SELECT 8, %s, '%s', r.record_id, r.stratum, a.n_pop, a.n_sample, a.n_spare, r.rnk, %s, NULL", d.hex("r.k"), KindItem, d.hex("r.k"))
+		for i := range values {
+			w(", r.v%d", i+1)
+		}
+		w("\n  FROM ranked AS r\n  JOIN alloc AS a ON a.stratum = r.stratum\n  WHERE r.rnk <= a.n_sample + a.n_spare\n)\n")
+	}
 	w("SELECT kind, record_id, stratum, stratum_size, stratum_sample, stratum_spare, stratum_rank, key, detail")
 	for i := range values {
 		w(", v%d AS value_%d", i+1, i+1)

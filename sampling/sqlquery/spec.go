@@ -7,6 +7,7 @@ import (
 	"fmt"
 
 	"probity/plan"
+	"probity/sampling"
 )
 
 // QueryFormat is the version of the query layout and of its result file.
@@ -54,9 +55,12 @@ type Spec struct {
 	// Candidates are the plan's candidates, in plan order (their columns
 	// are carried into the result for the ledger's predictions).
 	Candidates []plan.Candidate `json:"-"`
-	// SampleSize is the plan's n.
+	// SampleSize is the plan's n (see SampleSize).
 	SampleSize int `json:"sample_size"`
-	// Allocation is the rule: "proportional" or "equal".
+	// Allocation is the rule: "proportional" or "equal", or
+	// sampling.Measures for a plan with measures (the strata and bands
+	// then end with the plan's prediction strata, as
+	// sampling.AddPredictionStrata adds them).
 	Allocation    string `json:"allocation"`
 	MinPerStratum int    `json:"min_per_stratum"`
 	Spare         int    `json:"spare"`
@@ -65,6 +69,24 @@ type Spec struct {
 	Rounding string `json:"rounding,omitempty"`
 	// Double is --double k: the first k sample items get a second label.
 	Double int `json:"double"`
+}
+
+// SampleSize is the sample a draw of p allocates, as the draw from a file
+// takes it: the plan's n, or for a plan with measures the total of its
+// planned design (the design is sized again on the counted strata).
+func SampleSize(p *plan.File) int {
+	if p.Measures != nil {
+		return p.Measures.Design.Total
+	}
+	return p.Rule.SampleSize
+}
+
+// TwoStep reports whether the draw runs as two queries, the stratum
+// counts and then the selection: always in ClickHouse, and in every
+// dialect for a plan with measures, whose design probity sizes on the
+// counted strata (sampling.AllocateMeasures), which no query can.
+func (s *Spec) TwoStep() bool {
+	return s.Dialect.TwoStep() || s.Allocation == sampling.Measures
 }
 
 // valueColumns is what the result carries besides keys and strata:

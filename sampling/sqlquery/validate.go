@@ -41,7 +41,7 @@ func (s *Spec) validate() error {
 		return specError("spare", "%d: at most the sample size %d per stratum", s.Spare, s.SampleSize)
 	}
 	switch s.Allocation {
-	case ruleProportional, ruleEqual:
+	case ruleProportional, ruleEqual, sampling.Measures:
 	case sampling.Neyman:
 		if s.Dialect.TwoStep() {
 			// The allocation runs in Go between the two queries, but the

@@ -4,8 +4,10 @@ import (
 	"errors"
 	"fmt"
 
+	"probity/plan"
 	"probity/plan/inputerr"
 	"probity/sampling"
+	"probity/sampling/drawfolder"
 )
 
 // stratumCounts reads the stratum rows: each label once, in byte order,
@@ -39,19 +41,40 @@ func stratumCounts(t *resultTable) (counts []sampling.StratumCount, rows []int, 
 
 // allocateCounts checks that the strata hold the rows in scope and
 // allocates the sample among them as the draw from a file does.
-func allocateCounts(t *resultTable, s *Spec, counts []sampling.StratumCount, inScope, tableRows int64) ([]sampling.StratumAllocation, error) {
+func allocateCounts(t *resultTable, p *plan.File, s *Spec, counts []sampling.StratumCount, inScope, tableRows int64) ([]sampling.StratumAllocation, *drawfolder.MeasuresInfo, error) {
 	if len(counts) == 0 {
-		return nil, &inputerr.Error{File: t.name, Msg: "the table " + s.Table + " has no rows in scope", Hint: "check the table name and the filter"}
+		return nil, nil, &inputerr.Error{File: t.name, Msg: "the table " + s.Table + " has no rows in scope", Hint: "check the table name and the filter"}
 	}
 	var total int64
 	for _, c := range counts {
 		total += c.Population
 	}
 	if total != inScope {
-		return nil, &inputerr.Error{File: t.name, Field: "stratum_size", Msg: fmt.Sprintf("%d rows are in scope but the strata add up to %d", inScope, total)}
+		return nil, nil, &inputerr.Error{File: t.name, Field: "stratum_size", Msg: fmt.Sprintf("%d rows are in scope but the strata add up to %d", inScope, total)}
 	}
 	if inScope > tableRows {
-		return nil, t.rowError(0, colStratumSize, "the table has %d rows but %d are in scope", tableRows, inScope)
+		return nil, nil, t.rowError(0, colStratumSize, "the table has %d rows but %d are in scope", tableRows, inScope)
+	}
+	if s.Allocation == sampling.Measures {
+		if p.Measures == nil {
+			return nil, nil, t.rowError(0, colDetail, "the result was made for a plan with measures, but the plan has none")
+		}
+		bands := make([]sampling.Band, len(s.Bands))
+		for i, text := range s.Bands {
+			b, err := sampling.ParseBand(text)
+			if err != nil {
+				return nil, nil, t.rowError(0, colDetail, "band %q: %v", text, err)
+			}
+			bands[i] = b
+		}
+		alloc, info, err := sampling.AllocateMeasures(p, s.Strata, bands, s.Spare, counts)
+		if err != nil {
+			return nil, nil, inputerr.InFile(err, t.name)
+		}
+		return alloc, info, nil
+	}
+	if p.Measures != nil {
+		return nil, nil, t.rowError(0, colDetail, "the plan has measures, but the result was made for a draw without them")
 	}
 	alloc, err := sampling.Allocate(counts, s.SampleSize, sampling.AllocOptions{Rule: s.Allocation, MinPerStratum: s.MinPerStratum, Spare: s.Spare, Rounding: s.Rounding})
 	if err != nil {
@@ -60,9 +83,9 @@ func allocateCounts(t *resultTable, s *Spec, counts []sampling.StratumCount, inS
 			e.Msg = fmt.Sprintf("the plan needs a sample of %d but only %d rows are in scope", s.SampleSize, inScope)
 			e.Hint = "check the table and the filters"
 		}
-		return nil, e
+		return nil, nil, e
 	}
-	return alloc, nil
+	return alloc, nil, nil
 }
 
 // checkClaims checks the n_h and spares each stratum row claims (rows[i]
@@ -105,12 +128,12 @@ func checkClaims(t *resultTable, alloc []sampling.StratumAllocation, rows []int)
 
 // checkStrata reads the stratum rows and checks them against the table's
 // row count and against sampling.Allocate on the same counts.
-func (res *Result) checkStrata(t *resultTable) error {
+func (res *Result) checkStrata(t *resultTable, p *plan.File) error {
 	counts, rows, err := stratumCounts(t)
 	if err != nil {
 		return err
 	}
-	alloc, err := allocateCounts(t, res.Spec, counts, res.InScope, res.TableRows)
+	alloc, _, err := allocateCounts(t, p, res.Spec, counts, res.InScope, res.TableRows)
 	if err != nil {
 		return err
 	}

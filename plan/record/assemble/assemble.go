@@ -52,10 +52,13 @@ type Files struct {
 
 // Inputs are the files a record is computed from, read and checked.
 type Inputs struct {
-	Plan   *plan.File
-	PlanFP string
-	Folder *drawfolder.Folder
-	Labels *drawfolder.Labels
+	// Plan is the plan read from PlanFile ("" when it was not read from a
+	// file), PlanFP its fingerprint.
+	Plan     *plan.File
+	PlanFile string
+	PlanFP   string
+	Folder   *drawfolder.Folder
+	Labels   *drawfolder.Labels
 	// Second is the labeled second worksheet (nil without double
 	// labeling), Adjudications the rows of the adjudication file (whose
 	// name and SHA-256 are AdjudicationFile and AdjudicationSHA256; empty
@@ -129,7 +132,7 @@ func Read(f Files) (*Inputs, error) {
 	if err != nil {
 		return nil, err
 	}
-	in := &Inputs{Plan: p, PlanFP: fp}
+	in := &Inputs{Plan: p, PlanFile: f.Plan, PlanFP: fp}
 	if in.Folder, err = drawfolder.Open(f.Draw, fp, p.CandidateNames()); err != nil {
 		return nil, err
 	}
@@ -256,6 +259,10 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 	if p.IsSizingOnly() {
 		return nil, inputerr.Errorf("%w: the plan declares no candidates, so there is nothing to judge", ErrInput)
 	}
+	noMiss, err := missMeasure(p, in.PlanFile, o.Use)
+	if err != nil {
+		return nil, err
+	}
 	times, err := chronology(in, o.Issued)
 	if err != nil {
 		return nil, err
@@ -304,10 +311,14 @@ func Assemble(in *Inputs, o Options) (*record.Record, error) {
 	rec.OverallVerdict = res.Overall
 	rec.Method = res.Method
 	rec.Method.Assumptions = append(rec.Method.Assumptions, res.Notes...)
+	if err := judgeMeasures(rec, p, in.Folder.Manifest, checked); err != nil {
+		return nil, err
+	}
 	if w := weightsNote(in.Folder.Manifest, checked.Design); w != "" {
 		rec.Method.Assumptions = append(rec.Method.Assumptions, w)
 	}
 	rec.Deviations = checked.Deviations
+	rec.Deviations.NoMissMeasure = noMiss
 	if in.Second == nil {
 		rec.Deviations.DoubleNotLabeled = in.Folder.Manifest.Double
 	}
@@ -468,8 +479,14 @@ func weightsNote(m *drawfolder.Manifest, d verdict.Design) string {
 	if m.Allocation.MinPerStratum > 0 {
 		why += fmt.Sprintf(" and the minimum of %d per stratum", m.Allocation.MinPerStratum)
 	}
-	return fmt.Sprintf("The strata's inclusion weights N_h/n_h differ by up to %s %% through %s; the estimate weights each stratum by N_h/N, and the verdict uses a rule that holds whatever the weights (see the method).",
-		strings.TrimSuffix(fmt.Sprintf("%.2f", 100*s), ".00"), why)
+	// below twice the smallest the difference reads as a percentage; above
+	// it, as a factor ("up to 2853.85 % apart" read as a misprint)
+	spread := strings.TrimSuffix(fmt.Sprintf("%.2f", 100*s), ".00") + " % above the smallest"
+	if s >= 1 {
+		spread = strings.TrimSuffix(fmt.Sprintf("%.2f", 1+s), ".00") + " times the smallest"
+	}
+	return fmt.Sprintf("The strata's inclusion weights N_h/n_h differ through %s: the largest is %s. The estimate weights each stratum by N_h/N, and the verdict uses a rule that holds whatever the weights (see the method).",
+		why, spread)
 }
 
 // ocTop is the right end of a sequential plan's OC curve: three times the
@@ -502,6 +519,14 @@ func signoff(given []record.Signoff, set *templates.Set, rec *record.Record) ([]
 	// No record id: a meaning is part of what the id covers (and the
 	// templates refuse a meaning that prints it).
 	f := templates.Fields{System: rec.System, SystemVersion: rec.SystemVersion, Period: rec.Period, Date: rec.Date, Use: rec.Use}
+	if rec.ReleaseRule != "" {
+		f.ReleaseRule = record.ReleaseRuleText(rec.ReleaseRule)
+		if rec.Released != nil && rec.Released.Candidate != "" {
+			f.Released = rec.Released.Candidate
+		} else {
+			f.NoRelease = true
+		}
+	}
 	var out []record.Signoff
 	for _, role := range templates.Roles() {
 		s := byRole[role]

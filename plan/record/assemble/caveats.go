@@ -42,6 +42,9 @@ func caveats(rec *record.Record) []record.Caveat {
 	if eps <= 0 {
 		return nil
 	}
+	if len(rec.Measures) > 0 {
+		return measureCaveats(rec, eps)
+	}
 	var out []record.Caveat
 	for _, c := range rec.Candidates {
 		if c.Verdict != record.Accept || eps < ceiling-c.UpperBound {
@@ -59,4 +62,70 @@ func caveats(rec *record.Record) []record.Caveat {
 		out = append(out, record.Caveat{Kind: record.CaveatLabelErrorMargin, Candidate: c.Name, Text: text})
 	}
 	return out
+}
+
+// measureCaveats are the label-error caveats of a record of measures. A
+// rate measured within a group — the positives (fnr), the negatives (fpr),
+// the cleared (for), the flagged (fdr) — is moved by wrong reference
+// labels far more than the overall error is when they fall in that group:
+// a share ε of wrong labels among all decisions, all in a group holding a
+// share s of them, moves the group's rate by about ε/s (k = εN wrong
+// labels among sN decisions). For each accepted claim whose margin
+// (ceiling − upper bound) is at most ε/s, with s the group's estimated
+// share (the candidate's estimated confusion), page 1 says so.
+func measureCaveats(rec *record.Record, eps float64) []record.Caveat {
+	var out []record.Caveat
+	for _, m := range rec.Measures {
+		if m.Verdict != record.Accept {
+			continue
+		}
+		share, group := measureGroupShare(rec, m)
+		if share <= 0 {
+			continue
+		}
+		shift := math.Min(1, eps/share)
+		if shift < m.Ceiling-m.UpperBound {
+			continue
+		}
+		text := fmt.Sprintf("%s of %s is accepted with an upper bound of %s against the ceiling %s, but on the doubled items a single labeler "+
+			"was wrong on at least %s of items", m.Measure, m.Candidate, numfmt.RateUp(m.UpperBound), numfmt.Setting(m.Ceiling), numfmt.RateDown(eps))
+		if share < 1 {
+			text += fmt.Sprintf("; %s are an estimated %s of the decisions, so wrong labels of that share, falling among them, could move %s by about %s",
+				group, numfmt.Rate(share), m.Measure, numfmt.RateDown(shift))
+		} else {
+			text += fmt.Sprintf(", and wrong labels of that share can move %s by as much", m.Measure)
+		}
+		text += fmt.Sprintf(", more than the margin of %s. The stated false-accept risk holds only if the reference labels are better than the doubled items show.",
+			numfmt.RateDown(math.Max(0, m.Ceiling-m.UpperBound)))
+		out = append(out, record.Caveat{Kind: record.CaveatLabelErrorMargin, Candidate: m.Candidate, Text: text})
+	}
+	return out
+}
+
+// measureGroupShare is the estimated share of all decisions in the group a
+// claim's rate is measured in, from the candidate's estimated confusion,
+// and the group's name; 0 when it is not known.
+func measureGroupShare(rec *record.Record, m record.MeasureVerdict) (float64, string) {
+	for _, c := range rec.EstimatedConfusion {
+		if c.Candidate != m.Candidate {
+			continue
+		}
+		n := c.TP + c.FP + c.FN + c.TN
+		if n <= 0 {
+			return 0, ""
+		}
+		switch m.Measure {
+		case "fnr":
+			return (c.TP + c.FN) / n, "the true positives"
+		case "fpr":
+			return (c.FP + c.TN) / n, "the true negatives"
+		case "for":
+			return (c.FN + c.TN) / n, "the decisions the candidate cleared"
+		case "fdr":
+			return (c.TP + c.FP) / n, "the decisions the candidate flagged"
+		case "error":
+			return 1, "all decisions"
+		}
+	}
+	return 0, ""
 }
