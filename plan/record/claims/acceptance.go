@@ -11,11 +11,9 @@ import (
 // when none does. The judgement's p-value grows with the events, so the
 // largest accepting count is found by bisection.
 func AcceptanceNumber(pop measure.Population, cd measure.ClaimDesign, alpha float64) (int, error) {
-	var strata []int
 	counted := 0
 	for h, k := range cd.Counted {
 		if k > 0 && numerator(cd.Measure, pop.Candidates[cd.Candidate].Positive[h]) {
-			strata = append(strata, h)
 			counted += k
 		}
 	}
