@@ -123,12 +123,5 @@ func measureFields(f *templates.Fields, rec *record.Record) {
 	for _, s := range rec.Strata {
 		f.SampleSize += s.Sample
 	}
-	if rec.ReleaseRule != "" {
-		f.ReleaseRule = record.ReleaseRuleText(rec.ReleaseRule)
-		if rec.Released != nil && rec.Released.Candidate != "" {
-			f.Released = rec.Released.Candidate
-		} else {
-			f.NoRelease = true
-		}
-	}
+	f.ReleaseRule, f.Released, f.NoRelease = rec.ReleaseFields()
 }

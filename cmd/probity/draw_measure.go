@@ -85,7 +85,7 @@ func drawMeasuresOf(p *plan.File, m *drawfolder.Manifest) (*drawMeasures, error)
 		c := drawMeasureClaim{Candidate: p.Candidates[cd.Candidate].Name, Measure: cd.Measure.String(), Ceiling: cd.Ceiling,
 			AcceptEvents: ca, ProducerRisk: mi.Claims[i].ProducerRisk, Planned: planned[i]}
 		for h, k := range cd.Counted {
-			if claimNumerator(cd.Measure, pop.Candidates[cd.Candidate].Positive[h]) {
+			if cd.Measure.OnNumerator(pop.Candidates[cd.Candidate].Positive[h]) {
 				c.Counted += k
 			} else {
 				c.CountedOther += k
@@ -147,18 +147,6 @@ func writeDrawMeasures(w io.Writer, p *plan.File, m *drawfolder.Manifest) error 
 		fmt.Fprintf(w, "design: %s labels\n", numfmt.Count(dm.Labels))
 	}
 	return nil
-}
-
-// claimNumerator reports whether a stratum the candidate predicts
-// positive (pos) or negative is on the claim's numerator side.
-func claimNumerator(m measure.Measure, pos bool) bool {
-	switch m {
-	case measure.FOR, measure.FNR:
-		return !pos
-	case measure.FDR, measure.FPR:
-		return pos
-	}
-	return true
 }
 
 // measureEvents names what a claim's numerator side counts.

@@ -102,6 +102,20 @@ func (m Measure) Title() string {
 // known set of decisions (error, for, fdr).
 func (m Measure) Ratio() bool { return m == FNR || m == FPR }
 
+// OnNumerator reports whether the strata a candidate predicts positive
+// (pos) or negative are on the measure's numerator side, where its events
+// are counted: every stratum for error, the predicted negatives for for and
+// fnr, the predicted positives for fdr and fpr.
+func (m Measure) OnNumerator(pos bool) bool {
+	switch m {
+	case FOR, FNR:
+		return !pos
+	case FDR, FPR:
+		return pos
+	}
+	return true
+}
+
 // Critical reports whether the measure counts the critical error type, a
 // missed positive (fnr, for).
 func (m Measure) Critical() bool { return m == FNR || m == FOR }

@@ -111,3 +111,16 @@ func (r *Record) ReleaseStatement() string {
 	}
 	return "released: " + r.Released.Candidate + " (" + rule + ")"
 }
+
+// ReleaseFields are what the wording says of the release: the plan's
+// release rule in words, the released candidate, and whether none
+// qualified ("", "", false when the plan declares no release rule).
+func (r *Record) ReleaseFields() (rule, released string, none bool) {
+	if r.ReleaseRule == "" {
+		return "", "", false
+	}
+	if r.Released != nil && r.Released.Candidate != "" {
+		return ReleaseRuleText(r.ReleaseRule), r.Released.Candidate, false
+	}
+	return ReleaseRuleText(r.ReleaseRule), "", true
+}

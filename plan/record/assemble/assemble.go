@@ -519,14 +519,7 @@ func signoff(given []record.Signoff, set *templates.Set, rec *record.Record) ([]
 	// No record id: a meaning is part of what the id covers (and the
 	// templates refuse a meaning that prints it).
 	f := templates.Fields{System: rec.System, SystemVersion: rec.SystemVersion, Period: rec.Period, Date: rec.Date, Use: rec.Use}
-	if rec.ReleaseRule != "" {
-		f.ReleaseRule = record.ReleaseRuleText(rec.ReleaseRule)
-		if rec.Released != nil && rec.Released.Candidate != "" {
-			f.Released = rec.Released.Candidate
-		} else {
-			f.NoRelease = true
-		}
-	}
+	f.ReleaseRule, f.Released, f.NoRelease = rec.ReleaseFields()
 	var out []record.Signoff
 	for _, role := range templates.Roles() {
 		s := byRole[role]

@@ -13,7 +13,7 @@ import (
 func AcceptanceNumber(pop measure.Population, cd measure.ClaimDesign, alpha float64) (int, error) {
 	counted := 0
 	for h, k := range cd.Counted {
-		if k > 0 && numerator(cd.Measure, pop.Candidates[cd.Candidate].Positive[h]) {
+		if k > 0 && cd.Measure.OnNumerator(pop.Candidates[cd.Candidate].Positive[h]) {
 			counted += k
 		}
 	}
@@ -25,7 +25,7 @@ func AcceptanceNumber(pop measure.Population, cd measure.ClaimDesign, alpha floa
 			for range k {
 				// an event is the class the candidate does not predict
 				l := measure.Label{Positive: pos}
-				if left > 0 && numerator(cd.Measure, pos) {
+				if left > 0 && cd.Measure.OnNumerator(pos) {
 					l.Positive, left = !pos, left-1
 				}
 				smp[h] = append(smp[h], l)
@@ -48,18 +48,4 @@ func AcceptanceNumber(pop measure.Population, cd measure.ClaimDesign, alpha floa
 		}
 	}
 	return lo, nil
-}
-
-// numerator reports whether a stratum the candidate predicts positive
-// (pos) or negative is on the claim's numerator side: every stratum for
-// error, the predicted negatives for for and fnr, the predicted positives
-// for fdr and fpr.
-func numerator(m measure.Measure, pos bool) bool {
-	switch m {
-	case measure.FOR, measure.FNR:
-		return !pos
-	case measure.FDR, measure.FPR:
-		return pos
-	}
-	return true
 }
