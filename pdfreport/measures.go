@@ -157,14 +157,7 @@ func (d *doc) noMissMeasureBox(c *content) {
 	d.font("", bodySize)
 	text := "A " + c.use + " use needs a claim on the misses of the positive class " + positiveClass(c.rec) + " (the false-negative rate or the false omission rate); " +
 		"this plan claims neither and states why: \u201c" + r + "\u201d"
-	for _, l := range d.wrap(text, d.contentW()-5) {
-		d.need(lineH)
-		y := d.pdf.GetY()
-		d.fillColour(amber)
-		d.pdf.Rect(marginX, y, 1.3, lineH, "F")
-		d.pdf.SetXY(marginX+5, y)
-		d.pdf.CellFormat(d.contentW()-5, lineH, l, "", 1, "L", false, 0, "")
-	}
+	d.amberLines(d.wrap(text, d.contentW()-5))
 	d.space(2)
 }
 

@@ -208,13 +208,20 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 		pdf.RegisterImageOptionsReader("oc-curve", gofpdf.ImageOptions{ImageType: "PNG"}, bytes.NewReader(c.oc))
 	}
 	pdf.AddPage()
+	// With measures the verdicts rest on the claims: their summary, plan
+	// and results replace the overall error's table, plan and operating
+	// characteristic.
+	summary, planInfo, results := d.summary, d.planInfo, d.ocSection
+	if hasMeasures(c.rec) {
+		summary, planInfo, results = d.measuresSummary, d.measuresPlanInfo, d.measuresSection
+	}
 	sections := []func(*content){
 		d.titleBlock,
-		d.summary,
+		summary,
 		d.conformity,
 		d.cautions,
-		d.planInfo,
-		d.ocSection,
+		planInfo,
+		results,
 		d.strataSection,
 		d.confusionSection,
 		d.labelQualitySection,
@@ -224,28 +231,6 @@ func (c *content) layout(size string, w, h float64, date time.Time, total int) (
 		d.scopeSection,
 		d.provenanceSection,
 		d.signoffSection,
-	}
-	if hasMeasures(c.rec) {
-		// The verdicts rest on the claims: their summary, plan and results
-		// replace the overall error's table, plan and operating
-		// characteristic.
-		sections = []func(*content){
-			d.titleBlock,
-			d.measuresSummary,
-			d.conformity,
-			d.cautions,
-			d.measuresPlanInfo,
-			d.measuresSection,
-			d.strataSection,
-			d.confusionSection,
-			d.labelQualitySection,
-			d.labelTrailSection,
-			d.methodSection,
-			d.deviationsSection,
-			d.scopeSection,
-			d.provenanceSection,
-			d.signoffSection,
-		}
 	}
 	for _, section := range sections {
 		section(c)

@@ -83,14 +83,7 @@ func (d *doc) caveatsBox(c *content) {
 		d.font("", bodySize)
 		lines := d.wrap(cv.Text, d.contentW()-5)
 		d.need(float64(min(len(lines), 2)) * lineH)
-		for _, l := range lines {
-			d.need(lineH)
-			y := d.pdf.GetY()
-			d.fillColour(amber)
-			d.pdf.Rect(marginX, y, 1.3, lineH, "F")
-			d.pdf.SetXY(marginX+5, y)
-			d.pdf.CellFormat(d.contentW()-5, lineH, l, "", 1, "L", false, 0, "")
-		}
+		d.amberLines(lines)
 		d.space(1.2)
 	}
 	d.space(1)
@@ -326,4 +319,18 @@ func acceptedText(accepted, n int) string {
 		return "The candidate is not accepted on every measure claimed for it"
 	}
 	return itoa(accepted) + " of " + itoa(n) + " candidates accepted on every measure claimed for them"
+}
+
+// amberLines prints wrapped lines (wrapped to the content width less 5 mm)
+// behind an amber bar, the mark of what qualifies a verdict; each line may
+// start a new page.
+func (d *doc) amberLines(lines []string) {
+	for _, l := range lines {
+		d.need(lineH)
+		y := d.pdf.GetY()
+		d.fillColour(amber)
+		d.pdf.Rect(marginX, y, 1.3, lineH, "F")
+		d.pdf.SetXY(marginX+5, y)
+		d.pdf.CellFormat(d.contentW()-5, lineH, l, "", 1, "L", false, 0, "")
+	}
 }

@@ -309,12 +309,9 @@ func trendShortList(xs []string, n int) string {
 
 // printTrend writes the human-readable trend: a heading, one table per
 // candidate and the latest verdict.
-func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
-	if t.Measure != nil {
-		printMeasureTrend(w, t, files)
-		return
-	}
-	c := t.Class
+// printTrendHead writes the first lines of every trend: the records, their
+// period, the system and which records are charted unauthenticated.
+func printTrendHead(w io.Writer, t *trend.Trend) {
 	head := fmt.Sprintf("Trend of %s, %s to %s", countOf(len(t.Periods), "record", "records"), t.Periods[0].Label, t.Latest.Label)
 	if sys := strings.TrimSpace(t.System + " " + t.SystemVersion); sys != "" {
 		head += " — " + sys
@@ -323,6 +320,15 @@ func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
 	if len(t.Unauthenticated) > 0 {
 		fmt.Fprintf(w, "UNAUTHENTICATED records charted: %s (their signatures did not authenticate them, or were not checked)\n", strings.Join(t.Unauthenticated, ", "))
 	}
+}
+
+func printTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
+	if t.Measure != nil {
+		printMeasureTrend(w, t, files)
+		return
+	}
+	c := t.Class
+	printTrendHead(w, t)
 	fmt.Fprintf(w, "plan: %s model, %s method, %s design; ceiling %s, confidence %s\n",
 		c.Model, c.Method, c.Design, numfmt.Setting(c.Ceiling), numfmt.Confidence(c.Confidence))
 	fmt.Fprintf(w, "flag ↑: one-sided Fisher's exact test against %s, p ≤ %s per comparison\n",

@@ -13,14 +13,7 @@ import (
 // one table per charted candidate and the release of every period.
 func printMeasureTrend(w io.Writer, t *trend.Trend, files *trendChartFiles) {
 	m := t.Measure
-	head := fmt.Sprintf("Trend of %s, %s to %s", countOf(len(t.Periods), "record", "records"), t.Periods[0].Label, t.Latest.Label)
-	if sys := strings.TrimSpace(t.System + " " + t.SystemVersion); sys != "" {
-		head += " — " + sys
-	}
-	fmt.Fprintln(w, head)
-	if len(t.Unauthenticated) > 0 {
-		fmt.Fprintf(w, "UNAUTHENTICATED records charted: %s (their signatures did not authenticate them, or were not checked)\n", strings.Join(t.Unauthenticated, ", "))
-	}
+	printTrendHead(w, t)
 	fmt.Fprintf(w, "measure: %s (%s), ceiling %s; each period's claim as its record judged it (no comparison between periods)\n",
 		m.Measure, m.Title, numfmt.Setting(m.Ceiling))
 	pw := len("period")
